@@ -1,0 +1,52 @@
+/* layout.h - the table of functions that makes one Arakawa grid layout (A to E).
+ *
+ * A layout owns where eta, u and v live on the cell, its continuity and momentum stencils, how walls
+ * and open edges enter those stencils, its stability limit, and how it reports values at cell
+ * centres. The model (model.c) owns the memory and the time loop and calls a layout only through
+ * this table, so adding a layout is one file (layout_x.c) plus one line in layouts.c.
+ *
+ * Every layout stores eta at cell centres. What u and v mean in sw_model (model_impl.h) is the
+ * layout's business; the sketch at the top of each layout file shows it.
+ */
+#ifndef SW_LAYOUT_H
+#define SW_LAYOUT_H
+
+#include <stddef.h>
+
+#include "real.h"
+#include "status.h"
+
+typedef struct sw_model sw_model;
+
+typedef struct sw_layout {
+    const char *name;     /* "A" .. "E" */
+    const char *summary;  /* one line for --help and reports */
+
+    /* Highest angular frequency (rad/s) of the layout's semi-discrete gravity waves on depth h,
+     * over all wavenumbers the grid resolves, with gh = g*h (m2 s-2) and cell sizes dx, dy (m).
+     * dims = 1 considers x-waves only (a channel); dims = 2 the whole plane.
+     * Forward-backward stepping is stable exactly while max_frequency * dt <= 2. */
+    double (*max_frequency)(double gh, double dx, double dy, int dims);
+
+    /* Fills the layout's depth-at-velocity-point arrays (m->hx, m->hy) and open-edge lists from
+     * m->h and m->edges, after model.c has allocated every array. Returns SW_OK or an error. */
+    sw_status (*prepare)(sw_model *m, sw_error *err);
+
+    /* Advances the state by one forward-backward step: eta first, from the old velocities, then the
+     * velocities from the new eta. Must be called by every thread of an enclosing parallel region
+     * (it uses orphaned `omp for` loops and their barriers); also works outside one. */
+    void (*step)(sw_model *m);
+
+    /* Values at the centres of row j (0 .. ny-1) into eta, u, v (each nx long): elevation (m) and
+     * the two velocity components (m/s) interpolated to the centre. Land cells give 0. */
+    void (*centre_row)(const sw_model *m, size_t j, double *eta, double *u, double *v);
+} sw_layout;
+
+/* Finds a layout by name ("A".."E", any case). Returns NULL for an unknown name; for a known name
+ * this build does not implement yet, also NULL with *known set to 1 (known may be NULL). */
+const sw_layout *sw_layout_find(const char *name, int *known);
+
+/* Comma-separated names of the implemented layouts, e.g. "A, C". */
+const char *sw_layout_names(void);
+
+#endif

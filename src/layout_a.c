@@ -1,0 +1,124 @@
+/* layout_a.c - the Arakawa A layout: eta, u and v all at cell centres, centred differences.
+ *
+ *        +---------+              k = padded index of cell (i, j)
+ *        |  eta[k] |              eta, u, v, h at the centre of cell k
+ *        |  u[k]   |              derivatives: (f[k+1] - f[k-1]) / (2 dx), (f[k+s] - f[k-s]) / (2 dy)
+ *        |  v[k]   |              hx[k], hy[k]: depth carried by u[k], v[k]
+ *        +---------+
+ *
+ * Walls: u is held at 0 in every water cell whose west or east neighbour is land or a wall edge
+ * (hx = 0 there), v likewise with the south/north neighbours (hy = 0); so no flux crosses into land,
+ * water volume is conserved, and momentum never reads a land cell's eta. Open edges: the ghost cell
+ * (halo) carries the outgoing wave's eta (model_impl.h) and the matching normal velocity
+ * sign * sqrt(g/h) * eta, with the inner cell's depth.
+ * Semi-discrete frequency: omega^2 = g h (sin^2(k dx) / dx^2 + sin^2(l dy) / dy^2), highest at the
+ * 4-cell wave: sqrt(g h) sqrt(1/dx^2 + 1/dy^2); in a channel sqrt(g h) / dx. With square cells the
+ * Courant limit is sqrt(2) in 2D and 2 in 1D. The 2-cell wave has omega = 0: a checkerboard in eta
+ * does not propagate (the layout's known spurious mode).
+ */
+#include <math.h>
+
+#include "layout.h"
+#include "model_impl.h"
+#include "omp_compat.h"
+
+static double a_max_frequency(double gh, double dx, double dy, int dims)
+{
+    double s = 1.0 / (dx * dx) + (dims == 2 ? 1.0 / (dy * dy) : 0.0);
+    return sqrt(gh * s);
+}
+
+static sw_status a_prepare(sw_model *m, sw_error *err)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
+    const int open_w = m->edges[SW_WEST] == SW_EDGE_OPEN, open_e = m->edges[SW_EAST] == SW_EDGE_OPEN;
+    const int open_s = m->edges[SW_SOUTH] == SW_EDGE_OPEN, open_n = m->edges[SW_NORTH] == SW_EDGE_OPEN;
+    const sw_real *h = m->h;
+    for (size_t j = 0; j < ny; j++)
+        for (size_t i = 0; i < nx; i++) {
+            size_t k = sw_pidx(m, i, j);
+            if (h[k] <= 0)
+                continue;
+            int west = i > 0 ? h[k - 1] > 0 : open_w;
+            int east = i + 1 < nx ? h[k + 1] > 0 : open_e;
+            int south = j > 0 ? h[k - s] > 0 : open_s;
+            int north = j + 1 < ny ? h[k + s] > 0 : open_n;
+            m->hx[k] = west && east ? h[k] : 0;
+            m->hy[k] = south && north ? h[k] : 0;
+        }
+    sw_status rc = sw_model_build_open(m, m->grid.dx_m, m->grid.dy_m, err);
+    if (rc != SW_OK)
+        return rc;
+    /* ghosts carry the inner cell's depth along their normal */
+    for (size_t q = 0; q < m->n_open; q++) {
+        const sw_open_cell *oc = &m->open[q];
+        if (oc->normal_x)
+            m->hx[oc->ghost] = m->h[oc->inner];
+        else
+            m->hy[oc->ghost] = m->h[oc->inner];
+    }
+    return SW_OK;
+}
+
+static void a_step(sw_model *m)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
+    const sw_real cx = (sw_real)(0.5 * m->dt / m->grid.dx_m), cy = (sw_real)(0.5 * m->dt / m->grid.dy_m);
+    const sw_real gx = (sw_real)(0.5 * m->g * m->dt / m->grid.dx_m);
+    const sw_real gy = (sw_real)(0.5 * m->g * m->dt / m->grid.dy_m);
+    sw_real *restrict eta = m->eta, *restrict u = m->u, *restrict v = m->v;
+    const sw_real *restrict hx = m->hx, *restrict hy = m->hy;
+
+    /* forward: continuity from the old velocities */
+    SW_OMP(for schedule(static))
+    for (size_t j = 1; j <= ny; j++) {
+        const size_t r = j * s;
+        SW_OMP(simd)
+        for (size_t i = r + 1; i <= r + nx; i++)
+            eta[i] -= cx * (hx[i + 1] * u[i + 1] - hx[i - 1] * u[i - 1])
+                    + cy * (hy[i + s] * v[i + s] - hy[i - s] * v[i - s]);
+    }
+    sw_model_open_eta(m);
+
+    /* backward: momentum from the new eta */
+    SW_OMP(for schedule(static))
+    for (size_t j = 1; j <= ny; j++) {
+        const size_t r = j * s;
+        SW_OMP(simd)
+        for (size_t i = r + 1; i <= r + nx; i++) {
+            u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i - 1]) : 0;
+            v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] - eta[i - s]) : 0;
+        }
+    }
+
+    /* ghost velocities of the outgoing wave */
+    const sw_open_cell *restrict oc = m->open;
+    const size_t n_open = m->n_open;
+    SW_OMP(for schedule(static))
+    for (size_t q = 0; q < n_open; q++) {
+        sw_real vel = oc[q].sign * oc[q].c_over_h * eta[oc[q].ghost];
+        if (oc[q].normal_x)
+            u[oc[q].ghost] = vel;
+        else
+            v[oc[q].ghost] = vel;
+    }
+}
+
+static void a_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
+{
+    const size_t r = sw_pidx(m, 0, j);
+    for (size_t i = 0; i < m->grid.nx; i++) {
+        eta[i] = m->eta[r + i];
+        u[i] = m->u[r + i];
+        v[i] = m->v[r + i];
+    }
+}
+
+const sw_layout sw_layout_a = {
+    .name = "A",
+    .summary = "co-located: eta, u and v at cell centres, centred differences",
+    .max_frequency = a_max_frequency,
+    .prepare = a_prepare,
+    .step = a_step,
+    .centre_row = a_centre_row,
+};

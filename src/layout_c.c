@@ -1,0 +1,108 @@
+/* layout_c.c - the Arakawa C layout: eta at cell centres, u and v on the faces.
+ *
+ *            v[k]                 k = padded index of cell (i, j)
+ *        +----^----+              u[k]: x velocity on the EAST face of cell k
+ *        |         |              v[k]: y velocity on the NORTH face of cell k
+ *  u[k-1]>  eta[k] >u[k]          hx[k], hy[k]: depth carried by u[k], v[k]
+ *        |         |
+ *        +----^----+
+ *          v[k-stride]
+ *
+ * Face depth: the mean of the two cells' depths when both are water; 0 (a wall) when either is land
+ * or beyond a wall edge; the inner cell's depth on an open edge, whose ghost cell (halo) carries
+ * the outgoing wave (model_impl.h).
+ * Semi-discrete frequency: omega^2 = 4 g h (sin^2(k dx/2) / dx^2 + sin^2(l dy/2) / dy^2), highest at the
+ * 2-cell wave: 2 sqrt(g h) sqrt(1/dx^2 + 1/dy^2); in a channel 2 sqrt(g h) / dx. With square cells
+ * the Courant limit sqrt(g h) dt / dx <= 2 / max(omega dx / sqrt(g h)) is 1/sqrt(2) in 2D and 1 in 1D.
+ */
+#include <math.h>
+
+#include "layout.h"
+#include "model_impl.h"
+#include "omp_compat.h"
+
+static double c_max_frequency(double gh, double dx, double dy, int dims)
+{
+    double s = 1.0 / (dx * dx) + (dims == 2 ? 1.0 / (dy * dy) : 0.0);
+    return 2.0 * sqrt(gh * s);
+}
+
+static sw_status c_prepare(sw_model *m, sw_error *err)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
+    const sw_real *h = m->h;
+    for (size_t j = 0; j < ny; j++)
+        for (size_t i = 0; i < nx; i++) {
+            size_t k = sw_pidx(m, i, j);
+            if (h[k] <= 0)
+                continue;
+            /* east face: interior, or the east edge */
+            if (i + 1 < nx)
+                m->hx[k] = h[k + 1] > 0 ? (sw_real)0.5 * (h[k] + h[k + 1]) : 0;
+            else
+                m->hx[k] = m->edges[SW_EAST] == SW_EDGE_OPEN ? h[k] : 0;
+            if (i == 0)
+                m->hx[k - 1] = m->edges[SW_WEST] == SW_EDGE_OPEN ? h[k] : 0;
+            /* north face */
+            if (j + 1 < ny)
+                m->hy[k] = h[k + s] > 0 ? (sw_real)0.5 * (h[k] + h[k + s]) : 0;
+            else
+                m->hy[k] = m->edges[SW_NORTH] == SW_EDGE_OPEN ? h[k] : 0;
+            if (j == 0)
+                m->hy[k - s] = m->edges[SW_SOUTH] == SW_EDGE_OPEN ? h[k] : 0;
+        }
+    return sw_model_build_open(m, m->grid.dx_m, m->grid.dy_m, err);
+}
+
+static void c_step(sw_model *m)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
+    const sw_real cx = (sw_real)(m->dt / m->grid.dx_m), cy = (sw_real)(m->dt / m->grid.dy_m);
+    const sw_real gx = (sw_real)(m->g * m->dt / m->grid.dx_m), gy = (sw_real)(m->g * m->dt / m->grid.dy_m);
+    sw_real *restrict eta = m->eta, *restrict u = m->u, *restrict v = m->v;
+    const sw_real *restrict hx = m->hx, *restrict hy = m->hy;
+
+    /* forward: continuity from the old velocities */
+    SW_OMP(for schedule(static))
+    for (size_t j = 1; j <= ny; j++) {
+        const size_t r = j * s;
+        SW_OMP(simd)
+        for (size_t i = r + 1; i <= r + nx; i++)
+            eta[i] -= cx * (hx[i] * u[i] - hx[i - 1] * u[i - 1]) + cy * (hy[i] * v[i] - hy[i - s] * v[i - s]);
+    }
+    sw_model_open_eta(m);
+
+    /* backward: momentum from the new eta; padded row 0 holds only the south edge's v faces */
+    SW_OMP(for schedule(static))
+    for (size_t j = 0; j <= ny; j++) {
+        const size_t r = j * s;
+        if (j > 0) {
+            SW_OMP(simd)
+            for (size_t i = r; i <= r + nx; i++)
+                u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i]) : 0;
+        }
+        SW_OMP(simd)
+        for (size_t i = r + 1; i <= r + nx; i++)
+            v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] - eta[i]) : 0;
+    }
+}
+
+static void c_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
+{
+    const size_t r = sw_pidx(m, 0, j), s = m->stride;
+    for (size_t i = 0; i < m->grid.nx; i++) {
+        size_t k = r + i;
+        eta[i] = m->eta[k];
+        u[i] = 0.5 * ((double)m->u[k - 1] + m->u[k]);
+        v[i] = 0.5 * ((double)m->v[k - s] + m->v[k]);
+    }
+}
+
+const sw_layout sw_layout_c = {
+    .name = "C",
+    .summary = "staggered: eta at centres, u on east/west faces, v on north/south faces",
+    .max_frequency = c_max_frequency,
+    .prepare = c_prepare,
+    .step = c_step,
+    .centre_row = c_centre_row,
+};

@@ -1,0 +1,253 @@
+/* model.c - model state, its memory, and what every layout shares (see model.h).
+ *
+ * Invariant: on land cells and in the halo at walls, eta, u, v, h, hx and hy are 0 and stay 0;
+ * the layouts guarantee it by giving every face next to land a zero flux depth.
+ */
+#include "model.h"
+#include "model_impl.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "omp_compat.h"
+
+#define SW_ALIGN 64
+
+static size_t round_up(size_t n, size_t to) { return (n + to - 1) / to * to; }
+
+/* Row stride for a grid: nx + 2 padded to a whole number of 64-byte lines. */
+static size_t stride_for(const sw_grid *g)
+{
+    return round_up(g->nx + 2, SW_ALIGN / sizeof(sw_real));
+}
+
+size_t sw_model_bytes_for(const sw_grid *g)
+{
+    size_t n_pad = stride_for(g) * (g->ny + 2);
+    return 6 * n_pad * sizeof(sw_real) + g->nx * g->ny
+         + 2 * (g->nx + g->ny) * sizeof(sw_open_cell);
+}
+
+/* 64-byte aligned, zeroed array of n reals, or NULL. Free with free(). */
+static sw_real *alloc_field(size_t n)
+{
+    size_t bytes = round_up(n * sizeof(sw_real), SW_ALIGN);
+    sw_real *p = aligned_alloc(SW_ALIGN, bytes);
+    if (p)
+        memset(p, 0, bytes);
+    return p;
+}
+
+/* Stability uses the channel formula when the grid is one cell across. */
+static double max_frequency_for(const sw_layout *layout, const sw_grid *g, double gh, int dims)
+{
+    if (dims == 1 || g->ny == 1)
+        return layout->max_frequency(gh, g->dx_m, g->dy_m, 1);
+    if (g->nx == 1)
+        return layout->max_frequency(gh, g->dy_m, g->dx_m, 1);
+    return layout->max_frequency(gh, g->dx_m, g->dy_m, 2);
+}
+
+static double deepest(const sw_grid *g, const double *depth_m, double min_depth_m)
+{
+    double h_max = 0.0;
+    for (size_t k = 0; k < sw_grid_cells(g); k++)
+        if (depth_m[k] >= min_depth_m && depth_m[k] > h_max)
+            h_max = depth_m[k];
+    return h_max;
+}
+
+double sw_model_dt_limit(const sw_layout *layout, const sw_grid *g, const double *depth_m,
+                         double min_depth_m, double gravity_ms2, int dims)
+{
+    double h_max = deepest(g, depth_m, min_depth_m);
+    if (h_max <= 0.0)
+        return 0.0;
+    return 2.0 / max_frequency_for(layout, g, gravity_ms2 * h_max, dims);
+}
+
+double sw_model_courant(const sw_grid *g, double h_max_m, double gravity_ms2, double dt_s)
+{
+    double d = g->dx_m < g->dy_m ? g->dx_m : g->dy_m;
+    return sqrt(gravity_ms2 * h_max_m) * dt_s / d;
+}
+
+sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *err)
+{
+    *out = NULL;
+    const sw_grid *g = &cfg->grid;
+    if (!cfg->layout || g->nx == 0 || g->ny == 0 || !(g->dx_m > 0) || !(g->dy_m > 0) || !(cfg->dt_s > 0)
+        || !(cfg->gravity_ms2 > 0) || !(cfg->min_depth_m > 0))
+        return sw_fail(err, SW_ERR_USAGE, "model: invalid configuration (layout, grid, dt, g or min_depth)");
+
+    double h_max = deepest(g, cfg->depth_m, cfg->min_depth_m);
+    if (h_max <= 0.0)
+        return sw_fail(err, SW_ERR_RANGE, "the domain has no water: every cell is shallower than min_depth = %g m",
+                       cfg->min_depth_m);
+    double dt_max = sw_model_dt_limit(cfg->layout, g, cfg->depth_m, cfg->min_depth_m, cfg->gravity_ms2, 2);
+    if (cfg->dt_s > dt_max * (1.0 + 1e-12)) {
+        double c = sw_model_courant(g, h_max, cfg->gravity_ms2, cfg->dt_s);
+        double c_max = sw_model_courant(g, h_max, cfg->gravity_ms2, dt_max);
+        return sw_fail(err, SW_ERR_UNSTABLE,
+                       "dt = %g s gives Courant number %.4g, beyond the %s-layout limit %.4g "
+                       "(dt <= %.4g s at the deepest water, %g m)",
+                       cfg->dt_s, c, cfg->layout->name, c_max, dt_max, h_max);
+    }
+
+    sw_model *m = calloc(1, sizeof *m);
+    if (!m)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating the model");
+    m->layout = cfg->layout;
+    m->grid = *g;
+    m->g = cfg->gravity_ms2;
+    m->dt = cfg->dt_s;
+    m->min_depth = cfg->min_depth_m;
+    m->h_max = h_max;
+    memcpy(m->edges, cfg->edges, sizeof m->edges);
+    m->stride = stride_for(g);
+    m->n_pad = m->stride * (g->ny + 2);
+
+    m->eta = alloc_field(m->n_pad);
+    m->u = alloc_field(m->n_pad);
+    m->v = alloc_field(m->n_pad);
+    m->h = alloc_field(m->n_pad);
+    m->hx = alloc_field(m->n_pad);
+    m->hy = alloc_field(m->n_pad);
+    m->wet = calloc(sw_grid_cells(g), 1);
+    if (!m->eta || !m->u || !m->v || !m->h || !m->hx || !m->hy || !m->wet) {
+        sw_model_free(m);
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory: the model needs %zu MB for a %zu x %zu grid",
+                       sw_model_bytes_for(g) >> 20, g->nx, g->ny);
+    }
+
+    for (size_t j = 0; j < g->ny; j++)
+        for (size_t i = 0; i < g->nx; i++) {
+            size_t k = j * g->nx + i;
+            double d = cfg->depth_m[k];
+            if (d >= cfg->min_depth_m) {
+                m->wet[k] = 1;
+                m->h[sw_pidx(m, i, j)] = (sw_real)d;
+                m->eta[sw_pidx(m, i, j)] = cfg->eta0_m ? (sw_real)cfg->eta0_m[k] : 0;
+            }
+        }
+
+    sw_status rc = m->layout->prepare(m, err);
+    if (rc != SW_OK) {
+        sw_model_free(m);
+        return rc;
+    }
+    *out = m;
+    return SW_OK;
+}
+
+void sw_model_free(sw_model *m)
+{
+    if (!m)
+        return;
+    free(m->eta);
+    free(m->u);
+    free(m->v);
+    free(m->h);
+    free(m->hx);
+    free(m->hy);
+    free(m->wet);
+    free(m->open);
+    free(m);
+}
+
+sw_status sw_model_build_open(sw_model *m, double spacing_x, double spacing_y, sw_error *err)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny;
+    size_t cap = 0;
+    if (m->edges[SW_WEST] == SW_EDGE_OPEN) cap += ny;
+    if (m->edges[SW_EAST] == SW_EDGE_OPEN) cap += ny;
+    if (m->edges[SW_SOUTH] == SW_EDGE_OPEN) cap += nx;
+    if (m->edges[SW_NORTH] == SW_EDGE_OPEN) cap += nx;
+    m->n_open = 0;
+    if (cap == 0)
+        return SW_OK;
+    m->open = calloc(cap, sizeof *m->open);
+    if (!m->open)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating open edges");
+
+    /* (edge, along-edge count, inner cell, ghost offset from it, spacing, sign, normal along x) */
+    for (int e = 0; e < 4; e++) {
+        if (m->edges[e] != SW_EDGE_OPEN)
+            continue;
+        int along_x = (e == SW_SOUTH || e == SW_NORTH);
+        size_t n = along_x ? nx : ny;
+        for (size_t t = 0; t < n; t++) {
+            size_t i = along_x ? t : (e == SW_WEST ? 0 : nx - 1);
+            size_t j = along_x ? (e == SW_SOUTH ? 0 : ny - 1) : t;
+            if (!m->wet[j * nx + i])
+                continue;
+            size_t inner = sw_pidx(m, i, j);
+            size_t ghost = e == SW_WEST ? inner - 1 : e == SW_EAST ? inner + 1
+                         : e == SW_SOUTH ? inner - m->stride : inner + m->stride;
+            double h = m->h[inner];
+            double c = sqrt(m->g * h);
+            sw_open_cell *oc = &m->open[m->n_open++];
+            oc->ghost = ghost;
+            oc->inner = inner;
+            oc->r = (sw_real)(c * m->dt / (along_x ? spacing_y : spacing_x));
+            oc->c_over_h = (sw_real)(c / h);
+            oc->sign = (e == SW_EAST || e == SW_NORTH) ? 1 : -1;
+            oc->normal_x = !along_x;
+        }
+    }
+    return SW_OK;
+}
+
+void sw_model_open_eta(sw_model *m)
+{
+    sw_real *restrict eta = m->eta;
+    const sw_open_cell *restrict oc = m->open;
+    const size_t n = m->n_open;
+    SW_OMP(for schedule(static))
+    for (size_t q = 0; q < n; q++)
+        eta[oc[q].ghost] = (eta[oc[q].ghost] + oc[q].r * eta[oc[q].inner]) / (1 + oc[q].r);
+}
+
+void sw_model_step(sw_model *m) { m->layout->step(m); }
+
+void sw_model_tick(sw_model *m)
+{
+    m->steps++;
+    m->time = (double)m->steps * m->dt;
+}
+
+void sw_model_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
+{
+    m->layout->centre_row(m, j, eta, u, v);
+}
+
+double sw_model_eta(const sw_model *m, size_t i, size_t j) { return m->eta[sw_pidx(m, i, j)]; }
+
+void sw_model_set_eta(sw_model *m, size_t i, size_t j, double eta_m)
+{
+    if (m->wet[j * m->grid.nx + i])
+        m->eta[sw_pidx(m, i, j)] = (sw_real)eta_m;
+}
+
+double sw_model_volume(const sw_model *m)
+{
+    /* Kahan-Babuska summation so that the sum itself adds no drift worth measuring. */
+    double sum = 0.0, comp = 0.0;
+    for (size_t j = 0; j < m->grid.ny; j++)
+        for (size_t i = 0; i < m->grid.nx; i++) {
+            double x = m->eta[sw_pidx(m, i, j)];
+            double t = sum + x;
+            comp += fabs(sum) >= fabs(x) ? (sum - t) + x : (x - t) + sum;
+            sum = t;
+        }
+    return (sum + comp) * m->grid.dx_m * m->grid.dy_m;
+}
+
+const sw_grid *sw_model_grid(const sw_model *m) { return &m->grid; }
+const sw_layout *sw_model_layout(const sw_model *m) { return m->layout; }
+const unsigned char *sw_model_wet(const sw_model *m) { return m->wet; }
+double sw_model_time(const sw_model *m) { return m->time; }
+double sw_model_dt(const sw_model *m) { return m->dt; }
+double sw_model_h_max(const sw_model *m) { return m->h_max; }
+size_t sw_model_bytes(const sw_model *m) { return sw_model_bytes_for(&m->grid); }

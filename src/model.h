@@ -1,0 +1,80 @@
+/* model.h - the model state on one grid layout, and stepping it in time.
+ *
+ * Solves the linear shallow-water equations on a Cartesian grid,
+ *     d(eta)/dt + d(h u)/dx + d(h v)/dy = 0,      du/dt = -g d(eta)/dx,      dv/dt = -g d(eta)/dy,
+ * with forward-backward stepping: eta is advanced first from the old velocities, then the
+ * velocities from the new eta. Cells shallower than the minimum depth are land (walls: no flow
+ * across their faces); each domain edge is a wall or open (a radiation condition).
+ *
+ * Lifecycle: sw_model_create -> sw_model_step ... -> sw_model_free. The model owns all its arrays.
+ */
+#ifndef SW_MODEL_H
+#define SW_MODEL_H
+
+#include <stddef.h>
+
+#include "grid.h"
+#include "layout.h"
+#include "scenario.h"
+#include "status.h"
+
+typedef struct sw_model sw_model;
+
+/* What a model is built from. Arrays are [ny * nx], row j at [j * nx]; they are copied. */
+typedef struct {
+    const sw_layout *layout;   /* from sw_layout_find */
+    sw_grid grid;
+    const double *depth_m;     /* still-water depth, positive down; < min_depth_m = land */
+    const double *eta0_m;      /* initial elevation, m (NULL = 0); land cells are set to 0 */
+    double min_depth_m;        /* land threshold, m (> 0) */
+    double gravity_ms2;        /* g, m s-2 */
+    double dt_s;               /* time step, s (> 0); see sw_model_dt_limit */
+    sw_edge_kind edges[4];     /* SW_WEST .. SW_NORTH */
+} sw_model_config;
+
+/* The largest stable time step (s) for `layout` on the given depth field: 2 / max_frequency at the
+ * deepest water cell. Returns 0 when there is no water cell. */
+double sw_model_dt_limit(const sw_layout *layout, const sw_grid *g, const double *depth_m,
+                         double min_depth_m, double gravity_ms2, int dims);
+
+/* The Courant number of a time step: sqrt(g h_max) dt / min(dx, dy). */
+double sw_model_courant(const sw_grid *g, double h_max_m, double gravity_ms2, double dt_s);
+
+/* Creates a model. Refuses (SW_ERR_UNSTABLE) a dt beyond the layout's stability limit, naming
+ * both; SW_ERR_RANGE when there is no water cell; SW_ERR_NOMEM. *out is NULL on failure. */
+sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *err);
+
+/* Frees the model. m may be NULL. */
+void sw_model_free(sw_model *m);
+
+/* One time step (see sw_layout.step: call from all threads of a parallel region, or outside one). */
+void sw_model_step(sw_model *m);
+
+/* Advances the step counter and clock after a step. Call from one thread only. */
+void sw_model_tick(sw_model *m);
+
+/* Values at the centres of row j (see sw_layout.centre_row). */
+void sw_model_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v);
+
+/* Elevation at cell centre (i, j), m. */
+double sw_model_eta(const sw_model *m, size_t i, size_t j);
+
+/* Sets the elevation at cell centre (i, j) (ignored on land). For tests and restarts. */
+void sw_model_set_eta(sw_model *m, size_t i, size_t j, double eta_m);
+
+/* Water volume displaced: sum of eta * cell area over water cells, m3 (compensated summation). */
+double sw_model_volume(const sw_model *m);
+
+/* Accessors. */
+const sw_grid *sw_model_grid(const sw_model *m);
+const sw_layout *sw_model_layout(const sw_model *m);
+const unsigned char *sw_model_wet(const sw_model *m);  /* [ny * nx], 1 = water */
+double sw_model_time(const sw_model *m);               /* simulated time, s */
+double sw_model_dt(const sw_model *m);                 /* s */
+double sw_model_h_max(const sw_model *m);              /* deepest water cell, m */
+size_t sw_model_bytes(const sw_model *m);              /* memory held, bytes */
+
+/* Bytes a model of this grid would hold (for plans), without creating it. */
+size_t sw_model_bytes_for(const sw_grid *g);
+
+#endif

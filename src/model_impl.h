@@ -1,0 +1,67 @@
+/* model_impl.h - the model's fields, shared by model.c and the layout files only.
+ *
+ * Every field array is padded with one halo cell on each side: cell (i, j) of the grid (0-based)
+ * lives at index (j + 1) * stride + (i + 1). The halo holds ghost values at open edges and zeros
+ * at walls. Rows are `stride` elements apart (a multiple of 8, arrays 64-byte aligned).
+ */
+#ifndef SW_MODEL_IMPL_H
+#define SW_MODEL_IMPL_H
+
+#include <stddef.h>
+
+#include "grid.h"
+#include "layout.h"
+#include "real.h"
+#include "scenario.h"
+
+/* One ghost cell of an open edge. After each eta update the ghost follows the outgoing wave:
+ * eta_g <- (eta_g + r * eta_in) / (1 + r), an implicit upwind step of d(eta)/dt + c d(eta)/dn = 0
+ * (unconditionally stable), r = c dt / spacing, c = sqrt(g h). */
+typedef struct {
+    size_t ghost;   /* padded index of the ghost (halo) cell */
+    size_t inner;   /* padded index of the edge cell inside the domain */
+    sw_real r;      /* c dt / spacing, dimensionless */
+    sw_real c_over_h; /* sqrt(g / h), s-1: normal velocity of an outgoing wave per metre of eta */
+    sw_real sign;   /* +1 on east/north edges, -1 on west/south (outward normal along +x/+y) */
+    int normal_x;   /* 1 if the edge is west/east (normal along x), 0 if south/north */
+} sw_open_cell;
+
+struct sw_model {
+    const sw_layout *layout;
+    sw_grid grid;
+    double g;            /* gravity, m s-2 */
+    double dt;           /* time step, s */
+    double min_depth;    /* land threshold, m */
+    double h_max;        /* deepest water cell, m */
+    sw_edge_kind edges[4];
+
+    size_t stride;       /* elements between rows of a padded array */
+    size_t n_pad;        /* elements in each padded array: stride * (ny + 2) */
+
+    sw_real *eta;        /* elevation at cell centres, m */
+    sw_real *u;          /* x velocity, m/s, where the layout puts it */
+    sw_real *v;          /* y velocity, m/s, where the layout puts it */
+    sw_real *h;          /* depth at cell centres, m; 0 on land and in the halo */
+    sw_real *hx;         /* depth carried by u (the layout's x-flux depth); 0 = no flow there */
+    sw_real *hy;         /* depth carried by v; 0 = no flow there */
+    unsigned char *wet;  /* [ny * nx] unpadded: 1 = water cell */
+
+    size_t n_open;       /* open-edge ghost cells */
+    sw_open_cell *open;  /* [n_open] */
+
+    long long steps;     /* steps taken */
+    double time;         /* simulated time, s */
+};
+
+/* Padded index of grid cell (i, j), 0-based (i < nx, j < ny). Halo neighbours are reached from it
+ * by -1 / +1 (west / east) and -stride / +stride (south / north). */
+static inline size_t sw_pidx(const sw_model *m, size_t i, size_t j) { return (j + 1) * m->stride + (i + 1); }
+
+/* Builds m->open for every open edge: one ghost per water cell next to the edge. `spacing_x` and
+ * `spacing_y` are the distances used in r (dx and dy for the A and C layouts). Shared by layouts. */
+sw_status sw_model_build_open(sw_model *m, double spacing_x, double spacing_y, sw_error *err);
+
+/* Updates every open-edge ghost eta (see sw_open_cell). Orphaned `omp for`. */
+void sw_model_open_eta(sw_model *m);
+
+#endif

@@ -1,0 +1,292 @@
+/* test_model.c - the model on layouts A and C against published formulas and exact discrete answers.
+ *
+ * Sources (see ../shared/REFERENCES.md):
+ *  - Merian's formula for a closed basin, T_n = 2 L / (n sqrt(g h)): Rabinovich (2009), "Seiches and
+ *    harbour oscillations", Handbook of Coastal and Ocean Engineering [seen]; h = 10 m, L = 10 km
+ *    gives T_1 = 2019.28 s.
+ *  - Phase speed sqrt(g h): Lamb (1932), Hydrodynamics, ch. VIII [memory].
+ *  - Fully discrete frequency of forward-backward stepping [derived here]: a mode with semi-discrete
+ *    frequency w obeys lambda^2 - (2 - p^2) lambda + 1 = 0, p = w dt, so cos(W dt) = 1 - p^2/2.
+ *    On the C layout in a walled channel, eta = cos(k x) at the cell centres with k = n pi / L is an
+ *    exact eigenvector, with w = (2 c / dx) sin(k dx / 2).
+ */
+#include <math.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <stdlib.h>
+#include <string.h>
+#include <cmocka.h>
+
+#include "layout.h"
+#include "model.h"
+#include "omp_compat.h"
+
+#define G 9.81
+#define PI 3.14159265358979323846
+
+/* A basin of nx x ny cells of size d with constant depth h, and an eta0 callback. */
+typedef double (*shape_fn)(double x, double y, void *user);
+
+static sw_model *make_model(const char *layout, size_t nx, size_t ny, double d, double h, double courant_frac,
+                            sw_edge_kind edge, shape_fn eta0, void *user, double *depth_override)
+{
+    sw_grid g = {.nx = nx, .ny = ny, .dx_m = d, .dy_m = d};
+    double *depth = malloc(nx * ny * sizeof(double));
+    double *eta = malloc(nx * ny * sizeof(double));
+    assert_non_null(depth);
+    assert_non_null(eta);
+    for (size_t j = 0; j < ny; j++)
+        for (size_t i = 0; i < nx; i++) {
+            double x = ((double)i + 0.5) * d, y = ((double)j + 0.5) * d;
+            depth[j * nx + i] = depth_override ? depth_override[j * nx + i] : h;
+            eta[j * nx + i] = eta0 ? eta0(x, y, user) : 0.0;
+        }
+    const sw_layout *lay = sw_layout_find(layout, NULL);
+    assert_non_null(lay);
+    sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta, .min_depth_m = 1,
+                           .gravity_ms2 = G, .edges = {edge, edge, edge, edge}};
+    cfg.dt_s = courant_frac * sw_model_dt_limit(lay, &g, depth, 1, G, 2);
+    sw_model *m = NULL;
+    sw_error err = {0};
+    assert_int_equal(sw_model_create(&cfg, &m, &err), SW_OK);
+    free(depth);
+    free(eta);
+    return m;
+}
+
+static void advance(sw_model *m, long n, int threads)
+{
+    omp_set_num_threads(threads);
+    SW_OMP(parallel)
+    for (long k = 0; k < n; k++) {
+        sw_model_step(m);
+        SW_OMP(single)
+        sw_model_tick(m);
+    }
+}
+
+static double cos_mode(double x, double y, void *user)
+{
+    (void)y;
+    double *p = user;   /* p[0] = k, p[1] = amplitude */
+    return p[1] * cos(p[0] * x);
+}
+
+/* Mean period from upward and downward zero crossings of eta in cell 0 over n_periods. */
+static double measure_period(sw_model *m, double expected_s, int n_periods)
+{
+    double dt = sw_model_dt(m);
+    long steps = (long)(expected_s * (n_periods + 0.75) / dt);
+    double prev = sw_model_eta(m, 0, 0), t_first = -1, t_last = -1;
+    int crossings = 0;
+    for (long n = 0; n < steps; n++) {
+        advance(m, 1, 1);
+        double now = sw_model_eta(m, 0, 0);
+        if ((prev > 0) != (now > 0)) {
+            double t = sw_model_time(m) - dt + dt * prev / (prev - now);
+            if (crossings == 0)
+                t_first = t;
+            t_last = t;
+            crossings++;
+        }
+        prev = now;
+    }
+    assert_true(crossings >= 3);
+    return 2.0 * (t_last - t_first) / (crossings - 1);
+}
+
+/* Closed channel, h = 10 m, L = 10 km, mode 1, C layout: Merian within 0.5 %, discrete answer to 1e-7. */
+static void test_seiche_c_mode1(void **state)
+{
+    (void)state;
+    const size_t nx = 100;
+    const double L = 10000, h = 10, d = L / nx;
+    double p[2] = {PI / L, 0.01};
+    sw_model *m = make_model("C", nx, 1, d, h, 0.9, SW_EDGE_WALL, cos_mode, p, NULL);
+    double c = sqrt(G * h);
+    double merian = 2 * L / c;
+    assert_true(fabs(merian - 2019.28) < 0.01);   /* the handbook's worked value */
+    double dt = sw_model_dt(m);
+    double w = (2 * c / d) * sin(p[0] * d / 2);
+    double discrete = 2 * PI * dt / acos(1 - (w * dt) * (w * dt) / 2);
+    double measured = measure_period(m, discrete, 6);
+    print_message("C seiche: measured %.6f s, discrete %.6f s, Merian %.6f s\n", measured, discrete, merian);
+    assert_true(fabs(measured - merian) / merian < 5e-3);
+    assert_true(fabs(measured - discrete) / discrete < 1e-7);
+    sw_model_free(m);
+}
+
+/* Same basin on the A layout: Merian's period within 0.1 % (measured: 3e-5). */
+static void test_seiche_a_merian(void **state)
+{
+    (void)state;
+    const size_t nx = 100;
+    const double L = 10000, h = 10, d = L / nx;
+    double p[2] = {PI / L, 0.01};
+    sw_model *m = make_model("A", nx, 1, d, h, 0.9, SW_EDGE_WALL, cos_mode, p, NULL);
+    double merian = 2 * L / sqrt(G * h);
+    double measured = measure_period(m, merian, 6);
+    print_message("A seiche: measured %.4f s, Merian %.4f s\n", measured, merian);
+    assert_true(fabs(measured - merian) / merian < 1e-3);
+    sw_model_free(m);
+}
+
+static double hump_1d(double x, double y, void *user)
+{
+    (void)y;
+    double *p = user;   /* centre, e-folding width */
+    return exp(-((x - p[0]) * (x - p[0])) / (p[1] * p[1]));
+}
+
+/* Position (m) of the eastward pulse's crest: quadratic fit through the highest cell east of x0. */
+static double crest_east(sw_model *m, size_t nx, double d, double x0)
+{
+    size_t best = 0;
+    double bv = -1;
+    for (size_t i = (size_t)(x0 / d); i + 1 < nx; i++)
+        if (sw_model_eta(m, i, 0) > bv) {
+            bv = sw_model_eta(m, i, 0);
+            best = i;
+        }
+    double a = sw_model_eta(m, best - 1, 0), b = bv, c = sw_model_eta(m, best + 1, 0);
+    double off = 0.5 * (a - c) / (a - 2 * b + c);
+    return ((double)best + 0.5 + off) * d;
+}
+
+/* A hump splits into two pulses travelling at sqrt(g h) (Lamb 1932, [memory]); within 0.3 %. */
+static void front_speed(const char *layout)
+{
+    const size_t nx = 2000;
+    const double d = 100, h = 100, x0 = 50000;
+    double p[2] = {x0, 2000};
+    sw_model *m = make_model(layout, nx, 1, d, h, 0.9, SW_EDGE_WALL, hump_1d, p, NULL);
+    long n = (long)(1000.0 / sw_model_dt(m));
+    advance(m, n, 1);
+    double t1 = sw_model_time(m), x1 = crest_east(m, nx, d, x0);
+    advance(m, n, 2);
+    double t2 = sw_model_time(m), x2 = crest_east(m, nx, d, x0);
+    double speed = (x2 - x1) / (t2 - t1);
+    double c = sqrt(G * h);
+    print_message("%s front: %.4f m/s, sqrt(g h) = %.4f m/s\n", layout, speed, c);
+    assert_true(fabs(c - 31.3209) < 1e-3);   /* sqrt(9.81 * 100) */
+    assert_true(fabs(speed - c) / c < 3e-3);
+    sw_model_free(m);
+}
+static void test_front_speed_c(void **state) { (void)state; front_speed("C"); }
+static void test_front_speed_a(void **state) { (void)state; front_speed("A"); }
+
+static double hump_2d(double x, double y, void *user)
+{
+    double *p = user;
+    double r2 = (x - p[0]) * (x - p[0]) + (y - p[1]) * (y - p[1]);
+    return 0.5 * exp(-r2 / (p[2] * p[2]));
+}
+
+/* A basin with an island and a bumpy floor: with walls the water volume stays put to round-off. */
+static void mass_conserved(const char *layout)
+{
+    const size_t nx = 80, ny = 60;
+    const double d = 1000;
+    double *depth = malloc(nx * ny * sizeof(double));
+    assert_non_null(depth);
+    for (size_t j = 0; j < ny; j++)
+        for (size_t i = 0; i < nx; i++) {
+            double x = (double)i - 50, y = (double)j - 30;
+            depth[j * nx + i] = 200 + 50 * sin(0.3 * (double)i) - 300 * exp(-(x * x + y * y) / 40.0);
+        }
+    double p[3] = {20000, 20000, 6000};
+    sw_model *m = make_model(layout, nx, ny, d, 0, 0.95, SW_EDGE_WALL, hump_2d, p, depth);
+    free(depth);
+    double v0 = sw_model_volume(m);
+    advance(m, 2000, 2);
+    double v1 = sw_model_volume(m);
+    /* the volume is ~3e7 m3; round-off of 2000 steps on 4800 cells is far below 1e-9 of it */
+    print_message("%s volume: %.10e -> %.10e m3\n", layout, v0, v1);
+    assert_true(v0 > 1e7);
+    assert_true(fabs(v1 - v0) / v0 < 1e-10);
+    sw_model_free(m);
+}
+static void test_mass_c(void **state) { (void)state; mass_conserved("C"); }
+static void test_mass_a(void **state) { (void)state; mass_conserved("A"); }
+
+/* dt beyond the layout's limit is refused, with the limit named; the limits are the closed forms. */
+static void test_dt_refused(void **state)
+{
+    (void)state;
+    const char *names[2] = {"A", "C"};
+    const double limit_2d[2] = {sqrt(2.0), 1 / sqrt(2.0)};   /* derived in layout_a.c / layout_c.c */
+    const double limit_1d[2] = {2.0, 1.0};                   /* A: common textbook result; C: derived */
+    for (int q = 0; q < 2; q++) {
+        const sw_layout *lay = sw_layout_find(names[q], NULL);
+        sw_grid g2 = {.nx = 10, .ny = 10, .dx_m = 100, .dy_m = 100};
+        sw_grid g1 = {.nx = 10, .ny = 1, .dx_m = 100, .dy_m = 100};
+        double depth[100];
+        for (int k = 0; k < 100; k++)
+            depth[k] = 40;
+        double c = sqrt(G * 40);
+        double dt2 = sw_model_dt_limit(lay, &g2, depth, 1, G, 2);
+        double dt1 = sw_model_dt_limit(lay, &g1, depth, 1, G, 1);
+        assert_true(fabs(c * dt2 / 100 - limit_2d[q]) < 1e-12);
+        assert_true(fabs(c * dt1 / 100 - limit_1d[q]) < 1e-12);
+
+        sw_model_config cfg = {.layout = lay, .grid = g2, .depth_m = depth, .min_depth_m = 1, .gravity_ms2 = G,
+                               .dt_s = 1.02 * dt2};
+        sw_model *m = NULL;
+        sw_error err = {0};
+        assert_int_equal(sw_model_create(&cfg, &m, &err), SW_ERR_UNSTABLE);
+        assert_null(m);
+        assert_non_null(strstr(err.msg, "limit"));
+        cfg.dt_s = 0.98 * dt2;
+        assert_int_equal(sw_model_create(&cfg, &m, &err), SW_OK);
+        sw_model_free(m);
+    }
+}
+
+/* Results do not depend on the number of threads: bitwise equal elevations. */
+static void thread_independent(const char *layout)
+{
+    const size_t nx = 97, ny = 61;
+    double p[3] = {30000, 25000, 8000};
+    sw_model *m1 = make_model(layout, nx, ny, 1000, 500, 0.9, SW_EDGE_OPEN, hump_2d, p, NULL);
+    sw_model *m2 = make_model(layout, nx, ny, 1000, 500, 0.9, SW_EDGE_OPEN, hump_2d, p, NULL);
+    advance(m1, 300, 1);
+    advance(m2, 300, 2);
+    size_t differ = 0;
+    for (size_t j = 0; j < ny; j++)
+        for (size_t i = 0; i < nx; i++) {
+            double a = sw_model_eta(m1, i, j), b = sw_model_eta(m2, i, j);
+            differ += memcmp(&a, &b, sizeof a) != 0;
+        }
+    assert_int_equal(differ, 0);
+    assert_true(fabs(sw_model_eta(m1, 30, 25)) > 0);   /* something happened */
+    sw_model_free(m1);
+    sw_model_free(m2);
+}
+static void test_threads_c(void **state) { (void)state; thread_independent("C"); }
+static void test_threads_a(void **state) { (void)state; thread_independent("A"); }
+
+/* Layout registry: A and C exist; B, D, E are known names not built yet; X is unknown. */
+static void test_registry(void **state)
+{
+    (void)state;
+    int known = -1;
+    assert_non_null(sw_layout_find("c", &known));
+    assert_null(sw_layout_find("B", &known));
+    assert_int_equal(known, 1);
+    assert_null(sw_layout_find("X", &known));
+    assert_int_equal(known, 0);
+    assert_string_equal(sw_layout_names(), "A, C");
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_seiche_c_mode1),  cmocka_unit_test(test_seiche_a_merian),
+        cmocka_unit_test(test_front_speed_c),   cmocka_unit_test(test_front_speed_a),
+        cmocka_unit_test(test_mass_c),          cmocka_unit_test(test_mass_a),
+        cmocka_unit_test(test_dt_refused),      cmocka_unit_test(test_threads_c),
+        cmocka_unit_test(test_threads_a),       cmocka_unit_test(test_registry),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
