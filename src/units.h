@@ -1,0 +1,22 @@
+/* units.h - numbers with optional units ("2 h", "12.5 km", "30") converted to SI.
+ *
+ * Each key of the scenario has a kind; a bare number takes the kind's base unit.
+ *   length:   m, km                 (base m)
+ *   time:     s, min, h, d          (base s)
+ *   angle:    deg                   (base deg)
+ *   none:     no unit allowed
+ */
+#ifndef SW_UNITS_H
+#define SW_UNITS_H
+
+typedef enum { SW_UNIT_NONE = 0, SW_UNIT_LENGTH, SW_UNIT_TIME, SW_UNIT_ANGLE } sw_unit_kind;
+
+/* Parses `text` (leading/trailing blanks allowed) as a finite number with an optional unit of
+ * `kind`. On success stores the value in base units in *out and returns 0. On failure returns -1
+ * and writes a short cause into why (size why_size), e.g. "unknown unit 'kn' (accepted: m, km)". */
+int sw_units_parse(const char *text, sw_unit_kind kind, double *out, char *why, unsigned why_size);
+
+/* The accepted units of a kind as a human list, e.g. "m, km". */
+const char *sw_units_accepted(sw_unit_kind kind);
+
+#endif
