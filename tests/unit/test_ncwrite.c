@@ -1,0 +1,742 @@
+/* test_ncwrite.c - the CF-NetCDF writers: write small synthetic data, read it back through the
+ * NetCDF-C API and compare with what was written and with what the CF conventions ask for.
+ *
+ * External references used by the checks:
+ *  - CF Conventions 1.11: section 4.1/4.2 (axis X/Y/T), 4.4 (time units "seconds since ...",
+ *    calendar "standard"), 7.3 (cell_methods "time: maximum"), 3.5 (flag_values/flag_meanings),
+ *    chapter 9 and appendix H.2 (featureType "timeSeries", cf_role "timeseries_id", coordinates);
+ *    standard names from the CF standard name table.
+ *  - NetCDF Users Guide, "Fill Values": the default fill of double is 9.9692099683868690e+36 and of
+ *    float 9.96921e+36f; written here as literals, not through the library's macro.
+ */
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <cmocka.h>
+
+#include <math.h>
+#include <netcdf.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include "ncwrite.h"
+#include "testutil.h"
+
+/* NetCDF Users Guide, default fill values (literal values, independent of netcdf.h). */
+#define FILL_DOUBLE_NUG 9.9692099683868690e+36
+#define FILL_FLOAT_NUG 9.96921e+36f
+
+static const char CAUTION[] = "Simplified linear model - not a hazard forecast. Follow official warnings.";
+static const char SCENARIO[] = "[run]\ntitle = Test bay\nduration = 1 h\n\n[gauges]\nNorth Pier = 1 km, 2 km\n";
+
+static sw_run_meta test_meta(const char *title)
+{
+    sw_run_meta m = {
+        .title = title,
+        .history = "shoreward run test.scn",
+        .scenario_text = SCENARIO,
+        .layout = "C",
+        .version = "0.1.0-test",
+        .caution = CAUTION,
+        .time_origin = "2000-01-01 00:00:00",
+        .dt_s = 2.5,
+        .courant = 0.63,
+        .courant_limit = 0.7071067811865476,
+        .arrival_threshold_m = 0.01,
+        .gravity_ms2 = 9.81,
+    };
+    return m;
+}
+
+static int exists(const char *path)
+{
+    struct stat st;
+    return stat(path, &st) == 0;
+}
+
+/* Builds "<path>.part". */
+static void part_of(const char *path, char *out, size_t n)
+{
+    snprintf(out, n, "%s.part", path);
+}
+
+/* Fresh scratch path: removes any file (and .part) left by an earlier run. */
+static void scratch_path(char *out, size_t n, const char *name)
+{
+    char part[1100];
+    tu_tmp_path(out, n, name);
+    part_of(out, part, sizeof part);
+    remove(out);
+    remove(part);
+}
+
+/* Reads a text attribute (NULL var = global) into a malloc'ed NUL-terminated string. */
+static char *get_text(int ncid, const char *var, const char *att)
+{
+    int varid = NC_GLOBAL;
+    if (var)
+        assert_int_equal(nc_inq_varid(ncid, var, &varid), NC_NOERR);
+    nc_type type;
+    size_t len;
+    int rc = nc_inq_att(ncid, varid, att, &type, &len);
+    if (rc != NC_NOERR)
+        fail_msg("attribute %s:%s missing: %s", var ? var : "", att, nc_strerror(rc));
+    assert_int_equal(type, NC_CHAR);
+    char *s = calloc(len + 1, 1);
+    assert_non_null(s);
+    assert_int_equal(nc_get_att_text(ncid, varid, att, s), NC_NOERR);
+    return s;
+}
+
+static void assert_text(int ncid, const char *var, const char *att, const char *expected)
+{
+    char *s = get_text(ncid, var, att);
+    if (strcmp(s, expected) != 0) {
+        char got[256];
+        snprintf(got, sizeof got, "%s", s);
+        free(s);
+        fail_msg("%s:%s is \"%s\", expected \"%s\"", var ? var : "", att, got, expected);
+    }
+    free(s);
+}
+
+static double get_double_att(int ncid, const char *var, const char *att)
+{
+    int varid = NC_GLOBAL;
+    if (var)
+        assert_int_equal(nc_inq_varid(ncid, var, &varid), NC_NOERR);
+    double v = NAN;
+    assert_int_equal(nc_get_att_double(ncid, varid, att, &v), NC_NOERR);
+    return v;
+}
+
+static size_t dim_len(int ncid, const char *name)
+{
+    int id;
+    size_t len = 0;
+    assert_int_equal(nc_inq_dimid(ncid, name, &id), NC_NOERR);
+    assert_int_equal(nc_inq_dimlen(ncid, id, &len), NC_NOERR);
+    return len;
+}
+
+/* Checks that var exists with the given type and dimension names (comma-separated, in order). */
+static void assert_var_dims(int ncid, const char *var, nc_type type, const char *dims)
+{
+    int varid, ndims, dimids[NC_MAX_VAR_DIMS];
+    nc_type t;
+    if (nc_inq_varid(ncid, var, &varid) != NC_NOERR)
+        fail_msg("variable %s missing", var);
+    assert_int_equal(nc_inq_var(ncid, varid, NULL, &t, &ndims, dimids, NULL), NC_NOERR);
+    assert_int_equal(t, type);
+    char joined[256] = "";
+    for (int k = 0; k < ndims; k++) {
+        char name[NC_MAX_NAME + 1];
+        assert_int_equal(nc_inq_dimname(ncid, dimids[k], name), NC_NOERR);
+        if (k)
+            strcat(joined, ",");
+        strcat(joined, name);
+    }
+    assert_string_equal(joined, dims);
+}
+
+static void get_doubles(int ncid, const char *var, double *out)
+{
+    int varid;
+    assert_int_equal(nc_inq_varid(ncid, var, &varid), NC_NOERR);
+    assert_int_equal(nc_get_var_double(ncid, varid, out), NC_NOERR);
+}
+
+/* The global attributes every file must carry. */
+static void assert_globals(int ncid, const char *title)
+{
+    assert_text(ncid, NULL, "Conventions", "CF-1.11");
+    assert_text(ncid, NULL, "title", title);
+    assert_text(ncid, NULL, "history", "shoreward run test.scn");
+    assert_text(ncid, NULL, "source", "shoreward 0.1.0-test");
+    assert_text(ncid, NULL, "layout", "C");
+    assert_text(ncid, NULL, "scenario", SCENARIO);
+    assert_text(ncid, NULL, "caution", CAUTION);
+    assert_text(ncid, NULL, "comment", "Linear shallow-water model run; see the caution attribute.");
+    assert_true(get_double_att(ncid, NULL, "time_step_s") == 2.5);
+    assert_true(get_double_att(ncid, NULL, "courant_number") == 0.63);
+    assert_true(get_double_att(ncid, NULL, "courant_limit") == 0.7071067811865476);
+    assert_true(get_double_att(ncid, NULL, "arrival_threshold_m") == 0.01);
+    assert_true(get_double_att(ncid, NULL, "gravity_m_s2") == 9.81);
+}
+
+static void assert_done(const char *path)
+{
+    char part[1100];
+    part_of(path, part, sizeof part);
+    assert_true(exists(path));
+    assert_false(exists(part));
+}
+
+/* ---- gauges ----------------------------------------------------------------------------- */
+
+enum { NS = 3, NT = 4 };
+static const char *const G_NAMES[NS] = {"North Pier", "Harbour Mouth",
+                                        /* exactly 64 characters: fills name_strlen, no NUL */
+                                        "A234567890123456789012345678901234567890123456789012345678901234"};
+static const double G_X[NS] = {1000.0, 2500.0, 4000.0};
+static const double G_Y[NS] = {2000.0, 500.0, 3500.0};
+static const double G_DEPTH[NS] = {12.5, 40.0, -3.0};
+static const double G_TIME[NT] = {0.0, 30.0, 60.0, 90.0};
+
+static sw_gauge_table gauge_table(double *eta, double *u, double *v)
+{
+    for (size_t s = 0; s < NS; s++) {
+        for (size_t t = 0; t < NT; t++) {
+            eta[s * NT + t] = 0.1 * (double)s + 0.01 * (double)t;
+            u[s * NT + t] = -0.5 + (double)t;
+            v[s * NT + t] = 2.0 * (double)s;
+        }
+    }
+    for (size_t t = 0; t < NT; t++)  /* the third gauge is on land: no values */
+        eta[2 * NT + t] = u[2 * NT + t] = v[2 * NT + t] = NAN;
+    sw_gauge_table gt = {NS, NT, G_NAMES, G_X, G_Y, G_DEPTH, G_TIME, eta, u, v};
+    return gt;
+}
+
+static void test_gauges_roundtrip(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "ncw_gauges.nc");
+    double eta[NS * NT], u[NS * NT], v[NS * NT];
+    sw_gauge_table gt = gauge_table(eta, u, v);
+    sw_run_meta meta = test_meta("Test bay");
+    sw_error err = {0};
+    assert_int_equal(sw_ncw_gauges(path, &meta, &gt, &err), SW_OK);
+    assert_done(path);
+
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    int format;
+    assert_int_equal(nc_inq_format(ncid, &format), NC_NOERR);
+    assert_int_equal(format, NC_FORMAT_NETCDF4);
+    assert_globals(ncid, "Test bay");
+    assert_text(ncid, NULL, "featureType", "timeSeries");  /* CF 9.4 */
+
+    assert_int_equal(dim_len(ncid, "station"), NS);
+    assert_int_equal(dim_len(ncid, "time"), NT);
+    assert_int_equal(dim_len(ncid, "name_strlen"), 64);
+    assert_var_dims(ncid, "station_name", NC_CHAR, "station,name_strlen");
+    assert_var_dims(ncid, "x", NC_DOUBLE, "station");
+    assert_var_dims(ncid, "y", NC_DOUBLE, "station");
+    assert_var_dims(ncid, "depth", NC_DOUBLE, "station");
+    assert_var_dims(ncid, "time", NC_DOUBLE, "time");
+    assert_var_dims(ncid, "eta", NC_DOUBLE, "station,time");
+    assert_var_dims(ncid, "u", NC_DOUBLE, "station,time");
+    assert_var_dims(ncid, "v", NC_DOUBLE, "station,time");
+
+    assert_text(ncid, "station_name", "cf_role", "timeseries_id");
+    assert_text(ncid, "station_name", "long_name", "gauge name");
+    assert_text(ncid, "x", "standard_name", "projection_x_coordinate");
+    assert_text(ncid, "y", "standard_name", "projection_y_coordinate");
+    assert_text(ncid, "x", "units", "m");
+    assert_text(ncid, "x", "long_name", "gauge x position");
+    assert_text(ncid, "depth", "standard_name", "sea_floor_depth_below_mean_sea_level");
+    assert_text(ncid, "depth", "positive", "down");
+    assert_text(ncid, "time", "standard_name", "time");
+    assert_text(ncid, "time", "units", "seconds since 2000-01-01 00:00:00");
+    assert_text(ncid, "time", "calendar", "standard");
+    assert_text(ncid, "time", "axis", "T");
+    assert_text(ncid, "eta", "standard_name", "sea_surface_height_above_mean_sea_level");
+    assert_text(ncid, "eta", "units", "m");
+    assert_text(ncid, "eta", "long_name", "sea surface elevation at gauge");
+    assert_text(ncid, "u", "standard_name", "sea_water_x_velocity");
+    assert_text(ncid, "v", "standard_name", "sea_water_y_velocity");
+    assert_text(ncid, "u", "units", "m s-1");
+    assert_text(ncid, "v", "units", "m s-1");
+    for (int k = 0; k < 3; k++)
+        assert_text(ncid, (const char *[]){"eta", "u", "v"}[k], "coordinates", "time x y station_name");
+
+    char names[NS][64];
+    int vid;
+    assert_int_equal(nc_inq_varid(ncid, "station_name", &vid), NC_NOERR);
+    assert_int_equal(nc_get_var_text(ncid, vid, &names[0][0]), NC_NOERR);
+    for (size_t s = 0; s < NS; s++) {
+        size_t n = strlen(G_NAMES[s]);
+        assert_memory_equal(names[s], G_NAMES[s], n);
+        for (size_t c = n; c < 64; c++)
+            assert_int_equal(names[s][c], 0);  /* NUL padded */
+    }
+
+    double buf[NS * NT];
+    get_doubles(ncid, "x", buf);
+    assert_memory_equal(buf, G_X, sizeof G_X);
+    get_doubles(ncid, "y", buf);
+    assert_memory_equal(buf, G_Y, sizeof G_Y);
+    get_doubles(ncid, "depth", buf);
+    assert_memory_equal(buf, G_DEPTH, sizeof G_DEPTH);
+    get_doubles(ncid, "time", buf);
+    assert_memory_equal(buf, G_TIME, sizeof G_TIME);
+    const double *sent[3] = {eta, u, v};
+    for (int k = 0; k < 3; k++) {
+        const char *var = (const char *[]){"eta", "u", "v"}[k];
+        assert_true(get_double_att(ncid, var, "_FillValue") == FILL_DOUBLE_NUG);
+        get_doubles(ncid, var, buf);
+        for (size_t i = 0; i < NS * NT; i++) {
+            if (isnan(sent[k][i]))
+                assert_true(buf[i] == FILL_DOUBLE_NUG);
+            else
+                assert_true(buf[i] == sent[k][i]);
+        }
+    }
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+    remove(path);
+}
+
+static void test_gauges_refuse_bad_tables(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "ncw_gauges_bad.nc");
+    double eta[NS * NT], u[NS * NT], v[NS * NT];
+    sw_run_meta meta = test_meta("Test bay");
+    sw_error err = {0};
+
+    sw_gauge_table gt = gauge_table(eta, u, v);
+    gt.n_stations = 0;
+    assert_int_equal(sw_ncw_gauges(path, &meta, &gt, &err), SW_ERR_USAGE);
+    assert_non_null(strstr(err.msg, path));
+
+    gt = gauge_table(eta, u, v);
+    gt.v_ms = NULL;
+    assert_int_equal(sw_ncw_gauges(path, &meta, &gt, &err), SW_ERR_USAGE);
+
+    const char *long_names[NS] = {"ok", "ok2",
+                                  "A2345678901234567890123456789012345678901234567890123456789012345"};
+    gt = gauge_table(eta, u, v);
+    gt.names = long_names;
+    assert_int_equal(sw_ncw_gauges(path, &meta, &gt, &err), SW_ERR_USAGE);
+    assert_non_null(strstr(err.msg, "gauge 3"));
+
+    gt = gauge_table(eta, u, v);
+    meta.caution = NULL;
+    assert_int_equal(sw_ncw_gauges(path, &meta, &gt, &err), SW_ERR_USAGE);
+    assert_int_equal(sw_ncw_gauges(path, NULL, &gt, NULL), SW_ERR_USAGE);
+
+    char part[1100];
+    part_of(path, part, sizeof part);
+    assert_false(exists(path));
+    assert_false(exists(part));
+}
+
+/* ---- maps ------------------------------------------------------------------------------- */
+
+enum { MNX = 5, MNY = 3, MN = MNX * MNY };
+static const sw_grid M_GRID = {MNX, MNY, 1000.0, 2000.0, -500.0, 10000.0};
+
+typedef struct {
+    double depth[MN], eta_max[MN], eta_min[MN], arrival[MN], max_time[MN], speed[MN];
+    unsigned char wet[MN];
+} map_data;
+
+/* Column 0 is land (NaN in every map); arrival never happens in the last cell. */
+static sw_map_set map_set(map_data *d)
+{
+    for (size_t k = 0; k < MN; k++) {
+        size_t i = k % MNX;
+        d->wet[k] = i > 0;
+        d->depth[k] = i > 0 ? 10.0 * (double)i : -2.0;
+        d->eta_max[k] = i > 0 ? 0.5 + 0.01 * (double)k : NAN;
+        d->eta_min[k] = i > 0 ? -0.25 - 0.01 * (double)k : NAN;
+        d->arrival[k] = i > 0 ? 60.0 * (double)k : NAN;
+        d->max_time[k] = i > 0 ? 90.0 * (double)k : NAN;
+        d->speed[k] = i > 0 ? 0.125 * (double)k : NAN;
+    }
+    d->arrival[MN - 1] = NAN;
+    sw_map_set m = {&M_GRID, d->depth, d->wet, d->eta_max, d->eta_min, d->arrival, d->max_time, d->speed};
+    return m;
+}
+
+static void assert_map_values(int ncid, const char *var, const double *sent)
+{
+    double got[MN];
+    assert_var_dims(ncid, var, NC_DOUBLE, "y,x");
+    assert_true(get_double_att(ncid, var, "_FillValue") == FILL_DOUBLE_NUG);
+    get_doubles(ncid, var, got);
+    for (size_t k = 0; k < MN; k++) {
+        if (isnan(sent[k]))
+            assert_true(got[k] == FILL_DOUBLE_NUG);
+        else
+            assert_true(got[k] == sent[k]);
+    }
+    int varid, shuffle, deflate, level, storage;
+    size_t chunks[2];
+    assert_int_equal(nc_inq_varid(ncid, var, &varid), NC_NOERR);
+    assert_int_equal(nc_inq_var_deflate(ncid, varid, &shuffle, &deflate, &level), NC_NOERR);
+    assert_true(shuffle && deflate && level == 1);
+    assert_int_equal(nc_inq_var_chunking(ncid, varid, &storage, chunks), NC_NOERR);
+    assert_int_equal(storage, NC_CHUNKED);
+}
+
+static void test_maps_roundtrip(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "ncw_maps.nc");
+    map_data d;
+    sw_map_set maps = map_set(&d);
+    sw_run_meta meta = test_meta("Test bay");
+    sw_error err = {0};
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_OK);
+    assert_done(path);
+
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_globals(ncid, "Test bay");
+    assert_int_equal(dim_len(ncid, "x"), MNX);
+    assert_int_equal(dim_len(ncid, "y"), MNY);
+    assert_var_dims(ncid, "x", NC_DOUBLE, "x");
+    assert_var_dims(ncid, "y", NC_DOUBLE, "y");
+    assert_text(ncid, "x", "standard_name", "projection_x_coordinate");
+    assert_text(ncid, "y", "standard_name", "projection_y_coordinate");
+    assert_text(ncid, "x", "units", "m");
+    assert_text(ncid, "y", "units", "m");
+    assert_text(ncid, "x", "axis", "X");
+    assert_text(ncid, "y", "axis", "Y");
+
+    /* cell centres: x0 + (i + 1/2) dx, written out here rather than through grid.h */
+    double xs[MNX], ys[MNY];
+    get_doubles(ncid, "x", xs);
+    get_doubles(ncid, "y", ys);
+    const double want_x[MNX] = {0.0, 1000.0, 2000.0, 3000.0, 4000.0};
+    const double want_y[MNY] = {11000.0, 13000.0, 15000.0};
+    assert_memory_equal(xs, want_x, sizeof xs);
+    assert_memory_equal(ys, want_y, sizeof ys);
+
+    assert_text(ncid, "depth", "standard_name", "sea_floor_depth_below_mean_sea_level");
+    assert_text(ncid, "depth", "units", "m");
+    assert_text(ncid, "depth", "positive", "down");
+    assert_map_values(ncid, "depth", d.depth);
+
+    assert_text(ncid, "eta_max", "standard_name", "sea_surface_height_above_mean_sea_level");
+    assert_text(ncid, "eta_max", "units", "m");
+    assert_text(ncid, "eta_max", "cell_methods", "time: maximum");
+    assert_text(ncid, "eta_max", "long_name", "highest sea surface elevation reached");
+    assert_map_values(ncid, "eta_max", d.eta_max);
+    assert_text(ncid, "eta_min", "standard_name", "sea_surface_height_above_mean_sea_level");
+    assert_text(ncid, "eta_min", "cell_methods", "time: minimum");
+    assert_map_values(ncid, "eta_min", d.eta_min);
+    assert_text(ncid, "arrival_time", "units", "s");
+    assert_map_values(ncid, "arrival_time", d.arrival);
+    assert_text(ncid, "eta_max_time", "units", "s");
+    assert_text(ncid, "eta_max_time", "long_name", "time at which eta_max was reached");
+    assert_map_values(ncid, "eta_max_time", d.max_time);
+    assert_text(ncid, "speed_max", "standard_name", "sea_water_speed");
+    assert_text(ncid, "speed_max", "units", "m s-1");
+    assert_text(ncid, "speed_max", "cell_methods", "time: maximum");
+    assert_map_values(ncid, "speed_max", d.speed);
+
+    /* CF 3.5: flag_values of the variable's type, flag_meanings blank-separated */
+    assert_var_dims(ncid, "wet", NC_BYTE, "y,x");
+    assert_text(ncid, "wet", "flag_meanings", "land water");
+    int vid;
+    signed char flags[2] = {9, 9}, wet[MN];
+    nc_type ft;
+    size_t fl;
+    assert_int_equal(nc_inq_varid(ncid, "wet", &vid), NC_NOERR);
+    assert_int_equal(nc_inq_att(ncid, vid, "flag_values", &ft, &fl), NC_NOERR);
+    assert_int_equal(ft, NC_BYTE);
+    assert_int_equal(fl, 2);
+    assert_int_equal(nc_get_att_schar(ncid, vid, "flag_values", flags), NC_NOERR);
+    assert_true(flags[0] == 0 && flags[1] == 1);
+    assert_int_equal(nc_get_var_schar(ncid, vid, wet), NC_NOERR);
+    for (size_t k = 0; k < MN; k++)
+        assert_int_equal(wet[k], d.wet[k]);
+
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+    remove(path);
+}
+
+/* The writer must leave the caller's arrays alone (NaN is replaced in a copy). */
+static void test_maps_keep_input(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "ncw_maps_input.nc");
+    map_data d, before;
+    memset(&d, 0, sizeof d);  /* padding too, for the byte comparison below */
+    sw_map_set maps = map_set(&d);
+    memcpy(&before, &d, sizeof d);
+    sw_run_meta meta = test_meta("Test bay");
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, NULL), SW_OK);
+    assert_memory_equal(&before, &d, sizeof d);
+    remove(path);
+}
+
+static void test_second_write_replaces(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "ncw_replace.nc");
+    map_data d;
+    sw_map_set maps = map_set(&d);
+    sw_error err = {0};
+    sw_run_meta meta = test_meta("first");
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_OK);
+    meta = test_meta("second");
+    d.eta_max[7] = 42.0;
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_OK);
+    assert_done(path);
+
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_text(ncid, NULL, "title", "second");
+    double got[MN];
+    get_doubles(ncid, "eta_max", got);
+    assert_true(got[7] == 42.0);
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+    remove(path);
+}
+
+/* Every writer, aimed into a folder that does not exist: an IO/NetCDF error naming the path. */
+static void test_missing_folder(void **state)
+{
+    (void)state;
+    char dir[1024], path[1100], part[1200];
+    tu_tmp_path(dir, sizeof dir, "ncw_no_such_folder");
+    rmdir(dir);
+    assert_false(exists(dir));
+    snprintf(path, sizeof path, "%s/out.nc", dir);
+    part_of(path, part, sizeof part);
+    sw_run_meta meta = test_meta("Test bay");
+    sw_error err = {0};
+
+    double eta[NS * NT], u[NS * NT], v[NS * NT];
+    sw_gauge_table gt = gauge_table(eta, u, v);
+    sw_status st = sw_ncw_gauges(path, &meta, &gt, &err);
+    assert_true(st == SW_ERR_IO || st == SW_ERR_NETCDF);
+    assert_int_equal(err.code, st);
+    assert_non_null(strstr(err.msg, path));
+    assert_non_null(strstr(err.msg, "does not exist"));
+
+    map_data d;
+    sw_map_set maps = map_set(&d);
+    sw_error_clear(&err);
+    st = sw_ncw_maps(path, &meta, &maps, &err);
+    assert_true(st == SW_ERR_IO || st == SW_ERR_NETCDF);
+    assert_non_null(strstr(err.msg, path));
+
+    sw_ncw_snapshots *s = (sw_ncw_snapshots *)&err;  /* must be reset to NULL */
+    sw_error_clear(&err);
+    st = sw_ncw_snapshots_open(path, &meta, &M_GRID, d.depth, d.wet, &s, &err);
+    assert_true(st == SW_ERR_IO || st == SW_ERR_NETCDF);
+    assert_null(s);
+    assert_non_null(strstr(err.msg, path));
+
+    assert_false(exists(path));
+    assert_false(exists(part));
+    assert_false(exists(dir));
+}
+
+/* The final rename fails when <path> is a folder: SW_ERR_IO, and the .part is removed. */
+static void test_rename_failure_cleans_up(void **state)
+{
+    (void)state;
+    char path[1024], part[1100];
+    scratch_path(path, sizeof path, "ncw_is_a_folder.nc");
+    part_of(path, part, sizeof part);
+    rmdir(path);
+    assert_int_equal(mkdir(path, 0700), 0);
+    map_data d;
+    sw_map_set maps = map_set(&d);
+    sw_run_meta meta = test_meta("Test bay");
+    sw_error err = {0};
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_ERR_IO);
+    assert_non_null(strstr(err.msg, path));
+    assert_false(exists(part));
+    struct stat st;
+    assert_int_equal(stat(path, &st), 0);
+    assert_true(S_ISDIR(st.st_mode));
+    assert_int_equal(rmdir(path), 0);
+}
+
+/* A long scenario (beyond HDF5's 64 KiB compact attribute storage) and empty strings. */
+static void test_long_and_empty_attributes(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "ncw_long_attr.nc");
+    size_t n = 200000;
+    char *text = malloc(n + 1);
+    assert_non_null(text);
+    for (size_t k = 0; k < n; k++)
+        text[k] = (k % 80 == 79) ? '\n' : (char)('a' + k % 26);
+    text[n] = '\0';
+    sw_run_meta meta = test_meta("");
+    meta.scenario_text = text;
+    meta.history = "";
+    double eta[NS * NT], u[NS * NT], v[NS * NT];
+    sw_gauge_table gt = gauge_table(eta, u, v);
+    sw_error err = {0};
+    assert_int_equal(sw_ncw_gauges(path, &meta, &gt, &err), SW_OK);
+
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    char *got = get_text(ncid, NULL, "scenario");
+    assert_int_equal(strlen(got), n);
+    assert_memory_equal(got, text, n);
+    free(got);
+    assert_text(ncid, NULL, "title", "");
+    assert_text(ncid, NULL, "history", "");
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+    free(text);
+    remove(path);
+}
+
+/* ---- snapshots -------------------------------------------------------------------------- */
+
+static void fill_snapshot(double *eta, double t_s)
+{
+    for (size_t k = 0; k < MN; k++)
+        eta[k] = (k % MNX == 0) ? NAN : 0.001 * t_s + 0.25 * (double)k;
+}
+
+static void test_snapshots_commit(void **state)
+{
+    (void)state;
+    char path[1024], part[1100];
+    scratch_path(path, sizeof path, "ncw_snap.nc");
+    part_of(path, part, sizeof part);
+    map_data d;
+    map_set(&d);
+    sw_run_meta meta = test_meta("Test bay");
+    sw_error err = {0};
+    sw_ncw_snapshots *s = NULL;
+    assert_int_equal(sw_ncw_snapshots_open(path, &meta, &M_GRID, d.depth, d.wet, &s, &err), SW_OK);
+    assert_non_null(s);
+    assert_true(exists(part));
+    assert_false(exists(path));
+
+    const double times[3] = {0.0, 60.0, 120.0};
+    double eta[MN];
+    for (int n = 0; n < 3; n++) {
+        fill_snapshot(eta, times[n]);
+        assert_int_equal(sw_ncw_snapshots_append(s, times[n], eta, &err), SW_OK);
+    }
+    assert_int_equal(sw_ncw_snapshots_commit(s, &err), SW_OK);
+    assert_done(path);
+
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_globals(ncid, "Test bay");
+    int unlim;
+    char unlim_name[NC_MAX_NAME + 1];
+    assert_int_equal(nc_inq_unlimdim(ncid, &unlim), NC_NOERR);
+    assert_int_equal(nc_inq_dimname(ncid, unlim, unlim_name), NC_NOERR);
+    assert_string_equal(unlim_name, "time");
+    assert_int_equal(dim_len(ncid, "time"), 3);
+    assert_int_equal(dim_len(ncid, "x"), MNX);
+    assert_int_equal(dim_len(ncid, "y"), MNY);
+    assert_var_dims(ncid, "x", NC_DOUBLE, "x");
+    assert_var_dims(ncid, "y", NC_DOUBLE, "y");
+    assert_var_dims(ncid, "depth", NC_DOUBLE, "y,x");
+    assert_var_dims(ncid, "time", NC_DOUBLE, "time");
+    assert_var_dims(ncid, "eta", NC_FLOAT, "time,y,x");
+    assert_text(ncid, "time", "units", "seconds since 2000-01-01 00:00:00");
+    assert_text(ncid, "time", "standard_name", "time");
+    assert_text(ncid, "time", "calendar", "standard");
+    assert_text(ncid, "eta", "standard_name", "sea_surface_height_above_mean_sea_level");
+    assert_text(ncid, "eta", "units", "m");
+    assert_text(ncid, "depth", "standard_name", "sea_floor_depth_below_mean_sea_level");
+    assert_map_values(ncid, "depth", d.depth);
+
+    double t_got[3];
+    get_doubles(ncid, "time", t_got);
+    assert_memory_equal(t_got, times, sizeof times);
+
+    int vid, storage;
+    size_t chunks[3];
+    float fill = 0.0f;
+    assert_int_equal(nc_inq_varid(ncid, "eta", &vid), NC_NOERR);
+    assert_int_equal(nc_get_att_float(ncid, vid, "_FillValue", &fill), NC_NOERR);
+    assert_true(fill == FILL_FLOAT_NUG);
+    assert_int_equal(nc_inq_var_chunking(ncid, vid, &storage, chunks), NC_NOERR);
+    assert_int_equal(storage, NC_CHUNKED);
+    assert_true(chunks[0] == 1 && chunks[1] == MNY && chunks[2] == MNX);  /* one slice per chunk */
+    float got[3 * MN];
+    assert_int_equal(nc_get_var_float(ncid, vid, got), NC_NOERR);
+    for (int n = 0; n < 3; n++) {
+        fill_snapshot(eta, times[n]);
+        for (size_t k = 0; k < MN; k++) {
+            if (isnan(eta[k]))
+                assert_true(got[n * MN + k] == FILL_FLOAT_NUG);
+            else
+                assert_true(got[n * MN + k] == (float)eta[k]);
+        }
+    }
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+    remove(path);
+}
+
+static void test_snapshots_abort(void **state)
+{
+    (void)state;
+    char path[1024], part[1100];
+    scratch_path(path, sizeof path, "ncw_snap_abort.nc");
+    part_of(path, part, sizeof part);
+    map_data d;
+    map_set(&d);
+    sw_run_meta meta = test_meta("Test bay");
+    sw_error err = {0};
+    sw_ncw_snapshots *s = NULL;
+    assert_int_equal(sw_ncw_snapshots_open(path, &meta, &M_GRID, d.depth, NULL, &s, &err), SW_OK);
+    double eta[MN];
+    fill_snapshot(eta, 30.0);
+    assert_int_equal(sw_ncw_snapshots_append(s, 30.0, eta, &err), SW_OK);
+    sw_ncw_snapshots_abort(s);
+    sw_ncw_snapshots_abort(NULL);
+    assert_false(exists(path));
+    assert_false(exists(part));
+}
+
+/* A snapshot going back in time is refused; the later commit fails and leaves nothing. */
+static void test_snapshots_failed_append_fails_commit(void **state)
+{
+    (void)state;
+    char path[1024], part[1100];
+    scratch_path(path, sizeof path, "ncw_snap_back.nc");
+    part_of(path, part, sizeof part);
+    map_data d;
+    map_set(&d);
+    sw_run_meta meta = test_meta("Test bay");
+    sw_error err = {0};
+    sw_ncw_snapshots *s = NULL;
+    assert_int_equal(sw_ncw_snapshots_open(path, &meta, &M_GRID, d.depth, d.wet, &s, &err), SW_OK);
+    double eta[MN];
+    fill_snapshot(eta, 60.0);
+    assert_int_equal(sw_ncw_snapshots_append(s, 60.0, eta, &err), SW_OK);
+    assert_int_equal(sw_ncw_snapshots_append(s, 30.0, eta, &err), SW_ERR_USAGE);
+    assert_non_null(strstr(err.msg, path));
+    assert_int_equal(sw_ncw_snapshots_append(s, NAN, eta, NULL), SW_ERR_USAGE);
+    sw_error err2 = {0};
+    assert_int_equal(sw_ncw_snapshots_commit(s, &err2), SW_ERR_USAGE);
+    assert_non_null(strstr(err2.msg, path));
+    assert_false(exists(path));
+    assert_false(exists(part));
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_gauges_roundtrip),
+        cmocka_unit_test(test_gauges_refuse_bad_tables),
+        cmocka_unit_test(test_maps_roundtrip),
+        cmocka_unit_test(test_maps_keep_input),
+        cmocka_unit_test(test_second_write_replaces),
+        cmocka_unit_test(test_missing_folder),
+        cmocka_unit_test(test_rename_failure_cleans_up),
+        cmocka_unit_test(test_long_and_empty_attributes),
+        cmocka_unit_test(test_snapshots_commit),
+        cmocka_unit_test(test_snapshots_abort),
+        cmocka_unit_test(test_snapshots_failed_append_fails_commit),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
