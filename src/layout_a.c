@@ -8,9 +8,9 @@
  *
  * Walls: u is held at 0 in every water cell whose west or east neighbour is land or a wall edge
  * (hx = 0 there), v likewise with the south/north neighbours (hy = 0); so no flux crosses into land,
- * water volume is conserved, and momentum never reads a land cell's eta. Open edges: the ghost cell
- * (halo) carries the outgoing wave's eta (model_impl.h) and the matching normal velocity
- * sign * sqrt(g/h) * eta, with the inner cell's depth.
+ * water volume is conserved, and momentum never reads a land cell's eta. Open and level edges: the
+ * ghost cell (halo) carries eta and the normal velocity set in model_impl.h (sw_edge_cell), with
+ * the inner cell's depth.
  * Semi-discrete frequency: omega^2 = g h (sin^2(k dx) / dx^2 + sin^2(l dy) / dy^2), highest at the
  * 4-cell wave: sqrt(g h) sqrt(1/dx^2 + 1/dy^2); in a channel sqrt(g h) / dx. With square cells the
  * Courant limit is sqrt(2) in 2D and 2 in 1D. The 2-cell wave has omega = 0: a checkerboard in eta
@@ -31,8 +31,9 @@ static double a_max_frequency(double gh, double dx, double dy, int dims)
 static sw_status a_prepare(sw_model *m, sw_error *err)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
-    const int open_w = m->edges[SW_WEST] == SW_EDGE_OPEN, open_e = m->edges[SW_EAST] == SW_EDGE_OPEN;
-    const int open_s = m->edges[SW_SOUTH] == SW_EDGE_OPEN, open_n = m->edges[SW_NORTH] == SW_EDGE_OPEN;
+    /* water flows across open and level edges: their ghosts act as water neighbours */
+    const int open_w = m->edges[SW_WEST] != SW_EDGE_WALL, open_e = m->edges[SW_EAST] != SW_EDGE_WALL;
+    const int open_s = m->edges[SW_SOUTH] != SW_EDGE_WALL, open_n = m->edges[SW_NORTH] != SW_EDGE_WALL;
     const sw_real *h = m->h;
     for (size_t j = 0; j < ny; j++)
         for (size_t i = 0; i < nx; i++) {
@@ -46,12 +47,12 @@ static sw_status a_prepare(sw_model *m, sw_error *err)
             m->hx[k] = west && east ? h[k] : 0;
             m->hy[k] = south && north ? h[k] : 0;
         }
-    sw_status rc = sw_model_build_open(m, m->grid.dx_m, m->grid.dy_m, err);
+    sw_status rc = sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
     if (rc != SW_OK)
         return rc;
     /* ghosts carry the inner cell's depth along their normal */
-    for (size_t q = 0; q < m->n_open; q++) {
-        const sw_open_cell *oc = &m->open[q];
+    for (size_t q = 0; q < m->n_edge; q++) {
+        const sw_edge_cell *oc = &m->edge[q];
         if (oc->normal_x)
             m->hx[oc->ghost] = m->h[oc->inner];
         else
@@ -78,7 +79,7 @@ static void a_step(sw_model *m)
             eta[i] -= cx * (hx[i + 1] * u[i + 1] - hx[i - 1] * u[i - 1])
                     + cy * (hy[i + s] * v[i + s] - hy[i - s] * v[i - s]);
     }
-    sw_model_open_eta(m);
+    sw_model_edge_eta(m);
 
     /* backward: momentum from the new eta */
     SW_OMP(for schedule(static))
@@ -91,16 +92,13 @@ static void a_step(sw_model *m)
         }
     }
 
-    /* ghost velocities of the outgoing wave */
-    const sw_open_cell *restrict oc = m->open;
-    const size_t n_open = m->n_open;
+    /* ghost normal velocities: the outgoing wave's (open) or the inner cell's mirror (level) */
+    const sw_edge_cell *restrict oc = m->edge;
+    const size_t n_edge = m->n_edge;
     SW_OMP(for schedule(static))
-    for (size_t q = 0; q < n_open; q++) {
-        sw_real vel = oc[q].sign * oc[q].c_over_h * eta[oc[q].ghost];
-        if (oc[q].normal_x)
-            u[oc[q].ghost] = vel;
-        else
-            v[oc[q].ghost] = vel;
+    for (size_t q = 0; q < n_edge; q++) {
+        sw_real *vel = oc[q].normal_x ? u : v;
+        vel[oc[q].ghost] = oc[q].vel * eta[oc[q].ghost] + oc[q].mirror * vel[oc[q].inner];
     }
 }
 

@@ -9,8 +9,8 @@
  *          v[k-stride]
  *
  * Face depth: the mean of the two cells' depths when both are water; 0 (a wall) when either is land
- * or beyond a wall edge; the inner cell's depth on an open edge, whose ghost cell (halo) carries
- * the outgoing wave (model_impl.h).
+ * or beyond a wall edge; the inner cell's depth on an open or level edge, whose ghost cell (halo)
+ * carries the outgoing wave or the mirrored elevation (model_impl.h, sw_edge_cell).
  * Semi-discrete frequency: omega^2 = 4 g h (sin^2(k dx/2) / dx^2 + sin^2(l dy/2) / dy^2), highest at the
  * 2-cell wave: 2 sqrt(g h) sqrt(1/dx^2 + 1/dy^2); in a channel 2 sqrt(g h) / dx. With square cells
  * the Courant limit sqrt(g h) dt / dx <= 2 / max(omega dx / sqrt(g h)) is 1/sqrt(2) in 2D and 1 in 1D.
@@ -40,18 +40,18 @@ static sw_status c_prepare(sw_model *m, sw_error *err)
             if (i + 1 < nx)
                 m->hx[k] = h[k + 1] > 0 ? (sw_real)0.5 * (h[k] + h[k + 1]) : 0;
             else
-                m->hx[k] = m->edges[SW_EAST] == SW_EDGE_OPEN ? h[k] : 0;
+                m->hx[k] = m->edges[SW_EAST] != SW_EDGE_WALL ? h[k] : 0;
             if (i == 0)
-                m->hx[k - 1] = m->edges[SW_WEST] == SW_EDGE_OPEN ? h[k] : 0;
+                m->hx[k - 1] = m->edges[SW_WEST] != SW_EDGE_WALL ? h[k] : 0;
             /* north face */
             if (j + 1 < ny)
                 m->hy[k] = h[k + s] > 0 ? (sw_real)0.5 * (h[k] + h[k + s]) : 0;
             else
-                m->hy[k] = m->edges[SW_NORTH] == SW_EDGE_OPEN ? h[k] : 0;
+                m->hy[k] = m->edges[SW_NORTH] != SW_EDGE_WALL ? h[k] : 0;
             if (j == 0)
-                m->hy[k - s] = m->edges[SW_SOUTH] == SW_EDGE_OPEN ? h[k] : 0;
+                m->hy[k - s] = m->edges[SW_SOUTH] != SW_EDGE_WALL ? h[k] : 0;
         }
-    return sw_model_build_open(m, m->grid.dx_m, m->grid.dy_m, err);
+    return sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
 }
 
 static void c_step(sw_model *m)
@@ -70,7 +70,7 @@ static void c_step(sw_model *m)
         for (size_t i = r + 1; i <= r + nx; i++)
             eta[i] -= cx * (hx[i] * u[i] - hx[i - 1] * u[i - 1]) + cy * (hy[i] * v[i] - hy[i - s] * v[i - s]);
     }
-    sw_model_open_eta(m);
+    sw_model_edge_eta(m);
 
     /* backward: momentum from the new eta; padded row 0 holds only the south edge's v faces */
     SW_OMP(for schedule(static))

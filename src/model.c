@@ -26,7 +26,7 @@ size_t sw_model_bytes_for(const sw_grid *g)
 {
     size_t n_pad = stride_for(g) * (g->ny + 2);
     return 6 * n_pad * sizeof(sw_real) + g->nx * g->ny
-         + 2 * (g->nx + g->ny) * sizeof(sw_open_cell);
+         + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell);
 }
 
 /* 64-byte aligned, zeroed array of n reals, or NULL. Free with free(). */
@@ -152,28 +152,26 @@ void sw_model_free(sw_model *m)
     free(m->hx);
     free(m->hy);
     free(m->wet);
-    free(m->open);
+    free(m->edge);
     free(m);
 }
 
-sw_status sw_model_build_open(sw_model *m, double spacing_x, double spacing_y, sw_error *err)
+sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, sw_error *err)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny;
     size_t cap = 0;
-    if (m->edges[SW_WEST] == SW_EDGE_OPEN) cap += ny;
-    if (m->edges[SW_EAST] == SW_EDGE_OPEN) cap += ny;
-    if (m->edges[SW_SOUTH] == SW_EDGE_OPEN) cap += nx;
-    if (m->edges[SW_NORTH] == SW_EDGE_OPEN) cap += nx;
-    m->n_open = 0;
+    for (int e = 0; e < 4; e++)
+        if (m->edges[e] != SW_EDGE_WALL)
+            cap += (e == SW_SOUTH || e == SW_NORTH) ? nx : ny;
+    m->n_edge = 0;
     if (cap == 0)
         return SW_OK;
-    m->open = calloc(cap, sizeof *m->open);
-    if (!m->open)
-        return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating open edges");
+    m->edge = calloc(cap, sizeof *m->edge);
+    if (!m->edge)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating edge cells");
 
-    /* (edge, along-edge count, inner cell, ghost offset from it, spacing, sign, normal along x) */
     for (int e = 0; e < 4; e++) {
-        if (m->edges[e] != SW_EDGE_OPEN)
+        if (m->edges[e] == SW_EDGE_WALL)
             continue;
         int along_x = (e == SW_SOUTH || e == SW_NORTH);
         size_t n = along_x ? nx : ny;
@@ -187,26 +185,30 @@ sw_status sw_model_build_open(sw_model *m, double spacing_x, double spacing_y, s
                          : e == SW_SOUTH ? inner - m->stride : inner + m->stride;
             double h = m->h[inner];
             double c = sqrt(m->g * h);
-            sw_open_cell *oc = &m->open[m->n_open++];
+            double r = c * m->dt / (along_x ? spacing_y : spacing_x);
+            double sign = (e == SW_EAST || e == SW_NORTH) ? 1 : -1;
+            int open = m->edges[e] == SW_EDGE_OPEN;
+            sw_edge_cell *oc = &m->edge[m->n_edge++];
             oc->ghost = ghost;
             oc->inner = inner;
-            oc->r = (sw_real)(c * m->dt / (along_x ? spacing_y : spacing_x));
-            oc->c_over_h = (sw_real)(c / h);
-            oc->sign = (e == SW_EAST || e == SW_NORTH) ? 1 : -1;
+            oc->keep = (sw_real)(open ? 1 / (1 + r) : 0);
+            oc->take = (sw_real)(open ? r / (1 + r) : -1);
+            oc->vel = (sw_real)(open ? sign * c / h : 0);
+            oc->mirror = (sw_real)(open ? 0 : 1);
             oc->normal_x = !along_x;
         }
     }
     return SW_OK;
 }
 
-void sw_model_open_eta(sw_model *m)
+void sw_model_edge_eta(sw_model *m)
 {
     sw_real *restrict eta = m->eta;
-    const sw_open_cell *restrict oc = m->open;
-    const size_t n = m->n_open;
+    const sw_edge_cell *restrict oc = m->edge;
+    const size_t n = m->n_edge;
     SW_OMP(for schedule(static))
     for (size_t q = 0; q < n; q++)
-        eta[oc[q].ghost] = (eta[oc[q].ghost] + oc[q].r * eta[oc[q].inner]) / (1 + oc[q].r);
+        eta[oc[q].ghost] = oc[q].keep * eta[oc[q].ghost] + oc[q].take * eta[oc[q].inner];
 }
 
 void sw_model_step(sw_model *m) { m->layout->step(m); }

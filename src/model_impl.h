@@ -14,17 +14,22 @@
 #include "real.h"
 #include "scenario.h"
 
-/* One ghost cell of an open edge. After each eta update the ghost follows the outgoing wave:
- * eta_g <- (eta_g + r * eta_in) / (1 + r), an implicit upwind step of d(eta)/dt + c d(eta)/dn = 0
- * (unconditionally stable), r = c dt / spacing, c = sqrt(g h). */
+/* One ghost (halo) cell beyond an open or level edge. After each eta update the ghost is set to
+ *     eta_g <- keep * eta_g + take * eta_in
+ * open:  keep = 1/(1+r), take = r/(1+r): an implicit upwind step of d(eta)/dt + c d(eta)/dn = 0
+ *        (unconditionally stable; r = c dt / spacing, c = sqrt(g h)), so the ghost follows the
+ *        outgoing wave;
+ * level: keep = 0, take = -1: eta is antisymmetric about the edge line, a node of mean level there.
+ * Layouts that keep a velocity in the ghost (A) set it to vel * eta_g + mirror * (inner velocity):
+ * open: vel = sign sqrt(g/h), mirror = 0 (the outgoing wave's velocity); level: vel = 0, mirror = 1. */
 typedef struct {
     size_t ghost;   /* padded index of the ghost (halo) cell */
     size_t inner;   /* padded index of the edge cell inside the domain */
-    sw_real r;      /* c dt / spacing, dimensionless */
-    sw_real c_over_h; /* sqrt(g / h), s-1: normal velocity of an outgoing wave per metre of eta */
-    sw_real sign;   /* +1 on east/north edges, -1 on west/south (outward normal along +x/+y) */
+    sw_real keep, take;   /* ghost update coefficients, dimensionless */
+    sw_real vel;    /* s-1: ghost normal velocity per metre of ghost eta */
+    sw_real mirror; /* dimensionless: ghost normal velocity per unit inner normal velocity */
     int normal_x;   /* 1 if the edge is west/east (normal along x), 0 if south/north */
-} sw_open_cell;
+} sw_edge_cell;
 
 struct sw_model {
     const sw_layout *layout;
@@ -46,8 +51,8 @@ struct sw_model {
     sw_real *hy;         /* depth carried by v; 0 = no flow there */
     unsigned char *wet;  /* [ny * nx] unpadded: 1 = water cell */
 
-    size_t n_open;       /* open-edge ghost cells */
-    sw_open_cell *open;  /* [n_open] */
+    size_t n_edge;       /* ghost cells of open and level edges */
+    sw_edge_cell *edge;  /* [n_edge] */
 
     long long steps;     /* steps taken */
     double time;         /* simulated time, s */
@@ -57,11 +62,11 @@ struct sw_model {
  * by -1 / +1 (west / east) and -stride / +stride (south / north). */
 static inline size_t sw_pidx(const sw_model *m, size_t i, size_t j) { return (j + 1) * m->stride + (i + 1); }
 
-/* Builds m->open for every open edge: one ghost per water cell next to the edge. `spacing_x` and
+/* Builds m->edge for every open edge: one ghost per water cell next to the edge. `spacing_x` and
  * `spacing_y` are the distances used in r (dx and dy for the A and C layouts). Shared by layouts. */
-sw_status sw_model_build_open(sw_model *m, double spacing_x, double spacing_y, sw_error *err);
+sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, sw_error *err);
 
-/* Updates every open-edge ghost eta (see sw_open_cell). Orphaned `omp for`. */
-void sw_model_open_eta(sw_model *m);
+/* Updates every ghost eta (see sw_edge_cell). Orphaned `omp for`. */
+void sw_model_edge_eta(sw_model *m);
 
 #endif

@@ -21,7 +21,9 @@
 #define SW_MAX_SOURCES 32
 #define SW_MAX_GAUGES 256
 
-typedef enum { SW_EDGE_WALL = 0, SW_EDGE_OPEN = 1 } sw_edge_kind;
+/* Domain edges: a wall reflects (no normal flow); open lets waves leave (radiation condition); level
+ * holds the sea surface at mean level on the edge line (a node), as where a bay opens onto a large basin. */
+typedef enum { SW_EDGE_WALL = 0, SW_EDGE_OPEN = 1, SW_EDGE_LEVEL = 2 } sw_edge_kind;
 enum { SW_WEST = 0, SW_EAST = 1, SW_SOUTH = 2, SW_NORTH = 3 };   /* index into edges[] */
 
 typedef enum { SW_COAST_NONE = 0, SW_COAST_WEST, SW_COAST_EAST, SW_COAST_SOUTH, SW_COAST_NORTH } sw_coast_side;

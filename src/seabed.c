@@ -21,14 +21,13 @@
 #define SEABED_PI 3.14159265358979323846
 
 /* Absolute paths as given, otherwise sc->dir + "/" + rel. Returns SW_ERR_RANGE if it does not fit. */
+/* sw_scenario_resolve, with the scenario line of [seabed] file in a failure message. */
 static sw_status resolve_path(const sw_scenario *sc, const char *rel, char *out, size_t n, sw_error *err)
 {
-    int len = (rel[0] == '/' || !sc->dir[0]) ? snprintf(out, n, "%s", rel)
-                                             : snprintf(out, n, "%s/%s", sc->dir, rel);
-    if (len < 0 || (size_t)len >= n)
-        return sw_fail(err, SW_ERR_RANGE, "%s:%d: [seabed] file: path '%s' is too long", sc->path,
-                       sc->bed_line, rel);
-    return SW_OK;
+    sw_status st = sw_scenario_resolve(sc, rel, out, n, err);
+    if (st != SW_OK)
+        sw_error_prefix(err, "%s:%d: [seabed] file: ", sc->path, sc->bed_line);
+    return st;
 }
 
 static const char *bed_variable(const sw_scenario *sc)

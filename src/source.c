@@ -21,17 +21,14 @@
 
 #define SOURCE_PI 3.14159265358979323846
 
-/* Absolute paths as given, otherwise sc->dir + "/" + rel. Returns SW_ERR_RANGE if it does not fit. */
+/* sw_scenario_resolve for a file source, with its scenario line in a failure message. */
 static sw_status resolve_path(const sw_scenario *sc, const sw_source_spec *s, char *out, size_t n,
                               sw_error *err)
 {
-    const char *rel = s->file;
-    int len = (rel[0] == '/' || !sc->dir[0]) ? snprintf(out, n, "%s", rel)
-                                             : snprintf(out, n, "%s/%s", sc->dir, rel);
-    if (len < 0 || (size_t)len >= n)
-        return sw_fail(err, SW_ERR_RANGE, "%s:%d: [source %s] file: path '%s' is too long", sc->path,
-                       s->line, s->name, rel);
-    return SW_OK;
+    sw_status st = sw_scenario_resolve(sc, s->file, out, n, err);
+    if (st != SW_OK)
+        sw_error_prefix(err, "%s:%d: [source %s] file: ", sc->path, s->line, s->name);
+    return st;
 }
 
 /* Adds amp * exp(-(u/L)^2 - (v/W)^2) around (xc, yc), axis at angle (cos ca, sin sa), to eta. */

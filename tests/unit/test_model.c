@@ -28,8 +28,12 @@
 /* A basin of nx x ny cells of size d with constant depth h, and an eta0 callback. */
 typedef double (*shape_fn)(double x, double y, void *user);
 
+static const sw_edge_kind WALLS[4] = {SW_EDGE_WALL, SW_EDGE_WALL, SW_EDGE_WALL, SW_EDGE_WALL};
+static const sw_edge_kind OPEN[4] = {SW_EDGE_OPEN, SW_EDGE_OPEN, SW_EDGE_OPEN, SW_EDGE_OPEN};
+static const sw_edge_kind LEVEL_EAST[4] = {SW_EDGE_WALL, SW_EDGE_LEVEL, SW_EDGE_WALL, SW_EDGE_WALL};
+
 static sw_model *make_model(const char *layout, size_t nx, size_t ny, double d, double h, double courant_frac,
-                            sw_edge_kind edge, shape_fn eta0, void *user, double *depth_override)
+                            const sw_edge_kind edges[4], shape_fn eta0, void *user, double *depth_override)
 {
     sw_grid g = {.nx = nx, .ny = ny, .dx_m = d, .dy_m = d};
     double *depth = malloc(nx * ny * sizeof(double));
@@ -45,7 +49,7 @@ static sw_model *make_model(const char *layout, size_t nx, size_t ny, double d, 
     const sw_layout *lay = sw_layout_find(layout, NULL);
     assert_non_null(lay);
     sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta, .min_depth_m = 1,
-                           .gravity_ms2 = G, .edges = {edge, edge, edge, edge}};
+                           .gravity_ms2 = G, .edges = {edges[0], edges[1], edges[2], edges[3]}};
     cfg.dt_s = courant_frac * sw_model_dt_limit(lay, &g, depth, 1, G, 2);
     sw_model *m = NULL;
     sw_error err = {0};
@@ -103,7 +107,7 @@ static void test_seiche_c_mode1(void **state)
     const size_t nx = 100;
     const double L = 10000, h = 10, d = L / nx;
     double p[2] = {PI / L, 0.01};
-    sw_model *m = make_model("C", nx, 1, d, h, 0.9, SW_EDGE_WALL, cos_mode, p, NULL);
+    sw_model *m = make_model("C", nx, 1, d, h, 0.9, WALLS, cos_mode, p, NULL);
     double c = sqrt(G * h);
     double merian = 2 * L / c;
     assert_true(fabs(merian - 2019.28) < 0.01);   /* the handbook's worked value */
@@ -117,6 +121,30 @@ static void test_seiche_c_mode1(void **state)
     sw_model_free(m);
 }
 
+/* Basin open at one end onto a level edge (a node at x = L), C layout: the quarter-wave period
+ * T_0 = 4 L / sqrt(g h) (Rabinovich 2009 [seen]: 4038.55 s for h = 10 m, L = 10 km) within 0.5 %, and
+ * the fully discrete period to 1e-7: eta = cos(k x), k = pi / (2 L), is an exact eigenvector when
+ * the ghost beyond the edge holds -eta (antisymmetry about x = L). */
+static void test_seiche_c_quarter_wave(void **state)
+{
+    (void)state;
+    const size_t nx = 100;
+    const double L = 10000, h = 10, d = L / nx;
+    double p[2] = {PI / (2 * L), 0.01};
+    sw_model *m = make_model("C", nx, 1, d, h, 0.9, LEVEL_EAST, cos_mode, p, NULL);
+    double c = sqrt(G * h);
+    double merian = 4 * L / c;
+    assert_true(fabs(merian - 4038.55) < 0.01);
+    double dt = sw_model_dt(m);
+    double w = (2 * c / d) * sin(p[0] * d / 2);
+    double discrete = 2 * PI * dt / acos(1 - (w * dt) * (w * dt) / 2);
+    double measured = measure_period(m, discrete, 4);
+    print_message("C quarter wave: measured %.6f s, discrete %.6f s, Merian %.6f s\n", measured, discrete, merian);
+    assert_true(fabs(measured - merian) / merian < 5e-3);
+    assert_true(fabs(measured - discrete) / discrete < 1e-7);
+    sw_model_free(m);
+}
+
 /* Same basin on the A layout: Merian's period within 0.1 % (measured: 3e-5). */
 static void test_seiche_a_merian(void **state)
 {
@@ -124,7 +152,7 @@ static void test_seiche_a_merian(void **state)
     const size_t nx = 100;
     const double L = 10000, h = 10, d = L / nx;
     double p[2] = {PI / L, 0.01};
-    sw_model *m = make_model("A", nx, 1, d, h, 0.9, SW_EDGE_WALL, cos_mode, p, NULL);
+    sw_model *m = make_model("A", nx, 1, d, h, 0.9, WALLS, cos_mode, p, NULL);
     double merian = 2 * L / sqrt(G * h);
     double measured = measure_period(m, merian, 6);
     print_message("A seiche: measured %.4f s, Merian %.4f s\n", measured, merian);
@@ -160,7 +188,7 @@ static void front_speed(const char *layout)
     const size_t nx = 2000;
     const double d = 100, h = 100, x0 = 50000;
     double p[2] = {x0, 2000};
-    sw_model *m = make_model(layout, nx, 1, d, h, 0.9, SW_EDGE_WALL, hump_1d, p, NULL);
+    sw_model *m = make_model(layout, nx, 1, d, h, 0.9, WALLS, hump_1d, p, NULL);
     long n = (long)(1000.0 / sw_model_dt(m));
     advance(m, n, 1);
     double t1 = sw_model_time(m), x1 = crest_east(m, nx, d, x0);
@@ -196,7 +224,7 @@ static void mass_conserved(const char *layout)
             depth[j * nx + i] = 200 + 50 * sin(0.3 * (double)i) - 300 * exp(-(x * x + y * y) / 40.0);
         }
     double p[3] = {20000, 20000, 6000};
-    sw_model *m = make_model(layout, nx, ny, d, 0, 0.95, SW_EDGE_WALL, hump_2d, p, depth);
+    sw_model *m = make_model(layout, nx, ny, d, 0, 0.95, WALLS, hump_2d, p, depth);
     free(depth);
     double v0 = sw_model_volume(m);
     advance(m, 2000, 2);
@@ -248,8 +276,8 @@ static void thread_independent(const char *layout)
 {
     const size_t nx = 97, ny = 61;
     double p[3] = {30000, 25000, 8000};
-    sw_model *m1 = make_model(layout, nx, ny, 1000, 500, 0.9, SW_EDGE_OPEN, hump_2d, p, NULL);
-    sw_model *m2 = make_model(layout, nx, ny, 1000, 500, 0.9, SW_EDGE_OPEN, hump_2d, p, NULL);
+    sw_model *m1 = make_model(layout, nx, ny, 1000, 500, 0.9, OPEN, hump_2d, p, NULL);
+    sw_model *m2 = make_model(layout, nx, ny, 1000, 500, 0.9, OPEN, hump_2d, p, NULL);
     advance(m1, 300, 1);
     advance(m2, 300, 2);
     size_t differ = 0;
@@ -283,6 +311,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_seiche_c_mode1),  cmocka_unit_test(test_seiche_a_merian),
+        cmocka_unit_test(test_seiche_c_quarter_wave),
         cmocka_unit_test(test_front_speed_c),   cmocka_unit_test(test_front_speed_a),
         cmocka_unit_test(test_mass_c),          cmocka_unit_test(test_mass_a),
         cmocka_unit_test(test_dt_refused),      cmocka_unit_test(test_threads_c),
