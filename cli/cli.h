@@ -1,0 +1,60 @@
+/* cli.h - what the command files of the shoreward command line share.
+ *
+ * Each command is one function `int cmd_NAME(int argc, char **argv, const char *history)` taking
+ * the arguments after the command name and returning the process exit status:
+ * 0 success, 1 the run or its inputs failed, 2 bad command-line usage, 130 interrupted.
+ * Commands are listed in the table in main.c; adding one is a file here and a line there.
+ */
+#ifndef SW_CLI_H
+#define SW_CLI_H
+
+#include <signal.h>
+#include <stddef.h>
+
+#include "run.h"
+#include "scenario.h"
+#include "status.h"
+
+/* Set by SIGINT/SIGTERM once cli_catch_signals() ran; runs poll it and stop cleanly. */
+extern volatile sig_atomic_t cli_stop;
+
+/* Installs the SIGINT/SIGTERM handlers that set cli_stop. */
+void cli_catch_signals(void);
+
+/* Options common to the commands; which ones a command accepts is decided by parse flags. */
+typedef struct {
+    const char *scenario;   /* first positional argument, or NULL */
+    const char *out;        /* --out DIR */
+    int threads;            /* --threads N, 0 = default */
+    int quiet;              /* --quiet */
+    int json;               /* --json */
+} cli_args;
+
+enum { CLI_OUT = 1, CLI_RUN_OPTS = 2 };   /* parse flags: accept --out; accept --threads/--quiet */
+
+/* Parses argv into a. Prints `usage` and returns 0 for --help; prints a usage error and returns 2
+ * for a bad argument; returns -1 when the command should go on. */
+int cli_parse(const char *cmd, const char *usage, int argc, char **argv, int flags, cli_args *a);
+
+/* Prints "shoreward CMD: <fmt with arg>" and a hint to --help on stderr; returns 2. */
+int cli_usage_error(const char *cmd, const char *fmt, const char *arg);
+
+/* Prints "shoreward CMD: error: <err->msg>" on stderr; returns 130 when interrupted, else 1. */
+int cli_fail(const char *cmd, const sw_error *err);
+
+/* Progress callback for runs: a one-line status on stderr. user is unused. */
+void cli_show_progress(const sw_progress *p, void *user);
+
+/* Default output folder for a scenario path: "<file name without extension>-out". */
+void cli_default_out(const char *scenario, char *out, size_t n);
+
+/* Builds the setup for sc, prints the plan (unless quiet or json), runs it into out_dir and prints
+ * the summary (text, or JSON on stdout). Returns the exit status. */
+int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const char *out_dir,
+                     const char *history);
+
+int cmd_run(int argc, char **argv, const char *history);
+int cmd_check(int argc, char **argv, const char *history);
+int cmd_demo(int argc, char **argv, const char *history);
+
+#endif

@@ -1,0 +1,131 @@
+/* cmd_run.c - the commands that run one scenario: run, check and demo. */
+#include <errno.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "cli.h"
+#include "demo.h"
+#include "estimate.h"
+#include "report.h"
+#include "setup.h"
+
+static const char *const usage_run =
+    "Usage: shoreward run SCENARIO [--out DIR] [--threads N] [--quiet] [--json]\n"
+    "\n"
+    "Runs SCENARIO and writes into DIR (default: <scenario name>-out):\n"
+    "  gauges.nc     eta, u, v time series at the gauges (CF timeSeries)\n"
+    "  maps.nc       depth, eta_max, eta_min, arrival_time, eta_max_time, speed_max\n"
+    "  snapshots.nc  eta at [run] snapshot_interval (only when set)\n"
+    "Files appear only when complete; an interrupted run (Ctrl-C) leaves none.\n"
+    "\n"
+    "  --out DIR      output folder, created if missing\n"
+    "  --threads N    OpenMP threads (default: all cores); results do not depend on N\n"
+    "  --quiet        no plan and no progress line\n"
+    "  --json         print the summary as one JSON object on stdout\n"
+    "\n"
+    "Example:\n"
+    "  shoreward run scenarios/demo.scn --out demo-out --threads 2\n";
+
+static const char *const usage_check =
+    "Usage: shoreward check SCENARIO [--json]\n"
+    "\n"
+    "Parses and validates SCENARIO, builds the seabed and source, and prints the plan without\n"
+    "running: grid, layout, dt and Courant number against the layout's limit, steps, memory, an\n"
+    "estimated run time measured on this machine, and each gauge with the depth there.\n"
+    "\n"
+    "Example:\n"
+    "  shoreward check scenarios/demo.scn\n";
+
+static const char *const usage_demo =
+    "Usage: shoreward demo [DIR] [--threads N] [--quiet] [--json]\n"
+    "\n"
+    "Writes the built-in scenario of a fictional coastline (Merrow Bay) to DIR/demo.scn and runs it,\n"
+    "writing the outputs into DIR (default: shoreward-demo). Draw pictures with tools/plot DIR.\n"
+    "\n"
+    "Example:\n"
+    "  shoreward demo /tmp/merrow\n";
+
+int cmd_run(int argc, char **argv, const char *history)
+{
+    cli_args a;
+    int code = cli_parse("run", usage_run, argc, argv, CLI_OUT | CLI_RUN_OPTS, &a);
+    if (code >= 0)
+        return code;
+    if (!a.scenario)
+        return cli_usage_error("run", "%s", "needs a scenario file");
+    sw_scenario sc;
+    sw_error err = {0};
+    if (sw_scenario_load(a.scenario, &sc, &err) != SW_OK)
+        return cli_fail("run", &err);
+    char out[SW_PATH_MAX];
+    if (a.out)
+        snprintf(out, sizeof out, "%s", a.out);
+    else
+        cli_default_out(a.scenario, out, sizeof out);
+    code = cli_run_scenario("run", &sc, &a, out, history);
+    sw_scenario_free(&sc);
+    return code;
+}
+
+int cmd_check(int argc, char **argv, const char *history)
+{
+    (void)history;
+    cli_args a;
+    int code = cli_parse("check", usage_check, argc, argv, 0, &a);
+    if (code >= 0)
+        return code;
+    if (!a.scenario)
+        return cli_usage_error("check", "%s", "needs a scenario file");
+    sw_scenario sc;
+    sw_setup setup;
+    sw_error err = {0};
+    if (sw_scenario_load(a.scenario, &sc, &err) != SW_OK)
+        return cli_fail("check", &err);
+    if (sw_setup_build(&sc, &setup, &err) != SW_OK) {
+        sw_scenario_free(&sc);
+        return cli_fail("check", &err);
+    }
+    double rate = sw_estimate_rate(setup.layout, 0, 0.2);
+    if (a.json) {
+        char *js = sw_report_plan_json(&sc, &setup, rate);
+        if (js)
+            puts(js);
+        free(js);
+    } else {
+        sw_report_plan(stdout, &sc, &setup, rate);
+        printf("\nScenario is valid.\n");
+    }
+    sw_setup_free(&setup);
+    sw_scenario_free(&sc);
+    return 0;
+}
+
+int cmd_demo(int argc, char **argv, const char *history)
+{
+    cli_args a;
+    int code = cli_parse("demo", usage_demo, argc, argv, CLI_RUN_OPTS, &a);
+    if (code >= 0)
+        return code;
+    const char *dir = a.scenario ? a.scenario : "shoreward-demo";
+    sw_error err = {0};
+    if (sw_make_dirs(dir, &err) != SW_OK)
+        return cli_fail("demo", &err);
+    char path[SW_PATH_MAX];
+    snprintf(path, sizeof path, "%s/demo.scn", dir);
+    FILE *f = fopen(path, "w");
+    if (!f || fputs(sw_demo_scenario, f) < 0 || fclose(f) != 0) {
+        fprintf(stderr, "shoreward demo: error: cannot write %s: %s\n", path, strerror(errno));
+        return 1;
+    }
+    if (!a.json)
+        printf("Wrote the fictional demo scenario to %s\n\n", path);
+    sw_scenario sc;
+    if (sw_scenario_load(path, &sc, &err) != SW_OK)
+        return cli_fail("demo", &err);
+    code = cli_run_scenario("demo", &sc, &a, dir, history);
+    sw_scenario_free(&sc);
+    if (code == 0 && !a.json)
+        printf("\nPictures: tools/plot %s\n", dir);
+    return code;
+}

@@ -1,0 +1,159 @@
+/* common.c - argument parsing, errors, progress and the run-and-report sequence shared by commands. */
+#define _POSIX_C_SOURCE 200809L
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "cli.h"
+#include "report.h"
+#include "setup.h"
+
+volatile sig_atomic_t cli_stop = 0;
+
+static void on_signal(int sig)
+{
+    (void)sig;
+    cli_stop = 1;
+}
+
+void cli_catch_signals(void)
+{
+    struct sigaction sa;
+    memset(&sa, 0, sizeof sa);
+    sa.sa_handler = on_signal;
+    sigaction(SIGINT, &sa, NULL);
+    sigaction(SIGTERM, &sa, NULL);
+}
+
+int cli_usage_error(const char *cmd, const char *fmt, const char *arg)
+{
+    fprintf(stderr, "shoreward %s: ", cmd);
+    fprintf(stderr, fmt, arg);
+    fprintf(stderr, "\nTry `shoreward %s --help`.\n", cmd);
+    return 2;
+}
+
+int cli_fail(const char *cmd, const sw_error *err)
+{
+    fprintf(stderr, "shoreward %s: error: %s\n", cmd, err->msg);
+    return err->code == SW_ERR_INTERRUPTED ? 130 : 1;
+}
+
+/* The value of option `name` given as "--name VALUE" or "--name=VALUE", or NULL if s is not it.
+ * Advances *k past a separate value; sets *missing when the value is absent. */
+static const char *option_value(const char *name, int argc, char **argv, int *k, int *missing)
+{
+    size_t n = strlen(name);
+    const char *s = argv[*k];
+    if (strncmp(s, name, n) != 0)
+        return NULL;
+    if (s[n] == '=')
+        return s + n + 1;
+    if (s[n] != '\0')
+        return NULL;
+    if (*k + 1 < argc)
+        return argv[++*k];
+    *missing = 1;
+    return "";
+}
+
+int cli_parse(const char *cmd, const char *usage, int argc, char **argv, int flags, cli_args *a)
+{
+    memset(a, 0, sizeof *a);
+    for (int k = 0; k < argc; k++) {
+        const char *s = argv[k], *val;
+        int missing = 0;
+        if (!strcmp(s, "--help") || !strcmp(s, "-h")) {
+            fputs(usage, stdout);
+            return 0;
+        } else if (!strcmp(s, "--json")) {
+            a->json = 1;
+        } else if ((flags & CLI_RUN_OPTS) && !strcmp(s, "--quiet")) {
+            a->quiet = 1;
+        } else if ((flags & CLI_OUT) && (val = option_value("--out", argc, argv, &k, &missing))) {
+            if (missing || !*val)
+                return cli_usage_error(cmd, "%s needs a folder", "--out");
+            a->out = val;
+        } else if ((flags & CLI_RUN_OPTS) && (val = option_value("--threads", argc, argv, &k, &missing))) {
+            char *end = NULL;
+            long n = strtol(val, &end, 10);
+            if (missing || end == val || *end || n < 1 || n > 1024)
+                return cli_usage_error(cmd, "--threads takes a whole number from 1 to 1024, not '%s'", val);
+            a->threads = (int)n;
+        } else if (s[0] == '-' && s[1]) {
+            return cli_usage_error(cmd, "unknown option '%s'", s);
+        } else if (!a->scenario) {
+            a->scenario = s;
+        } else {
+            return cli_usage_error(cmd, "unexpected argument '%s'", s);
+        }
+    }
+    return -1;
+}
+
+void cli_show_progress(const sw_progress *p, void *user)
+{
+    (void)user;
+    char sim[48], ela[48], rem[48];
+    sw_format_duration(p->sim_time_s, sim, sizeof sim);
+    sw_format_duration(p->elapsed_s, ela, sizeof ela);
+    sw_format_duration(p->remaining_s, rem, sizeof rem);
+    fprintf(stderr, "\r  t = %-16s %5.1f %%   elapsed %-14s ETA %-14s %.3g cell-updates/s   ", sim,
+            100.0 * (double)p->step / (double)(p->n_steps ? p->n_steps : 1), ela, rem, p->cell_updates_per_s);
+    fflush(stderr);
+}
+
+void cli_default_out(const char *scenario, char *out, size_t n)
+{
+    const char *base = strrchr(scenario, '/');
+    base = base ? base + 1 : scenario;
+    const char *dot = strrchr(base, '.');
+    int len = dot && dot != base ? (int)(dot - base) : (int)strlen(base);
+    snprintf(out, n, "%.*s-out", len, base);
+}
+
+int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const char *out_dir,
+                     const char *history)
+{
+    sw_error err = {0};
+    sw_setup setup;
+    if (sw_setup_build(sc, &setup, &err) != SW_OK)
+        return cli_fail(cmd, &err);
+
+    int tty = isatty(STDERR_FILENO) && !a->quiet;
+    if (!a->json && !a->quiet) {
+        sw_report_plan(stdout, sc, &setup, 0);
+        printf("\n%s\n\n", sw_caution());
+        fflush(stdout);
+    }
+    cli_catch_signals();
+    sw_run_options opt = {
+        .out_dir = out_dir, .history = history, .threads = a->threads,
+        .progress = tty ? cli_show_progress : NULL, .stop = &cli_stop,
+    };
+    sw_run_result *res = malloc(sizeof *res);
+    if (!res) {
+        sw_setup_free(&setup);
+        fprintf(stderr, "shoreward %s: error: out of memory\n", cmd);
+        return 1;
+    }
+    sw_status rc = sw_run(sc, &setup, &opt, res, &err);
+    if (tty)
+        fputc('\n', stderr);
+    int code = 0;
+    if (rc != SW_OK) {
+        code = cli_fail(cmd, &err);
+    } else if (a->json) {
+        char *js = sw_report_run_json(sc, &setup, res);
+        if (js)
+            puts(js);
+        free(js);
+        fprintf(stderr, "%s\n", sw_caution());
+    } else {
+        sw_report_run(stdout, sc, &setup, res);
+    }
+    free(res);
+    sw_setup_free(&setup);
+    return code;
+}

@@ -1,0 +1,36 @@
+/* tracker.h - arrival time and extremes at every cell centre, updated as the run goes.
+ *
+ * No history is kept: after each step the tracker compares the new centre values with what it holds.
+ * Arrival is the first time |eta| >= the threshold (the initial state counts, at t = 0).
+ */
+#ifndef SW_TRACKER_H
+#define SW_TRACKER_H
+
+#include "model.h"
+#include "ncwrite.h"
+#include "status.h"
+
+typedef struct sw_tracker sw_tracker;
+
+/* Creates a tracker for model m (already holding its initial state, at time 0) with arrival
+ * threshold threshold_m (> 0), with row buffers for up to n_threads threads. *out is NULL on failure. */
+sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads, sw_tracker **out,
+                            sw_error *err);
+
+/* Folds the model's current state (at sw_model_time(m)) into the maps. Orphaned `omp for` over rows:
+ * call from every thread of a parallel region (thread t uses buffer t), or outside one. */
+void sw_tracker_update(sw_tracker *t, const sw_model *m);
+
+/* Points maps' arrays at the tracker's (valid until sw_tracker_free); land cells and never-reached
+ * arrivals read NaN. depth_m is the caller's still-water depth [ny * nx], stored in maps->depth_m. */
+void sw_tracker_maps(sw_tracker *t, const sw_model *m, const double *depth_m, sw_map_set *maps);
+
+/* Largest |eta| seen at any water cell, m. */
+double sw_tracker_max_abs(const sw_tracker *t);
+
+/* 1 if any update met a NaN or Inf elevation (the run blew up), else 0. Call outside parallel regions. */
+int sw_tracker_nonfinite(const sw_tracker *t);
+
+void sw_tracker_free(sw_tracker *t);
+
+#endif
