@@ -11,12 +11,25 @@
 #ifndef SW_LAYOUT_H
 #define SW_LAYOUT_H
 
+#include <complex.h>
 #include <stddef.h>
 
 #include "real.h"
 #include "status.h"
 
 typedef struct sw_model sw_model;
+
+/* Fourier symbols of a layout's discrete operators for a plane wave exp(i (k x + l y)), each taken
+ * relative to the phase at the point where the result lives. Applying an operator to the wave
+ * multiplies its amplitude by the symbol. Units 1/m for derivatives, none for averages. */
+typedef struct {
+    double complex div_x;   /* d/dx of u (at u points) evaluated at eta points */
+    double complex div_y;   /* d/dy of v (at v points) evaluated at eta points */
+    double complex grad_x;  /* d/dx of eta evaluated at u points */
+    double complex grad_y;  /* d/dy of eta evaluated at v points */
+    double complex v_at_u;  /* v averaged onto u points (for Coriolis terms); 1 when co-located */
+    double complex u_at_v;  /* u averaged onto v points */
+} sw_symbols;
 
 typedef struct sw_layout {
     const char *name;     /* "A" .. "E" */
@@ -40,6 +53,15 @@ typedef struct sw_layout {
     /* Values at the centres of row j (0 .. ny-1) into eta, u, v (each nx long): elevation (m) and
      * the two velocity components (m/s) interpolated to the centre. Land cells give 0. */
     void (*centre_row)(const sw_model *m, size_t j, double *eta, double *u, double *v);
+
+    /* Symbols of the layout's operators for wavenumbers (k, l) (rad/m) on cells dx x dy (m). The
+     * gravity-wave frequency is omega^2 = -g h (div_x grad_x + div_y grad_y). */
+    void (*symbols)(double k, double l, double dx, double dy, sw_symbols *out);
+
+    /* The discrete energy that forward-backward stepping conserves exactly (walls, no forcing), per
+     * unit density, m5 s-2:  E* = sum (g/2) eta^2 dA + sum (hu/2) |u|^2 dA - (g dt / 2) sum eta D(h u) dA,
+     * with D the layout's divergence and hu the depth carried by each velocity point. */
+    double (*energy)(const sw_model *m);
 } sw_layout;
 
 /* Finds a layout by name ("A".."E", any case). Returns NULL for an unknown name; for a known name
@@ -48,5 +70,9 @@ const sw_layout *sw_layout_find(const char *name, int *known);
 
 /* Comma-separated names of the implemented layouts, e.g. "A, C". */
 const char *sw_layout_names(void);
+
+/* The implemented layouts, in registry order: sw_layout_at(q) for q < sw_layout_count(). */
+size_t sw_layout_count(void);
+const sw_layout *sw_layout_at(size_t q);
 
 #endif

@@ -112,6 +112,30 @@ static void a_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
     }
 }
 
+static void a_symbols(double k, double l, double dx, double dy, sw_symbols *o)
+{
+    o->div_x = o->grad_x = I * sin(k * dx) / dx;
+    o->div_y = o->grad_y = I * sin(l * dy) / dy;
+    o->v_at_u = o->u_at_v = 1;   /* co-located */
+}
+
+static double a_energy(const sw_model *m)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
+    const double dx = m->grid.dx_m, dy = m->grid.dy_m;
+    const sw_real *eta = m->eta, *u = m->u, *v = m->v, *hx = m->hx, *hy = m->hy;
+    double pot = 0, kin = 0, cross = 0;
+    for (size_t j = 1; j <= ny; j++)
+        for (size_t i = j * s + 1; i <= j * s + nx; i++) {
+            double div = ((double)hx[i + 1] * u[i + 1] - (double)hx[i - 1] * u[i - 1]) / (2 * dx)
+                       + ((double)hy[i + s] * v[i + s] - (double)hy[i - s] * v[i - s]) / (2 * dy);
+            pot += (double)eta[i] * eta[i];
+            kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * v[i] * v[i];
+            cross += eta[i] * div;
+        }
+    return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * dx * dy;
+}
+
 const sw_layout sw_layout_a = {
     .name = "A",
     .summary = "co-located: eta, u and v at cell centres, centred differences",
@@ -119,4 +143,6 @@ const sw_layout sw_layout_a = {
     .prepare = a_prepare,
     .step = a_step,
     .centre_row = a_centre_row,
+    .symbols = a_symbols,
+    .energy = a_energy,
 };

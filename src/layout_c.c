@@ -98,6 +98,37 @@ static void c_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
     }
 }
 
+static void c_symbols(double k, double l, double dx, double dy, sw_symbols *o)
+{
+    double a = 0.5 * k * dx, b = 0.5 * l * dy;
+    o->div_x = o->grad_x = 2 * I * sin(a) / dx;
+    o->div_y = o->grad_y = 2 * I * sin(b) / dy;
+    o->v_at_u = o->u_at_v = cos(a) * cos(b);   /* four-point average across the cell corner */
+}
+
+static double c_energy(const sw_model *m)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
+    const double dx = m->grid.dx_m, dy = m->grid.dy_m;
+    const sw_real *eta = m->eta, *u = m->u, *v = m->v, *hx = m->hx, *hy = m->hy;
+    double pot = 0, kin = 0, cross = 0;
+    for (size_t j = 1; j <= ny; j++)
+        for (size_t i = j * s + 1; i <= j * s + nx; i++) {
+            double div = ((double)hx[i] * u[i] - (double)hx[i - 1] * u[i - 1]) / dx
+                       + ((double)hy[i] * v[i] - (double)hy[i - s] * v[i - s]) / dy;
+            pot += (double)eta[i] * eta[i];
+            cross += eta[i] * div;
+        }
+    for (size_t j = 0; j <= ny; j++)
+        for (size_t i = j * s; i <= j * s + nx; i++) {
+            if (j > 0)
+                kin += (double)hx[i] * u[i] * u[i];
+            if (i > j * s)
+                kin += (double)hy[i] * v[i] * v[i];
+        }
+    return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * dx * dy;
+}
+
 const sw_layout sw_layout_c = {
     .name = "C",
     .summary = "staggered: eta at centres, u on east/west faces, v on north/south faces",
@@ -105,4 +136,6 @@ const sw_layout sw_layout_c = {
     .prepare = c_prepare,
     .step = c_step,
     .centre_row = c_centre_row,
+    .symbols = c_symbols,
+    .energy = c_energy,
 };

@@ -45,3 +45,7 @@ const char *sw_layout_names(void)
     }
     return names;
 }
+
+size_t sw_layout_count(void) { return sizeof registry / sizeof registry[0]; }
+
+const sw_layout *sw_layout_at(size_t q) { return q < sw_layout_count() ? registry[q] : NULL; }

@@ -86,7 +86,7 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
         return sw_fail(err, SW_ERR_RANGE, "the domain has no water: every cell is shallower than min_depth = %g m",
                        cfg->min_depth_m);
     double dt_max = sw_model_dt_limit(cfg->layout, g, cfg->depth_m, cfg->min_depth_m, cfg->gravity_ms2, 2);
-    if (cfg->dt_s > dt_max * (1.0 + 1e-12)) {
+    if (cfg->dt_s > dt_max * (1.0 + 1e-12) && !cfg->allow_unstable) {
         double c = sw_model_courant(g, h_max, cfg->gravity_ms2, cfg->dt_s);
         double c_max = sw_model_courant(g, h_max, cfg->gravity_ms2, dt_max);
         return sw_fail(err, SW_ERR_UNSTABLE,
@@ -212,6 +212,8 @@ void sw_model_edge_eta(sw_model *m)
 }
 
 void sw_model_step(sw_model *m) { m->layout->step(m); }
+
+double sw_model_energy(const sw_model *m) { return m->layout->energy(m); }
 
 void sw_model_tick(sw_model *m)
 {

@@ -30,6 +30,7 @@ typedef struct {
     double gravity_ms2;        /* g, m s-2 */
     double dt_s;               /* time step, s (> 0); see sw_model_dt_limit */
     sw_edge_kind edges[4];     /* SW_WEST .. SW_NORTH */
+    int allow_unstable;        /* 1 = accept dt beyond the stability limit (for stability experiments) */
 } sw_model_config;
 
 /* The largest stable time step (s) for `layout` on the given depth field: 2 / max_frequency at the
@@ -41,7 +42,8 @@ double sw_model_dt_limit(const sw_layout *layout, const sw_grid *g, const double
 double sw_model_courant(const sw_grid *g, double h_max_m, double gravity_ms2, double dt_s);
 
 /* Creates a model. Refuses (SW_ERR_UNSTABLE) a dt beyond the layout's stability limit, naming
- * both; SW_ERR_RANGE when there is no water cell; SW_ERR_NOMEM. *out is NULL on failure. */
+ * both, unless cfg->allow_unstable; SW_ERR_RANGE when there is no water cell; SW_ERR_NOMEM.
+ * *out is NULL on failure. */
 sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *err);
 
 /* Frees the model. m may be NULL. */
@@ -61,6 +63,9 @@ double sw_model_eta(const sw_model *m, size_t i, size_t j);
 
 /* Sets the elevation at cell centre (i, j) (ignored on land). For tests and restarts. */
 void sw_model_set_eta(sw_model *m, size_t i, size_t j, double eta_m);
+
+/* The layout's conserved discrete energy (see sw_layout.energy), m5 s-2. */
+double sw_model_energy(const sw_model *m);
 
 /* Water volume displaced: sum of eta * cell area over water cells, m3 (compensated summation). */
 double sw_model_volume(const sw_model *m);
