@@ -10,7 +10,8 @@ struct sw_tracker {
     size_t nx, ny;
     double threshold;     /* m */
     int n_threads;        /* row buffers available */
-    double *eta_max, *eta_min, *arrival, *eta_max_time, *speed_max;  /* [ny * nx] */
+    double *eta_max, *eta_min, *arrival, *eta_max_time;  /* [ny * nx], m and s */
+    double *speed_max;    /* [ny * nx]: squared speed (m2 s-2) while running, speed (m/s) after _maps */
     double *rows;         /* [n_threads * 3 * nx]: eta, u, v of one row per thread */
     int *nonfinite;       /* [n_threads]: thread saw a NaN or Inf */
 };
@@ -83,17 +84,16 @@ void sw_tracker_update(sw_tracker *t, const sw_model *m)
         double *restrict mx = t->eta_max + j * nx, *restrict mn = t->eta_min + j * nx;
         double *restrict arr = t->arrival + j * nx, *restrict tmx = t->eta_max_time + j * nx;
         double *restrict sp = t->speed_max + j * nx;
+        SW_OMP(simd reduction(| : bad))
         for (size_t i = 0; i < nx; i++) {
-            if (e[i] > mx[i]) {
-                mx[i] = e[i];
-                tmx[i] = now;
-            }
+            int higher = e[i] > mx[i];
+            mx[i] = higher ? e[i] : mx[i];
+            tmx[i] = higher ? now : tmx[i];
             mn[i] = e[i] < mn[i] ? e[i] : mn[i];
-            double speed = sqrt(uu[i] * uu[i] + vv[i] * vv[i]);
-            sp[i] = speed > sp[i] ? speed : sp[i];
-            if (isnan(arr[i]) && fabs(e[i]) >= thr)
-                arr[i] = now;
-            bad |= !isfinite(e[i]);
+            double s2 = uu[i] * uu[i] + vv[i] * vv[i];
+            sp[i] = s2 > sp[i] ? s2 : sp[i];
+            arr[i] = (arr[i] != arr[i] && fabs(e[i]) >= thr) ? now : arr[i];   /* first time only: NaN until set */
+            bad |= !(fabs(e[i]) <= 1e300);   /* NaN or Inf */
         }
     }
     t->nonfinite[tid] |= bad;
@@ -102,6 +102,8 @@ void sw_tracker_update(sw_tracker *t, const sw_model *m)
 void sw_tracker_maps(sw_tracker *t, const sw_model *m, const double *depth_m, sw_map_set *maps)
 {
     const unsigned char *wet = sw_model_wet(m);
+    for (size_t k = 0; k < t->nx * t->ny; k++)
+        t->speed_max[k] = sqrt(t->speed_max[k]);
     for (size_t k = 0; k < t->nx * t->ny; k++)
         if (!wet[k])
             t->eta_max[k] = t->eta_min[k] = t->arrival[k] = t->eta_max_time[k] = t->speed_max[k] = NAN;

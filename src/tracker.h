@@ -21,8 +21,8 @@ sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads
  * call from every thread of a parallel region (thread t uses buffer t), or outside one. */
 void sw_tracker_update(sw_tracker *t, const sw_model *m);
 
-/* Points maps' arrays at the tracker's (valid until sw_tracker_free); land cells and never-reached
- * arrivals read NaN. depth_m is the caller's still-water depth [ny * nx], stored in maps->depth_m. */
+/* Ends tracking and points maps' arrays at the tracker's (valid until sw_tracker_free); land cells
+ * and never-reached arrivals read NaN. Call once; no update may follow. depth_m is the caller's still-water depth [ny * nx], stored in maps->depth_m. */
 void sw_tracker_maps(sw_tracker *t, const sw_model *m, const double *depth_m, sw_map_set *maps);
 
 /* Largest |eta| seen at any water cell, m. */
