@@ -14,6 +14,7 @@ static const char *const usage_main =
     "  run SCENARIO     run a scenario and write gauge series and arrival/peak maps (NetCDF)\n"
     "  check SCENARIO   validate a scenario and print the plan (grid, dt, Courant number, cost)\n"
     "  demo [DIR]       write the built-in fictional scenario into DIR and run it\n"
+    "  compare SCENARIO run a scenario on several grid layouts and resolutions, side by side\n"
     "\n"
     "Options:\n"
     "  --help           this text; `shoreward COMMAND --help` explains a command\n"
@@ -31,6 +32,7 @@ static const command commands[] = {
     {"run", cmd_run},
     {"check", cmd_check},
     {"demo", cmd_demo},
+    {"compare", cmd_compare},
 };
 
 /* The command line as one string, for the history attribute; NULL when out of memory. */

@@ -23,6 +23,8 @@ struct sw_gauges {
     size_t nx;
     int *dry;                 /* [n] */
     sw_gauge_stats *stats;    /* [n] from sw_gauges_watch */
+    double *prev_eta;         /* [n] elevation at the previous watch, m */
+    double prev_time;         /* time of the previous watch, s (NaN before the first) */
 };
 
 /* Index of the centre at or below coordinate c along an axis of n cells, and the weight of the next. */
@@ -92,6 +94,7 @@ void sw_gauges_free(sw_gauges *gs)
     free(gs->row);
     free(gs->dry);
     free(gs->stats);
+    free(gs->prev_eta);
     free(gs);
 }
 
@@ -120,7 +123,9 @@ sw_status sw_gauges_create(const sw_model *m, const double *depth_m, const sw_ga
     gs->v = calloc(nn * (max_samples ? max_samples : 1), sizeof(double));
     gs->row = calloc(3 * g->nx, sizeof(double));
     gs->stats = calloc(nn, sizeof *gs->stats);
-    if (!gs->stats || !gs->names || !gs->name_ptrs || !gs->x || !gs->y || !gs->depth || !gs->st || !gs->dry || !gs->time
+    gs->prev_eta = calloc(nn, sizeof(double));
+    gs->prev_time = NAN;
+    if (!gs->stats || !gs->prev_eta || !gs->names || !gs->name_ptrs || !gs->x || !gs->y || !gs->depth || !gs->st || !gs->dry || !gs->time
         || !gs->eta || !gs->u || !gs->v || !gs->row) {
         sw_gauges_free(gs);
         return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating %zu gauges x %zu samples", n, max_samples);
@@ -212,8 +217,13 @@ void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m)
         for (int c = 0; c < 4; c++)
             e += s->w[c] * sw_model_eta(m, s->i[c], s->j[c]);
         sw_gauge_stats *st = &gs->stats[q];
-        if (isnan(st->arrival_s) && fabs(e) >= threshold_m)
-            st->arrival_s = now;
+        if (isnan(st->arrival_s) && fabs(e) >= threshold_m) {
+            /* the crossing, interpolated linearly in time from the previous step */
+            double a = fabs(gs->prev_eta[q]), b = fabs(e);
+            st->arrival_s = isnan(gs->prev_time) || a >= threshold_m
+                ? now : gs->prev_time + (now - gs->prev_time) * (threshold_m - a) / (b - a);
+        }
+        gs->prev_eta[q] = e;
         if (e > st->peak_m) {
             st->peak_m = e;
             st->peak_time_s = now;
@@ -223,6 +233,7 @@ void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m)
             st->trough_time_s = now;
         }
     }
+    gs->prev_time = now;
 }
 
 sw_gauge_stats sw_gauges_stats(const sw_gauges *gs, size_t q) { return gs->stats[q]; }

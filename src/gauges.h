@@ -26,8 +26,9 @@ sw_status sw_gauges_create(const sw_model *m, const double *depth_m, const sw_ga
  * Returns SW_ERR_USAGE (recording nothing) when the capacity is used up. */
 sw_status sw_gauges_sample(sw_gauges *gs, const sw_model *m, sw_error *err);
 
-/* Follows every gauge's elevation at the model's current time (call after every step, from one
- * thread): first arrival (|eta| >= threshold_m), highest and lowest elevation and their times.
+/* Follows every gauge's elevation at the model's current time (call at time 0 and after every step,
+ * from one thread): first arrival (the time |eta| first reaches threshold_m, interpolated linearly
+ * between the two steps around the crossing), highest and lowest elevation and their times.
  * Reads only the four cell-centre elevations, so it is cheap enough for every step. */
 void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m);
 

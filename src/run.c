@@ -245,6 +245,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         sw_gauge_table table;
         sw_tracker_maps(c.tracker, c.model, setup->depth_m, &maps);
         res->max_abs_eta_m = sw_tracker_max_abs(c.tracker);
+        res->noise_index = sw_tracker_noise(c.tracker, maps.wet);
         sw_gauges_table(c.gauges, &table);
         fill_results(&c, res);
         if (table.n_stations > 0)

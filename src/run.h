@@ -59,6 +59,7 @@ typedef struct {
     double cell_updates_per_s;        /* grid cells x steps / wall_s */
     double volume_start_m3, volume_end_m3; /* displaced water volume at start and end, m3 */
     double max_abs_eta_m;             /* largest |eta| anywhere, m */
+    double noise_index;               /* grid-scale noise of the eta_max map (sw_tracker_noise) */
 } sw_run_result;
 
 /* The caution every run, file and report carries: a simplified linear model, not a forecast. */

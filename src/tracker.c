@@ -135,3 +135,27 @@ double sw_tracker_max_abs(const sw_tracker *t)
     }
     return worst;
 }
+
+double sw_tracker_noise(const sw_tracker *t, const unsigned char *wet)
+{
+    const size_t nx = t->nx, ny = t->ny;
+    const double *e = t->eta_max;
+    double hp2 = 0, e2 = 0;
+    for (size_t j = 1; j + 1 < ny; j++)
+        for (size_t i = 1; i + 1 < nx; i++) {
+            int all_wet = 1;
+            double smooth = 0;
+            for (int dj = -1; dj <= 1; dj++)
+                for (int di = -1; di <= 1; di++) {
+                    size_t k = (j + (size_t)dj) * nx + (i + (size_t)di);
+                    all_wet &= wet[k];
+                    smooth += (di ? 0.25 : 0.5) * (dj ? 0.25 : 0.5) * e[k];
+                }
+            if (!all_wet)
+                continue;
+            double c = e[j * nx + i];
+            hp2 += (c - smooth) * (c - smooth);
+            e2 += c * c;
+        }
+    return e2 > 0 ? sqrt(hp2 / e2) : 0;
+}

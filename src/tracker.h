@@ -31,6 +31,14 @@ double sw_tracker_max_abs(const sw_tracker *t);
 /* 1 if any update met a NaN or Inf elevation (the run blew up), else 0. Call outside parallel regions. */
 int sw_tracker_nonfinite(const sw_tracker *t);
 
+/* Grid-scale noise index of the eta_max map (after sw_tracker_maps): the RMS of eta_max minus its
+ * 1-2-1 smoothed copy (separable, weights 1/4, 1/2, 1/4 along x and y), over water cells whose eight
+ * neighbours are water, divided by the RMS of eta_max there. The smoother removes the 2-cell wave
+ * completely and passes long waves almost untouched, so the index measures energy near the 2 dx
+ * wavenumber: near 0 for a smooth field, larger where a layout lets grid-scale modes grow.
+ * Returns 0 when no cell qualifies. */
+double sw_tracker_noise(const sw_tracker *t, const unsigned char *wet);
+
 void sw_tracker_free(sw_tracker *t);
 
 #endif
