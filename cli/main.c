@@ -15,6 +15,7 @@ static const char *const usage_main =
     "  check SCENARIO   validate a scenario and print the plan (grid, dt, Courant number, cost)\n"
     "  demo [DIR]       write the built-in fictional scenario into DIR and run it\n"
     "  compare SCENARIO run a scenario on several grid layouts and resolutions, side by side\n"
+    "  bench            measure step rates against the machine's memory bandwidth and NumPy\n"
     "\n"
     "Options:\n"
     "  --help           this text; `shoreward COMMAND --help` explains a command\n"
@@ -33,6 +34,7 @@ static const command commands[] = {
     {"check", cmd_check},
     {"demo", cmd_demo},
     {"compare", cmd_compare},
+    {"bench", cmd_bench},
 };
 
 /* The command line as one string, for the history attribute; NULL when out of memory. */

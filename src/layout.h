@@ -34,6 +34,8 @@ typedef struct {
 typedef struct sw_layout {
     const char *name;     /* "A" .. "E" */
     const char *summary;  /* one line for --help and reports */
+    int stream_values;    /* the bytes model: values a fused cell update must move at least (each state
+                           * value read and written once, each depth array read once); x sizeof(sw_real) */
 
     /* Highest angular frequency (rad/s) of the layout's semi-discrete gravity waves on depth h,
      * over all wavenumbers the grid resolves, with gh = g*h (m2 s-2) and cell sizes dx, dy (m).

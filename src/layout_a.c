@@ -139,6 +139,7 @@ static double a_energy(const sw_model *m)
 const sw_layout sw_layout_a = {
     .name = "A",
     .summary = "co-located: eta, u and v at cell centres, centred differences",
+    .stream_values = 8,   /* eta, u, v read and written; hx, hy read */
     .max_frequency = a_max_frequency,
     .prepare = a_prepare,
     .step = a_step,

@@ -54,6 +54,39 @@ static sw_status c_prepare(sw_model *m, sw_error *err)
     return sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
 }
 
+/* One row of each half-step, k0 = padded index of the row's first interior cell. */
+static inline void c_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                    const sw_real *restrict hx, const sw_real *restrict hy, size_t k0, size_t nx,
+                                    size_t s, sw_real cx, sw_real cy)
+{
+    SW_OMP(simd)
+    for (size_t i = k0; i < k0 + nx; i++)
+        eta[i] -= cx * (hx[i] * u[i] - hx[i - 1] * u[i - 1]) + cy * (hy[i] * v[i] - hy[i - s] * v[i - s]);
+}
+
+/* u on the faces k0 - 1 .. k0 + nx - 1 (the west edge face through the east edge face). */
+static inline void c_u_row(sw_real *restrict u, const sw_real *restrict eta, const sw_real *restrict hx, size_t k0,
+                           size_t nx, sw_real gx)
+{
+    SW_OMP(simd)
+    for (size_t i = k0 - 1; i < k0 + nx; i++)
+        u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i]) : 0;
+}
+
+/* v on the north faces of the row starting at k0 (padded row 0 holds the south edge's faces). */
+static inline void c_v_row(sw_real *restrict v, const sw_real *restrict eta, const sw_real *restrict hy, size_t k0,
+                           size_t nx, size_t s, sw_real gy)
+{
+    SW_OMP(simd)
+    for (size_t i = k0; i < k0 + nx; i++)
+        v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] - eta[i]) : 0;
+}
+
+/* The step in one sweep over memory. Each thread owns a block of rows j0..j1 and, for each row j:
+ * advances eta (old u, v), sets that row's edge ghosts, advances u of row j (new eta of row j) and
+ * v of row j-1 (new eta of rows j-1 and j). v of the block's last row needs the next block's first
+ * row of eta, so it waits for a barrier. The next block reads that old v before the barrier, as the
+ * continuity equation requires. Each cell is computed the same way for any thread count. */
 static void c_step(sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
@@ -61,30 +94,22 @@ static void c_step(sw_model *m)
     const sw_real gx = (sw_real)(m->g * m->dt / m->grid.dx_m), gy = (sw_real)(m->g * m->dt / m->grid.dy_m);
     sw_real *restrict eta = m->eta, *restrict u = m->u, *restrict v = m->v;
     const sw_real *restrict hx = m->hx, *restrict hy = m->hy;
+    const size_t nt = (size_t)omp_get_num_threads(), t = (size_t)omp_get_thread_num();
+    const size_t j0 = 1 + ny * t / nt, j1 = ny * (t + 1) / nt;   /* padded rows; empty when j1 < j0 */
 
-    /* forward: continuity from the old velocities */
-    SW_OMP(for schedule(static))
-    for (size_t j = 1; j <= ny; j++) {
-        const size_t r = j * s;
-        SW_OMP(simd)
-        for (size_t i = r + 1; i <= r + nx; i++)
-            eta[i] -= cx * (hx[i] * u[i] - hx[i - 1] * u[i - 1]) + cy * (hy[i] * v[i] - hy[i - s] * v[i - s]);
+    for (size_t j = j0; j <= j1; j++) {
+        c_continuity_row(eta, u, v, hx, hy, j * s + 1, nx, s, cx, cy);
+        sw_model_edge_eta_row(m, j);
+        c_u_row(u, eta, hx, j * s + 1, nx, gx);
+        if (j == 1)
+            c_v_row(v, eta, hy, 1, nx, s, gy);   /* the south edge's faces: ghost row 0 and row 1 */
+        if (j > j0)
+            c_v_row(v, eta, hy, (j - 1) * s + 1, nx, s, gy);
     }
-    sw_model_edge_eta(m);
-
-    /* backward: momentum from the new eta; padded row 0 holds only the south edge's v faces */
-    SW_OMP(for schedule(static))
-    for (size_t j = 0; j <= ny; j++) {
-        const size_t r = j * s;
-        if (j > 0) {
-            SW_OMP(simd)
-            for (size_t i = r; i <= r + nx; i++)
-                u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i]) : 0;
-        }
-        SW_OMP(simd)
-        for (size_t i = r + 1; i <= r + nx; i++)
-            v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] - eta[i]) : 0;
-    }
+    SW_OMP(barrier)
+    if (j1 >= j0)
+        c_v_row(v, eta, hy, j1 * s + 1, nx, s, gy);
+    SW_OMP(barrier)
 }
 
 static void c_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
@@ -132,6 +157,7 @@ static double c_energy(const sw_model *m)
 const sw_layout sw_layout_c = {
     .name = "C",
     .summary = "staggered: eta at centres, u on east/west faces, v on north/south faces",
+    .stream_values = 8,   /* eta, u, v read and written; hx, hy read */
     .max_frequency = c_max_frequency,
     .prepare = c_prepare,
     .step = c_step,

@@ -153,7 +153,33 @@ void sw_model_free(sw_model *m)
     free(m->hy);
     free(m->wet);
     free(m->edge);
+    free(m->edge_row);
     free(m);
+}
+
+/* Orders m->edge by the padded row of the inner cell (a stable counting sort) and fills m->edge_row. */
+static sw_status sort_edges_by_row(sw_model *m, sw_error *err)
+{
+    const size_t rows = m->grid.ny + 2;
+    sw_edge_cell *sorted = malloc((m->n_edge ? m->n_edge : 1) * sizeof *sorted);
+    if (!sorted)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory sorting edge cells");
+    for (size_t q = 0; q < m->n_edge; q++)
+        m->edge_row[m->edge[q].inner / m->stride + 1]++;
+    for (size_t j = 1; j <= rows; j++)
+        m->edge_row[j] += m->edge_row[j - 1];
+    size_t *next = calloc(rows, sizeof *next);
+    if (!next) {
+        free(sorted);
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory sorting edge cells");
+    }
+    memcpy(next, m->edge_row, rows * sizeof *next);
+    for (size_t q = 0; q < m->n_edge; q++)
+        sorted[next[m->edge[q].inner / m->stride]++] = m->edge[q];
+    free(next);
+    free(m->edge);
+    m->edge = sorted;
+    return SW_OK;
 }
 
 sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, sw_error *err)
@@ -164,10 +190,9 @@ sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, 
         if (m->edges[e] != SW_EDGE_WALL)
             cap += (e == SW_SOUTH || e == SW_NORTH) ? nx : ny;
     m->n_edge = 0;
-    if (cap == 0)
-        return SW_OK;
-    m->edge = calloc(cap, sizeof *m->edge);
-    if (!m->edge)
+    m->edge_row = calloc(ny + 3, sizeof *m->edge_row);
+    m->edge = calloc(cap ? cap : 1, sizeof *m->edge);
+    if (!m->edge || !m->edge_row)
         return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating edge cells");
 
     for (int e = 0; e < 4; e++) {
@@ -198,7 +223,7 @@ sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, 
             oc->normal_x = !along_x;
         }
     }
-    return SW_OK;
+    return sort_edges_by_row(m, err);
 }
 
 void sw_model_edge_eta(sw_model *m)

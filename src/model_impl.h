@@ -52,7 +52,9 @@ struct sw_model {
     unsigned char *wet;  /* [ny * nx] unpadded: 1 = water cell */
 
     size_t n_edge;       /* ghost cells of open and level edges */
-    sw_edge_cell *edge;  /* [n_edge] */
+    sw_edge_cell *edge;  /* [n_edge], sorted by the padded row of their inner cell */
+    size_t *edge_row;    /* [ny + 3]: the ghosts whose inner cell is in padded row j are
+                          * edge[edge_row[j] .. edge_row[j + 1]) */
 
     long long steps;     /* steps taken */
     double time;         /* simulated time, s */
@@ -68,5 +70,13 @@ sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, 
 
 /* Updates every ghost eta (see sw_edge_cell). Orphaned `omp for`. */
 void sw_model_edge_eta(sw_model *m);
+
+/* Updates the ghosts whose inner cell is in padded row j (for kernels that sweep rows once). */
+static inline void sw_model_edge_eta_row(sw_model *m, size_t j)
+{
+    sw_real *restrict eta = m->eta;
+    for (size_t q = m->edge_row[j]; q < m->edge_row[j + 1]; q++)
+        eta[m->edge[q].ghost] = m->edge[q].keep * eta[m->edge[q].ghost] + m->edge[q].take * eta[m->edge[q].inner];
+}
 
 #endif

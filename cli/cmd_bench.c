@@ -1,0 +1,101 @@
+/* cmd_bench.c - `shoreward bench`: step rates against the machine's memory bandwidth. */
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "bench.h"
+#include "cli.h"
+
+static const char *const usage_bench =
+    "Usage: shoreward bench [--size N] [--threads LIST] [--rounds R] [--no-numpy] [--json]\n"
+    "\n"
+    "Measures, in one process and in interleaved rounds so that machine noise hits every figure alike:\n"
+    "  - the STREAM triad bandwidth (McCalpin's kernel, best of 3 per round);\n"
+    "  - each layout's step on a large grid (working set >= 4 x last-level cache and >= 2 GB) and on a\n"
+    "    cache-resident grid, with and without arrival/extreme tracking, and over thread counts;\n"
+    "  - the same C-layout scheme written in plain vectorised NumPy (tools/bench_numpy.py).\n"
+    "Reports medians with the spread, the effective bandwidth (cells x steps x bytes per cell update per\n"
+    "the layout's bytes model / time) as a ratio to triad, the cost of tracking, the parallel efficiency\n"
+    "and the speed-up over NumPy. Nothing passes or fails. Needs about 6 GB of memory at the default size.\n"
+    "\n"
+    "  --size N        cells per side of the large grid (default: from the cache size)\n"
+    "  --threads LIST  thread counts for scaling, e.g. 1,2 (default: 1 .. cores)\n"
+    "  --rounds R      interleaved rounds, 3 to 32 (default 5)\n"
+    "  --no-numpy      skip the NumPy comparison\n"
+    "  --json          print the figures as one JSON object on stdout\n"
+    "\n"
+    "Example:\n"
+    "  shoreward bench --size 3000 --rounds 3\n";
+
+static void show(const char *what, void *user)
+{
+    (void)user;
+    fprintf(stderr, "  %s\n", what);
+}
+
+int cmd_bench(int argc, char **argv, const char *history)
+{
+    (void)history;
+    sw_bench_options opt = {.rounds = 5, .python = "/usr/bin/python3", .numpy_script = SW_SOURCE_DIR "/tools/bench_numpy.py",
+                            .progress = show};
+    int json = 0;
+    for (int k = 0; k < argc; k++) {
+        const char *s = argv[k];
+        const char *val = k + 1 < argc ? argv[k + 1] : NULL;
+        char *end = NULL;
+        if (!strcmp(s, "--help") || !strcmp(s, "-h")) {
+            fputs(usage_bench, stdout);
+            return 0;
+        } else if (!strcmp(s, "--json")) {
+            json = 1;
+        } else if (!strcmp(s, "--no-numpy")) {
+            opt.numpy_script = NULL;
+        } else if (!strcmp(s, "--size") && val) {
+            long n = strtol(val, &end, 10);
+            if (*end || n < 16 || n > 200000)
+                return cli_usage_error("bench", "--size takes a whole number from 16 to 200000, not '%s'", val);
+            opt.n_large = (size_t)n;
+            k++;
+        } else if (!strcmp(s, "--rounds") && val) {
+            long n = strtol(val, &end, 10);
+            if (*end || n < 3 || n > 32)
+                return cli_usage_error("bench", "--rounds takes a whole number from 3 to 32, not '%s'", val);
+            opt.rounds = (int)n;
+            k++;
+        } else if (!strcmp(s, "--threads") && val) {
+            char buf[256];
+            snprintf(buf, sizeof buf, "%s", val);
+            for (char *tok = strtok(buf, ","); tok; tok = strtok(NULL, ",")) {
+                long n = strtol(tok, &end, 10);
+                if (*end || n < 1 || n > 1024 || opt.n_threads == SW_BENCH_MAX_THREADS)
+                    return cli_usage_error("bench", "--threads takes a list of thread counts such as 1,2, not '%s'", val);
+                opt.threads[opt.n_threads++] = (int)n;
+            }
+            k++;
+        } else {
+            return cli_usage_error("bench", "unknown or incomplete option '%s'", s);
+        }
+    }
+    if (json)
+        opt.progress = NULL;
+    sw_bench_result *res = malloc(sizeof *res);
+    sw_error err = {0};
+    if (!res) {
+        fprintf(stderr, "shoreward bench: error: out of memory\n");
+        return 1;
+    }
+    if (sw_bench_run(&opt, res, &err) != SW_OK) {
+        free(res);
+        return cli_fail("bench", &err);
+    }
+    if (json) {
+        char *js = sw_bench_json(res);
+        if (js)
+            puts(js);
+        free(js);
+    } else {
+        sw_bench_print(stdout, res);
+    }
+    free(res);
+    return 0;
+}

@@ -1,0 +1,34 @@
+#!/usr/bin/python3
+"""`shoreward bench` runs end to end on a tiny grid and reports every figure for every layout.
+Timings are never checked (benchmarks are not tests); only that the figures exist and are positive.
+
+usage: test_bench.py SHOREWARD_BINARY WORK_DIR
+"""
+import json
+import os
+import subprocess
+import sys
+
+BIN = os.path.abspath(sys.argv[1])
+FAILURES = []
+
+
+def check(cond, what):
+    print(("ok   " if cond else "FAIL ") + what)
+    if not cond:
+        FAILURES.append(what)
+
+
+r = subprocess.run([BIN, "bench", "--size", "96", "--rounds", "3", "--threads", "1,2", "--json"],
+                   capture_output=True, text=True, timeout=600)
+check(r.returncode == 0, "bench runs (exit %d: %s)" % (r.returncode, r.stderr.strip()[-300:]))
+doc = json.loads(r.stdout) if r.returncode == 0 else {"layouts": []}
+check(len(doc["layouts"]) >= 2, "a row per layout (%d)" % len(doc["layouts"]))
+for lay in doc["layouts"]:
+    figs = [lay["triad_bytes_per_s"]["median"], lay["large"]["median"], lay["large_tracked"]["median"],
+            lay["small"]["median"]] + [s["median"] for s in lay["scaling"]]
+    check(all(f > 0 for f in figs) and lay["values_per_cell"] > 0,
+          "layout %s: every figure measured and positive" % lay["layout"])
+check(doc["numpy"]["rate"]["n"] == 3 and doc["numpy"]["ratio"] > 0, "NumPy comparison measured in every round")
+print("%d failed" % len(FAILURES))
+sys.exit(1 if FAILURES else 0)
