@@ -58,5 +58,6 @@ int cmd_check(int argc, char **argv, const char *history);
 int cmd_demo(int argc, char **argv, const char *history);
 int cmd_compare(int argc, char **argv, const char *history);
 int cmd_bench(int argc, char **argv, const char *history);
+int cmd_stability(int argc, char **argv, const char *history);
 
 #endif

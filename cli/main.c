@@ -14,6 +14,7 @@ static const char *const usage_main =
     "  run SCENARIO     run a scenario and write gauge series and arrival/peak maps (NetCDF)\n"
     "  check SCENARIO   validate a scenario and print the plan (grid, dt, Courant number, cost)\n"
     "  demo [DIR]       write the built-in fictional scenario into DIR and run it\n"
+    "  stability        Courant limits and wave accuracy of each grid layout (von Neumann analysis)\n"
     "  compare SCENARIO run a scenario on several grid layouts and resolutions, side by side\n"
     "  bench            measure step rates against the machine's memory bandwidth and NumPy\n"
     "\n"
@@ -33,6 +34,7 @@ static const command commands[] = {
     {"run", cmd_run},
     {"check", cmd_check},
     {"demo", cmd_demo},
+    {"stability", cmd_stability},
     {"compare", cmd_compare},
     {"bench", cmd_bench},
 };
