@@ -56,8 +56,9 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
 int cmd_run(int argc, char **argv, const char *history);
 int cmd_check(int argc, char **argv, const char *history);
 int cmd_demo(int argc, char **argv, const char *history);
+int cmd_stability(int argc, char **argv, const char *history);
 int cmd_compare(int argc, char **argv, const char *history);
 int cmd_bench(int argc, char **argv, const char *history);
-int cmd_stability(int argc, char **argv, const char *history);
+int cmd_sweep(int argc, char **argv, const char *history);
 
 #endif

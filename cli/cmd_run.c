@@ -9,6 +9,7 @@
 #include "estimate.h"
 #include "report.h"
 #include "setup.h"
+#include "sweep.h"
 
 static const char *const usage_run =
     "Usage: shoreward run SCENARIO [--out DIR] [--threads N] [--quiet] [--json]\n"
@@ -87,18 +88,24 @@ int cmd_check(int argc, char **argv, const char *history)
         return cli_fail("check", &err);
     }
     double rate = sw_estimate_rate(setup.layout, 0, 0.2);
+    sw_status swept = SW_OK;   /* a [sweep] section adds its member count, memory and time (sweep.h) */
     if (a.json) {
         char *js = sw_report_plan_json(&sc, &setup, rate);
+        if (js && sc.sweep.present)
+            swept = sw_sweep_check(&sc, rate, NULL, &js, &err);
         if (js)
             puts(js);
         free(js);
     } else {
         sw_report_plan(stdout, &sc, &setup, rate);
-        printf("\nScenario is valid.\n");
+        if (sc.sweep.present)
+            swept = sw_sweep_check(&sc, rate, stdout, NULL, &err);
+        if (swept == SW_OK)
+            printf("\nScenario is valid.\n");
     }
     sw_setup_free(&setup);
     sw_scenario_free(&sc);
-    return 0;
+    return swept == SW_OK ? 0 : cli_fail("check", &err);
 }
 
 int cmd_demo(int argc, char **argv, const char *history)

@@ -17,6 +17,7 @@ static const char *const usage_main =
     "  stability        Courant limits and wave accuracy of each grid layout (von Neumann analysis)\n"
     "  compare SCENARIO run a scenario on several grid layouts and resolutions, side by side\n"
     "  bench            measure step rates against the machine's memory bandwidth and NumPy\n"
+    "  sweep SCENARIO   sensitivity sweep: many runs with the [sweep] section's settings varied\n"
     "\n"
     "Options:\n"
     "  --help           this text; `shoreward COMMAND --help` explains a command\n"
@@ -37,6 +38,7 @@ static const command commands[] = {
     {"stability", cmd_stability},
     {"compare", cmd_compare},
     {"bench", cmd_bench},
+    {"sweep", cmd_sweep},
 };
 
 /* The command line as one string, for the history attribute; NULL when out of memory. */

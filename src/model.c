@@ -29,13 +29,18 @@ size_t sw_model_bytes_for(const sw_grid *g)
          + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell);
 }
 
-/* 64-byte aligned, zeroed array of n reals, or NULL. Free with free(). */
-static sw_real *alloc_field(size_t n)
+/* 64-byte aligned array of `rows` rows of `stride` reals, zeroed by the threads that will later
+ * work on each row (first touch places the pages near them), or NULL. Free with free(). */
+static sw_real *alloc_field(size_t rows, size_t stride)
 {
-    size_t bytes = round_up(n * sizeof(sw_real), SW_ALIGN);
+    size_t bytes = round_up(rows * stride * sizeof(sw_real), SW_ALIGN);
     sw_real *p = aligned_alloc(SW_ALIGN, bytes);
-    if (p)
-        memset(p, 0, bytes);
+    if (p) {
+        SW_OMP(parallel for schedule(static))
+        for (size_t j = 0; j < rows; j++)
+            memset(p + j * stride, 0, stride * sizeof(sw_real));
+        memset((char *)p + rows * stride * sizeof(sw_real), 0, bytes - rows * stride * sizeof(sw_real));
+    }
     return p;
 }
 
@@ -108,12 +113,12 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     m->stride = stride_for(g);
     m->n_pad = m->stride * (g->ny + 2);
 
-    m->eta = alloc_field(m->n_pad);
-    m->u = alloc_field(m->n_pad);
-    m->v = alloc_field(m->n_pad);
-    m->h = alloc_field(m->n_pad);
-    m->hx = alloc_field(m->n_pad);
-    m->hy = alloc_field(m->n_pad);
+    m->eta = alloc_field(g->ny + 2, m->stride);
+    m->u = alloc_field(g->ny + 2, m->stride);
+    m->v = alloc_field(g->ny + 2, m->stride);
+    m->h = alloc_field(g->ny + 2, m->stride);
+    m->hx = alloc_field(g->ny + 2, m->stride);
+    m->hy = alloc_field(g->ny + 2, m->stride);
     m->wet = calloc(sw_grid_cells(g), 1);
     if (!m->eta || !m->u || !m->v || !m->h || !m->hx || !m->hy || !m->wet) {
         sw_model_free(m);

@@ -176,7 +176,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
 {
     memset(res, 0, sizeof *res);
     run_ctx c = {.sc = sc, .setup = setup, .opt = opt};
-    sw_status rc = sw_make_dirs(opt->out_dir, err);
+    sw_status rc = opt->sink ? SW_OK : sw_make_dirs(opt->out_dir, err);
     if (rc != SW_OK)
         return rc;
     if (opt->threads > 0)
@@ -195,15 +195,17 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         .dt_s = setup->dt_s, .courant = setup->courant, .courant_limit = setup->courant_limit,
         .arrival_threshold_m = sc->arrival_threshold_m, .gravity_ms2 = sc->gravity_ms2,
     };
-    file_path(res->gauges_path, opt, "gauges.nc");
-    file_path(res->maps_path, opt, "maps.nc");
+    if (!opt->sink) {   /* with a sink the paths stay "" */
+        file_path(res->gauges_path, opt, "gauges.nc");
+        file_path(res->maps_path, opt, "maps.nc");
+    }
 
     rc = sw_model_create(&cfg, &c.model, err);
     if (rc == SW_OK)
         rc = sw_tracker_create(c.model, sc->arrival_threshold_m, res->threads, &c.tracker, err);
     if (rc == SW_OK)
         rc = sw_gauges_create(c.model, setup->depth_m, sc->gauges, sc->n_gauges, setup->n_samples, &c.gauges, err);
-    if (rc == SW_OK && sc->snapshot_interval_s > 0) {
+    if (rc == SW_OK && sc->snapshot_interval_s > 0 && !opt->sink) {
         file_path(res->snapshots_path, opt, "snapshots.nc");
         c.frame = malloc(sw_grid_cells(&setup->grid) * sizeof(double));
         rc = c.frame ? sw_ncw_snapshots_open(res->snapshots_path, &meta, &setup->grid, setup->depth_m,
@@ -240,19 +242,22 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
             rc = sw_fail(err, SW_ERR_UNSTABLE, "the run blew up (non-finite elevation); reduce [run] courant "
                          "or dt");
     }
+    sw_map_set maps = {0};
+    if (rc == SW_OK)
+        rc = sw_tracker_maps(c.tracker, c.model, setup->depth_m, &maps, err);
     if (rc == SW_OK) {
-        sw_map_set maps;
         sw_gauge_table table;
-        sw_tracker_maps(c.tracker, c.model, setup->depth_m, &maps);
         res->max_abs_eta_m = sw_tracker_max_abs(c.tracker);
         res->noise_index = sw_tracker_noise(c.tracker, maps.wet);
         sw_gauges_table(c.gauges, &table);
         fill_results(&c, res);
-        if (table.n_stations > 0)
+        if (opt->sink)
+            rc = opt->sink(&maps, &table, opt->sink_user, err);   /* instead of the files */
+        else if (table.n_stations > 0)
             rc = sw_ncw_gauges(res->gauges_path, &meta, &table, err);
         else
             res->gauges_path[0] = '\0';   /* no gauges, no gauge file */
-        if (rc == SW_OK)
+        if (rc == SW_OK && !opt->sink)
             rc = sw_ncw_maps(res->maps_path, &meta, &maps, err);
         if (rc == SW_OK && c.snaps) {
             rc = sw_ncw_snapshots_commit(c.snaps, err);

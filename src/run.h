@@ -9,6 +9,7 @@
 #include <signal.h>
 #include <stddef.h>
 
+#include "ncwrite.h"
 #include "scenario.h"
 #include "setup.h"
 #include "status.h"
@@ -25,6 +26,11 @@ typedef struct {
 
 typedef void (*sw_progress_fn)(const sw_progress *p, void *user);
 
+/* Receives a finished run's maps and gauge series in place of the files (see sw_run_options.sink).
+ * The arrays are valid only during the call. Returns SW_OK, or a failure that sw_run returns. */
+typedef sw_status (*sw_run_sink_fn)(const sw_map_set *maps, const sw_gauge_table *gauges, void *user,
+                                    sw_error *err);
+
 typedef struct {
     const char *out_dir;          /* folder for the output files; created if missing */
     const char *file_prefix;      /* put before each file name ("" for none; NULL = "") */
@@ -33,6 +39,10 @@ typedef struct {
     sw_progress_fn progress;      /* NULL = no progress reports */
     void *progress_user;          /* passed to progress */
     volatile sig_atomic_t *stop;  /* when it becomes non-zero the run stops (SW_ERR_INTERRUPTED); may be NULL */
+    sw_run_sink_fn sink;          /* non-NULL: hand maps and gauge series to sink and write no file at all
+                                   * (out_dir and file_prefix unused, no snapshots); sweep members use it,
+                                   * since NetCDF calls must not run in several threads at once */
+    void *sink_user;              /* passed to sink */
 } sw_run_options;
 
 /* What a gauge saw (times in s since the origin; NaN when never reached or the gauge is dry). */

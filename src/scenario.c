@@ -34,7 +34,8 @@
 #define FILE_MAX_BYTES (16u << 20)      /* a scenario is small; refuse anything above 16 MiB */
 #define KEYS_MAX 16                     /* most keys in one section's table */
 #define LABEL_MAX (SW_NAME_MAX + 16)    /* "[island <name>]" */
-#define SECTIONS_MAX (5 + SW_MAX_FEATURES + SW_MAX_SOURCES)
+#define SECTIONS_MAX (6 + SW_MAX_FEATURES + SW_MAX_SOURCES)
+#define SWEEP_ENTRIES_MAX (SW_MAX_SWEEP_PARAMS + 3)   /* parameters + design, members, seed */
 
 #define KM 1e3
 #define DAY 86400.0
@@ -225,13 +226,13 @@ static const key_def SOURCE_KEYS[] = {
       .accepted = "a variable name" },
 };
 
-typedef enum { S_RUN, S_GRID, S_EDGES, S_SEABED, S_GAUGES, S_BAY, S_ISLAND, S_SHOAL, S_SOURCE } section_type;
+typedef enum { S_RUN, S_GRID, S_EDGES, S_SEABED, S_GAUGES, S_BAY, S_ISLAND, S_SHOAL, S_SOURCE, S_SWEEP } section_type;
 
 typedef struct {
     const char *name;       /* first word of the header */
     section_type type;
     int named;              /* 1: [kind NAME], one section per name; 0: [kind], at most once */
-    const key_def *keys;    /* NULL for [gauges]: every key is a gauge name */
+    const key_def *keys;    /* NULL for [gauges] (every key is a gauge name) and [sweep] (see finish_sweep) */
     size_t n_keys;
 } section_def;
 
@@ -241,7 +242,7 @@ static const section_def SECTIONS[] = {
     { "edges", S_EDGES, 0, TABLE(EDGES_KEYS) },    { "seabed", S_SEABED, 0, TABLE(SEABED_KEYS) },
     { "gauges", S_GAUGES, 0, NULL, 0 },            { "bay", S_BAY, 1, TABLE(BAY_KEYS) },
     { "island", S_ISLAND, 1, TABLE(ISLAND_KEYS) }, { "shoal", S_SHOAL, 1, TABLE(SHOAL_KEYS) },
-    { "source", S_SOURCE, 1, TABLE(SOURCE_KEYS) },
+    { "source", S_SOURCE, 1, TABLE(SOURCE_KEYS) }, { "sweep", S_SWEEP, 0, NULL, 0 },
 };
 #define N_SECTIONS (sizeof SECTIONS / sizeof SECTIONS[0])
 
@@ -255,6 +256,13 @@ _Static_assert(sizeof(sw_edge_kind) == sizeof(int) && sizeof(sw_coast_side) == s
 /* ---- parser state -------------------------------------------------------------------------- */
 
 typedef struct parse_state parse_state;
+
+/* One `name = value` line of [sweep], kept as text until the whole file is known. */
+typedef struct {
+    char name[LINE_MAX_CHARS + 1];
+    char value[LINE_MAX_CHARS + 1];
+    int line;
+} sweep_entry;
 
 /* One section as it appeared in the file. */
 typedef struct {
@@ -279,6 +287,9 @@ struct parse_state {
     int failed;              /* a problem was recorded in err */
     int fail_line;           /* its line (INT_MAX when it has none) */
     sw_error err;
+    char bare[SW_ERROR_MSG_MAX]; /* err.msg without its "NAME:LINE: " prefix (for overrides) */
+    sweep_entry sweep[SWEEP_ENTRIES_MAX]; /* [sweep] lines as written, settled in finish_sweep */
+    size_t n_sweep;
 };
 
 /* ---- messages ------------------------------------------------------------------------------ */
@@ -296,6 +307,7 @@ static int fail_at(parse_state *ps, sw_status code, int line, const char *fmt, .
     va_start(ap, fmt);
     vsnprintf(msg, sizeof msg, fmt, ap);
     va_end(ap);
+    memcpy(ps->bare, msg, sizeof ps->bare);
     if (line > 0)
         sw_fail(&ps->err, code, "%s:%d: %s", ps->name, line, msg);
     else
@@ -398,6 +410,28 @@ static sw_status check_origin(const char *v, char *why, size_t n)
     return SW_OK;
 }
 
+static int is_numeric(key_kind k)
+{
+    return k == K_NUMBER || k == K_INTEGER || k == K_LENGTH || k == K_TIME || k == K_ANGLE;
+}
+
+/* Parses `value` as a number of numeric key k (unit, whole number, range) into *v. Returns SW_OK,
+ * or SW_ERR_PARSE / SW_ERR_RANGE with the cause in why. */
+static sw_status parse_number(const key_def *k, const char *value, double *v, char *why, size_t n)
+{
+    if (sw_units_parse(value, unit_kind(k->kind), v, why, (unsigned)n) != 0)
+        return SW_ERR_PARSE;
+    if (k->kind == K_INTEGER && *v != floor(*v)) {
+        snprintf(why, n, "not a whole number (accepted: %s)", k->accepted);
+        return SW_ERR_PARSE;
+    }
+    if (k->ranged && ((k->gt ? !(*v > k->lo) : !(*v >= k->lo)) || !(*v <= k->hi))) {
+        snprintf(why, n, "out of range (accepted: %s)", k->accepted);
+        return SW_ERR_RANGE;
+    }
+    return SW_OK;
+}
+
 /* Parses `value` as key k and stores it into home. Returns SW_OK, or SW_ERR_PARSE / SW_ERR_RANGE
  * with the cause in why. Nothing is stored on failure. */
 static sw_status store_value(const key_def *k, void *home, const char *value, char *why, size_t n)
@@ -410,16 +444,9 @@ static sw_status store_value(const key_def *k, void *home, const char *value, ch
     case K_TIME:
     case K_ANGLE: {
         double v;
-        if (sw_units_parse(value, unit_kind(k->kind), &v, why, (unsigned)n) != 0)
-            return SW_ERR_PARSE;
-        if (k->kind == K_INTEGER && v != floor(v)) {
-            snprintf(why, n, "not a whole number (accepted: %s)", k->accepted);
-            return SW_ERR_PARSE;
-        }
-        if (k->ranged && ((k->gt ? !(v > k->lo) : !(v >= k->lo)) || !(v <= k->hi))) {
-            snprintf(why, n, "out of range (accepted: %s)", k->accepted);
-            return SW_ERR_RANGE;
-        }
+        sw_status st = parse_number(k, value, &v, why, n);
+        if (st != SW_OK)
+            return st;
         if (k->kind == K_INTEGER) {
             size_t iv = (size_t)v;   /* ranged: 1 .. 100000 */
             memcpy(at, &iv, sizeof iv);
@@ -520,7 +547,8 @@ static int begin_section(parse_state *ps, const char *inner, size_t n)
         n--;
     if (n == 0)
         return fail_at(ps, SW_ERR_PARSE, ps->line, "empty section header [] (accepted: run, grid, edges, "
-                                                   "seabed, gauges, bay NAME, island NAME, shoal NAME, source NAME)");
+                                                   "seabed, gauges, bay NAME, island NAME, shoal NAME, source NAME, "
+                                                   "sweep)");
     char kind[LINE_MAX_CHARS + 1];
     size_t kn = 0;
     while (kn < n && !isspace((unsigned char)inner[kn]))
@@ -544,7 +572,7 @@ static int begin_section(parse_state *ps, const char *inner, size_t n)
             return fail_at(ps, SW_ERR_PARSE, ps->line, "unknown section [%.*s]%s", (int)n, inner,
                            suggest_text(&s, hint, sizeof hint));
         return fail_at(ps, SW_ERR_PARSE, ps->line, "unknown section [%.*s] (accepted: run, grid, edges, seabed, "
-                       "gauges, bay NAME, island NAME, shoal NAME, source NAME)", (int)n, inner);
+                       "gauges, bay NAME, island NAME, shoal NAME, source NAME, sweep)", (int)n, inner);
     }
     if (def->named && nn == 0)
         return fail_at(ps, SW_ERR_PARSE, ps->line, "section [%s] needs a name, e.g. [%s %s]", kind, kind,
@@ -803,6 +831,23 @@ static int add_gauge(parse_state *ps, const char *name, const char *value)
     return 1;
 }
 
+/* [sweep] name = value: kept as text; finish_sweep reads it once every section is known. */
+static int add_sweep_entry(parse_state *ps, const char *name, const char *value)
+{
+    for (size_t i = 0; i < ps->n_sweep; i++)
+        if (strcmp(ps->sweep[i].name, name) == 0)
+            return fail_at(ps, SW_ERR_PARSE, ps->line, "[sweep] duplicate key '%s' (first on line %d, again on line %d)",
+                           name, ps->sweep[i].line, ps->line);
+    if (ps->n_sweep >= SWEEP_ENTRIES_MAX)
+        return fail_at(ps, SW_ERR_RANGE, ps->line, "[sweep] too many parameters at '%s' (accepted: at most %d)", name,
+                       SW_MAX_SWEEP_PARAMS);
+    sweep_entry *e = &ps->sweep[ps->n_sweep++];
+    snprintf(e->name, sizeof e->name, "%s", name);     /* both fit: a line is at most LINE_MAX_CHARS */
+    snprintf(e->value, sizeof e->value, "%s", value);
+    e->line = ps->line;
+    return 1;
+}
+
 /* The ini_handler: one `name = value` of the open section. `section` is ignored: the reader
  * opened the section already (and inih truncates long names). Returns 1, or 0 after recording a
  * problem. */
@@ -821,6 +866,8 @@ static int on_key(void *user, const char *section, const char *name, const char 
                        "[run], [grid], ...)", name);
     if (sec->def->type == S_GAUGES)
         return add_gauge(ps, name, value);
+    if (sec->def->type == S_SWEEP)
+        return add_sweep_entry(ps, name, value);
 
     const section_def *def = sec->def;
     const key_def *k = NULL;
@@ -992,6 +1039,396 @@ static int finish_gauges(parse_state *ps)
     return 1;
 }
 
+/* ---- [sweep] ------------------------------------------------------------------------------- */
+
+static const char *const DESIGN_WORDS[] = { "one-at-a-time", "factorial", "latin-hypercube", NULL }; /* sw_sweep_design */
+
+/* The keys of [sweep] that describe the design; every other key is a parameter. */
+static const key_def SWEEP_DESIGN_KEYS[] = {
+    { .name = "design", .kind = K_CHOICE, SC(sweep.design), .words = DESIGN_WORDS,
+      .accepted = "one-at-a-time, factorial, latin-hypercube" },
+    { .name = "members", .kind = K_INTEGER, SC(sweep.members), RANGE(2, SW_MAX_SWEEP_MEMBERS),
+      .accepted = "a whole number, 2 <= members <= 10000" },
+    { .name = "seed", .kind = K_INTEGER, .home = IN_PARSER, RANGE(0, 9007199254740991.0),
+      .accepted = "a whole number, 0 <= seed <= 9007199254740991" },
+};
+
+/* Parameters with their own meaning (sw_sweep_kind); .off is unused. */
+static const key_def SWEEP_BUILTIN_KEYS[] = {
+    { .name = "amplitude_factor", .kind = K_NUMBER, ABOVE(0, 1000), .first = SW_SWEEP_AMPLITUDE_FACTOR,
+      .accepted = "0 < amplitude_factor <= 1000" },
+    { .name = "source_x_offset", .kind = K_LENGTH, RANGE(-1e5 * KM, 1e5 * KM), .first = SW_SWEEP_SOURCE_X_OFFSET,
+      .accepted = "|source_x_offset| <= 100000 km" },
+    { .name = "source_y_offset", .kind = K_LENGTH, RANGE(-1e5 * KM, 1e5 * KM), .first = SW_SWEEP_SOURCE_Y_OFFSET,
+      .accepted = "|source_y_offset| <= 100000 km" },
+    { .name = "depth_factor", .kind = K_NUMBER, ABOVE(0, 100), .first = SW_SWEEP_DEPTH_FACTOR,
+      .accepted = "0 < depth_factor <= 100" },
+    { .name = "resolution_factor", .kind = K_NUMBER, ABOVE(0, 64), .first = SW_SWEEP_RESOLUTION_FACTOR,
+      .accepted = "0 < resolution_factor <= 64" },
+};
+
+/* Short names for [run] keys: `courant = ...` in [sweep] means `run.courant = ...`. */
+static const char *const SWEEP_ALIASES[] = { "layout", "courant", "arrival_threshold", NULL };
+
+#define SWEEP_HINT "(accepted: design, members, seed, amplitude_factor, source_x_offset, source_y_offset, " \
+                   "depth_factor, resolution_factor, layout, courant, arrival_threshold, or SECTION.KEY such as " \
+                   "grid.dx or source main.amplitude)"
+
+static void trim(char *t)
+{
+    size_t n = strlen(t), a = 0;
+    while (a < n && isspace((unsigned char)t[a]))
+        a++;
+    while (n > a && isspace((unsigned char)t[n - 1]))
+        n--;
+    memmove(t, t + a, n - a);
+    t[n - a] = '\0';
+}
+
+/* Splits "section words.key" at the last '.' into the section's kind (first word), its name (the
+ * rest, trimmed) and the key. Returns 0 when a part is missing or too long. */
+static int split_target(const char *target, char *kind, char *name, char *key)
+{
+    const char *dot = strrchr(target, '.');
+    if (!dot || strlen(target) > LINE_MAX_CHARS)
+        return 0;
+    char sect[LINE_MAX_CHARS + 1];
+    memcpy(sect, target, (size_t)(dot - target));
+    sect[dot - target] = '\0';
+    trim(sect);
+    snprintf(key, LINE_MAX_CHARS + 1, "%s", dot + 1);
+    trim(key);
+    size_t kn = 0;
+    while (sect[kn] && !isspace((unsigned char)sect[kn]))
+        kn++;
+    memcpy(kind, sect, kn);
+    kind[kn] = '\0';
+    snprintf(name, LINE_MAX_CHARS + 1, "%s", sect + kn);
+    trim(name);
+    return kind[0] && key[0] && strlen(name) < SW_NAME_MAX;
+}
+
+/* Canonical "kind name.key" / "kind.key". */
+static void join_target(char *out, size_t n, const char *kind, const char *name, const char *key)
+{
+    /* kinds and keys are short table words; names are below SW_NAME_MAX (split_target) */
+    snprintf(out, n, "%.16s%s%.63s.%.24s", kind, name[0] ? " " : "", name, key);
+}
+
+/* Reads one value of parameter p (key k) into *v; layouts as their index. */
+static sw_status sweep_value(const key_def *k, const char *text, double *v, char *why, size_t n)
+{
+    if (k->kind == K_LAYOUT) {
+        char c = (char)toupper((unsigned char)text[0]);
+        if (strlen(text) != 1 || c < 'A' || c > 'E') {
+            snprintf(why, n, "unknown layout (accepted: A, B, C, D, E)");
+            return SW_ERR_PARSE;
+        }
+        *v = (double)(c - 'A');
+        return SW_OK;
+    }
+    return parse_number(k, text, v, why, n);
+}
+
+/* Parses the values of parameter e (key k): `v1, v2, ...` or `LO .. HI` with an optional `in N`. */
+static int sweep_values(parse_state *ps, const sweep_entry *e, const key_def *k, sw_sweep_param *p)
+{
+    char text[LINE_MAX_CHARS + 1], why[512];
+    snprintf(text, sizeof text, "%s", e->value);
+    const char *dots = strstr(text, "..");
+    sw_status st;
+    if (dots) {
+        if (k->kind == K_LAYOUT)
+            return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: a layout takes a list, not a range (accepted: "
+                           "e.g. A, C)", e->name, e->value);
+        char lo[LINE_MAX_CHARS + 1], hi[LINE_MAX_CHARS + 1], count[LINE_MAX_CHARS + 1] = "";
+        memcpy(lo, text, (size_t)(dots - text));
+        lo[dots - text] = '\0';
+        snprintf(hi, sizeof hi, "%s", dots + 2);
+        char *in = strstr(hi, " in ");
+        if (in) {
+            snprintf(count, sizeof count, "%s", in + 4);
+            *in = '\0';
+            trim(count);
+        }
+        trim(lo);
+        trim(hi);
+        if (!lo[0] || !hi[0] || (in && !count[0]))
+            return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: expected a range 'LO .. HI' or 'LO .. HI in N' "
+                           "(e.g. 0.9 .. 1.1 in 3)", e->name, e->value);
+        const char *part[2] = { lo, hi };
+        double *into[2] = { &p->lo, &p->hi };
+        for (int q = 0; q < 2; q++)
+            if ((st = sweep_value(k, part[q], into[q], why, sizeof why)) != SW_OK)
+                return fail_at(ps, st, e->line, "[sweep] %s = %s: %s '%s': %s", e->name, e->value, q ? "HI" : "LO",
+                               part[q], why);
+        if (!(p->lo < p->hi))
+            return fail_at(ps, SW_ERR_RANGE, e->line, "[sweep] %s = %s: LO must be below HI (accepted: LO < HI)",
+                           e->name, e->value);
+        p->is_range = 1;
+        if (!in) {
+            if (k->kind == K_INTEGER)
+                return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: a whole-number key needs 'in N' or a list "
+                               "(e.g. %s .. %s in 3)", e->name, e->value, lo, hi);
+            p->n_levels = 0;
+            return 1;
+        }
+        char *end = NULL;
+        long nv = strtol(count, &end, 10);
+        if (end == count || *end || nv < 2 || nv > SW_MAX_SWEEP_LEVELS)
+            return fail_at(ps, SW_ERR_RANGE, e->line, "[sweep] %s = %s: 'in %s': out of range (accepted: a whole "
+                           "number of values, 2 .. %d)", e->name, e->value, count, SW_MAX_SWEEP_LEVELS);
+        p->n_levels = (size_t)nv;
+        for (size_t i = 0; i < p->n_levels; i++) {
+            double f = (double)i / (double)(p->n_levels - 1);
+            p->level[i] = i + 1 == p->n_levels ? p->hi : p->lo + (p->hi - p->lo) * f;
+            if (k->kind == K_INTEGER && p->level[i] != floor(p->level[i]))
+                return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: 'in %ld' gives %g, not a whole number "
+                               "(accepted: a count that keeps the values whole, or a list)", e->name, e->value, nv,
+                               p->level[i]);
+        }
+        return 1;
+    }
+    p->n_levels = 0;
+    for (char *item = text;; ) {
+        char *comma = strchr(item, ',');
+        if (comma)
+            *comma = '\0';
+        trim(item);
+        if (!item[0])
+            return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: an empty value in the list (accepted: values "
+                           "separated by commas, or a range LO .. HI)", e->name, e->value);
+        if (p->n_levels >= SW_MAX_SWEEP_LEVELS)
+            return fail_at(ps, SW_ERR_RANGE, e->line, "[sweep] %s: too many values (accepted: at most %d)", e->name,
+                           SW_MAX_SWEEP_LEVELS);
+        double v;
+        if ((st = sweep_value(k, item, &v, why, sizeof why)) != SW_OK)
+            return fail_at(ps, st, e->line, "[sweep] %s = %s: value '%s': %s", e->name, e->value, item, why);
+        for (size_t i = 0; i < p->n_levels; i++)
+            if (p->level[i] == v)
+                return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: value '%s' is listed twice", e->name,
+                               e->value, item);
+        p->level[p->n_levels++] = v;
+        if (!comma)
+            break;
+        item = comma + 1;
+    }
+    return 1;
+}
+
+/* Finds the section [kind name] of the file, or NULL. */
+static const section_ctx *find_named_section(const parse_state *ps, const section_def *def, const char *name)
+{
+    for (size_t i = 0; i < ps->n_sections; i++)
+        if (ps->sections[i].def == def && strcmp(ps->sections[i].name, name) == 0)
+            return &ps->sections[i];
+    return NULL;
+}
+
+/* Resolves a `section.key` parameter: the section must be in the file, the key numeric (or the
+ * layout) and in use there. Fills p->target and *kout. */
+static int sweep_key_target(parse_state *ps, const sweep_entry *e, const char *target, sw_sweep_param *p,
+                            const key_def **kout)
+{
+    char kind[LINE_MAX_CHARS + 1], name[LINE_MAX_CHARS + 1], key[LINE_MAX_CHARS + 1];
+    if (!split_target(target, kind, name, key))
+        return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: expected SECTION.KEY (e.g. grid.dx, source main.amplitude)",
+                       e->name);
+    const section_def *def = find_section_def(kind);
+    if (!def) {
+        suggestion s = { 0 };
+        for (size_t i = 0; i < N_SECTIONS; i++)
+            suggest_try(&s, kind, SECTIONS[i].name);
+        char hint[96];
+        return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: unknown section '%s'%s", e->name, kind,
+                       suggest_text(&s, hint, sizeof hint));
+    }
+    if (def->type == S_GAUGES || def->type == S_SWEEP)
+        return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: [%s] entries cannot be varied (accepted: keys of [run], "
+                       "[grid], [seabed], features and sources)", e->name, kind);
+    const section_ctx *sec = find_named_section(ps, def, name);
+    if (!sec)
+        return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: the file has no section [%s%s%s] to vary", e->name, kind,
+                       name[0] ? " " : "", name);
+    const key_def *k = NULL;
+    suggestion s = { 0 };
+    for (size_t i = 0; i < def->n_keys && !k; i++) {
+        if (strcmp(def->keys[i].name, key) == 0)
+            k = &def->keys[i];
+        else
+            suggest_try(&s, key, def->keys[i].name);
+    }
+    if (!k) {
+        char hint[96];
+        return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s has no key '%s'%s", e->name, sec->label, key,
+                       suggest_text(&s, hint, sizeof hint));
+    }
+    if (!is_numeric(k->kind) && k->kind != K_LAYOUT)
+        return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s %s is not a number (accepted: numeric keys, and "
+                       "run.layout)", e->name, sec->label, key);
+    unsigned active = 1;
+    if (def->type == S_SEABED)
+        active = ps->sc->bed_file[0] ? BED_FILE : BED_RECIPE;
+    else if (def->type == S_SOURCE)
+        active = SHAPE(((const sw_source_spec *)sec->item)->shape);
+    if (k->only && !(k->only & active))
+        return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s %s is not used by this %s", e->name, sec->label, key,
+                       def->type == S_SOURCE ? "source's shape" : "seabed");
+    join_target(p->target, sizeof p->target, kind, name, key);
+    p->kind = SW_SWEEP_KEY;
+    *kout = k;
+    return 1;
+}
+
+/* A built-in parameter that moves or scales sources needs analytic sources. */
+static int sweep_needs_sources(parse_state *ps, const sweep_entry *e)
+{
+    const sw_scenario *sc = ps->sc;
+    if (sc->n_sources == 0)
+        return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: the scenario has no [source] to change", e->name);
+    for (size_t i = 0; i < sc->n_sources; i++)
+        if (sc->sources[i].shape == SW_SOURCE_FILE)
+            return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: [source %s] (line %d) is read from a file (accepted: "
+                           "hump, ellipse and pair sources; vary a file source with its own keys)", e->name,
+                           sc->sources[i].name, sc->sources[i].line);
+    return 1;
+}
+
+/* One parameter line of [sweep]. */
+static int sweep_param(parse_state *ps, const sweep_entry *e)
+{
+    sw_sweep_spec *sw = &ps->sc->sweep;
+    if (sw->n_params >= SW_MAX_SWEEP_PARAMS)
+        return fail_at(ps, SW_ERR_RANGE, e->line, "[sweep] too many parameters at '%s' (accepted: at most %d)", e->name,
+                       SW_MAX_SWEEP_PARAMS);
+    sw_sweep_param *p = &sw->param[sw->n_params];
+    memset(p, 0, sizeof *p);
+    if (strlen(e->name) >= sizeof p->name)
+        return fail_at(ps, SW_ERR_RANGE, e->line, "[sweep] '%.40s...': name too long (accepted: at most %zu characters)",
+                       e->name, sizeof p->name - 1);
+    memcpy(p->name, e->name, strlen(e->name) + 1);   /* fits: checked above */
+    p->line = e->line;
+    const key_def *k = NULL;
+    for (size_t i = 0; i < sizeof SWEEP_BUILTIN_KEYS / sizeof SWEEP_BUILTIN_KEYS[0]; i++)
+        if (strcmp(e->name, SWEEP_BUILTIN_KEYS[i].name) == 0)
+            k = &SWEEP_BUILTIN_KEYS[i];
+    if (k) {
+        p->kind = (sw_sweep_kind)k->first;
+        if ((p->kind == SW_SWEEP_AMPLITUDE_FACTOR || p->kind == SW_SWEEP_SOURCE_X_OFFSET
+             || p->kind == SW_SWEEP_SOURCE_Y_OFFSET) && !sweep_needs_sources(ps, e))
+            return 0;
+        if (p->kind == SW_SWEEP_RESOLUTION_FACTOR && !find_section(ps, S_GRID))
+            return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] resolution_factor: the grid comes from the seabed file "
+                           "(accepted: a scenario with a [grid] section)");
+    } else if (strchr(e->name, '.')) {
+        if (!sweep_key_target(ps, e, e->name, p, &k))
+            return 0;
+    } else {
+        int alias = 0;
+        for (size_t i = 0; SWEEP_ALIASES[i]; i++)
+            alias |= strcmp(e->name, SWEEP_ALIASES[i]) == 0;
+        if (!alias) {
+            suggestion s = { 0 };
+            for (size_t i = 0; i < sizeof SWEEP_BUILTIN_KEYS / sizeof SWEEP_BUILTIN_KEYS[0]; i++)
+                suggest_try(&s, e->name, SWEEP_BUILTIN_KEYS[i].name);
+            for (size_t i = 0; SWEEP_ALIASES[i]; i++)
+                suggest_try(&s, e->name, SWEEP_ALIASES[i]);
+            for (size_t i = 0; i < sizeof SWEEP_DESIGN_KEYS / sizeof SWEEP_DESIGN_KEYS[0]; i++)
+                suggest_try(&s, e->name, SWEEP_DESIGN_KEYS[i].name);
+            char hint[96];
+            if (s.best)
+                return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] unknown key '%s'%s", e->name,
+                               suggest_text(&s, hint, sizeof hint));
+            return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] unknown key '%s' " SWEEP_HINT, e->name);
+        }
+        char target[LINE_MAX_CHARS + 1];
+        snprintf(target, sizeof target, "run.%.60s", e->name);   /* an alias: a short known word */
+        if (!sweep_key_target(ps, e, target, p, &k))
+            return 0;
+    }
+    for (size_t i = 0; i < sw->n_params; i++)
+        if (p->kind == SW_SWEEP_KEY && sw->param[i].kind == SW_SWEEP_KEY && strcmp(sw->param[i].target, p->target) == 0)
+            return fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: varies %s, as '%s' on line %d already does", e->name, p->target,
+                           sw->param[i].name, sw->param[i].line);
+    p->unit = (int)unit_kind(k->kind);
+    p->integer = k->kind == K_INTEGER;
+    p->layout = k->kind == K_LAYOUT;
+    if (!sweep_values(ps, e, k, p))
+        return 0;
+    sw->n_params++;
+    return 1;
+}
+
+/* Reads [sweep]: the design keys, then each parameter (which may name any section of the file),
+ * then the rules that tie them together. */
+static int finish_sweep(parse_state *ps)
+{
+    const section_ctx *sec = find_section(ps, S_SWEEP);
+    sw_sweep_spec *sw = &ps->sc->sweep;
+    memset(sw, 0, sizeof *sw);
+    if (!sec)
+        return 1;
+    sw->present = 1;
+    sw->line = sec->line;
+    sw->seed = 1;
+    int design_line = 0, members_line = 0, seed_line = 0;
+    char why[512];
+    for (size_t i = 0; i < ps->n_sweep; i++) {
+        const sweep_entry *e = &ps->sweep[i];
+        const key_def *k = NULL;
+        for (size_t q = 0; q < sizeof SWEEP_DESIGN_KEYS / sizeof SWEEP_DESIGN_KEYS[0]; q++)
+            if (strcmp(e->name, SWEEP_DESIGN_KEYS[q].name) == 0)
+                k = &SWEEP_DESIGN_KEYS[q];
+        if (!k)
+            continue;
+        sw_status st;
+        if (k->home == IN_PARSER) {   /* seed: an unsigned 64-bit number */
+            double v;
+            st = parse_number(k, e->value, &v, why, sizeof why);
+            if (st == SW_OK)
+                sw->seed = (unsigned long long)v;
+            seed_line = e->line;
+        } else {
+            st = store_value(k, ps->sc, e->value, why, sizeof why);
+            *(k->kind == K_CHOICE ? &design_line : &members_line) = e->line;
+        }
+        if (st != SW_OK)
+            return fail_at(ps, st, e->line, "[sweep] %s = %s: %s", e->name, e->value, why);
+    }
+    for (size_t i = 0; i < ps->n_sweep; i++) {
+        const sweep_entry *e = &ps->sweep[i];
+        if (e->line == design_line || e->line == members_line || e->line == seed_line)
+            continue;
+        if (!sweep_param(ps, e))
+            return 0;
+    }
+    const char *design = DESIGN_WORDS[sw->design];
+    if (sw->n_params == 0)
+        return fail_at(ps, SW_ERR_PARSE, sw->line, "[sweep] lists no parameter to vary " SWEEP_HINT);
+    if (sw->design == SW_SWEEP_LATIN_HYPERCUBE) {
+        if (!members_line)
+            return fail_at(ps, SW_ERR_PARSE, sw->line, "[sweep] missing key 'members' (needed with design = %s; "
+                           "accepted: 2 <= members <= %d)", design, SW_MAX_SWEEP_MEMBERS);
+        return 1;
+    }
+    if (members_line || seed_line)
+        return fail_at(ps, SW_ERR_PARSE, members_line ? members_line : seed_line, "[sweep] %s: not used with design = "
+                       "%s (only with latin-hypercube)", members_line ? "members" : "seed", design);
+    double count = 1;   /* factorial: the product of the counts; one-at-a-time: 1 + their sum (at most) */
+    for (size_t i = 0; i < sw->n_params; i++) {
+        const sw_sweep_param *p = &sw->param[i];
+        if (p->n_levels == 0)
+            return fail_at(ps, SW_ERR_PARSE, p->line, "[sweep] %s: a range needs a count with design = %s (accepted: "
+                           "LO .. HI in N, or a list of values)", p->name, design);
+        count = sw->design == SW_SWEEP_FACTORIAL ? count * (double)p->n_levels : count + (double)p->n_levels;
+    }
+    if (count > SW_MAX_SWEEP_MEMBERS)
+        return fail_at(ps, SW_ERR_RANGE, design_line ? design_line : sw->line, "[sweep] design = %s makes %.0f members "
+                       "(accepted: at most %d; use latin-hypercube with fewer members)", design, count,
+                       SW_MAX_SWEEP_MEMBERS);
+    return 1;
+}
+
 /* The rules that need the whole file, section by section in a fixed order. */
 static int finish(parse_state *ps)
 {
@@ -1020,13 +1457,15 @@ static int finish(parse_state *ps)
             break;
         }
     }
-    return finish_gauges(ps);
+    return finish_gauges(ps) && finish_sweep(ps);
 }
 
 /* ---- entry points -------------------------------------------------------------------------- */
 
-/* Parses sc->text; sc->path and sc->dir are set. On failure fills err; the caller frees. */
-static sw_status parse_text(sw_scenario *sc, sw_error *err)
+/* Parses sc->text; sc->path and sc->dir are set. On failure fills err; the caller frees. When
+ * fail_line / bare are not NULL they receive the failing line (INT_MAX: none) and the message
+ * without its "NAME:LINE: " prefix (size SW_ERROR_MSG_MAX). */
+static sw_status parse_text_ex(sw_scenario *sc, sw_error *err, int *fail_line, char *bare)
 {
     parse_state *ps = calloc(1, sizeof *ps);
     if (!ps)
@@ -1050,9 +1489,15 @@ static sw_status parse_text(sw_scenario *sc, sw_error *err)
     sw_status st = ps->failed ? ps->err.code : SW_OK;
     if (st != SW_OK && err)
         *err = ps->err;
+    if (st != SW_OK && fail_line)
+        *fail_line = ps->fail_line;
+    if (st != SW_OK && bare)
+        memcpy(bare, ps->bare, SW_ERROR_MSG_MAX);
     free(ps);
     return st;
 }
+
+static sw_status parse_text(sw_scenario *sc, sw_error *err) { return parse_text_ex(sc, err, NULL, NULL); }
 
 /* Copies src into dst (size n); SW_ERR_RANGE if it does not fit. */
 static sw_status copy_text(char *dst, size_t n, const char *src, const char *what, sw_error *err)
@@ -1193,6 +1638,310 @@ sw_status sw_scenario_resolve(const sw_scenario *sc, const char *rel, char *out,
         out[0] = '\0';
         return sw_fail(err, SW_ERR_RANGE, "%s: the path '%s' joined to '%s' has %d characters (accepted: at most %zu)",
                        sc->path, rel, sc->dir, n, out_size - 1);
+    }
+    return SW_OK;
+}
+
+/* ---- overrides ----------------------------------------------------------------------------- */
+
+/* If the cleaned line is a section header "[kind name]", fills kind and name (trimmed) and
+ * returns 1. */
+static int header_of(const char *clean, char *kind, char *name)
+{
+    if (clean[0] != '[')
+        return 0;
+    const char *close = strchr(clean, ']');
+    if (!close)
+        return 0;
+    char inner[LINE_MAX_CHARS + 1];
+    memcpy(inner, clean + 1, (size_t)(close - clean - 1));
+    inner[close - clean - 1] = '\0';
+    trim(inner);
+    size_t kn = 0;
+    while (inner[kn] && !isspace((unsigned char)inner[kn]))
+        kn++;
+    memcpy(kind, inner, kn);
+    kind[kn] = '\0';
+    snprintf(name, LINE_MAX_CHARS + 1, "%s", inner + kn);
+    trim(name);
+    return 1;
+}
+
+/* The key of a cleaned `key = value` line (text before the first '=' or ':', as inih reads it),
+ * or "" when the line holds none. */
+static void key_of(const char *clean, char *key)
+{
+    const char *sep = strpbrk(clean, "=:");
+    size_t n = sep ? (size_t)(sep - clean) : 0;
+    memcpy(key, clean, n);
+    key[n] = '\0';
+    trim(key);
+}
+
+/* One override, split and checked against the key tables. */
+typedef struct {
+    char kind[LINE_MAX_CHARS + 1], name[LINE_MAX_CHARS + 1], key[LINE_MAX_CHARS + 1];
+    const char *target, *value;
+    long header;   /* index of its section's header line, -1 until found */
+    long line;     /* index of the key's line in that section, -1 when not written */
+} ov_item;
+
+/* A line of the edited text: where it came from. */
+typedef struct {
+    size_t start, len;   /* in the original text; len includes no line break */
+    int orig;            /* original line number (1-based) */
+} text_line;
+
+/* Splits text into lines. *out is malloc'ed (caller frees). */
+static sw_status split_lines(const char *text, text_line **out, size_t *n_out, sw_error *err)
+{
+    size_t len = strlen(text), n = 1;
+    for (size_t i = 0; i < len; i++)
+        n += text[i] == '\n';
+    text_line *lines = malloc(n * sizeof *lines);
+    if (!lines)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory editing the scenario");
+    size_t k = 0, pos = 0;
+    while (pos <= len && k < n) {
+        const char *nl = memchr(text + pos, '\n', len - pos);
+        size_t l = nl ? (size_t)(nl - (text + pos)) : len - pos;
+        lines[k] = (text_line){ .start = pos, .len = l, .orig = (int)k + 1 };
+        k++;
+        pos += l + 1;
+    }
+    *out = lines;
+    *n_out = k;
+    return SW_OK;
+}
+
+/* Cleans line L of text into clean (size LINE_MAX_CHARS + 1). */
+static void clean_of(const char *text, const text_line *L, char *clean)
+{
+    size_t n = L->len > LINE_MAX_CHARS ? LINE_MAX_CHARS : L->len;
+    if (n > 0 && text[L->start + n - 1] == '\r')
+        n--;
+    clean_line(text + L->start, n, L->orig == 1, clean);
+}
+
+/* Checks each override's form and key, then finds its section and line in the text. */
+static sw_status locate_overrides(const sw_scenario *sc, const text_line *lines, size_t n_lines, ov_item *it,
+                                  const sw_override *ov, size_t n, sw_error *err)
+{
+    for (size_t j = 0; j < n; j++) {
+        ov_item *o = &it[j];
+        o->target = ov[j].target ? ov[j].target : "";
+        o->value = ov[j].value ? ov[j].value : "";
+        o->header = o->line = -1;
+        if (!split_target(o->target, o->kind, o->name, o->key))
+            return sw_fail(err, SW_ERR_USAGE, "%s: override '%s': expected SECTION.KEY (e.g. grid.dx)", sc->path,
+                           o->target);
+        const section_def *def = find_section_def(o->kind);
+        const key_def *k = NULL;
+        for (size_t i = 0; def && i < def->n_keys && !k; i++)
+            if (strcmp(def->keys[i].name, o->key) == 0)
+                k = &def->keys[i];
+        if (!k)
+            return sw_fail(err, SW_ERR_RANGE, "%s: override '%s': no such key in the scenario tables", sc->path,
+                           o->target);
+        if (!o->value[0] || strlen(o->value) > LINE_MAX_CHARS - strlen(o->key) - 3 || strchr(o->value, ';'))
+            return sw_fail(err, SW_ERR_PARSE, "%s: override %s = '%.60s': empty, too long or holding ';'", sc->path,
+                           o->target, o->value);
+        for (const char *c = o->value; *c; c++)
+            if ((unsigned char)*c < 0x20 || *c == 0x7f)
+                return sw_fail(err, SW_ERR_PARSE, "%s: override %s: control character in the value", sc->path,
+                               o->target);
+        for (size_t q = 0; q < j; q++)
+            if (!strcmp(it[q].kind, o->kind) && !strcmp(it[q].name, o->name) && !strcmp(it[q].key, o->key))
+                return sw_fail(err, SW_ERR_USAGE, "%s: override %s given twice", sc->path, o->target);
+    }
+    char kind[LINE_MAX_CHARS + 1] = "", name[LINE_MAX_CHARS + 1] = "", clean[LINE_MAX_CHARS + 1], key[LINE_MAX_CHARS + 1];
+    long header = -1;
+    for (size_t L = 0; L < n_lines; L++) {
+        clean_of(sc->text, &lines[L], clean);
+        if (header_of(clean, kind, name)) {
+            header = (long)L;
+            for (size_t j = 0; j < n; j++)
+                if (it[j].header < 0 && !strcmp(it[j].kind, kind) && !strcmp(it[j].name, name))
+                    it[j].header = header;
+            continue;
+        }
+        key_of(clean, key);
+        for (size_t j = 0; key[0] && j < n; j++)
+            if (it[j].header == header && header >= 0 && !strcmp(it[j].key, key))
+                it[j].line = (long)L;
+    }
+    for (size_t j = 0; j < n; j++)
+        if (it[j].header < 0)
+            return sw_fail(err, SW_ERR_RANGE, "%s: override %s: the scenario has no section [%s%s%s]", sc->path,
+                           it[j].target, it[j].kind, it[j].name[0] ? " " : "", it[j].name);
+    return SW_OK;
+}
+
+/* Appends n bytes to a growing buffer. */
+typedef struct {
+    char *p;
+    size_t len, cap;
+    int nomem;
+} text_buf;
+
+static void buf_add(text_buf *b, const char *s, size_t n)
+{
+    if (b->nomem)
+        return;
+    if (b->len + n + 1 > b->cap) {
+        size_t cap = (b->cap ? b->cap : 256);
+        while (b->len + n + 1 > cap)
+            cap *= 2;
+        char *q = realloc(b->p, cap);
+        if (!q) {
+            b->nomem = 1;
+            return;
+        }
+        b->p = q;
+        b->cap = cap;
+    }
+    memcpy(b->p + b->len, s, n);
+    b->len += n;
+    b->p[b->len] = '\0';
+}
+
+sw_status sw_scenario_override(const sw_scenario *sc, const sw_override *ov, size_t n, sw_scenario *out,
+                               sw_error *err)
+{
+    if (!sc || !sc->text || !out || (n && !ov))
+        return sw_fail(err, SW_ERR_USAGE, "sw_scenario_override: a parsed scenario and out are required");
+    memset(out, 0, sizeof *out);
+    text_line *lines = NULL;
+    size_t n_lines = 0;
+    ov_item *it = n ? calloc(n, sizeof *it) : NULL;
+    if (n && !it)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory editing the scenario");
+    sw_status st = split_lines(sc->text, &lines, &n_lines, err);
+    if (st == SW_OK)
+        st = locate_overrides(sc, lines, n_lines, it, ov, n, err);
+    /* which override fills each line of the new text: map[k] = -(j + 1), or the original line */
+    int *map = st == SW_OK ? malloc((n_lines + n + 1) * sizeof *map) : NULL;
+    if (st == SW_OK && !map)
+        st = sw_fail(err, SW_ERR_NOMEM, "out of memory editing the scenario");
+    text_buf b = { 0 };
+    size_t n_out = 0;
+    if (st == SW_OK) {
+        int courant = 0, dt = 0;   /* overrides of [run] courant / dt drop the other's line */
+        for (size_t j = 0; j < n; j++)
+            if (!strcmp(it[j].kind, "run") && !it[j].name[0]) {
+                courant |= !strcmp(it[j].key, "courant");
+                dt |= !strcmp(it[j].key, "dt");
+            }
+        char kind[LINE_MAX_CHARS + 1] = "", name[LINE_MAX_CHARS + 1] = "", clean[LINE_MAX_CHARS + 1];
+        char key[LINE_MAX_CHARS + 1];
+        int in_sweep = 0, in_run = 0;
+        for (size_t L = 0; L < n_lines; L++) {
+            clean_of(sc->text, &lines[L], clean);
+            int is_header = header_of(clean, kind, name);
+            if (is_header) {
+                in_sweep = !strcmp(kind, "sweep");
+                in_run = !strcmp(kind, "run") && !name[0];
+            }
+            key_of(clean, key);
+            long who = -1;
+            for (size_t j = 0; j < n; j++)
+                if (it[j].line == (long)L)
+                    who = (long)j;
+            int drop = in_sweep || (in_run && !is_header && ((courant && !dt && !strcmp(key, "dt"))
+                                                             || (dt && !courant && !strcmp(key, "courant"))));
+            if (who >= 0) {
+                buf_add(&b, it[who].key, strlen(it[who].key));
+                buf_add(&b, " = ", 3);
+                buf_add(&b, it[who].value, strlen(it[who].value));
+                map[n_out++] = -(int)(who + 1);
+            } else {
+                if (!drop)
+                    buf_add(&b, sc->text + lines[L].start, lines[L].len);
+                map[n_out++] = lines[L].orig;
+            }
+            if (L + 1 < n_lines)
+                buf_add(&b, "\n", 1);
+            for (size_t j = 0; is_header && j < n; j++)
+                if (it[j].header == (long)L && it[j].line < 0) {
+                    buf_add(&b, it[j].key, strlen(it[j].key));
+                    buf_add(&b, " = ", 3);
+                    buf_add(&b, it[j].value, strlen(it[j].value));
+                    buf_add(&b, "\n", 1);
+                    map[n_out++] = -(int)(j + 1);
+                }
+        }
+        if (b.nomem || !b.p)
+            st = sw_fail(err, SW_ERR_NOMEM, "out of memory editing the scenario");
+    }
+    if (st == SW_OK) {
+        memcpy(out->path, sc->path, sizeof out->path);
+        memcpy(out->dir, sc->dir, sizeof out->dir);
+        out->text = b.p;
+        b.p = NULL;
+        int line = INT_MAX;
+        char bare[SW_ERROR_MSG_MAX];
+        sw_error perr = { 0 };
+        st = parse_text_ex(out, &perr, &line, bare);
+        if (st != SW_OK) {
+            int at = line >= 1 && (size_t)line <= n_out ? map[line - 1] : 0;
+            if (at < 0)
+                sw_fail(err, st, "%s: override %s = %s: %s", sc->path, it[-at - 1].target, it[-at - 1].value, bare);
+            else if (at > 0)
+                sw_fail(err, st, "%s:%d: %s", sc->path, at, bare);
+            else
+                sw_fail(err, st, "%s: %s", sc->path, bare);
+            sw_scenario_free(out);
+        }
+    }
+    free(b.p);
+    free(map);
+    free(lines);
+    free(it);
+    return st;
+}
+
+/* The struct a value of section [kind name] lives in: the scenario, or its feature / source. */
+static const void *home_for(const sw_scenario *sc, const section_def *def, const key_def *k, const char *name)
+{
+    if (k->home == IN_SCENARIO)
+        return sc;
+    if (k->home != IN_ITEM)
+        return NULL;
+    if (def->type == S_SOURCE) {
+        for (size_t i = 0; i < sc->n_sources; i++)
+            if (!strcmp(sc->sources[i].name, name))
+                return &sc->sources[i];
+        return NULL;
+    }
+    sw_feature_kind fk = def->type == S_BAY ? SW_FEATURE_BAY : def->type == S_ISLAND ? SW_FEATURE_ISLAND : SW_FEATURE_SHOAL;
+    for (size_t i = 0; i < sc->n_features; i++)
+        if (sc->features[i].kind == fk && !strcmp(sc->features[i].name, name))
+            return &sc->features[i];
+    return NULL;
+}
+
+sw_status sw_scenario_value(const sw_scenario *sc, const char *target, double *out, sw_error *err)
+{
+    char kind[LINE_MAX_CHARS + 1], name[LINE_MAX_CHARS + 1], key[LINE_MAX_CHARS + 1];
+    if (!sc || !target || !out || !split_target(target, kind, name, key))
+        return sw_fail(err, SW_ERR_RANGE, "'%s': expected SECTION.KEY (e.g. grid.dx)", target ? target : "");
+    const section_def *def = find_section_def(kind);
+    const key_def *k = NULL;
+    for (size_t i = 0; def && i < def->n_keys && !k; i++)
+        if (strcmp(def->keys[i].name, key) == 0)
+            k = &def->keys[i];
+    const void *home = k ? home_for(sc, def, k, name) : NULL;
+    if (!home || (!is_numeric(k->kind) && k->kind != K_LAYOUT))
+        return sw_fail(err, SW_ERR_RANGE, "%s: %s: no such numeric key in this scenario", sc->path, target);
+    const char *at = (const char *)home + k->off;
+    if (k->kind == K_LAYOUT) {
+        *out = (double)(at[0] - 'A');
+    } else if (k->kind == K_INTEGER) {
+        size_t v;
+        memcpy(&v, at, sizeof v);
+        *out = (double)v;
+    } else {
+        memcpy(out, at, sizeof *out);
     }
     return SW_OK;
 }

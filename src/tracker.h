@@ -21,17 +21,18 @@ sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads
  * call from every thread of a parallel region (thread t uses buffer t), or outside one. */
 void sw_tracker_update(sw_tracker *t, const sw_model *m);
 
-/* Ends tracking and points maps' arrays at the tracker's (valid until sw_tracker_free); land cells
- * and never-reached arrivals read NaN. Call once; no update may follow. depth_m is the caller's still-water depth [ny * nx], stored in maps->depth_m. */
-void sw_tracker_maps(sw_tracker *t, const sw_model *m, const double *depth_m, sw_map_set *maps);
+/* Converts the running maps to double and points maps' arrays at them (valid until
+ * sw_tracker_free); land cells and never-reached arrivals read NaN. depth_m is the caller's
+ * still-water depth [ny * nx], stored in maps->depth_m. Returns SW_ERR_NOMEM on failure. */
+sw_status sw_tracker_maps(sw_tracker *t, const sw_model *m, const double *depth_m, sw_map_set *maps, sw_error *err);
 
-/* Largest |eta| seen at any water cell, m. */
+/* Largest |eta| seen at any cell, m (land cells stay 0). */
 double sw_tracker_max_abs(const sw_tracker *t);
 
 /* 1 if any update met a NaN or Inf elevation (the run blew up), else 0. Call outside parallel regions. */
 int sw_tracker_nonfinite(const sw_tracker *t);
 
-/* Grid-scale noise index of the eta_max map (after sw_tracker_maps): the RMS of eta_max minus its
+/* Grid-scale noise index of the eta_max map: the RMS of eta_max minus its
  * 1-2-1 smoothed copy (separable, weights 1/4, 1/2, 1/4 along x and y), over water cells whose eight
  * neighbours are water, divided by the RMS of eta_max there. The smoother removes the 2-cell wave
  * completely and passes long waves almost untouched, so the index measures energy near the 2 dx

@@ -1,0 +1,158 @@
+/* cmd_sweep.c - `shoreward sweep`: a sensitivity sweep of one scenario (the work is in src/sweep.c). */
+#define _POSIX_C_SOURCE 200809L
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "cli.h"
+#include "report.h"
+#include "sweep.h"
+
+static const char *const usage_sweep =
+    "Usage: shoreward sweep SCENARIO [--out DIR] [--members-parallel N] [--threads N] [--quiet] [--json]\n"
+    "\n"
+    "Runs the members of SCENARIO's [sweep] section (what varies and how: docs/sweep.md) and writes\n"
+    "into DIR (default: <scenario name>-sweep):\n"
+    "  sweep.nc    each member's parameter values, gauge arrival / peak / trough / peak time and series,\n"
+    "              maps of the earliest, median and latest arrival and its spread, eta_max percentiles\n"
+    "  sweep.md    the summary table: per gauge min / median / max arrival and peak, and which\n"
+    "              parameter moves each most\n"
+    "  members/    one file per finished member, its scenario (mNNNNN.scn) and the sweep's manifest\n"
+    "An interrupted sweep (Ctrl-C) keeps its finished members: run the same command again to resume.\n"
+    "A member that fails (for example an unstable time step) is reported and the others go on.\n"
+    "\n"
+    "  --out DIR               output folder, created if missing\n"
+    "  --members-parallel N    run N members at once, one thread each (1: one after another with all\n"
+    "                          threads); default: side by side when members are small (<= 512 x 512 cells)\n"
+    "  --threads N             threads for the whole sweep (default: all cores); results do not depend on it\n"
+    "  --quiet                 no plan and no progress line\n"
+    "  --json                  print the summary as one JSON object on stdout\n"
+    "\n"
+    "Example:\n"
+    "  shoreward sweep scenarios/sweep-demo.scn --out sweep-out\n"
+    "  tools/plot-sweep sweep-out\n";
+
+static void show_progress(const sw_sweep_progress *p, void *user)
+{
+    (void)user;
+    char ela[48], rem[48];
+    sw_format_duration(p->elapsed_s, ela, sizeof ela);
+    sw_format_duration(p->remaining_s, rem, sizeof rem);
+    fprintf(stderr, "\r  members %zu/%zu done, %zu running, m%05zu at %3.0f %%   elapsed %-12s ETA %-12s   ", p->done,
+            p->total, p->running, p->current, 100.0 * p->current_fraction, ela, rem);
+    fflush(stderr);
+}
+
+/* Takes --members-parallel N (or =N) out of argv into *n; the rest goes to rest. Returns -1 when
+ * fine, or the usage-error exit status. */
+static int take_members_parallel(int argc, char **argv, char **rest, int *n_rest, int *n)
+{
+    *n_rest = 0;
+    for (int k = 0; k < argc; k++) {
+        const char *name = "--members-parallel", *val = NULL;
+        size_t len = strlen(name);
+        if (!strncmp(argv[k], name, len) && argv[k][len] == '=')
+            val = argv[k] + len + 1;
+        else if (!strcmp(argv[k], name))
+            val = k + 1 < argc ? argv[++k] : "";
+        if (!val) {
+            rest[(*n_rest)++] = argv[k];
+            continue;
+        }
+        char *end = NULL;
+        long v = strtol(val, &end, 10);
+        if (end == val || *end || v < 1 || v > 1024)
+            return cli_usage_error("sweep", "--members-parallel takes a whole number from 1 to 1024, not '%s'", val);
+        *n = (int)v;
+    }
+    return -1;
+}
+
+int cmd_sweep(int argc, char **argv, const char *history)
+{
+    char **rest = calloc((size_t)argc + 1, sizeof *rest);
+    if (!rest)
+        return 1;
+    int n_rest = 0, members_parallel = 0;
+    int code = take_members_parallel(argc, argv, rest, &n_rest, &members_parallel);
+    cli_args a;
+    if (code < 0)
+        code = cli_parse("sweep", usage_sweep, n_rest, rest, CLI_OUT | CLI_RUN_OPTS, &a);
+    free(rest);
+    if (code >= 0)
+        return code;
+    if (!a.scenario)
+        return cli_usage_error("sweep", "%s", "needs a scenario file with a [sweep] section");
+
+    sw_scenario *sc = malloc(sizeof *sc);
+    sw_sweep_plan plan;
+    sw_sweep_summary summary;
+    sw_error err = { 0 };
+    if (!sc)
+        return 1;
+    if (sw_scenario_load(a.scenario, sc, &err) != SW_OK) {
+        free(sc);
+        return cli_fail("sweep", &err);
+    }
+    if (!sc->sweep.present) {
+        fprintf(stderr, "shoreward sweep: error: %s has no [sweep] section; docs/sweep.md says how to write one\n",
+                a.scenario);
+        sw_scenario_free(sc);
+        free(sc);
+        return 1;
+    }
+    char out[SW_PATH_MAX];
+    if (a.out)
+        snprintf(out, sizeof out, "%s", a.out);
+    else {
+        cli_default_out(a.scenario, out, sizeof out);
+        size_t n = strlen(out);
+        if (n >= 4 && !strcmp(out + n - 4, "-out"))
+            snprintf(out + n - 4, sizeof out - (n - 4), "-sweep");
+    }
+    if (sw_sweep_plan_build(sc, out, &plan, &err) != SW_OK) {
+        sw_scenario_free(sc);
+        free(sc);
+        return cli_fail("sweep", &err);
+    }
+    if (!a.json && !a.quiet) {
+        printf("Scenario   %s  (%s)\n", sc->title, sc->path);
+        sw_sweep_report_plan(stdout, &plan, a.threads, members_parallel, 0, 0);
+        printf("\n%s\n\n", sw_caution());
+        fflush(stdout);
+    }
+    cli_catch_signals();
+    int tty = isatty(STDERR_FILENO) && !a.quiet;
+    sw_sweep_options opt = {
+        .threads = a.threads, .members_parallel = members_parallel, .history = history,
+        .progress = tty ? show_progress : NULL, .stop = &cli_stop,
+    };
+    sw_status rc = sw_sweep_run(&plan, &opt, &summary, &err);
+    if (tty)
+        fputc('\n', stderr);
+    code = 0;
+    if (rc != SW_OK) {
+        code = cli_fail("sweep", &err);
+    } else {
+        if (a.json) {
+            char *js = sw_sweep_json(&plan, &summary);
+            if (js)
+                puts(js);
+            free(js);
+            fprintf(stderr, "%s\n", sw_caution());
+        } else {
+            sw_sweep_report(stdout, &plan, &summary);
+            printf("\nPictures: tools/plot-sweep %s\n", out);
+        }
+        if (summary.n_ok == 0) {
+            fprintf(stderr, "shoreward sweep: error: every member failed (causes above)\n");
+            code = 1;
+        }
+    }
+    sw_sweep_summary_free(&summary);
+    sw_sweep_plan_free(&plan);
+    sw_scenario_free(sc);
+    free(sc);
+    return code;
+}
