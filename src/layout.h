@@ -56,6 +56,10 @@ typedef struct sw_layout {
      * the two velocity components (m/s) interpolated to the centre. Land cells give 0. */
     void (*centre_row)(const sw_model *m, size_t j, double *eta, double *u, double *v);
 
+    /* Elevation at the centre of cell (i, j), m, as centre_row gives it; 0 on land. NULL when every
+     * cell stores its own elevation (then it is the stored value). */
+    double (*eta_at)(const sw_model *m, size_t i, size_t j);
+
     /* Symbols of the layout's operators for wavenumbers (k, l) (rad/m) on cells dx x dy (m). The
      * gravity-wave frequency is omega^2 = -g h (div_x grad_x + div_y grad_y). */
     void (*symbols)(double k, double l, double dx, double dy, sw_symbols *out);

@@ -6,14 +6,20 @@
 #include "layout.h"
 
 extern const sw_layout sw_layout_a;
+extern const sw_layout sw_layout_b;
 extern const sw_layout sw_layout_c;
+extern const sw_layout sw_layout_d;
+extern const sw_layout sw_layout_e;
 
 static const sw_layout *const registry[] = {
     &sw_layout_a,
+    &sw_layout_b,
     &sw_layout_c,
+    &sw_layout_d,
+    &sw_layout_e,
 };
 
-static const char *const all_names = "ABCDE";   /* the Arakawa family; not all are built yet */
+static const char *const all_names = "ABCDE";   /* the Arakawa family: names a build may lack */
 
 const sw_layout *sw_layout_find(const char *name, int *known)
 {

@@ -322,17 +322,20 @@ static void energy_conserved(const char *layout)
 static void test_energy_c(void **state) { (void)state; energy_conserved("C"); }
 static void test_energy_a(void **state) { (void)state; energy_conserved("A"); }
 
-/* Layout registry: A and C exist; B, D, E are known names not built yet; X is unknown. */
+/* Layout registry: all five Arakawa layouts are built, in order; F is unknown. */
 static void test_registry(void **state)
 {
     (void)state;
     int known = -1;
-    assert_non_null(sw_layout_find("c", &known));
-    assert_null(sw_layout_find("B", &known));
-    assert_int_equal(known, 1);
-    assert_null(sw_layout_find("X", &known));
+    for (const char *p = "abcde"; *p; p++) {
+        char name[2] = {*p, 0};
+        assert_non_null(sw_layout_find(name, &known));
+    }
+    assert_null(sw_layout_find("F", &known));
     assert_int_equal(known, 0);
-    assert_string_equal(sw_layout_names(), "A, C");
+    assert_null(sw_layout_find("CC", &known));
+    assert_int_equal(sw_layout_count(), 5);
+    assert_string_equal(sw_layout_names(), "A, B, C, D, E");
 }
 
 int main(void)

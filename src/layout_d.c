@@ -1,0 +1,295 @@
+/* layout_d.c - the Arakawa D layout: eta at cell centres, u on the north/south faces, v on the east/west
+ * faces (each velocity lies along its face, where the C layout has the other component).
+ *
+ *              u[k]                 k = padded index of cell (i, j), s = stride
+ *        +-----> ---+               u[k]: x velocity on the NORTH face of cell k
+ *        |          |               v[k]: y velocity on the EAST face of cell k
+ * v[k-1] ^  eta[k]  ^ v[k]          hx[k], hy[k]: flux depths of u[k], v[k] (see below)
+ *        |          |               u: padded rows 0..ny, columns 1..nx (+ ghosts in the halo columns)
+ *        +-----> ---+               v: padded rows 1..ny, columns 0..nx (+ ghosts in the halo rows)
+ *            u[k-s]
+ *
+ * Stencils: a velocity is half a cell from eta across its face and a whole cell along it, so each
+ * derivative is a two-cell centred difference averaged over the two rows (columns) next to the face:
+ *   D(hu)_x at eta[k] = (F[k+1] + F[k+1-s] - F[k-1] - F[k-1-s]) / (4 dx),        F = hx u,
+ *   D(hv)_y at eta[k] = (H[k+s] + H[k+s-1] - H[k-s] - H[k-s-1]) / (4 dy),        H = hy v,
+ *   G(eta)_x at u[k]  = (eta[k+1] + eta[k+1+s] - eta[k-1] - eta[k-1+s]) / (4 dx),
+ *   G(eta)_y at v[k]  = (eta[k+s] + eta[k+s+1] - eta[k-s] - eta[k-s+1]) / (4 dy),
+ * so G = -D^T and water volume and E* (layout.h) are conserved exactly.
+ *
+ * Walls (free slip). "Water" is a water cell of the grid or the ghost beside an open or level edge.
+ * u on the face between cells (i, j) and (i, j+1) flows when at least one of those two is water and
+ * its stencil is mirror-symmetric: (i-1, j) and (i+1, j) alike, (i-1, j+1) and (i+1, j+1) alike, not
+ * all dry; v likewise with the roles of x and y swapped. So along a straight wall the velocity along
+ * the wall flows (half its stencil is water), the velocity across it is held at 0 in the first cell
+ * row, and each allowed point's fluxes cancel over the water cells it feeds (exact volume). Its flux
+ * also reaches dry cells of its stencil; the continuity step keeps every dry cell at eta = 0.
+ * Control area: f = (water cells of the stencil) / 4, 1 in open water and 1/2 on a wall. As on the
+ * B layout (layout_b.c) u[k], v[k] store f * velocity and hx, hy = h_c / f, h_c = the mean depth of the
+ * one or two water cells beside the face; hx u is the true depth-times-velocity, the step has no
+ * weights, and the kinetic energy is (hx u^2 + hy v^2) / 2. A channel one cell wide (walls north and
+ * south) carries u on its two walls and no v: it is exactly the A layout in 1D.
+ * Open and level edges: ghost cells (halo) carry eta; the continuity of the edge row also reads the
+ * normal velocity on the two faces of each ghost cell along the edge, which the step sets from the
+ * edge list as a volume flux divided by the ghost's hx = h of the inner cell.
+ * Level: ghost eta = -inner eta (sw_model_edge_eta) and the inner face's flux mirrored: an exact
+ * mirror image.
+ * Open: the two-cell differences split the layout into interleaved lattices (even and odd cells
+ * along the normal), and a ghost must not feed one lattice from the other, or the edge pumps
+ * energy into the basin (growth of 1e-3 per step, found with an eigenvalue analysis of the one-step
+ * matrix). So the ghost velocity, read by the edge cell, is the outgoing wave's for the edge cell's
+ * own eta, sign sqrt(g/h) eta_inner (its energy flux c eta^2 only leaves); and the ghost eta, read by
+ * the normal velocities one cell in, is left alone by the shared update (keep = 1, take = 0) and
+ * moves by an implicit upwind step over dx towards those velocities' outgoing-wave elevation.
+ * Along an open or level edge line the velocity parallel to the edge would difference ghost
+ * elevations: it is held at 0 (hx or hy = 0 there).
+ * Semi-discrete frequency (a = k dx/2, b = l dy/2):
+ *   omega^2 = g h (sin^2 2a cos^2 b / dx^2 + cos^2 a sin^2 2b / dy^2)
+ *           = 4 g h (1 - X)(1 - Y)(X / dx^2 + Y / dy^2),   X = sin^2 a, Y = sin^2 b.
+ * With p = 1/dx^2, q = 1/dy^2 the interior maximum is at X = (2p - q)/(3p), Y = (2q - p)/(3q)
+ * (valid while p <= 2q and q <= 2p), omega^2 = 4 g h (p + q)^3 / (27 p q); otherwise on the edge
+ * X = 1/2, Y = 0 (or the reverse), omega^2 = g h max(p, q). Square cells: omega_max =
+ * sqrt(32/27) sqrt(g h) / dx at sin^2 a = sin^2 b = 1/3, Courant limit sqrt(27/8) = 1.8371 in 2D;
+ * in a channel omega_max = sqrt(g h) / dx (the 4-cell wave), limit 2.
+ * Spurious modes: every 2-cell wave along x (a = pi/2, any b) or along y has omega = 0.
+ */
+#include <math.h>
+#include <stddef.h>
+
+#include "layout.h"
+#include "model_impl.h"
+#include "omp_compat.h"
+
+static double d_max_frequency(double gh, double dx, double dy, int dims)
+{
+    double p = 1.0 / (dx * dx), q = 1.0 / (dy * dy);
+    if (dims != 2)
+        return sqrt(gh * p);
+    double w2 = p > q ? p : q;                        /* edge maximum */
+    if (p <= 2 * q && q <= 2 * p) {
+        double inner = 4.0 * (p + q) * (p + q) * (p + q) / (27.0 * p * q);
+        w2 = inner > w2 ? inner : w2;
+    }
+    return sqrt(gh * w2);
+}
+
+/* Padded index of cell (i, j), -1 <= i <= nx, -1 <= j <= ny. */
+static size_t d_pad(const sw_model *m, ptrdiff_t i, ptrdiff_t j)
+{
+    return (size_t)(j + 1) * m->stride + (size_t)(i + 1);
+}
+
+/* 1 when cell (i, j) (halo included) holds water the stencils may use: a water cell of the grid, or
+ * the ghost beside an open or level edge. *depth_m gets its depth, m (a ghost takes the inner
+ * cell's; 0 when dry). Halo corners are never water. */
+static int d_water(const sw_model *m, ptrdiff_t i, ptrdiff_t j, double *depth_m)
+{
+    const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
+    const int out_x = i < 0 || i >= nx, out_y = j < 0 || j >= ny;
+    *depth_m = 0;
+    if (out_x && out_y)
+        return 0;
+    if (out_x && m->edges[i < 0 ? SW_WEST : SW_EAST] == SW_EDGE_WALL)
+        return 0;
+    if (out_y && m->edges[j < 0 ? SW_SOUTH : SW_NORTH] == SW_EDGE_WALL)
+        return 0;
+    ptrdiff_t ii = i < 0 ? 0 : i >= nx ? nx - 1 : i;
+    ptrdiff_t jj = j < 0 ? 0 : j >= ny ? ny - 1 : j;
+    *depth_m = m->h[d_pad(m, ii, jj)];
+    return *depth_m > 0;
+}
+
+/* Flux depth (h_c / f) of the velocity on the face between cells o1 and o2 (its "own" cells), with
+ * the stencil pairs (a1, b1) and (a2, b2) that must match; 0 when it may not flow. Cells are given
+ * as (i, j) pairs. */
+static double d_face_depth(const sw_model *m, const ptrdiff_t own[4], const ptrdiff_t st[8])
+{
+    double h1, h2, d[4];
+    int w1 = d_water(m, own[0], own[1], &h1), w2 = d_water(m, own[2], own[3], &h2);
+    if (!w1 && !w2)
+        return 0;
+    int s0 = d_water(m, st[0], st[1], &d[0]), s1 = d_water(m, st[2], st[3], &d[1]);
+    int s2 = d_water(m, st[4], st[5], &d[2]), s3 = d_water(m, st[6], st[7], &d[3]);
+    int n = s0 + s1 + s2 + s3;
+    if (n == 0 || s0 != s1 || s2 != s3)
+        return 0;
+    double hc = (h1 + h2) / (w1 + w2);
+    return hc * 4.0 / n;
+}
+
+static sw_status d_prepare(sw_model *m, sw_error *err)
+{
+    const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
+    const size_t s = m->stride;
+    /* u on the north face of (i, j): own (i, j), (i, j+1); pairs (i-1, j)~(i+1, j), (i-1, j+1)~(i+1, j+1) */
+    for (ptrdiff_t j = -1; j < ny; j++)
+        for (ptrdiff_t i = 0; i < nx; i++) {
+            const ptrdiff_t own[4] = {i, j, i, j + 1};
+            const ptrdiff_t st[8] = {i - 1, j, i + 1, j, i - 1, j + 1, i + 1, j + 1};
+            /* on a south or north open/level edge line u would difference lagging ghosts: held at 0 */
+            int edge_line = (j == -1 && m->edges[SW_SOUTH] != SW_EDGE_WALL)
+                         || (j == ny - 1 && m->edges[SW_NORTH] != SW_EDGE_WALL);
+            m->hx[d_pad(m, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(m, own, st);
+        }
+    /* v on the east face of (i, j): own (i, j), (i+1, j); pairs (i, j-1)~(i, j+1), (i+1, j-1)~(i+1, j+1) */
+    for (ptrdiff_t j = 0; j < ny; j++)
+        for (ptrdiff_t i = -1; i < nx; i++) {
+            const ptrdiff_t own[4] = {i, j, i + 1, j};
+            const ptrdiff_t st[8] = {i, j - 1, i, j + 1, i + 1, j - 1, i + 1, j + 1};
+            int edge_line = (i == -1 && m->edges[SW_WEST] != SW_EDGE_WALL)
+                         || (i == nx - 1 && m->edges[SW_EAST] != SW_EDGE_WALL);
+            m->hy[d_pad(m, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(m, own, st);
+        }
+    sw_status rc = sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
+    if (rc != SW_OK)
+        return rc;
+    /* Ghost normal velocities live on the two along-edge faces of each ghost cell: the face at +t
+     * (index ghost) always, the face at -t (index ghost - t) when no ghost of the same edge owns it.
+     * Their flux depth is the inner cell's depth, so they store true velocities. */
+    for (size_t q = 0; q < m->n_edge; q++) {
+        sw_edge_cell *oc = &m->edge[q];
+        sw_real *hn = oc->normal_x ? m->hx : m->hy;
+        const size_t t = oc->normal_x ? s : 1;
+        const size_t n = oc->inner, g = oc->ghost;
+        hn[g] = m->h[n];
+        if (!(m->h[n - t] > 0))
+            hn[g - t] = m->h[n];
+        if (oc->vel != 0) {   /* open (the shared list gives level edges vel = 0) */
+            oc->keep = 1;     /* the shared update leaves the ghost alone: d_step radiates it */
+            oc->take = 0;
+        }
+    }
+    return SW_OK;
+}
+
+static void d_step(sw_model *m)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
+    const sw_real cx = (sw_real)(0.25 * m->dt / m->grid.dx_m), cy = (sw_real)(0.25 * m->dt / m->grid.dy_m);
+    const sw_real gx = (sw_real)(0.25 * m->g * m->dt / m->grid.dx_m);
+    const sw_real gy = (sw_real)(0.25 * m->g * m->dt / m->grid.dy_m);
+    const sw_real rx = (sw_real)(m->dt / m->grid.dx_m), ry = (sw_real)(m->dt / m->grid.dy_m);
+    sw_real *restrict eta = m->eta, *restrict u = m->u, *restrict v = m->v;
+    const sw_real *restrict hx = m->hx, *restrict hy = m->hy, *restrict h = m->h;
+
+    /* forward: continuity from the old velocities; a wall velocity also feeds the dry cells of its
+     * stencil, which must stay at 0 */
+    SW_OMP(for schedule(static))
+    for (size_t j = 1; j <= ny; j++) {
+        const size_t r = j * s;
+        SW_OMP(simd)
+        for (size_t i = r + 1; i <= r + nx; i++)
+            eta[i] = h[i] > 0 ? eta[i] - cx * (hx[i + 1] * u[i + 1] + hx[i + 1 - s] * u[i + 1 - s]
+                                               - hx[i - 1] * u[i - 1] - hx[i - 1 - s] * u[i - 1 - s])
+                                       - cy * (hy[i + s] * v[i + s] + hy[i + s - 1] * v[i + s - 1]
+                                               - hy[i - s] * v[i - s] - hy[i - s - 1] * v[i - s - 1])
+                              : 0;
+    }
+    sw_model_edge_eta(m);
+
+    /* backward: u on north faces (padded rows 0..ny), v on east faces (rows 1..ny) */
+    SW_OMP(for schedule(static))
+    for (size_t j = 0; j <= ny; j++) {
+        const size_t r = j * s;
+        SW_OMP(simd)
+        for (size_t i = r + 1; i <= r + nx; i++)
+            u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s]) : 0;
+        if (j > 0) {
+            SW_OMP(simd)
+            for (size_t i = r; i <= r + nx; i++)
+                v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1]) : 0;
+        }
+    }
+
+    /* ghost normal velocities on the faces of the ghost cells (see d_prepare) */
+    const sw_edge_cell *restrict oc = m->edge;
+    const size_t n_edge = m->n_edge;
+    SW_OMP(for schedule(static))
+    for (size_t q = 0; q < n_edge; q++) {
+        sw_real *vel = oc[q].normal_x ? u : v;
+        const sw_real *hn = oc[q].normal_x ? hx : hy;
+        const size_t t = oc[q].normal_x ? s : 1, g = oc[q].ghost, n = oc[q].inner;
+        /* open: the outgoing wave's velocity for the inner cells' elevation, on the face at +t their
+         * mean with the next inner cell along the edge when that is water (its flux h u = c eta leaves
+         * the inner cells, never enters them); level: the inner face's volume flux, mirrored */
+        const sw_real half = h[n + t] > 0 ? (sw_real)0.5 : 0, inv_h = 1 / h[n];
+        vel[g] = oc[q].vel * ((1 - half) * eta[n] + half * eta[n + t]) + oc[q].mirror * hn[n] * vel[n] * inv_h;
+        if (!(h[n - t] > 0))
+            vel[g - t] = oc[q].vel * eta[n] + oc[q].mirror * hn[n - t] * vel[n - t] * inv_h;
+        if (oc[q].vel != 0) {
+            /* open: the ghost eta, read by the normal velocities one cell in (n and n - t), moves by an
+             * implicit upwind step over the distance dx towards their outgoing-wave elevation,
+             * mean flux / (h sign sqrt(g h)) */
+            const sw_real f0 = hn[n] * vel[n], f1 = hn[n - t] * vel[n - t];
+            const sw_real w = (hn[n] > 0) + (hn[n - t] > 0);
+            const sw_real target = w > 0 ? (f0 + f1) / (w * h[n] * oc[q].vel) : 0;
+            const sw_real r = (sw_real)fabs(oc[q].vel) * h[n] * (oc[q].normal_x ? rx : ry);
+            eta[g] = (eta[g] + r * target) / (1 + r);
+        }
+    }
+}
+
+/* Centre values: eta as stored; velocity = the mean volume flux (hx u) on the two faces that carry it
+ * divided by the cell's depth, i.e. the depth-mean velocity at the centre. */
+static void d_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
+{
+    const size_t r = sw_pidx(m, 0, j), s = m->stride;
+    const sw_real *hx = m->hx, *hy = m->hy, *uu = m->u, *vv = m->v;
+    for (size_t i = 0; i < m->grid.nx; i++) {
+        const size_t k = r + i;
+        const double h = m->h[k];
+        if (!(h > 0)) {
+            eta[i] = u[i] = v[i] = 0;
+            continue;
+        }
+        eta[i] = m->eta[k];
+        u[i] = ((double)hx[k] * uu[k] + (double)hx[k - s] * uu[k - s]) / (2 * h);
+        v[i] = ((double)hy[k] * vv[k] + (double)hy[k - 1] * vv[k - 1]) / (2 * h);
+    }
+}
+
+/* eta at (0, 0), u at (0, +-dy/2) + whole cells, v at (+-dx/2, 0) + whole cells. */
+static void d_symbols(double k, double l, double dx, double dy, sw_symbols *o)
+{
+    double a = 0.5 * k * dx, b = 0.5 * l * dy;
+    o->div_x = o->grad_x = I * sin(2 * a) * cos(b) / dx;
+    o->div_y = o->grad_y = I * cos(a) * sin(2 * b) / dy;
+    o->v_at_u = o->u_at_v = cos(a) * cos(b);   /* four-point average across the cell corner */
+}
+
+static double d_energy(const sw_model *m)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
+    const double dx = m->grid.dx_m, dy = m->grid.dy_m;
+    const sw_real *eta = m->eta, *u = m->u, *v = m->v, *hx = m->hx, *hy = m->hy;
+    double pot = 0, kin = 0, cross = 0;
+    for (size_t j = 1; j <= ny; j++)
+        for (size_t i = j * s + 1; i <= j * s + nx; i++) {
+            double div = ((double)hx[i + 1] * u[i + 1] + (double)hx[i + 1 - s] * u[i + 1 - s]
+                          - (double)hx[i - 1] * u[i - 1] - (double)hx[i - 1 - s] * u[i - 1 - s]) / (4 * dx)
+                       + ((double)hy[i + s] * v[i + s] + (double)hy[i + s - 1] * v[i + s - 1]
+                          - (double)hy[i - s] * v[i - s] - (double)hy[i - s - 1] * v[i - s - 1]) / (4 * dy);
+            pot += (double)eta[i] * eta[i];
+            cross += eta[i] * div;
+        }
+    for (size_t j = 0; j <= ny; j++) {
+        for (size_t i = j * s + 1; i <= j * s + nx; i++)
+            kin += (double)hx[i] * u[i] * u[i];
+        if (j > 0)
+            for (size_t i = j * s; i <= j * s + nx; i++)
+                kin += (double)hy[i] * v[i] * v[i];
+    }
+    return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * dx * dy;
+}
+
+const sw_layout sw_layout_d = {
+    .name = "D",
+    .summary = "eta at centres, u on north/south faces, v on east/west faces, four-point averages",
+    .stream_values = 9,   /* eta, u, v read and written; hx, hy, h read */
+    .max_frequency = d_max_frequency,
+    .prepare = d_prepare,
+    .step = d_step,
+    .centre_row = d_centre_row,
+    .symbols = d_symbols,
+    .energy = d_energy,
+};
