@@ -2,6 +2,8 @@
  *
  * Invariant: on land cells and in the halo at walls, eta, u, v, h, hx and hy are 0 and stay 0;
  * the layouts guarantee it by giving every face next to land a zero flux depth.
+ * Time levels: after n steps the state holds eta at t_n = n dt and u, v at t_n + dt/2; a new model is
+ * the water at rest at t = 0 (start_at_rest).
  */
 #include "model.h"
 #include "model_impl.h"
@@ -78,6 +80,67 @@ double sw_model_courant(const sw_grid *g, double h_max_m, double gravity_ms2, do
     return sqrt(gravity_ms2 * h_max_m) * dt_s / d;
 }
 
+/* Every ghost elevation at the fixed point of its update (sw_edge_cell) for the present inner
+ * elevation: eta_g = keep eta_g + take eta_in solved for eta_g, i.e. take / (1 - keep) eta_in, what the
+ * ghost holds once the inner cell has been still long enough. Open edges (keep + take = 1): the inner
+ * value; level edges (keep = 0): take eta_in, the mirror -eta_in; a ghost its layout moves by a rule
+ * of its own (keep = 1, no fixed point): left as it is. */
+static void ghosts_at_rest(sw_model *m)
+{
+    for (size_t q = 0; q < m->n_edge; q++) {
+        const sw_edge_cell *oc = &m->edge[q];
+        if (oc->keep != 1)
+            m->eta[oc->ghost] = oc->take / (1 - oc->keep) * m->eta[oc->inner];
+    }
+}
+
+/* Makes the new state (eta_0 in place, u = v = 0, ghosts as allocated) the state at rest at t = 0.
+ *
+ * Forward-backward stepping keeps the velocities half a step ahead: a step makes
+ *     eta^{n+1} = eta^n - dt D(h u^{n+1/2}),   then   u^{n+3/2} = u^{n+1/2} - g dt G eta^{n+1},
+ * so after n steps the model holds eta at t_n and u at t_n + dt/2. Water at rest at t = 0 has moved by
+ * t = dt/2, to second order, to u^{1/2} = -(g dt / 2) G eta_0: one forward half momentum step. Leaving
+ * u^{1/2} = 0 instead starts the water at rest at t = dt/2: a mode with cos(theta) = 1 - p^2/2 then
+ * follows eta_n = eta_0 cos((n - 1/2) theta) / cos(theta/2) and every series lags by dt/2 (a first-order
+ * error in time); with the half step eta_1 = eta_0 - dt D(h u^{1/2}) = eta_0 (1 - p^2/2) = eta_0 cos(theta),
+ * and the two-step recursion eta_{n+1} + eta_{n-1} = (2 - p^2) eta_n gives eta_n = eta_0 cos(n theta)
+ * exactly [derived].
+ *
+ * Done through the layout's own step, run once with dt/2 while u = v = 0: the continuity half changes
+ * nothing (every flux is 0), the momentum half is the half step with the layout's own gradient, walls,
+ * flux depths and edges. The ghost cells first take their state at rest (ghosts_at_rest) and are held
+ * there during that step (keep = 1, take = 0): their updates are time steps of their own and the
+ * elevation does not move. Their velocity rule is switched off too (vel = 0): for an open edge it is
+ * the outgoing wave's velocity, which would set the water beyond the edge in motion at t = 0; a
+ * mirrored velocity (level edge, mirror = 1) follows the half step like any other. The coefficients
+ * are restored afterwards, the ghosts set at rest again (a layout's own ghost rule may have run), and
+ * the clock stays at step 0, t = 0 (the step does not tick). SW_OK, or SW_ERR_NOMEM. */
+static sw_status start_at_rest(sw_model *m, sw_error *err)
+{
+    sw_edge_cell *saved = malloc((m->n_edge ? m->n_edge : 1) * sizeof *saved);
+    if (!saved)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory starting the model at rest");
+    if (m->n_edge)
+        memcpy(saved, m->edge, m->n_edge * sizeof *saved);
+    ghosts_at_rest(m);
+    for (size_t q = 0; q < m->n_edge; q++) {
+        m->edge[q].keep = 1;
+        m->edge[q].take = 0;
+        m->edge[q].vel = 0;
+    }
+    const double dt = m->dt;
+    m->dt = 0.5 * dt;
+    m->layout->step(m);
+    m->dt = dt;
+    if (m->n_edge)
+        memcpy(m->edge, saved, m->n_edge * sizeof *saved);
+    free(saved);
+    ghosts_at_rest(m);
+    m->steps = 0;
+    m->time = 0.0;
+    return SW_OK;
+}
+
 sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *err)
 {
     *out = NULL;
@@ -138,6 +201,8 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
         }
 
     sw_status rc = m->layout->prepare(m, err);
+    if (rc == SW_OK)
+        rc = start_at_rest(m, err);
     if (rc != SW_OK) {
         sw_model_free(m);
         return rc;

@@ -6,6 +6,12 @@
  * velocities from the new eta. Cells shallower than the minimum depth are land (walls: no flow
  * across their faces); each domain edge is a wall or open (a radiation condition).
  *
+ * Time levels: after n steps (sw_model_time = n dt) the model holds eta at t_n and the velocities at
+ * t_n + dt/2, the staggering in time that makes forward-backward second order. The initial state is
+ * the water at rest at t = 0 with elevation eta0_m: sw_model_create stores the velocities of
+ * t = dt/2 that this implies (one half momentum step, model.c), so that a Fourier mode follows
+ * eta_n = eta_0 cos(n theta), cos(theta) = 1 - (omega_h dt)^2 / 2, with no start-up lag.
+ *
  * Lifecycle: sw_model_create -> sw_model_step ... -> sw_model_free. The model owns all its arrays.
  */
 #ifndef SW_MODEL_H
@@ -41,8 +47,14 @@ double sw_model_dt_limit(const sw_layout *layout, const sw_grid *g, const double
 /* The Courant number of a time step: sqrt(g h_max) dt / min(dx, dy). */
 double sw_model_courant(const sw_grid *g, double h_max_m, double gravity_ms2, double dt_s);
 
-/* Creates a model. Refuses (SW_ERR_UNSTABLE) a dt beyond the layout's stability limit, naming
- * both, unless cfg->allow_unstable; SW_ERR_RANGE when there is no water cell; SW_ERR_NOMEM.
+/* Creates a model whose initial state is at rest at t = 0 with elevation cfg->eta0_m: the velocities
+ * it stores are those of t = dt/2, -(g dt / 2) times the layout's gradient of eta0 (0 where the layout
+ * holds a velocity at 0: walls, land); the ghost cells beyond open and level edges start still, at the
+ * fixed point of their update (model.c: the edge cell's elevation, or its mirror image). Step 0, time 0.
+ * It runs the layout's step once (with dt/2): call it outside a parallel region, or inside one that has a
+ * single thread.
+ * Refuses (SW_ERR_UNSTABLE) a dt beyond the layout's stability limit, naming both, unless
+ * cfg->allow_unstable; SW_ERR_RANGE when there is no water cell; SW_ERR_NOMEM.
  * *out is NULL on failure. */
 sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *err);
 
@@ -61,7 +73,9 @@ void sw_model_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
 /* Elevation at cell centre (i, j), m. */
 double sw_model_eta(const sw_model *m, size_t i, size_t j);
 
-/* Sets the elevation at cell centre (i, j) (ignored on land). For tests and restarts. */
+/* Sets the elevation at cell centre (i, j) (ignored on land). For tests and restarts. The velocities
+ * are left as they are: after it the state is no longer the one at rest that sw_model_create made
+ * (give the elevation as cfg->eta0_m for that). */
 void sw_model_set_eta(sw_model *m, size_t i, size_t j, double eta_m);
 
 /* The layout's conserved discrete energy (see sw_layout.energy), m5 s-2. */

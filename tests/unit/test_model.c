@@ -9,7 +9,13 @@
  *    frequency w obeys lambda^2 - (2 - p^2) lambda + 1 = 0, p = w dt, so cos(W dt) = 1 - p^2/2.
  *    On the C layout in a walled channel, eta = cos(k x) at the cell centres with k = n pi / L is an
  *    exact eigenvector, with w = (2 c / dx) sin(k dx / 2).
+ *  - Start at rest [derived here and in model.c]: with u^{1/2} = -(g dt/2) G eta_0 stored at creation,
+ *    eta_1 = eta_0 - dt h D u^{1/2} = eta_0 (1 - p^2/2) = eta_0 cos(W dt), and the recursion
+ *    eta_{n+1} + eta_{n-1} = (2 - p^2) eta_n gives eta_n = eta_0 cos(n W dt) for any mode; p^2 =
+ *    -g h dt^2 (div_x grad_x + div_y grad_y) from the layout's symbols (layout.h). Left at u = 0 the
+ *    same mode would follow eta_0 cos((n - 1/2) W dt) / cos(W dt / 2): eta_1 = eta_0, a lag of dt/2.
  */
+#include <complex.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stddef.h>
@@ -75,6 +81,13 @@ static double cos_mode(double x, double y, void *user)
     (void)y;
     double *p = user;   /* p[0] = k, p[1] = amplitude */
     return p[1] * cos(p[0] * x);
+}
+
+static double sin_mode(double x, double y, void *user)
+{
+    (void)y;
+    double *p = user;   /* p[0] = k, p[1] = amplitude */
+    return p[1] * sin(p[0] * x);
 }
 
 /* Mean period from upward and downward zero crossings of eta in cell 0 over n_periods. */
@@ -322,6 +335,134 @@ static void energy_conserved(const char *layout)
 static void test_energy_c(void **state) { (void)state; energy_conserved("C"); }
 static void test_energy_a(void **state) { (void)state; energy_conserved("A"); }
 
+/* p^2 = (w dt)^2 of the plane wave (k, l) on a layout, from its symbols (layout.h). */
+static double p2_of(const sw_layout *lay, double k, double l, double d, double gh, double dt)
+{
+    sw_symbols s;
+    lay->symbols(k, l, d, d, &s);
+    return -gh * dt * dt * creal(s.div_x * s.grad_x + s.div_y * s.grad_y);
+}
+
+static double plane_wave(double x, double y, void *user)
+{
+    double *p = user;   /* k, l, amplitude */
+    return p[2] * cos(p[0] * x + p[1] * y);
+}
+
+/* Started at rest, every layout follows eta_n = eta_0 cos(n W dt) exactly [derived above]: an oblique
+ * plane wave in a walled basin, checked for n = 1 .. 6 on the cells that no edge has reached yet (one
+ * step reaches at most 2 cells on any layout, so a margin of 2n + 2 cells) and on the layout's own
+ * elevation points (E keeps none on its u,v cells). The old start (u = 0) would miss by
+ * eta_0 p^2 / 2 at n = 1, printed beside the measured error. */
+static void test_rest_start_mode(void **state)
+{
+    (void)state;
+    const size_t nx = 48, ny = 40;
+    const double d = 1000, h = 100, amp = 0.01;
+    double p[3] = {2 * PI / (9.3 * d), 2 * PI / (13.7 * d), amp};
+    for (size_t q = 0; q < sw_layout_count(); q++) {
+        const sw_layout *lay = sw_layout_at(q);
+        sw_model *m = make_model(lay->name, nx, ny, d, h, 0.9, WALLS, plane_wave, p, NULL);
+        const double p2 = p2_of(lay, p[0], p[1], d, G * h, sw_model_dt(m)), theta = acos(1 - p2 / 2);
+        double *eta0 = malloc(nx * ny * sizeof *eta0);
+        assert_non_null(eta0);
+        for (size_t k = 0; k < nx * ny; k++)
+            eta0[k] = sw_model_eta(m, k % nx, k / nx);
+        double worst = 0, first = 0;
+        size_t checked = 0;
+        for (int n = 1; n <= 6; n++) {
+            advance(m, 1, 1 + n % 2);
+            const size_t margin = 2 * (size_t)n + 2;
+            for (size_t j = margin; j + margin < ny; j++)
+                for (size_t i = margin; i + margin < nx; i++) {
+                    const double e0 = eta0[j * nx + i];
+                    if (e0 == 0)
+                        continue;   /* not an elevation point of this layout */
+                    double err = fabs(sw_model_eta(m, i, j) - e0 * cos(n * theta)) / amp;
+                    worst = fmax(worst, err);
+                    if (n == 1)
+                        first = fmax(first, err);
+                    checked++;
+                }
+        }
+        print_message("%s rest start: p^2 = %.4f, max |eta_n - eta_0 cos(n theta)| / a = %.2e (n = 1: %.2e) over %zu "
+                      "values; a start with u = 0 misses by up to %.2e at n = 1\n",
+                      lay->name, p2, worst, first, checked, p2 / 2);
+        assert_true(checked > 1000);
+        assert_true(p2 > 0.05);   /* the old start's error would be far above the tolerance */
+        assert_true(worst < 1e-12);
+        free(eta0);
+        sw_model_free(m);
+    }
+}
+
+/* Exact eigenvectors that reach the edges: the C quarter wave cos(k x), k = pi / (2 L), against a level
+ * edge (the ghost must start at -eta_0 for the half step to see the mode's gradient on the edge face),
+ * and A's sin(k x) between two level edges (test_stability.c: the ghosts hold -eta and the mirrored
+ * velocity). Every cell follows eta_0 cos(n W dt) for 300 steps, W dt from the symbols. */
+static void rest_start_edges(const char *layout, double k, const sw_edge_kind edges[4], int sine)
+{
+    const size_t nx = 40;
+    const double d = 1000, h = 50, amp = 0.01;
+    double pk[2] = {k, amp};
+    sw_model *m = make_model(layout, nx, 1, d, h, 0.9, edges, sine ? sin_mode : cos_mode, pk, NULL);
+    const double p2 = p2_of(sw_model_layout(m), k, 0, d, G * h, sw_model_dt(m)), theta = acos(1 - p2 / 2);
+    double eta0[40], worst = 0, first = 0;
+    for (size_t i = 0; i < nx; i++)
+        eta0[i] = sw_model_eta(m, i, 0);
+    for (int n = 1; n <= 300; n++) {
+        advance(m, 1, 1);
+        for (size_t i = 0; i < nx; i++) {
+            double err = fabs(sw_model_eta(m, i, 0) - eta0[i] * cos(n * theta)) / amp;
+            worst = fmax(worst, err);
+            if (n == 1)
+                first = fmax(first, err);
+        }
+    }
+    print_message("%s %s against level edges: max |eta_n - eta_0 cos(n theta)| / a = %.2e over 300 steps "
+                  "(n = 1: %.2e; a start with u = 0 misses by %.2e at n = 1)\n",
+                  layout, sine ? "sin(k x)" : "cos(k x)", worst, first, p2 / 2);
+    assert_true(p2 > 1e-3);
+    assert_true(worst < 1e-10);
+    sw_model_free(m);
+}
+static void test_rest_start_level_c(void **state)
+{
+    (void)state;
+    rest_start_edges("C", PI / (2 * 40e3), LEVEL_EAST, 0);
+    rest_start_edges("C", 5 * PI / (2 * 40e3), LEVEL_EAST, 0);
+}
+static void test_rest_start_level_a(void **state)
+{
+    (void)state;
+    const sw_edge_kind level_we[4] = {SW_EDGE_LEVEL, SW_EDGE_LEVEL, SW_EDGE_WALL, SW_EDGE_WALL};
+    rest_start_edges("A", 10 * PI / 40e3, level_we, 1);
+}
+
+/* A level raised uniformly, at rest, with all edges open, stays at rest on C: each open ghost starts at
+ * the elevation of its edge cell (the fixed point of the radiation update, model.c), so no face sees a
+ * gradient. A ghost started at 0 would drain it through the edges. */
+static void test_rest_start_open_still(void **state)
+{
+    (void)state;
+    double p[2] = {0, 0.5};   /* cos(0 x): a uniform 0.5 m */
+    sw_model *m = make_model("C", 30, 20, 1000, 100, 0.9, OPEN, cos_mode, p, NULL);
+    advance(m, 200, 2);
+    double worst = 0, e[30], u[30], v[30], speed = 0;
+    for (size_t j = 0; j < 20; j++) {
+        sw_model_centre_row(m, j, e, u, v);
+        for (size_t i = 0; i < 30; i++) {
+            worst = fmax(worst, fabs(e[i] - 0.5));
+            speed = fmax(speed, hypot(u[i], v[i]));
+        }
+    }
+    print_message("C uniform 0.5 m, open edges, 200 steps: max |eta - 0.5| = %.2e m, max speed %.2e m/s\n", worst,
+                  speed);
+    assert_true(worst < 1e-12);
+    assert_true(speed < 1e-12);
+    sw_model_free(m);
+}
+
 /* Layout registry: all five Arakawa layouts are built, in order; F is unknown. */
 static void test_registry(void **state)
 {
@@ -348,6 +489,8 @@ int main(void)
         cmocka_unit_test(test_dt_refused),      cmocka_unit_test(test_threads_c),
         cmocka_unit_test(test_threads_a),       cmocka_unit_test(test_registry),
         cmocka_unit_test(test_energy_c),        cmocka_unit_test(test_energy_a),
+        cmocka_unit_test(test_rest_start_mode), cmocka_unit_test(test_rest_start_level_c),
+        cmocka_unit_test(test_rest_start_level_a), cmocka_unit_test(test_rest_start_open_still),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

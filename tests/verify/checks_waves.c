@@ -24,10 +24,10 @@ static const sw_edge_kind WALLS[4] = {SW_EDGE_WALL, SW_EDGE_WALL, SW_EDGE_WALL, 
  * round-off) and the crossings are placed by a sinusoid fit, so only round-off separates measurement
  * and answer (measured 1e-13 on C). LOOSE: the layout's edge treatment is not exact for cos(k x)
  * (on A a velocity held at 0 in the cell next to the wall): the measured period carries a boundary
- * perturbation of the symbol's frequency; measured 4e-10 .. 1.5e-7 on A at 100 cells per basin, so
- * 2e-5 leaves a factor of 100 for layouts whose walls disturb more. */
+ * perturbation of the symbol's frequency; measured 4e-10 .. 1.5e-7 on A at 100 cells per basin and
+ * 2.5e-5 on E (whose walls sit half a cell off the face, alternating along the wall), so 1e-4. */
 #define PERIOD_TOL_EXACT 1e-10
-#define PERIOD_TOL_LOOSE 2e-5
+#define PERIOD_TOL_LOOSE 1e-4
 #define IMPURITY_EXACT 1e-9
 /* Continuous formulas at 100 cells per basin: the semi-discrete phase error (k dx)^2 / 6 on A for
  * mode 3 is 1.5e-3 (less on C); 5e-3 covers it with room. */
@@ -114,14 +114,18 @@ void vc_seiche_closed(const sw_layout *lay, vr_table *t)
 void vc_seiche_open(const sw_layout *lay, vr_table *t)
 {
     const double L = 10000.0, c = sqrt(VH_G * 10.0);
-    /* east edge `level`: eta antisymmetric about the edge line, a node at x = L */
+    /* east edge `level`: eta antisymmetric about the edge line, a node at x = L; a layout may hold
+     * its node a documented fraction of a cell beyond the line (E: half a cell, on its ghost
+     * centres), so the basin it represents is that much longer: the formulas use that length */
+    const double L_eff = L + lay->level_node_offset * (L / 100.0);
     const sw_edge_kind edges[4] = {SW_EDGE_WALL, SW_EDGE_LEVEL, SW_EDGE_WALL, SW_EDGE_WALL};
     vr_add(t, "open-basin worked example h = 10 m, L = 10 km", SRC_QUARTER, "s", VR_ABSOLUTE, 4038.55, 4 * L / c, 0.01,
            NULL);
     for (int n = 0; n <= 1; n++) {
         char label[64];
         snprintf(label, sizeof label, "open-ended basin mode n = %d", n);
-        seiche_mode(lay, t, edges, (2 * n + 1) * VH_PI / (2 * L), 4 * L / ((2 * n + 1) * c), label, SRC_QUARTER);
+        seiche_mode(lay, t, edges, (2 * n + 1) * VH_PI / (2 * L_eff), 4 * L_eff / ((2 * n + 1) * c), label,
+                    SRC_QUARTER);
     }
 }
 
@@ -200,7 +204,7 @@ void vc_travel_time(const sw_layout *lay, vr_table *t)
         }
         char item[160];
         snprintf(item, sizeof item, "gauge %ld km: series vs fully discrete solution", off[q]);
-        vr_add(t, item, "forward-backward from rest: eta_n = sum over modes of eta_0 cos((n-1/2) theta) / cos(theta/2), "
+        vr_add(t, item, "forward-backward at rest at t = 0: eta_n = sum over modes of eta_0 cos(n theta), "
                         "theta from the layout's symbols [derived]",
                "1", VR_AT_MOST, 0.0, worst / top, 1e-9,
                "largest |model - reference| over %zu samples relative to the peak %.4f m; the reference is a "
@@ -209,15 +213,16 @@ void vc_travel_time(const sw_layout *lay, vr_table *t)
         vh_peak(time, r, last + 1, 1, last - 1, &t_ref, &r_peak);
         double d_m = (double)off[q] * dx;
         snprintf(item, sizeof item, "crest arrival %ld km away vs distance / sqrt(g h)", off[q]);
-        /* tolerance 1 %: the crest lags by dt/2 (start-up from rest) plus grid dispersion; on A at
-         * 100 km that is 3.2 s + 0.8 s of 505 s (0.8 %), on C 0.35 % */
-        vr_add(t, item, SRC_SPEED, "s", VR_RELATIVE, d_m / c, t_peak[q], 1e-2,
-               "crest of the eastward half (e-folding 20 cells); lags by dt/2 = %.3g s (forward-backward started "
-               "from rest) plus grid dispersion; crest of the fully discrete solution at %.3f s", 0.5 * dt, t_ref);
+        /* tolerance 0.3 %: the model starts at rest at t = 0 (no start-up lag), so the crest is late by grid
+         * dispersion alone, the same fraction at every distance: A and E 0.149 %, D 0.079 %, C 0.037 %,
+         * B 0.012 %. (Started with u = 0 it was dt/2 later: 0.8 % on A at 100 km, and 1 % was asserted.) */
+        vr_add(t, item, SRC_SPEED, "s", VR_RELATIVE, d_m / c, t_peak[q], 3e-3,
+               "crest of the eastward half (e-folding 20 cells); late by grid dispersion only (at rest at t = 0, "
+               "dt = %.3g s); crest of the fully discrete solution at %.3f s", dt, t_ref);
     }
     vr_add(t, "crest travel time between gauges 100 km and 400 km vs 300 km / sqrt(g h)", SRC_SPEED, "s",
            VR_RELATIVE, 300e3 / c, t_peak[2] - t_peak[0], 3e-3,
-           "differences remove the start-up lag; what is left is grid dispersion of the 20-cell pulse (A: the "
+           "independent of the start; what is measured is grid dispersion of the 20-cell pulse (A: the "
            "crest moves near the group velocity, (c/dx) cos(k dx) on A, 0.15 %% slow; C 0.04 %%)");
 done:
     free(series);
@@ -319,8 +324,8 @@ void vc_shoaling(const sw_layout *lay, vr_table *t)
 /* Error of the (1, 1) standing mode of a closed square basin at n cells a side. */
 typedef struct {
     double period_err;   /* |T - T_exact| / T_exact */
-    double field_err;    /* max |eta - exact(t_n - dt/2)| / amplitude at the end */
-    double field_err_t;  /* the same against exact(t_n) */
+    double field_err_t;  /* max |eta - exact(t_n)| / amplitude at the end */
+    double field_err;    /* the same against exact(t_n - dt/2), what a start lagging by dt/2 would match */
 } conv_result;
 
 static sw_status conv_run(const sw_layout *lay, size_t n, conv_result *res, sw_error *err)
@@ -374,8 +379,8 @@ static sw_status conv_run(const sw_layout *lay, size_t n, conv_result *res, sw_e
 }
 
 /* Error of a Gaussian pulse (e-folding b = w cells) in a channel 4 cells wide, 100 m deep, after
- * it travelled 10 b each way: against d'Alembert's solution (f(x - c t) + f(x + c t)) / 2 at
- * t_n - dt/2 (err) and at t_n (err_t), max over the cells relative to the amplitude. No edge is
+ * it travelled 10 b each way: against d'Alembert's solution (f(x - c t) + f(x + c t)) / 2 at t_n
+ * (err_t) and at t_n - dt/2 (err_half), max over the cells relative to the amplitude. No edge is
  * reached: this measures the interior stencil. */
 static sw_status pulse_run(const sw_layout *lay, size_t w, double *err_half, double *err_t, sw_error *err)
 {
@@ -438,8 +443,8 @@ void vc_convergence(const sw_layout *lay, vr_table *t)
                            "second order of centred differences and forward-backward [derived]";
     const char *src_pulse = "d'Alembert: eta = (f(x - c t) + f(x + c t)) / 2, c = sqrt(g h): Lamb (1932) ch. VIII [memory]; "
                             "second order [derived]";
-    const char *lag = "started from rest, forward-backward lags by dt/2 (eta_n = eta_0 cos((n-1/2) theta) / cos(theta/2)), "
-                      "a first-order error in time";
+    const char *lag = "the model starts at rest at t = 0 (eta_n = eta_0 cos(n theta)); against t_n - dt/2, where a start "
+                      "with u = 0 would put it, the error is first order in time";
     for (int q = 0; q < 2; q++) {
         char item[160];
         double order = log2(r[q].period_err / r[q + 1].period_err);
@@ -449,24 +454,25 @@ void vc_convergence(const sw_layout *lay, vr_table *t)
     }
     for (int q = 0; q < 2; q++) {
         char item[160];
-        double order = log2(pe[q] / pe[q + 1]), order_t = log2(pe_t[q] / pe_t[q + 1]);
-        snprintf(item, sizeof item, "open-water pulse: field error order at t_n - dt/2, %zu -> %zu cells per width",
+        double order_t = log2(pe_t[q] / pe_t[q + 1]), order = log2(pe[q] / pe[q + 1]);
+        snprintf(item, sizeof item, "open-water pulse: field error order at t_n, %zu -> %zu cells per width",
                  widths[q], widths[q + 1]);
-        vr_add(t, item, src_pulse, "1", VR_AT_LEAST, 2.0, order, 1.8,
-               "max errors %.3e -> %.3e of the amplitude. Against the exact field at t_n itself: %.3e -> %.3e, "
-               "order %.2f: %s", pe[q], pe[q + 1], pe_t[q], pe_t[q + 1], order_t, lag);
+        vr_add(t, item, src_pulse, "1", VR_AT_LEAST, 2.0, order_t, 1.8,
+               "max errors %.3e -> %.3e of the amplitude (measured order 1.97-2.11 on A-E). Against t_n - dt/2: "
+               "%.3e -> %.3e, order %.2f: %s", pe_t[q], pe_t[q + 1], pe[q], pe[q + 1], order, lag);
     }
     for (int q = 0; q < 2; q++) {
         char item[160];
-        double order = log2(r[q].field_err / r[q + 1].field_err);
         double order_t = log2(r[q].field_err_t / r[q + 1].field_err_t);
-        snprintf(item, sizeof item, "closed basin: field error order at t_n - dt/2, %zu -> %zu cells", sizes[q],
-                 sizes[q + 1]);
-        /* walls may limit the max-norm order to one: a layout whose wall sits at different places on
-         * its decoupled sub-grids (A: u held at 0 one cell inside on one of them) converges at 1-1.5 */
-        vr_add(t, item, src_mode, "1", VR_AT_LEAST, 2.0, order, 1.0,
-               "max errors %.3e -> %.3e; walls can limit this to first order, so at least 1 is asserted (second "
-               "order is shown by the period and the open-water pulse). Against t_n itself: %.3e -> %.3e, order %.2f",
-               r[q].field_err, r[q + 1].field_err, r[q].field_err_t, r[q + 1].field_err_t, order_t);
+        double order = log2(r[q].field_err / r[q + 1].field_err);
+        snprintf(item, sizeof item, "closed basin: field error order at t_n, %zu -> %zu cells", sizes[q], sizes[q + 1]);
+        /* walls may limit the max-norm order: a layout whose wall sits at different places on its
+         * decoupled sub-grids (A and E: u held at 0 one cell inside on one of them) measures 1.28-1.47,
+         * B, C, D 1.49-2.00; at least 1.2 is asserted. (Measured against t_n - dt/2 while the model
+         * started with u = 0: 1.05-1.98, and at least 1 was asserted.) */
+        vr_add(t, item, src_mode, "1", VR_AT_LEAST, 2.0, order_t, 1.2,
+               "max errors %.3e -> %.3e; walls can lower the max-norm order (A, E 1.3-1.5), so at least 1.2 is asserted "
+               "(second order is shown by the period and the open-water pulse). Against t_n - dt/2: %.3e -> %.3e, "
+               "order %.2f", r[q].field_err_t, r[q + 1].field_err_t, r[q].field_err, r[q + 1].field_err, order);
     }
 }

@@ -251,11 +251,11 @@ sw_status vh_discrete_pulse_1d(const sw_layout *lay, double dx, double dy, doubl
             free(cosq);
             return sw_fail(err, SW_ERR_UNSTABLE, "discrete reference: a mode with k dx = %.3f is unstable", k * dx);
         }
-        double amp = w * spec / cos(0.5 * theta);
+        double amp = w * spec;
         for (size_t q = 0; q < n_off; q++)
             cosq[q] = amp * cos(k * (double)off[q] * dx);
         for (long n = 0; n <= n_steps; n++) {
-            double r = cos(((double)n - 0.5) * theta);
+            double r = cos((double)n * theta);   /* at rest at t = 0 (harness.h) */
             for (size_t q = 0; q < n_off; q++)
                 out[q * len + (size_t)n] += cosq[q] * r;
         }

@@ -7,9 +7,12 @@
  * Fully discrete answers [derived]: forward-backward stepping (eta first, then velocities) maps a
  * Fourier mode with p^2 = -g h dt^2 (div_x grad_x + div_y grad_y) (the layout's symbols) through a
  * 2 x 2 matrix of trace 2 - p^2 and determinant 1, so its eigenvalues are exp(+-i theta) with
- * cos(theta) = 1 - p^2 / 2 (neutral while p <= 2). Started at rest (u = 0) the elevation after n
- * steps is  eta_n = eta_0 cos((n - 1/2) theta) / cos(theta / 2)  (Chebyshev recursion on the matrix
- * powers: M^n = (sin(n theta) M - sin((n - 1) theta) I) / sin(theta)).
+ * cos(theta) = 1 - p^2 / 2 (neutral while p <= 2). Started at rest at t = 0 (sw_model_create stores
+ * the velocity of t = dt/2, u^{1/2} = -(g dt / 2) G eta_0, model.h) the elevation after n steps is
+ *     eta_n = eta_0 cos(n theta)
+ * (Chebyshev recursion on the matrix powers, M^n = (sin(n theta) M - sin((n - 1) theta) I) / sin(theta),
+ * with eta_1 = eta_0 (1 - p^2 / 2) = eta_0 cos(theta)). A start with u = 0 stored instead would give
+ * eta_0 cos((n - 1/2) theta) / cos(theta / 2): each mode dt/2 late and larger by 1 / cos(theta / 2).
  */
 #ifndef VH_HARNESS_H
 #define VH_HARNESS_H
@@ -109,8 +112,8 @@ void vh_peak(const double *t, const double *y, size_t n, size_t i0, size_t i1, d
 /* Deterministic pseudo-random numbers in [-1, 1) (a 64-bit linear congruential generator). */
 double vh_noise(unsigned long long *state);
 
-/* Elevation of the fully discrete solution on an unbounded grid of x-waves (uniform in y) started at
- * rest from the sampled pulse eta0(x_m) = exp(-(m dx / b)^2), m the cell offset from the pulse's
+/* Elevation of the fully discrete solution on an unbounded grid of x-waves (uniform in y) at rest at
+ * t = 0 (eta_n = eta_0 cos(n theta) per mode) from the sampled pulse eta0(x_m) = exp(-(m dx / b)^2), m the cell offset from the pulse's
  * centre cell: for each of n_off offsets off[q] (cells) and steps 0 .. n_steps, into
  * out[q * (n_steps + 1) + n]. It inverts the discrete-time Fourier transform of the samples by the
  * trapezoidal rule on n_quad points of [0, pi/dx] (exact for the trigonometric polynomials involved

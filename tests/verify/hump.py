@@ -40,12 +40,12 @@ OFF_GRID = (21.3e3, 0.4e3)           # one gauge between cell centres (bilinear 
 WINDOW = 4 * B                       # a gauge is compared until the crest is 4 widths past it
 
 # Tolerances (docs/verification.md). Series error = max |model - exact| / exact peak at the gauge.
-# Forward-backward started from rest lags the exact solution by dt/2 (harness.h), so the model is
-# compared with the exact field at t - dt/2: what is left is grid dispersion and anisotropy,
-# measured up to 8.0 % on A (along the axis at 100 km: 10 cells per e-folding width) and 2.0 % on C.
-# Against the recorded times the bound adds the lag's own effect, computed from the exact solution:
-# max |exact(t) - exact(t - dt/2)| / peak (triangle inequality), 10 % on A and 5 % on C here.
-SERIES_TOL_SHIFTED = 0.10
+# The model starts at rest at t = 0 (model.h: no start-up lag), so each series is compared with the
+# exact field at its recorded times: what is left is grid dispersion and anisotropy, measured up to
+# 7.8 % on A and E (along the axis at 100 km: 10 cells per e-folding width), 4.3 % on D, 3.9 % on B and
+# 1.9 % on C. (While the model started with u = 0 it lagged by dt/2 and these figures held only
+# against the exact field at t - dt/2; at the recorded times the lag alone made 5-13 % of the peak.)
+SERIES_TOL = 0.10
 SLOPE_EXACT_TOL = 0.04               # log-log slope of the peaks vs the exact solution's (A: 0.024 off)
 SLOPE_ASYMPTOTIC_TOL = 0.05          # ... vs -1/2 (the exact slope over 40-100 km is -0.485)
 
@@ -181,15 +181,11 @@ def main():
         top = float(np.max(np.abs(ex)))
         err = float(np.max(np.abs(ys - ex))) / top
         err_shift = float(np.max(np.abs(ys - ex_shift))) / top
-        lag = float(np.max(np.abs(ex - ex_shift))) / top
-        rows.add(f"gauge '{name}' (r = {r / 1e3:.1f} km): series vs exact at t - dt/2", SRC_EXACT, "1", "at most", 0.0,
-                 err_shift, SERIES_TOL_SHIFTED,
-                 f"max |model - exact| over {len(ts)} samples / exact peak {top:.4f} m; forward-backward from rest "
-                 f"lags by dt/2 (dt = {dt:.3g} s); what is left is grid dispersion and anisotropy")
         rows.add(f"gauge '{name}' (r = {r / 1e3:.1f} km): series vs exact at the recorded times", SRC_EXACT, "1",
-                 "at most", 0.0, err, SERIES_TOL_SHIFTED + lag,
-                 f"tolerance = {SERIES_TOL_SHIFTED} + the lag's own effect {lag:.4f} (max |exact(t) - exact(t - dt/2)|"
-                 " / peak)")
+                 "at most", 0.0, err, SERIES_TOL,
+                 f"max |model - exact| over {len(ts)} samples / exact peak {top:.4f} m; the model starts at rest at "
+                 f"t = 0 (dt = {dt:.3g} s), so what is left is grid dispersion and anisotropy; against the exact "
+                 f"field at t - dt/2 (a start lagging by dt/2) it would be {err_shift:.4f}")
         peaks.append(float(np.max(ys)))
 
     # the run's own gauge statistics (followed at every step) must match its series (sampled at every step)
