@@ -56,32 +56,6 @@ static double b_max_frequency(double gh, double dx, double dy, int dims)
     return 2.0 * sqrt(gh) / d;
 }
 
-/* Padded index of cell (i, j), -1 <= i <= nx, -1 <= j <= ny. */
-static size_t b_pad(const sw_model *m, ptrdiff_t i, ptrdiff_t j)
-{
-    return (size_t)(j + 1) * m->stride + (size_t)(i + 1);
-}
-
-/* 1 when cell (i, j) (halo included) holds water the stencils may use: a water cell of the grid, or
- * the ghost beside an open or level edge (it needs a water cell inside). *depth_m gets its depth, m
- * (a ghost takes the inner cell's). Halo corners are never water. */
-static int b_water(const sw_model *m, ptrdiff_t i, ptrdiff_t j, double *depth_m)
-{
-    const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
-    const int out_x = i < 0 || i >= nx, out_y = j < 0 || j >= ny;
-    *depth_m = 0;
-    if (out_x && out_y)
-        return 0;
-    if (out_x && m->edges[i < 0 ? SW_WEST : SW_EAST] == SW_EDGE_WALL)
-        return 0;
-    if (out_y && m->edges[j < 0 ? SW_SOUTH : SW_NORTH] == SW_EDGE_WALL)
-        return 0;
-    ptrdiff_t ii = i < 0 ? 0 : i >= nx ? nx - 1 : i;
-    ptrdiff_t jj = j < 0 ? 0 : j >= ny ? ny - 1 : j;
-    *depth_m = m->h[b_pad(m, ii, jj)];
-    return *depth_m > 0;
-}
-
 static sw_status b_prepare(sw_model *m, sw_error *err)
 {
     const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
@@ -89,8 +63,8 @@ static sw_status b_prepare(sw_model *m, sw_error *err)
     for (ptrdiff_t j = -1; j < ny; j++)
         for (ptrdiff_t i = -1; i < nx; i++) {
             double d[4];
-            int sw = b_water(m, i, j, &d[0]), se = b_water(m, i + 1, j, &d[1]);
-            int nw = b_water(m, i, j + 1, &d[2]), ne = b_water(m, i + 1, j + 1, &d[3]);
+            int sw = sw_model_water_at(m, i, j, &d[0]), se = sw_model_water_at(m, i + 1, j, &d[1]);
+            int nw = sw_model_water_at(m, i, j + 1, &d[2]), ne = sw_model_water_at(m, i + 1, j + 1, &d[3]);
             int n = sw + se + nw + ne;
             if (n == 0)
                 continue;
@@ -104,7 +78,7 @@ static sw_status b_prepare(sw_model *m, sw_error *err)
                 v_ok = 0;
             if ((j == -1 && m->edges[SW_SOUTH] != SW_EDGE_WALL) || (j == ny - 1 && m->edges[SW_NORTH] != SW_EDGE_WALL))
                 u_ok = 0;
-            size_t c = b_pad(m, i, j);
+            size_t c = sw_pidx_halo(m, i, j);
             m->hx[c] = u_ok ? (sw_real)per_f : 0;
             m->hy[c] = v_ok ? (sw_real)per_f : 0;
         }

@@ -73,43 +73,17 @@ static double d_max_frequency(double gh, double dx, double dy, int dims)
     return sqrt(gh * w2);
 }
 
-/* Padded index of cell (i, j), -1 <= i <= nx, -1 <= j <= ny. */
-static size_t d_pad(const sw_model *m, ptrdiff_t i, ptrdiff_t j)
-{
-    return (size_t)(j + 1) * m->stride + (size_t)(i + 1);
-}
-
-/* 1 when cell (i, j) (halo included) holds water the stencils may use: a water cell of the grid, or
- * the ghost beside an open or level edge. *depth_m gets its depth, m (a ghost takes the inner
- * cell's; 0 when dry). Halo corners are never water. */
-static int d_water(const sw_model *m, ptrdiff_t i, ptrdiff_t j, double *depth_m)
-{
-    const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
-    const int out_x = i < 0 || i >= nx, out_y = j < 0 || j >= ny;
-    *depth_m = 0;
-    if (out_x && out_y)
-        return 0;
-    if (out_x && m->edges[i < 0 ? SW_WEST : SW_EAST] == SW_EDGE_WALL)
-        return 0;
-    if (out_y && m->edges[j < 0 ? SW_SOUTH : SW_NORTH] == SW_EDGE_WALL)
-        return 0;
-    ptrdiff_t ii = i < 0 ? 0 : i >= nx ? nx - 1 : i;
-    ptrdiff_t jj = j < 0 ? 0 : j >= ny ? ny - 1 : j;
-    *depth_m = m->h[d_pad(m, ii, jj)];
-    return *depth_m > 0;
-}
-
 /* Flux depth (h_c / f) of the velocity on the face between cells o1 and o2 (its "own" cells), with
  * the stencil pairs (a1, b1) and (a2, b2) that must match; 0 when it may not flow. Cells are given
  * as (i, j) pairs. */
 static double d_face_depth(const sw_model *m, const ptrdiff_t own[4], const ptrdiff_t st[8])
 {
     double h1, h2, d[4];
-    int w1 = d_water(m, own[0], own[1], &h1), w2 = d_water(m, own[2], own[3], &h2);
+    int w1 = sw_model_water_at(m, own[0], own[1], &h1), w2 = sw_model_water_at(m, own[2], own[3], &h2);
     if (!w1 && !w2)
         return 0;
-    int s0 = d_water(m, st[0], st[1], &d[0]), s1 = d_water(m, st[2], st[3], &d[1]);
-    int s2 = d_water(m, st[4], st[5], &d[2]), s3 = d_water(m, st[6], st[7], &d[3]);
+    int s0 = sw_model_water_at(m, st[0], st[1], &d[0]), s1 = sw_model_water_at(m, st[2], st[3], &d[1]);
+    int s2 = sw_model_water_at(m, st[4], st[5], &d[2]), s3 = sw_model_water_at(m, st[6], st[7], &d[3]);
     int n = s0 + s1 + s2 + s3;
     if (n == 0 || s0 != s1 || s2 != s3)
         return 0;
@@ -129,7 +103,7 @@ static sw_status d_prepare(sw_model *m, sw_error *err)
             /* on a south or north open/level edge line u would difference lagging ghosts: held at 0 */
             int edge_line = (j == -1 && m->edges[SW_SOUTH] != SW_EDGE_WALL)
                          || (j == ny - 1 && m->edges[SW_NORTH] != SW_EDGE_WALL);
-            m->hx[d_pad(m, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(m, own, st);
+            m->hx[sw_pidx_halo(m, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(m, own, st);
         }
     /* v on the east face of (i, j): own (i, j), (i+1, j); pairs (i, j-1)~(i, j+1), (i+1, j-1)~(i+1, j+1) */
     for (ptrdiff_t j = 0; j < ny; j++)
@@ -138,7 +112,7 @@ static sw_status d_prepare(sw_model *m, sw_error *err)
             const ptrdiff_t st[8] = {i, j - 1, i, j + 1, i + 1, j - 1, i + 1, j + 1};
             int edge_line = (i == -1 && m->edges[SW_WEST] != SW_EDGE_WALL)
                          || (i == nx - 1 && m->edges[SW_EAST] != SW_EDGE_WALL);
-            m->hy[d_pad(m, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(m, own, st);
+            m->hy[sw_pidx_halo(m, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(m, own, st);
         }
     sw_status rc = sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
     if (rc != SW_OK)

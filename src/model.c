@@ -227,6 +227,23 @@ void sw_model_free(sw_model *m)
     free(m);
 }
 
+int sw_model_water_at(const sw_model *m, ptrdiff_t i, ptrdiff_t j, double *depth_m)
+{
+    const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
+    const int out_x = i < 0 || i >= nx, out_y = j < 0 || j >= ny;
+    *depth_m = 0;
+    if (out_x && out_y)
+        return 0;
+    if (out_x && m->edges[i < 0 ? SW_WEST : SW_EAST] == SW_EDGE_WALL)
+        return 0;
+    if (out_y && m->edges[j < 0 ? SW_SOUTH : SW_NORTH] == SW_EDGE_WALL)
+        return 0;
+    ptrdiff_t ii = i < 0 ? 0 : i >= nx ? nx - 1 : i;
+    ptrdiff_t jj = j < 0 ? 0 : j >= ny ? ny - 1 : j;
+    *depth_m = m->h[sw_pidx_halo(m, ii, jj)];
+    return *depth_m > 0;
+}
+
 /* Orders m->edge by the padded row of the inner cell (a stable counting sort) and fills m->edge_row. */
 static sw_status sort_edges_by_row(sw_model *m, sw_error *err)
 {

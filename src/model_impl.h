@@ -64,6 +64,17 @@ struct sw_model {
  * by -1 / +1 (west / east) and -stride / +stride (south / north). */
 static inline size_t sw_pidx(const sw_model *m, size_t i, size_t j) { return (j + 1) * m->stride + (i + 1); }
 
+/* Padded index of cell (i, j) with the halo included: -1 <= i <= nx, -1 <= j <= ny. */
+static inline size_t sw_pidx_halo(const sw_model *m, ptrdiff_t i, ptrdiff_t j)
+{
+    return (size_t)(j + 1) * m->stride + (size_t)(i + 1);
+}
+
+/* 1 when cell (i, j) (halo included) holds water the stencils may use: a water cell of the grid, or
+ * the ghost beside an open or level edge (it needs a water cell inside). *depth_m gets its depth, m
+ * (a ghost takes the inner cell's; 0 when dry). Halo corners are never water. For layouts' prepare. */
+int sw_model_water_at(const sw_model *m, ptrdiff_t i, ptrdiff_t j, double *depth_m);
+
 /* Builds m->edge for every open edge: one ghost per water cell next to the edge. `spacing_x` and
  * `spacing_y` are the distances used in r (dx and dy for the A and C layouts). Shared by layouts. */
 sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, sw_error *err);
