@@ -34,6 +34,8 @@ typedef struct {
 typedef struct sw_layout {
     const char *name;     /* "A" .. "E" */
     const char *summary;  /* one line for --help and reports */
+    double eta_cells;     /* cells of area each stored elevation stands for: 0 or 1 = one cell each;
+                           * E: 2 (half the cells store eta) */
     double level_node_offset; /* where a `level` edge holds its node: cells beyond the edge line
                                * (0 = on it; E: 0.5, on the ghost centres, see layout_e.c) */
     int stream_values;    /* the bytes model: values a fused cell update must move at least (each state

@@ -263,6 +263,7 @@ const sw_layout sw_layout_e = {
     .prepare = e_prepare,
     .step = e_step,
     .level_node_offset = 0.5,
+    .eta_cells = 2,
     .centre_row = e_centre_row,
     .eta_at = e_eta_at,
     .symbols = e_symbols,

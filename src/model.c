@@ -357,7 +357,8 @@ double sw_model_volume(const sw_model *m)
             comp += fabs(sum) >= fabs(x) ? (sum - t) + x : (x - t) + sum;
             sum = t;
         }
-    return (sum + comp) * m->grid.dx_m * m->grid.dy_m;
+    double per_point = m->layout->eta_cells > 0 ? m->layout->eta_cells : 1;   /* E: each eta point stands for 2 cells */
+    return (sum + comp) * per_point * m->grid.dx_m * m->grid.dy_m;
 }
 
 const sw_grid *sw_model_grid(const sw_model *m) { return &m->grid; }

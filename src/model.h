@@ -81,7 +81,8 @@ void sw_model_set_eta(sw_model *m, size_t i, size_t j, double eta_m);
 /* The layout's conserved discrete energy (see sw_layout.energy), m5 s-2. */
 double sw_model_energy(const sw_model *m);
 
-/* Water volume displaced: sum of eta * cell area over water cells, m3 (compensated summation). */
+/* Water volume displaced: sum of the stored eta times the area each stands for (a cell; two on the E
+ * layout), m3 (compensated summation). */
 double sw_model_volume(const sw_model *m);
 
 /* Accessors. */

@@ -463,6 +463,23 @@ static void test_rest_start_open_still(void **state)
     sw_model_free(m);
 }
 
+/* The displaced volume of a Gaussian hump a exp(-r^2/b^2) is pi a b^2 (Gaussian integral) on every
+ * layout, including E, which stores eta on half the cells. */
+static void test_volume_of_hump(void **state)
+{
+    (void)state;
+    const char *names[5] = {"A", "B", "C", "D", "E"};
+    double p[3] = {40000, 40000, 6000};   /* centre x, y and e-folding radius, m; amplitude 0.5 m */
+    for (int q = 0; q < 5; q++) {
+        sw_model *m = make_model(names[q], 80, 80, 1000, 100, 0.9, WALLS, hump_2d, p, NULL);
+        double expected = PI * 0.5 * p[2] * p[2];
+        double got = sw_model_volume(m);
+        print_message("%s hump volume %.6e m3, pi a b^2 = %.6e m3\n", names[q], got, expected);
+        assert_true(fabs(got - expected) / expected < 5e-3);
+        sw_model_free(m);
+    }
+}
+
 /* Layout registry: all five Arakawa layouts are built, in order; F is unknown. */
 static void test_registry(void **state)
 {
@@ -488,6 +505,7 @@ int main(void)
         cmocka_unit_test(test_mass_c),          cmocka_unit_test(test_mass_a),
         cmocka_unit_test(test_dt_refused),      cmocka_unit_test(test_threads_c),
         cmocka_unit_test(test_threads_a),       cmocka_unit_test(test_registry),
+        cmocka_unit_test(test_volume_of_hump),
         cmocka_unit_test(test_energy_c),        cmocka_unit_test(test_energy_a),
         cmocka_unit_test(test_rest_start_mode), cmocka_unit_test(test_rest_start_level_c),
         cmocka_unit_test(test_rest_start_level_a), cmocka_unit_test(test_rest_start_open_still),
