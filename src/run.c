@@ -88,8 +88,9 @@ static void snapshot_frame(run_ctx *c)
         c->stop = 2;
 }
 
-/* Work between steps, by one thread: observers, snapshots, progress, interruption. */
-static void between_steps(run_ctx *c, int last)
+/* The observers at the model's present time, by one thread: gauges (watched always, sampled at
+ * the interval and at the last step) and snapshots. Also used for the initial state. */
+static void observe(run_ctx *c, int last)
 {
     sw_model *m = c->model;
     double now = sw_model_time(m);
@@ -107,6 +108,16 @@ static void between_steps(run_ctx *c, int last)
         while (c->next_snapshot <= now + 1e-9 * c->sc->snapshot_interval_s)
             c->next_snapshot += c->sc->snapshot_interval_s;
     }
+}
+
+/* Work between steps, by one thread: the observers, then interruption and progress. */
+static void between_steps(run_ctx *c, int last)
+{
+    observe(c, last);
+    if (c->stop)
+        return;
+    sw_model *m = c->model;
+    double now = sw_model_time(m);
     if (c->opt->stop && *c->opt->stop) {
         c->stop = 1;
         return;
@@ -219,11 +230,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         c.next_snapshot = 0;
         c.t_start = omp_get_wtime();
         c.next_progress = 0.5;
-        sw_run_options quiet = *opt;
-        quiet.progress = NULL;
-        c.opt = &quiet;
-        between_steps(&c, 0);
-        c.opt = opt;
+        observe(&c, 0);
         if (!c.stop)
             time_loop(&c);
         res->wall_s = omp_get_wtime() - c.t_start;
