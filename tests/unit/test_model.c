@@ -25,6 +25,7 @@
 #include <cmocka.h>
 
 #include "layout.h"
+#include "testutil.h"
 #include "model.h"
 #include "omp_compat.h"
 
@@ -65,16 +66,7 @@ static sw_model *make_model(const char *layout, size_t nx, size_t ny, double d, 
     return m;
 }
 
-static void advance(sw_model *m, long n, int threads)
-{
-    omp_set_num_threads(threads);
-    SW_OMP(parallel)
-    for (long k = 0; k < n; k++) {
-        sw_model_step(m);
-        SW_OMP(single)
-        sw_model_tick(m);
-    }
-}
+static void advance(sw_model *m, long n, int threads) { tu_advance(m, n, threads); }
 
 static double cos_mode(double x, double y, void *user)
 {
@@ -90,27 +82,13 @@ static double sin_mode(double x, double y, void *user)
     return p[1] * sin(p[0] * x);
 }
 
-/* Mean period from upward and downward zero crossings of eta in cell 0 over n_periods. */
+/* Period from zero crossings (testutil.c); at least three crossings are required. */
 static double measure_period(sw_model *m, double expected_s, int n_periods)
 {
-    double dt = sw_model_dt(m);
-    long steps = (long)(expected_s * (n_periods + 0.75) / dt);
-    double prev = sw_model_eta(m, 0, 0), t_first = -1, t_last = -1;
-    int crossings = 0;
-    for (long n = 0; n < steps; n++) {
-        advance(m, 1, 1);
-        double now = sw_model_eta(m, 0, 0);
-        if ((prev > 0) != (now > 0)) {
-            double t = sw_model_time(m) - dt + dt * prev / (prev - now);
-            if (crossings == 0)
-                t_first = t;
-            t_last = t;
-            crossings++;
-        }
-        prev = now;
-    }
+    int crossings;
+    double period = tu_measure_period(m, expected_s, n_periods, &crossings);
     assert_true(crossings >= 3);
-    return 2.0 * (t_last - t_first) / (crossings - 1);
+    return period;
 }
 
 /* Closed channel, h = 10 m, L = 10 km, mode 1, C layout: Merian within 0.5 %, discrete answer to 1e-7. */
