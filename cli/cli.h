@@ -28,9 +28,21 @@ typedef struct {
     int threads;            /* --threads N, 0 = default */
     int quiet;              /* --quiet */
     int json;               /* --json */
+    int precision_set;      /* 1 when --precision was given */
+    sw_precision precision; /* --precision double|single: replaces the scenario's [run] precision */
 } cli_args;
 
-enum { CLI_OUT = 1, CLI_RUN_OPTS = 2 };   /* parse flags: accept --out; accept --threads/--quiet */
+/* parse flags: accept --out; accept --threads/--quiet; accept --precision */
+enum { CLI_OUT = 1, CLI_RUN_OPTS = 2, CLI_PRECISION = 4 };
+
+/* Help text for --precision, shared by the commands that take it. */
+#define CLI_PRECISION_HELP \
+    "  --precision P   double or single: the model state's precision, over the scenario's [run]\n" \
+    "                  precision (default double). single halves memory and runs faster; results\n" \
+    "                  differ from double by round-off, ~1e-6 relative (docs/verification.md)\n"
+
+/* Applies --precision (if given) to a loaded scenario. */
+void cli_apply_precision(const cli_args *a, sw_scenario *sc);
 
 /* Parses argv into a. Prints `usage` and returns 0 for --help; prints a usage error and returns 2
  * for a bad argument; returns -1 when the command should go on. */

@@ -9,7 +9,7 @@
 
 static const char *const usage_compare =
     "Usage: shoreward compare SCENARIO [--layouts A,C,...] [--refine 1,2,4] [--out DIR] [--threads N]\n"
-    "                         [--quiet] [--json]\n"
+    "                         [--precision P] [--quiet] [--json]\n"
     "\n"
     "Runs SCENARIO on each layout and resolution and compares them: per run the grid, dt, steps, wall\n"
     "time, cell-updates per second, memory, Courant number against the layout's limit and a grid-scale\n"
@@ -21,6 +21,7 @@ static const char *const usage_compare =
     "  --refine LIST   comma-separated grid refinements: 2 halves dx and dy (default: 1)\n"
     "  --out DIR       folder for compare.md, compare.csv and each run's files (default: <name>-compare)\n"
     "  --threads N     OpenMP threads for each run\n"
+    CLI_PRECISION_HELP
     "  --quiet         no progress lines\n"
     "  --json          print the comparison as one JSON object on stdout\n"
     "\n"
@@ -70,7 +71,7 @@ int cmd_compare(int argc, char **argv, const char *history)
         }
     }
     cli_args a;
-    int code = cli_parse("compare", usage_compare, n_rest, rest, CLI_OUT | CLI_RUN_OPTS, &a);
+    int code = cli_parse("compare", usage_compare, n_rest, rest, CLI_OUT | CLI_RUN_OPTS | CLI_PRECISION, &a);
     free(rest);
     if (code >= 0)
         return code;
@@ -108,6 +109,7 @@ int cmd_compare(int argc, char **argv, const char *history)
     sw_error err = {0};
     if (sw_scenario_load(a.scenario, &sc, &err) != SW_OK)
         return cli_fail("compare", &err);
+    cli_apply_precision(&a, &sc);
     char out[SW_PATH_MAX];
     if (a.out) {
         snprintf(out, sizeof out, "%s", a.out);

@@ -12,7 +12,7 @@
 #include "sweep.h"
 
 static const char *const usage_run =
-    "Usage: shoreward run SCENARIO [--out DIR] [--threads N] [--quiet] [--json]\n"
+    "Usage: shoreward run SCENARIO [--out DIR] [--threads N] [--precision P] [--quiet] [--json]\n"
     "\n"
     "Runs SCENARIO and writes into DIR (default: <scenario name>-out):\n"
     "  gauges.nc     eta, u, v time series at the gauges (CF timeSeries)\n"
@@ -22,27 +22,33 @@ static const char *const usage_run =
     "\n"
     "  --out DIR      output folder, created if missing\n"
     "  --threads N    OpenMP threads (default: all cores); results do not depend on N\n"
+    CLI_PRECISION_HELP
     "  --quiet        no plan and no progress line\n"
     "  --json         print the summary as one JSON object on stdout\n"
     "\n"
     "Example:\n"
-    "  shoreward run scenarios/demo.scn --out demo-out --threads 2\n";
+    "  shoreward run scenarios/demo.scn --out demo-out --threads 2\n"
+    "  shoreward run scenarios/demo.scn --precision single   # half the memory, faster\n";
 
 static const char *const usage_check =
-    "Usage: shoreward check SCENARIO [--json]\n"
+    "Usage: shoreward check SCENARIO [--precision P] [--json]\n"
     "\n"
     "Parses and validates SCENARIO, builds the seabed and source, and prints the plan without\n"
     "running: grid, layout, dt and Courant number against the layout's limit, steps, memory, an\n"
     "estimated run time measured on this machine, and each gauge with the depth there.\n"
     "\n"
+    CLI_PRECISION_HELP
+    "\n"
     "Example:\n"
     "  shoreward check scenarios/demo.scn\n";
 
 static const char *const usage_demo =
-    "Usage: shoreward demo [DIR] [--threads N] [--quiet] [--json]\n"
+    "Usage: shoreward demo [DIR] [--threads N] [--precision P] [--quiet] [--json]\n"
     "\n"
     "Writes the built-in scenario of a fictional coastline (Merrow Bay) to DIR/demo.scn and runs it,\n"
     "writing the outputs into DIR (default: shoreward-demo). Draw pictures with tools/plot DIR.\n"
+    "\n"
+    CLI_PRECISION_HELP
     "\n"
     "Example:\n"
     "  shoreward demo /tmp/merrow\n";
@@ -50,7 +56,7 @@ static const char *const usage_demo =
 int cmd_run(int argc, char **argv, const char *history)
 {
     cli_args a;
-    int code = cli_parse("run", usage_run, argc, argv, CLI_OUT | CLI_RUN_OPTS, &a);
+    int code = cli_parse("run", usage_run, argc, argv, CLI_OUT | CLI_RUN_OPTS | CLI_PRECISION, &a);
     if (code >= 0)
         return code;
     if (!a.scenario)
@@ -59,6 +65,7 @@ int cmd_run(int argc, char **argv, const char *history)
     sw_error err = {0};
     if (sw_scenario_load(a.scenario, &sc, &err) != SW_OK)
         return cli_fail("run", &err);
+    cli_apply_precision(&a, &sc);
     char out[SW_PATH_MAX];
     if (a.out)
         snprintf(out, sizeof out, "%s", a.out);
@@ -73,7 +80,7 @@ int cmd_check(int argc, char **argv, const char *history)
 {
     (void)history;
     cli_args a;
-    int code = cli_parse("check", usage_check, argc, argv, 0, &a);
+    int code = cli_parse("check", usage_check, argc, argv, CLI_PRECISION, &a);
     if (code >= 0)
         return code;
     if (!a.scenario)
@@ -83,11 +90,12 @@ int cmd_check(int argc, char **argv, const char *history)
     sw_error err = {0};
     if (sw_scenario_load(a.scenario, &sc, &err) != SW_OK)
         return cli_fail("check", &err);
+    cli_apply_precision(&a, &sc);
     if (sw_setup_build(&sc, &setup, &err) != SW_OK) {
         sw_scenario_free(&sc);
         return cli_fail("check", &err);
     }
-    double rate = sw_estimate_rate(setup.layout, 0, 0.2);
+    double rate = sw_estimate_rate(setup.layout, sc.precision, 0, 0.2);
     sw_status swept = SW_OK;   /* a [sweep] section adds its member count, memory and time (sweep.h) */
     if (a.json) {
         char *js = sw_report_plan_json(&sc, &setup, rate);
@@ -111,7 +119,7 @@ int cmd_check(int argc, char **argv, const char *history)
 int cmd_demo(int argc, char **argv, const char *history)
 {
     cli_args a;
-    int code = cli_parse("demo", usage_demo, argc, argv, CLI_RUN_OPTS, &a);
+    int code = cli_parse("demo", usage_demo, argc, argv, CLI_RUN_OPTS | CLI_PRECISION, &a);
     if (code >= 0)
         return code;
     const char *dir = a.scenario ? a.scenario : "shoreward-demo";
@@ -130,6 +138,7 @@ int cmd_demo(int argc, char **argv, const char *history)
     sw_scenario sc;
     if (sw_scenario_load(path, &sc, &err) != SW_OK)
         return cli_fail("demo", &err);
+    cli_apply_precision(&a, &sc);
     code = cli_run_scenario("demo", &sc, &a, dir, history);
     sw_scenario_free(&sc);
     if (code == 0 && !a.json)

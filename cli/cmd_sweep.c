@@ -10,7 +10,8 @@
 #include "sweep.h"
 
 static const char *const usage_sweep =
-    "Usage: shoreward sweep SCENARIO [--out DIR] [--members-parallel N] [--threads N] [--quiet] [--json]\n"
+    "Usage: shoreward sweep SCENARIO [--out DIR] [--members-parallel N] [--threads N] [--precision P]\n"
+    "                        [--quiet] [--json]\n"
     "\n"
     "Runs the members of SCENARIO's [sweep] section (what varies and how: docs/sweep.md) and writes\n"
     "into DIR (default: <scenario name>-sweep):\n"
@@ -26,6 +27,8 @@ static const char *const usage_sweep =
     "  --members-parallel N    run N members at once, one thread each (1: one after another with all\n"
     "                          threads); default: side by side when members are small (<= 512 x 512 cells)\n"
     "  --threads N             threads for the whole sweep (default: all cores); results do not depend on it\n"
+    "  --precision P           double or single for every member, over [run] precision (written into\n"
+    "                          each member's scenario file)\n"
     "  --quiet                 no plan and no progress line\n"
     "  --json                  print the summary as one JSON object on stdout\n"
     "\n"
@@ -78,7 +81,7 @@ int cmd_sweep(int argc, char **argv, const char *history)
     int code = take_members_parallel(argc, argv, rest, &n_rest, &members_parallel);
     cli_args a;
     if (code < 0)
-        code = cli_parse("sweep", usage_sweep, n_rest, rest, CLI_OUT | CLI_RUN_OPTS, &a);
+        code = cli_parse("sweep", usage_sweep, n_rest, rest, CLI_OUT | CLI_RUN_OPTS | CLI_PRECISION, &a);
     free(rest);
     if (code >= 0)
         return code;
@@ -95,6 +98,7 @@ int cmd_sweep(int argc, char **argv, const char *history)
         free(sc);
         return cli_fail("sweep", &err);
     }
+    cli_apply_precision(&a, sc);
     if (!sc->sweep.present) {
         fprintf(stderr, "shoreward sweep: error: %s has no [sweep] section; docs/sweep.md says how to write one\n",
                 a.scenario);

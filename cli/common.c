@@ -81,6 +81,10 @@ int cli_parse(const char *cmd, const char *usage, int argc, char **argv, int fla
             if (missing || end == val || *end || n < 1 || n > 1024)
                 return cli_usage_error(cmd, "--threads takes a whole number from 1 to 1024, not '%s'", val);
             a->threads = (int)n;
+        } else if ((flags & CLI_PRECISION) && (val = option_value("--precision", argc, argv, &k, &missing))) {
+            if (missing || !sw_precision_parse(val, &a->precision))
+                return cli_usage_error(cmd, "--precision takes double or single, not '%s'", val);
+            a->precision_set = 1;
         } else if (s[0] == '-' && s[1]) {
             return cli_usage_error(cmd, "unknown option '%s'", s);
         } else if (!a->scenario) {
@@ -90,6 +94,12 @@ int cli_parse(const char *cmd, const char *usage, int argc, char **argv, int fla
         }
     }
     return -1;
+}
+
+void cli_apply_precision(const cli_args *a, sw_scenario *sc)
+{
+    if (a->precision_set)
+        sc->precision = a->precision;
 }
 
 void cli_show_progress(const sw_progress *p, void *user)

@@ -88,7 +88,7 @@ double sw_bench_triad(size_t n, int repeats)
 }
 
 /* A square basin of n x n cells, 1000 m deep, with a hump, at 90 % of the layout's limit. */
-static sw_model *make_model(const sw_layout *lay, size_t n, sw_error *err)
+static sw_model *make_model(const sw_layout *lay, size_t n, sw_precision precision, sw_error *err)
 {
     sw_grid g = {.nx = n, .ny = n, .dx_m = 1000, .dy_m = 1000};
     double *depth = malloc(n * n * sizeof(double));
@@ -105,7 +105,7 @@ static sw_model *make_model(const sw_layout *lay, size_t n, sw_error *err)
                 eta[j * n + i] = exp(-(x * x + y * y));
             }
         sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta, .min_depth_m = 1,
-                               .gravity_ms2 = 9.81};
+                               .gravity_ms2 = 9.81, .precision = precision};
         cfg.dt_s = 0.9 * sw_model_dt_limit(lay, &g, depth, 1, 9.81, 2);
         sw_model_create(&cfg, &m, err);
     }
@@ -144,7 +144,7 @@ static double numpy_rate(const sw_bench_options *opt, size_t n, int steps)
 {
     char cmd[2048];
     snprintf(cmd, sizeof cmd, "'%s' '%s' %zu %d %s 2>/dev/null", opt->python, opt->numpy_script, n, steps,
-             sizeof(sw_real) == sizeof(float) ? "float32" : "float64");
+             opt->precision == SW_SINGLE ? "float32" : "float64");
     FILE *p = popen(cmd, "r");
     if (!p)
         return 0;
@@ -178,8 +178,8 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
 
     snprintf(what, sizeof what, "layout %s: building the %zu x %zu grid", lay->name, res->n_large, res->n_large);
     say(opt, what);
-    sw_model *big = make_model(lay, res->n_large, err);
-    sw_model *small = big ? make_model(lay, res->n_small, err) : NULL;
+    sw_model *big = make_model(lay, res->n_large, opt->precision, err);
+    sw_model *small = big ? make_model(lay, res->n_small, opt->precision, err) : NULL;
     sw_tracker *tr = NULL;
     if (small && sw_tracker_create(big, 0.01, top, &tr, err) != SW_OK)
         tr = NULL;
@@ -242,9 +242,17 @@ sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_err
     memset(res, 0, sizeof *res);
     if (opt->rounds < 3 || opt->rounds > MAX_ROUNDS)
         return sw_fail(err, SW_ERR_USAGE, "rounds = %d (accepted: 3 to %d)", opt->rounds, MAX_ROUNDS);
-    res->real_bytes = (int)sizeof(sw_real);
+    if ((unsigned)opt->precision >= SW_PRECISIONS)
+        return sw_fail(err, SW_ERR_USAGE, "precision %d (accepted: double, single)", (int)opt->precision);
+    for (const char *p = opt->layouts; p && *p; p++) {
+        char name[2] = {*p, '\0'};
+        if (!sw_layout_find(name, NULL))
+            return sw_fail(err, SW_ERR_USAGE, "layout '%c' (accepted: %s)", *p, sw_layout_names());
+    }
+    res->precision = opt->precision;
+    res->real_bytes = (int)sw_precision_bytes(opt->precision);
     res->llc_bytes = llc_bytes();
-    const size_t per_cell = 8 * sizeof(sw_real);
+    const size_t per_cell = 6 * (size_t)res->real_bytes + 1;   /* the six state arrays and the wet mask */
     size_t target = 4 * res->llc_bytes;
     if (target < ((size_t)2 << 30))
         target = (size_t)2 << 30;
@@ -263,6 +271,9 @@ sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_err
     if (!opt->numpy_script)
         snprintf(res->numpy_note, sizeof res->numpy_note, "skipped");
     for (size_t q = 0; q < sw_layout_count() && q < SW_BENCH_MAX_LAYOUTS; q++) {
+        if (opt->layouts && !strchr(opt->layouts, sw_layout_at(q)->name[0])
+            && !strchr(opt->layouts, sw_layout_at(q)->name[0] - 'A' + 'a'))
+            continue;
         sw_status rc = bench_layout(opt, sw_layout_at(q), res, &res->layouts[res->n_layouts], err);
         if (rc != SW_OK)
             return rc;
@@ -282,7 +293,7 @@ void sw_bench_print(FILE *f, const sw_bench_result *res)
 {
     fprintf(f, "Grid %zu x %zu (working set %.2f GB, last-level cache %.0f MB), cache-resident grid %zu x %zu, %s precision\n",
            res->n_large, res->n_large, (double)res->working_set_bytes / 1e9, (double)res->llc_bytes / 1048576.0,
-           res->n_small, res->n_small, res->real_bytes == 4 ? "single" : "double");
+           res->n_small, res->n_small, sw_precision_name(res->precision));
     for (size_t q = 0; q < res->n_layouts; q++) {
         const sw_bench_layout *l = &res->layouts[q];
         fprintf(f, "\nLayout %s (bytes model: %d values per cell update)\n", l->layout, l->values_per_cell);
@@ -325,7 +336,7 @@ char *sw_bench_json(const sw_bench_result *res)
     cJSON_AddNumberToObject(o, "n_small", (double)res->n_small);
     cJSON_AddNumberToObject(o, "working_set_bytes", (double)res->working_set_bytes);
     cJSON_AddNumberToObject(o, "llc_bytes", (double)res->llc_bytes);
-    cJSON_AddStringToObject(o, "precision", res->real_bytes == 4 ? "single" : "double");
+    cJSON_AddStringToObject(o, "precision", sw_precision_name(res->precision));
     cJSON *ls = cJSON_AddArrayToObject(o, "layouts");
     for (size_t q = 0; q < res->n_layouts; q++) {
         const sw_bench_layout *l = &res->layouts[q];

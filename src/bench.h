@@ -10,6 +10,7 @@
 #include <stddef.h>
 #include <stdio.h>
 
+#include "real.h"
 #include "status.h"
 
 #define SW_BENCH_MAX_THREADS 64
@@ -27,6 +28,8 @@ typedef struct {
     int threads[SW_BENCH_MAX_THREADS]; /* thread counts for the scaling figures; n_threads = 0: 1 .. cores */
     int n_threads;
     int rounds;            /* interleaved rounds, >= 3 (default 5) */
+    sw_precision precision;/* of the model state (and of the NumPy arrays) */
+    const char *layouts;   /* layout letters to measure, e.g. "C" or "AC"; NULL = every layout */
     const char *numpy_script; /* tools/bench_numpy.py to compare against (run with python), NULL = skip */
     const char *python;    /* interpreter for it, e.g. /usr/bin/python3 */
     void (*progress)(const char *what, void *user);   /* called before each measurement; may be NULL */
@@ -52,7 +55,8 @@ typedef struct {
     size_t n_large, n_small;    /* grid sides used */
     size_t llc_bytes;           /* last-level cache as the system reports it */
     size_t working_set_bytes;   /* state + depth arrays of the large grid */
-    int real_bytes;             /* bytes of one state value (sizeof(sw_real)) */
+    sw_precision precision;     /* of the state */
+    int real_bytes;             /* bytes of one state value: 8 (double) or 4 (single) */
     int n_threads, threads[SW_BENCH_MAX_THREADS];
     size_t n_layouts;
     sw_bench_layout layouts[SW_BENCH_MAX_LAYOUTS];
@@ -63,7 +67,8 @@ typedef struct {
 } sw_bench_result;
 
 /* Runs the benchmark. Needs about working_set x 1.5 of memory. Returns SW_ERR_NOMEM when the grid
- * does not fit, SW_ERR_USAGE for bad options. */
+ * does not fit, SW_ERR_USAGE for bad options (rounds out of range, a letter in opt->layouts that names
+ * no layout of this build). */
 sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_error *err);
 
 /* McCalpin's STREAM triad a[i] = b[i] + s c[i] on three arrays of n doubles with the current OpenMP

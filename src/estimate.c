@@ -8,7 +8,7 @@
 #include "omp_compat.h"
 #include "tracker.h"
 
-double sw_estimate_rate(const sw_layout *layout, int threads, double seconds)
+double sw_estimate_rate(const sw_layout *layout, sw_precision precision, int threads, double seconds)
 {
     enum { N = 512 };
     sw_grid g = {.nx = N, .ny = N, .dx_m = 1000, .dy_m = 1000};
@@ -26,7 +26,7 @@ double sw_estimate_rate(const sw_layout *layout, int threads, double seconds)
             eta0[j * N + i] = exp(-(x * x + y * y) / 400.0);
         }
     sw_model_config cfg = {.layout = layout, .grid = g, .depth_m = depth, .eta0_m = eta0, .min_depth_m = 1,
-                           .gravity_ms2 = 9.81, .dt_s = 1.0};
+                           .gravity_ms2 = 9.81, .dt_s = 1.0, .precision = precision};
     cfg.dt_s = 0.9 * sw_model_dt_limit(layout, &g, depth, 1, 9.81, 2);
     if (threads > 0)
         omp_set_num_threads(threads);

@@ -206,13 +206,6 @@ void sw_gauges_table(sw_gauges *gs, sw_gauge_table *out)
 double sw_gauges_depth(const sw_gauges *gs, size_t q) { return gs->depth[q]; }
 int sw_gauges_dry(const sw_gauges *gs, size_t q) { return gs->dry[q]; }
 
-/* Centre elevation of cell (i, j), also on layouts that store eta only on some cells. */
-static double centre_eta(const sw_model *m, size_t i, size_t j)
-{
-    const sw_layout *l = sw_model_layout(m);
-    return l->eta_at ? l->eta_at(m, i, j) : sw_model_eta(m, i, j);
-}
-
 void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m)
 {
     const double now = sw_model_time(m);
@@ -222,7 +215,7 @@ void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m)
         const stencil *s = &gs->st[q];
         double e = 0;
         for (int c = 0; c < 4; c++)
-            e += s->w[c] * centre_eta(m, s->i[c], s->j[c]);
+            e += s->w[c] * sw_model_eta_centre(m, s->i[c], s->j[c]);
         sw_gauge_stats *st = &gs->stats[q];
         if (isnan(st->arrival_s) && fabs(e) >= threshold_m) {
             /* the crossing, interpolated linearly in time from the previous step */

@@ -31,24 +31,12 @@ typedef struct {
     double complex u_at_v;  /* u averaged onto v points */
 } sw_symbols;
 
-typedef struct sw_layout {
-    const char *name;     /* "A" .. "E" */
-    const char *summary;  /* one line for --help and reports */
-    double eta_cells;     /* cells of area each stored elevation stands for: 0 or 1 = one cell each;
-                           * E: 2 (half the cells store eta) */
-    double level_node_offset; /* where a `level` edge holds its node: cells beyond the edge line
-                               * (0 = on it; E: 0.5, on the ghost centres, see layout_e.c) */
-    int stream_values;    /* the bytes model: values a fused cell update must move at least (each state
-                           * value read and written once, each depth array read once); x sizeof(sw_real) */
-
-    /* Highest angular frequency (rad/s) of the layout's semi-discrete gravity waves on depth h,
-     * over all wavenumbers the grid resolves, with gh = g*h (m2 s-2) and cell sizes dx, dy (m).
-     * dims = 1 considers x-waves only (a channel); dims = 2 the whole plane.
-     * Forward-backward stepping is stable exactly while max_frequency * dt <= 2. */
-    double (*max_frequency)(double gh, double dx, double dy, int dims);
-
-    /* Fills the layout's depth-at-velocity-point arrays (m->hx, m->hy) and open-edge lists from
-     * m->h and m->edges, after model.c has allocated every array. Returns SW_OK or an error. */
+/* The functions that touch the state, compiled once per precision (real.h): each layout file
+ * defines sw_layout_x_kernels_f64 and _f32 from one source. They read and write the state through
+ * SW_F (model_impl.h) as the build's sw_real, and give everything else doubles. */
+typedef struct sw_layout_kernels {
+    /* Fills the layout's depth-at-velocity-point arrays (hx, hy) and open-edge lists from h and
+     * m->edges, after model.c has allocated every array. Returns SW_OK or an error. */
     sw_status (*prepare)(sw_model *m, sw_error *err);
 
     /* Advances the state by one forward-backward step: eta first, from the old velocities, then the
@@ -64,14 +52,34 @@ typedef struct sw_layout {
      * cell stores its own elevation (then it is the stored value). */
     double (*eta_at)(const sw_model *m, size_t i, size_t j);
 
+    /* The discrete energy that forward-backward stepping conserves exactly (walls, no forcing), per
+     * unit density, m5 s-2:  E* = sum (g/2) eta^2 dA + sum (hu/2) |u|^2 dA - (g dt / 2) sum eta D(h u) dA,
+     * with D the layout's divergence and hu the depth carried by each velocity point. Summed in double. */
+    double (*energy)(const sw_model *m);
+} sw_layout_kernels;
+
+typedef struct sw_layout {
+    const char *name;     /* "A" .. "E" */
+    const char *summary;  /* one line for --help and reports */
+    double eta_cells;     /* cells of area each stored elevation stands for: 0 or 1 = one cell each;
+                           * E: 2 (half the cells store eta) */
+    double level_node_offset; /* where a `level` edge holds its node: cells beyond the edge line
+                               * (0 = on it; E: 0.5, on the ghost centres, see layout_e.c) */
+    int stream_values;    /* the bytes model: values a fused cell update must move at least (each state
+                           * value read and written once, each depth array read once); x bytes per value */
+
+    /* Highest angular frequency (rad/s) of the layout's semi-discrete gravity waves on depth h,
+     * over all wavenumbers the grid resolves, with gh = g*h (m2 s-2) and cell sizes dx, dy (m).
+     * dims = 1 considers x-waves only (a channel); dims = 2 the whole plane.
+     * Forward-backward stepping is stable exactly while max_frequency * dt <= 2. */
+    double (*max_frequency)(double gh, double dx, double dy, int dims);
+
     /* Symbols of the layout's operators for wavenumbers (k, l) (rad/m) on cells dx x dy (m). The
      * gravity-wave frequency is omega^2 = -g h (div_x grad_x + div_y grad_y). */
     void (*symbols)(double k, double l, double dx, double dy, sw_symbols *out);
 
-    /* The discrete energy that forward-backward stepping conserves exactly (walls, no forcing), per
-     * unit density, m5 s-2:  E* = sum (g/2) eta^2 dA + sum (hu/2) |u|^2 dA - (g dt / 2) sum eta D(h u) dA,
-     * with D the layout's divergence and hu the depth carried by each velocity point. */
-    double (*energy)(const sw_model *m);
+    /* The state kernels for each precision: kernels[SW_DOUBLE], kernels[SW_SINGLE]. */
+    const sw_layout_kernels *kernels[SW_PRECISIONS];
 } sw_layout;
 
 /* Finds a layout by name ("A".."E", any case). Returns NULL for an unknown name; for a known name

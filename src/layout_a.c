@@ -22,11 +22,13 @@
 #include "model_impl.h"
 #include "omp_compat.h"
 
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static double a_max_frequency(double gh, double dx, double dy, int dims)
 {
     double s = 1.0 / (dx * dx) + (dims == 2 ? 1.0 / (dy * dy) : 0.0);
     return sqrt(gh * s);
 }
+#endif
 
 static sw_status a_prepare(sw_model *m, sw_error *err)
 {
@@ -34,7 +36,7 @@ static sw_status a_prepare(sw_model *m, sw_error *err)
     /* water flows across open and level edges: their ghosts act as water neighbours */
     const int open_w = m->edges[SW_WEST] != SW_EDGE_WALL, open_e = m->edges[SW_EAST] != SW_EDGE_WALL;
     const int open_s = m->edges[SW_SOUTH] != SW_EDGE_WALL, open_n = m->edges[SW_NORTH] != SW_EDGE_WALL;
-    const sw_real *h = m->h;
+    const sw_real *h = SW_F(m, h);
     for (size_t j = 0; j < ny; j++)
         for (size_t i = 0; i < nx; i++) {
             size_t k = sw_pidx(m, i, j);
@@ -44,8 +46,8 @@ static sw_status a_prepare(sw_model *m, sw_error *err)
             int east = i + 1 < nx ? h[k + 1] > 0 : open_e;
             int south = j > 0 ? h[k - s] > 0 : open_s;
             int north = j + 1 < ny ? h[k + s] > 0 : open_n;
-            m->hx[k] = west && east ? h[k] : 0;
-            m->hy[k] = south && north ? h[k] : 0;
+            SW_F(m, hx)[k] = west && east ? h[k] : 0;
+            SW_F(m, hy)[k] = south && north ? h[k] : 0;
         }
     sw_status rc = sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
     if (rc != SW_OK)
@@ -54,9 +56,9 @@ static sw_status a_prepare(sw_model *m, sw_error *err)
     for (size_t q = 0; q < m->n_edge; q++) {
         const sw_edge_cell *oc = &m->edge[q];
         if (oc->normal_x)
-            m->hx[oc->ghost] = m->h[oc->inner];
+            SW_F(m, hx)[oc->ghost] = SW_F(m, h)[oc->inner];
         else
-            m->hy[oc->ghost] = m->h[oc->inner];
+            SW_F(m, hy)[oc->ghost] = SW_F(m, h)[oc->inner];
     }
     return SW_OK;
 }
@@ -67,8 +69,8 @@ static void a_step(sw_model *m)
     const sw_real cx = (sw_real)(0.5 * m->dt / m->grid.dx_m), cy = (sw_real)(0.5 * m->dt / m->grid.dy_m);
     const sw_real gx = (sw_real)(0.5 * m->g * m->dt / m->grid.dx_m);
     const sw_real gy = (sw_real)(0.5 * m->g * m->dt / m->grid.dy_m);
-    sw_real *restrict eta = m->eta, *restrict u = m->u, *restrict v = m->v;
-    const sw_real *restrict hx = m->hx, *restrict hy = m->hy;
+    sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
+    const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy);
 
     /* forward: continuity from the old velocities */
     SW_OMP(for schedule(static))
@@ -98,7 +100,7 @@ static void a_step(sw_model *m)
     SW_OMP(for schedule(static))
     for (size_t q = 0; q < n_edge; q++) {
         sw_real *vel = oc[q].normal_x ? u : v;
-        vel[oc[q].ghost] = oc[q].vel * eta[oc[q].ghost] + oc[q].mirror * vel[oc[q].inner];
+        vel[oc[q].ghost] = (sw_real)oc[q].vel * eta[oc[q].ghost] + (sw_real)oc[q].mirror * vel[oc[q].inner];
     }
 }
 
@@ -106,24 +108,26 @@ static void a_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
 {
     const size_t r = sw_pidx(m, 0, j);
     for (size_t i = 0; i < m->grid.nx; i++) {
-        eta[i] = m->eta[r + i];
-        u[i] = m->u[r + i];
-        v[i] = m->v[r + i];
+        eta[i] = SW_F(m, eta)[r + i];
+        u[i] = SW_F(m, u)[r + i];
+        v[i] = SW_F(m, v)[r + i];
     }
 }
 
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static void a_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 {
     o->div_x = o->grad_x = I * sin(k * dx) / dx;
     o->div_y = o->grad_y = I * sin(l * dy) / dy;
     o->v_at_u = o->u_at_v = 1;   /* co-located */
 }
+#endif
 
 static double a_energy(const sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
     const double dx = m->grid.dx_m, dy = m->grid.dy_m;
-    const sw_real *eta = m->eta, *u = m->u, *v = m->v, *hx = m->hx, *hy = m->hy;
+    const sw_real *eta = SW_F(m, eta), *u = SW_F(m, u), *v = SW_F(m, v), *hx = SW_F(m, hx), *hy = SW_F(m, hy);
     double pot = 0, kin = 0, cross = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
@@ -136,14 +140,22 @@ static double a_energy(const sw_model *m)
     return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * dx * dy;
 }
 
+const sw_layout_kernels SW_NAME(sw_layout_a_kernels) = {
+    .prepare = a_prepare,
+    .step = a_step,
+    .centre_row = a_centre_row,
+    .energy = a_energy,
+};
+
+#if SW_REAL_BITS == 64
+extern const sw_layout_kernels sw_layout_a_kernels_f32;
+
 const sw_layout sw_layout_a = {
     .name = "A",
     .summary = "co-located: eta, u and v at cell centres, centred differences",
     .stream_values = 8,   /* eta, u, v read and written; hx, hy read */
     .max_frequency = a_max_frequency,
-    .prepare = a_prepare,
-    .step = a_step,
-    .centre_row = a_centre_row,
     .symbols = a_symbols,
-    .energy = a_energy,
+    .kernels = {[SW_DOUBLE] = &sw_layout_a_kernels_f64, [SW_SINGLE] = &sw_layout_a_kernels_f32},
 };
+#endif

@@ -50,11 +50,13 @@
 #include "model_impl.h"
 #include "omp_compat.h"
 
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static double b_max_frequency(double gh, double dx, double dy, int dims)
 {
     double d = dims == 2 && dy < dx ? dy : dx;
     return 2.0 * sqrt(gh) / d;
 }
+#endif
 
 static sw_status b_prepare(sw_model *m, sw_error *err)
 {
@@ -79,8 +81,8 @@ static sw_status b_prepare(sw_model *m, sw_error *err)
             if ((j == -1 && m->edges[SW_SOUTH] != SW_EDGE_WALL) || (j == ny - 1 && m->edges[SW_NORTH] != SW_EDGE_WALL))
                 u_ok = 0;
             size_t c = sw_pidx_halo(m, i, j);
-            m->hx[c] = u_ok ? (sw_real)per_f : 0;
-            m->hy[c] = v_ok ? (sw_real)per_f : 0;
+            SW_F(m, hx)[c] = u_ok ? (sw_real)per_f : 0;
+            SW_F(m, hy)[c] = v_ok ? (sw_real)per_f : 0;
         }
     return sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
 }
@@ -91,8 +93,8 @@ static void b_step(sw_model *m)
     const sw_real cx = (sw_real)(0.5 * m->dt / m->grid.dx_m), cy = (sw_real)(0.5 * m->dt / m->grid.dy_m);
     const sw_real gx = (sw_real)(0.5 * m->g * m->dt / m->grid.dx_m);
     const sw_real gy = (sw_real)(0.5 * m->g * m->dt / m->grid.dy_m);
-    sw_real *restrict eta = m->eta, *restrict u = m->u, *restrict v = m->v;
-    const sw_real *restrict hx = m->hx, *restrict hy = m->hy, *restrict h = m->h;
+    sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
+    const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy), *restrict h = SW_F(m, h);
 
     /* forward: continuity from the old corner velocities; a wall corner also feeds the dry cells of its
      * stencil, which must stay at 0 */
@@ -126,15 +128,15 @@ static void b_step(sw_model *m)
 static void b_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
 {
     const size_t r = sw_pidx(m, 0, j), s = m->stride;
-    const sw_real *hx = m->hx, *hy = m->hy, *uu = m->u, *vv = m->v;
+    const sw_real *hx = SW_F(m, hx), *hy = SW_F(m, hy), *uu = SW_F(m, u), *vv = SW_F(m, v);
     for (size_t i = 0; i < m->grid.nx; i++) {
         const size_t k = r + i;
-        const double h = m->h[k];
+        const double h = SW_F(m, h)[k];
         if (!(h > 0)) {
             eta[i] = u[i] = v[i] = 0;
             continue;
         }
-        eta[i] = m->eta[k];
+        eta[i] = SW_F(m, eta)[k];
         u[i] = ((double)hx[k] * uu[k] + (double)hx[k - 1] * uu[k - 1] + (double)hx[k - s] * uu[k - s]
                 + (double)hx[k - s - 1] * uu[k - s - 1]) / (4 * h);
         v[i] = ((double)hy[k] * vv[k] + (double)hy[k - 1] * vv[k - 1] + (double)hy[k - s] * vv[k - s]
@@ -144,6 +146,7 @@ static void b_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
 
 /* eta at (0, 0), corners at (+-dx/2, +-dy/2): each derivative is a one-cell difference averaged
  * over the two rows (columns) it spans. */
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static void b_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 {
     double a = 0.5 * k * dx, b = 0.5 * l * dy;
@@ -151,12 +154,13 @@ static void b_symbols(double k, double l, double dx, double dy, sw_symbols *o)
     o->div_y = o->grad_y = 2 * I * cos(a) * sin(b) / dy;
     o->v_at_u = o->u_at_v = 1;   /* co-located */
 }
+#endif
 
 static double b_energy(const sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
     const double dx = m->grid.dx_m, dy = m->grid.dy_m;
-    const sw_real *eta = m->eta, *u = m->u, *v = m->v, *hx = m->hx, *hy = m->hy;
+    const sw_real *eta = SW_F(m, eta), *u = SW_F(m, u), *v = SW_F(m, v), *hx = SW_F(m, hx), *hy = SW_F(m, hy);
     double pot = 0, kin = 0, cross = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
@@ -173,14 +177,22 @@ static double b_energy(const sw_model *m)
     return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * dx * dy;
 }
 
+const sw_layout_kernels SW_NAME(sw_layout_b_kernels) = {
+    .prepare = b_prepare,
+    .step = b_step,
+    .centre_row = b_centre_row,
+    .energy = b_energy,
+};
+
+#if SW_REAL_BITS == 64
+extern const sw_layout_kernels sw_layout_b_kernels_f32;
+
 const sw_layout sw_layout_b = {
     .name = "B",
     .summary = "eta at centres, u and v together at cell corners, two-row averaged differences",
     .stream_values = 9,   /* eta, u, v read and written; hx, hy, h read */
     .max_frequency = b_max_frequency,
-    .prepare = b_prepare,
-    .step = b_step,
-    .centre_row = b_centre_row,
     .symbols = b_symbols,
-    .energy = b_energy,
+    .kernels = {[SW_DOUBLE] = &sw_layout_b_kernels_f64, [SW_SINGLE] = &sw_layout_b_kernels_f32},
 };
+#endif

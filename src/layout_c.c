@@ -21,16 +21,18 @@
 #include "model_impl.h"
 #include "omp_compat.h"
 
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static double c_max_frequency(double gh, double dx, double dy, int dims)
 {
     double s = 1.0 / (dx * dx) + (dims == 2 ? 1.0 / (dy * dy) : 0.0);
     return 2.0 * sqrt(gh * s);
 }
+#endif
 
 static sw_status c_prepare(sw_model *m, sw_error *err)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
-    const sw_real *h = m->h;
+    const sw_real *h = SW_F(m, h);
     for (size_t j = 0; j < ny; j++)
         for (size_t i = 0; i < nx; i++) {
             size_t k = sw_pidx(m, i, j);
@@ -38,18 +40,18 @@ static sw_status c_prepare(sw_model *m, sw_error *err)
                 continue;
             /* east face: interior, or the east edge */
             if (i + 1 < nx)
-                m->hx[k] = h[k + 1] > 0 ? (sw_real)0.5 * (h[k] + h[k + 1]) : 0;
+                SW_F(m, hx)[k] = h[k + 1] > 0 ? (sw_real)0.5 * (h[k] + h[k + 1]) : 0;
             else
-                m->hx[k] = m->edges[SW_EAST] != SW_EDGE_WALL ? h[k] : 0;
+                SW_F(m, hx)[k] = m->edges[SW_EAST] != SW_EDGE_WALL ? h[k] : 0;
             if (i == 0)
-                m->hx[k - 1] = m->edges[SW_WEST] != SW_EDGE_WALL ? h[k] : 0;
+                SW_F(m, hx)[k - 1] = m->edges[SW_WEST] != SW_EDGE_WALL ? h[k] : 0;
             /* north face */
             if (j + 1 < ny)
-                m->hy[k] = h[k + s] > 0 ? (sw_real)0.5 * (h[k] + h[k + s]) : 0;
+                SW_F(m, hy)[k] = h[k + s] > 0 ? (sw_real)0.5 * (h[k] + h[k + s]) : 0;
             else
-                m->hy[k] = m->edges[SW_NORTH] != SW_EDGE_WALL ? h[k] : 0;
+                SW_F(m, hy)[k] = m->edges[SW_NORTH] != SW_EDGE_WALL ? h[k] : 0;
             if (j == 0)
-                m->hy[k - s] = m->edges[SW_SOUTH] != SW_EDGE_WALL ? h[k] : 0;
+                SW_F(m, hy)[k - s] = m->edges[SW_SOUTH] != SW_EDGE_WALL ? h[k] : 0;
         }
     return sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
 }
@@ -92,8 +94,8 @@ static void c_step(sw_model *m)
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
     const sw_real cx = (sw_real)(m->dt / m->grid.dx_m), cy = (sw_real)(m->dt / m->grid.dy_m);
     const sw_real gx = (sw_real)(m->g * m->dt / m->grid.dx_m), gy = (sw_real)(m->g * m->dt / m->grid.dy_m);
-    sw_real *restrict eta = m->eta, *restrict u = m->u, *restrict v = m->v;
-    const sw_real *restrict hx = m->hx, *restrict hy = m->hy;
+    sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
+    const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy);
     const size_t nt = (size_t)omp_get_num_threads(), t = (size_t)omp_get_thread_num();
     const size_t j0 = 1 + ny * t / nt, j1 = ny * (t + 1) / nt;   /* padded rows; empty when j1 < j0 */
 
@@ -117,12 +119,13 @@ static void c_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
     const size_t r = sw_pidx(m, 0, j), s = m->stride;
     for (size_t i = 0; i < m->grid.nx; i++) {
         size_t k = r + i;
-        eta[i] = m->eta[k];
-        u[i] = 0.5 * ((double)m->u[k - 1] + m->u[k]);
-        v[i] = 0.5 * ((double)m->v[k - s] + m->v[k]);
+        eta[i] = SW_F(m, eta)[k];
+        u[i] = 0.5 * ((double)SW_F(m, u)[k - 1] + SW_F(m, u)[k]);
+        v[i] = 0.5 * ((double)SW_F(m, v)[k - s] + SW_F(m, v)[k]);
     }
 }
 
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static void c_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 {
     double a = 0.5 * k * dx, b = 0.5 * l * dy;
@@ -130,12 +133,13 @@ static void c_symbols(double k, double l, double dx, double dy, sw_symbols *o)
     o->div_y = o->grad_y = 2 * I * sin(b) / dy;
     o->v_at_u = o->u_at_v = cos(a) * cos(b);   /* four-point average across the cell corner */
 }
+#endif
 
 static double c_energy(const sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
     const double dx = m->grid.dx_m, dy = m->grid.dy_m;
-    const sw_real *eta = m->eta, *u = m->u, *v = m->v, *hx = m->hx, *hy = m->hy;
+    const sw_real *eta = SW_F(m, eta), *u = SW_F(m, u), *v = SW_F(m, v), *hx = SW_F(m, hx), *hy = SW_F(m, hy);
     double pot = 0, kin = 0, cross = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
@@ -154,14 +158,22 @@ static double c_energy(const sw_model *m)
     return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * dx * dy;
 }
 
+const sw_layout_kernels SW_NAME(sw_layout_c_kernels) = {
+    .prepare = c_prepare,
+    .step = c_step,
+    .centre_row = c_centre_row,
+    .energy = c_energy,
+};
+
+#if SW_REAL_BITS == 64
+extern const sw_layout_kernels sw_layout_c_kernels_f32;
+
 const sw_layout sw_layout_c = {
     .name = "C",
     .summary = "staggered: eta at centres, u on east/west faces, v on north/south faces",
     .stream_values = 8,   /* eta, u, v read and written; hx, hy read */
     .max_frequency = c_max_frequency,
-    .prepare = c_prepare,
-    .step = c_step,
-    .centre_row = c_centre_row,
     .symbols = c_symbols,
-    .energy = c_energy,
+    .kernels = {[SW_DOUBLE] = &sw_layout_c_kernels_f64, [SW_SINGLE] = &sw_layout_c_kernels_f32},
 };
+#endif

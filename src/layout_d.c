@@ -60,6 +60,7 @@
 #include "model_impl.h"
 #include "omp_compat.h"
 
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static double d_max_frequency(double gh, double dx, double dy, int dims)
 {
     double p = 1.0 / (dx * dx), q = 1.0 / (dy * dy);
@@ -72,6 +73,7 @@ static double d_max_frequency(double gh, double dx, double dy, int dims)
     }
     return sqrt(gh * w2);
 }
+#endif
 
 /* Flux depth (h_c / f) of the velocity on the face between cells o1 and o2 (its "own" cells), with
  * the stencil pairs (a1, b1) and (a2, b2) that must match; 0 when it may not flow. Cells are given
@@ -103,7 +105,7 @@ static sw_status d_prepare(sw_model *m, sw_error *err)
             /* on a south or north open/level edge line u would difference lagging ghosts: held at 0 */
             int edge_line = (j == -1 && m->edges[SW_SOUTH] != SW_EDGE_WALL)
                          || (j == ny - 1 && m->edges[SW_NORTH] != SW_EDGE_WALL);
-            m->hx[sw_pidx_halo(m, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(m, own, st);
+            SW_F(m, hx)[sw_pidx_halo(m, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(m, own, st);
         }
     /* v on the east face of (i, j): own (i, j), (i+1, j); pairs (i, j-1)~(i, j+1), (i+1, j-1)~(i+1, j+1) */
     for (ptrdiff_t j = 0; j < ny; j++)
@@ -112,7 +114,7 @@ static sw_status d_prepare(sw_model *m, sw_error *err)
             const ptrdiff_t st[8] = {i, j - 1, i, j + 1, i + 1, j - 1, i + 1, j + 1};
             int edge_line = (i == -1 && m->edges[SW_WEST] != SW_EDGE_WALL)
                          || (i == nx - 1 && m->edges[SW_EAST] != SW_EDGE_WALL);
-            m->hy[sw_pidx_halo(m, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(m, own, st);
+            SW_F(m, hy)[sw_pidx_halo(m, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(m, own, st);
         }
     sw_status rc = sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
     if (rc != SW_OK)
@@ -122,12 +124,12 @@ static sw_status d_prepare(sw_model *m, sw_error *err)
      * Their flux depth is the inner cell's depth, so they store true velocities. */
     for (size_t q = 0; q < m->n_edge; q++) {
         sw_edge_cell *oc = &m->edge[q];
-        sw_real *hn = oc->normal_x ? m->hx : m->hy;
+        sw_real *hn = oc->normal_x ? SW_F(m, hx) : SW_F(m, hy);
         const size_t t = oc->normal_x ? s : 1;
         const size_t n = oc->inner, g = oc->ghost;
-        hn[g] = m->h[n];
-        if (!(m->h[n - t] > 0))
-            hn[g - t] = m->h[n];
+        hn[g] = SW_F(m, h)[n];
+        if (!(SW_F(m, h)[n - t] > 0))
+            hn[g - t] = SW_F(m, h)[n];
         if (oc->vel != 0) {   /* open (the shared list gives level edges vel = 0) */
             oc->keep = 1;     /* the shared update leaves the ghost alone: d_step radiates it */
             oc->take = 0;
@@ -143,8 +145,8 @@ static void d_step(sw_model *m)
     const sw_real gx = (sw_real)(0.25 * m->g * m->dt / m->grid.dx_m);
     const sw_real gy = (sw_real)(0.25 * m->g * m->dt / m->grid.dy_m);
     const sw_real rx = (sw_real)(m->dt / m->grid.dx_m), ry = (sw_real)(m->dt / m->grid.dy_m);
-    sw_real *restrict eta = m->eta, *restrict u = m->u, *restrict v = m->v;
-    const sw_real *restrict hx = m->hx, *restrict hy = m->hy, *restrict h = m->h;
+    sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
+    const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy), *restrict h = SW_F(m, h);
 
     /* forward: continuity from the old velocities; a wall velocity also feeds the dry cells of its
      * stencil, which must stay at 0 */
@@ -187,16 +189,16 @@ static void d_step(sw_model *m)
          * mean with the next inner cell along the edge when that is water (its flux h u = c eta leaves
          * the inner cells, never enters them); level: the inner face's volume flux, mirrored */
         const sw_real half = h[n + t] > 0 ? (sw_real)0.5 : 0, inv_h = 1 / h[n];
-        vel[g] = oc[q].vel * ((1 - half) * eta[n] + half * eta[n + t]) + oc[q].mirror * hn[n] * vel[n] * inv_h;
+        vel[g] = (sw_real)oc[q].vel * ((1 - half) * eta[n] + half * eta[n + t]) + (sw_real)oc[q].mirror * hn[n] * vel[n] * inv_h;
         if (!(h[n - t] > 0))
-            vel[g - t] = oc[q].vel * eta[n] + oc[q].mirror * hn[n - t] * vel[n - t] * inv_h;
+            vel[g - t] = (sw_real)oc[q].vel * eta[n] + (sw_real)oc[q].mirror * hn[n - t] * vel[n - t] * inv_h;
         if (oc[q].vel != 0) {
             /* open: the ghost eta, read by the normal velocities one cell in (n and n - t), moves by an
              * implicit upwind step over the distance dx towards their outgoing-wave elevation,
              * mean flux / (h sign sqrt(g h)) */
             const sw_real f0 = hn[n] * vel[n], f1 = hn[n - t] * vel[n - t];
             const sw_real w = (hn[n] > 0) + (hn[n - t] > 0);
-            const sw_real target = w > 0 ? (f0 + f1) / (w * h[n] * oc[q].vel) : 0;
+            const sw_real target = w > 0 ? (f0 + f1) / (w * h[n] * (sw_real)oc[q].vel) : 0;
             const sw_real r = (sw_real)fabs(oc[q].vel) * h[n] * (oc[q].normal_x ? rx : ry);
             eta[g] = (eta[g] + r * target) / (1 + r);
         }
@@ -208,21 +210,22 @@ static void d_step(sw_model *m)
 static void d_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
 {
     const size_t r = sw_pidx(m, 0, j), s = m->stride;
-    const sw_real *hx = m->hx, *hy = m->hy, *uu = m->u, *vv = m->v;
+    const sw_real *hx = SW_F(m, hx), *hy = SW_F(m, hy), *uu = SW_F(m, u), *vv = SW_F(m, v);
     for (size_t i = 0; i < m->grid.nx; i++) {
         const size_t k = r + i;
-        const double h = m->h[k];
+        const double h = SW_F(m, h)[k];
         if (!(h > 0)) {
             eta[i] = u[i] = v[i] = 0;
             continue;
         }
-        eta[i] = m->eta[k];
+        eta[i] = SW_F(m, eta)[k];
         u[i] = ((double)hx[k] * uu[k] + (double)hx[k - s] * uu[k - s]) / (2 * h);
         v[i] = ((double)hy[k] * vv[k] + (double)hy[k - 1] * vv[k - 1]) / (2 * h);
     }
 }
 
 /* eta at (0, 0), u at (0, +-dy/2) + whole cells, v at (+-dx/2, 0) + whole cells. */
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static void d_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 {
     double a = 0.5 * k * dx, b = 0.5 * l * dy;
@@ -230,12 +233,13 @@ static void d_symbols(double k, double l, double dx, double dy, sw_symbols *o)
     o->div_y = o->grad_y = I * cos(a) * sin(2 * b) / dy;
     o->v_at_u = o->u_at_v = cos(a) * cos(b);   /* four-point average across the cell corner */
 }
+#endif
 
 static double d_energy(const sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
     const double dx = m->grid.dx_m, dy = m->grid.dy_m;
-    const sw_real *eta = m->eta, *u = m->u, *v = m->v, *hx = m->hx, *hy = m->hy;
+    const sw_real *eta = SW_F(m, eta), *u = SW_F(m, u), *v = SW_F(m, v), *hx = SW_F(m, hx), *hy = SW_F(m, hy);
     double pot = 0, kin = 0, cross = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
@@ -256,14 +260,22 @@ static double d_energy(const sw_model *m)
     return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * dx * dy;
 }
 
+const sw_layout_kernels SW_NAME(sw_layout_d_kernels) = {
+    .prepare = d_prepare,
+    .step = d_step,
+    .centre_row = d_centre_row,
+    .energy = d_energy,
+};
+
+#if SW_REAL_BITS == 64
+extern const sw_layout_kernels sw_layout_d_kernels_f32;
+
 const sw_layout sw_layout_d = {
     .name = "D",
     .summary = "eta at centres, u on north/south faces, v on east/west faces, four-point averages",
     .stream_values = 9,   /* eta, u, v read and written; hx, hy, h read */
     .max_frequency = d_max_frequency,
-    .prepare = d_prepare,
-    .step = d_step,
-    .centre_row = d_centre_row,
     .symbols = d_symbols,
-    .energy = d_energy,
+    .kernels = {[SW_DOUBLE] = &sw_layout_d_kernels_f64, [SW_SINGLE] = &sw_layout_d_kernels_f32},
 };
+#endif

@@ -58,11 +58,13 @@
 #include "model_impl.h"
 #include "omp_compat.h"
 
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static double e_max_frequency(double gh, double dx, double dy, int dims)
 {
     double s = 1.0 / (dx * dx) + (dims == 2 ? 1.0 / (dy * dy) : 0.0);
     return sqrt(gh * s);
 }
+#endif
 
 /* Padded index of cell (i, j), -1 <= i <= nx, -1 <= j <= ny. */
 static size_t e_pad(const sw_model *m, ptrdiff_t i, ptrdiff_t j)
@@ -84,7 +86,7 @@ static int e_water(const sw_model *m, ptrdiff_t i, ptrdiff_t j)
         return 0;
     ptrdiff_t ii = i < 0 ? 0 : i >= nx ? nx - 1 : i;
     ptrdiff_t jj = j < 0 ? 0 : j >= ny ? ny - 1 : j;
-    return m->h[e_pad(m, ii, jj)] > 0;
+    return SW_F(m, h)[e_pad(m, ii, jj)] > 0;
 }
 
 /* Turns the shared edge list into the E layout's two kinds of ghost (see the file comment). A ghost
@@ -98,9 +100,9 @@ static void e_prepare_edges(sw_model *m)
     for (size_t q = 0; q < m->n_edge; q++) {
         sw_edge_cell *oc = &m->edge[q];
         const size_t i = oc->inner % s - 1, j = oc->inner / s - 1;
-        sw_real *hn = oc->normal_x ? m->hx : m->hy;
+        sw_real *hn = oc->normal_x ? SW_F(m, hx) : SW_F(m, hy);
         if ((i + j) % 2 == 0) {
-            hn[oc->ghost] = m->h[oc->inner];
+            hn[oc->ghost] = SW_F(m, h)[oc->inner];
             continue;
         }
         const int open = oc->mirror == 0;   /* the shared list marks level ghosts with mirror = 1 */
@@ -120,11 +122,11 @@ static sw_status e_prepare(sw_model *m, sw_error *err)
             size_t k = e_pad(m, i, j);
             if ((i + j) % 2 == 0)
                 continue;
-            m->eta[k] = 0;   /* a u,v cell holds no elevation */
-            if (!(m->h[k] > 0))
+            SW_F(m, eta)[k] = 0;   /* a u,v cell holds no elevation */
+            if (!(SW_F(m, h)[k] > 0))
                 continue;
-            m->hx[k] = e_water(m, i - 1, j) && e_water(m, i + 1, j) ? m->h[k] : 0;
-            m->hy[k] = e_water(m, i, j - 1) && e_water(m, i, j + 1) ? m->h[k] : 0;
+            SW_F(m, hx)[k] = e_water(m, i - 1, j) && e_water(m, i + 1, j) ? SW_F(m, h)[k] : 0;
+            SW_F(m, hy)[k] = e_water(m, i, j - 1) && e_water(m, i, j + 1) ? SW_F(m, h)[k] : 0;
         }
     sw_status rc = sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
     if (rc != SW_OK)
@@ -140,8 +142,8 @@ static void e_step(sw_model *m)
     const sw_real gx = (sw_real)(0.5 * m->g * m->dt / m->grid.dx_m);
     const sw_real gy = (sw_real)(0.5 * m->g * m->dt / m->grid.dy_m);
     const sw_real rx = (sw_real)(m->dt / m->grid.dx_m), ry = (sw_real)(m->dt / m->grid.dy_m);
-    sw_real *restrict eta = m->eta, *restrict u = m->u, *restrict v = m->v;
-    const sw_real *restrict hx = m->hx, *restrict hy = m->hy, *restrict h = m->h;
+    sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
+    const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy), *restrict h = SW_F(m, h);
 
     /* forward: continuity from the old velocities (a no-op on u,v cells: their neighbours carry no flux) */
     SW_OMP(for schedule(static))
@@ -178,12 +180,12 @@ static void e_step(sw_model *m)
             if (oc[q].mirror != 0)
                 vel[g] -= (oc[q].normal_x ? gx : gy) * (g > n ? eta[g] - eta[n] : eta[n] - eta[g]);
             else
-                vel[g] = oc[q].vel * eta[g];
+                vel[g] = (sw_real)oc[q].vel * eta[g];
         } else if (oc[q].vel != 0) {
             /* an open eta ghost: implicit upwind over dx towards the inner velocity's outgoing-wave
              * elevation, u / (sign sqrt(g/h)); read by that velocity's next step */
             const sw_real r = (sw_real)fabs(oc[q].vel) * h[n] * (oc[q].normal_x ? rx : ry);
-            eta[g] = (eta[g] + r * vel[n] / oc[q].vel) / (1 + r);
+            eta[g] = (eta[g] + r * vel[n] / (sw_real)oc[q].vel) / (1 + r);
         }
     }
 }
@@ -193,7 +195,7 @@ static void e_step(sw_model *m)
 static void e_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
 {
     const size_t r = sw_pidx(m, 0, j), s = m->stride;
-    const sw_real *h = m->h, *e = m->eta, *uu = m->u, *vv = m->v;
+    const sw_real *h = SW_F(m, h), *e = SW_F(m, eta), *uu = SW_F(m, u), *vv = SW_F(m, v);
     for (size_t i = 0; i < m->grid.nx; i++) {
         const size_t k = r + i;
         if (!(h[k] > 0)) {
@@ -219,7 +221,7 @@ static void e_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
 static double e_eta_at(const sw_model *m, size_t i, size_t j)
 {
     const size_t k = sw_pidx(m, i, j), s = m->stride;
-    const sw_real *h = m->h, *e = m->eta;
+    const sw_real *h = SW_F(m, h), *e = SW_F(m, eta);
     if (!(h[k] > 0))
         return 0;
     if ((i + j) % 2 == 0)
@@ -230,19 +232,21 @@ static double e_eta_at(const sw_model *m, size_t i, size_t j)
 }
 
 /* eta at (0, 0), u and v at (+-dx, 0) and (0, +-dy). */
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static void e_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 {
     o->div_x = o->grad_x = I * sin(k * dx) / dx;
     o->div_y = o->grad_y = I * sin(l * dy) / dy;
     o->v_at_u = o->u_at_v = 1;   /* co-located */
 }
+#endif
 
 /* E* with each eta point and each velocity point standing for 2 dx dy. */
 static double e_energy(const sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
     const double dx = m->grid.dx_m, dy = m->grid.dy_m;
-    const sw_real *eta = m->eta, *u = m->u, *v = m->v, *hx = m->hx, *hy = m->hy;
+    const sw_real *eta = SW_F(m, eta), *u = SW_F(m, u), *v = SW_F(m, v), *hx = SW_F(m, hx), *hy = SW_F(m, hy);
     double pot = 0, kin = 0, cross = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
@@ -255,17 +259,25 @@ static double e_energy(const sw_model *m)
     return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * 2 * dx * dy;
 }
 
+const sw_layout_kernels SW_NAME(sw_layout_e_kernels) = {
+    .prepare = e_prepare,
+    .step = e_step,
+    .centre_row = e_centre_row,
+    .eta_at = e_eta_at,
+    .energy = e_energy,
+};
+
+#if SW_REAL_BITS == 64
+extern const sw_layout_kernels sw_layout_e_kernels_f32;
+
 const sw_layout sw_layout_e = {
     .name = "E",
     .summary = "checkerboard: eta on (i+j) even cells, u and v on (i+j) odd cells (B turned 45 degrees)",
     .stream_values = 8,   /* eta, u, v read and written; hx, hy read (half of them zeros) */
     .max_frequency = e_max_frequency,
-    .prepare = e_prepare,
-    .step = e_step,
     .level_node_offset = 0.5,
     .eta_cells = 2,
-    .centre_row = e_centre_row,
-    .eta_at = e_eta_at,
     .symbols = e_symbols,
-    .energy = e_energy,
+    .kernels = {[SW_DOUBLE] = &sw_layout_e_kernels_f64, [SW_SINGLE] = &sw_layout_e_kernels_f32},
 };
+#endif

@@ -18,32 +18,47 @@
 
 static size_t round_up(size_t n, size_t to) { return (n + to - 1) / to * to; }
 
-/* Row stride for a grid: nx + 2 padded to a whole number of 64-byte lines. */
-static size_t stride_for(const sw_grid *g)
+/* Row stride for a grid, in values of `size` bytes: nx + 2 padded to a whole number of 64-byte lines. */
+static size_t stride_for(const sw_grid *g, size_t size)
 {
-    return round_up(g->nx + 2, SW_ALIGN / sizeof(sw_real));
+    return round_up(g->nx + 2, SW_ALIGN / size);
 }
 
-size_t sw_model_bytes_for(const sw_grid *g)
+size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision)
 {
-    size_t n_pad = stride_for(g) * (g->ny + 2);
-    return 6 * n_pad * sizeof(sw_real) + g->nx * g->ny
-         + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell);
+    const size_t size = sw_precision_bytes(precision);
+    size_t n_pad = stride_for(g, size) * (g->ny + 2);
+    return 6 * n_pad * size + g->nx * g->ny + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell);
 }
 
-/* 64-byte aligned array of `rows` rows of `stride` reals, zeroed by the threads that will later
- * work on each row (first touch places the pages near them), or NULL. Free with free(). */
-static sw_real *alloc_field(size_t rows, size_t stride)
+/* 64-byte aligned array of `rows` rows of `stride` values of `size` bytes, zeroed by the threads
+ * that will later work on each row (first touch places the pages near them: the steps split rows
+ * among threads the same static way), or NULL. Free with free(). */
+static void *alloc_field(size_t rows, size_t stride, size_t size)
 {
-    size_t bytes = round_up(rows * stride * sizeof(sw_real), SW_ALIGN);
-    sw_real *p = aligned_alloc(SW_ALIGN, bytes);
+    const size_t row_bytes = stride * size, used = rows * row_bytes;
+    size_t bytes = round_up(used, SW_ALIGN);
+    char *p = aligned_alloc(SW_ALIGN, bytes);
     if (p) {
         SW_OMP(parallel for schedule(static))
         for (size_t j = 0; j < rows; j++)
-            memset(p + j * stride, 0, stride * sizeof(sw_real));
-        memset((char *)p + rows * stride * sizeof(sw_real), 0, bytes - rows * stride * sizeof(sw_real));
+            memset(p + j * row_bytes, 0, row_bytes);
+        memset(p + used, 0, bytes - used);
     }
     return p;
+}
+
+double sw_model_get(const sw_model *m, const void *f, size_t k)
+{
+    return m->precision == SW_SINGLE ? (double)((const float *)f)[k] : ((const double *)f)[k];
+}
+
+void sw_model_put(const sw_model *m, void *f, size_t k, double x)
+{
+    if (m->precision == SW_SINGLE)
+        ((float *)f)[k] = (float)x;
+    else
+        ((double *)f)[k] = x;
 }
 
 /* Stability uses the channel formula when the grid is one cell across. */
@@ -90,7 +105,7 @@ static void ghosts_at_rest(sw_model *m)
     for (size_t q = 0; q < m->n_edge; q++) {
         const sw_edge_cell *oc = &m->edge[q];
         if (oc->keep != 1)
-            m->eta[oc->ghost] = oc->take / (1 - oc->keep) * m->eta[oc->inner];
+            sw_model_put(m, m->eta, oc->ghost, oc->take / (1 - oc->keep) * sw_model_get(m, m->eta, oc->inner));
     }
 }
 
@@ -130,7 +145,7 @@ static sw_status start_at_rest(sw_model *m, sw_error *err)
     }
     const double dt = m->dt;
     m->dt = 0.5 * dt;
-    m->layout->step(m);
+    m->kernels->step(m);
     m->dt = dt;
     if (m->n_edge)
         memcpy(m->edge, saved, m->n_edge * sizeof *saved);
@@ -148,6 +163,9 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     if (!cfg->layout || g->nx == 0 || g->ny == 0 || !(g->dx_m > 0) || !(g->dy_m > 0) || !(cfg->dt_s > 0)
         || !(cfg->gravity_ms2 > 0) || !(cfg->min_depth_m > 0))
         return sw_fail(err, SW_ERR_USAGE, "model: invalid configuration (layout, grid, dt, g or min_depth)");
+    if ((unsigned)cfg->precision >= SW_PRECISIONS || !cfg->layout->kernels[cfg->precision])
+        return sw_fail(err, SW_ERR_USAGE, "model: precision %d is not one of 0 (double), 1 (single)",
+                       (int)cfg->precision);
 
     double h_max = deepest(g, cfg->depth_m, cfg->min_depth_m);
     if (h_max <= 0.0)
@@ -167,26 +185,29 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     if (!m)
         return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating the model");
     m->layout = cfg->layout;
+    m->precision = cfg->precision;
+    m->kernels = cfg->layout->kernels[cfg->precision];
     m->grid = *g;
     m->g = cfg->gravity_ms2;
     m->dt = cfg->dt_s;
     m->min_depth = cfg->min_depth_m;
     m->h_max = h_max;
     memcpy(m->edges, cfg->edges, sizeof m->edges);
-    m->stride = stride_for(g);
+    const size_t size = sw_precision_bytes(cfg->precision);
+    m->stride = stride_for(g, size);
     m->n_pad = m->stride * (g->ny + 2);
 
-    m->eta = alloc_field(g->ny + 2, m->stride);
-    m->u = alloc_field(g->ny + 2, m->stride);
-    m->v = alloc_field(g->ny + 2, m->stride);
-    m->h = alloc_field(g->ny + 2, m->stride);
-    m->hx = alloc_field(g->ny + 2, m->stride);
-    m->hy = alloc_field(g->ny + 2, m->stride);
+    m->eta = alloc_field(g->ny + 2, m->stride, size);
+    m->u = alloc_field(g->ny + 2, m->stride, size);
+    m->v = alloc_field(g->ny + 2, m->stride, size);
+    m->h = alloc_field(g->ny + 2, m->stride, size);
+    m->hx = alloc_field(g->ny + 2, m->stride, size);
+    m->hy = alloc_field(g->ny + 2, m->stride, size);
     m->wet = calloc(sw_grid_cells(g), 1);
     if (!m->eta || !m->u || !m->v || !m->h || !m->hx || !m->hy || !m->wet) {
         sw_model_free(m);
-        return sw_fail(err, SW_ERR_NOMEM, "out of memory: the model needs %zu MB for a %zu x %zu grid",
-                       sw_model_bytes_for(g) >> 20, g->nx, g->ny);
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory: the model needs %zu MB for a %zu x %zu grid in %s precision",
+                       sw_model_bytes_for(g, cfg->precision) >> 20, g->nx, g->ny, sw_precision_name(cfg->precision));
     }
 
     for (size_t j = 0; j < g->ny; j++)
@@ -195,12 +216,12 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
             double d = cfg->depth_m[k];
             if (d >= cfg->min_depth_m) {
                 m->wet[k] = 1;
-                m->h[sw_pidx(m, i, j)] = (sw_real)d;
-                m->eta[sw_pidx(m, i, j)] = cfg->eta0_m ? (sw_real)cfg->eta0_m[k] : 0;
+                sw_model_put(m, m->h, sw_pidx(m, i, j), d);
+                sw_model_put(m, m->eta, sw_pidx(m, i, j), cfg->eta0_m ? cfg->eta0_m[k] : 0);
             }
         }
 
-    sw_status rc = m->layout->prepare(m, err);
+    sw_status rc = m->kernels->prepare(m, err);
     if (rc == SW_OK)
         rc = start_at_rest(m, err);
     if (rc != SW_OK) {
@@ -240,7 +261,7 @@ int sw_model_water_at(const sw_model *m, ptrdiff_t i, ptrdiff_t j, double *depth
         return 0;
     ptrdiff_t ii = i < 0 ? 0 : i >= nx ? nx - 1 : i;
     ptrdiff_t jj = j < 0 ? 0 : j >= ny ? ny - 1 : j;
-    *depth_m = m->h[sw_pidx_halo(m, ii, jj)];
+    *depth_m = sw_model_get(m, m->h, sw_pidx_halo(m, ii, jj));
     return *depth_m > 0;
 }
 
@@ -295,7 +316,7 @@ sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, 
             size_t inner = sw_pidx(m, i, j);
             size_t ghost = e == SW_WEST ? inner - 1 : e == SW_EAST ? inner + 1
                          : e == SW_SOUTH ? inner - m->stride : inner + m->stride;
-            double h = m->h[inner];
+            double h = sw_model_get(m, m->h, inner);
             double c = sqrt(m->g * h);
             double r = c * m->dt / (along_x ? spacing_y : spacing_x);
             double sign = (e == SW_EAST || e == SW_NORTH) ? 1 : -1;
@@ -303,29 +324,19 @@ sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, 
             sw_edge_cell *oc = &m->edge[m->n_edge++];
             oc->ghost = ghost;
             oc->inner = inner;
-            oc->keep = (sw_real)(open ? 1 / (1 + r) : 0);
-            oc->take = (sw_real)(open ? r / (1 + r) : -1);
-            oc->vel = (sw_real)(open ? sign * c / h : 0);
-            oc->mirror = (sw_real)(open ? 0 : 1);
+            oc->keep = open ? 1 / (1 + r) : 0;
+            oc->take = open ? r / (1 + r) : -1;
+            oc->vel = open ? sign * c / h : 0;
+            oc->mirror = open ? 0 : 1;
             oc->normal_x = !along_x;
         }
     }
     return sort_edges_by_row(m, err);
 }
 
-void sw_model_edge_eta(sw_model *m)
-{
-    sw_real *restrict eta = m->eta;
-    const sw_edge_cell *restrict oc = m->edge;
-    const size_t n = m->n_edge;
-    SW_OMP(for schedule(static))
-    for (size_t q = 0; q < n; q++)
-        eta[oc[q].ghost] = oc[q].keep * eta[oc[q].ghost] + oc[q].take * eta[oc[q].inner];
-}
+void sw_model_step(sw_model *m) { m->kernels->step(m); }
 
-void sw_model_step(sw_model *m) { m->layout->step(m); }
-
-double sw_model_energy(const sw_model *m) { return m->layout->energy(m); }
+double sw_model_energy(const sw_model *m) { return m->kernels->energy(m); }
 
 void sw_model_tick(sw_model *m)
 {
@@ -335,15 +346,20 @@ void sw_model_tick(sw_model *m)
 
 void sw_model_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
 {
-    m->layout->centre_row(m, j, eta, u, v);
+    m->kernels->centre_row(m, j, eta, u, v);
 }
 
-double sw_model_eta(const sw_model *m, size_t i, size_t j) { return m->eta[sw_pidx(m, i, j)]; }
+double sw_model_eta(const sw_model *m, size_t i, size_t j) { return sw_model_get(m, m->eta, sw_pidx(m, i, j)); }
+
+double sw_model_eta_centre(const sw_model *m, size_t i, size_t j)
+{
+    return m->kernels->eta_at ? m->kernels->eta_at(m, i, j) : sw_model_eta(m, i, j);
+}
 
 void sw_model_set_eta(sw_model *m, size_t i, size_t j, double eta_m)
 {
     if (m->wet[j * m->grid.nx + i])
-        m->eta[sw_pidx(m, i, j)] = (sw_real)eta_m;
+        sw_model_put(m, m->eta, sw_pidx(m, i, j), eta_m);
 }
 
 double sw_model_volume(const sw_model *m)
@@ -352,7 +368,7 @@ double sw_model_volume(const sw_model *m)
     double sum = 0.0, comp = 0.0;
     for (size_t j = 0; j < m->grid.ny; j++)
         for (size_t i = 0; i < m->grid.nx; i++) {
-            double x = m->eta[sw_pidx(m, i, j)];
+            double x = sw_model_get(m, m->eta, sw_pidx(m, i, j));
             double t = sum + x;
             comp += fabs(sum) >= fabs(x) ? (sum - t) + x : (x - t) + sum;
             sum = t;
@@ -367,4 +383,5 @@ const unsigned char *sw_model_wet(const sw_model *m) { return m->wet; }
 double sw_model_time(const sw_model *m) { return m->time; }
 double sw_model_dt(const sw_model *m) { return m->dt; }
 double sw_model_h_max(const sw_model *m) { return m->h_max; }
-size_t sw_model_bytes(const sw_model *m) { return sw_model_bytes_for(&m->grid); }
+size_t sw_model_bytes(const sw_model *m) { return sw_model_bytes_for(&m->grid, m->precision); }
+sw_precision sw_model_precision(const sw_model *m) { return m->precision; }

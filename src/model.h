@@ -37,6 +37,7 @@ typedef struct {
     double dt_s;               /* time step, s (> 0); see sw_model_dt_limit */
     sw_edge_kind edges[4];     /* SW_WEST .. SW_NORTH */
     int allow_unstable;        /* 1 = accept dt beyond the stability limit (for stability experiments) */
+    sw_precision precision;    /* of the state: SW_DOUBLE (the zero default) or SW_SINGLE (real.h) */
 } sw_model_config;
 
 /* The largest stable time step (s) for `layout` on the given depth field: 2 / max_frequency at the
@@ -73,6 +74,10 @@ void sw_model_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
 /* Elevation at cell centre (i, j), m. */
 double sw_model_eta(const sw_model *m, size_t i, size_t j);
 
+/* Elevation at the centre of cell (i, j), m, as the layout reports it: the stored value, or on the E
+ * layout the mean of the neighbours where the cell stores velocities (sw_layout_kernels.eta_at). */
+double sw_model_eta_centre(const sw_model *m, size_t i, size_t j);
+
 /* Sets the elevation at cell centre (i, j) (ignored on land). For tests and restarts. The velocities
  * are left as they are: after it the state is no longer the one at rest that sw_model_create made
  * (give the elevation as cfg->eta0_m for that). */
@@ -93,8 +98,9 @@ double sw_model_time(const sw_model *m);               /* simulated time, s */
 double sw_model_dt(const sw_model *m);                 /* s */
 double sw_model_h_max(const sw_model *m);              /* deepest water cell, m */
 size_t sw_model_bytes(const sw_model *m);              /* memory held, bytes */
+sw_precision sw_model_precision(const sw_model *m);    /* of the state arrays */
 
-/* Bytes a model of this grid would hold (for plans), without creating it. */
-size_t sw_model_bytes_for(const sw_grid *g);
+/* Bytes a model of this grid would hold in this precision (for plans), without creating it. */
+size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision);
 
 #endif

@@ -2,7 +2,11 @@
  *
  * Every field array is padded with one halo cell on each side: cell (i, j) of the grid (0-based)
  * lives at index (j + 1) * stride + (i + 1). The halo holds ghost values at open edges and zeros
- * at walls. Rows are `stride` elements apart (a multiple of 8, arrays 64-byte aligned).
+ * at walls. Rows are `stride` elements apart (whole 64-byte lines, arrays 64-byte aligned).
+ *
+ * The state arrays hold doubles or floats, as the model's precision says (real.h). The layout files,
+ * compiled once per precision, reach them as sw_real through SW_F; model.c, which is compiled once,
+ * only through sw_model_get / sw_model_put.
  */
 #ifndef SW_MODEL_IMPL_H
 #define SW_MODEL_IMPL_H
@@ -12,6 +16,7 @@
 #include "grid.h"
 #include "layout.h"
 #include "real.h"
+#include "omp_compat.h"
 #include "scenario.h"
 
 /* One ghost (halo) cell beyond an open or level edge. After each eta update the ghost is set to
@@ -25,14 +30,16 @@
 typedef struct {
     size_t ghost;   /* padded index of the ghost (halo) cell */
     size_t inner;   /* padded index of the edge cell inside the domain */
-    sw_real keep, take;   /* ghost update coefficients, dimensionless */
-    sw_real vel;    /* s-1: ghost normal velocity per metre of ghost eta */
-    sw_real mirror; /* dimensionless: ghost normal velocity per unit inner normal velocity */
+    double keep, take;   /* ghost update coefficients, dimensionless */
+    double vel;     /* s-1: ghost normal velocity per metre of ghost eta */
+    double mirror;  /* dimensionless: ghost normal velocity per unit inner normal velocity */
     int normal_x;   /* 1 if the edge is west/east (normal along x), 0 if south/north */
 } sw_edge_cell;
 
 struct sw_model {
     const sw_layout *layout;
+    const sw_layout_kernels *kernels;   /* layout->kernels[precision] */
+    sw_precision precision;             /* what the state arrays hold */
     sw_grid grid;
     double g;            /* gravity, m s-2 */
     double dt;           /* time step, s */
@@ -43,12 +50,13 @@ struct sw_model {
     size_t stride;       /* elements between rows of a padded array */
     size_t n_pad;        /* elements in each padded array: stride * (ny + 2) */
 
-    sw_real *eta;        /* elevation at cell centres, m */
-    sw_real *u;          /* x velocity, m/s, where the layout puts it */
-    sw_real *v;          /* y velocity, m/s, where the layout puts it */
-    sw_real *h;          /* depth at cell centres, m; 0 on land and in the halo */
-    sw_real *hx;         /* depth carried by u (the layout's x-flux depth); 0 = no flow there */
-    sw_real *hy;         /* depth carried by v; 0 = no flow there */
+    /* The state, double or float by `precision` (SW_F gives them their type in the layouts): */
+    void *eta;           /* elevation at cell centres, m */
+    void *u;             /* x velocity, m/s, where the layout puts it */
+    void *v;             /* y velocity, m/s, where the layout puts it */
+    void *h;             /* depth at cell centres, m; 0 on land and in the halo */
+    void *hx;            /* depth carried by u (the layout's x-flux depth); 0 = no flow there */
+    void *hy;            /* depth carried by v; 0 = no flow there */
     unsigned char *wet;  /* [ny * nx] unpadded: 1 = water cell */
 
     size_t n_edge;       /* ghost cells of open and level edges */
@@ -79,15 +87,40 @@ int sw_model_water_at(const sw_model *m, ptrdiff_t i, ptrdiff_t j, double *depth
  * `spacing_y` are the distances used in r (dx and dy for the A and C layouts). Shared by layouts. */
 sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, sw_error *err);
 
+/* Value k of a state array `f` (one of m->eta .. m->hy) as a double, in the model's precision. */
+double sw_model_get(const sw_model *m, const void *f, size_t k);
+
+/* Stores x into value k of state array `f`, rounded to the model's precision. */
+void sw_model_put(const sw_model *m, void *f, size_t k, double x);
+
+#ifdef SW_REAL_BITS
+/* A state array with the type of this copy of the layout kernels (real.h): SW_F(m, eta)[k]. */
+#define SW_F(m, field) ((sw_real *)(m)->field)
+
+/* The ghost update of edge cell q (see sw_edge_cell), in sw_real arithmetic. */
+static inline void sw_edge_eta_one(sw_real *restrict eta, const sw_edge_cell *restrict oc)
+{
+    eta[oc->ghost] = (sw_real)oc->keep * eta[oc->ghost] + (sw_real)oc->take * eta[oc->inner];
+}
+
 /* Updates every ghost eta (see sw_edge_cell). Orphaned `omp for`. */
-void sw_model_edge_eta(sw_model *m);
+static inline void sw_model_edge_eta(sw_model *m)
+{
+    sw_real *restrict eta = SW_F(m, eta);
+    const sw_edge_cell *restrict oc = m->edge;
+    const size_t n = m->n_edge;
+    SW_OMP(for schedule(static))
+    for (size_t q = 0; q < n; q++)
+        sw_edge_eta_one(eta, &oc[q]);
+}
 
 /* Updates the ghosts whose inner cell is in padded row j (for kernels that sweep rows once). */
 static inline void sw_model_edge_eta_row(sw_model *m, size_t j)
 {
-    sw_real *restrict eta = m->eta;
+    sw_real *restrict eta = SW_F(m, eta);
     for (size_t q = m->edge_row[j]; q < m->edge_row[j + 1]; q++)
-        eta[m->edge[q].ghost] = m->edge[q].keep * eta[m->edge[q].ghost] + m->edge[q].take * eta[m->edge[q].inner];
+        sw_edge_eta_one(eta, &m->edge[q]);
 }
+#endif
 
 #endif

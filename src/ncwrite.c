@@ -208,6 +208,7 @@ static void ncw_globals(ncw_file *f, const sw_run_meta *m)
     ncw_text(f, NC_GLOBAL, "history", m->history);
     ncw_text(f, NC_GLOBAL, "source", source);
     ncw_text(f, NC_GLOBAL, "layout", m->layout);
+    ncw_text(f, NC_GLOBAL, "precision", m->precision);
     ncw_double(f, NC_GLOBAL, "time_step_s", m->dt_s);
     ncw_double(f, NC_GLOBAL, "courant_number", m->courant);
     ncw_double(f, NC_GLOBAL, "courant_limit", m->courant_limit);

@@ -19,6 +19,7 @@ typedef struct {
     const char *history;        /* the command line that produced the file */
     const char *scenario_text;  /* the whole scenario file, verbatim */
     const char *layout;         /* "A".."E" */
+    const char *precision;      /* of the model state: "double" or "single" */
     const char *version;        /* shoreward version string */
     const char *caution;        /* the caution text (not a forecast ...) */
     const char *time_origin;    /* "YYYY-MM-DD HH:MM:SS": time units are "seconds since <origin>" */

@@ -48,8 +48,6 @@ typedef double sw_real;
 #define SW_NAME(x) x##_f64
 #elif defined(SW_REAL_BITS)
 #error "SW_REAL_BITS must be 32 or 64"
-#else
-typedef double sw_real;   /* transitional */
 #endif
 
 #endif

@@ -43,6 +43,8 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, double ra
     fprintf(f, "Edges      west %s, east %s, south %s, north %s\n", edge_name(sc->edges[SW_WEST]),
             edge_name(sc->edges[SW_EAST]), edge_name(sc->edges[SW_SOUTH]), edge_name(sc->edges[SW_NORTH]));
     fprintf(f, "Layout     %s (%s)\n", s->layout->name, s->layout->summary);
+    fprintf(f, "Precision  %s (%zu-byte state values)\n", sw_precision_name(sc->precision),
+            sw_precision_bytes(sc->precision));
     fprintf(f, "Depth      deepest water %g m (wave speed %.1f m/s)\n", s->h_max_m, sqrt(sc->gravity_ms2 * s->h_max_m));
     fprintf(f, "Time step  dt = %.4g s: Courant number %.4g, %s-layout %dD limit %.4g (%.0f %% of it)\n", s->dt_s,
             s->courant, s->layout->name, s->dims, s->courant_limit, 100 * s->courant / s->courant_limit);
@@ -90,6 +92,7 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, double rate)
     cJSON_AddNumberToObject(grid, "y0_m", g->y0_m);
     cJSON_AddNumberToObject(grid, "water_cells", (double)s->wet_cells);
     cJSON_AddStringToObject(o, "layout", s->layout->name);
+    cJSON_AddStringToObject(o, "precision", sw_precision_name(sc->precision));
     cJSON_AddNumberToObject(o, "depth_max_m", s->h_max_m);
     cJSON_AddNumberToObject(o, "dt_s", s->dt_s);
     cJSON_AddNumberToObject(o, "courant", s->courant);
@@ -126,8 +129,8 @@ void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_r
 {
     char a[48], pt[48], wall[48];
     sw_format_duration(r->wall_s, wall, sizeof wall);
-    fprintf(f, "\n%s: layout %s, %lld steps of %.4g s, %s wall time with %d thread%s (%.3g cell-updates/s)\n",
-            sc->title, s->layout->name, r->steps, s->dt_s, wall, r->threads, r->threads == 1 ? "" : "s",
+    fprintf(f, "\n%s: layout %s in %s precision, %lld steps of %.4g s, %s wall time with %d thread%s "
+            "(%.3g cell-updates/s)\n", sc->title, s->layout->name, sw_precision_name(sc->precision), r->steps, s->dt_s, wall, r->threads, r->threads == 1 ? "" : "s",
             r->cell_updates_per_s);
     if (r->n_gauges) {
         fprintf(f, "\n%-24s %9s %16s %10s %16s %10s\n", "Gauge", "depth m", "first arrival", "peak m",

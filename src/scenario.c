@@ -97,12 +97,15 @@ static const char *const EDGE_WORDS[] = { "wall", "open", "level", NULL };      
 static const char *const COAST_WORDS[] = { "none", "west", "east", "south", "north", NULL }; /* sw_coast_side */
 static const char *const POSITIVE_WORDS[] = { "down", "up", NULL };                 /* from SW_POSITIVE_DOWN */
 static const char *const SHAPE_WORDS[] = { "hump", "ellipse", "pair", "file", NULL }; /* sw_source_shape */
+static const char *const PRECISION_WORDS[] = { "double", "single", NULL };                 /* sw_precision */
 
 static const key_def RUN_KEYS[] = {
     { .name = "title", TEXT_SC(title), .dflt = "untitled scenario", .accepted = "up to 255 characters" },
     { .name = "duration", .kind = K_TIME, SC(duration_s), ABOVE(0, 30 * DAY), .required = 1,
       .accepted = "0 < duration <= 30 d" },
     { .name = "layout", .kind = K_LAYOUT, SC(layout), .dflt = "C", .accepted = "A, B, C, D, E (any case)" },
+    { .name = "precision", .kind = K_CHOICE, SC(precision), .words = PRECISION_WORDS, .first = SW_DOUBLE,
+      .dflt = "double", .accepted = "double, single" },
     { .name = "courant", .kind = K_NUMBER, SC(courant_fraction), ABOVE(0, 1), .dflt = "0.9",
       .accepted = "0 < courant <= 1, a fraction of the layout's limit" },
     { .name = "dt", .kind = K_TIME, SC(dt_s), ABOVE(0, DAY), .accepted = "0 < dt <= 1 d, not together with courant" },
@@ -250,7 +253,8 @@ _Static_assert(sizeof RUN_KEYS / sizeof RUN_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX
 _Static_assert(sizeof SEABED_KEYS / sizeof SEABED_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX");
 _Static_assert(sizeof SOURCE_KEYS / sizeof SOURCE_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX");
 _Static_assert(sizeof(sw_edge_kind) == sizeof(int) && sizeof(sw_coast_side) == sizeof(int)
-               && sizeof(sw_positive) == sizeof(int) && sizeof(sw_source_shape) == sizeof(int),
+               && sizeof(sw_positive) == sizeof(int) && sizeof(sw_source_shape) == sizeof(int)
+               && sizeof(sw_precision) == sizeof(int),
                "K_CHOICE stores an int");
 
 /* ---- parser state -------------------------------------------------------------------------- */

@@ -13,6 +13,7 @@
 #include <stddef.h>
 
 #include "grid.h"
+#include "real.h"
 #include "status.h"
 
 #define SW_NAME_MAX 64        /* longest gauge / feature / source name, including the NUL */
@@ -129,6 +130,7 @@ typedef struct {
     double duration_s;        /* required, > 0 */
     char layout[8];           /* "A".."E", upper case; default "C" */
     int layout_line;
+    sw_precision precision;   /* of the model state; default SW_DOUBLE (real.h) */
     double courant_fraction;  /* fraction of the layout's stability limit, (0, 1]; default 0.9 */
     int courant_line;
     double dt_s;              /* explicit time step, s; 0 = derive from courant_fraction */

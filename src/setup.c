@@ -119,7 +119,7 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
     double run_end = (double)s->n_steps * s->dt_s;
     s->n_samples = (size_t)floor(run_end / sc->gauge_interval_s) + 2;
     s->n_snapshots = sc->snapshot_interval_s > 0 ? (size_t)floor(run_end / sc->snapshot_interval_s) + 1 : 0;
-    s->model_bytes = sw_model_bytes_for(&s->grid);
+    s->model_bytes = sw_model_bytes_for(&s->grid, sc->precision);
     s->total_bytes = s->model_bytes + n * (2 + 5) * sizeof(double)
                    + sc->n_gauges * s->n_samples * 3 * sizeof(double);
     return SW_OK;

@@ -447,7 +447,7 @@ void sw_sweep_member_label(const sw_sweep_plan *plan, size_t k, char *buf, size_
 sw_status sw_sweep_member_scenario(const sw_sweep_plan *plan, size_t k, sw_scenario *out, sw_error *err)
 {
     ov_list *l = malloc(sizeof *l);
-    sw_override *ov = malloc(sizeof(sw_override) * (sizeof l->e / sizeof l->e[0]));
+    sw_override *ov = malloc(sizeof(sw_override) * (sizeof l->e / sizeof l->e[0] + 1));
     if (!l || !ov) {
         free(l);
         free(ov);
@@ -457,7 +457,9 @@ sw_status sw_sweep_member_scenario(const sw_sweep_plan *plan, size_t k, sw_scena
     member_overrides(plan, k, l);
     for (size_t i = 0; i < l->n; i++)
         ov[i] = (sw_override){ .target = l->e[i].target, .value = l->e[i].value };
-    sw_status st = sw_scenario_override(plan->base, ov, l->n, out, err);
+    /* the base's precision, which --precision may have set over its text, written into every member */
+    ov[l->n] = (sw_override){ .target = "run.precision", .value = sw_precision_name(plan->base->precision) };
+    sw_status st = sw_scenario_override(plan->base, ov, l->n + 1, out, err);
     free(l);
     free(ov);
     if (st == SW_OK) {
@@ -1900,7 +1902,7 @@ sw_status sw_sweep_check(const sw_scenario *sc, double rate_all, FILE *f, char *
         return st;
     int known = 0;
     const sw_layout *layout = sw_layout_find(sc->layout, &known);
-    double rate1 = layout ? sw_estimate_rate(layout, 1, 0.2) : 0;
+    double rate1 = layout ? sw_estimate_rate(layout, sc->precision, 1, 0.2) : 0;
     omp_set_num_threads(threads);
     if (json) {
         cJSON *o = *json ? cJSON_Parse(*json) : cJSON_CreateObject();

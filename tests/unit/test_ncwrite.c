@@ -39,6 +39,7 @@ static sw_run_meta test_meta(const char *title)
         .history = "shoreward run test.scn",
         .scenario_text = SCENARIO,
         .layout = "C",
+        .precision = "single",
         .version = "0.1.0-test",
         .caution = CAUTION,
         .time_origin = "2000-01-01 00:00:00",
@@ -157,6 +158,7 @@ static void assert_globals(int ncid, const char *title)
     assert_text(ncid, NULL, "history", "shoreward run test.scn");
     assert_text(ncid, NULL, "source", "shoreward 0.1.0-test");
     assert_text(ncid, NULL, "layout", "C");
+    assert_text(ncid, NULL, "precision", "single");
     assert_text(ncid, NULL, "scenario", SCENARIO);
     assert_text(ncid, NULL, "caution", CAUTION);
     assert_text(ncid, NULL, "comment", "Linear shallow-water model run; see the caution attribute.");

@@ -257,6 +257,7 @@ static void test_defaults(void **state)
     assert_string_equal(sc->title, "untitled scenario");
     assert_true(sc->duration_s == 3600.0);
     assert_string_equal(sc->layout, "C");
+    assert_int_equal(sc->precision, SW_DOUBLE);
     assert_true(sc->courant_fraction == 0.9);
     assert_true(sc->dt_s == 0.0);
     assert_int_equal(sc->layout_line, 1);    /* defaulted: the [run] header */
@@ -437,6 +438,8 @@ static void test_values_out_of_range_or_malformed(void **state)
         { "[run]\nlayout = F\n", SW_ERR_PARSE, "t.scn:2: [run] layout = F: unknown layout (accepted: A, B, C, D, E (any "
           "case))", NULL },
         { "[run]\nlayout = CC\n", SW_ERR_PARSE, "unknown layout", NULL },
+        { "[run]\nprecision = half\n", SW_ERR_PARSE, "t.scn:2: [run] precision = half: unknown value (accepted: "
+          "double, single)", NULL },
         { "[run]\ncourant = 0\n", SW_ERR_RANGE, "[run] courant = 0: out of range", NULL },
         { "[run]\ncourant = 0.5 s\n", SW_ERR_PARSE, "[run] courant = 0.5 s: unexpected 's' after the number", NULL },
         { "[run]\ndt = 2 d\n", SW_ERR_RANGE, "[run] dt = 2 d: out of range (accepted: 0 < dt <= 1 d", NULL },
@@ -839,9 +842,24 @@ static void test_dir_of_paths(void **state)
     del_sc(sc);
 }
 
+/* [run] precision picks the state's precision; the default is double (above). */
+static void test_precision_key(void **state)
+{
+    (void)state;
+    sw_scenario *sc = parse_ok("[run]\nduration = 1 h\nprecision = single\n[grid]\nnx = 10\nny = 20\ndx = 1 km\n"
+                               "[seabed]\ndeep = 100 m\n");
+    assert_int_equal(sc->precision, SW_SINGLE);
+    del_sc(sc);
+    sc = parse_ok("[run]\nduration = 1 h\nprecision = double\n[grid]\nnx = 10\nny = 20\ndx = 1 km\n"
+                  "[seabed]\ndeep = 100 m\n");
+    assert_int_equal(sc->precision, SW_DOUBLE);
+    del_sc(sc);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_precision_key),
         cmocka_unit_test(test_full_scenario_in_si),
         cmocka_unit_test(test_defaults),
         cmocka_unit_test(test_edges_all),

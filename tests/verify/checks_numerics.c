@@ -95,7 +95,8 @@ void vc_stability(const sw_layout *lay, vr_table *t)
                5.0, "noise in a 32 x 32 walled basin started at rest; every mode neutral, eta_n = eta_0 cos(n theta): "
                "at most its start, phases lining up across the cells make the rest");
         vr_add(t, "0.98 of the limit, walls: drift of E* over 3000 steps", "E* conserved by forward-backward (REFERENCES.md, "
-               "[derived]); positive definite only while p < 2", "1", VR_AT_MOST, 0.0, drift, 1e-9, NULL);
+               "[derived]); positive definite only while p < 2", "1", VR_AT_MOST, 0.0, drift, vh_tol(1e-9, VH_SINGLE_DRIFT),
+               NULL);
     }
     if (noise_run(lay, 1.02, SW_EDGE_WALL, 3000, &growth, &steps, &drift, &err) != SW_OK) {
         vr_broken(t, "stability at 1.02", fail_msg(&err));
@@ -155,7 +156,8 @@ void vc_conservation(const sw_layout *lay, vr_table *t)
         }
         vr_add(t, "volume with walls (bumpy floor, island): relative drift over 2000 steps",
                "mass conservation: sum of eta dA conserved with walls (REFERENCES.md, [derived])", "1", VR_AT_MOST, 0.0,
-               drift, 1e-11, "displaced volume %.6e m3; round-off only (flux form telescopes)", v0);
+               drift, vh_tol(1e-11, VH_SINGLE_DRIFT), "displaced volume %.6e m3; round-off only (flux form telescopes)",
+               v0);
         sw_model_free(m);
     }
 
@@ -172,7 +174,8 @@ void vc_conservation(const sw_layout *lay, vr_table *t)
         }
         vr_add(t, "E* with walls, constant depth: relative drift over 2000 steps",
                "E* = sum[(g/2) eta^2 + (H/2)|u|^2] dA - (g H dt/2) sum eta D u dA conserved when the gradient is minus "
-               "the transpose of the divergence (REFERENCES.md, [derived])", "1", VR_AT_MOST, 0.0, drift, 1e-12,
+               "the transpose of the divergence (REFERENCES.md, [derived])", "1", VR_AT_MOST, 0.0, drift,
+               vh_tol(1e-12, VH_SINGLE_DRIFT),
                "E* = %.6e m5 s-2", e0);
         sw_model_free(m);
     }
@@ -198,7 +201,7 @@ void vc_conservation(const sw_layout *lay, vr_table *t)
         const char *src = "radiation edges only let energy out: E* (REFERENCES.md, [derived]) can only fall, "
                           "to round-off, when the edge flux is outward";
         vr_add(t, "E* with open edges never rises above its start (5000 steps): max E* / E*_0", src, "1", VR_AT_MOST,
-               1.0, top / e0, 1.0 + 1e-12,
+               1.0, top / e0, 1.0 + vh_tol(1e-12, VH_SINGLE_RISE),
                "E* rose in %ld of %ld steps, by at most %.2e of E*_0 in one step (round-off would be ~1e-15: a "
                "layout whose E* is not monotone at open edges shows small transient rises while the wave crosses)",
                n_rise, steps, rise);

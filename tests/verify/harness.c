@@ -7,6 +7,10 @@
 
 #include "omp_compat.h"
 
+sw_precision vh_precision = SW_DOUBLE;
+
+double vh_tol(double tol_double, double tol_single) { return vh_precision == SW_SINGLE ? tol_single : tol_double; }
+
 sw_status vh_model(const vh_setup *s, sw_model **out, sw_error *err)
 {
     *out = NULL;
@@ -18,7 +22,8 @@ sw_status vh_model(const vh_setup *s, sw_model **out, sw_error *err)
         depth[k] = s->depth ? s->depth[k] : s->h;
     sw_grid g = {.nx = s->nx, .ny = s->ny, .dx_m = s->dx, .dy_m = s->dy};
     sw_model_config cfg = {.layout = s->layout, .grid = g, .depth_m = depth, .eta0_m = s->eta0,
-                           .min_depth_m = 1.0, .gravity_ms2 = VH_G, .allow_unstable = s->allow_unstable};
+                           .min_depth_m = 1.0, .gravity_ms2 = VH_G, .allow_unstable = s->allow_unstable,
+                           .precision = vh_precision};
     for (int e = 0; e < 4; e++)
         cfg.edges[e] = s->edges[e];
     cfg.dt_s = s->courant_frac * sw_model_dt_limit(s->layout, &g, depth, 1.0, VH_G, 2);

@@ -135,6 +135,8 @@ def main():
     ap.add_argument("--verify", required=True, help="the sw_verify program (asked which layouts are built)")
     ap.add_argument("--layout", required=True)
     ap.add_argument("--work", required=True, help="folder for the scenario and the run's output")
+    ap.add_argument("--precision", choices=("double", "single"), default="double",
+                    help="the model state's precision (passed to shoreward run --precision)")
     ap.add_argument("--json", action="store_true")
     args = ap.parse_args()
 
@@ -155,7 +157,8 @@ def main():
     with open(scn, "w") as f:
         f.write(scenario(layout, duration))
     out = os.path.join(args.work, "out")
-    run = subprocess.run([args.shoreward, "run", scn, "--out", out, "--threads", "1", "--json"],
+    run = subprocess.run([args.shoreward, "run", scn, "--out", out, "--threads", "1", "--precision", args.precision,
+                          "--json"],
                          capture_output=True, text=True)
     if run.returncode != 0:
         rows.broken("shoreward run", run.stderr.strip() or f"exit status {run.returncode}")

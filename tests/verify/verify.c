@@ -2,7 +2,7 @@
  *
  *   verify --list                       the checks, one per line: NAME  summary
  *   verify --layouts                    the layouts this build has, one per line
- *   verify --check NAME|all --layout L|all [--json]
+ *   verify --check NAME|all --layout L|all [--precision double|single] [--json]
  *                                       runs checks; rows as text, or one JSON array with --json
  *   verify --expect "NAME,NAME,..."     exit 0 when the list of checks is exactly this (CMake's list)
  *
@@ -15,6 +15,7 @@
 #include <string.h>
 
 #include "checks.h"
+#include "harness.h"
 #include "layout.h"
 #include "rows.h"
 
@@ -36,7 +37,7 @@ static const size_t n_checks = sizeof checks / sizeof checks[0];
 
 static int usage(const char *msg)
 {
-    fprintf(stderr, "verify: %s\nusage: verify --list | --layouts | --expect LIST | --check NAME|all --layout L|all [--json]\n",
+    fprintf(stderr, "verify: %s\nusage: verify --list | --layouts | --expect LIST | --check NAME|all --layout L|all [--precision P] [--json]\n",
             msg);
     return 2;
 }
@@ -79,6 +80,9 @@ int main(int argc, char **argv)
             check = argv[++a];
         } else if (!strcmp(argv[a], "--layout") && a + 1 < argc) {
             layout = argv[++a];
+        } else if (!strcmp(argv[a], "--precision") && a + 1 < argc) {
+            if (!sw_precision_parse(argv[++a], &vh_precision))
+                return usage("--precision takes double or single");
         } else if (!strcmp(argv[a], "--json")) {
             json = 1;
         } else {
