@@ -5,9 +5,11 @@
 
 #include "bench.h"
 #include "cli.h"
+#include "layout.h"
 
 static const char *const usage_bench =
-    "Usage: shoreward bench [--size N] [--threads LIST] [--rounds R] [--no-numpy] [--json]\n"
+    "Usage: shoreward bench [--size N] [--threads LIST] [--rounds R] [--precision P] [--layouts LIST]\n"
+    "                       [--no-numpy] [--json]\n"
     "\n"
     "Measures, in one process and in interleaved rounds so that machine noise hits every figure alike:\n"
     "  - the STREAM triad bandwidth (McCalpin's kernel, best of 3 per round);\n"
@@ -16,16 +18,20 @@ static const char *const usage_bench =
     "  - the same C-layout scheme written in plain vectorised NumPy (tools/bench_numpy.py).\n"
     "Reports medians with the spread, the effective bandwidth (cells x steps x bytes per cell update per\n"
     "the layout's bytes model / time) as a ratio to triad, the cost of tracking, the parallel efficiency\n"
-    "and the speed-up over NumPy. Nothing passes or fails. Needs about 6 GB of memory at the default size.\n"
+    "and the speed-up over NumPy. Nothing passes or fails. Needs about 6 GB of memory at the default size\n"
+    "(the NumPy version on the same grid needs about as much again).\n"
     "\n"
     "  --size N        cells per side of the large grid (default: from the cache size)\n"
     "  --threads LIST  thread counts for scaling, e.g. 1,2 (default: 1 .. cores)\n"
     "  --rounds R      interleaved rounds, 3 to 32 (default 5)\n"
+    "  --precision P   single (default: the performance targets are stated for it) or double\n"
+    "  --layouts LIST  layouts to measure, e.g. C or A,C (default: all)\n"
     "  --no-numpy      skip the NumPy comparison\n"
     "  --json          print the figures as one JSON object on stdout\n"
     "\n"
     "Example:\n"
-    "  shoreward bench --size 3000 --rounds 3\n";
+    "  shoreward bench --size 3000 --rounds 3\n"
+    "  shoreward bench --layouts C --precision double\n";
 
 static void show(const char *what, void *user)
 {
@@ -37,7 +43,8 @@ int cmd_bench(int argc, char **argv, const char *history)
 {
     (void)history;
     sw_bench_options opt = {.rounds = 5, .python = "/usr/bin/python3", .numpy_script = SW_SOURCE_DIR "/tools/bench_numpy.py",
-                            .progress = show};
+                            .progress = show, .precision = SW_SINGLE};
+    char layouts[16] = "";
     int json = 0;
     for (int k = 0; k < argc; k++) {
         const char *s = argv[k];
@@ -61,6 +68,25 @@ int cmd_bench(int argc, char **argv, const char *history)
             if (*end || n < 3 || n > 32)
                 return cli_usage_error("bench", "--rounds takes a whole number from 3 to 32, not '%s'", val);
             opt.rounds = (int)n;
+            k++;
+        } else if (!strcmp(s, "--precision") && val) {
+            if (!sw_precision_parse(val, &opt.precision))
+                return cli_usage_error("bench", "--precision takes single or double, not '%s'", val);
+            k++;
+        } else if (!strcmp(s, "--layouts") && val) {
+            size_t n = 0;
+            for (const char *p = val; *p; p++) {
+                if (*p == ',')
+                    continue;
+                char name[2] = {*p, '\0'};
+                if (!sw_layout_find(name, NULL) || n + 1 >= sizeof layouts)
+                    return cli_usage_error("bench", "--layouts takes a list of layouts such as A,C, not '%s'", val);
+                layouts[n++] = *p;
+                layouts[n] = '\0';
+            }
+            if (!n)
+                return cli_usage_error("bench", "--layouts takes a list of layouts such as A,C, not '%s'", val);
+            opt.layouts = layouts;
             k++;
         } else if (!strcmp(s, "--threads") && val) {
             char buf[256];
