@@ -30,10 +30,11 @@ typedef struct {
     int json;               /* --json */
     int precision_set;      /* 1 when --precision was given */
     sw_precision precision; /* --precision double|single: replaces the scenario's [run] precision */
+    int recalibrate;        /* --recalibrate: measure this machine's rate again (check) */
 } cli_args;
 
-/* parse flags: accept --out; accept --threads/--quiet; accept --precision */
-enum { CLI_OUT = 1, CLI_RUN_OPTS = 2, CLI_PRECISION = 4 };
+/* parse flags: accept --out; accept --threads/--quiet; accept --precision; accept --recalibrate */
+enum { CLI_OUT = 1, CLI_RUN_OPTS = 2, CLI_PRECISION = 4, CLI_RECALIBRATE = 8 };
 
 /* Help text for --precision, shared by the commands that take it. */
 #define CLI_PRECISION_HELP \

@@ -71,6 +71,8 @@ int cli_parse(const char *cmd, const char *usage, int argc, char **argv, int fla
             a->json = 1;
         } else if ((flags & CLI_RUN_OPTS) && !strcmp(s, "--quiet")) {
             a->quiet = 1;
+        } else if ((flags & CLI_RECALIBRATE) && !strcmp(s, "--recalibrate")) {
+            a->recalibrate = 1;
         } else if ((flags & CLI_OUT) && (val = option_value("--out", argc, argv, &k, &missing))) {
             if (missing || !*val)
                 return cli_usage_error(cmd, "%s needs a folder", "--out");
@@ -133,7 +135,7 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
 
     int tty = isatty(STDERR_FILENO) && !a->quiet;
     if (!a->json && !a->quiet) {
-        sw_report_plan(stdout, sc, &setup, 0);
+        sw_report_plan(stdout, sc, &setup, NULL);
         printf("\n%s\n\n", sw_caution());
         fflush(stdout);
     }

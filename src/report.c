@@ -4,6 +4,7 @@
 #include <cjson/cJSON.h>
 #include <math.h>
 #include <stdlib.h>
+#include <string.h>
 
 #include "gauges.h"
 
@@ -32,7 +33,21 @@ static const char *edge_name(sw_edge_kind e)
 
 static double bytes_mb(size_t b) { return (double)b / (1024.0 * 1024.0); }
 
-void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, double rate)
+/* "just now", "5 min ago", "3 h ago" or "2 days ago" for an age in days, into buf. */
+static void format_age(double days, char *buf, size_t n)
+{
+    double min = days * 1440;
+    if (min < 1)
+        snprintf(buf, n, "just now");
+    else if (min < 60)
+        snprintf(buf, n, "%.0f min ago", floor(min));
+    else if (min < 48 * 60)
+        snprintf(buf, n, "%.0f h ago", floor(min / 60));
+    else
+        snprintf(buf, n, "%.0f days ago", floor(days));
+}
+
+void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
 {
     const sw_grid *g = &s->grid;
     char buf[64];
@@ -52,9 +67,23 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, double ra
     fprintf(f, "Run        %s simulated in %lld steps; %zu gauge samples each; %zu snapshots\n", buf, s->n_steps,
             s->n_samples, s->n_snapshots);
     fprintf(f, "Memory     %.1f MB (model state %.1f MB)\n", bytes_mb(s->total_bytes), bytes_mb(s->model_bytes));
-    if (rate > 0) {
-        sw_format_duration((double)s->n_steps * (double)sw_grid_cells(g) / rate, buf, sizeof buf);
-        fprintf(f, "Estimate   about %s on this machine (measured %.3g cell-updates/s)\n", buf, rate);
+    if (rate && rate->cells_per_s > 0) {
+        char how[64];
+        sw_format_duration((double)s->n_steps * (double)sw_grid_cells(g) / rate->cells_per_s, buf, sizeof buf);
+        fprintf(f, "Estimate   about %s at %.3g cell-updates/s ", buf, rate->cells_per_s);
+        if (!strcmp(rate->source, "cache")) {
+            format_age(rate->age_days, how, sizeof how);
+            fprintf(f, "(cached %s, %d thread%s; --recalibrate to re-measure)\n", how, rate->threads,
+                    rate->threads == 1 ? "" : "s");
+        } else {
+            fprintf(f, "(measured now, %d thread%s; ", rate->threads, rate->threads == 1 ? "" : "s");
+            if (rate->cache_written && !rate->note[0])
+                fprintf(f, "cached in %s)\n", rate->path);
+            else if (rate->cache_written)
+                fprintf(f, "cached in %s; %s)\n", rate->path, rate->note);
+            else
+                fprintf(f, "%s)\n", rate->note[0] ? rate->note : "cache not written");
+        }
     }
     if (sc->n_gauges) {
         fprintf(f, "\n%-24s %12s %12s %10s\n", "Gauge", "x (km)", "y (km)", "depth (m)");
@@ -75,7 +104,7 @@ static void add_number_or_null(cJSON *o, const char *key, double v)
         cJSON_AddNullToObject(o, key);
 }
 
-static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, double rate)
+static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
 {
     cJSON *o = cJSON_CreateObject();
     if (!o)
@@ -101,8 +130,22 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, double rate)
     cJSON_AddNumberToObject(o, "steps", (double)s->n_steps);
     cJSON_AddNumberToObject(o, "duration_s", sc->duration_s);
     cJSON_AddNumberToObject(o, "memory_bytes", (double)s->total_bytes);
-    if (rate > 0)
-        cJSON_AddNumberToObject(o, "estimated_seconds", (double)s->n_steps * (double)sw_grid_cells(g) / rate);
+    if (rate && rate->cells_per_s > 0) {
+        cJSON_AddNumberToObject(o, "estimated_seconds",
+                                (double)s->n_steps * (double)sw_grid_cells(g) / rate->cells_per_s);
+        cJSON_AddNumberToObject(o, "rate_cells_per_s", rate->cells_per_s);
+        cJSON_AddStringToObject(o, "rate_source", rate->source);
+        cJSON_AddNumberToObject(o, "rate_age_days", rate->age_days);
+        cJSON_AddNumberToObject(o, "rate_threads", rate->threads);
+        if (rate->cache_written || !strcmp(rate->source, "cache"))
+            cJSON_AddStringToObject(o, "rate_cache_file", rate->path);
+        else
+            cJSON_AddNullToObject(o, "rate_cache_file");
+        if (rate->note[0])
+            cJSON_AddStringToObject(o, "rate_note", rate->note);
+        else
+            cJSON_AddNullToObject(o, "rate_note");
+    }
     cJSON *gs = cJSON_AddArrayToObject(o, "gauges");
     for (size_t q = 0; q < sc->n_gauges; q++) {
         cJSON *e = cJSON_CreateObject();
@@ -117,7 +160,7 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, double rate)
     return o;
 }
 
-char *sw_report_plan_json(const sw_scenario *sc, const sw_setup *s, double rate)
+char *sw_report_plan_json(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
 {
     cJSON *o = plan_object(sc, s, rate);
     char *txt = o ? cJSON_Print(o) : NULL;

@@ -5,6 +5,7 @@
 #include <stddef.h>
 #include <stdio.h>
 
+#include "estimate.h"
 #include "run.h"
 #include "scenario.h"
 #include "setup.h"
@@ -13,11 +14,15 @@
 void sw_format_duration(double s, char *buf, size_t n);
 
 /* Prints the plan of a run (grid, layout, dt and Courant number against the limit, steps, memory,
- * estimated time from rate cell-updates/s (0 = unknown), gauges with their depth and warnings). */
-void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, double rate);
+ * gauges with their depth and warnings). With a rate (NULL or cells_per_s <= 0 = unknown: no
+ * estimate), one line gives the estimated time, cells x steps / rate, with the rate and where it
+ * came from (cache and its age, or measured now and whether the cache was written). */
+void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate);
 
-/* The plan as a JSON object (string owned by the caller, free()). NULL when out of memory. */
-char *sw_report_plan_json(const sw_scenario *sc, const sw_setup *s, double rate);
+/* The plan as a JSON object (string owned by the caller, free()). NULL when out of memory. With a
+ * rate it has "estimated_seconds", "rate_cells_per_s", "rate_source" ("cache" or "measured"),
+ * "rate_age_days", "rate_threads", "rate_cache_file" (null when none) and "rate_note" (null when none). */
+char *sw_report_plan_json(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate);
 
 /* Prints the end-of-run summary: a table per gauge, the files written and the caution. */
 void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_run_result *r);

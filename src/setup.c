@@ -8,6 +8,7 @@
 #include "model.h"
 #include "seabed.h"
 #include "source.h"
+#include "tracker.h"
 
 void sw_setup_free(sw_setup *s)
 {
@@ -120,7 +121,17 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
     s->n_samples = (size_t)floor(run_end / sc->gauge_interval_s) + 2;
     s->n_snapshots = sc->snapshot_interval_s > 0 ? (size_t)floor(run_end / sc->snapshot_interval_s) + 1 : 0;
     s->model_bytes = sw_model_bytes_for(&s->grid, sc->precision);
-    s->total_bytes = s->model_bytes + n * (2 + 5) * sizeof(double)
-                   + sc->n_gauges * s->n_samples * 3 * sizeof(double);
+    s->total_bytes = sw_setup_total_bytes(sc, s);
     return SW_OK;
+}
+
+size_t sw_setup_total_bytes(const sw_scenario *sc, const sw_setup *s)
+{
+    const size_t n = sw_grid_cells(&s->grid);
+    return s->model_bytes
+         + n * 2 * sizeof(double)                                  /* input depth and initial elevation */
+         + n * sw_tracker_bytes_per_cell()                          /* running maps during the run */
+         + n * 5 * sizeof(double)                                   /* the five result maps written */
+         + (s->n_snapshots ? n * sizeof(double) : 0)                /* one snapshot frame */
+         + sc->n_gauges * s->n_samples * 3 * sizeof(double);       /* gauge series */
 }

@@ -29,7 +29,7 @@ typedef struct {
     size_t n_samples;         /* gauge samples the run will record, at most */
     size_t n_snapshots;       /* eta snapshots the run will write */
     size_t model_bytes;       /* memory of the model state, bytes */
-    size_t total_bytes;       /* model + inputs + maps + gauge series, bytes (estimate) */
+    size_t total_bytes;       /* a run's peak memory, bytes (sw_setup_total_bytes) */
 } sw_setup;
 
 /* Builds the setup for sc: grid (taken from the seabed file when sc has no [grid]; sc->grid is
@@ -40,5 +40,10 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err);
 
 /* Releases the arrays s owns and zeroes it. s may be NULL. */
 void sw_setup_free(sw_setup *s);
+
+/* The memory a run of sc on setup s holds at its peak, bytes: the model (s->model_bytes), the input
+ * depth and elevation, the tracker's running maps, the five result maps, a snapshot frame when
+ * snapshots are on, and the gauge series. Uses s->grid, s->model_bytes, s->n_samples, s->n_snapshots. */
+size_t sw_setup_total_bytes(const sw_scenario *sc, const sw_setup *s);
 
 #endif

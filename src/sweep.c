@@ -512,7 +512,7 @@ static sw_status rescale_depth(const sw_scenario *sc, sw_setup *s, double factor
     double run_end = (double)s->n_steps * s->dt_s;
     s->n_samples = (size_t)floor(run_end / sc->gauge_interval_s) + 2;
     s->n_snapshots = sc->snapshot_interval_s > 0 ? (size_t)floor(run_end / sc->snapshot_interval_s) + 1 : 0;
-    s->total_bytes = s->model_bytes + n * (2 + 5) * sizeof(double) + sc->n_gauges * s->n_samples * 3 * sizeof(double);
+    s->total_bytes = sw_setup_total_bytes(sc, s);
     return SW_OK;
 }
 
@@ -1902,7 +1902,7 @@ sw_status sw_sweep_check(const sw_scenario *sc, double rate_all, FILE *f, char *
         return st;
     int known = 0;
     const sw_layout *layout = sw_layout_find(sc->layout, &known);
-    double rate1 = layout ? sw_estimate_rate(layout, sc->precision, 1, 0.2) : 0;
+    double rate1 = layout ? sw_estimate_rate(layout, sc->precision, 1, SW_RATE_CALIBRATION_S) : 0;
     omp_set_num_threads(threads);
     if (json) {
         cJSON *o = *json ? cJSON_Parse(*json) : cJSON_CreateObject();

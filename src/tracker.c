@@ -39,6 +39,8 @@ void sw_tracker_free(sw_tracker *t)
     free(t);
 }
 
+size_t sw_tracker_bytes_per_cell(void) { return 5 * sizeof(float); }
+
 sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads, sw_tracker **out,
                             sw_error *err)
 {

@@ -42,4 +42,8 @@ double sw_tracker_noise(const sw_tracker *t, const unsigned char *wet);
 
 void sw_tracker_free(sw_tracker *t);
 
+/* Bytes per grid cell the tracker holds while a run goes (its running maps; sw_tracker_maps adds the
+ * double maps the writers take, 5 x 8 bytes per cell, counted apart). */
+size_t sw_tracker_bytes_per_cell(void);
+
 #endif
