@@ -48,6 +48,11 @@ typedef struct sw_layout_kernels {
      * the two velocity components (m/s) interpolated to the centre. Land cells give 0. */
     void (*centre_row)(const sw_model *m, size_t j, double *eta, double *u, double *v);
 
+    /* centre_row rounded to float, for the tracker, whose maps are float: the same values as
+     * (float) of centre_row's, made without the double detour. Optional: NULL makes
+     * sw_model_centre_row_f32 convert centre_row's doubles. */
+    void (*centre_row_f32)(const sw_model *m, size_t j, float *eta, float *u, float *v);
+
     /* Elevation at the centre of cell (i, j), m, as centre_row gives it; 0 on land. NULL when every
      * cell stores its own elevation (then it is the stored value). */
     double (*eta_at)(const sw_model *m, size_t i, size_t j);
@@ -56,6 +61,10 @@ typedef struct sw_layout_kernels {
      * unit density, m5 s-2:  E* = sum (g/2) eta^2 dA + sum (hu/2) |u|^2 dA - (g dt / 2) sum eta D(h u) dA,
      * with D the layout's divergence and hu the depth carried by each velocity point. Summed in double. */
     double (*energy)(const sw_model *m);
+
+    /* 1 when step shows every finished row to the model's observer itself (sw_model_observe_row, once per
+     * row, after the row's last value is final); 0 and sw_model_step observes after the step. */
+    int observes_rows;
 } sw_layout_kernels;
 
 typedef struct sw_layout {

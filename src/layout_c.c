@@ -88,7 +88,10 @@ static inline void c_v_row(sw_real *restrict v, const sw_real *restrict eta, con
  * advances eta (old u, v), sets that row's edge ghosts, advances u of row j (new eta of row j) and
  * v of row j-1 (new eta of rows j-1 and j). v of the block's last row needs the next block's first
  * row of eta, so it waits for a barrier. The next block reads that old v before the barrier, as the
- * continuity equation requires. Each cell is computed the same way for any thread count. */
+ * continuity equation requires. Each cell is computed the same way for any thread count.
+ * Observing (model_impl.h): row j-1 is final once v of row j-1 is, except the block's first row,
+ * whose south face belongs to the previous block's last v; so rows j0+1 .. j1-1 are observed in the
+ * sweep, while still in cache, and rows j0 and j1 after the second barrier (a third ends the step). */
 static void c_step(sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
@@ -107,11 +110,18 @@ static void c_step(sw_model *m)
             c_v_row(v, eta, hy, 1, nx, s, gy);   /* the south edge's faces: ghost row 0 and row 1 */
         if (j > j0)
             c_v_row(v, eta, hy, (j - 1) * s + 1, nx, s, gy);
+        if (j > j0 + 1)
+            sw_model_observe_row(m, j - 1);
     }
     SW_OMP(barrier)
     if (j1 >= j0)
         c_v_row(v, eta, hy, j1 * s + 1, nx, s, gy);
     SW_OMP(barrier)
+    if (j1 >= j0)
+        sw_model_observe_row(m, j0);
+    if (j1 > j0)
+        sw_model_observe_row(m, j1);
+    SW_OMP(barrier)   /* the step ends when every row has been observed */
 }
 
 static void c_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
@@ -122,6 +132,20 @@ static void c_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
         eta[i] = SW_F(m, eta)[k];
         u[i] = 0.5 * ((double)SW_F(m, u)[k - 1] + SW_F(m, u)[k]);
         v[i] = 0.5 * ((double)SW_F(m, v)[k - s] + SW_F(m, v)[k]);
+    }
+}
+
+/* c_centre_row in float: each value is (float) of c_centre_row's. In single precision the sums of two
+ * floats are exact in double, so one float rounding gives the same bits; halving is exact. */
+static void c_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
+{
+    const size_t r = sw_pidx(m, 0, j), s = m->stride, nx = m->grid.nx;
+    const sw_real *restrict e = SW_F(m, eta) + r, *restrict uu = SW_F(m, u) + r, *restrict vv = SW_F(m, v) + r;
+    SW_OMP(simd)
+    for (size_t i = 0; i < nx; i++) {
+        eta[i] = (float)e[i];
+        u[i] = (float)((sw_real)0.5 * (uu[i - 1] + uu[i]));
+        v[i] = (float)((sw_real)0.5 * (vv[i - s] + vv[i]));
     }
 }
 
@@ -162,7 +186,9 @@ const sw_layout_kernels SW_NAME(sw_layout_c_kernels) = {
     .prepare = c_prepare,
     .step = c_step,
     .centre_row = c_centre_row,
+    .centre_row_f32 = c_centre_row_f32,
     .energy = c_energy,
+    .observes_rows = 1,
 };
 
 #if SW_REAL_BITS == 64

@@ -12,31 +12,24 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "fpmode.h"
 #include "omp_compat.h"
-
-#if defined(__SSE2__)
-#include <xmmintrin.h>
-#endif
 
 #define SW_ALIGN 64
 
-/* Runs the layout's step with subnormal numbers flushed to zero (x86 MXCSR bits FTZ and DAZ), then
- * restores the caller's floating-point mode. The tails of every wave decay through the subnormal range
- * (below 1.2e-38 m in single precision, 2.2e-308 in double), where x86 arithmetic takes a slow
- * microcode path; measured on this project's calibration basin, single precision stepped 2.6x slower
- * than double until they were flushed. Values that small are far below any tolerance (round-off is
- * 6e-8 relative in single). Every thread sets the same mode, so results stay the same bits for any
- * thread count. Elsewhere (no SSE2) the step runs in the default mode. */
+/* The layout's step, and the observer over every row when the step does not observe rows itself, with
+ * subnormal numbers flushed to zero (fpmode.h); the caller's floating-point mode is restored after. */
 static void step_flushed(sw_model *m)
 {
-#if defined(__SSE2__)
-    const unsigned int saved = _mm_getcsr();
-    _mm_setcsr(saved | 0x8040u);   /* FTZ (bit 15) | DAZ (bit 6) */
+    const unsigned int saved = sw_fp_flush();
     m->kernels->step(m);
-    _mm_setcsr(saved);
-#else
-    m->kernels->step(m);
-#endif
+    if (m->observed && !m->kernels->observes_rows) {
+        const double t = (double)(m->steps + 1) * m->dt;
+        SW_OMP(for schedule(static))
+        for (size_t j = 0; j < m->grid.ny; j++)
+            m->observe(m->observe_ctx, m, j, t);
+    }
+    sw_fp_restore(saved);
 }
 
 static size_t round_up(size_t n, size_t to) { return (n + to - 1) / to * to; }
@@ -179,6 +172,14 @@ static sw_status start_at_rest(sw_model *m, sw_error *err)
     return SW_OK;
 }
 
+static void observe_nothing(void *ctx, const sw_model *m, size_t j, double time_s)
+{
+    (void)ctx;
+    (void)m;
+    (void)j;
+    (void)time_s;
+}
+
 sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *err)
 {
     *out = NULL;
@@ -210,6 +211,7 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     m->layout = cfg->layout;
     m->precision = cfg->precision;
     m->kernels = cfg->layout->kernels[cfg->precision];
+    m->observe = observe_nothing;
     m->grid = *g;
     m->g = cfg->gravity_ms2;
     m->dt = cfg->dt_s;
@@ -359,6 +361,13 @@ sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, 
 
 void sw_model_step(sw_model *m) { step_flushed(m); }
 
+void sw_model_set_observer(sw_model *m, sw_row_observer fn, void *ctx)
+{
+    m->observe = fn ? fn : observe_nothing;
+    m->observe_ctx = fn ? ctx : NULL;
+    m->observed = fn != NULL;
+}
+
 double sw_model_energy(const sw_model *m) { return m->kernels->energy(m); }
 
 void sw_model_tick(sw_model *m)
@@ -370,6 +379,21 @@ void sw_model_tick(sw_model *m)
 void sw_model_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
 {
     m->kernels->centre_row(m, j, eta, u, v);
+}
+
+void sw_model_centre_row_f32(const sw_model *m, size_t j, float *eta, float *u, float *v, double *scratch)
+{
+    if (m->kernels->centre_row_f32) {
+        m->kernels->centre_row_f32(m, j, eta, u, v);
+        return;
+    }
+    const size_t nx = m->grid.nx;
+    m->kernels->centre_row(m, j, scratch, scratch + nx, scratch + 2 * nx);
+    for (size_t i = 0; i < nx; i++) {
+        eta[i] = (float)scratch[i];
+        u[i] = (float)scratch[nx + i];
+        v[i] = (float)scratch[2 * nx + i];
+    }
 }
 
 double sw_model_eta(const sw_model *m, size_t i, size_t j) { return sw_model_get(m, m->eta, sw_pidx(m, i, j)); }

@@ -26,6 +26,12 @@
 
 typedef struct sw_model sw_model;
 
+/* An observer of the state, row by row: called with grid row j (0 .. ny-1) once a step has finished
+ * every value of that row, with time_s the time of that state (s), by the thread that finished the row
+ * (each row exactly once per step, rows in any order and from any thread). It may read the model
+ * (sw_model_centre_row) for row j only, and must not write it. ctx is the observer's own. */
+typedef void (*sw_row_observer)(void *ctx, const sw_model *m, size_t j, double time_s);
+
 /* What a model is built from. Arrays are [ny * nx], row j at [j * nx]; they are copied. */
 typedef struct {
     const sw_layout *layout;   /* from sw_layout_find */
@@ -62,14 +68,25 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
 /* Frees the model. m may be NULL. */
 void sw_model_free(sw_model *m);
 
-/* One time step (see sw_layout.step: call from all threads of a parallel region, or outside one). */
+/* One time step (see sw_layout.step: call from all threads of a parallel region, or outside one).
+ * With an observer set (sw_model_set_observer) it also shows the observer every row of the new state:
+ * layouts whose step observes rows as it finishes them (sw_layout_kernels.observes_rows) do it while
+ * the row is still in cache; for the others every row is observed after the step. The time passed is
+ * the time after the step, what sw_model_time gives after the sw_model_tick that follows. */
 void sw_model_step(sw_model *m);
+
+/* Sets the row observer sw_model_step calls (NULL: none). Call outside parallel regions. */
+void sw_model_set_observer(sw_model *m, sw_row_observer fn, void *ctx);
 
 /* Advances the step counter and clock after a step. Call from one thread only. */
 void sw_model_tick(sw_model *m);
 
 /* Values at the centres of row j (see sw_layout.centre_row). */
 void sw_model_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v);
+
+/* sw_model_centre_row rounded to float, into eta, u, v (each nx long); scratch holds 3 nx doubles
+ * for layouts without a float kernel (sw_layout_kernels.centre_row_f32). */
+void sw_model_centre_row_f32(const sw_model *m, size_t j, float *eta, float *u, float *v, double *scratch);
 
 /* Elevation at cell centre (i, j), m. */
 double sw_model_eta(const sw_model *m, size_t i, size_t j);

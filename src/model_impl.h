@@ -15,6 +15,7 @@
 
 #include "grid.h"
 #include "layout.h"
+#include "model.h"
 #include "real.h"
 #include "omp_compat.h"
 #include "scenario.h"
@@ -66,7 +67,18 @@ struct sw_model {
 
     long long steps;     /* steps taken */
     double time;         /* simulated time, s */
+
+    sw_row_observer observe;   /* never NULL: a no-op when nothing observes (model.c) */
+    void *observe_ctx;
+    int observed;              /* 1 when an observer is set */
 };
+
+/* Shows the observer padded row j (1 .. ny) of the state this step has just finished. For layouts
+ * whose step observes rows itself (sw_layout_kernels.observes_rows); the time is after the step. */
+static inline void sw_model_observe_row(const sw_model *m, size_t j)
+{
+    m->observe(m->observe_ctx, m, j - 1, (double)(m->steps + 1) * m->dt);
+}
 
 /* Padded index of grid cell (i, j), 0-based (i < nx, j < ny). Halo neighbours are reached from it
  * by -1 / +1 (west / east) and -stride / +stride (south / north). */

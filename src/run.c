@@ -144,12 +144,12 @@ static void time_loop(run_ctx *c)
     SW_OMP(parallel)
     {
         for (long long n = 0; n < n_steps; n++) {
-            sw_model_step(c->model);
+            sw_model_step(c->model);   /* also updates the tracker (attached in sw_run) */
             SW_OMP(single)
-            sw_model_tick(c->model);
-            sw_tracker_update(c->tracker, c->model);
-            SW_OMP(single)
-            between_steps(c, n + 1 == n_steps);
+            {
+                sw_model_tick(c->model);
+                between_steps(c, n + 1 == n_steps);
+            }
             /* the barrier at the end of `single` publishes c->stop to every thread */
             if (c->stop)
                 break;
@@ -215,6 +215,8 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
     rc = sw_model_create(&cfg, &c.model, err);
     if (rc == SW_OK)
         rc = sw_tracker_create(c.model, sc->arrival_threshold_m, res->threads, &c.tracker, err);
+    if (rc == SW_OK)
+        sw_tracker_attach(c.tracker, c.model);
     if (rc == SW_OK)
         rc = sw_gauges_create(c.model, setup->depth_m, sc->gauges, sc->n_gauges, setup->n_samples, &c.gauges, err);
     if (rc == SW_OK && sc->snapshot_interval_s > 0 && !opt->sink) {

@@ -4,22 +4,65 @@
  * elevations, and for times a resolution finer than 0.01 s up to a simulated day): the tracker
  * reads and writes them at every step, so their size is its cost. sw_tracker_maps converts them to
  * the double maps the writers take.
+ *
+ * Every map is made from the centre values rounded to float (sw_model_centre_row_f32), the squared
+ * speed computed in float. Elevations smaller than the floor (1 micrometre, or a hundredth of the
+ * arrival threshold when that is smaller) and speeds below 1 micrometre per second count as 0: the
+ * tail of a Gaussian source reaches every cell of the grid with values like 1e-14 m that change every
+ * step, and without a floor every map of every cell would be rewritten at every step for nothing.
+ *
+ * Most of a grid, most of the time, cannot change its maps: the water is still, or lower than the crest
+ * that already passed. Each row is cut into segments of SEG cells, and each segment keeps a summary
+ * of its maps (the lowest eta_max, the highest eta_min, the lowest speed_max^2, whether a water cell
+ * still waits for its arrival). A row update first reduces the new values of each segment (highest
+ * and lowest elevation, top squared speed, largest |eta|) and touches the segment's maps only when one
+ * of them could change; the per-cell rules are the same either way, so the maps are the same bits as
+ * with every cell updated. Attached to the model (sw_tracker_attach) the update runs inside the step,
+ * on rows still in cache, and the state is not streamed from memory a second time. Either way it runs
+ * with subnormal numbers flushed to zero (fpmode.h), so values below 1.18e-38 enter the maps as 0.
  */
 #include "tracker.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdlib.h>
 
+#include "fpmode.h"
 #include "omp_compat.h"
+
+#define SEG 512   /* cells per segment of a row (the last one may be shorter) */
+#define SPEED2_FLOOR 1e-12f   /* m2 s-2: squared speeds below (1 micrometre per second)^2 count as 0 */
+
+/* What a segment's maps hold at best, as the values that would change them: for deciding, from the
+ * raw (unfloored) new values, that they cannot. Maps hold floored values only: 0, or at least the
+ * floor in size. So with lo_max the lowest eta_max of the segment, a floored value passes it only if
+ * a raw value passes lo_max, or passes the floor when lo_max is 0 (and so for the others). */
+typedef struct {
+    float up;          /* m: a raw eta above it may raise an eta_max (lo_max, or just under the floor if 0) */
+    float down;        /* m: a raw eta below it may lower an eta_min */
+    float faster;      /* m2 s-2: a raw squared speed above it may raise a speed2_max */
+    int waiting;       /* 1 while a water cell of the segment has no arrival time yet */
+} seg_summary;
+
+/* The trigger for a map whose weakest value is `weakest`, given the floor below which values are 0. */
+static float trigger(float weakest, float floor_value)
+{
+    return weakest == 0.0f ? nextafterf(floor_value, 0.0f) : weakest;
+}
 
 struct sw_tracker {
     size_t nx, ny;
     float threshold;      /* m */
+    float floor;          /* m: |eta| below it counts as 0 (min(1e-6, threshold / 100)) */
     int n_threads;        /* row buffers available */
     float *eta_max, *eta_min;      /* [ny * nx] running extremes, m */
     float *arrival, *eta_max_time; /* [ny * nx] s; arrival NaN until reached */
     float *speed2_max;             /* [ny * nx] squared speed, m2 s-2 */
-    double *rows;         /* [n_threads * 3 * nx]: eta, u, v of one row per thread */
+    float *rows;          /* [n_threads * 3 * nx]: centre eta, u, v of one row per thread */
+    double *scratch;      /* [n_threads * 3 * nx]: for layouts without a float centre row */
+    size_t n_seg;         /* segments per row */
+    seg_summary *seg;     /* [ny * n_seg] */
+    const unsigned char *wet; /* the model's mask [ny * nx] */
     int *nonfinite;       /* [n_threads]: thread saw a NaN or Inf */
     double *out;          /* [5 * ny * nx] the double maps, made by sw_tracker_maps */
 };
@@ -34,6 +77,8 @@ void sw_tracker_free(sw_tracker *t)
     free(t->eta_max_time);
     free(t->speed2_max);
     free(t->rows);
+    free(t->scratch);
+    free(t->seg);
     free(t->nonfinite);
     free(t->out);
     free(t);
@@ -53,16 +98,21 @@ sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads
     t->nx = g->nx;
     t->ny = g->ny;
     t->threshold = (float)threshold_m;
+    t->floor = (float)fmin(1e-6, threshold_m / 100);
     t->n_threads = n_threads < 1 ? 1 : n_threads;
     t->eta_max = malloc(n * sizeof(float));
     t->eta_min = malloc(n * sizeof(float));
     t->arrival = malloc(n * sizeof(float));
     t->eta_max_time = malloc(n * sizeof(float));
     t->speed2_max = malloc(n * sizeof(float));
-    t->rows = malloc((size_t)t->n_threads * 3 * g->nx * sizeof(double));
+    t->rows = malloc((size_t)t->n_threads * 3 * g->nx * sizeof(float));
+    t->scratch = malloc((size_t)t->n_threads * 3 * g->nx * sizeof(double));
+    t->n_seg = (g->nx + SEG - 1) / SEG;
+    t->seg = malloc(g->ny * t->n_seg * sizeof *t->seg);
+    t->wet = sw_model_wet(m);
     t->nonfinite = calloc((size_t)t->n_threads, sizeof(int));
     if (!t->eta_max || !t->eta_min || !t->arrival || !t->eta_max_time || !t->speed2_max || !t->rows
-        || !t->nonfinite) {
+        || !t->scratch || !t->seg || !t->nonfinite) {
         sw_tracker_free(t);
         return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating the arrival tracker (%zu cells)", n);
     }
@@ -75,43 +125,96 @@ sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads
             t->eta_max_time[k] = 0.0f;
             t->speed2_max[k] = 0.0f;
         }
+    for (size_t q = 0; q < g->ny * t->n_seg; q++)   /* anything may change: every segment updates */
+        t->seg[q] = (seg_summary){.up = -INFINITY, .down = INFINITY, .faster = -1, .waiting = 1};
     sw_tracker_update(t, m);
     *out = t;
     return SW_OK;
 }
 
-void sw_tracker_update(sw_tracker *t, const sw_model *m)
+/* Folds cells [a, b) of row j (centre values e, uu, vv, indexed from the row's start) into the maps,
+ * cell by cell, and renews the segment's summary. Returns 1 when a value is NaN or infinite. A state
+ * that blows up passes through ever larger values, which make its segments update, so checking here
+ * finds it without a test on every cell of every step. */
+static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float *restrict e,
+                         const float *restrict uu, const float *restrict vv, float now, seg_summary *sum)
 {
-    const size_t nx = t->nx, ny = t->ny;
-    const float now = (float)sw_model_time(m), thr = t->threshold;
+    const size_t r = j * t->nx;
+    const float thr = t->threshold, fl = t->floor;
+    float *restrict mx = t->eta_max + r, *restrict mn = t->eta_min + r;
+    float *restrict arr = t->arrival + r, *restrict tmx = t->eta_max_time + r;
+    float *restrict sp = t->speed2_max + r;
+    const unsigned char *restrict wet = t->wet + r;
+    float lo_max = INFINITY, hi_min = -INFINITY, lo_sp = INFINITY;
+    int waiting = 0, bad = 0;
+    SW_OMP(simd reduction(min : lo_max, lo_sp) reduction(max : hi_min) reduction(| : waiting, bad))
+    for (size_t i = a; i < b; i++) {
+        float ei = fabsf(e[i]) < fl ? 0.0f : e[i];
+        bad |= !(fabsf(ei) <= FLT_MAX);   /* NaN or Inf in the state */
+        int higher = ei > mx[i];
+        mx[i] = higher ? ei : mx[i];
+        tmx[i] = higher ? now : tmx[i];
+        mn[i] = ei < mn[i] ? ei : mn[i];
+        float s2 = uu[i] * uu[i] + vv[i] * vv[i];
+        s2 = s2 < SPEED2_FLOOR ? 0.0f : s2;
+        sp[i] = s2 > sp[i] ? s2 : sp[i];
+        arr[i] = (arr[i] != arr[i] && fabsf(ei) >= thr) ? now : arr[i];   /* NaN until first reached */
+        lo_max = mx[i] < lo_max ? mx[i] : lo_max;   /* not fminf: a libm call per cell, unvectorised */
+        hi_min = mn[i] > hi_min ? mn[i] : hi_min;
+        lo_sp = sp[i] < lo_sp ? sp[i] : lo_sp;
+        waiting |= wet[i] && arr[i] != arr[i];
+    }
+    *sum = (seg_summary){.up = trigger(lo_max, fl), .down = -trigger(-hi_min, fl),
+                         .faster = trigger(lo_sp, SPEED2_FLOOR), .waiting = waiting};
+    return bad;
+}
+
+/* The row update (see the top of this file): the centre values of row j, at time_s, into the maps.
+ * A sw_row_observer (model.h). */
+static void track_row(void *ctx, const sw_model *m, size_t j, double time_s)
+{
+    sw_tracker *t = ctx;
+    const size_t nx = t->nx;
+    const float now = (float)time_s, thr = t->threshold;
     int tid = omp_get_thread_num();
     if (tid >= t->n_threads)
         tid = 0;   /* never happens when created with the team size; stays memory-safe if it does */
-    double *restrict e = t->rows + (size_t)tid * 3 * nx;
-    double *restrict uu = e + nx;
-    double *restrict vv = uu + nx;
+    float *restrict e = t->rows + (size_t)tid * 3 * nx;
+    float *restrict uu = e + nx;
+    float *restrict vv = uu + nx;
+    sw_model_centre_row_f32(m, j, e, uu, vv, t->scratch + (size_t)tid * 3 * nx);
     int bad = 0;
-    SW_OMP(for schedule(static))
-    for (size_t j = 0; j < ny; j++) {
-        sw_model_centre_row(m, j, e, uu, vv);
-        float *restrict mx = t->eta_max + j * nx, *restrict mn = t->eta_min + j * nx;
-        float *restrict arr = t->arrival + j * nx, *restrict tmx = t->eta_max_time + j * nx;
-        float *restrict sp = t->speed2_max + j * nx;
-        SW_OMP(simd reduction(| : bad))
-        for (size_t i = 0; i < nx; i++) {
-            float ei = (float)e[i];
-            int higher = ei > mx[i];
-            mx[i] = higher ? ei : mx[i];
-            tmx[i] = higher ? now : tmx[i];
-            mn[i] = ei < mn[i] ? ei : mn[i];
-            float s2 = (float)(uu[i] * uu[i] + vv[i] * vv[i]);
-            sp[i] = s2 > sp[i] ? s2 : sp[i];
-            arr[i] = (arr[i] != arr[i] && fabsf(ei) >= thr) ? now : arr[i];   /* NaN until first reached */
-            bad |= !(fabs(e[i]) <= 1e300);   /* NaN or Inf in the state */
+    for (size_t q = 0; q < t->n_seg; q++) {
+        const size_t a = q * SEG, b = a + SEG < nx ? a + SEG : nx;
+        float hi = -INFINITY, lo = INFINITY, top_s2 = 0;
+        SW_OMP(simd reduction(max : hi, top_s2) reduction(min : lo))
+        for (size_t i = a; i < b; i++) {
+            float s2 = uu[i] * uu[i] + vv[i] * vv[i];
+            hi = e[i] > hi ? e[i] : hi;   /* not fmaxf / fminf: libm calls per cell, unvectorised */
+            lo = e[i] < lo ? e[i] : lo;
+            top_s2 = s2 > top_s2 ? s2 : top_s2;
         }
+        seg_summary *sum = &t->seg[j * t->n_seg + q];
+        /* A cell's maps change only when its new value passes them, or it arrives; if no raw value
+         * passes the segment's triggers, no floored value passes its own cell's maps (seg_summary).
+         * |eta| >= thr (> floor) is the same test raw or floored. */
+        if (hi > sum->up || lo < sum->down || top_s2 > sum->faster || (sum->waiting && (hi >= thr || -lo >= thr)))
+            bad |= update_cells(t, j, a, b, e, uu, vv, now, sum);
     }
     t->nonfinite[tid] |= bad;
 }
+
+void sw_tracker_update(sw_tracker *t, const sw_model *m)
+{
+    const double now = sw_model_time(m);
+    const unsigned int saved = sw_fp_flush();   /* the mode the attached update runs in (model.c) */
+    SW_OMP(for schedule(static))
+    for (size_t j = 0; j < t->ny; j++)
+        track_row(t, m, j, now);
+    sw_fp_restore(saved);
+}
+
+void sw_tracker_attach(sw_tracker *t, sw_model *m) { sw_model_set_observer(m, t ? track_row : NULL, t); }
 
 int sw_tracker_nonfinite(const sw_tracker *t)
 {

@@ -21,6 +21,12 @@ sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads
  * call from every thread of a parallel region (thread t uses buffer t), or outside one. */
 void sw_tracker_update(sw_tracker *t, const sw_model *m);
 
+/* Makes every sw_model_step of m fold the new state into t, row by row as the step finishes them
+ * (model.h, sw_row_observer): the same maps as sw_tracker_update after each step, without reading
+ * the state again. t must outlive the attachment; sw_tracker_attach(NULL, m) detaches. Call outside
+ * parallel regions. A model has one observer: attaching replaces the previous one. */
+void sw_tracker_attach(sw_tracker *t, sw_model *m);
+
 /* Converts the running maps to double and points maps' arrays at them (valid until
  * sw_tracker_free); land cells and never-reached arrivals read NaN. depth_m is the caller's
  * still-water depth [ny * nx], stored in maps->depth_m. Returns SW_ERR_NOMEM on failure. */

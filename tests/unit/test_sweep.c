@@ -448,9 +448,14 @@ static void test_linearity(void **state)
     assert_true(worst <= 1e-14 * biggest);   /* linear equations; doubling is exact in floating point */
     for (size_t q = 0; q < 2; q++)
         assert_true(fabs(r1.peak_m[q] - 2 * r0.peak_m[q]) <= 1e-14 * r0.peak_m[q]);
+    /* the maps count elevations below 1 micrometre as 0 (tracker.c): linear above 2 micrometres */
+    size_t compared = 0;
     for (size_t c = 0; c < r0.n_cells; c++)
-        if (r0.wet[c])
+        if (r0.wet[c] && fabs(r0.eta_max_map_m[c]) >= 2e-6) {
             assert_true(fabs(r1.eta_max_map_m[c] - 2 * r0.eta_max_map_m[c]) <= 1e-6 * fabs(r0.eta_max_map_m[c]) + 1e-12);
+            compared++;
+        }
+    assert_true(compared > r0.n_cells / 4);
     sw_sweep_member_result_free(&r0);
     sw_sweep_member_result_free(&r1);
     sw_sweep_plan_free(&p);
