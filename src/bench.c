@@ -89,7 +89,7 @@ double sw_bench_triad(size_t n, int repeats)
 
 /* The source's e-folding radius, cells: a 20 km hump on 1 km cells, as a fault or a landslide makes
  * one, small beside the basin as in a real domain. Tracking costs most where its maps still change
- * (rising and falling water): with a hump an eighth of the basin wide it cost +50 % (DEVELOPERS.md). */
+ * (rising and falling water): a hump an eighth of the basin wide keeps a quarter of the grid changing. */
 #define SOURCE_CELLS 20.0
 
 /* A square basin of n x n cells, 1000 m deep, with a hump, at 90 % of the layout's limit. */

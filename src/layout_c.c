@@ -66,6 +66,42 @@ static inline void c_continuity_row(sw_real *restrict eta, const sw_real *restri
         eta[i] -= cx * (hx[i] * u[i] - hx[i - 1] * u[i - 1]) + cy * (hy[i] * v[i] - hy[i - s] * v[i - s]);
 }
 
+/* c_continuity_row for the row at k0, and in the same pass the values an observer needs of the
+ * finished row at r0 (sw_row_values, into buf: eta, u, v at the centres as floats, then per segment the
+ * highest and lowest eta and the highest u*u + v*v). The finished row is in cache, and its arithmetic
+ * hides behind the memory stream of the row being stepped. */
+static inline void c_continuity_row_observed(sw_real *restrict eta, const sw_real *restrict u,
+                                             const sw_real *restrict v, const sw_real *restrict hx,
+                                             const sw_real *restrict hy, size_t k0, size_t nx, size_t s, sw_real cx,
+                                             sw_real cy, size_t r0, float *restrict buf)
+{
+    const size_t n_seg = (nx + SW_OBS_SEG - 1) / SW_OBS_SEG;
+    float *restrict oe = buf, *restrict ou = buf + nx, *restrict ov = buf + 2 * nx;
+    float *restrict shi = buf + 3 * nx, *restrict slo = shi + n_seg, *restrict ss2 = slo + n_seg;
+    for (size_t q = 0; q < n_seg; q++) {
+        const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
+        float hi = -INFINITY, lo = INFINITY, top = 0;
+        SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
+        for (size_t i = a; i < b; i++) {
+            const size_t k = k0 + i, r = r0 + i;
+            eta[k] -= cx * (hx[k] * u[k] - hx[k - 1] * u[k - 1]) + cy * (hy[k] * v[k] - hy[k - s] * v[k - s]);
+            const float e = (float)eta[r];
+            const float uc = (float)((sw_real)0.5 * (u[r - 1] + u[r]));   /* as c_centre_row_f32 */
+            const float vc = (float)((sw_real)0.5 * (v[r - s] + v[r]));
+            const float s2 = uc * uc + vc * vc;
+            oe[i] = e;
+            ou[i] = uc;
+            ov[i] = vc;
+            hi = e > hi ? e : hi;
+            lo = e < lo ? e : lo;
+            top = s2 > top ? s2 : top;
+        }
+        shi[q] = hi;
+        slo[q] = lo;
+        ss2[q] = top;
+    }
+}
+
 /* u on the faces k0 - 1 .. k0 + nx - 1 (the west edge face through the east edge face). */
 static inline void c_u_row(sw_real *restrict u, const sw_real *restrict eta, const sw_real *restrict hx, size_t k0,
                            size_t nx, sw_real gx)
@@ -91,7 +127,11 @@ static inline void c_v_row(sw_real *restrict v, const sw_real *restrict eta, con
  * continuity equation requires. Each cell is computed the same way for any thread count.
  * Observing (model_impl.h): row j-1 is final once v of row j-1 is, except the block's first row,
  * whose south face belongs to the previous block's last v; so rows j0+1 .. j1-1 are observed in the
- * sweep, while still in cache, and rows j0 and j1 after the second barrier (a third ends the step). */
+ * sweep, while still in cache, and rows j0 and j1 after the second barrier (a third ends the step).
+ * With room for the row's values (sw_model_obs_buffer) the observer is handed them made in the
+ * continuity pass two rows on (c_continuity_row_observed), row j-2 at row j, and the block's row
+ * j1-1 after the sweep; without, it makes them itself. The choice is per thread and step: one branch
+ * per row, none per cell. */
 static void c_step(sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
@@ -101,18 +141,26 @@ static void c_step(sw_model *m)
     const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy);
     const size_t nt = (size_t)omp_get_num_threads(), t = (size_t)omp_get_thread_num();
     const size_t j0 = 1 + ny * t / nt, j1 = ny * (t + 1) / nt;   /* padded rows; empty when j1 < j0 */
+    float *restrict buf = sw_model_obs_buffer(m, (int)t);
 
     for (size_t j = j0; j <= j1; j++) {
-        c_continuity_row(eta, u, v, hx, hy, j * s + 1, nx, s, cx, cy);
+        if (buf && j >= j0 + 3)
+            c_continuity_row_observed(eta, u, v, hx, hy, j * s + 1, nx, s, cx, cy, (j - 2) * s + 1, buf);
+        else
+            c_continuity_row(eta, u, v, hx, hy, j * s + 1, nx, s, cx, cy);
         sw_model_edge_eta_row(m, j);
         c_u_row(u, eta, hx, j * s + 1, nx, gx);
         if (j == 1)
             c_v_row(v, eta, hy, 1, nx, s, gy);   /* the south edge's faces: ghost row 0 and row 1 */
         if (j > j0)
             c_v_row(v, eta, hy, (j - 1) * s + 1, nx, s, gy);
-        if (j > j0 + 1)
+        if (buf && j >= j0 + 3)
+            sw_model_observe_row_values(m, j - 2, buf);
+        else if (!buf && j > j0 + 1)
             sw_model_observe_row(m, j - 1);
     }
+    if (buf && j1 >= j0 + 2)
+        sw_model_observe_row(m, j1 - 1);
     SW_OMP(barrier)
     if (j1 >= j0)
         c_v_row(v, eta, hy, j1 * s + 1, nx, s, gy);

@@ -27,7 +27,7 @@ static void step_flushed(sw_model *m)
         const double t = (double)(m->steps + 1) * m->dt;
         SW_OMP(for schedule(static))
         for (size_t j = 0; j < m->grid.ny; j++)
-            m->observe(m->observe_ctx, m, j, t);
+            m->observe(m->observe_ctx, m, j, t, NULL);
     }
     sw_fp_restore(saved);
 }
@@ -172,8 +172,9 @@ static sw_status start_at_rest(sw_model *m, sw_error *err)
     return SW_OK;
 }
 
-static void observe_nothing(void *ctx, const sw_model *m, size_t j, double time_s)
+static void observe_nothing(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre)
 {
+    (void)pre;
     (void)ctx;
     (void)m;
     (void)j;
@@ -270,6 +271,7 @@ void sw_model_free(sw_model *m)
     free(m->wet);
     free(m->edge);
     free(m->edge_row);
+    free(m->obs_buf);
     free(m);
 }
 
@@ -366,6 +368,17 @@ void sw_model_set_observer(sw_model *m, sw_row_observer fn, void *ctx)
     m->observe = fn ? fn : observe_nothing;
     m->observe_ctx = fn ? ctx : NULL;
     m->observed = fn != NULL;
+    free(m->obs_buf);
+    m->obs_buf = NULL;
+    m->obs_threads = 0;
+    if (fn) {
+        const size_t nx = m->grid.nx;
+        m->obs_len = 3 * nx + 3 * ((nx + SW_OBS_SEG - 1) / SW_OBS_SEG);
+        m->obs_len = (m->obs_len + 15) / 16 * 16;   /* whole 64-byte lines: threads share none */
+        int n = omp_get_max_threads();
+        m->obs_buf = aligned_alloc(SW_ALIGN, (size_t)n * m->obs_len * sizeof(float));
+        m->obs_threads = m->obs_buf ? n : 0;   /* none: the step hands no values, the observer makes them */
+    }
 }
 
 double sw_model_energy(const sw_model *m) { return m->kernels->energy(m); }

@@ -26,11 +26,24 @@
 
 typedef struct sw_model sw_model;
 
+/* Cells per segment of a row in sw_row_values. */
+#define SW_OBS_SEG 512
+
+/* A row's centre values as a layout's step may hand them to an observer, made in the same pass as the
+ * step's own arithmetic: each value is (float) of sw_model_centre_row's (sw_model_centre_row_f32), and
+ * for each segment q of SW_OBS_SEG cells (the last may be shorter) the highest and lowest elevation and
+ * the highest u*u + v*v, computed in float, over the segment. */
+typedef struct {
+    const float *eta, *u, *v;         /* [nx] m, m/s, m/s */
+    const float *hi, *lo, *speed2;    /* [ceil(nx / SW_OBS_SEG)] m, m, m2 s-2 */
+} sw_row_values;
+
 /* An observer of the state, row by row: called with grid row j (0 .. ny-1) once a step has finished
  * every value of that row, with time_s the time of that state (s), by the thread that finished the row
- * (each row exactly once per step, rows in any order and from any thread). It may read the model
- * (sw_model_centre_row) for row j only, and must not write it. ctx is the observer's own. */
-typedef void (*sw_row_observer)(void *ctx, const sw_model *m, size_t j, double time_s);
+ * (each row exactly once per step, rows in any order and from any thread). pre is NULL, or the row's
+ * centre values made by the step (sw_row_values). It may read the model (sw_model_centre_row) for
+ * row j only, and must not write it. ctx is the observer's own. */
+typedef void (*sw_row_observer)(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre);
 
 /* What a model is built from. Arrays are [ny * nx], row j at [j * nx]; they are copied. */
 typedef struct {
@@ -75,7 +88,9 @@ void sw_model_free(sw_model *m);
  * the time after the step, what sw_model_time gives after the sw_model_tick that follows. */
 void sw_model_step(sw_model *m);
 
-/* Sets the row observer sw_model_step calls (NULL: none). Call outside parallel regions. */
+/* Sets the row observer sw_model_step calls (NULL: none), with room for steps on up to
+ * omp_get_max_threads() threads to hand it rows' values (sw_row_values; a thread beyond that, or no
+ * memory for the room, hands none). Call outside parallel regions. */
 void sw_model_set_observer(sw_model *m, sw_row_observer fn, void *ctx);
 
 /* Advances the step counter and clock after a step. Call from one thread only. */

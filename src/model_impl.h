@@ -71,13 +71,32 @@ struct sw_model {
     sw_row_observer observe;   /* never NULL: a no-op when nothing observes (model.c) */
     void *observe_ctx;
     int observed;              /* 1 when an observer is set */
+    float *obs_buf;            /* [obs_threads][obs_len]: each thread's sw_row_values storage, or NULL */
+    size_t obs_len;            /* floats per thread: 3 nx + 3 ceil(nx / SW_OBS_SEG) */
+    int obs_threads;
 };
+
+/* Thread t's storage for a row's values (eta, u, v, then hi, lo, speed2 per segment), or NULL when
+ * nothing observes or there is none for t. */
+static inline float *sw_model_obs_buffer(const sw_model *m, int t)
+{
+    return m->observed && m->obs_buf && t < m->obs_threads ? m->obs_buf + (size_t)t * m->obs_len : NULL;
+}
 
 /* Shows the observer padded row j (1 .. ny) of the state this step has just finished. For layouts
  * whose step observes rows itself (sw_layout_kernels.observes_rows); the time is after the step. */
 static inline void sw_model_observe_row(const sw_model *m, size_t j)
 {
-    m->observe(m->observe_ctx, m, j - 1, (double)(m->steps + 1) * m->dt);
+    m->observe(m->observe_ctx, m, j - 1, (double)(m->steps + 1) * m->dt, NULL);
+}
+
+/* The same, handing the observer the row's values in buf (sw_model_obs_buffer), filled by the step. */
+static inline void sw_model_observe_row_values(const sw_model *m, size_t j, const float *buf)
+{
+    const size_t nx = m->grid.nx, n_seg = (nx + SW_OBS_SEG - 1) / SW_OBS_SEG;
+    const sw_row_values pre = {buf, buf + nx, buf + 2 * nx, buf + 3 * nx, buf + 3 * nx + n_seg,
+                               buf + 3 * nx + 2 * n_seg};
+    m->observe(m->observe_ctx, m, j - 1, (double)(m->steps + 1) * m->dt, &pre);
 }
 
 /* Padded index of grid cell (i, j), 0-based (i < nx, j < ny). Halo neighbours are reached from it

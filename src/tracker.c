@@ -30,7 +30,7 @@
 #include "fpmode.h"
 #include "omp_compat.h"
 
-#define SEG 512   /* cells per segment of a row (the last one may be shorter) */
+#define SEG SW_OBS_SEG   /* cells per segment of a row (the last one may be shorter): as the step's */
 #define SPEED2_FLOOR 1e-12f   /* m2 s-2: squared speeds below (1 micrometre per second)^2 count as 0 */
 
 /* What a segment's maps hold at best, as the values that would change them: for deciding, from the
@@ -171,7 +171,7 @@ static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float
 
 /* The row update (see the top of this file): the centre values of row j, at time_s, into the maps.
  * A sw_row_observer (model.h). */
-static void track_row(void *ctx, const sw_model *m, size_t j, double time_s)
+static void track_row(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre)
 {
     sw_tracker *t = ctx;
     const size_t nx = t->nx;
@@ -179,20 +179,35 @@ static void track_row(void *ctx, const sw_model *m, size_t j, double time_s)
     int tid = omp_get_thread_num();
     if (tid >= t->n_threads)
         tid = 0;   /* never happens when created with the team size; stays memory-safe if it does */
-    float *restrict e = t->rows + (size_t)tid * 3 * nx;
-    float *restrict uu = e + nx;
-    float *restrict vv = uu + nx;
-    sw_model_centre_row_f32(m, j, e, uu, vv, t->scratch + (size_t)tid * 3 * nx);
+    const float *e, *uu, *vv;
+    float *row = t->rows + (size_t)tid * 3 * nx;
+    if (pre) {   /* the step made the values and the segments' extremes */
+        e = pre->eta;
+        uu = pre->u;
+        vv = pre->v;
+    } else {
+        sw_model_centre_row_f32(m, j, row, row + nx, row + 2 * nx, t->scratch + (size_t)tid * 3 * nx);
+        e = row;
+        uu = row + nx;
+        vv = row + 2 * nx;
+    }
     int bad = 0;
     for (size_t q = 0; q < t->n_seg; q++) {
         const size_t a = q * SEG, b = a + SEG < nx ? a + SEG : nx;
-        float hi = -INFINITY, lo = INFINITY, top_s2 = 0;
-        SW_OMP(simd reduction(max : hi, top_s2) reduction(min : lo))
-        for (size_t i = a; i < b; i++) {
-            float s2 = uu[i] * uu[i] + vv[i] * vv[i];
-            hi = e[i] > hi ? e[i] : hi;   /* not fmaxf / fminf: libm calls per cell, unvectorised */
-            lo = e[i] < lo ? e[i] : lo;
-            top_s2 = s2 > top_s2 ? s2 : top_s2;
+        float hi, lo, top_s2;
+        if (pre) {
+            hi = pre->hi[q];
+            lo = pre->lo[q];
+            top_s2 = pre->speed2[q];
+        } else {
+            hi = -INFINITY, lo = INFINITY, top_s2 = 0;
+            SW_OMP(simd reduction(max : hi, top_s2) reduction(min : lo))
+            for (size_t i = a; i < b; i++) {
+                float s2 = uu[i] * uu[i] + vv[i] * vv[i];
+                hi = e[i] > hi ? e[i] : hi;   /* not fmaxf / fminf: libm calls per cell, unvectorised */
+                lo = e[i] < lo ? e[i] : lo;
+                top_s2 = s2 > top_s2 ? s2 : top_s2;
+            }
         }
         seg_summary *sum = &t->seg[j * t->n_seg + q];
         /* A cell's maps change only when its new value passes them, or it arrives; if no raw value
@@ -210,7 +225,7 @@ void sw_tracker_update(sw_tracker *t, const sw_model *m)
     const unsigned int saved = sw_fp_flush();   /* the mode the attached update runs in (model.c) */
     SW_OMP(for schedule(static))
     for (size_t j = 0; j < t->ny; j++)
-        track_row(t, m, j, now);
+        track_row(t, m, j, now, NULL);
     sw_fp_restore(saved);
 }
 
