@@ -63,6 +63,35 @@ static sw_status a_prepare(sw_model *m, sw_error *err)
     return SW_OK;
 }
 
+/* Continuity (forward: from the old velocities) on the padded row starting at r + 1. */
+static inline void a_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                    const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
+                                    size_t s, sw_real cx, sw_real cy)
+{
+    SW_OMP(simd)
+    for (size_t i = r + 1; i <= r + nx; i++)
+        eta[i] -= cx * (hx[i + 1] * u[i + 1] - hx[i - 1] * u[i - 1]) + cy * (hy[i + s] * v[i + s] - hy[i - s] * v[i - s]);
+}
+
+/* Momentum (backward: from the new eta of this row and its two neighbours) on the row at r + 1. */
+static inline void a_momentum_row(sw_real *restrict u, sw_real *restrict v, const sw_real *restrict eta,
+                                  const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
+                                  size_t s, sw_real gx, sw_real gy)
+{
+    SW_OMP(simd)
+    for (size_t i = r + 1; i <= r + nx; i++) {
+        u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i - 1]) : 0;
+        v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] - eta[i - s]) : 0;
+    }
+}
+
+/* The step in one sweep over memory, as layout_c.c's. Each thread owns padded rows j0..j1 and, for each
+ * row j: continuity of row j (old u, v of rows j-1 .. j+1), its edge ghosts, then momentum of row j-1
+ * (new eta of rows j-2 .. j). Momentum of the block's first row needs the previous block's last row of
+ * new eta, and of its last row the next block's first: both wait for a barrier, as the next block's
+ * continuity reads the old velocities of our last row before it. The ghosts' velocities follow once
+ * every inner velocity is new. Each cell is computed as before, for any thread count. Rows j0+1 ..
+ * j1-1 are observed in the sweep (model_impl.h), j0 and j1 at the end. */
 static void a_step(sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
@@ -71,37 +100,37 @@ static void a_step(sw_model *m)
     const sw_real gy = (sw_real)(0.5 * m->g * m->dt / m->grid.dy_m);
     sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
     const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy);
+    const size_t nt = (size_t)omp_get_num_threads(), t = (size_t)omp_get_thread_num();
+    const size_t j0 = 1 + ny * t / nt, j1 = ny * (t + 1) / nt;   /* padded rows; empty when j1 < j0 */
 
-    /* forward: continuity from the old velocities */
-    SW_OMP(for schedule(static))
-    for (size_t j = 1; j <= ny; j++) {
-        const size_t r = j * s;
-        SW_OMP(simd)
-        for (size_t i = r + 1; i <= r + nx; i++)
-            eta[i] -= cx * (hx[i + 1] * u[i + 1] - hx[i - 1] * u[i - 1])
-                    + cy * (hy[i + s] * v[i + s] - hy[i - s] * v[i - s]);
-    }
-    sw_model_edge_eta(m);
-
-    /* backward: momentum from the new eta */
-    SW_OMP(for schedule(static))
-    for (size_t j = 1; j <= ny; j++) {
-        const size_t r = j * s;
-        SW_OMP(simd)
-        for (size_t i = r + 1; i <= r + nx; i++) {
-            u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i - 1]) : 0;
-            v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] - eta[i - s]) : 0;
+    for (size_t j = j0; j <= j1; j++) {
+        a_continuity_row(eta, u, v, hx, hy, j * s, nx, s, cx, cy);
+        sw_model_edge_eta_row(m, j);
+        if (j > j0 + 1) {
+            a_momentum_row(u, v, eta, hx, hy, (j - 1) * s, nx, s, gx, gy);
+            sw_model_observe_row(m, j - 1);
         }
     }
+    SW_OMP(barrier)
+    if (j1 >= j0)
+        a_momentum_row(u, v, eta, hx, hy, j0 * s, nx, s, gx, gy);
+    if (j1 > j0)
+        a_momentum_row(u, v, eta, hx, hy, j1 * s, nx, s, gx, gy);
+    SW_OMP(barrier)
 
     /* ghost normal velocities: the outgoing wave's (open) or the inner cell's mirror (level) */
     const sw_edge_cell *restrict oc = m->edge;
     const size_t n_edge = m->n_edge;
-    SW_OMP(for schedule(static))
+    SW_OMP(for schedule(static) nowait)
     for (size_t q = 0; q < n_edge; q++) {
         sw_real *vel = oc[q].normal_x ? u : v;
         vel[oc[q].ghost] = (sw_real)oc[q].vel * eta[oc[q].ghost] + (sw_real)oc[q].mirror * vel[oc[q].inner];
     }
+    if (j1 >= j0)
+        sw_model_observe_row(m, j0);
+    if (j1 > j0)
+        sw_model_observe_row(m, j1);
+    SW_OMP(barrier)   /* the step ends when every row has been observed */
 }
 
 static void a_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
@@ -111,6 +140,19 @@ static void a_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
         eta[i] = SW_F(m, eta)[r + i];
         u[i] = SW_F(m, u)[r + i];
         v[i] = SW_F(m, v)[r + i];
+    }
+}
+
+/* a_centre_row in float: the stored values, rounded. */
+static void a_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
+{
+    const size_t r = sw_pidx(m, 0, j), nx = m->grid.nx;
+    const sw_real *restrict e = SW_F(m, eta) + r, *restrict uu = SW_F(m, u) + r, *restrict vv = SW_F(m, v) + r;
+    SW_OMP(simd)
+    for (size_t i = 0; i < nx; i++) {
+        eta[i] = (float)e[i];
+        u[i] = (float)uu[i];
+        v[i] = (float)vv[i];
     }
 }
 
@@ -144,7 +186,9 @@ const sw_layout_kernels SW_NAME(sw_layout_a_kernels) = {
     .prepare = a_prepare,
     .step = a_step,
     .centre_row = a_centre_row,
+    .centre_row_f32 = a_centre_row_f32,
     .energy = a_energy,
+    .observes_rows = 1,
 };
 
 #if SW_REAL_BITS == 64
