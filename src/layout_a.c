@@ -73,6 +73,38 @@ static inline void a_continuity_row(sw_real *restrict eta, const sw_real *restri
         eta[i] -= cx * (hx[i + 1] * u[i + 1] - hx[i - 1] * u[i - 1]) + cy * (hy[i + s] * v[i + s] - hy[i - s] * v[i - s]);
 }
 
+/* a_continuity_row for the row at r + 1, and in the same pass the values an observer needs of the
+ * finished row at f + 1 (sw_row_values into buf: the stored eta, u, v as floats, then per segment the
+ * highest and lowest eta and the highest u*u + v*v), as layout_c.c's c_continuity_row_observed. */
+static inline void a_continuity_row_observed(sw_real *restrict eta, const sw_real *restrict u,
+                                             const sw_real *restrict v, const sw_real *restrict hx,
+                                             const sw_real *restrict hy, size_t r, size_t nx, size_t s, sw_real cx,
+                                             sw_real cy, size_t f, float *restrict buf)
+{
+    const sw_obs_row o = sw_obs_row_in(buf, nx);
+    float *restrict oe = o.eta, *restrict ou = o.u, *restrict ov = o.v;
+    for (size_t q = 0; q < o.n_seg; q++) {
+        const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
+        float hi = -INFINITY, lo = INFINITY, top = 0;
+        SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
+        for (size_t i = a; i < b; i++) {
+            const size_t k = r + 1 + i, c = f + 1 + i;
+            eta[k] -= cx * (hx[k + 1] * u[k + 1] - hx[k - 1] * u[k - 1]) + cy * (hy[k + s] * v[k + s] - hy[k - s] * v[k - s]);
+            const float e = (float)eta[c], uc = (float)u[c], vc = (float)v[c];
+            const float s2 = uc * uc + vc * vc;
+            oe[i] = e;
+            ou[i] = uc;
+            ov[i] = vc;
+            hi = e > hi ? e : hi;
+            lo = e < lo ? e : lo;
+            top = s2 > top ? s2 : top;
+        }
+        o.hi[q] = hi;
+        o.lo[q] = lo;
+        o.speed2[q] = top;
+    }
+}
+
 /* Momentum (backward: from the new eta of this row and its two neighbours) on the row at r + 1. */
 static inline void a_momentum_row(sw_real *restrict u, sw_real *restrict v, const sw_real *restrict eta,
                                   const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
@@ -91,7 +123,8 @@ static inline void a_momentum_row(sw_real *restrict u, sw_real *restrict v, cons
  * new eta, and of its last row the next block's first: both wait for a barrier, as the next block's
  * continuity reads the old velocities of our last row before it. The ghosts' velocities follow once
  * every inner velocity is new. Each cell is computed as before, for any thread count. Rows j0+1 ..
- * j1-1 are observed in the sweep (model_impl.h), j0 and j1 at the end. */
+ * j1-1 are observed in the sweep (model_impl.h), j0 and j1 at the end; with room for the row's values
+ * the observer is handed row j-2's, made in row j's continuity pass, and row j1-1's after the sweep. */
 static void a_step(sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
@@ -102,15 +135,23 @@ static void a_step(sw_model *m)
     const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy);
     const size_t nt = (size_t)omp_get_num_threads(), t = (size_t)omp_get_thread_num();
     const size_t j0 = 1 + ny * t / nt, j1 = ny * (t + 1) / nt;   /* padded rows; empty when j1 < j0 */
+    float *restrict buf = sw_model_obs_buffer(m, (int)t);
 
     for (size_t j = j0; j <= j1; j++) {
-        a_continuity_row(eta, u, v, hx, hy, j * s, nx, s, cx, cy);
+        if (buf && j >= j0 + 3)
+            a_continuity_row_observed(eta, u, v, hx, hy, j * s, nx, s, cx, cy, (j - 2) * s, buf);
+        else
+            a_continuity_row(eta, u, v, hx, hy, j * s, nx, s, cx, cy);
         sw_model_edge_eta_row(m, j);
-        if (j > j0 + 1) {
+        if (j > j0 + 1)
             a_momentum_row(u, v, eta, hx, hy, (j - 1) * s, nx, s, gx, gy);
+        if (buf && j >= j0 + 3)
+            sw_model_observe_row_values(m, j - 2, buf);
+        else if (!buf && j > j0 + 1)
             sw_model_observe_row(m, j - 1);
-        }
     }
+    if (buf && j1 >= j0 + 2)
+        sw_model_observe_row(m, j1 - 1);
     SW_OMP(barrier)
     if (j1 >= j0)
         a_momentum_row(u, v, eta, hx, hy, j0 * s, nx, s, gx, gy);

@@ -75,10 +75,9 @@ static inline void c_continuity_row_observed(sw_real *restrict eta, const sw_rea
                                              const sw_real *restrict hy, size_t k0, size_t nx, size_t s, sw_real cx,
                                              sw_real cy, size_t r0, float *restrict buf)
 {
-    const size_t n_seg = (nx + SW_OBS_SEG - 1) / SW_OBS_SEG;
-    float *restrict oe = buf, *restrict ou = buf + nx, *restrict ov = buf + 2 * nx;
-    float *restrict shi = buf + 3 * nx, *restrict slo = shi + n_seg, *restrict ss2 = slo + n_seg;
-    for (size_t q = 0; q < n_seg; q++) {
+    const sw_obs_row o = sw_obs_row_in(buf, nx);
+    float *restrict oe = o.eta, *restrict ou = o.u, *restrict ov = o.v;
+    for (size_t q = 0; q < o.n_seg; q++) {
         const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
         float hi = -INFINITY, lo = INFINITY, top = 0;
         SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
@@ -96,9 +95,9 @@ static inline void c_continuity_row_observed(sw_real *restrict eta, const sw_rea
             lo = e < lo ? e : lo;
             top = s2 > top ? s2 : top;
         }
-        shi[q] = hi;
-        slo[q] = lo;
-        ss2[q] = top;
+        o.hi[q] = hi;
+        o.lo[q] = lo;
+        o.speed2[q] = top;
     }
 }
 

@@ -90,12 +90,26 @@ static inline void sw_model_observe_row(const sw_model *m, size_t j)
     m->observe(m->observe_ctx, m, j - 1, (double)(m->steps + 1) * m->dt, NULL);
 }
 
-/* The same, handing the observer the row's values in buf (sw_model_obs_buffer), filled by the step. */
-static inline void sw_model_observe_row_values(const sw_model *m, size_t j, const float *buf)
+/* Where a row's values live in a thread's buffer (sw_model_obs_buffer) of a row of nx cells: eta, u,
+ * v [nx] each, then hi, lo, speed2 [n_seg] each. The step's loops fill them; n_seg segments of
+ * SW_OBS_SEG cells. */
+typedef struct {
+    float *eta, *u, *v, *hi, *lo, *speed2;
+    size_t n_seg;
+} sw_obs_row;
+
+static inline sw_obs_row sw_obs_row_in(float *buf, size_t nx)
 {
-    const size_t nx = m->grid.nx, n_seg = (nx + SW_OBS_SEG - 1) / SW_OBS_SEG;
-    const sw_row_values pre = {buf, buf + nx, buf + 2 * nx, buf + 3 * nx, buf + 3 * nx + n_seg,
-                               buf + 3 * nx + 2 * n_seg};
+    const size_t n_seg = (nx + SW_OBS_SEG - 1) / SW_OBS_SEG;
+    return (sw_obs_row){buf, buf + nx, buf + 2 * nx, buf + 3 * nx, buf + 3 * nx + n_seg, buf + 3 * nx + 2 * n_seg,
+                        n_seg};
+}
+
+/* The same, handing the observer the row's values in buf (sw_model_obs_buffer), filled by the step. */
+static inline void sw_model_observe_row_values(const sw_model *m, size_t j, float *buf)
+{
+    const sw_obs_row o = sw_obs_row_in(buf, m->grid.nx);
+    const sw_row_values pre = {o.eta, o.u, o.v, o.hi, o.lo, o.speed2};
     m->observe(m->observe_ctx, m, j - 1, (double)(m->steps + 1) * m->dt, &pre);
 }
 
