@@ -48,9 +48,10 @@ typedef struct sw_layout_kernels {
      * the two velocity components (m/s) interpolated to the centre. Land cells give 0. */
     void (*centre_row)(const sw_model *m, size_t j, double *eta, double *u, double *v);
 
-    /* centre_row rounded to float, for the tracker, whose maps are float: the same values as
-     * (float) of centre_row's, made without the double detour. Optional: NULL makes
-     * sw_model_centre_row_f32 convert centre_row's doubles. */
+    /* centre_row in float, for the tracker, whose maps are float: centre_row's values to float
+     * round-off (A, C: exactly (float) of them), made without the double detour. Optional: NULL makes
+     * sw_model_centre_row_f32 convert centre_row's doubles. A step that hands an observer its rows'
+     * values (sw_row_values) must make them exactly as this does. */
     void (*centre_row_f32)(const sw_model *m, size_t j, float *eta, float *u, float *v);
 
     /* Elevation at the centre of cell (i, j), m, as centre_row gives it; 0 on land. NULL when every

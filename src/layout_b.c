@@ -87,6 +87,102 @@ static sw_status b_prepare(sw_model *m, sw_error *err)
     return sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
 }
 
+/* Continuity (forward: from the old corner velocities of corner rows j-1 and j) on padded row j, at
+ * r = j * stride; a wall corner also feeds the dry cells of its stencil, which must stay at 0. */
+static inline void b_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                    const sw_real *restrict hx, const sw_real *restrict hy,
+                                    const sw_real *restrict h, size_t r, size_t nx, size_t s, sw_real cx, sw_real cy)
+{
+    SW_OMP(simd)
+    for (size_t i = r + 1; i <= r + nx; i++)
+        eta[i] = h[i] > 0 ? eta[i] - cx * (hx[i] * u[i] + hx[i - s] * u[i - s] - hx[i - 1] * u[i - 1]
+                                           - hx[i - s - 1] * u[i - s - 1])
+                                   - cy * (hy[i] * v[i] + hy[i - 1] * v[i - 1] - hy[i - s] * v[i - s]
+                                           - hy[i - s - 1] * v[i - s - 1])
+                          : 0;
+}
+
+/* The centre values of cell k as b_centre_row makes them, in the state's precision and rounded to
+ * float (one division, not two in double: the tracker's input, within float round-off of centre_row). */
+static inline void b_centre_f32(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                const sw_real *restrict hx, const sw_real *restrict hy, const sw_real *restrict h,
+                                size_t k, size_t s, float *e, float *uc, float *vc)
+{
+    const int wet = h[k] > 0;
+    const sw_real w = wet ? (sw_real)0.25 / h[k] : 0;
+    *e = wet ? (float)eta[k] : 0.0f;
+    *uc = (float)((hx[k] * u[k] + hx[k - 1] * u[k - 1] + hx[k - s] * u[k - s] + hx[k - s - 1] * u[k - s - 1]) * w);
+    *vc = (float)((hy[k] * v[k] + hy[k - 1] * v[k - 1] + hy[k - s] * v[k - s] + hy[k - s - 1] * v[k - s - 1]) * w);
+}
+
+/* b_continuity_row on padded row j (r = j * stride), and in the same pass the values an observer needs
+ * of the finished row at f = its padded row * stride (sw_row_values into buf), as layout_c.c's
+ * c_continuity_row_observed. */
+static inline void b_continuity_row_observed(sw_real *restrict eta, const sw_real *restrict u,
+                                             const sw_real *restrict v, const sw_real *restrict hx,
+                                             const sw_real *restrict hy, const sw_real *restrict h, size_t r,
+                                             size_t nx, size_t s, sw_real cx, sw_real cy, size_t f,
+                                             float *restrict buf)
+{
+    const sw_obs_row o = sw_obs_row_in(buf, nx);
+    float *restrict oe = o.eta, *restrict ou = o.u, *restrict ov = o.v;
+    for (size_t q = 0; q < o.n_seg; q++) {
+        const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
+        float hi = -INFINITY, lo = INFINITY, top = 0;
+        SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
+        for (size_t i = a; i < b; i++) {
+            const size_t k = r + 1 + i;
+            eta[k] = h[k] > 0 ? eta[k] - cx * (hx[k] * u[k] + hx[k - s] * u[k - s] - hx[k - 1] * u[k - 1]
+                                               - hx[k - s - 1] * u[k - s - 1])
+                                       - cy * (hy[k] * v[k] + hy[k - 1] * v[k - 1] - hy[k - s] * v[k - s]
+                                               - hy[k - s - 1] * v[k - s - 1])
+                              : 0;
+            float e, uc, vc;
+            b_centre_f32(eta, u, v, hx, hy, h, f + 1 + i, s, &e, &uc, &vc);
+            const float s2 = uc * uc + vc * vc;
+            oe[i] = e;
+            ou[i] = uc;
+            ov[i] = vc;
+            hi = e > hi ? e : hi;
+            lo = e < lo ? e : lo;
+            top = s2 > top ? s2 : top;
+        }
+        o.hi[q] = hi;
+        o.lo[q] = lo;
+        o.speed2[q] = top;
+    }
+}
+
+/* b_centre_row in float (sw_layout_kernels.centre_row_f32). */
+static void b_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
+{
+    const size_t r = sw_pidx(m, 0, j), s = m->stride;
+    SW_OMP(simd)
+    for (size_t i = 0; i < m->grid.nx; i++)
+        b_centre_f32(SW_F(m, eta), SW_F(m, u), SW_F(m, v), SW_F(m, hx), SW_F(m, hy), SW_F(m, h), r + i, s, &eta[i],
+                     &u[i], &v[i]);
+}
+
+/* Momentum (backward) on corner row j (columns 0..nx), at r = j * stride: from the new eta of cell rows
+ * j and j+1. */
+static inline void b_momentum_row(sw_real *restrict u, sw_real *restrict v, const sw_real *restrict eta,
+                                  const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
+                                  size_t s, sw_real gx, sw_real gy)
+{
+    SW_OMP(simd)
+    for (size_t i = r; i <= r + nx; i++) {
+        u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] + eta[i + s + 1] - eta[i] - eta[i + s]) : 0;
+        v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]) : 0;
+    }
+}
+
+/* The step in one sweep over memory, as layout_c.c's. Each thread owns padded cell rows j0..j1 and, for
+ * each row j: continuity of row j (old corners of corner rows j-1, j), its edge ghosts, then momentum of
+ * corner row j-1 (new eta of cell rows j-1, j); corner row 0 (the south edge) after cell row 1.
+ * Corner row j1 needs the next block's first row of new eta and waits for a barrier, as the next
+ * block's continuity reads it old before. A cell row is final once both its corner rows are: rows
+ * j0+1 .. j1-1 are observed in the sweep, j0 (its south corners are the previous block's) and j1 at
+ * the end. Each cell is computed as in two passes, for any thread count. */
 static void b_step(sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
@@ -95,32 +191,36 @@ static void b_step(sw_model *m)
     const sw_real gy = (sw_real)(0.5 * m->g * m->dt / m->grid.dy_m);
     sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
     const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy), *restrict h = SW_F(m, h);
+    const size_t nt = (size_t)omp_get_num_threads(), t = (size_t)omp_get_thread_num();
+    const size_t j0 = 1 + ny * t / nt, j1 = ny * (t + 1) / nt;   /* padded rows; empty when j1 < j0 */
+    float *restrict buf = sw_model_obs_buffer(m, (int)t);
 
-    /* forward: continuity from the old corner velocities; a wall corner also feeds the dry cells of its
-     * stencil, which must stay at 0 */
-    SW_OMP(for schedule(static))
-    for (size_t j = 1; j <= ny; j++) {
-        const size_t r = j * s;
-        SW_OMP(simd)
-        for (size_t i = r + 1; i <= r + nx; i++)
-            eta[i] = h[i] > 0 ? eta[i] - cx * (hx[i] * u[i] + hx[i - s] * u[i - s] - hx[i - 1] * u[i - 1]
-                                               - hx[i - s - 1] * u[i - s - 1])
-                                       - cy * (hy[i] * v[i] + hy[i - 1] * v[i - 1] - hy[i - s] * v[i - s]
-                                               - hy[i - s - 1] * v[i - s - 1])
-                              : 0;
+    for (size_t j = j0; j <= j1; j++) {
+        if (buf && j >= j0 + 3)   /* with room for them, row j-2's values are made in row j's pass */
+            b_continuity_row_observed(eta, u, v, hx, hy, h, j * s, nx, s, cx, cy, (j - 2) * s, buf);
+        else
+            b_continuity_row(eta, u, v, hx, hy, h, j * s, nx, s, cx, cy);
+        sw_model_edge_eta_row(m, j);
+        if (j == 1)
+            b_momentum_row(u, v, eta, hx, hy, 0, nx, s, gx, gy);   /* the south edge's corners */
+        if (j > j0)
+            b_momentum_row(u, v, eta, hx, hy, (j - 1) * s, nx, s, gx, gy);
+        if (buf && j >= j0 + 3)
+            sw_model_observe_row_values(m, j - 2, buf);
+        else if (!buf && j > j0 + 1)
+            sw_model_observe_row(m, j - 1);
     }
-    sw_model_edge_eta(m);
-
-    /* backward: every corner (padded rows 0..ny, columns 0..nx) from the new eta */
-    SW_OMP(for schedule(static))
-    for (size_t j = 0; j <= ny; j++) {
-        const size_t r = j * s;
-        SW_OMP(simd)
-        for (size_t i = r; i <= r + nx; i++) {
-            u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] + eta[i + s + 1] - eta[i] - eta[i + s]) : 0;
-            v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]) : 0;
-        }
-    }
+    if (buf && j1 >= j0 + 2)
+        sw_model_observe_row(m, j1 - 1);
+    SW_OMP(barrier)
+    if (j1 >= j0)
+        b_momentum_row(u, v, eta, hx, hy, j1 * s, nx, s, gx, gy);
+    SW_OMP(barrier)
+    if (j1 >= j0)
+        sw_model_observe_row(m, j0);
+    if (j1 > j0)
+        sw_model_observe_row(m, j1);
+    SW_OMP(barrier)   /* the step ends when every row has been observed */
 }
 
 /* Centre values: eta as stored; velocity = the four corners' mean volume flux (hx u = depth x
@@ -181,7 +281,9 @@ const sw_layout_kernels SW_NAME(sw_layout_b_kernels) = {
     .prepare = b_prepare,
     .step = b_step,
     .centre_row = b_centre_row,
+    .centre_row_f32 = b_centre_row_f32,
     .energy = b_energy,
+    .observes_rows = 1,
 };
 
 #if SW_REAL_BITS == 64

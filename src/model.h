@@ -30,7 +30,7 @@ typedef struct sw_model sw_model;
 #define SW_OBS_SEG 512
 
 /* A row's centre values as a layout's step may hand them to an observer, made in the same pass as the
- * step's own arithmetic: each value is (float) of sw_model_centre_row's (sw_model_centre_row_f32), and
+ * step's own arithmetic: the values sw_model_centre_row_f32 gives, bit for bit, and
  * for each segment q of SW_OBS_SEG cells (the last may be shorter) the highest and lowest elevation and
  * the highest u*u + v*v, computed in float, over the segment. */
 typedef struct {
@@ -99,8 +99,8 @@ void sw_model_tick(sw_model *m);
 /* Values at the centres of row j (see sw_layout.centre_row). */
 void sw_model_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v);
 
-/* sw_model_centre_row rounded to float, into eta, u, v (each nx long); scratch holds 3 nx doubles
- * for layouts without a float kernel (sw_layout_kernels.centre_row_f32). */
+/* sw_model_centre_row in float, to float round-off (sw_layout_kernels.centre_row_f32), into eta, u, v
+ * (each nx long); scratch holds 3 nx doubles for layouts without a float kernel. The tracker's input. */
 void sw_model_centre_row_f32(const sw_model *m, size_t j, float *eta, float *u, float *v, double *scratch);
 
 /* Elevation at cell centre (i, j), m. */

@@ -1,8 +1,10 @@
 /* test_tracker.c - arrival and extreme maps: the tracker against a plain cell-by-cell recomputation.
  *
  * The tracker skips the segments of a row whose maps cannot change and, attached to the model, runs
- * inside the step (tracker.c). Neither may change a single bit of the maps. The reference here is
- * the definition in README ("Outputs"), written out plainly: after every step, for every water cell,
+ * inside the step, where a layout may hand it each row's values made in its own loops (tracker.c).
+ * None of that may change a single bit of the maps. The reference here is the definition in README
+ * ("Outputs"), written out plainly from the centre values in float (sw_model_centre_row_f32, checked
+ * against the double centre_row below): after every step, for every water cell,
  * eta_max / eta_min are the highest / lowest centre elevation so far (as floats), eta_max_time the
  * time of the highest, speed_max the highest |u| at the centre (from the centre values rounded to float,
  * squared and summed in float), arrival the first time |eta| >= the
@@ -74,10 +76,12 @@ static void ref_update(ref_maps *r, const sw_model *m, float thr)
 {
     const sw_grid *g = sw_model_grid(m);
     const float now = (float)sw_model_time(m), floor_m = (float)fmin(1e-6, thr / 100.0);
-    double *e = malloc(3 * g->nx * sizeof(double));
+    float *e = malloc(3 * g->nx * sizeof(float));
+    double *scratch = malloc(3 * g->nx * sizeof(double));
     assert_non_null(e);
+    assert_non_null(scratch);
     for (size_t j = 0; j < g->ny; j++) {
-        sw_model_centre_row(m, j, e, e + g->nx, e + 2 * g->nx);
+        sw_model_centre_row_f32(m, j, e, e + g->nx, e + 2 * g->nx, scratch);
         for (size_t i = 0; i < g->nx; i++) {
             size_t k = j * g->nx + i;
             float ei = flushed(e[i]), uc = flushed(e[g->nx + i]), vc = flushed(e[2 * g->nx + i]);
@@ -98,6 +102,7 @@ static void ref_update(ref_maps *r, const sw_model *m, float thr)
         }
     }
     free(e);
+    free(scratch);
 }
 
 /* The attached tracker's maps after `steps` steps on `threads` threads, against the reference. */
@@ -174,6 +179,46 @@ static void test_attached_equals_reference(void **state)
                 attached_equals_reference(sw_layout_at(q)->name, (sw_precision)p, threads);
 }
 
+/* The tracker's float centre values agree with the double ones to float round-off, on every layout
+ * and precision: |f32 - double| <= 2^-22 (two float ulps, IEEE 754 binary32) of the row's largest
+ * value, or 1e-30 (values near 0). */
+static void test_centre_row_f32(void **state)
+{
+    (void)state;
+    const size_t nx = 90, ny = 30;
+    float *f = malloc(3 * nx * sizeof(float));
+    double *d = malloc(3 * nx * sizeof(double)), *scratch = malloc(3 * nx * sizeof(double));
+    assert_non_null(f);
+    assert_non_null(d);
+    assert_non_null(scratch);
+    for (size_t q = 0; q < sw_layout_count(); q++)
+        for (int p = 0; p < SW_PRECISIONS; p++) {
+            sw_model *m = basin(sw_layout_at(q)->name, (sw_precision)p, nx, ny, 1000, 200, 40e3, 15e3, 6e3);
+            tu_advance(m, 40, 1);
+            double worst = 0;
+            for (size_t j = 0; j < ny; j++) {
+                sw_model_centre_row_f32(m, j, f, f + nx, f + 2 * nx, scratch);
+                sw_model_centre_row(m, j, d, d + nx, d + 2 * nx);
+                for (int c = 0; c < 3; c++) {
+                    double top = 0;
+                    for (size_t i = 0; i < nx; i++)
+                        top = fmax(top, fabs(d[c * nx + i]));
+                    for (size_t i = 0; i < nx; i++) {
+                        double err = fabs((double)f[c * nx + i] - d[c * nx + i]);
+                        worst = fmax(worst, err / (top > 0 ? top : 1));
+                        assert_true(err <= ldexp(top, -22) + 1e-30);
+                    }
+                }
+            }
+            print_message("%s %s: float centre values within %.2e of the row's largest\n", sw_layout_at(q)->name,
+                          sw_precision_name((sw_precision)p), worst);
+            sw_model_free(m);
+        }
+    free(f);
+    free(d);
+    free(scratch);
+}
+
 /* A hump's front reaches a cell 60 km away at about (60 km - its radius) / sqrt(g h). The 1 cm threshold
  * is met at the front's foot a little before the crest, so the bound is loose: within 15 %. */
 static void test_arrival_speed(void **state)
@@ -208,6 +253,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_attached_equals_reference),
         cmocka_unit_test(test_arrival_speed),
+        cmocka_unit_test(test_centre_row_f32),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
