@@ -48,6 +48,8 @@ typedef struct {
     double bandwidth;           /* effective: median rate x values_per_cell x sizeof(value), B/s */
     double bandwidth_ratio;     /* bandwidth / median triad */
     double tracking_cost;       /* large_tracked time / large time - 1 (fraction added) */
+    double tracking_active;     /* share of row segments whose maps the tracked steps rewrote (the cost
+                                 * grows with it: quiet water costs a compare per segment) */
     double efficiency_2;        /* parallel efficiency from 1 thread to the most threads */
 } sw_bench_layout;
 

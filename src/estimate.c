@@ -52,15 +52,18 @@ double sw_estimate_rate(const sw_layout *layout, sw_precision precision, int thr
     sw_tracker *t = NULL;
     double rate = 0;
     if (sw_model_create(&cfg, &m, NULL) == SW_OK
-        && sw_tracker_create(m, 0.01, omp_get_max_threads(), &t, NULL) == SW_OK) {
-        sw_tracker_attach(t, m);
+        && sw_tracker_create(m, 0.01, omp_get_max_threads(), &t, NULL) == SW_OK
+        && sw_tracker_attach(t, m, NULL) == SW_OK) {
         sw_model_step(m);   /* warm-up: first touch, caches */
         double t0 = omp_get_wtime(), wall = 0;
         long long steps = 0;
         while (wall < seconds) {
             SW_OMP(parallel)
-            for (int n = 0; n < 10; n++)
+            for (int n = 0; n < 10; n++) {
                 sw_model_step(m);   /* with the tracker attached, as a run has it */
+                SW_OMP(single)
+                sw_model_tick(m);
+            }
             steps += 10;
             wall = omp_get_wtime() - t0;
         }

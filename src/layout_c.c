@@ -182,8 +182,10 @@ static void c_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
     }
 }
 
-/* c_centre_row in float: each value is (float) of c_centre_row's. In single precision the sums of two
- * floats are exact in double, so one float rounding gives the same bits; halving is exact. */
+/* c_centre_row in float: each value is (float) of c_centre_row's. In single precision the float sum
+ * rounds once where c_centre_row rounds to double and then to float; rounding twice gives the same
+ * result when the wider format has at least 2 p + 2 bits for a p-bit narrower one (53 >= 2 * 24 + 2;
+ * Figueroa 1995, ACM SIGNUM Newsletter 30(3) [memory]); halving is exact. */
 static void c_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
 {
     const size_t r = sw_pidx(m, 0, j), s = m->stride, nx = m->grid.nx;

@@ -3,7 +3,7 @@
  * One parallel region spans the whole time loop: each step's kernels and the tracker bind their
  * `omp for` loops to it; gauges, snapshots and progress run in a `single` between steps. No
  * result depends on the number of threads: every cell is computed the same way by whichever
- * thread owns its row, and there are no reductions in the loop.
+ * thread owns its row, and no sum runs across cells in the loop.
  */
 #define _POSIX_C_SOURCE 200809L
 #include "run.h"
@@ -216,7 +216,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
     if (rc == SW_OK)
         rc = sw_tracker_create(c.model, sc->arrival_threshold_m, res->threads, &c.tracker, err);
     if (rc == SW_OK)
-        sw_tracker_attach(c.tracker, c.model);
+        rc = sw_tracker_attach(c.tracker, c.model, err);   /* after omp_set_num_threads above */
     if (rc == SW_OK)
         rc = sw_gauges_create(c.model, setup->depth_m, sc->gauges, sc->n_gauges, setup->n_samples, &c.gauges, err);
     if (rc == SW_OK && sc->snapshot_interval_s > 0 && !opt->sink) {

@@ -15,7 +15,7 @@
  * that already passed. Each row is cut into segments of SEG cells, and each segment keeps a summary
  * of its maps (the lowest eta_max, the highest eta_min, the lowest speed_max^2, whether a water cell
  * still waits for its arrival). A row update first reduces the new values of each segment (highest
- * and lowest elevation, top squared speed, largest |eta|) and touches the segment's maps only when one
+ * and lowest elevation, top squared speed) and touches the segment's maps only when one
  * of them could change; the per-cell rules are the same either way, so the maps are the same bits as
  * with every cell updated. Attached to the model (sw_tracker_attach) the update runs inside the step,
  * on rows still in cache, and the state is not streamed from memory a second time. Either way it runs
@@ -26,6 +26,7 @@
 #include <float.h>
 #include <math.h>
 #include <stdlib.h>
+#include <string.h>
 
 #include "fpmode.h"
 #include "omp_compat.h"
@@ -50,22 +51,80 @@ static float trigger(float weakest, float floor_value)
     return weakest == 0.0f ? nextafterf(floor_value, 0.0f) : weakest;
 }
 
+/* What one thread of the team owns: its row buffers and counts. Each slot starts on a 64-byte line of
+ * its own (threads write their counts every row). */
+typedef struct {
+    float *row;           /* [3 nx]: centre eta, u, v of one row */
+    double *scratch;      /* [3 nx]: for layouts without a float centre row */
+    int nonfinite;        /* the thread met a NaN or Inf */
+    long long seen;       /* segments looked at */
+    long long updated;    /* segments whose maps were rewritten */
+    char pad[64 - 2 * sizeof(void *) - sizeof(int) - 2 * sizeof(long long) > 0
+             ? 64 - 2 * sizeof(void *) - sizeof(int) - 2 * sizeof(long long) : 1];
+} thread_slot;
+
 struct sw_tracker {
     size_t nx, ny;
     float threshold;      /* m */
     float floor;          /* m: |eta| below it counts as 0 (min(1e-6, threshold / 100)) */
-    int n_threads;        /* row buffers available */
+    int n_threads;        /* slots of the team's threads */
+    thread_slot *slot;    /* [n_threads + 1], 64-byte aligned; the last serves, one at a time, threads
+                           * beyond n_threads */
     float *eta_max, *eta_min;      /* [ny * nx] running extremes, m */
     float *arrival, *eta_max_time; /* [ny * nx] s; arrival NaN until reached */
     float *speed2_max;             /* [ny * nx] squared speed, m2 s-2 */
-    float *rows;          /* [n_threads * 3 * nx]: centre eta, u, v of one row per thread */
-    double *scratch;      /* [n_threads * 3 * nx]: for layouts without a float centre row */
     size_t n_seg;         /* segments per row */
     seg_summary *seg;     /* [ny * n_seg] */
     const unsigned char *wet; /* the model's mask [ny * nx] */
-    int *nonfinite;       /* [n_threads]: thread saw a NaN or Inf */
     double *out;          /* [5 * ny * nx] the double maps, made by sw_tracker_maps */
 };
+
+static void free_slots(sw_tracker *t)
+{
+    for (int q = 0; t->slot && q <= t->n_threads; q++) {
+        free(t->slot[q].row);
+        free(t->slot[q].scratch);
+    }
+    free(t->slot);
+    t->slot = NULL;
+    t->n_threads = 0;
+}
+
+/* Gives t at least n thread slots and the overflow slot (the counts of the old ones carried over).
+ * SW_OK or SW_ERR_NOMEM (then t is as it was). */
+static sw_status ensure_slots(sw_tracker *t, int n, sw_error *err)
+{
+    if (t->slot && n <= t->n_threads)
+        return SW_OK;
+    thread_slot *slot = aligned_alloc(64, (size_t)(n + 1) * sizeof *slot);
+    if (!slot)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the tracker's %d thread buffers", n);
+    memset(slot, 0, (size_t)(n + 1) * sizeof *slot);
+    int ok = 1;
+    for (int q = 0; q <= n; q++) {
+        slot[q].row = malloc(3 * t->nx * sizeof(float));
+        slot[q].scratch = malloc(3 * t->nx * sizeof(double));
+        ok &= slot[q].row && slot[q].scratch;
+    }
+    for (int q = 0; t->slot && q <= t->n_threads; q++) {   /* counts: the old overflow slot's into the new */
+        const int to = q < t->n_threads ? q : n;
+        slot[to].nonfinite |= t->slot[q].nonfinite;
+        slot[to].seen += t->slot[q].seen;
+        slot[to].updated += t->slot[q].updated;
+    }
+    if (!ok) {
+        for (int q = 0; q <= n; q++) {
+            free(slot[q].row);
+            free(slot[q].scratch);
+        }
+        free(slot);
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the tracker's %d thread buffers", n);
+    }
+    free_slots(t);
+    t->slot = slot;
+    t->n_threads = n;
+    return SW_OK;
+}
 
 void sw_tracker_free(sw_tracker *t)
 {
@@ -76,10 +135,8 @@ void sw_tracker_free(sw_tracker *t)
     free(t->arrival);
     free(t->eta_max_time);
     free(t->speed2_max);
-    free(t->rows);
-    free(t->scratch);
+    free_slots(t);
     free(t->seg);
-    free(t->nonfinite);
     free(t->out);
     free(t);
 }
@@ -99,20 +156,16 @@ sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads
     t->ny = g->ny;
     t->threshold = (float)threshold_m;
     t->floor = (float)fmin(1e-6, threshold_m / 100);
-    t->n_threads = n_threads < 1 ? 1 : n_threads;
     t->eta_max = malloc(n * sizeof(float));
     t->eta_min = malloc(n * sizeof(float));
     t->arrival = malloc(n * sizeof(float));
     t->eta_max_time = malloc(n * sizeof(float));
     t->speed2_max = malloc(n * sizeof(float));
-    t->rows = malloc((size_t)t->n_threads * 3 * g->nx * sizeof(float));
-    t->scratch = malloc((size_t)t->n_threads * 3 * g->nx * sizeof(double));
     t->n_seg = (g->nx + SEG - 1) / SEG;
     t->seg = malloc(g->ny * t->n_seg * sizeof *t->seg);
     t->wet = sw_model_wet(m);
-    t->nonfinite = calloc((size_t)t->n_threads, sizeof(int));
-    if (!t->eta_max || !t->eta_min || !t->arrival || !t->eta_max_time || !t->speed2_max || !t->rows
-        || !t->scratch || !t->seg || !t->nonfinite) {
+    if (!t->eta_max || !t->eta_min || !t->arrival || !t->eta_max_time || !t->speed2_max || !t->seg
+        || ensure_slots(t, n_threads < 1 ? 1 : n_threads, NULL) != SW_OK) {
         sw_tracker_free(t);
         return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating the arrival tracker (%zu cells)", n);
     }
@@ -149,19 +202,19 @@ static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float
     int waiting = 0, bad = 0;
     SW_OMP(simd reduction(min : lo_max, lo_sp) reduction(max : hi_min) reduction(| : waiting, bad))
     for (size_t i = a; i < b; i++) {
-        float ei = fabsf(e[i]) < fl ? 0.0f : e[i];
-        bad |= !(fabsf(ei) <= FLT_MAX);   /* NaN or Inf in the state */
+        const float ei = fabsf(e[i]) < fl ? 0.0f : e[i];
+        const float s2_raw = uu[i] * uu[i] + vv[i] * vv[i], s2 = s2_raw < SPEED2_FLOOR ? 0.0f : s2_raw;
+        bad |= !(fabsf(ei) <= FLT_MAX) | !(s2_raw <= FLT_MAX);   /* NaN or Inf in the state */
         int higher = ei > mx[i];
         mx[i] = higher ? ei : mx[i];
         tmx[i] = higher ? now : tmx[i];
         mn[i] = ei < mn[i] ? ei : mn[i];
-        float s2 = uu[i] * uu[i] + vv[i] * vv[i];
-        s2 = s2 < SPEED2_FLOOR ? 0.0f : s2;
         sp[i] = s2 > sp[i] ? s2 : sp[i];
         arr[i] = (arr[i] != arr[i] && fabsf(ei) >= thr) ? now : arr[i];   /* NaN until first reached */
-        lo_max = mx[i] < lo_max ? mx[i] : lo_max;   /* not fminf: a libm call per cell, unvectorised */
-        hi_min = mn[i] > hi_min ? mn[i] : hi_min;
-        lo_sp = sp[i] < lo_sp ? sp[i] : lo_sp;
+        /* water cells only: land reads 0 for ever, and its maps (0) would pin the triggers to the floor */
+        lo_max = wet[i] && mx[i] < lo_max ? mx[i] : lo_max;   /* not fminf: a libm call per cell */
+        hi_min = wet[i] && mn[i] > hi_min ? mn[i] : hi_min;
+        lo_sp = wet[i] && sp[i] < lo_sp ? sp[i] : lo_sp;
         waiting |= wet[i] && arr[i] != arr[i];
     }
     *sum = (seg_summary){.up = trigger(lo_max, fl), .down = -trigger(-hi_min, fl),
@@ -169,29 +222,26 @@ static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float
     return bad;
 }
 
-/* The row update (see the top of this file): the centre values of row j, at time_s, into the maps.
- * A sw_row_observer (model.h). */
-static void track_row(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre)
+/* The row update with thread slot `sl` (see the top of this file). */
+static void track_row_in(sw_tracker *t, thread_slot *sl, const sw_model *m, size_t j, double time_s,
+                         const sw_row_values *pre)
 {
-    sw_tracker *t = ctx;
     const size_t nx = t->nx;
     const float now = (float)time_s, thr = t->threshold;
-    int tid = omp_get_thread_num();
-    if (tid >= t->n_threads)
-        tid = 0;   /* never happens when created with the team size; stays memory-safe if it does */
     const float *e, *uu, *vv;
-    float *row = t->rows + (size_t)tid * 3 * nx;
+    float *row = sl->row;
     if (pre) {   /* the step made the values and the segments' extremes */
         e = pre->eta;
         uu = pre->u;
         vv = pre->v;
     } else {
-        sw_model_centre_row_f32(m, j, row, row + nx, row + 2 * nx, t->scratch + (size_t)tid * 3 * nx);
+        sw_model_centre_row_f32(m, j, row, row + nx, row + 2 * nx, sl->scratch);
         e = row;
         uu = row + nx;
         vv = row + 2 * nx;
     }
     int bad = 0;
+    long long updated = 0;
     for (size_t q = 0; q < t->n_seg; q++) {
         const size_t a = q * SEG, b = a + SEG < nx ? a + SEG : nx;
         float hi, lo, top_s2;
@@ -213,10 +263,30 @@ static void track_row(void *ctx, const sw_model *m, size_t j, double time_s, con
         /* A cell's maps change only when its new value passes them, or it arrives; if no raw value
          * passes the segment's triggers, no floored value passes its own cell's maps (seg_summary).
          * |eta| >= thr (> floor) is the same test raw or floored. */
-        if (hi > sum->up || lo < sum->down || top_s2 > sum->faster || (sum->waiting && (hi >= thr || -lo >= thr)))
+        if (hi > sum->up || lo < sum->down || top_s2 > sum->faster || (sum->waiting && (hi >= thr || -lo >= thr))) {
             bad |= update_cells(t, j, a, b, e, uu, vv, now, sum);
+            updated++;
+        }
     }
-    t->nonfinite[tid] |= bad;
+    if (bad)
+        sl->nonfinite = 1;
+    sl->seen += (long long)t->n_seg;
+    sl->updated += updated;
+}
+
+/* The row update (see the top of this file): the centre values of row j, at time_s, into the maps.
+ * A sw_row_observer (model.h). Threads beyond the slots (a team larger than the tracker was made or
+ * attached for) share the overflow slot one at a time: correct, slow, and never the case in sw_run. */
+static void track_row(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre)
+{
+    sw_tracker *t = ctx;
+    const int tid = omp_get_thread_num();
+    if (tid < t->n_threads) {
+        track_row_in(t, &t->slot[tid], m, j, time_s, pre);
+    } else {
+        SW_OMP(critical(sw_tracker_overflow))
+        track_row_in(t, &t->slot[t->n_threads], m, j, time_s, pre);
+    }
 }
 
 void sw_tracker_update(sw_tracker *t, const sw_model *m)
@@ -229,13 +299,31 @@ void sw_tracker_update(sw_tracker *t, const sw_model *m)
     sw_fp_restore(saved);
 }
 
-void sw_tracker_attach(sw_tracker *t, sw_model *m) { sw_model_set_observer(m, t ? track_row : NULL, t); }
+sw_status sw_tracker_attach(sw_tracker *t, sw_model *m, sw_error *err)
+{
+    if (t) {
+        sw_status rc = ensure_slots(t, omp_get_max_threads(), err);
+        if (rc != SW_OK)
+            return rc;
+    }
+    sw_model_set_observer(m, t ? track_row : NULL, t);
+    return SW_OK;
+}
+
+void sw_tracker_segments(const sw_tracker *t, long long *seen, long long *updated)
+{
+    *seen = *updated = 0;
+    for (int q = 0; q <= t->n_threads; q++) {
+        *seen += t->slot[q].seen;
+        *updated += t->slot[q].updated;
+    }
+}
 
 int sw_tracker_nonfinite(const sw_tracker *t)
 {
     int bad = 0;
-    for (int q = 0; q < t->n_threads; q++)
-        bad |= t->nonfinite[q];
+    for (int q = 0; q <= t->n_threads; q++)
+        bad |= t->slot[q].nonfinite;
     return bad;
 }
 

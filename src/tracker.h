@@ -13,7 +13,8 @@
 typedef struct sw_tracker sw_tracker;
 
 /* Creates a tracker for model m (already holding its initial state, at time 0) with arrival
- * threshold threshold_m (> 0), with row buffers for up to n_threads threads. *out is NULL on failure. */
+ * threshold threshold_m (> 0), with row buffers for n_threads threads (a larger team is served one
+ * thread at a time; sw_tracker_attach sizes them to the team). *out is NULL on failure. */
 sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads, sw_tracker **out,
                             sw_error *err);
 
@@ -23,9 +24,15 @@ void sw_tracker_update(sw_tracker *t, const sw_model *m);
 
 /* Makes every sw_model_step of m fold the new state into t, row by row as the step finishes them
  * (model.h, sw_row_observer): the same maps as sw_tracker_update after each step, without reading
- * the state again. t must outlive the attachment; sw_tracker_attach(NULL, m) detaches. Call outside
- * parallel regions. A model has one observer: attaching replaces the previous one. */
-void sw_tracker_attach(sw_tracker *t, sw_model *m);
+ * the state again. Gives t buffers for omp_get_max_threads() threads (and the model room for rows'
+ * values for as many): set the thread count first. t must outlive the attachment;
+ * sw_tracker_attach(NULL, m, err) detaches. Call outside parallel regions. A model has one observer:
+ * attaching replaces the previous one. SW_OK, or SW_ERR_NOMEM (then nothing is attached). */
+sw_status sw_tracker_attach(sw_tracker *t, sw_model *m, sw_error *err);
+
+/* Segments (rows cut into SW_OBS_SEG cells) the updates have looked at, and how many of them had their
+ * maps rewritten, since creation: the share of the grid where the maps were still changing. */
+void sw_tracker_segments(const sw_tracker *t, long long *seen, long long *updated);
 
 /* Converts the running maps to double and points maps' arrays at them (valid until
  * sw_tracker_free); land cells and never-reached arrivals read NaN. depth_m is the caller's

@@ -49,7 +49,7 @@ extern sw_precision vh_precision;
  * u sqrt(steps) relative, 2-3e-6 after the 2000-5000 steps of these checks. Measured on A-E
  * (2026-12-02): series vs the discrete solution 3.6e-7 .. 1.2e-6 of the peak; drift of volume and E*
  * over 2000-3000 steps 5e-8 .. 4.2e-7; largest one-step rise of E* at open edges 3.3e-8. Each bound
- * is about 10x the largest measured figure and far below any physical effect the checks look for. */
+ * is 8 to 100 times the largest measured figure and far below any physical effect the checks look for. */
 #define VH_SINGLE_SERIES 1e-5   /* |model - discrete solution| / peak */
 #define VH_SINGLE_DRIFT 5e-6    /* relative drift of a conserved sum */
 #define VH_SINGLE_RISE 1e-6     /* max E* / E*_0 - 1 with open edges */
