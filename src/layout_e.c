@@ -135,6 +135,34 @@ static sw_status e_prepare(sw_model *m, sw_error *err)
     return SW_OK;
 }
 
+/* Continuity (forward: from the old velocities; a no-op on u,v cells, whose neighbours carry no flux)
+ * on the padded row at r + 1. */
+static inline void e_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                    const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
+                                    size_t s, sw_real cx, sw_real cy)
+{
+    SW_OMP(simd)
+    for (size_t i = r + 1; i <= r + nx; i++)
+        eta[i] -= cx * (hx[i + 1] * u[i + 1] - hx[i - 1] * u[i - 1]) + cy * (hy[i + s] * v[i + s] - hy[i - s] * v[i - s]);
+}
+
+/* Momentum (backward: from the new eta of this row and its two neighbours; eta cells have hx = hy = 0
+ * and stay at rest) on the padded row at r + 1. */
+static inline void e_momentum_row(sw_real *restrict u, sw_real *restrict v, const sw_real *restrict eta,
+                                  const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
+                                  size_t s, sw_real gx, sw_real gy)
+{
+    SW_OMP(simd)
+    for (size_t i = r + 1; i <= r + nx; i++) {
+        u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i - 1]) : 0;
+        v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] - eta[i - s]) : 0;
+    }
+}
+
+/* The step in one sweep over memory, as layout_a.c's (the same stencils): continuity of row j, its
+ * edge ghosts, momentum of row j-1; the block's first and last rows' momentum after a barrier, then
+ * the ghosts. A row's centre values need its neighbours' (e_centre_row) and the ghosts, so the model
+ * observes rows after the step (observes_rows = 0). */
 static void e_step(sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
@@ -144,28 +172,21 @@ static void e_step(sw_model *m)
     const sw_real rx = (sw_real)(m->dt / m->grid.dx_m), ry = (sw_real)(m->dt / m->grid.dy_m);
     sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
     const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy), *restrict h = SW_F(m, h);
+    const size_t nt = (size_t)omp_get_num_threads(), t = (size_t)omp_get_thread_num();
+    const size_t j0 = 1 + ny * t / nt, j1 = ny * (t + 1) / nt;   /* padded rows; empty when j1 < j0 */
 
-    /* forward: continuity from the old velocities (a no-op on u,v cells: their neighbours carry no flux) */
-    SW_OMP(for schedule(static))
-    for (size_t j = 1; j <= ny; j++) {
-        const size_t r = j * s;
-        SW_OMP(simd)
-        for (size_t i = r + 1; i <= r + nx; i++)
-            eta[i] -= cx * (hx[i + 1] * u[i + 1] - hx[i - 1] * u[i - 1])
-                    + cy * (hy[i + s] * v[i + s] - hy[i - s] * v[i - s]);
+    for (size_t j = j0; j <= j1; j++) {
+        e_continuity_row(eta, u, v, hx, hy, j * s, nx, s, cx, cy);
+        sw_model_edge_eta_row(m, j);
+        if (j > j0 + 1)
+            e_momentum_row(u, v, eta, hx, hy, (j - 1) * s, nx, s, gx, gy);
     }
-    sw_model_edge_eta(m);
-
-    /* backward: momentum from the new eta (eta cells have hx = hy = 0 and stay at rest) */
-    SW_OMP(for schedule(static))
-    for (size_t j = 1; j <= ny; j++) {
-        const size_t r = j * s;
-        SW_OMP(simd)
-        for (size_t i = r + 1; i <= r + nx; i++) {
-            u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i - 1]) : 0;
-            v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] - eta[i - s]) : 0;
-        }
-    }
+    SW_OMP(barrier)
+    if (j1 >= j0)
+        e_momentum_row(u, v, eta, hx, hy, j0 * s, nx, s, gx, gy);
+    if (j1 > j0)
+        e_momentum_row(u, v, eta, hx, hy, j1 * s, nx, s, gx, gy);
+    SW_OMP(barrier)
 
     /* ghost normal velocities beside eta cells: the outgoing wave's (open); on the mirror line, stepped
      * like any velocity with the ghost's eta (the inner eta mirrored) as the far neighbour (level) */
@@ -218,6 +239,28 @@ static void e_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
 }
 
 /* One cell's centre elevation, as e_centre_row computes it. */
+/* e_centre_row in the state's precision, rounded to float (centre_row_f32: within float round-off of
+ * e_centre_row, which sums in double). */
+static void e_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
+{
+    const size_t r = sw_pidx(m, 0, j), s = m->stride, nx = m->grid.nx;
+    const sw_real *restrict h = SW_F(m, h), *restrict e = SW_F(m, eta), *restrict uu = SW_F(m, u);
+    const sw_real *restrict vv = SW_F(m, v);
+    SW_OMP(simd)
+    for (size_t i = 0; i < nx; i++) {
+        const size_t k = r + i;
+        const sw_real ww = h[k - 1] > 0, we = h[k + 1] > 0, ws = h[k - s] > 0, wn = h[k + s] > 0;
+        const sw_real w = ww + we + ws + wn, inv = w > 0 ? 1 / w : 0, wet = h[k] > 0;
+        const int own = (i + j) % 2 == 0;   /* the cell stores eta; else u and v */
+        const sw_real ea = (ww * e[k - 1] + we * e[k + 1] + ws * e[k - s] + wn * e[k + s]) * inv;
+        const sw_real ua = (ww * uu[k - 1] + we * uu[k + 1] + ws * uu[k - s] + wn * uu[k + s]) * inv;
+        const sw_real va = (ww * vv[k - 1] + we * vv[k + 1] + ws * vv[k - s] + wn * vv[k + s]) * inv;
+        eta[i] = (float)(wet * (own ? e[k] : ea));
+        u[i] = (float)(wet * (own ? ua : uu[k]));
+        v[i] = (float)(wet * (own ? va : vv[k]));
+    }
+}
+
 static double e_eta_at(const sw_model *m, size_t i, size_t j)
 {
     const size_t k = sw_pidx(m, i, j), s = m->stride;
@@ -263,6 +306,7 @@ const sw_layout_kernels SW_NAME(sw_layout_e_kernels) = {
     .prepare = e_prepare,
     .step = e_step,
     .centre_row = e_centre_row,
+    .centre_row_f32 = e_centre_row_f32,
     .eta_at = e_eta_at,
     .energy = e_energy,
 };
