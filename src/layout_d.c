@@ -138,6 +138,47 @@ static sw_status d_prepare(sw_model *m, sw_error *err)
     return SW_OK;
 }
 
+/* Continuity (forward: from the old u of rows j-1, j and v of rows j-1, j+1) on padded row j, at
+ * r = j * stride; a wall velocity also feeds the dry cells of its stencil, which must stay at 0. */
+static inline void d_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                    const sw_real *restrict hx, const sw_real *restrict hy,
+                                    const sw_real *restrict h, size_t r, size_t nx, size_t s, sw_real cx, sw_real cy)
+{
+    SW_OMP(simd)
+    for (size_t i = r + 1; i <= r + nx; i++)
+        eta[i] = h[i] > 0 ? eta[i] - cx * (hx[i + 1] * u[i + 1] + hx[i + 1 - s] * u[i + 1 - s]
+                                           - hx[i - 1] * u[i - 1] - hx[i - 1 - s] * u[i - 1 - s])
+                                   - cy * (hy[i + s] * v[i + s] + hy[i + s - 1] * v[i + s - 1]
+                                           - hy[i - s] * v[i - s] - hy[i - s - 1] * v[i - s - 1])
+                          : 0;
+}
+
+/* u on the north faces of padded row j (r = j * stride; row 0: the south edge's), from the new eta of
+ * rows j and j+1. */
+static inline void d_u_row(sw_real *restrict u, const sw_real *restrict eta, const sw_real *restrict hx, size_t r,
+                           size_t nx, size_t s, sw_real gx)
+{
+    SW_OMP(simd)
+    for (size_t i = r + 1; i <= r + nx; i++)
+        u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s]) : 0;
+}
+
+/* v on the east faces of padded row j (columns 0..nx), from the new eta of rows j-1 and j+1. */
+static inline void d_v_row(sw_real *restrict v, const sw_real *restrict eta, const sw_real *restrict hy, size_t r,
+                           size_t nx, size_t s, sw_real gy)
+{
+    SW_OMP(simd)
+    for (size_t i = r; i <= r + nx; i++)
+        v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1]) : 0;
+}
+
+/* The step in one sweep over memory, as layout_c.c's. Each thread owns padded rows j0..j1 and, for each
+ * row j: continuity of row j, its edge ghosts, u of row j-1 (new eta of rows j-1, j; u of row 0 after
+ * row 1) and v of row j-1 (new eta of rows j-2, j) but for the block's first row. v of the first row
+ * needs the previous block's last row of new eta, u and v of the last row the next block's first: they
+ * wait for a barrier, as the neighbours' continuity reads them old before. Then the ghosts. A row's
+ * centre values need its u, the u below and its v: rows j0+1 .. j1-1 are observed in the sweep, j0 and
+ * j1 at the end. Each cell is computed as in two passes, for any thread count. */
 static void d_step(sw_model *m)
 {
     const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
@@ -148,34 +189,33 @@ static void d_step(sw_model *m)
     sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
     const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy), *restrict h = SW_F(m, h);
 
-    /* forward: continuity from the old velocities; a wall velocity also feeds the dry cells of its
-     * stencil, which must stay at 0 */
-    SW_OMP(for schedule(static))
-    for (size_t j = 1; j <= ny; j++) {
-        const size_t r = j * s;
-        SW_OMP(simd)
-        for (size_t i = r + 1; i <= r + nx; i++)
-            eta[i] = h[i] > 0 ? eta[i] - cx * (hx[i + 1] * u[i + 1] + hx[i + 1 - s] * u[i + 1 - s]
-                                               - hx[i - 1] * u[i - 1] - hx[i - 1 - s] * u[i - 1 - s])
-                                       - cy * (hy[i + s] * v[i + s] + hy[i + s - 1] * v[i + s - 1]
-                                               - hy[i - s] * v[i - s] - hy[i - s - 1] * v[i - s - 1])
-                              : 0;
-    }
-    sw_model_edge_eta(m);
+    const size_t nt = (size_t)omp_get_num_threads(), me = (size_t)omp_get_thread_num();
+    const size_t j0 = 1 + ny * me / nt, j1 = ny * (me + 1) / nt;   /* padded rows; empty when j1 < j0 */
 
-    /* backward: u on north faces (padded rows 0..ny), v on east faces (rows 1..ny) */
-    SW_OMP(for schedule(static))
-    for (size_t j = 0; j <= ny; j++) {
-        const size_t r = j * s;
-        SW_OMP(simd)
-        for (size_t i = r + 1; i <= r + nx; i++)
-            u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s]) : 0;
-        if (j > 0) {
-            SW_OMP(simd)
-            for (size_t i = r; i <= r + nx; i++)
-                v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1]) : 0;
+    for (size_t j = j0; j <= j1; j++) {
+        d_continuity_row(eta, u, v, hx, hy, h, j * s, nx, s, cx, cy);
+        sw_model_edge_eta_row(m, j);
+        if (j == 1)
+            d_u_row(u, eta, hx, 0, nx, s, gx);   /* the south edge's faces */
+        if (j > j0)
+            d_u_row(u, eta, hx, (j - 1) * s, nx, s, gx);
+        if (j > j0 + 1) {
+            d_v_row(v, eta, hy, (j - 1) * s, nx, s, gy);
+            sw_model_observe_row(m, j - 1);
         }
     }
+    SW_OMP(barrier)
+    if (j1 >= j0) {
+        d_u_row(u, eta, hx, j1 * s, nx, s, gx);
+        d_v_row(v, eta, hy, j0 * s, nx, s, gy);
+    }
+    if (j1 > j0)
+        d_v_row(v, eta, hy, j1 * s, nx, s, gy);
+    SW_OMP(barrier)
+    if (j1 >= j0)
+        sw_model_observe_row(m, j0);
+    if (j1 > j0)
+        sw_model_observe_row(m, j1);
 
     /* ghost normal velocities on the faces of the ghost cells (see d_prepare) */
     const sw_edge_cell *restrict oc = m->edge;
@@ -225,6 +265,24 @@ static void d_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
 }
 
 /* eta at (0, 0), u at (0, +-dy/2) + whole cells, v at (+-dx/2, 0) + whole cells. */
+/* d_centre_row in the state's precision, one division, rounded to float (centre_row_f32: within float
+ * round-off of d_centre_row). */
+static void d_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
+{
+    const size_t r = sw_pidx(m, 0, j), s = m->stride, nx = m->grid.nx;
+    const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy), *restrict uu = SW_F(m, u);
+    const sw_real *restrict vv = SW_F(m, v), *restrict h = SW_F(m, h), *restrict e = SW_F(m, eta);
+    SW_OMP(simd)
+    for (size_t i = 0; i < nx; i++) {
+        const size_t k = r + i;
+        const int wet = h[k] > 0;
+        const sw_real w = wet ? (sw_real)0.5 / h[k] : 0;
+        eta[i] = wet ? (float)e[k] : 0.0f;
+        u[i] = (float)((hx[k] * uu[k] + hx[k - s] * uu[k - s]) * w);
+        v[i] = (float)((hy[k] * vv[k] + hy[k - 1] * vv[k - 1]) * w);
+    }
+}
+
 #if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static void d_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 {
@@ -264,7 +322,9 @@ const sw_layout_kernels SW_NAME(sw_layout_d_kernels) = {
     .prepare = d_prepare,
     .step = d_step,
     .centre_row = d_centre_row,
+    .centre_row_f32 = d_centre_row_f32,
     .energy = d_energy,
+    .observes_rows = 1,
 };
 
 #if SW_REAL_BITS == 64
