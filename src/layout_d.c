@@ -153,6 +153,56 @@ static inline void d_continuity_row(sw_real *restrict eta, const sw_real *restri
                           : 0;
 }
 
+/* The centre values of cell k in the state's precision, one division, rounded to float: d_centre_row
+ * to float round-off (centre_row_f32). */
+static inline void d_centre_f32(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                const sw_real *restrict hx, const sw_real *restrict hy, const sw_real *restrict h,
+                                size_t k, size_t s, float *e, float *uc, float *vc)
+{
+    const int wet = h[k] > 0;
+    const sw_real w = wet ? (sw_real)0.5 / h[k] : 0;
+    *e = wet ? (float)eta[k] : 0.0f;
+    *uc = (float)((hx[k] * u[k] + hx[k - s] * u[k - s]) * w);
+    *vc = (float)((hy[k] * v[k] + hy[k - 1] * v[k - 1]) * w);
+}
+
+/* d_continuity_row on padded row j (r = j * stride), and in the same pass the values an observer needs
+ * of the finished row at f (sw_row_values into buf), as layout_c.c's c_continuity_row_observed. */
+static inline void d_continuity_row_observed(sw_real *restrict eta, const sw_real *restrict u,
+                                             const sw_real *restrict v, const sw_real *restrict hx,
+                                             const sw_real *restrict hy, const sw_real *restrict h, size_t r,
+                                             size_t nx, size_t s, sw_real cx, sw_real cy, size_t f,
+                                             float *restrict buf)
+{
+    const sw_obs_row o = sw_obs_row_in(buf, nx);
+    float *restrict oe = o.eta, *restrict ou = o.u, *restrict ov = o.v;
+    for (size_t q = 0; q < o.n_seg; q++) {
+        const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
+        float hi = -INFINITY, lo = INFINITY, top = 0;
+        SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
+        for (size_t i = a; i < b; i++) {
+            const size_t k = r + 1 + i;
+            eta[k] = h[k] > 0 ? eta[k] - cx * (hx[k + 1] * u[k + 1] + hx[k + 1 - s] * u[k + 1 - s]
+                                               - hx[k - 1] * u[k - 1] - hx[k - 1 - s] * u[k - 1 - s])
+                                       - cy * (hy[k + s] * v[k + s] + hy[k + s - 1] * v[k + s - 1]
+                                               - hy[k - s] * v[k - s] - hy[k - s - 1] * v[k - s - 1])
+                              : 0;
+            float e, uc, vc;
+            d_centre_f32(eta, u, v, hx, hy, h, f + 1 + i, s, &e, &uc, &vc);
+            const float s2 = uc * uc + vc * vc;
+            oe[i] = e;
+            ou[i] = uc;
+            ov[i] = vc;
+            hi = e > hi ? e : hi;
+            lo = e < lo ? e : lo;
+            top = s2 > top ? s2 : top;
+        }
+        o.hi[q] = hi;
+        o.lo[q] = lo;
+        o.speed2[q] = top;
+    }
+}
+
 /* u on the north faces of padded row j (r = j * stride; row 0: the south edge's), from the new eta of
  * rows j and j+1. */
 static inline void d_u_row(sw_real *restrict u, const sw_real *restrict eta, const sw_real *restrict hx, size_t r,
@@ -192,18 +242,27 @@ static void d_step(sw_model *m)
     const size_t nt = (size_t)omp_get_num_threads(), me = (size_t)omp_get_thread_num();
     const size_t j0 = 1 + ny * me / nt, j1 = ny * (me + 1) / nt;   /* padded rows; empty when j1 < j0 */
 
+    float *restrict buf = sw_model_obs_buffer(m, (int)me);
+
     for (size_t j = j0; j <= j1; j++) {
-        d_continuity_row(eta, u, v, hx, hy, h, j * s, nx, s, cx, cy);
+        if (buf && j >= j0 + 3)   /* with room for them, row j-2's values are made in row j's pass */
+            d_continuity_row_observed(eta, u, v, hx, hy, h, j * s, nx, s, cx, cy, (j - 2) * s, buf);
+        else
+            d_continuity_row(eta, u, v, hx, hy, h, j * s, nx, s, cx, cy);
         sw_model_edge_eta_row(m, j);
         if (j == 1)
             d_u_row(u, eta, hx, 0, nx, s, gx);   /* the south edge's faces */
         if (j > j0)
             d_u_row(u, eta, hx, (j - 1) * s, nx, s, gx);
-        if (j > j0 + 1) {
+        if (j > j0 + 1)
             d_v_row(v, eta, hy, (j - 1) * s, nx, s, gy);
+        if (buf && j >= j0 + 3)
+            sw_model_observe_row_values(m, j - 2, buf);
+        else if (!buf && j > j0 + 1)
             sw_model_observe_row(m, j - 1);
-        }
     }
+    if (buf && j1 >= j0 + 2)
+        sw_model_observe_row(m, j1 - 1);
     SW_OMP(barrier)
     if (j1 >= j0) {
         d_u_row(u, eta, hx, j1 * s, nx, s, gx);
@@ -269,18 +328,11 @@ static void d_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
  * round-off of d_centre_row). */
 static void d_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
 {
-    const size_t r = sw_pidx(m, 0, j), s = m->stride, nx = m->grid.nx;
-    const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy), *restrict uu = SW_F(m, u);
-    const sw_real *restrict vv = SW_F(m, v), *restrict h = SW_F(m, h), *restrict e = SW_F(m, eta);
+    const size_t r = sw_pidx(m, 0, j), s = m->stride;
     SW_OMP(simd)
-    for (size_t i = 0; i < nx; i++) {
-        const size_t k = r + i;
-        const int wet = h[k] > 0;
-        const sw_real w = wet ? (sw_real)0.5 / h[k] : 0;
-        eta[i] = wet ? (float)e[k] : 0.0f;
-        u[i] = (float)((hx[k] * uu[k] + hx[k - s] * uu[k - s]) * w);
-        v[i] = (float)((hy[k] * vv[k] + hy[k - 1] * vv[k - 1]) * w);
-    }
+    for (size_t i = 0; i < m->grid.nx; i++)
+        d_centre_f32(SW_F(m, eta), SW_F(m, u), SW_F(m, v), SW_F(m, hx), SW_F(m, hy), SW_F(m, h), r + i, s, &eta[i],
+                     &u[i], &v[i]);
 }
 
 #if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
