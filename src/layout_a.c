@@ -63,6 +63,14 @@ static sw_status a_prepare(sw_model *m, sw_error *err)
     return SW_OK;
 }
 
+/* The new elevation of cell k: continuity from the old velocities (the one formula of both loops). */
+static inline sw_real a_eta_new(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                const sw_real *restrict hx, const sw_real *restrict hy, size_t k, size_t s,
+                                sw_real cx, sw_real cy)
+{
+    return eta[k] - (cx * (hx[k + 1] * u[k + 1] - hx[k - 1] * u[k - 1]) + cy * (hy[k + s] * v[k + s] - hy[k - s] * v[k - s]));
+}
+
 /* Continuity (forward: from the old velocities) on the padded row starting at r + 1. */
 static inline void a_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
                                     const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
@@ -70,7 +78,7 @@ static inline void a_continuity_row(sw_real *restrict eta, const sw_real *restri
 {
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + nx; i++)
-        eta[i] -= cx * (hx[i + 1] * u[i + 1] - hx[i - 1] * u[i - 1]) + cy * (hy[i + s] * v[i + s] - hy[i - s] * v[i - s]);
+        eta[i] = a_eta_new(eta, u, v, hx, hy, i, s, cx, cy);
 }
 
 /* a_continuity_row for the row at r + 1, and in the same pass the values an observer needs of the
@@ -89,7 +97,7 @@ static inline void a_continuity_row_observed(sw_real *restrict eta, const sw_rea
         SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
         for (size_t i = a; i < b; i++) {
             const size_t k = r + 1 + i, c = f + 1 + i;
-            eta[k] -= cx * (hx[k + 1] * u[k + 1] - hx[k - 1] * u[k - 1]) + cy * (hy[k + s] * v[k + s] - hy[k - s] * v[k - s]);
+            eta[k] = a_eta_new(eta, u, v, hx, hy, k, s, cx, cy);
             const float e = (float)eta[c], uc = (float)u[c], vc = (float)v[c];
             const float s2 = uc * uc + vc * vc;
             oe[i] = e;

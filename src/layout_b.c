@@ -87,6 +87,17 @@ static sw_status b_prepare(sw_model *m, sw_error *err)
     return sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
 }
 
+/* The new elevation of cell k: continuity from the old corner velocities; a wall corner also feeds the
+ * dry cells of its stencil, which must stay at 0 (the one formula of both continuity loops). */
+static inline sw_real b_eta_new(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                const sw_real *restrict hx, const sw_real *restrict hy, const sw_real *restrict h,
+                                size_t k, size_t s, sw_real cx, sw_real cy)
+{
+    return h[k] > 0 ? eta[k] - cx * (hx[k] * u[k] + hx[k - s] * u[k - s] - hx[k - 1] * u[k - 1] - hx[k - s - 1] * u[k - s - 1])
+                             - cy * (hy[k] * v[k] + hy[k - 1] * v[k - 1] - hy[k - s] * v[k - s] - hy[k - s - 1] * v[k - s - 1])
+                    : 0;
+}
+
 /* Continuity (forward: from the old corner velocities of corner rows j-1 and j) on padded row j, at
  * r = j * stride; a wall corner also feeds the dry cells of its stencil, which must stay at 0. */
 static inline void b_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
@@ -95,11 +106,7 @@ static inline void b_continuity_row(sw_real *restrict eta, const sw_real *restri
 {
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + nx; i++)
-        eta[i] = h[i] > 0 ? eta[i] - cx * (hx[i] * u[i] + hx[i - s] * u[i - s] - hx[i - 1] * u[i - 1]
-                                           - hx[i - s - 1] * u[i - s - 1])
-                                   - cy * (hy[i] * v[i] + hy[i - 1] * v[i - 1] - hy[i - s] * v[i - s]
-                                           - hy[i - s - 1] * v[i - s - 1])
-                          : 0;
+        eta[i] = b_eta_new(eta, u, v, hx, hy, h, i, s, cx, cy);
 }
 
 /* The centre values of cell k as b_centre_row makes them, in the state's precision and rounded to
@@ -132,11 +139,7 @@ static inline void b_continuity_row_observed(sw_real *restrict eta, const sw_rea
         SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
         for (size_t i = a; i < b; i++) {
             const size_t k = r + 1 + i;
-            eta[k] = h[k] > 0 ? eta[k] - cx * (hx[k] * u[k] + hx[k - s] * u[k - s] - hx[k - 1] * u[k - 1]
-                                               - hx[k - s - 1] * u[k - s - 1])
-                                       - cy * (hy[k] * v[k] + hy[k - 1] * v[k - 1] - hy[k - s] * v[k - s]
-                                               - hy[k - s - 1] * v[k - s - 1])
-                              : 0;
+            eta[k] = b_eta_new(eta, u, v, hx, hy, h, k, s, cx, cy);
             float e, uc, vc;
             b_centre_f32(eta, u, v, hx, hy, h, f + 1 + i, s, &e, &uc, &vc);
             const float s2 = uc * uc + vc * vc;

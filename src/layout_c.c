@@ -56,6 +56,15 @@ static sw_status c_prepare(sw_model *m, sw_error *err)
     return sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
 }
 
+/* The new elevation of cell k: continuity from the old velocities. The one formula both continuity
+ * loops use, so that a row comes out the same bits whichever loop a thread's block gives it to. */
+static inline sw_real c_eta_new(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                const sw_real *restrict hx, const sw_real *restrict hy, size_t k, size_t s,
+                                sw_real cx, sw_real cy)
+{
+    return eta[k] - (cx * (hx[k] * u[k] - hx[k - 1] * u[k - 1]) + cy * (hy[k] * v[k] - hy[k - s] * v[k - s]));
+}
+
 /* One row of each half-step, k0 = padded index of the row's first interior cell. */
 static inline void c_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
                                     const sw_real *restrict hx, const sw_real *restrict hy, size_t k0, size_t nx,
@@ -63,7 +72,7 @@ static inline void c_continuity_row(sw_real *restrict eta, const sw_real *restri
 {
     SW_OMP(simd)
     for (size_t i = k0; i < k0 + nx; i++)
-        eta[i] -= cx * (hx[i] * u[i] - hx[i - 1] * u[i - 1]) + cy * (hy[i] * v[i] - hy[i - s] * v[i - s]);
+        eta[i] = c_eta_new(eta, u, v, hx, hy, i, s, cx, cy);
 }
 
 /* c_continuity_row for the row at k0, and in the same pass the values an observer needs of the
@@ -83,7 +92,7 @@ static inline void c_continuity_row_observed(sw_real *restrict eta, const sw_rea
         SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
         for (size_t i = a; i < b; i++) {
             const size_t k = k0 + i, r = r0 + i;
-            eta[k] -= cx * (hx[k] * u[k] - hx[k - 1] * u[k - 1]) + cy * (hy[k] * v[k] - hy[k - s] * v[k - s]);
+            eta[k] = c_eta_new(eta, u, v, hx, hy, k, s, cx, cy);
             const float e = (float)eta[r];
             const float uc = (float)((sw_real)0.5 * (u[r - 1] + u[r]));   /* as c_centre_row_f32 */
             const float vc = (float)((sw_real)0.5 * (v[r - s] + v[r]));

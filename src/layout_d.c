@@ -138,6 +138,19 @@ static sw_status d_prepare(sw_model *m, sw_error *err)
     return SW_OK;
 }
 
+/* The new elevation of cell k: continuity from the old velocities; a wall velocity also feeds the dry
+ * cells of its stencil, which must stay at 0 (the one formula of both continuity loops). */
+static inline sw_real d_eta_new(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                const sw_real *restrict hx, const sw_real *restrict hy, const sw_real *restrict h,
+                                size_t k, size_t s, sw_real cx, sw_real cy)
+{
+    return h[k] > 0 ? eta[k] - cx * (hx[k + 1] * u[k + 1] + hx[k + 1 - s] * u[k + 1 - s] - hx[k - 1] * u[k - 1]
+                                     - hx[k - 1 - s] * u[k - 1 - s])
+                             - cy * (hy[k + s] * v[k + s] + hy[k + s - 1] * v[k + s - 1] - hy[k - s] * v[k - s]
+                                     - hy[k - s - 1] * v[k - s - 1])
+                    : 0;
+}
+
 /* Continuity (forward: from the old u of rows j-1, j and v of rows j-1, j+1) on padded row j, at
  * r = j * stride; a wall velocity also feeds the dry cells of its stencil, which must stay at 0. */
 static inline void d_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
@@ -146,11 +159,7 @@ static inline void d_continuity_row(sw_real *restrict eta, const sw_real *restri
 {
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + nx; i++)
-        eta[i] = h[i] > 0 ? eta[i] - cx * (hx[i + 1] * u[i + 1] + hx[i + 1 - s] * u[i + 1 - s]
-                                           - hx[i - 1] * u[i - 1] - hx[i - 1 - s] * u[i - 1 - s])
-                                   - cy * (hy[i + s] * v[i + s] + hy[i + s - 1] * v[i + s - 1]
-                                           - hy[i - s] * v[i - s] - hy[i - s - 1] * v[i - s - 1])
-                          : 0;
+        eta[i] = d_eta_new(eta, u, v, hx, hy, h, i, s, cx, cy);
 }
 
 /* The centre values of cell k in the state's precision, one division, rounded to float: d_centre_row
@@ -182,11 +191,7 @@ static inline void d_continuity_row_observed(sw_real *restrict eta, const sw_rea
         SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
         for (size_t i = a; i < b; i++) {
             const size_t k = r + 1 + i;
-            eta[k] = h[k] > 0 ? eta[k] - cx * (hx[k + 1] * u[k + 1] + hx[k + 1 - s] * u[k + 1 - s]
-                                               - hx[k - 1] * u[k - 1] - hx[k - 1 - s] * u[k - 1 - s])
-                                       - cy * (hy[k + s] * v[k + s] + hy[k + s - 1] * v[k + s - 1]
-                                               - hy[k - s] * v[k - s] - hy[k - s - 1] * v[k - s - 1])
-                              : 0;
+            eta[k] = d_eta_new(eta, u, v, hx, hy, h, k, s, cx, cy);
             float e, uc, vc;
             d_centre_f32(eta, u, v, hx, hy, h, f + 1 + i, s, &e, &uc, &vc);
             const float s2 = uc * uc + vc * vc;

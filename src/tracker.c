@@ -52,15 +52,13 @@ static float trigger(float weakest, float floor_value)
 }
 
 /* What one thread of the team owns: its row buffers and counts. Each slot starts on a 64-byte line of
- * its own (threads write their counts every row). */
+ * its own (threads write their counts every row); its size is a whole number of lines. */
 typedef struct {
-    float *row;           /* [3 nx]: centre eta, u, v of one row */
+    _Alignas(64) float *row;   /* [3 nx]: centre eta, u, v of one row */
     double *scratch;      /* [3 nx]: for layouts without a float centre row */
     int nonfinite;        /* the thread met a NaN or Inf */
     long long seen;       /* segments looked at */
     long long updated;    /* segments whose maps were rewritten */
-    char pad[64 - 2 * sizeof(void *) - sizeof(int) - 2 * sizeof(long long) > 0
-             ? 64 - 2 * sizeof(void *) - sizeof(int) - 2 * sizeof(long long) : 1];
 } thread_slot;
 
 struct sw_tracker {
