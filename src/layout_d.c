@@ -32,7 +32,7 @@
  * Open and level edges: ghost cells (halo) carry eta; the continuity of the edge row also reads the
  * normal velocity on the two faces of each ghost cell along the edge, which the step sets from the
  * edge list as a volume flux divided by the ghost's hx = h of the inner cell.
- * Level: ghost eta = -inner eta (sw_model_edge_eta) and the inner face's flux mirrored: an exact
+ * Level: ghost eta = -inner eta (sw_model_edge_eta_row) and the inner face's flux mirrored: an exact
  * mirror image.
  * Open: the two-cell differences split the layout into interleaved lattices (even and odd cells
  * along the normal), and a ghost must not feed one lattice from the other, or the edge pumps

@@ -32,7 +32,7 @@
  * mean u and v of its water neighbours.
  * Open and level edges use the shared ghost list, in two kinds: beside an eta cell the ghost is a
  * velocity point, beside a u,v cell an eta point (no velocity, hx = hy = 0). Open: a velocity ghost
- * takes eta from the inner cell (sw_model_edge_eta) and the outgoing wave's velocity
+ * takes eta from the inner cell (sw_model_edge_eta_row) and the outgoing wave's velocity
  * sign sqrt(g/h) eta_ghost; an eta ghost is left alone by the shared update (keep = 1, take = 0)
  * and moves, by an implicit upwind step over dx, towards the outgoing-wave elevation of the inner
  * velocity, u / (sign sqrt(g/h)). It must follow that velocity (its own lattice), not the inner

@@ -17,7 +17,6 @@
 #include "layout.h"
 #include "model.h"
 #include "real.h"
-#include "omp_compat.h"
 #include "scenario.h"
 
 /* One ghost (halo) cell beyond an open or level edge. After each eta update the ghost is set to
@@ -148,18 +147,8 @@ static inline void sw_edge_eta_one(sw_real *restrict eta, const sw_edge_cell *re
     eta[oc->ghost] = (sw_real)oc->keep * eta[oc->ghost] + (sw_real)oc->take * eta[oc->inner];
 }
 
-/* Updates every ghost eta (see sw_edge_cell). Orphaned `omp for`. */
-static inline void sw_model_edge_eta(sw_model *m)
-{
-    sw_real *restrict eta = SW_F(m, eta);
-    const sw_edge_cell *restrict oc = m->edge;
-    const size_t n = m->n_edge;
-    SW_OMP(for schedule(static))
-    for (size_t q = 0; q < n; q++)
-        sw_edge_eta_one(eta, &oc[q]);
-}
-
-/* Updates the ghosts whose inner cell is in padded row j (for kernels that sweep rows once). */
+/* Updates the ghosts whose inner cell is in padded row j (see sw_edge_cell): the steps call it for each
+ * row right after the row's continuity. */
 static inline void sw_model_edge_eta_row(sw_model *m, size_t j)
 {
     sw_real *restrict eta = SW_F(m, eta);
