@@ -81,6 +81,15 @@ static inline void a_continuity_row(sw_real *restrict eta, const sw_real *restri
         eta[i] = a_eta_new(eta, u, v, hx, hy, i, s, cx, cy);
 }
 
+/* The centre values of cell k (the stored ones), rounded to float. */
+static inline void a_centre_f32(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                size_t k, float *e, float *uc, float *vc)
+{
+    *e = (float)eta[k];
+    *uc = (float)u[k];
+    *vc = (float)v[k];
+}
+
 /* a_continuity_row for the row at r + 1, and in the same pass the values an observer needs of the
  * finished row at f + 1 (sw_row_values into buf: the stored eta, u, v as floats, then per segment the
  * highest and lowest eta and the highest u*u + v*v), as layout_c.c's c_continuity_row_observed. */
@@ -93,23 +102,17 @@ static inline void a_continuity_row_observed(sw_real *restrict eta, const sw_rea
     float *restrict oe = o.eta, *restrict ou = o.u, *restrict ov = o.v;
     for (size_t q = 0; q < o.n_seg; q++) {
         const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
-        float hi = -INFINITY, lo = INFINITY, top = 0;
-        SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
+        SW_OMP(simd)
         for (size_t i = a; i < b; i++) {
             const size_t k = r + 1 + i, c = f + 1 + i;
             eta[k] = a_eta_new(eta, u, v, hx, hy, k, s, cx, cy);
-            const float e = (float)eta[c], uc = (float)u[c], vc = (float)v[c];
-            const float s2 = uc * uc + vc * vc;
+            float e, uc, vc;
+            a_centre_f32(eta, u, v, c, &e, &uc, &vc);
             oe[i] = e;
             ou[i] = uc;
             ov[i] = vc;
-            hi = e > hi ? e : hi;
-            lo = e < lo ? e : lo;
-            top = s2 > top ? s2 : top;
         }
-        o.hi[q] = hi;
-        o.lo[q] = lo;
-        o.speed2[q] = top;
+        sw_row_extremes(oe, ou, ov, a, b, &o.hi[q], &o.lo[q], &o.speed2[q]);   /* the segment is in L1 */
     }
 }
 
@@ -195,14 +198,10 @@ static void a_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
 /* a_centre_row in float: the stored values, rounded. */
 static void a_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
 {
-    const size_t r = sw_pidx(m, 0, j), nx = m->grid.nx;
-    const sw_real *restrict e = SW_F(m, eta) + r, *restrict uu = SW_F(m, u) + r, *restrict vv = SW_F(m, v) + r;
+    const size_t r = sw_pidx(m, 0, j);
     SW_OMP(simd)
-    for (size_t i = 0; i < nx; i++) {
-        eta[i] = (float)e[i];
-        u[i] = (float)uu[i];
-        v[i] = (float)vv[i];
-    }
+    for (size_t i = 0; i < m->grid.nx; i++)
+        a_centre_f32(SW_F(m, eta), SW_F(m, u), SW_F(m, v), r + i, &eta[i], &u[i], &v[i]);
 }
 
 #if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */

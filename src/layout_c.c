@@ -75,6 +75,19 @@ static inline void c_continuity_row(sw_real *restrict eta, const sw_real *restri
         eta[i] = c_eta_new(eta, u, v, hx, hy, i, s, cx, cy);
 }
 
+/* The centre values of cell k as c_centre_row makes them, rounded to float: each is (float) of
+ * c_centre_row's. In single precision the float sum rounds once where c_centre_row rounds to double
+ * and then to float; rounding twice gives the same result when the wider format has at least 2 p + 2
+ * bits for a p-bit narrower one (53 >= 2 * 24 + 2; Figueroa 1995, ACM SIGNUM Newsletter 30(3)
+ * [memory]); halving is exact. */
+static inline void c_centre_f32(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                size_t k, size_t s, float *e, float *uc, float *vc)
+{
+    *e = (float)eta[k];
+    *uc = (float)((sw_real)0.5 * (u[k - 1] + u[k]));
+    *vc = (float)((sw_real)0.5 * (v[k - s] + v[k]));
+}
+
 /* c_continuity_row for the row at k0, and in the same pass the values an observer needs of the
  * finished row at r0 (sw_row_values, into buf: eta, u, v at the centres as floats, then per segment the
  * highest and lowest eta and the highest u*u + v*v). The finished row is in cache, and its arithmetic
@@ -88,25 +101,17 @@ static inline void c_continuity_row_observed(sw_real *restrict eta, const sw_rea
     float *restrict oe = o.eta, *restrict ou = o.u, *restrict ov = o.v;
     for (size_t q = 0; q < o.n_seg; q++) {
         const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
-        float hi = -INFINITY, lo = INFINITY, top = 0;
-        SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
+        SW_OMP(simd)
         for (size_t i = a; i < b; i++) {
             const size_t k = k0 + i, r = r0 + i;
             eta[k] = c_eta_new(eta, u, v, hx, hy, k, s, cx, cy);
-            const float e = (float)eta[r];
-            const float uc = (float)((sw_real)0.5 * (u[r - 1] + u[r]));   /* as c_centre_row_f32 */
-            const float vc = (float)((sw_real)0.5 * (v[r - s] + v[r]));
-            const float s2 = uc * uc + vc * vc;
+            float e, uc, vc;
+            c_centre_f32(eta, u, v, r, s, &e, &uc, &vc);
             oe[i] = e;
             ou[i] = uc;
             ov[i] = vc;
-            hi = e > hi ? e : hi;
-            lo = e < lo ? e : lo;
-            top = s2 > top ? s2 : top;
         }
-        o.hi[q] = hi;
-        o.lo[q] = lo;
-        o.speed2[q] = top;
+        sw_row_extremes(oe, ou, ov, a, b, &o.hi[q], &o.lo[q], &o.speed2[q]);   /* the segment is in L1 */
     }
 }
 
@@ -191,20 +196,13 @@ static void c_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
     }
 }
 
-/* c_centre_row in float: each value is (float) of c_centre_row's. In single precision the float sum
- * rounds once where c_centre_row rounds to double and then to float; rounding twice gives the same
- * result when the wider format has at least 2 p + 2 bits for a p-bit narrower one (53 >= 2 * 24 + 2;
- * Figueroa 1995, ACM SIGNUM Newsletter 30(3) [memory]); halving is exact. */
+/* c_centre_row in float (sw_layout_kernels.centre_row_f32). */
 static void c_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
 {
-    const size_t r = sw_pidx(m, 0, j), s = m->stride, nx = m->grid.nx;
-    const sw_real *restrict e = SW_F(m, eta) + r, *restrict uu = SW_F(m, u) + r, *restrict vv = SW_F(m, v) + r;
+    const size_t r = sw_pidx(m, 0, j), s = m->stride;
     SW_OMP(simd)
-    for (size_t i = 0; i < nx; i++) {
-        eta[i] = (float)e[i];
-        u[i] = (float)((sw_real)0.5 * (uu[i - 1] + uu[i]));
-        v[i] = (float)((sw_real)0.5 * (vv[i - s] + vv[i]));
-    }
+    for (size_t i = 0; i < m->grid.nx; i++)
+        c_centre_f32(SW_F(m, eta), SW_F(m, u), SW_F(m, v), r + i, s, &eta[i], &u[i], &v[i]);
 }
 
 #if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */

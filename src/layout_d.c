@@ -187,24 +187,17 @@ static inline void d_continuity_row_observed(sw_real *restrict eta, const sw_rea
     float *restrict oe = o.eta, *restrict ou = o.u, *restrict ov = o.v;
     for (size_t q = 0; q < o.n_seg; q++) {
         const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
-        float hi = -INFINITY, lo = INFINITY, top = 0;
-        SW_OMP(simd reduction(max : hi, top) reduction(min : lo))
+        SW_OMP(simd)
         for (size_t i = a; i < b; i++) {
             const size_t k = r + 1 + i;
             eta[k] = d_eta_new(eta, u, v, hx, hy, h, k, s, cx, cy);
             float e, uc, vc;
             d_centre_f32(eta, u, v, hx, hy, h, f + 1 + i, s, &e, &uc, &vc);
-            const float s2 = uc * uc + vc * vc;
             oe[i] = e;
             ou[i] = uc;
             ov[i] = vc;
-            hi = e > hi ? e : hi;
-            lo = e < lo ? e : lo;
-            top = s2 > top ? s2 : top;
         }
-        o.hi[q] = hi;
-        o.lo[q] = lo;
-        o.speed2[q] = top;
+        sw_row_extremes(oe, ou, ov, a, b, &o.hi[q], &o.lo[q], &o.speed2[q]);   /* the segment is in L1 */
     }
 }
 

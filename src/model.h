@@ -17,6 +17,7 @@
 #ifndef SW_MODEL_H
 #define SW_MODEL_H
 
+#include <math.h>
 #include <stddef.h>
 
 #include "grid.h"
@@ -37,6 +38,28 @@ typedef struct {
     const float *eta, *u, *v;         /* [nx] m, m/s, m/s */
     const float *hi, *lo, *speed2;    /* [ceil(nx / SW_OBS_SEG)] m, m, m2 s-2 */
 } sw_row_values;
+
+/* The extremes of sw_row_values over cells [a, b) of a row's centre values e, u, v: the highest and
+ * lowest e and the highest u*u + v*v, in float. The one definition the steps that hand rows' values
+ * and the tracker (which makes them when not handed) both use; the comparisons are not fmaxf /
+ * fminf, which are libm calls per cell and stop the loop from vectorising. */
+static inline void sw_row_extremes(const float *restrict e, const float *restrict u, const float *restrict v,
+                                   size_t a, size_t b, float *hi_out, float *lo_out, float *speed2_out)
+{
+    float hi = -INFINITY, lo = INFINITY, top = 0;
+#ifdef _OPENMP
+#pragma omp simd reduction(max : hi, top) reduction(min : lo)
+#endif
+    for (size_t i = a; i < b; i++) {
+        const float s2 = u[i] * u[i] + v[i] * v[i];
+        hi = e[i] > hi ? e[i] : hi;
+        lo = e[i] < lo ? e[i] : lo;
+        top = s2 > top ? s2 : top;
+    }
+    *hi_out = hi;
+    *lo_out = lo;
+    *speed2_out = top;
+}
 
 /* An observer of the state, row by row: called with grid row j (0 .. ny-1) once a step has finished
  * every value of that row, with time_s the time of that state (s), by the thread that finished the row

@@ -248,14 +248,7 @@ static void track_row_in(sw_tracker *t, thread_slot *sl, const sw_model *m, size
             lo = pre->lo[q];
             top_s2 = pre->speed2[q];
         } else {
-            hi = -INFINITY, lo = INFINITY, top_s2 = 0;
-            SW_OMP(simd reduction(max : hi, top_s2) reduction(min : lo))
-            for (size_t i = a; i < b; i++) {
-                float s2 = uu[i] * uu[i] + vv[i] * vv[i];
-                hi = e[i] > hi ? e[i] : hi;   /* not fmaxf / fminf: libm calls per cell, unvectorised */
-                lo = e[i] < lo ? e[i] : lo;
-                top_s2 = s2 > top_s2 ? s2 : top_s2;
-            }
+            sw_row_extremes(e, uu, vv, a, b, &hi, &lo, &top_s2);
         }
         seg_summary *sum = &t->seg[j * t->n_seg + q];
         /* A cell's maps change only when its new value passes them, or it arrives; if no raw value
