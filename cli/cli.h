@@ -11,9 +11,9 @@
 #include <signal.h>
 #include <stddef.h>
 
-#include "run.h"
-#include "scenario.h"
-#include "status.h"
+#include "run/run.h"
+#include "inputs/scenario.h"
+#include "base/status.h"
 
 /* Set by SIGINT/SIGTERM once cli_catch_signals() ran; runs poll it and stop cleanly. */
 extern volatile sig_atomic_t cli_stop;

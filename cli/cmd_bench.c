@@ -3,9 +3,9 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "bench.h"
+#include "studies/bench.h"
 #include "cli.h"
-#include "layout.h"
+#include "model/layout.h"
 
 static const char *const usage_bench =
     "Usage: shoreward bench [--size N] [--threads LIST] [--rounds R] [--precision P] [--layouts LIST]\n"

@@ -4,8 +4,8 @@
 #include <string.h>
 
 #include "cli.h"
-#include "compare.h"
-#include "layout.h"
+#include "studies/compare.h"
+#include "model/layout.h"
 
 static const char *const usage_compare =
     "Usage: shoreward compare SCENARIO [--layouts A,C,...] [--refine 1,2,4] [--out DIR] [--threads N]\n"

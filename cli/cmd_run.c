@@ -5,11 +5,11 @@
 #include <string.h>
 
 #include "cli.h"
-#include "demo.h"
-#include "estimate.h"
-#include "report.h"
-#include "setup.h"
-#include "sweep.h"
+#include "inputs/demo.h"
+#include "studies/estimate.h"
+#include "outputs/report.h"
+#include "run/setup.h"
+#include "studies/sweep.h"
 
 static const char *const usage_run =
     "Usage: shoreward run SCENARIO [--out DIR] [--threads N] [--precision P] [--quiet] [--json]\n"

@@ -6,8 +6,8 @@
 #include <string.h>
 
 #include "cli.h"
-#include "layout.h"
-#include "stability.h"
+#include "model/layout.h"
+#include "studies/stability.h"
 
 #define STAB_CLI_PI 3.14159265358979323846
 #define STAB_CLI_DEFAULT_FRACTION 0.9   /* default Courant number: this fraction of the layout's limit */

@@ -1,4 +1,4 @@
-/* cmd_sweep.c - `shoreward sweep`: a sensitivity sweep of one scenario (the work is in src/sweep.c). */
+/* cmd_sweep.c - `shoreward sweep`: a sensitivity sweep of one scenario (the work is in src/studies/sweep.c). */
 #define _POSIX_C_SOURCE 200809L
 #include <stdio.h>
 #include <stdlib.h>
@@ -6,8 +6,8 @@
 #include <unistd.h>
 
 #include "cli.h"
-#include "report.h"
-#include "sweep.h"
+#include "outputs/report.h"
+#include "studies/sweep.h"
 
 static const char *const usage_sweep =
     "Usage: shoreward sweep SCENARIO [--out DIR] [--members-parallel N] [--threads N] [--precision P]\n"

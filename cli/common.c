@@ -6,8 +6,8 @@
 #include <unistd.h>
 
 #include "cli.h"
-#include "report.h"
-#include "setup.h"
+#include "outputs/report.h"
+#include "run/setup.h"
 
 volatile sig_atomic_t cli_stop = 0;
 

@@ -3,7 +3,7 @@
 
 usage: bench_numpy.py N STEPS {float64,float32}
 
-Same scheme as src/layout_c.c: eta at cell centres, u on east faces, v on north faces, arrays padded
+Same scheme as src/model/layout_c.c: eta at cell centres, u on east faces, v on north faces, arrays padded
 with one halo cell, walls all round, constant depth; eta first from the old velocities, then the
 velocities from the new eta. Prints one JSON object: {"cell_updates_per_s": ..., "seconds": ...}.
 This is the straightforward NumPy a modeller would write; it is not tuned (no numexpr, no in-place

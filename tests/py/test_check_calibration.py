@@ -3,7 +3,7 @@
 
 usage: test_check_calibration.py SHOREWARD_BINARY WORK_DIR
 
-Checks (the contract is README's `check` section and src/estimate.h; no outside reference applies):
+Checks (the contract is README's `check` section and src/studies/estimate.h; no outside reference applies):
   - a first check measures the rate (rate_source "measured") and writes SHOREWARD_CACHE_DIR/rates.txt,
     a second reuses it (rate_source "cache", the same rate);
   - estimated_seconds = steps x nx x ny / rate_cells_per_s;

@@ -19,10 +19,10 @@
 #include <time.h>
 #include <unistd.h>
 
-#include "estimate.h"
-#include "layout.h"
-#include "omp_compat.h"
-#include "run.h"
+#include "studies/estimate.h"
+#include "model/layout.h"
+#include "base/omp_compat.h"
+#include "run/run.h"
 #include "testutil.h"
 
 #define MEASURE_S 0.02   /* wall time of each measurement in these tests, s */

@@ -28,10 +28,10 @@
 #include <string.h>
 #include <cmocka.h>
 
-#include "layout.h"
+#include "model/layout.h"
 #include "testutil.h"
-#include "model.h"
-#include "omp_compat.h"
+#include "model/model.h"
+#include "base/omp_compat.h"
 
 #define G 9.81
 #define PI 3.14159265358979323846

@@ -24,10 +24,10 @@
 #include <string.h>
 #include <cmocka.h>
 
-#include "layout.h"
+#include "model/layout.h"
 #include "testutil.h"
-#include "model.h"
-#include "omp_compat.h"
+#include "model/model.h"
+#include "base/omp_compat.h"
 
 #if defined(__SSE2__)
 #include <xmmintrin.h>

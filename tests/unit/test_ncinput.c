@@ -11,8 +11,8 @@
 
 #include <cmocka.h>
 
-#include "ncinput.h"
-#include "scenario.h"
+#include "inputs/ncinput.h"
+#include "inputs/scenario.h"
 #include "testutil.h"
 
 #define NC_OK(call) assert_int_equal((call), NC_NOERR)

@@ -22,7 +22,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
-#include "ncwrite.h"
+#include "outputs/ncwrite.h"
 #include "testutil.h"
 
 /* NetCDF Users Guide, default fill values (literal values, independent of netcdf.h). */

@@ -19,7 +19,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "scenario.h"
+#include "inputs/scenario.h"
 #include "testutil.h"
 
 /* A valid base: [run] on line 1, [grid] on line 3, [seabed] on line 7; appended text starts on line 9. */

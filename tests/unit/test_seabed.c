@@ -11,7 +11,7 @@
 
 #include <cmocka.h>
 
-#include "seabed.h"
+#include "inputs/seabed.h"
 #include "testutil.h"
 
 #define NC_OK(call) assert_int_equal((call), NC_NOERR)

@@ -40,9 +40,9 @@
 #include <sys/stat.h>
 #include <cmocka.h>
 
-#include "layout.h"
-#include "model.h"
-#include "stability.h"
+#include "model/layout.h"
+#include "model/model.h"
+#include "studies/stability.h"
 #include "testutil.h"
 
 #define PI 3.14159265358979323846

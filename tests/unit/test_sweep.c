@@ -29,9 +29,9 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "ncsweep.h"
-#include "scenario.h"
-#include "sweep.h"
+#include "studies/ncsweep.h"
+#include "inputs/scenario.h"
+#include "studies/sweep.h"
 #include "testutil.h"
 
 /* A valid scenario: [sweep] text is appended at line 29. */

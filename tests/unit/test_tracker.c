@@ -24,11 +24,11 @@
 #include <string.h>
 #include <cmocka.h>
 
-#include "layout.h"
-#include "model.h"
-#include "omp_compat.h"
+#include "model/layout.h"
+#include "model/model.h"
+#include "base/omp_compat.h"
 #include "testutil.h"
-#include "tracker.h"
+#include "observers/tracker.h"
 
 #define G 9.81
 

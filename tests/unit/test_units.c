@@ -13,7 +13,7 @@
 #include <math.h>
 #include <string.h>
 
-#include "units.h"
+#include "base/units.h"
 
 /* Parses text and returns the value, failing the test if it is refused. */
 static double ok(const char *text, sw_unit_kind kind)

@@ -1,8 +1,8 @@
 /* testutil.c - helpers shared by the unit tests (see testutil.h). */
 #include "testutil.h"
 
-#include "model.h"
-#include "omp_compat.h"
+#include "model/model.h"
+#include "base/omp_compat.h"
 
 #include <stdio.h>
 #include <stdlib.h>

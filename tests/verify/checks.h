@@ -7,7 +7,7 @@
 #ifndef VC_CHECKS_H
 #define VC_CHECKS_H
 
-#include "layout.h"
+#include "model/layout.h"
 #include "rows.h"
 
 typedef void (*vc_fn)(const sw_layout *lay, vr_table *t);

@@ -5,7 +5,7 @@
 #include <math.h>
 #include <stdlib.h>
 
-#include "omp_compat.h"
+#include "base/omp_compat.h"
 
 sw_precision vh_precision = SW_DOUBLE;
 

@@ -19,9 +19,9 @@
 
 #include <stddef.h>
 
-#include "layout.h"
-#include "model.h"
-#include "status.h"
+#include "model/layout.h"
+#include "model/model.h"
+#include "base/status.h"
 
 #define VH_G 9.81                        /* gravity used by every check, m s-2 */
 #define VH_PI 3.14159265358979323846

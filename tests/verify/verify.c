@@ -16,7 +16,7 @@
 
 #include "checks.h"
 #include "harness.h"
-#include "layout.h"
+#include "model/layout.h"
 #include "rows.h"
 
 #define EXIT_SKIP 77

@@ -1,0 +1,228 @@
+/* scenario.h - a scenario file parsed into plain settings in SI units.
+ *
+ * The scenario is INI-style text (see docs/scenario.md for the reference a user reads). Parsing
+ * checks the form and range of every value and reports the first problem as
+ * "FILE:LINE: [section] key: cause (accepted: ...)". Nothing here builds fields or knows about
+ * layouts: the seabed, the source and the model are built from this struct later, and checks that
+ * need them (the time step against the layout's limit, gauges on land) happen there, quoting the
+ * line numbers recorded below.
+ */
+#ifndef SW_SCENARIO_H
+#define SW_SCENARIO_H
+
+#include <stddef.h>
+
+#include "base/grid.h"
+#include "base/real.h"
+#include "base/status.h"
+
+#define SW_NAME_MAX 64        /* longest gauge / feature / source name, including the NUL */
+#define SW_PATH_MAX 1024      /* longest file path, including the NUL */
+#define SW_MAX_FEATURES 64    /* bays + islands + shoals */
+#define SW_MAX_SOURCES 32
+#define SW_MAX_GAUGES 256
+
+/* Domain edges: a wall reflects (no normal flow); open lets waves leave (radiation condition); level
+ * holds the sea surface at mean level on the edge line (a node), as where a bay opens onto a large basin. */
+typedef enum { SW_EDGE_WALL = 0, SW_EDGE_OPEN = 1, SW_EDGE_LEVEL = 2 } sw_edge_kind;
+enum { SW_WEST = 0, SW_EAST = 1, SW_SOUTH = 2, SW_NORTH = 3 };   /* index into edges[] */
+
+typedef enum { SW_COAST_NONE = 0, SW_COAST_WEST, SW_COAST_EAST, SW_COAST_SOUTH, SW_COAST_NORTH } sw_coast_side;
+
+typedef enum { SW_POSITIVE_UNSET = 0, SW_POSITIVE_DOWN, SW_POSITIVE_UP } sw_positive;
+
+typedef enum { SW_FEATURE_BAY = 0, SW_FEATURE_ISLAND, SW_FEATURE_SHOAL } sw_feature_kind;
+
+/* One analytic piece of the seabed recipe, applied in file order after the base profile. */
+typedef struct {
+    sw_feature_kind kind;
+    char name[SW_NAME_MAX];   /* from the section header, e.g. [island Gull Rock] -> "Gull Rock" */
+    int line;                 /* line of the section header */
+    double x_m, y_m;          /* centre, m */
+    double radius_x_m;        /* bay: semi-axis along x, m; island/shoal: e-folding radius, m */
+    double radius_y_m;        /* bay: semi-axis along y, m; island/shoal: unused (= radius_x_m) */
+    double depth_m;           /* bay: floor depth at the centre, m (> 0) */
+    double height_m;          /* island: summit elevation above mean sea level, m (> 0) */
+    double crest_m;           /* shoal: water depth over the crest, m (> 0) */
+} sw_feature;
+
+typedef enum { SW_SOURCE_HUMP = 0, SW_SOURCE_ELLIPSE, SW_SOURCE_PAIR, SW_SOURCE_FILE } sw_source_shape;
+
+/* One initial sea-surface displacement; all sources are summed. */
+typedef struct {
+    sw_source_shape shape;
+    char name[SW_NAME_MAX];   /* from the section header, e.g. [source main] -> "main" */
+    int line;                 /* line of the section header */
+    double x_m, y_m;          /* centre, m */
+    double amplitude_m;       /* hump/ellipse: peak (may be negative); pair: uplift crest (> 0), m */
+    double trough_m;          /* pair: subsidence depth (> 0), m; default = amplitude_m */
+    double radius_m;          /* hump: e-folding radius, m */
+    double length_m;          /* ellipse/pair: e-folding half-length along `angle`, m */
+    double width_m;           /* ellipse/pair: e-folding half-width across `angle`, m */
+    double angle_deg;         /* ellipse/pair: direction of the long axis, degrees counter-clockwise from east */
+    double separation_m;      /* pair: distance between uplift and subsidence centres, m */
+    char file[SW_PATH_MAX];   /* file: NetCDF path as written (relative to the scenario's folder) */
+    char variable[SW_NAME_MAX]; /* file: variable name, default "eta" */
+} sw_source_spec;
+
+typedef struct {
+    char name[SW_NAME_MAX];   /* the key, e.g. "Port Harrow" */
+    int line;
+    double x_m, y_m;
+} sw_gauge_spec;
+
+/* ---- [sweep]: what a sensitivity sweep varies (see docs/sweep.md; run by sweep.c) ---------- */
+
+#define SW_MAX_SWEEP_PARAMS 16    /* parameters one sweep may vary */
+#define SW_MAX_SWEEP_LEVELS 64    /* values one parameter may list (or `in N` may generate) */
+#define SW_MAX_SWEEP_MEMBERS 10000
+#define SW_TARGET_MAX (SW_NAME_MAX + 48) /* "section NAME.key", including the NUL */
+
+typedef enum {
+    SW_SWEEP_ONE_AT_A_TIME = 0,  /* the base scenario, then each parameter's values with the others at base */
+    SW_SWEEP_FACTORIAL,          /* every combination of every parameter's values */
+    SW_SWEEP_LATIN_HYPERCUBE     /* `members` draws, each parameter's range cut into that many strata */
+} sw_sweep_design;
+
+typedef enum {
+    SW_SWEEP_KEY = 0,            /* a scenario key `section.key` (also `layout`, `courant`, `arrival_threshold`) */
+    SW_SWEEP_AMPLITUDE_FACTOR,   /* dimensionless; multiplies every source's amplitude (and a pair's trough) */
+    SW_SWEEP_SOURCE_X_OFFSET,    /* m; added to every source's x */
+    SW_SWEEP_SOURCE_Y_OFFSET,    /* m; added to every source's y */
+    SW_SWEEP_DEPTH_FACTOR,       /* dimensionless; multiplies the built depth field (land included) */
+    SW_SWEEP_RESOLUTION_FACTOR   /* dimensionless; cells per unit length relative to [grid] (2 = half dx) */
+} sw_sweep_kind;
+
+/* One varied parameter. Values are in base units (m, s, deg, or none); a layout is stored as its
+ * letter's index (A = 0 .. E = 4). */
+typedef struct {
+    char name[SW_TARGET_MAX];    /* as written in [sweep], e.g. "depth_factor", "source main.amplitude" */
+    sw_sweep_kind kind;
+    char target[SW_TARGET_MAX];  /* SW_SWEEP_KEY: canonical "section.key" ("run.courant", "source main.x") */
+    int unit;                    /* sw_unit_kind (units.h) of the values */
+    int integer;                 /* 1: whole numbers (e.g. grid.nx) */
+    int layout;                  /* 1: values are layouts */
+    int line;                    /* line of the parameter in the file */
+    int is_range;                /* 1: written as `LO .. HI` (optionally `in N`) */
+    double lo, hi;               /* the range, base units (is_range) */
+    size_t n_levels;             /* values listed or generated by `in N`; 0 = a continuous range (Latin hypercube) */
+    double level[SW_MAX_SWEEP_LEVELS]; /* the values, base units, in the order written */
+} sw_sweep_param;
+
+typedef struct {
+    int present;                 /* 1 when the file has a [sweep] section */
+    int line;                    /* line of its header */
+    sw_sweep_design design;      /* default one-at-a-time */
+    size_t members;              /* Latin hypercube: members to draw (required there) */
+    unsigned long long seed;     /* Latin hypercube: random seed, default 1 */
+    size_t n_params;
+    sw_sweep_param param[SW_MAX_SWEEP_PARAMS];
+} sw_sweep_spec;
+
+typedef struct {
+    /* where it came from */
+    char path[SW_PATH_MAX];   /* scenario path as given ("<demo>" or "<string>" when parsed from memory) */
+    char dir[SW_PATH_MAX];    /* folder relative file paths are resolved against ("." if none) */
+    char *text;               /* the whole scenario text, NUL-terminated; owned, freed by sw_scenario_free */
+
+    /* [run] */
+    char title[256];          /* default "untitled scenario" */
+    double duration_s;        /* required, > 0 */
+    char layout[8];           /* "A".."E", upper case; default "C" */
+    int layout_line;
+    sw_precision precision;   /* of the model state; default SW_DOUBLE (real.h) */
+    double courant_fraction;  /* fraction of the layout's stability limit, (0, 1]; default 0.9 */
+    int courant_line;
+    double dt_s;              /* explicit time step, s; 0 = derive from courant_fraction */
+    int dt_line;
+    double gauge_interval_s;  /* default 30 s */
+    double snapshot_interval_s; /* 0 = no snapshots (default) */
+    double arrival_threshold_m; /* default 0.01 m */
+    double gravity_ms2;       /* default 9.81 */
+    char origin[32];          /* time origin "YYYY-MM-DD HH:MM:SS", default "2000-01-01 00:00:00" */
+
+    /* [grid]; has_grid == 0 when the section is absent and the grid comes from the seabed file */
+    int has_grid;
+    sw_grid grid;
+
+    /* [edges] */
+    sw_edge_kind edges[4];    /* indexed by SW_WEST.. SW_NORTH; default wall */
+
+    /* [seabed] */
+    double min_depth_m;       /* cells shallower than this are land; default 1 m */
+    char bed_file[SW_PATH_MAX];   /* "" = use the recipe */
+    char bed_variable[SW_NAME_MAX]; /* default "depth" */
+    sw_positive bed_positive; /* UNSET = read the variable's `positive` attribute */
+    int bed_line;             /* line of `file` (or of the section) */
+    double deep_m;            /* recipe: offshore depth, m (> 0); required without a file */
+    sw_coast_side coast;      /* recipe: side the land is on; default none (flat floor) */
+    double shoreline_m;       /* recipe: x (coast west/east) or y (south/north) of the mean shoreline, m */
+    double coast_wiggle_m;    /* recipe: amplitude of a sinusoidal shoreline, m; default 0 */
+    double coast_wavelength_m;/* recipe: its wavelength along the coast, m; default 50 km */
+    double shelf_depth_m;     /* recipe: depth at the shelf break, m; default = deep_m */
+    double shelf_width_m;     /* recipe: shoreline to shelf break, m; required (> 0) with a coast */
+    double slope_width_m;     /* recipe: shelf break to deep floor, m; default 0 */
+    double land_height_m;     /* recipe: highest land elevation, m; default 10 m */
+
+    size_t n_features;
+    sw_feature features[SW_MAX_FEATURES];
+
+    size_t n_sources;
+    sw_source_spec sources[SW_MAX_SOURCES];
+
+    size_t n_gauges;
+    sw_gauge_spec gauges[SW_MAX_GAUGES];
+
+    /* [sweep]; sweep.present == 0 without one. `shoreward run` ignores it. */
+    sw_sweep_spec sweep;
+} sw_scenario;
+
+/* Parses the scenario file at `path` into *sc (which the caller provides; it is fully
+ * overwritten). On success returns SW_OK and sc->text holds the file's text (free with
+ * sw_scenario_free). On failure returns SW_ERR_IO / SW_ERR_PARSE / SW_ERR_RANGE, err->msg names
+ * the file, line, section, key and the accepted values, and sc owns nothing. */
+sw_status sw_scenario_load(const char *path, sw_scenario *sc, sw_error *err);
+
+/* As sw_scenario_load, from text in memory. `name` stands in for the file name in messages and
+ * `dir` is where relative file paths resolve (NULL = "."). The text is copied. */
+sw_status sw_scenario_parse(const char *text, const char *name, const char *dir,
+                            sw_scenario *sc, sw_error *err);
+
+/* Releases what sc owns (sc->text) and zeroes it. sc may be NULL; safe to call twice. */
+void sw_scenario_free(sw_scenario *sc);
+
+/* Joins sc->dir and a relative path into out (size out_size); absolute paths are copied.
+ * Returns SW_ERR_RANGE if it does not fit. */
+sw_status sw_scenario_resolve(const sw_scenario *sc, const char *rel, char *out, size_t out_size,
+                              sw_error *err);
+
+/* One change to a scenario key, as a line of the file would write it. */
+typedef struct {
+    const char *target;   /* "section.key": "run.courant", "grid.dx", "source main.amplitude",
+                           * "bay Merrow Bay.depth" (the section as in its header; split at the last '.') */
+    const char *value;    /* the value text with its unit, e.g. "0.5", "30 km", "C" */
+} sw_override;
+
+/* Applies overrides to a parsed scenario by editing its text and parsing it again, so every value
+ * goes through the same key table, range checks and whole-file rules as a file's own values
+ * (for example `dy` follows an overridden `dx` when the file gives no dy, and a pair's trough
+ * follows its amplitude when the file gives no trough).
+ * Each override replaces the key's line in its section, or is inserted after the section header
+ * when the key was not written (the section must exist). Overriding [run] courant removes a [run]
+ * dt line and overriding dt removes a courant line (they exclude each other). The lines of a
+ * [sweep] section are blanked: the result describes one run. n may be 0 (then only [sweep] goes).
+ * Only keys of the key tables can be overridden ([gauges] entries and [sweep] cannot).
+ * On success fills *out (caller frees with sw_scenario_free; out->text is the edited text, path and
+ * dir are sc's) and returns SW_OK. On failure *out owns nothing and err names the scenario and the
+ * original line, or "override TARGET = VALUE" when the overridden line itself is refused, e.g.
+ * "bay.scn: override run.courant = 1.5: [run] courant = 1.5: out of range (accepted: ...)".
+ * sc is not changed. */
+sw_status sw_scenario_override(const sw_scenario *sc, const sw_override *ov, size_t n, sw_scenario *out,
+                               sw_error *err);
+
+/* Reads the current value of a numeric or layout key `target` ("section.key", as for overrides)
+ * of a parsed scenario into *out, in base units (a layout as its index, A = 0). Returns SW_OK, or
+ * SW_ERR_RANGE when the section or key does not exist or is not numeric. */
+sw_status sw_scenario_value(const sw_scenario *sc, const char *target, double *out, sw_error *err);
+
+#endif

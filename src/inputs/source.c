@@ -1,0 +1,138 @@
+/* source.c - the initial sea-surface displacement, summed over the scenario's sources (see source.h).
+ *
+ * Analytic shapes are Gaussians evaluated at cell centres. For a source with long-axis direction
+ * angle a (counter-clockwise from east), a point's offset (ex, ey) from the centre has the
+ * along-axis part u = ex cos a + ey sin a and the across part v = -ex sin a + ey cos a (positive
+ * to the left of the axis, i.e. towards a + 90 degrees).
+ *
+ *   hump:    A exp(-r^2 / R^2)
+ *   ellipse: A exp(-(u / L)^2 - (v / W)^2)
+ *   pair:    the ellipse with +A centred separation/2 to the left of the axis, minus the ellipse
+ *            with T (trough) centred separation/2 to the right.
+ *   file:    interpolated bilinearly; 0 outside the file's extent.
+ */
+#include "inputs/source.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+
+#include "inputs/ncinput.h"
+
+#define SOURCE_PI 3.14159265358979323846
+
+/* sw_scenario_resolve for a file source, with its scenario line in a failure message. */
+static sw_status resolve_path(const sw_scenario *sc, const sw_source_spec *s, char *out, size_t n,
+                              sw_error *err)
+{
+    sw_status st = sw_scenario_resolve(sc, s->file, out, n, err);
+    if (st != SW_OK)
+        sw_error_prefix(err, "%s:%d: [source %s] file: ", sc->path, s->line, s->name);
+    return st;
+}
+
+/* Adds amp * exp(-(u/L)^2 - (v/W)^2) around (xc, yc), axis at angle (cos ca, sin sa), to eta. */
+static void source_add_ellipse(const sw_grid *g, double xc, double yc, double amp, double L, double W,
+                               double ca, double sa, double *eta)
+{
+    for (size_t j = 0; j < g->ny; j++) {
+        double ey = sw_grid_yc(g, j) - yc;
+        for (size_t i = 0; i < g->nx; i++) {
+            double ex = sw_grid_xc(g, i) - xc;
+            double u = (ex * ca + ey * sa) / L;
+            double v = (-ex * sa + ey * ca) / W;
+            eta[j * g->nx + i] += amp * exp(-(u * u) - (v * v));
+        }
+    }
+}
+
+/* Adds the file source s to eta (interpolated; 0 outside the file). */
+static sw_status source_add_file(const sw_scenario *sc, const sw_source_spec *s, double *eta,
+                                 sw_error *err)
+{
+    char path[SW_PATH_MAX];
+    sw_status st = resolve_path(sc, s, path, sizeof path, err);
+    if (st != SW_OK)
+        return st;
+    size_t n = sw_grid_cells(&sc->grid);
+    double *tmp = malloc(n * sizeof *tmp);
+    if (!tmp)
+        return sw_fail(err, SW_ERR_NOMEM, "%s:%d: [source %s]: out of memory for %zu cells", sc->path,
+                       s->line, s->name, n);
+    st = sw_ncin_read(path, s->variable[0] ? s->variable : "eta", &sc->grid, SW_NCIN_OUTSIDE_ZERO, tmp,
+                      NULL, err);
+    if (st == SW_OK) {
+        for (size_t k = 0; k < n; k++)
+            eta[k] += tmp[k];
+    } else {
+        sw_error_prefix(err, "%s:%d: [source %s] file: ", sc->path, s->line, s->name);
+    }
+    free(tmp);
+    return st;
+}
+
+/* Checks the lengths an analytic shape divides by (the parser checks them too). */
+static sw_status source_check(const sw_scenario *sc, const sw_source_spec *s, sw_error *err)
+{
+    const char *what = NULL;
+    if (s->shape == SW_SOURCE_HUMP && !(s->radius_m > 0.0))
+        what = "radius";
+    else if ((s->shape == SW_SOURCE_ELLIPSE || s->shape == SW_SOURCE_PAIR) && !(s->length_m > 0.0))
+        what = "length";
+    else if ((s->shape == SW_SOURCE_ELLIPSE || s->shape == SW_SOURCE_PAIR) && !(s->width_m > 0.0))
+        what = "width";
+    if (what)
+        return sw_fail(err, SW_ERR_RANGE, "%s:%d: [source %s] %s: needs a value > 0", sc->path, s->line,
+                       s->name, what);
+    return SW_OK;
+}
+
+sw_status sw_source_build(const sw_scenario *sc, double *eta0_m, sw_error *err)
+{
+    if (!sc || !eta0_m)
+        return sw_fail(err, SW_ERR_USAGE, "sw_source_build: no scenario or output");
+    if (sc->n_sources > SW_MAX_SOURCES)
+        return sw_fail(err, SW_ERR_USAGE, "%s: %zu sources (at most %d)", sc->path, sc->n_sources,
+                       SW_MAX_SOURCES);
+    const sw_grid *g = &sc->grid;
+    size_t n = sw_grid_cells(g);
+    for (size_t k = 0; k < n; k++)
+        eta0_m[k] = 0.0;
+
+    for (size_t m = 0; m < sc->n_sources; m++) {
+        const sw_source_spec *s = &sc->sources[m];
+        sw_status st = source_check(sc, s, err);
+        if (st != SW_OK)
+            return st;
+        double a = s->angle_deg * SOURCE_PI / 180.0;
+        double ca = cos(a), sa = sin(a);
+        switch (s->shape) {
+        case SW_SOURCE_HUMP:
+            source_add_ellipse(g, s->x_m, s->y_m, s->amplitude_m, s->radius_m, s->radius_m, 1.0, 0.0,
+                               eta0_m);
+            break;
+        case SW_SOURCE_ELLIPSE:
+            source_add_ellipse(g, s->x_m, s->y_m, s->amplitude_m, s->length_m, s->width_m, ca, sa, eta0_m);
+            break;
+        case SW_SOURCE_PAIR: {
+            /* left of the axis is the direction angle + 90 deg: (-sin a, cos a) */
+            double h = 0.5 * s->separation_m;
+            double trough = s->trough_m != 0.0 ? s->trough_m : s->amplitude_m;  /* 0 = unset */
+            source_add_ellipse(g, s->x_m - h * sa, s->y_m + h * ca, s->amplitude_m, s->length_m,
+                               s->width_m, ca, sa, eta0_m);
+            source_add_ellipse(g, s->x_m + h * sa, s->y_m - h * ca, -trough, s->length_m, s->width_m,
+                               ca, sa, eta0_m);
+            break;
+        }
+        case SW_SOURCE_FILE:
+            st = source_add_file(sc, s, eta0_m, err);
+            if (st != SW_OK)
+                return st;
+            break;
+        default:
+            return sw_fail(err, SW_ERR_USAGE, "%s:%d: [source %s]: unknown shape %d", sc->path, s->line,
+                           s->name, (int)s->shape);
+        }
+    }
+    return SW_OK;
+}

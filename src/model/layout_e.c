@@ -1,0 +1,327 @@
+/* layout_e.c - the Arakawa E layout: a checkerboard of the model grid. Cells with (i + j) even hold
+ * eta, cells with (i + j) odd hold u and v together; every derivative uses the four nearest
+ * neighbours, which are of the other kind.
+ *
+ *        j+1   u,v  eta   u,v           eta[k]: elevation of an eta cell ((i + j) even); 0 in u,v cells
+ *        j     eta  u,v   eta           u[k], v[k]: velocities of a u,v cell ((i + j) odd); 0 in eta cells
+ *        j-1   u,v  eta   u,v           hx[k], hy[k]: depth carried by u[k], v[k]; 0 = no flow
+ *              i-1   i    i+1
+ *
+ *   D(hu) at eta[k] = (hx u[k+1] - hx u[k-1]) / (2 dx) + (hy v[k+s] - hy v[k-s]) / (2 dy)
+ *   G(eta) at u[k]  = (eta[k+1] - eta[k-1]) / (2 dx),   at v[k]: (eta[k+s] - eta[k-s]) / (2 dy)
+ * so G = -D^T: water volume and E* (layout.h) are conserved exactly.
+ *
+ * Spacing. The model grid's dx is the distance from an eta point to its nearest velocity points
+ * (east and west; dy to north and south). Like points are sqrt(dx^2 + dy^2) apart along the
+ * diagonals (dx sqrt(2) on square cells) and 2 dx apart along the axes. Turned by 45 degrees this is
+ * the B layout with cells dx sqrt(2) on a side: eta at the centres, u and v at the corners.
+ * Each point stands for an area of 2 dx dy (the diamond between its four neighbours), which the
+ * energy uses. Any dx, dy work; with dx != dy the turned B cell is a rhombus.
+ * Seabed. The depth of each cell serves the variable living there: an eta cell's depth only decides
+ * whether it is water; a u,v cell carries its own depth as hx and hy. A velocity flows when its cell
+ * is water and both neighbours it differences (west and east for u, south and north for v) are
+ * water (or ghosts of an open or level edge); otherwise it is held at 0. So a wall holds the normal
+ * velocity at 0 half a cell outside the face beside an eta cell and half a cell inside beside a
+ * u,v cell, alternating along the wall: a straight wall is on the face on average (a channel one
+ * row wide has both its walls shifted by -dx/2).
+ * State. u,v cells keep eta = 0 and eta cells keep u = v = 0 (prepare clears the initial elevation of
+ * u,v cells), so the step runs A-layout loops over every cell: the zero flux depths of the other
+ * kind make the extra updates exact no-ops. sw_model_volume therefore sums the eta cells only, with
+ * the model's dx dy per cell; the water actually displaced is twice that (see docs/layouts.md).
+ * centre_row reports at a u,v cell the mean eta of its water neighbours, and at an eta cell the
+ * mean u and v of its water neighbours.
+ * Open and level edges use the shared ghost list, in two kinds: beside an eta cell the ghost is a
+ * velocity point, beside a u,v cell an eta point (no velocity, hx = hy = 0). Open: a velocity ghost
+ * takes eta from the inner cell (sw_model_edge_eta_row) and the outgoing wave's velocity
+ * sign sqrt(g/h) eta_ghost; an eta ghost is left alone by the shared update (keep = 1, take = 0)
+ * and moves, by an implicit upwind step over dx, towards the outgoing-wave elevation of the inner
+ * velocity, u / (sign sqrt(g/h)). It must follow that velocity (its own lattice), not the inner
+ * cell's neighbours: following eta two cells in reflected twice as much, and a ghost fed from
+ * another lattice pumps energy into the basin (seen on the D layout). Level: the lattice is
+ * mirror-symmetric only about lines through cell centres, so the node of eta lies on the line
+ * through the GHOST centres, half a cell beyond the edge face: an eta ghost holds 0; a velocity
+ * ghost lies on the mirror line, stores the mirrored inner eta (-eta_inner, the shared rule) and
+ * is stepped like any velocity with it. This is an exact mirror image, neutral and stable; a node on
+ * the face line breaks the symmetry (tried: transients grew twentyfold on a rugged coast).
+ *
+ * Semi-discrete frequency: omega^2 = g h (sin^2(k dx) / dx^2 + sin^2(l dy) / dy^2) over the diamond
+ * |k dx| + |l dy| <= pi of wavenumbers the eta lattice resolves; highest at k dx = l dy = pi/2:
+ * omega_max = sqrt(g h) sqrt(1/dx^2 + 1/dy^2), in a channel sqrt(g h) / dx. Courant limit
+ * sqrt(g h) dt / dx <= sqrt(2) in 2D and 2 in 1D (square cells). Spurious mode: k dx = pi, l = 0
+ * (the same wave as k = 0, l dy = pi on this lattice): eta of alternating sign from one row of eta
+ * points to the next has omega = 0.
+ */
+#include <math.h>
+#include <stddef.h>
+
+#include "model/layout.h"
+#include "model/model_impl.h"
+#include "base/omp_compat.h"
+
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
+static double e_max_frequency(double gh, double dx, double dy, int dims)
+{
+    double s = 1.0 / (dx * dx) + (dims == 2 ? 1.0 / (dy * dy) : 0.0);
+    return sqrt(gh * s);
+}
+#endif
+
+/* Padded index of cell (i, j), -1 <= i <= nx, -1 <= j <= ny. */
+static size_t e_pad(const sw_model *m, ptrdiff_t i, ptrdiff_t j)
+{
+    return (size_t)(j + 1) * m->stride + (size_t)(i + 1);
+}
+
+/* 1 when cell (i, j) (halo included) is water the stencils may use: a water cell of the grid, or the
+ * ghost beside an open or level edge. Halo corners are never water. */
+static int e_water(const sw_model *m, ptrdiff_t i, ptrdiff_t j)
+{
+    const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
+    const int out_x = i < 0 || i >= nx, out_y = j < 0 || j >= ny;
+    if (out_x && out_y)
+        return 0;
+    if (out_x && m->edges[i < 0 ? SW_WEST : SW_EAST] == SW_EDGE_WALL)
+        return 0;
+    if (out_y && m->edges[j < 0 ? SW_SOUTH : SW_NORTH] == SW_EDGE_WALL)
+        return 0;
+    ptrdiff_t ii = i < 0 ? 0 : i >= nx ? nx - 1 : i;
+    ptrdiff_t jj = j < 0 ? 0 : j >= ny ? ny - 1 : j;
+    return SW_F(m, h)[e_pad(m, ii, jj)] > 0;
+}
+
+/* Turns the shared edge list into the E layout's two kinds of ghost (see the file comment). A ghost
+ * beside an eta cell is a velocity point: it keeps the shared coefficients and gets a flux depth.
+ * A ghost beside a u,v cell is an eta point with no velocity and no flux depth: the shared update
+ * leaves it alone (keep = 1, take = 0) and e_step radiates it from the inner velocity (open, vel
+ * kept as sign sqrt(g/h)), or it is the level node and stays 0 (keep = take = vel = 0). */
+static void e_prepare_edges(sw_model *m)
+{
+    const size_t s = m->stride;
+    for (size_t q = 0; q < m->n_edge; q++) {
+        sw_edge_cell *oc = &m->edge[q];
+        const size_t i = oc->inner % s - 1, j = oc->inner / s - 1;
+        sw_real *hn = oc->normal_x ? SW_F(m, hx) : SW_F(m, hy);
+        if ((i + j) % 2 == 0) {
+            hn[oc->ghost] = SW_F(m, h)[oc->inner];
+            continue;
+        }
+        const int open = oc->mirror == 0;   /* the shared list marks level ghosts with mirror = 1 */
+        oc->mirror = 0;
+        oc->keep = open ? 1 : 0;
+        oc->take = 0;
+        if (!open)
+            oc->vel = 0;
+    }
+}
+
+static sw_status e_prepare(sw_model *m, sw_error *err)
+{
+    const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
+    for (ptrdiff_t j = 0; j < ny; j++)
+        for (ptrdiff_t i = 0; i < nx; i++) {
+            size_t k = e_pad(m, i, j);
+            if ((i + j) % 2 == 0)
+                continue;
+            SW_F(m, eta)[k] = 0;   /* a u,v cell holds no elevation */
+            if (!(SW_F(m, h)[k] > 0))
+                continue;
+            SW_F(m, hx)[k] = e_water(m, i - 1, j) && e_water(m, i + 1, j) ? SW_F(m, h)[k] : 0;
+            SW_F(m, hy)[k] = e_water(m, i, j - 1) && e_water(m, i, j + 1) ? SW_F(m, h)[k] : 0;
+        }
+    sw_status rc = sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
+    if (rc != SW_OK)
+        return rc;
+    e_prepare_edges(m);
+    return SW_OK;
+}
+
+/* Continuity (forward: from the old velocities; a no-op on u,v cells, whose neighbours carry no flux)
+ * on the padded row at r + 1. */
+static inline void e_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
+                                    const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
+                                    size_t s, sw_real cx, sw_real cy)
+{
+    SW_OMP(simd)
+    for (size_t i = r + 1; i <= r + nx; i++)
+        eta[i] -= cx * (hx[i + 1] * u[i + 1] - hx[i - 1] * u[i - 1]) + cy * (hy[i + s] * v[i + s] - hy[i - s] * v[i - s]);
+}
+
+/* Momentum (backward: from the new eta of this row and its two neighbours; eta cells have hx = hy = 0
+ * and stay at rest) on the padded row at r + 1. */
+static inline void e_momentum_row(sw_real *restrict u, sw_real *restrict v, const sw_real *restrict eta,
+                                  const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
+                                  size_t s, sw_real gx, sw_real gy)
+{
+    SW_OMP(simd)
+    for (size_t i = r + 1; i <= r + nx; i++) {
+        u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i - 1]) : 0;
+        v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] - eta[i - s]) : 0;
+    }
+}
+
+/* The step in one sweep over memory, as layout_a.c's (the same stencils): continuity of row j, its
+ * edge ghosts, momentum of row j-1; the block's first and last rows' momentum after a barrier, then
+ * the ghosts. A row's centre values need its neighbours' (e_centre_row) and the ghosts, so the model
+ * observes rows after the step (observes_rows = 0). */
+static void e_step(sw_model *m)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
+    const sw_real cx = (sw_real)(0.5 * m->dt / m->grid.dx_m), cy = (sw_real)(0.5 * m->dt / m->grid.dy_m);
+    const sw_real gx = (sw_real)(0.5 * m->g * m->dt / m->grid.dx_m);
+    const sw_real gy = (sw_real)(0.5 * m->g * m->dt / m->grid.dy_m);
+    const sw_real rx = (sw_real)(m->dt / m->grid.dx_m), ry = (sw_real)(m->dt / m->grid.dy_m);
+    sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
+    const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy), *restrict h = SW_F(m, h);
+    const size_t nt = (size_t)omp_get_num_threads(), t = (size_t)omp_get_thread_num();
+    const size_t j0 = 1 + ny * t / nt, j1 = ny * (t + 1) / nt;   /* padded rows; empty when j1 < j0 */
+
+    for (size_t j = j0; j <= j1; j++) {
+        e_continuity_row(eta, u, v, hx, hy, j * s, nx, s, cx, cy);
+        sw_model_edge_eta_row(m, j);
+        if (j > j0 + 1)
+            e_momentum_row(u, v, eta, hx, hy, (j - 1) * s, nx, s, gx, gy);
+    }
+    SW_OMP(barrier)
+    if (j1 >= j0)
+        e_momentum_row(u, v, eta, hx, hy, j0 * s, nx, s, gx, gy);
+    if (j1 > j0)
+        e_momentum_row(u, v, eta, hx, hy, j1 * s, nx, s, gx, gy);
+    SW_OMP(barrier)
+
+    /* ghost normal velocities beside eta cells: the outgoing wave's (open); on the mirror line, stepped
+     * like any velocity with the ghost's eta (the inner eta mirrored) as the far neighbour (level) */
+    const sw_edge_cell *restrict oc = m->edge;
+    const size_t n_edge = m->n_edge;
+    SW_OMP(for schedule(static))
+    for (size_t q = 0; q < n_edge; q++) {
+        sw_real *vel = oc[q].normal_x ? u : v;
+        const sw_real *hn = oc[q].normal_x ? hx : hy;
+        const size_t g = oc[q].ghost, n = oc[q].inner;
+        if (hn[g] > 0) {   /* a velocity ghost */
+            if (oc[q].mirror != 0)
+                vel[g] -= (oc[q].normal_x ? gx : gy) * (g > n ? eta[g] - eta[n] : eta[n] - eta[g]);
+            else
+                vel[g] = (sw_real)oc[q].vel * eta[g];
+        } else if (oc[q].vel != 0) {
+            /* an open eta ghost: implicit upwind over dx towards the inner velocity's outgoing-wave
+             * elevation, u / (sign sqrt(g/h)); read by that velocity's next step */
+            const sw_real r = (sw_real)fabs(oc[q].vel) * h[n] * (oc[q].normal_x ? rx : ry);
+            eta[g] = (eta[g] + r * vel[n] / (sw_real)oc[q].vel) / (1 + r);
+        }
+    }
+}
+
+/* Centre values: a cell's own variables, and the other kind as the mean over its water neighbours
+ * (cells of the grid with depth; the halo and land hold nothing of their own). */
+static void e_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
+{
+    const size_t r = sw_pidx(m, 0, j), s = m->stride;
+    const sw_real *h = SW_F(m, h), *e = SW_F(m, eta), *uu = SW_F(m, u), *vv = SW_F(m, v);
+    for (size_t i = 0; i < m->grid.nx; i++) {
+        const size_t k = r + i;
+        if (!(h[k] > 0)) {
+            eta[i] = u[i] = v[i] = 0;
+            continue;
+        }
+        const double ww = h[k - 1] > 0, we = h[k + 1] > 0, ws = h[k - s] > 0, wn = h[k + s] > 0;
+        const double w = ww + we + ws + wn;
+        const double inv = w > 0 ? 1 / w : 0;
+        if ((i + j) % 2 == 0) {
+            eta[i] = e[k];
+            u[i] = (ww * uu[k - 1] + we * uu[k + 1] + ws * uu[k - s] + wn * uu[k + s]) * inv;
+            v[i] = (ww * vv[k - 1] + we * vv[k + 1] + ws * vv[k - s] + wn * vv[k + s]) * inv;
+        } else {
+            eta[i] = (ww * e[k - 1] + we * e[k + 1] + ws * e[k - s] + wn * e[k + s]) * inv;
+            u[i] = uu[k];
+            v[i] = vv[k];
+        }
+    }
+}
+
+/* One cell's centre elevation, as e_centre_row computes it. */
+/* e_centre_row in the state's precision, rounded to float (centre_row_f32: within float round-off of
+ * e_centre_row, which sums in double). */
+static void e_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
+{
+    const size_t r = sw_pidx(m, 0, j), s = m->stride, nx = m->grid.nx;
+    const sw_real *restrict h = SW_F(m, h), *restrict e = SW_F(m, eta), *restrict uu = SW_F(m, u);
+    const sw_real *restrict vv = SW_F(m, v);
+    SW_OMP(simd)
+    for (size_t i = 0; i < nx; i++) {
+        const size_t k = r + i;
+        const sw_real ww = h[k - 1] > 0, we = h[k + 1] > 0, ws = h[k - s] > 0, wn = h[k + s] > 0;
+        const sw_real w = ww + we + ws + wn, inv = w > 0 ? 1 / w : 0, wet = h[k] > 0;
+        const int own = (i + j) % 2 == 0;   /* the cell stores eta; else u and v */
+        const sw_real ea = (ww * e[k - 1] + we * e[k + 1] + ws * e[k - s] + wn * e[k + s]) * inv;
+        const sw_real ua = (ww * uu[k - 1] + we * uu[k + 1] + ws * uu[k - s] + wn * uu[k + s]) * inv;
+        const sw_real va = (ww * vv[k - 1] + we * vv[k + 1] + ws * vv[k - s] + wn * vv[k + s]) * inv;
+        eta[i] = (float)(wet * (own ? e[k] : ea));
+        u[i] = (float)(wet * (own ? ua : uu[k]));
+        v[i] = (float)(wet * (own ? va : vv[k]));
+    }
+}
+
+static double e_eta_at(const sw_model *m, size_t i, size_t j)
+{
+    const size_t k = sw_pidx(m, i, j), s = m->stride;
+    const sw_real *h = SW_F(m, h), *e = SW_F(m, eta);
+    if (!(h[k] > 0))
+        return 0;
+    if ((i + j) % 2 == 0)
+        return e[k];
+    const double ww = h[k - 1] > 0, we = h[k + 1] > 0, ws = h[k - s] > 0, wn = h[k + s] > 0;
+    const double w = ww + we + ws + wn;
+    return w > 0 ? (ww * e[k - 1] + we * e[k + 1] + ws * e[k - s] + wn * e[k + s]) / w : 0;
+}
+
+/* eta at (0, 0), u and v at (+-dx, 0) and (0, +-dy). */
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
+static void e_symbols(double k, double l, double dx, double dy, sw_symbols *o)
+{
+    o->div_x = o->grad_x = I * sin(k * dx) / dx;
+    o->div_y = o->grad_y = I * sin(l * dy) / dy;
+    o->v_at_u = o->u_at_v = 1;   /* co-located */
+}
+#endif
+
+/* E* with each eta point and each velocity point standing for 2 dx dy. */
+static double e_energy(const sw_model *m)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
+    const double dx = m->grid.dx_m, dy = m->grid.dy_m;
+    const sw_real *eta = SW_F(m, eta), *u = SW_F(m, u), *v = SW_F(m, v), *hx = SW_F(m, hx), *hy = SW_F(m, hy);
+    double pot = 0, kin = 0, cross = 0;
+    for (size_t j = 1; j <= ny; j++)
+        for (size_t i = j * s + 1; i <= j * s + nx; i++) {
+            double div = ((double)hx[i + 1] * u[i + 1] - (double)hx[i - 1] * u[i - 1]) / (2 * dx)
+                       + ((double)hy[i + s] * v[i + s] - (double)hy[i - s] * v[i - s]) / (2 * dy);
+            pot += (double)eta[i] * eta[i];
+            kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * v[i] * v[i];
+            cross += eta[i] * div;
+        }
+    return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * 2 * dx * dy;
+}
+
+const sw_layout_kernels SW_NAME(sw_layout_e_kernels) = {
+    .prepare = e_prepare,
+    .step = e_step,
+    .centre_row = e_centre_row,
+    .centre_row_f32 = e_centre_row_f32,
+    .eta_at = e_eta_at,
+    .energy = e_energy,
+};
+
+#if SW_REAL_BITS == 64
+extern const sw_layout_kernels sw_layout_e_kernels_f32;
+
+const sw_layout sw_layout_e = {
+    .name = "E",
+    .summary = "checkerboard: eta on (i+j) even cells, u and v on (i+j) odd cells (B turned 45 degrees)",
+    .stream_values = 8,   /* eta, u, v read and written; hx, hy read (half of them zeros) */
+    .max_frequency = e_max_frequency,
+    .level_node_offset = 0.5,
+    .eta_cells = 2,
+    .symbols = e_symbols,
+    .kernels = {[SW_DOUBLE] = &sw_layout_e_kernels_f64, [SW_SINGLE] = &sw_layout_e_kernels_f32},
+};
+#endif

@@ -1,0 +1,161 @@
+/* model.h - the model state on one grid layout, and stepping it in time.
+ *
+ * Solves the linear shallow-water equations on a Cartesian grid,
+ *     d(eta)/dt + d(h u)/dx + d(h v)/dy = 0,      du/dt = -g d(eta)/dx,      dv/dt = -g d(eta)/dy,
+ * with forward-backward stepping: eta is advanced first from the old velocities, then the
+ * velocities from the new eta. Cells shallower than the minimum depth are land (walls: no flow
+ * across their faces); each domain edge is a wall or open (a radiation condition).
+ *
+ * Time levels: after n steps (sw_model_time = n dt) the model holds eta at t_n and the velocities at
+ * t_n + dt/2, the staggering in time that makes forward-backward second order. The initial state is
+ * the water at rest at t = 0 with elevation eta0_m: sw_model_create stores the velocities of
+ * t = dt/2 that this implies (one half momentum step, model.c), so that a Fourier mode follows
+ * eta_n = eta_0 cos(n theta), cos(theta) = 1 - (omega_h dt)^2 / 2, with no start-up lag.
+ *
+ * Lifecycle: sw_model_create -> sw_model_step ... -> sw_model_free. The model owns all its arrays.
+ */
+#ifndef SW_MODEL_H
+#define SW_MODEL_H
+
+#include <math.h>
+#include <stddef.h>
+
+#include "base/grid.h"
+#include "model/layout.h"
+#include "inputs/scenario.h"
+#include "base/status.h"
+
+typedef struct sw_model sw_model;
+
+/* Cells per segment of a row in sw_row_values. */
+#define SW_OBS_SEG 512
+
+/* A row's centre values as a layout's step may hand them to an observer, made in the same pass as the
+ * step's own arithmetic: the values sw_model_centre_row_f32 gives, bit for bit, and
+ * for each segment q of SW_OBS_SEG cells (the last may be shorter) the highest and lowest elevation and
+ * the highest u*u + v*v, computed in float, over the segment. */
+typedef struct {
+    const float *eta, *u, *v;         /* [nx] m, m/s, m/s */
+    const float *hi, *lo, *speed2;    /* [ceil(nx / SW_OBS_SEG)] m, m, m2 s-2 */
+} sw_row_values;
+
+/* The extremes of sw_row_values over cells [a, b) of a row's centre values e, u, v: the highest and
+ * lowest e and the highest u*u + v*v, in float. The one definition the steps that hand rows' values
+ * and the tracker (which makes them when not handed) both use; the comparisons are not fmaxf /
+ * fminf, which are libm calls per cell and stop the loop from vectorising. */
+static inline void sw_row_extremes(const float *restrict e, const float *restrict u, const float *restrict v,
+                                   size_t a, size_t b, float *hi_out, float *lo_out, float *speed2_out)
+{
+    float hi = -INFINITY, lo = INFINITY, top = 0;
+#ifdef _OPENMP
+#pragma omp simd reduction(max : hi, top) reduction(min : lo)
+#endif
+    for (size_t i = a; i < b; i++) {
+        const float s2 = u[i] * u[i] + v[i] * v[i];
+        hi = e[i] > hi ? e[i] : hi;
+        lo = e[i] < lo ? e[i] : lo;
+        top = s2 > top ? s2 : top;
+    }
+    *hi_out = hi;
+    *lo_out = lo;
+    *speed2_out = top;
+}
+
+/* An observer of the state, row by row: called with grid row j (0 .. ny-1) once a step has finished
+ * every value of that row, with time_s the time of that state (s), by the thread that finished the row
+ * (each row exactly once per step, rows in any order and from any thread). pre is NULL, or the row's
+ * centre values made by the step (sw_row_values). It may read the model (sw_model_centre_row) for
+ * row j only, and must not write it. ctx is the observer's own. */
+typedef void (*sw_row_observer)(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre);
+
+/* What a model is built from. Arrays are [ny * nx], row j at [j * nx]; they are copied. */
+typedef struct {
+    const sw_layout *layout;   /* from sw_layout_find */
+    sw_grid grid;
+    const double *depth_m;     /* still-water depth, positive down; < min_depth_m = land */
+    const double *eta0_m;      /* initial elevation, m (NULL = 0); land cells are set to 0 */
+    double min_depth_m;        /* land threshold, m (> 0) */
+    double gravity_ms2;        /* g, m s-2 */
+    double dt_s;               /* time step, s (> 0); see sw_model_dt_limit */
+    sw_edge_kind edges[4];     /* SW_WEST .. SW_NORTH */
+    int allow_unstable;        /* 1 = accept dt beyond the stability limit (for stability experiments) */
+    sw_precision precision;    /* of the state: SW_DOUBLE (the zero default) or SW_SINGLE (real.h) */
+} sw_model_config;
+
+/* The largest stable time step (s) for `layout` on the given depth field: 2 / max_frequency at the
+ * deepest water cell. Returns 0 when there is no water cell. */
+double sw_model_dt_limit(const sw_layout *layout, const sw_grid *g, const double *depth_m,
+                         double min_depth_m, double gravity_ms2, int dims);
+
+/* The Courant number of a time step: sqrt(g h_max) dt / min(dx, dy). */
+double sw_model_courant(const sw_grid *g, double h_max_m, double gravity_ms2, double dt_s);
+
+/* Creates a model whose initial state is at rest at t = 0 with elevation cfg->eta0_m: the velocities
+ * it stores are those of t = dt/2, -(g dt / 2) times the layout's gradient of eta0 (0 where the layout
+ * holds a velocity at 0: walls, land); the ghost cells beyond open and level edges start still, at the
+ * fixed point of their update (model.c: the edge cell's elevation, or its mirror image). Step 0, time 0.
+ * It runs the layout's step once (with dt/2): call it outside a parallel region, or inside one that has a
+ * single thread.
+ * Refuses (SW_ERR_UNSTABLE) a dt beyond the layout's stability limit, naming both, unless
+ * cfg->allow_unstable; SW_ERR_RANGE when there is no water cell; SW_ERR_NOMEM.
+ * *out is NULL on failure. */
+sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *err);
+
+/* Frees the model. m may be NULL. */
+void sw_model_free(sw_model *m);
+
+/* One time step (see sw_layout.step: call from all threads of a parallel region, or outside one).
+ * With an observer set (sw_model_set_observer) it also shows the observer every row of the new state:
+ * layouts whose step observes rows as it finishes them (sw_layout_kernels.observes_rows) do it while
+ * the row is still in cache; for the others every row is observed after the step. The time passed is
+ * the time after the step, what sw_model_time gives after the sw_model_tick that follows. */
+void sw_model_step(sw_model *m);
+
+/* Sets the row observer sw_model_step calls (NULL: none), with room for steps on up to
+ * omp_get_max_threads() threads to hand it rows' values (sw_row_values; a thread beyond that, or no
+ * memory for the room, hands none). Call outside parallel regions. */
+void sw_model_set_observer(sw_model *m, sw_row_observer fn, void *ctx);
+
+/* Advances the step counter and clock after a step. Call from one thread only. */
+void sw_model_tick(sw_model *m);
+
+/* Values at the centres of row j (see sw_layout.centre_row). */
+void sw_model_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v);
+
+/* sw_model_centre_row in float, to float round-off (sw_layout_kernels.centre_row_f32), into eta, u, v
+ * (each nx long); scratch holds 3 nx doubles for layouts without a float kernel. The tracker's input. */
+void sw_model_centre_row_f32(const sw_model *m, size_t j, float *eta, float *u, float *v, double *scratch);
+
+/* Elevation at cell centre (i, j), m. */
+double sw_model_eta(const sw_model *m, size_t i, size_t j);
+
+/* Elevation at the centre of cell (i, j), m, as the layout reports it: the stored value, or on the E
+ * layout the mean of the neighbours where the cell stores velocities (sw_layout_kernels.eta_at). */
+double sw_model_eta_centre(const sw_model *m, size_t i, size_t j);
+
+/* Sets the elevation at cell centre (i, j) (ignored on land). For tests and restarts. The velocities
+ * are left as they are: after it the state is no longer the one at rest that sw_model_create made
+ * (give the elevation as cfg->eta0_m for that). */
+void sw_model_set_eta(sw_model *m, size_t i, size_t j, double eta_m);
+
+/* The layout's conserved discrete energy (see sw_layout.energy), m5 s-2. */
+double sw_model_energy(const sw_model *m);
+
+/* Water volume displaced: sum of the stored eta times the area each stands for (a cell; two on the E
+ * layout), m3 (compensated summation). */
+double sw_model_volume(const sw_model *m);
+
+/* Accessors. */
+const sw_grid *sw_model_grid(const sw_model *m);
+const sw_layout *sw_model_layout(const sw_model *m);
+const unsigned char *sw_model_wet(const sw_model *m);  /* [ny * nx], 1 = water */
+double sw_model_time(const sw_model *m);               /* simulated time, s */
+double sw_model_dt(const sw_model *m);                 /* s */
+double sw_model_h_max(const sw_model *m);              /* deepest water cell, m */
+size_t sw_model_bytes(const sw_model *m);              /* memory held, bytes */
+sw_precision sw_model_precision(const sw_model *m);    /* of the state arrays */
+
+/* Bytes a model of this grid would hold in this precision (for plans), without creating it. */
+size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision);
+
+#endif

@@ -1,0 +1,60 @@
+/* gauges.h - time series of eta, u and v at named points, sampled during the run.
+ *
+ * A gauge value is the bilinear interpolation of the four surrounding cell-centre values, with land
+ * cells left out and the weights of the water cells renormalised; a gauge with no water cell
+ * around it records NaN. Near the domain edge the nearest centres are used (constant extrapolation).
+ */
+#ifndef SW_GAUGES_H
+#define SW_GAUGES_H
+
+#include <stddef.h>
+
+#include "model/model.h"
+#include "outputs/ncwrite.h"
+#include "inputs/scenario.h"
+#include "base/status.h"
+
+typedef struct sw_gauges sw_gauges;
+
+/* Creates a recorder for the n gauges in specs on model m's grid, with room for max_samples samples.
+ * depth_m [ny * nx] is the still-water depth, used for each gauge's depth (interpolated over all
+ * four cells, land included). *out is NULL on failure. */
+sw_status sw_gauges_create(const sw_model *m, const double *depth_m, const sw_gauge_spec *specs, size_t n,
+                           size_t max_samples, sw_gauges **out, sw_error *err);
+
+/* Records one sample of every gauge at the model's current time. Call from one thread.
+ * Returns SW_ERR_USAGE (recording nothing) when the capacity is used up. */
+sw_status sw_gauges_sample(sw_gauges *gs, const sw_model *m, sw_error *err);
+
+/* Follows every gauge's elevation at the model's current time (call at time 0 and after every step,
+ * from one thread): first arrival (the time |eta| first reaches threshold_m, interpolated linearly
+ * between the two steps around the crossing), highest and lowest elevation and their times.
+ * Reads only the four cell-centre elevations, so it is cheap enough for every step. */
+void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m);
+
+/* What sw_gauges_watch found for gauge q. Times in s; arrival NaN when never reached; all NaN
+ * for a dry gauge. */
+typedef struct {
+    double arrival_s, peak_m, peak_time_s, trough_m, trough_time_s;
+} sw_gauge_stats;
+sw_gauge_stats sw_gauges_stats(const sw_gauges *gs, size_t q);
+
+/* Name of gauge q. */
+const char *sw_gauges_name(const sw_gauges *gs, size_t q);
+
+/* Ends recording and gives a table view for the writer, valid until sw_gauges_free. The series are
+ * compacted, so no sample may be taken afterwards (sw_gauges_sample then fails). */
+void sw_gauges_table(sw_gauges *gs, sw_gauge_table *out);
+
+/* Still-water depth at gauge q, m (negative on land). */
+double sw_gauges_depth(const sw_gauges *gs, size_t q);
+
+/* 1 if no water cell surrounds gauge q (its series is NaN). */
+int sw_gauges_dry(const sw_gauges *gs, size_t q);
+
+/* Bilinear depth at (x, y) from a [ny * nx] field on grid g (for plans, before a model exists). */
+double sw_gauges_depth_at(const sw_grid *g, const double *depth_m, double x_m, double y_m);
+
+void sw_gauges_free(sw_gauges *gs);
+
+#endif

@@ -1,0 +1,377 @@
+/* tracker.c - arrival time and extremes at cell centres (see tracker.h).
+ *
+ * The running maps are kept in single precision (4 bytes a value: 7 significant digits for
+ * elevations, and for times a resolution finer than 0.01 s up to a simulated day): the tracker
+ * reads and writes them at every step, so their size is its cost. sw_tracker_maps converts them to
+ * the double maps the writers take.
+ *
+ * Every map is made from the centre values rounded to float (sw_model_centre_row_f32), the squared
+ * speed computed in float. Elevations smaller than the floor (1 micrometre, or a hundredth of the
+ * arrival threshold when that is smaller) and speeds below 1 micrometre per second count as 0: the
+ * tail of a Gaussian source reaches every cell of the grid with values like 1e-14 m that change every
+ * step, and without a floor every map of every cell would be rewritten at every step for nothing.
+ *
+ * Most of a grid, most of the time, cannot change its maps: the water is still, or lower than the crest
+ * that already passed. Each row is cut into segments of SEG cells, and each segment keeps a summary
+ * of its maps (the lowest eta_max, the highest eta_min, the lowest speed_max^2, whether a water cell
+ * still waits for its arrival). A row update first reduces the new values of each segment (highest
+ * and lowest elevation, top squared speed) and touches the segment's maps only when one
+ * of them could change; the per-cell rules are the same either way, so the maps are the same bits as
+ * with every cell updated. Attached to the model (sw_tracker_attach) the update runs inside the step,
+ * on rows still in cache, and the state is not streamed from memory a second time. Either way it runs
+ * with subnormal numbers flushed to zero (fpmode.h), so values below 1.18e-38 enter the maps as 0.
+ */
+#include "observers/tracker.h"
+
+#include <float.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "base/fpmode.h"
+#include "base/omp_compat.h"
+
+#define SEG SW_OBS_SEG   /* cells per segment of a row (the last one may be shorter): as the step's */
+#define SPEED2_FLOOR 1e-12f   /* m2 s-2: squared speeds below (1 micrometre per second)^2 count as 0 */
+
+/* What a segment's maps hold at best, as the values that would change them: for deciding, from the
+ * raw (unfloored) new values, that they cannot. Maps hold floored values only: 0, or at least the
+ * floor in size. So with lo_max the lowest eta_max of the segment, a floored value passes it only if
+ * a raw value passes lo_max, or passes the floor when lo_max is 0 (and so for the others). */
+typedef struct {
+    float up;          /* m: a raw eta above it may raise an eta_max (lo_max, or just under the floor if 0) */
+    float down;        /* m: a raw eta below it may lower an eta_min */
+    float faster;      /* m2 s-2: a raw squared speed above it may raise a speed2_max */
+    int waiting;       /* 1 while a water cell of the segment has no arrival time yet */
+} seg_summary;
+
+/* The trigger for a map whose weakest value is `weakest`, given the floor below which values are 0. */
+static float trigger(float weakest, float floor_value)
+{
+    return weakest == 0.0f ? nextafterf(floor_value, 0.0f) : weakest;
+}
+
+/* What one thread of the team owns: its row buffers and counts. Each slot starts on a 64-byte line of
+ * its own (threads write their counts every row); its size is a whole number of lines. */
+typedef struct {
+    _Alignas(64) float *row;   /* [3 nx]: centre eta, u, v of one row */
+    double *scratch;      /* [3 nx]: for layouts without a float centre row */
+    int nonfinite;        /* the thread met a NaN or Inf */
+    long long seen;       /* segments looked at */
+    long long updated;    /* segments whose maps were rewritten */
+} thread_slot;
+
+struct sw_tracker {
+    size_t nx, ny;
+    float threshold;      /* m */
+    float floor;          /* m: |eta| below it counts as 0 (min(1e-6, threshold / 100)) */
+    int n_threads;        /* slots of the team's threads */
+    thread_slot *slot;    /* [n_threads + 1], 64-byte aligned; the last serves, one at a time, threads
+                           * beyond n_threads */
+    float *eta_max, *eta_min;      /* [ny * nx] running extremes, m */
+    float *arrival, *eta_max_time; /* [ny * nx] s; arrival NaN until reached */
+    float *speed2_max;             /* [ny * nx] squared speed, m2 s-2 */
+    size_t n_seg;         /* segments per row */
+    seg_summary *seg;     /* [ny * n_seg] */
+    const unsigned char *wet; /* the model's mask [ny * nx] */
+    double *out;          /* [5 * ny * nx] the double maps, made by sw_tracker_maps */
+};
+
+static void free_slots(sw_tracker *t)
+{
+    for (int q = 0; t->slot && q <= t->n_threads; q++) {
+        free(t->slot[q].row);
+        free(t->slot[q].scratch);
+    }
+    free(t->slot);
+    t->slot = NULL;
+    t->n_threads = 0;
+}
+
+/* Gives t at least n thread slots and the overflow slot (the counts of the old ones carried over).
+ * SW_OK or SW_ERR_NOMEM (then t is as it was). */
+static sw_status ensure_slots(sw_tracker *t, int n, sw_error *err)
+{
+    if (t->slot && n <= t->n_threads)
+        return SW_OK;
+    thread_slot *slot = aligned_alloc(64, (size_t)(n + 1) * sizeof *slot);
+    if (!slot)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the tracker's %d thread buffers", n);
+    memset(slot, 0, (size_t)(n + 1) * sizeof *slot);
+    int ok = 1;
+    for (int q = 0; q <= n; q++) {
+        slot[q].row = malloc(3 * t->nx * sizeof(float));
+        slot[q].scratch = malloc(3 * t->nx * sizeof(double));
+        ok &= slot[q].row && slot[q].scratch;
+    }
+    for (int q = 0; t->slot && q <= t->n_threads; q++) {   /* counts: the old overflow slot's into the new */
+        const int to = q < t->n_threads ? q : n;
+        slot[to].nonfinite |= t->slot[q].nonfinite;
+        slot[to].seen += t->slot[q].seen;
+        slot[to].updated += t->slot[q].updated;
+    }
+    if (!ok) {
+        for (int q = 0; q <= n; q++) {
+            free(slot[q].row);
+            free(slot[q].scratch);
+        }
+        free(slot);
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the tracker's %d thread buffers", n);
+    }
+    free_slots(t);
+    t->slot = slot;
+    t->n_threads = n;
+    return SW_OK;
+}
+
+void sw_tracker_free(sw_tracker *t)
+{
+    if (!t)
+        return;
+    free(t->eta_max);
+    free(t->eta_min);
+    free(t->arrival);
+    free(t->eta_max_time);
+    free(t->speed2_max);
+    free_slots(t);
+    free(t->seg);
+    free(t->out);
+    free(t);
+}
+
+size_t sw_tracker_bytes_per_cell(void) { return 5 * sizeof(float); }
+
+sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads, sw_tracker **out,
+                            sw_error *err)
+{
+    *out = NULL;
+    const sw_grid *g = sw_model_grid(m);
+    size_t n = sw_grid_cells(g);
+    sw_tracker *t = calloc(1, sizeof *t);
+    if (!t)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating the arrival tracker");
+    t->nx = g->nx;
+    t->ny = g->ny;
+    t->threshold = (float)threshold_m;
+    t->floor = (float)fmin(1e-6, threshold_m / 100);
+    t->eta_max = malloc(n * sizeof(float));
+    t->eta_min = malloc(n * sizeof(float));
+    t->arrival = malloc(n * sizeof(float));
+    t->eta_max_time = malloc(n * sizeof(float));
+    t->speed2_max = malloc(n * sizeof(float));
+    t->n_seg = (g->nx + SEG - 1) / SEG;
+    t->seg = malloc(g->ny * t->n_seg * sizeof *t->seg);
+    t->wet = sw_model_wet(m);
+    if (!t->eta_max || !t->eta_min || !t->arrival || !t->eta_max_time || !t->speed2_max || !t->seg
+        || ensure_slots(t, n_threads < 1 ? 1 : n_threads, NULL) != SW_OK) {
+        sw_tracker_free(t);
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating the arrival tracker (%zu cells)", n);
+    }
+    SW_OMP(parallel for schedule(static))   /* first touch by the threads that update each row */
+    for (size_t j = 0; j < t->ny; j++)
+        for (size_t k = j * t->nx; k < (j + 1) * t->nx; k++) {
+            t->eta_max[k] = -INFINITY;
+            t->eta_min[k] = INFINITY;
+            t->arrival[k] = NAN;
+            t->eta_max_time[k] = 0.0f;
+            t->speed2_max[k] = 0.0f;
+        }
+    for (size_t q = 0; q < g->ny * t->n_seg; q++)   /* anything may change: every segment updates */
+        t->seg[q] = (seg_summary){.up = -INFINITY, .down = INFINITY, .faster = -1, .waiting = 1};
+    sw_tracker_update(t, m);
+    *out = t;
+    return SW_OK;
+}
+
+/* Folds cells [a, b) of row j (centre values e, uu, vv, indexed from the row's start) into the maps,
+ * cell by cell, and renews the segment's summary. Returns 1 when a value is NaN or infinite. A state
+ * that blows up passes through ever larger values, which make its segments update, so checking here
+ * finds it without a test on every cell of every step. */
+static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float *restrict e,
+                         const float *restrict uu, const float *restrict vv, float now, seg_summary *sum)
+{
+    const size_t r = j * t->nx;
+    const float thr = t->threshold, fl = t->floor;
+    float *restrict mx = t->eta_max + r, *restrict mn = t->eta_min + r;
+    float *restrict arr = t->arrival + r, *restrict tmx = t->eta_max_time + r;
+    float *restrict sp = t->speed2_max + r;
+    const unsigned char *restrict wet = t->wet + r;
+    float lo_max = INFINITY, hi_min = -INFINITY, lo_sp = INFINITY;
+    int waiting = 0, bad = 0;
+    SW_OMP(simd reduction(min : lo_max, lo_sp) reduction(max : hi_min) reduction(| : waiting, bad))
+    for (size_t i = a; i < b; i++) {
+        const float ei = fabsf(e[i]) < fl ? 0.0f : e[i];
+        const float s2_raw = uu[i] * uu[i] + vv[i] * vv[i], s2 = s2_raw < SPEED2_FLOOR ? 0.0f : s2_raw;
+        bad |= !(fabsf(ei) <= FLT_MAX) | !(s2_raw <= FLT_MAX);   /* NaN or Inf in the state */
+        int higher = ei > mx[i];
+        mx[i] = higher ? ei : mx[i];
+        tmx[i] = higher ? now : tmx[i];
+        mn[i] = ei < mn[i] ? ei : mn[i];
+        sp[i] = s2 > sp[i] ? s2 : sp[i];
+        arr[i] = (arr[i] != arr[i] && fabsf(ei) >= thr) ? now : arr[i];   /* NaN until first reached */
+        /* water cells only: land reads 0 for ever, and its maps (0) would pin the triggers to the floor */
+        lo_max = wet[i] && mx[i] < lo_max ? mx[i] : lo_max;   /* not fminf: a libm call per cell */
+        hi_min = wet[i] && mn[i] > hi_min ? mn[i] : hi_min;
+        lo_sp = wet[i] && sp[i] < lo_sp ? sp[i] : lo_sp;
+        waiting |= wet[i] && arr[i] != arr[i];
+    }
+    *sum = (seg_summary){.up = trigger(lo_max, fl), .down = -trigger(-hi_min, fl),
+                         .faster = trigger(lo_sp, SPEED2_FLOOR), .waiting = waiting};
+    return bad;
+}
+
+/* The row update with thread slot `sl` (see the top of this file). */
+static void track_row_in(sw_tracker *t, thread_slot *sl, const sw_model *m, size_t j, double time_s,
+                         const sw_row_values *pre)
+{
+    const size_t nx = t->nx;
+    const float now = (float)time_s, thr = t->threshold;
+    const float *e, *uu, *vv;
+    float *row = sl->row;
+    if (pre) {   /* the step made the values and the segments' extremes */
+        e = pre->eta;
+        uu = pre->u;
+        vv = pre->v;
+    } else {
+        sw_model_centre_row_f32(m, j, row, row + nx, row + 2 * nx, sl->scratch);
+        e = row;
+        uu = row + nx;
+        vv = row + 2 * nx;
+    }
+    int bad = 0;
+    long long updated = 0;
+    for (size_t q = 0; q < t->n_seg; q++) {
+        const size_t a = q * SEG, b = a + SEG < nx ? a + SEG : nx;
+        float hi, lo, top_s2;
+        if (pre) {
+            hi = pre->hi[q];
+            lo = pre->lo[q];
+            top_s2 = pre->speed2[q];
+        } else {
+            sw_row_extremes(e, uu, vv, a, b, &hi, &lo, &top_s2);
+        }
+        seg_summary *sum = &t->seg[j * t->n_seg + q];
+        /* A cell's maps change only when its new value passes them, or it arrives; if no raw value
+         * passes the segment's triggers, no floored value passes its own cell's maps (seg_summary).
+         * |eta| >= thr (> floor) is the same test raw or floored. */
+        if (hi > sum->up || lo < sum->down || top_s2 > sum->faster || (sum->waiting && (hi >= thr || -lo >= thr))) {
+            bad |= update_cells(t, j, a, b, e, uu, vv, now, sum);
+            updated++;
+        }
+    }
+    if (bad)
+        sl->nonfinite = 1;
+    sl->seen += (long long)t->n_seg;
+    sl->updated += updated;
+}
+
+/* The row update (see the top of this file): the centre values of row j, at time_s, into the maps.
+ * A sw_row_observer (model.h). Threads beyond the slots (a team larger than the tracker was made or
+ * attached for) share the overflow slot one at a time: correct, slow, and never the case in sw_run. */
+static void track_row(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre)
+{
+    sw_tracker *t = ctx;
+    const int tid = omp_get_thread_num();
+    if (tid < t->n_threads) {
+        track_row_in(t, &t->slot[tid], m, j, time_s, pre);
+    } else {
+        SW_OMP(critical(sw_tracker_overflow))
+        track_row_in(t, &t->slot[t->n_threads], m, j, time_s, pre);
+    }
+}
+
+void sw_tracker_update(sw_tracker *t, const sw_model *m)
+{
+    const double now = sw_model_time(m);
+    const unsigned int saved = sw_fp_flush();   /* the mode the attached update runs in (model.c) */
+    SW_OMP(for schedule(static))
+    for (size_t j = 0; j < t->ny; j++)
+        track_row(t, m, j, now, NULL);
+    sw_fp_restore(saved);
+}
+
+sw_status sw_tracker_attach(sw_tracker *t, sw_model *m, sw_error *err)
+{
+    if (t) {
+        sw_status rc = ensure_slots(t, omp_get_max_threads(), err);
+        if (rc != SW_OK)
+            return rc;
+    }
+    sw_model_set_observer(m, t ? track_row : NULL, t);
+    return SW_OK;
+}
+
+void sw_tracker_segments(const sw_tracker *t, long long *seen, long long *updated)
+{
+    *seen = *updated = 0;
+    for (int q = 0; q <= t->n_threads; q++) {
+        *seen += t->slot[q].seen;
+        *updated += t->slot[q].updated;
+    }
+}
+
+int sw_tracker_nonfinite(const sw_tracker *t)
+{
+    int bad = 0;
+    for (int q = 0; q <= t->n_threads; q++)
+        bad |= t->slot[q].nonfinite;
+    return bad;
+}
+
+sw_status sw_tracker_maps(sw_tracker *t, const sw_model *m, const double *depth_m, sw_map_set *maps, sw_error *err)
+{
+    const size_t n = t->nx * t->ny;
+    const unsigned char *wet = sw_model_wet(m);
+    if (!t->out && !(t->out = malloc(5 * n * sizeof(double))))
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the maps (%zu cells)", n);
+    double *mx = t->out, *mn = mx + n, *arr = mn + n, *tmx = arr + n, *sp = tmx + n;
+    for (size_t k = 0; k < n; k++) {
+        mx[k] = wet[k] ? t->eta_max[k] : NAN;
+        mn[k] = wet[k] ? t->eta_min[k] : NAN;
+        arr[k] = wet[k] ? t->arrival[k] : NAN;
+        tmx[k] = wet[k] ? t->eta_max_time[k] : NAN;
+        sp[k] = wet[k] ? sqrt((double)t->speed2_max[k]) : NAN;
+    }
+    maps->grid = sw_model_grid(m);
+    maps->depth_m = depth_m;
+    maps->wet = wet;
+    maps->eta_max_m = mx;
+    maps->eta_min_m = mn;
+    maps->arrival_s = arr;
+    maps->eta_max_time_s = tmx;
+    maps->speed_max_ms = sp;
+    return SW_OK;
+}
+
+double sw_tracker_max_abs(const sw_tracker *t)
+{
+    double worst = 0.0;
+    for (size_t k = 0; k < t->nx * t->ny; k++)
+        if (!isnan(t->eta_max[k]) && isfinite(t->eta_max[k]))
+            worst = fmax(worst, fmax(fabs(t->eta_max[k]), fabs(t->eta_min[k])));
+    return worst;
+}
+
+double sw_tracker_noise(const sw_tracker *t, const unsigned char *wet)
+{
+    const size_t nx = t->nx, ny = t->ny;
+    const float *e = t->eta_max;
+    double hp2 = 0, e2 = 0;
+    for (size_t j = 1; j + 1 < ny; j++)
+        for (size_t i = 1; i + 1 < nx; i++) {
+            int all_wet = 1;
+            double smooth = 0;
+            for (int dj = -1; dj <= 1; dj++)
+                for (int di = -1; di <= 1; di++) {
+                    size_t k = (j + (size_t)dj) * nx + (i + (size_t)di);
+                    all_wet &= wet[k];
+                    smooth += (di ? 0.25 : 0.5) * (dj ? 0.25 : 0.5) * e[k];
+                }
+            if (!all_wet)
+                continue;
+            double c = e[j * nx + i];
+            hp2 += (c - smooth) * (c - smooth);
+            e2 += c * c;
+        }
+    return e2 > 0 ? sqrt(hp2 / e2) : 0;
+}

@@ -1,0 +1,80 @@
+/* ncwrite.h - CF-NetCDF writers for gauge series, maps and eta snapshots.
+ *
+ * Every file is written under "<path>.part" and renamed to <path> only once complete and closed,
+ * so a failed or interrupted run never leaves a file that looks finished (and an existing file at
+ * <path> is replaced only on success). All files are NetCDF-4, declare Conventions = "CF-1.11"
+ * and carry the run's metadata and the caution as global attributes.
+ */
+#ifndef SW_NCWRITE_H
+#define SW_NCWRITE_H
+
+#include <stddef.h>
+
+#include "base/grid.h"
+#include "base/status.h"
+
+/* Metadata written as global attributes of every file. Strings must not be NULL. */
+typedef struct {
+    const char *title;          /* scenario title */
+    const char *history;        /* the command line that produced the file */
+    const char *scenario_text;  /* the whole scenario file, verbatim */
+    const char *layout;         /* "A".."E" */
+    const char *precision;      /* of the model state: "double" or "single" */
+    const char *version;        /* shoreward version string */
+    const char *caution;        /* the caution text (not a forecast ...) */
+    const char *time_origin;    /* "YYYY-MM-DD HH:MM:SS": time units are "seconds since <origin>" */
+    double dt_s;                /* time step, s */
+    double courant;             /* Courant number sqrt(g h_max) dt / min(dx, dy) */
+    double courant_limit;       /* the layout's limit of the same number */
+    double arrival_threshold_m; /* |eta| threshold defining arrival, m */
+    double gravity_ms2;         /* g, m s-2 */
+} sw_run_meta;
+
+/* Gauge series in memory, station-major: value of station s at time index t is [s * n_times + t]. */
+typedef struct {
+    size_t n_stations;
+    size_t n_times;
+    const char *const *names;   /* [n_stations] station names */
+    const double *x_m, *y_m;    /* [n_stations] positions, m */
+    const double *depth_m;      /* [n_stations] still-water depth at the gauge, m (<= 0 on land) */
+    const double *time_s;       /* [n_times] seconds since the origin */
+    const double *eta_m;        /* [n_stations * n_times] sea-surface elevation, m */
+    const double *u_ms;         /* [n_stations * n_times] x velocity, m/s */
+    const double *v_ms;         /* [n_stations * n_times] y velocity, m/s */
+} sw_gauge_table;
+
+/* Maps at cell centres, each [ny * nx], row j at [j * nx]. Values on land cells (wet[k] == 0) and
+ * arrival where never reached are NaN here and written as _FillValue. */
+typedef struct {
+    const sw_grid *grid;
+    const double *depth_m;        /* still-water depth, positive down (land negative), written everywhere */
+    const unsigned char *wet;     /* 1 = water cell in the model, 0 = land */
+    const double *eta_max_m;      /* highest eta reached, m */
+    const double *eta_min_m;      /* lowest eta reached, m */
+    const double *arrival_s;      /* first time |eta| >= threshold, s since the origin; NaN if never */
+    const double *eta_max_time_s; /* time of eta_max, s since the origin */
+    const double *speed_max_ms;   /* highest current speed, m/s */
+} sw_map_set;
+
+/* Writes the gauge file (CF discrete sampling geometry, featureType timeSeries). */
+sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gauge_table *gt, sw_error *err);
+
+/* Writes the map file. */
+sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_set *maps, sw_error *err);
+
+/* Snapshots of eta written as the run goes (unlimited time dimension). */
+typedef struct sw_ncw_snapshots sw_ncw_snapshots;
+
+/* Creates "<path>.part" with x, y, depth and an empty eta(time, y, x). *out receives the handle,
+ * owned by the caller and released by _commit or _abort. On failure *out is NULL and no file is left. */
+sw_status sw_ncw_snapshots_open(const char *path, const sw_run_meta *meta, const sw_grid *g,
+                                const double *depth_m, const unsigned char *wet,
+                                sw_ncw_snapshots **out, sw_error *err);
+/* Appends one snapshot: eta_m is [ny * nx], NaN on land (written as _FillValue). */
+sw_status sw_ncw_snapshots_append(sw_ncw_snapshots *s, double t_s, const double *eta_m, sw_error *err);
+/* Closes the file and renames it to <path>; frees s (also on failure, after removing the .part). */
+sw_status sw_ncw_snapshots_commit(sw_ncw_snapshots *s, sw_error *err);
+/* Closes and removes the .part file, frees s. s may be NULL. */
+void sw_ncw_snapshots_abort(sw_ncw_snapshots *s);
+
+#endif

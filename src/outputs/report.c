@@ -1,0 +1,244 @@
+/* report.c - plans and summaries for people and for scripts (see report.h). */
+#include "outputs/report.h"
+
+#include <cjson/cJSON.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "observers/gauges.h"
+
+void sw_format_duration(double s, char *buf, size_t n)
+{
+    if (!isfinite(s)) {
+        snprintf(buf, n, "-");
+        return;
+    }
+    if (s < 60) {
+        snprintf(buf, n, "%.1f s", s);
+        return;
+    }
+    long long t = llround(s);
+    long long h = t / 3600, mi = (t % 3600) / 60, se = t % 60;
+    if (h > 0)
+        snprintf(buf, n, "%lld h %02lld min %02lld s", h, mi, se);
+    else
+        snprintf(buf, n, "%lld min %02lld s", mi, se);
+}
+
+static const char *edge_name(sw_edge_kind e)
+{
+    return e == SW_EDGE_OPEN ? "open" : e == SW_EDGE_LEVEL ? "level" : "wall";
+}
+
+static double bytes_mb(size_t b) { return (double)b / (1024.0 * 1024.0); }
+
+/* "just now", "5 min ago", "3 h ago" or "2 days ago" for an age in days, into buf. */
+static void format_age(double days, char *buf, size_t n)
+{
+    double min = days * 1440;
+    if (min < 1)
+        snprintf(buf, n, "just now");
+    else if (min < 60)
+        snprintf(buf, n, "%.0f min ago", floor(min));
+    else if (min < 48 * 60)
+        snprintf(buf, n, "%.0f h ago", floor(min / 60));
+    else
+        snprintf(buf, n, "%.0f days ago", floor(days));
+}
+
+void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
+{
+    const sw_grid *g = &s->grid;
+    char buf[64];
+    fprintf(f, "Scenario   %s  (%s)\n", sc->title, sc->path);
+    fprintf(f, "Grid       %zu x %zu cells of %g m x %g m, %.1f km x %.1f km, %zu water cells (%.0f %%)\n",
+            g->nx, g->ny, g->dx_m, g->dy_m, g->nx * g->dx_m / 1000, g->ny * g->dy_m / 1000, s->wet_cells,
+            100.0 * (double)s->wet_cells / (double)sw_grid_cells(g));
+    fprintf(f, "Edges      west %s, east %s, south %s, north %s\n", edge_name(sc->edges[SW_WEST]),
+            edge_name(sc->edges[SW_EAST]), edge_name(sc->edges[SW_SOUTH]), edge_name(sc->edges[SW_NORTH]));
+    fprintf(f, "Layout     %s (%s)\n", s->layout->name, s->layout->summary);
+    fprintf(f, "Precision  %s (%zu-byte state values)\n", sw_precision_name(sc->precision),
+            sw_precision_bytes(sc->precision));
+    fprintf(f, "Depth      deepest water %g m (wave speed %.1f m/s)\n", s->h_max_m, sqrt(sc->gravity_ms2 * s->h_max_m));
+    fprintf(f, "Time step  dt = %.4g s: Courant number %.4g, %s-layout %dD limit %.4g (%.0f %% of it)\n", s->dt_s,
+            s->courant, s->layout->name, s->dims, s->courant_limit, 100 * s->courant / s->courant_limit);
+    sw_format_duration(sc->duration_s, buf, sizeof buf);
+    fprintf(f, "Run        %s simulated in %lld steps; %zu gauge samples each; %zu snapshots\n", buf, s->n_steps,
+            s->n_samples, s->n_snapshots);
+    fprintf(f, "Memory     %.1f MB (model state %.1f MB)\n", bytes_mb(s->total_bytes), bytes_mb(s->model_bytes));
+    if (rate && rate->cells_per_s > 0) {
+        char how[64];
+        sw_format_duration((double)s->n_steps * (double)sw_grid_cells(g) / rate->cells_per_s, buf, sizeof buf);
+        fprintf(f, "Estimate   about %s at %.3g cell-updates/s ", buf, rate->cells_per_s);
+        if (!strcmp(rate->source, "cache")) {
+            format_age(rate->age_days, how, sizeof how);
+            fprintf(f, "(cached %s, %d thread%s; --recalibrate to re-measure)\n", how, rate->threads,
+                    rate->threads == 1 ? "" : "s");
+        } else {
+            fprintf(f, "(measured now, %d thread%s; ", rate->threads, rate->threads == 1 ? "" : "s");
+            if (rate->cache_written && !rate->note[0])
+                fprintf(f, "cached in %s)\n", rate->path);
+            else if (rate->cache_written)
+                fprintf(f, "cached in %s; %s)\n", rate->path, rate->note);
+            else
+                fprintf(f, "%s)\n", rate->note[0] ? rate->note : "cache not written");
+        }
+    }
+    if (sc->n_gauges) {
+        fprintf(f, "\n%-24s %12s %12s %10s\n", "Gauge", "x (km)", "y (km)", "depth (m)");
+        for (size_t q = 0; q < sc->n_gauges; q++) {
+            const sw_gauge_spec *gp = &sc->gauges[q];
+            double d = sw_gauges_depth_at(g, s->depth_m, gp->x_m, gp->y_m);
+            fprintf(f, "%-24s %12.3f %12.3f %10.1f%s\n", gp->name, gp->x_m / 1000, gp->y_m / 1000, d,
+                    d < sc->min_depth_m ? "   warning: on land or shallower than min_depth" : "");
+        }
+    }
+}
+
+static void add_number_or_null(cJSON *o, const char *key, double v)
+{
+    if (isfinite(v))
+        cJSON_AddNumberToObject(o, key, v);
+    else
+        cJSON_AddNullToObject(o, key);
+}
+
+static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
+{
+    cJSON *o = cJSON_CreateObject();
+    if (!o)
+        return NULL;
+    const sw_grid *g = &s->grid;
+    cJSON_AddStringToObject(o, "scenario", sc->path);
+    cJSON_AddStringToObject(o, "title", sc->title);
+    cJSON *grid = cJSON_AddObjectToObject(o, "grid");
+    cJSON_AddNumberToObject(grid, "nx", (double)g->nx);
+    cJSON_AddNumberToObject(grid, "ny", (double)g->ny);
+    cJSON_AddNumberToObject(grid, "dx_m", g->dx_m);
+    cJSON_AddNumberToObject(grid, "dy_m", g->dy_m);
+    cJSON_AddNumberToObject(grid, "x0_m", g->x0_m);
+    cJSON_AddNumberToObject(grid, "y0_m", g->y0_m);
+    cJSON_AddNumberToObject(grid, "water_cells", (double)s->wet_cells);
+    cJSON_AddStringToObject(o, "layout", s->layout->name);
+    cJSON_AddStringToObject(o, "precision", sw_precision_name(sc->precision));
+    cJSON_AddNumberToObject(o, "depth_max_m", s->h_max_m);
+    cJSON_AddNumberToObject(o, "dt_s", s->dt_s);
+    cJSON_AddNumberToObject(o, "courant", s->courant);
+    cJSON_AddNumberToObject(o, "courant_limit", s->courant_limit);
+    cJSON_AddNumberToObject(o, "dims", s->dims);
+    cJSON_AddNumberToObject(o, "steps", (double)s->n_steps);
+    cJSON_AddNumberToObject(o, "duration_s", sc->duration_s);
+    cJSON_AddNumberToObject(o, "memory_bytes", (double)s->total_bytes);
+    if (rate && rate->cells_per_s > 0) {
+        cJSON_AddNumberToObject(o, "estimated_seconds",
+                                (double)s->n_steps * (double)sw_grid_cells(g) / rate->cells_per_s);
+        cJSON_AddNumberToObject(o, "rate_cells_per_s", rate->cells_per_s);
+        cJSON_AddStringToObject(o, "rate_source", rate->source);
+        cJSON_AddNumberToObject(o, "rate_age_days", rate->age_days);
+        cJSON_AddNumberToObject(o, "rate_threads", rate->threads);
+        if (rate->cache_written || !strcmp(rate->source, "cache"))
+            cJSON_AddStringToObject(o, "rate_cache_file", rate->path);
+        else
+            cJSON_AddNullToObject(o, "rate_cache_file");
+        if (rate->note[0])
+            cJSON_AddStringToObject(o, "rate_note", rate->note);
+        else
+            cJSON_AddNullToObject(o, "rate_note");
+    }
+    cJSON *gs = cJSON_AddArrayToObject(o, "gauges");
+    for (size_t q = 0; q < sc->n_gauges; q++) {
+        cJSON *e = cJSON_CreateObject();
+        double d = sw_gauges_depth_at(g, s->depth_m, sc->gauges[q].x_m, sc->gauges[q].y_m);
+        cJSON_AddStringToObject(e, "name", sc->gauges[q].name);
+        cJSON_AddNumberToObject(e, "x_m", sc->gauges[q].x_m);
+        cJSON_AddNumberToObject(e, "y_m", sc->gauges[q].y_m);
+        cJSON_AddNumberToObject(e, "depth_m", d);
+        cJSON_AddBoolToObject(e, "on_land", d < sc->min_depth_m);
+        cJSON_AddItemToArray(gs, e);
+    }
+    return o;
+}
+
+char *sw_report_plan_json(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
+{
+    cJSON *o = plan_object(sc, s, rate);
+    char *txt = o ? cJSON_Print(o) : NULL;
+    cJSON_Delete(o);
+    return txt;
+}
+
+void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_run_result *r)
+{
+    char a[48], pt[48], wall[48];
+    sw_format_duration(r->wall_s, wall, sizeof wall);
+    fprintf(f, "\n%s: layout %s in %s precision, %lld steps of %.4g s, %s wall time with %d thread%s "
+            "(%.3g cell-updates/s)\n", sc->title, s->layout->name, sw_precision_name(sc->precision), r->steps, s->dt_s, wall, r->threads, r->threads == 1 ? "" : "s",
+            r->cell_updates_per_s);
+    if (r->n_gauges) {
+        fprintf(f, "\n%-24s %9s %16s %10s %16s %10s\n", "Gauge", "depth m", "first arrival", "peak m",
+                "peak at", "trough m");
+        for (size_t q = 0; q < r->n_gauges; q++) {
+            const sw_gauge_result *g = &r->gauge[q];
+            if (g->dry) {
+                fprintf(f, "%-24s %9.1f %16s\n", g->name, g->depth_m, "(on land: no water cell)");
+                continue;
+            }
+            sw_format_duration(g->arrival_s, a, sizeof a);
+            sw_format_duration(g->peak_time_s, pt, sizeof pt);
+            fprintf(f, "%-24s %9.1f %16s %10.3f %16s %10.3f\n", g->name, g->depth_m,
+                    isnan(g->arrival_s) ? "not reached" : a, g->peak_m, pt, g->trough_m);
+        }
+        fprintf(f, "(arrival: first time |eta| >= %g m; times after the source)\n", sc->arrival_threshold_m);
+    }
+    fprintf(f, "\nWritten:\n");
+    if (r->gauges_path[0])
+        fprintf(f, "  %s\n", r->gauges_path);
+    fprintf(f, "  %s\n", r->maps_path);
+    if (r->snapshots_path[0])
+        fprintf(f, "  %s\n", r->snapshots_path);
+    fprintf(f, "\n%s\n", sw_caution());
+}
+
+char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_result *r)
+{
+    cJSON *o = plan_object(sc, s, 0);
+    if (!o)
+        return NULL;
+    cJSON_DeleteItemFromObject(o, "gauges");
+    cJSON *run = cJSON_AddObjectToObject(o, "run");
+    cJSON_AddNumberToObject(run, "steps", (double)r->steps);
+    cJSON_AddNumberToObject(run, "end_time_s", r->end_time_s);
+    cJSON_AddNumberToObject(run, "wall_s", r->wall_s);
+    cJSON_AddNumberToObject(run, "threads", r->threads);
+    cJSON_AddNumberToObject(run, "cell_updates_per_s", r->cell_updates_per_s);
+    cJSON_AddNumberToObject(run, "volume_start_m3", r->volume_start_m3);
+    cJSON_AddNumberToObject(run, "volume_end_m3", r->volume_end_m3);
+    cJSON_AddNumberToObject(run, "arrival_threshold_m", sc->arrival_threshold_m);
+    cJSON *gs = cJSON_AddArrayToObject(o, "gauges");
+    for (size_t q = 0; q < r->n_gauges; q++) {
+        const sw_gauge_result *g = &r->gauge[q];
+        cJSON *e = cJSON_CreateObject();
+        cJSON_AddStringToObject(e, "name", g->name);
+        cJSON_AddNumberToObject(e, "x_m", g->x_m);
+        cJSON_AddNumberToObject(e, "y_m", g->y_m);
+        cJSON_AddNumberToObject(e, "depth_m", g->depth_m);
+        cJSON_AddBoolToObject(e, "dry", g->dry);
+        add_number_or_null(e, "arrival_s", g->arrival_s);
+        add_number_or_null(e, "peak_m", g->peak_m);
+        add_number_or_null(e, "peak_time_s", g->peak_time_s);
+        add_number_or_null(e, "trough_m", g->trough_m);
+        add_number_or_null(e, "trough_time_s", g->trough_time_s);
+        cJSON_AddItemToArray(gs, e);
+    }
+    cJSON *files = cJSON_AddObjectToObject(o, "files");
+    if (r->gauges_path[0])
+        cJSON_AddStringToObject(files, "gauges", r->gauges_path);
+    cJSON_AddStringToObject(files, "maps", r->maps_path);
+    if (r->snapshots_path[0])
+        cJSON_AddStringToObject(files, "snapshots", r->snapshots_path);
+    cJSON_AddStringToObject(o, "caution", sw_caution());
+    char *txt = cJSON_Print(o);
+    cJSON_Delete(o);
+    return txt;
+}

@@ -1,0 +1,33 @@
+/* report.h - what a person reads: the plan of a run, its summary table, and their JSON twins. */
+#ifndef SW_REPORT_H
+#define SW_REPORT_H
+
+#include <stddef.h>
+#include <stdio.h>
+
+#include "studies/estimate.h"
+#include "run/run.h"
+#include "inputs/scenario.h"
+#include "run/setup.h"
+
+/* Formats a duration in seconds as "1 h 02 min 03 s", "12 min 30 s" or "42.5 s"; "-" for NaN. */
+void sw_format_duration(double s, char *buf, size_t n);
+
+/* Prints the plan of a run (grid, layout, dt and Courant number against the limit, steps, memory,
+ * gauges with their depth and warnings). With a rate (NULL or cells_per_s <= 0 = unknown: no
+ * estimate), one line gives the estimated time, cells x steps / rate, with the rate and where it
+ * came from (cache and its age, or measured now and whether the cache was written). */
+void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate);
+
+/* The plan as a JSON object (string owned by the caller, free()). NULL when out of memory. With a
+ * rate it has "estimated_seconds", "rate_cells_per_s", "rate_source" ("cache" or "measured"),
+ * "rate_age_days", "rate_threads", "rate_cache_file" (null when none) and "rate_note" (null when none). */
+char *sw_report_plan_json(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate);
+
+/* Prints the end-of-run summary: a table per gauge, the files written and the caution. */
+void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_run_result *r);
+
+/* The summary as a JSON object (string owned by the caller, free()). NULL when out of memory. */
+char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_result *r);
+
+#endif

@@ -1,0 +1,283 @@
+/* run.c - one complete run (see run.h).
+ *
+ * One parallel region spans the whole time loop: each step's kernels and the tracker bind their
+ * `omp for` loops to it; gauges, snapshots and progress run in a `single` between steps. No
+ * result depends on the number of threads: every cell is computed the same way by whichever
+ * thread owns its row, and no sum runs across cells in the loop.
+ */
+#define _POSIX_C_SOURCE 200809L
+#include "run/run.h"
+
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+
+#include "observers/gauges.h"
+#include "model/model.h"
+#include "outputs/ncwrite.h"
+#include "base/omp_compat.h"
+#include "observers/tracker.h"
+
+const char *sw_caution(void)
+{
+    return "CAUTION: results come from a simplified linear model for exploring scenarios. They are not a "
+           "hazard forecast or warning. In an emergency follow official warning agencies and local "
+           "emergency management. Planning decisions need qualified professionals and local codes.";
+}
+
+sw_status sw_make_dirs(const char *path, sw_error *err)
+{
+    char buf[SW_PATH_MAX];
+    if (snprintf(buf, sizeof buf, "%s", path) >= (int)sizeof buf)
+        return sw_fail(err, SW_ERR_RANGE, "output folder path too long: %s", path);
+    for (char *p = buf + 1;; p++) {
+        char c = *p;
+        if (c == '/' || c == '\0') {
+            *p = '\0';
+            if (mkdir(buf, 0777) != 0 && errno != EEXIST)
+                return sw_fail(err, SW_ERR_IO, "cannot create folder %s: %s", buf, strerror(errno));
+            *p = c;
+        }
+        if (c == '\0')
+            break;
+    }
+    struct stat st;
+    if (stat(path, &st) != 0 || !S_ISDIR(st.st_mode))
+        return sw_fail(err, SW_ERR_IO, "%s exists and is not a folder", path);
+    return SW_OK;
+}
+
+/* Everything the loop touches, so the parallel region reads one struct. */
+typedef struct {
+    const sw_scenario *sc;
+    const sw_setup *setup;
+    const sw_run_options *opt;
+    sw_model *model;
+    sw_tracker *tracker;
+    sw_gauges *gauges;
+    sw_ncw_snapshots *snaps;
+    double *frame;            /* [ny * nx] snapshot buffer, or NULL */
+    double next_sample, next_snapshot, next_progress;
+    double t_start;
+    int stop;                 /* set inside `single`: 0 go on, 1 interrupted, 2 failed */
+    sw_error loop_err;
+} run_ctx;
+
+static void snapshot_frame(run_ctx *c)
+{
+    const sw_grid *g = sw_model_grid(c->model);
+    const unsigned char *wet = sw_model_wet(c->model);
+    double *tmp_u = malloc(2 * g->nx * sizeof(double));
+    if (!tmp_u) {
+        sw_fail(&c->loop_err, SW_ERR_NOMEM, "out of memory writing a snapshot");
+        c->stop = 2;
+        return;
+    }
+    for (size_t j = 0; j < g->ny; j++) {
+        double *row = c->frame + j * g->nx;
+        sw_model_centre_row(c->model, j, row, tmp_u, tmp_u + g->nx);
+        for (size_t i = 0; i < g->nx; i++)
+            if (!wet[j * g->nx + i])
+                row[i] = NAN;
+    }
+    free(tmp_u);
+    if (sw_ncw_snapshots_append(c->snaps, sw_model_time(c->model), c->frame, &c->loop_err) != SW_OK)
+        c->stop = 2;
+}
+
+/* The observers at the model's present time, by one thread: gauges (watched always, sampled at
+ * the interval and at the last step) and snapshots. Also used for the initial state. */
+static void observe(run_ctx *c, int last)
+{
+    sw_model *m = c->model;
+    double now = sw_model_time(m);
+    sw_gauges_watch(c->gauges, m, c->sc->arrival_threshold_m);
+    if (now >= c->next_sample - 1e-9 * c->sc->gauge_interval_s || last) {
+        if (sw_gauges_sample(c->gauges, m, &c->loop_err) != SW_OK) {
+            c->stop = 2;
+            return;
+        }
+        while (c->next_sample <= now + 1e-9 * c->sc->gauge_interval_s)
+            c->next_sample += c->sc->gauge_interval_s;
+    }
+    if (c->snaps && now >= c->next_snapshot - 1e-9 * c->sc->snapshot_interval_s) {
+        snapshot_frame(c);
+        while (c->next_snapshot <= now + 1e-9 * c->sc->snapshot_interval_s)
+            c->next_snapshot += c->sc->snapshot_interval_s;
+    }
+}
+
+/* Work between steps, by one thread: the observers, then interruption and progress. */
+static void between_steps(run_ctx *c, int last)
+{
+    observe(c, last);
+    if (c->stop)
+        return;
+    sw_model *m = c->model;
+    double now = sw_model_time(m);
+    if (c->opt->stop && *c->opt->stop) {
+        c->stop = 1;
+        return;
+    }
+    if (c->opt->progress) {
+        double wall = omp_get_wtime() - c->t_start;
+        if (wall >= c->next_progress || last) {
+            long long step = (long long)llround(now / sw_model_dt(m));
+            sw_progress p = {
+                .step = step, .n_steps = c->setup->n_steps, .sim_time_s = now,
+                .duration_s = (double)c->setup->n_steps * sw_model_dt(m), .elapsed_s = wall,
+                .remaining_s = step > 0 ? wall * (double)(c->setup->n_steps - step) / (double)step : NAN,
+                .cell_updates_per_s = wall > 0 ? (double)step * (double)sw_grid_cells(&c->setup->grid) / wall : 0,
+            };
+            c->opt->progress(&p, c->opt->progress_user);
+            c->next_progress = wall + 0.5;
+        }
+    }
+}
+
+static void time_loop(run_ctx *c)
+{
+    const long long n_steps = c->setup->n_steps;
+    SW_OMP(parallel)
+    {
+        for (long long n = 0; n < n_steps; n++) {
+            sw_model_step(c->model);   /* also updates the tracker (attached in sw_run) */
+            SW_OMP(single)
+            {
+                sw_model_tick(c->model);
+                between_steps(c, n + 1 == n_steps);
+            }
+            /* the barrier at the end of `single` publishes c->stop to every thread */
+            if (c->stop)
+                break;
+        }
+    }
+}
+
+static void file_path(char *out, const sw_run_options *opt, const char *name)
+{
+    snprintf(out, SW_PATH_MAX, "%s/%s%s", opt->out_dir, opt->file_prefix ? opt->file_prefix : "", name);
+}
+
+static void fill_results(const run_ctx *c, sw_run_result *res)
+{
+    res->n_gauges = c->sc->n_gauges;
+    for (size_t q = 0; q < c->sc->n_gauges; q++) {
+        sw_gauge_result *r = &res->gauge[q];
+        const sw_gauge_spec *sp = &c->sc->gauges[q];
+        sw_gauge_stats st = sw_gauges_stats(c->gauges, q);
+        snprintf(r->name, sizeof r->name, "%s", sp->name);
+        r->x_m = sp->x_m;
+        r->y_m = sp->y_m;
+        r->depth_m = sw_gauges_depth(c->gauges, q);
+        r->dry = sw_gauges_dry(c->gauges, q);
+        r->arrival_s = st.arrival_s;
+        r->peak_m = st.peak_m;
+        r->peak_time_s = st.peak_time_s;
+        r->trough_m = st.trough_m;
+        r->trough_time_s = st.trough_time_s;
+    }
+}
+
+sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_options *opt,
+                 sw_run_result *res, sw_error *err)
+{
+    memset(res, 0, sizeof *res);
+    run_ctx c = {.sc = sc, .setup = setup, .opt = opt};
+    sw_status rc = opt->sink ? SW_OK : sw_make_dirs(opt->out_dir, err);
+    if (rc != SW_OK)
+        return rc;
+    if (opt->threads > 0)
+        omp_set_num_threads(opt->threads);
+    res->threads = omp_get_max_threads();
+
+    sw_model_config cfg = {
+        .layout = setup->layout, .grid = setup->grid, .depth_m = setup->depth_m, .eta0_m = setup->eta0_m,
+        .min_depth_m = sc->min_depth_m, .gravity_ms2 = sc->gravity_ms2, .dt_s = setup->dt_s,
+        .precision = sc->precision,
+    };
+    memcpy(cfg.edges, sc->edges, sizeof cfg.edges);
+
+    sw_run_meta meta = {
+        .title = sc->title, .history = opt->history ? opt->history : "", .scenario_text = sc->text ? sc->text : "",
+        .layout = setup->layout->name, .precision = sw_precision_name(sc->precision), .version = SW_VERSION, .caution = sw_caution(), .time_origin = sc->origin,
+        .dt_s = setup->dt_s, .courant = setup->courant, .courant_limit = setup->courant_limit,
+        .arrival_threshold_m = sc->arrival_threshold_m, .gravity_ms2 = sc->gravity_ms2,
+    };
+    if (!opt->sink) {   /* with a sink the paths stay "" */
+        file_path(res->gauges_path, opt, "gauges.nc");
+        file_path(res->maps_path, opt, "maps.nc");
+    }
+
+    rc = sw_model_create(&cfg, &c.model, err);
+    if (rc == SW_OK)
+        rc = sw_tracker_create(c.model, sc->arrival_threshold_m, res->threads, &c.tracker, err);
+    if (rc == SW_OK)
+        rc = sw_tracker_attach(c.tracker, c.model, err);   /* after omp_set_num_threads above */
+    if (rc == SW_OK)
+        rc = sw_gauges_create(c.model, setup->depth_m, sc->gauges, sc->n_gauges, setup->n_samples, &c.gauges, err);
+    if (rc == SW_OK && sc->snapshot_interval_s > 0 && !opt->sink) {
+        file_path(res->snapshots_path, opt, "snapshots.nc");
+        c.frame = malloc(sw_grid_cells(&setup->grid) * sizeof(double));
+        rc = c.frame ? sw_ncw_snapshots_open(res->snapshots_path, &meta, &setup->grid, setup->depth_m,
+                                             sw_model_wet(c.model), &c.snaps, err)
+                     : sw_fail(err, SW_ERR_NOMEM, "out of memory for the snapshot buffer");
+    }
+    if (rc == SW_OK) {
+        res->volume_start_m3 = sw_model_volume(c.model);
+        /* the initial state is sample 0 and snapshot 0 */
+        c.next_sample = 0;
+        c.next_snapshot = 0;
+        c.t_start = omp_get_wtime();
+        c.next_progress = 0.5;
+        observe(&c, 0);
+        if (!c.stop)
+            time_loop(&c);
+        res->wall_s = omp_get_wtime() - c.t_start;
+        res->steps = (long long)llround(sw_model_time(c.model) / sw_model_dt(c.model));
+        res->end_time_s = sw_model_time(c.model);
+        res->cell_updates_per_s = res->wall_s > 0
+            ? (double)res->steps * (double)sw_grid_cells(&setup->grid) / res->wall_s : 0;
+        res->volume_end_m3 = sw_model_volume(c.model);
+        if (c.stop == 1)
+            rc = sw_fail(err, SW_ERR_INTERRUPTED, "run interrupted at t = %g s; no output files were written",
+                         sw_model_time(c.model));
+        else if (c.stop == 2) {
+            *err = c.loop_err;
+            rc = err->code;
+        } else if (sw_tracker_nonfinite(c.tracker))
+            rc = sw_fail(err, SW_ERR_UNSTABLE, "the run blew up (non-finite elevation); reduce [run] courant "
+                         "or dt");
+    }
+    sw_map_set maps = {0};
+    if (rc == SW_OK)
+        rc = sw_tracker_maps(c.tracker, c.model, setup->depth_m, &maps, err);
+    if (rc == SW_OK) {
+        sw_gauge_table table;
+        res->max_abs_eta_m = sw_tracker_max_abs(c.tracker);
+        res->noise_index = sw_tracker_noise(c.tracker, maps.wet);
+        sw_gauges_table(c.gauges, &table);
+        fill_results(&c, res);
+        if (opt->sink)
+            rc = opt->sink(&maps, &table, opt->sink_user, err);   /* instead of the files */
+        else if (table.n_stations > 0)
+            rc = sw_ncw_gauges(res->gauges_path, &meta, &table, err);
+        else
+            res->gauges_path[0] = '\0';   /* no gauges, no gauge file */
+        if (rc == SW_OK && !opt->sink)
+            rc = sw_ncw_maps(res->maps_path, &meta, &maps, err);
+        if (rc == SW_OK && c.snaps) {
+            rc = sw_ncw_snapshots_commit(c.snaps, err);
+            c.snaps = NULL;
+        }
+    }
+    sw_ncw_snapshots_abort(c.snaps);
+    free(c.frame);
+    sw_gauges_free(c.gauges);
+    sw_tracker_free(c.tracker);
+    sw_model_free(c.model);
+    return rc;
+}

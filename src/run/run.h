@@ -1,0 +1,88 @@
+/* run.h - one complete run: model, observers and writers, from a setup to files and a summary.
+ *
+ * Data flow: setup (seabed, source, dt) -> model (layout + state + stepper) -> observers (gauges,
+ * arrival and extreme tracking) -> writers (NetCDF) -> the summary returned to the caller.
+ */
+#ifndef SW_RUN_H
+#define SW_RUN_H
+
+#include <signal.h>
+#include <stddef.h>
+
+#include "outputs/ncwrite.h"
+#include "inputs/scenario.h"
+#include "run/setup.h"
+#include "base/status.h"
+
+/* Progress of a running model, passed to the caller's callback about twice a second. */
+typedef struct {
+    long long step, n_steps;     /* steps done, steps in the run */
+    double sim_time_s;           /* simulated time reached, s */
+    double duration_s;           /* simulated time at the end, s */
+    double elapsed_s;            /* wall-clock time so far, s */
+    double remaining_s;          /* estimated wall-clock time left, s */
+    double cell_updates_per_s;   /* water and land cells advanced per wall-clock second */
+} sw_progress;
+
+typedef void (*sw_progress_fn)(const sw_progress *p, void *user);
+
+/* Receives a finished run's maps and gauge series in place of the files (see sw_run_options.sink).
+ * The arrays are valid only during the call. Returns SW_OK, or a failure that sw_run returns. */
+typedef sw_status (*sw_run_sink_fn)(const sw_map_set *maps, const sw_gauge_table *gauges, void *user,
+                                    sw_error *err);
+
+typedef struct {
+    const char *out_dir;          /* folder for the output files; created if missing */
+    const char *file_prefix;      /* put before each file name ("" for none; NULL = "") */
+    const char *history;          /* the command line, for the history attribute ("" if none) */
+    int threads;                  /* OpenMP threads; 0 = the OpenMP default */
+    sw_progress_fn progress;      /* NULL = no progress reports */
+    void *progress_user;          /* passed to progress */
+    volatile sig_atomic_t *stop;  /* when it becomes non-zero the run stops (SW_ERR_INTERRUPTED); may be NULL */
+    sw_run_sink_fn sink;          /* non-NULL: hand maps and gauge series to sink and write no file at all
+                                   * (out_dir and file_prefix unused, no snapshots); sweep members use it,
+                                   * since NetCDF calls must not run in several threads at once */
+    void *sink_user;              /* passed to sink */
+} sw_run_options;
+
+/* What a gauge saw (times in s since the origin; NaN when never reached or the gauge is dry). */
+typedef struct {
+    char name[SW_NAME_MAX];
+    double x_m, y_m;
+    double depth_m;               /* still-water depth at the gauge, m (negative on land) */
+    int dry;                      /* 1 when no water cell surrounds it */
+    double arrival_s;             /* first time |eta| >= threshold */
+    double peak_m, peak_time_s;   /* highest elevation and when */
+    double trough_m, trough_time_s; /* lowest elevation and when */
+} sw_gauge_result;
+
+typedef struct {
+    size_t n_gauges;
+    sw_gauge_result gauge[SW_MAX_GAUGES];
+    char gauges_path[SW_PATH_MAX];    /* files written; gauges_path is "" when there are no gauges */
+    char maps_path[SW_PATH_MAX];
+    char snapshots_path[SW_PATH_MAX]; /* "" when no snapshots were asked for */
+    int threads;                      /* threads used */
+    long long steps;                  /* steps taken */
+    double end_time_s;                /* simulated time at the end, s */
+    double wall_s;                    /* wall-clock time of the time loop, s */
+    double cell_updates_per_s;        /* grid cells x steps / wall_s */
+    double volume_start_m3, volume_end_m3; /* displaced water volume at start and end, m3 */
+    double max_abs_eta_m;             /* largest |eta| anywhere, m */
+    double noise_index;               /* grid-scale noise of the eta_max map (sw_tracker_noise) */
+} sw_run_result;
+
+/* The caution every run, file and report carries: a simplified linear model, not a forecast. */
+const char *sw_caution(void);
+
+/* Runs the scenario with the setup built from it and writes <out_dir>/<prefix>gauges.nc (when there
+ * are gauges), maps.nc and (with a snapshot interval) snapshots.nc, each only once complete. Fills *res. On failure (I/O,
+ * interruption, a run that blew up) returns the status with err naming the cause; no output file
+ * is left half-written, and files of an earlier run at the same paths are kept. */
+sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_options *opt,
+                 sw_run_result *res, sw_error *err);
+
+/* Creates folder `path` and its parents as needed (like mkdir -p). */
+sw_status sw_make_dirs(const char *path, sw_error *err);
+
+#endif

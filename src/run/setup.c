@@ -1,0 +1,137 @@
+/* setup.c - scenario -> seabed, source, layout and time step (see setup.h). */
+#include "run/setup.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "model/model.h"
+#include "inputs/seabed.h"
+#include "inputs/source.h"
+#include "observers/tracker.h"
+
+void sw_setup_free(sw_setup *s)
+{
+    if (!s)
+        return;
+    free(s->depth_m);
+    free(s->eta0_m);
+    memset(s, 0, sizeof *s);
+}
+
+/* Picks the layout, or explains which ones exist. */
+static sw_status choose_layout(const sw_scenario *sc, sw_setup *s, sw_error *err)
+{
+    int known = 0;
+    s->layout = sw_layout_find(sc->layout, &known);
+    if (s->layout)
+        return SW_OK;
+    if (known)
+        return sw_fail(err, SW_ERR_UNSUPPORTED,
+                       "%s:%d: [run] layout = %s: not available in this version yet (available: %s)",
+                       sc->path, sc->layout_line, sc->layout, sw_layout_names());
+    return sw_fail(err, SW_ERR_RANGE, "%s:%d: [run] layout = %s: unknown (accepted: A, B, C, D, E)",
+                   sc->path, sc->layout_line, sc->layout);
+}
+
+/* Sets dt from the Courant fraction, or checks the explicit dt against the limit. */
+static sw_status choose_dt(const sw_scenario *sc, sw_setup *s, sw_error *err)
+{
+    const sw_grid *g = &s->grid;
+    s->dims = (g->nx == 1 || g->ny == 1) ? 1 : 2;
+    s->dt_limit_s = sw_model_dt_limit(s->layout, g, s->depth_m, sc->min_depth_m, sc->gravity_ms2, s->dims);
+    s->courant_limit = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_limit_s);
+    if (sc->dt_s > 0) {
+        s->dt_s = sc->dt_s;
+        s->courant = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_s);
+        if (s->dt_s > s->dt_limit_s * (1 + 1e-12))
+            return sw_fail(err, SW_ERR_UNSTABLE,
+                           "%s:%d: [run] dt = %g s: Courant number %.4g exceeds the %s-layout limit %.4g "
+                           "(largest stable dt = %.4g s at the deepest water, %g m)",
+                           sc->path, sc->dt_line, sc->dt_s, s->courant, s->layout->name, s->courant_limit,
+                           s->dt_limit_s, s->h_max_m);
+    } else {
+        s->dt_s = sc->courant_fraction * s->dt_limit_s;
+        s->courant = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_s);
+    }
+    double steps = ceil(sc->duration_s / s->dt_s - 1e-9);
+    if (steps > 1e12)
+        return sw_fail(err, SW_ERR_RANGE, "%s: the run needs %.3g steps (duration %g s / dt %g s); "
+                       "shorten the duration or coarsen the grid", sc->path, steps, sc->duration_s, s->dt_s);
+    s->n_steps = (long long)steps;
+    return SW_OK;
+}
+
+/* Every gauge must lie in the domain. The parser checks this when [grid] is given; a grid taken
+ * from the seabed file is only known here. */
+static sw_status gauges_inside(const sw_scenario *sc, const sw_grid *g, sw_error *err)
+{
+    double x1 = g->x0_m + (double)g->nx * g->dx_m, y1 = g->y0_m + (double)g->ny * g->dy_m;
+    for (size_t q = 0; q < sc->n_gauges; q++) {
+        const sw_gauge_spec *gp = &sc->gauges[q];
+        if (gp->x_m < g->x0_m || gp->x_m > x1 || gp->y_m < g->y0_m || gp->y_m > y1)
+            return sw_fail(err, SW_ERR_RANGE, "%s:%d: [gauges] %s = %g m, %g m: outside the domain "
+                           "(accepted: x from %g to %g m, y from %g to %g m)", sc->path, gp->line, gp->name,
+                           gp->x_m, gp->y_m, g->x0_m, x1, g->y0_m, y1);
+    }
+    return SW_OK;
+}
+
+sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
+{
+    memset(s, 0, sizeof *s);
+    sw_status rc = choose_layout(sc, s, err);
+    if (rc == SW_OK)
+        rc = sw_seabed_grid(sc, err);
+    if (rc == SW_OK)
+        rc = gauges_inside(sc, &sc->grid, err);
+    if (rc != SW_OK)
+        return rc;
+    s->grid = sc->grid;
+    size_t n = sw_grid_cells(&s->grid);
+    s->depth_m = malloc(n * sizeof(double));
+    s->eta0_m = malloc(n * sizeof(double));
+    if (!s->depth_m || !s->eta0_m) {
+        sw_setup_free(s);
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the %zu x %zu input fields", s->grid.nx, s->grid.ny);
+    }
+    rc = sw_seabed_build(sc, s->depth_m, err);
+    if (rc == SW_OK)
+        rc = sw_source_build(sc, s->eta0_m, err);
+    if (rc != SW_OK) {
+        sw_setup_free(s);
+        return rc;
+    }
+    for (size_t k = 0; k < n; k++)
+        if (s->depth_m[k] >= sc->min_depth_m) {
+            s->wet_cells++;
+            s->h_max_m = fmax(s->h_max_m, s->depth_m[k]);
+        }
+    if (s->wet_cells == 0) {
+        sw_setup_free(s);
+        return sw_fail(err, SW_ERR_RANGE, "%s: the domain has no water: every cell is shallower than "
+                       "[seabed] min_depth = %g m", sc->path, sc->min_depth_m);
+    }
+    rc = choose_dt(sc, s, err);
+    if (rc != SW_OK) {
+        sw_setup_free(s);
+        return rc;
+    }
+    double run_end = (double)s->n_steps * s->dt_s;
+    s->n_samples = (size_t)floor(run_end / sc->gauge_interval_s) + 2;
+    s->n_snapshots = sc->snapshot_interval_s > 0 ? (size_t)floor(run_end / sc->snapshot_interval_s) + 1 : 0;
+    s->model_bytes = sw_model_bytes_for(&s->grid, sc->precision);
+    s->total_bytes = sw_setup_total_bytes(sc, s);
+    return SW_OK;
+}
+
+size_t sw_setup_total_bytes(const sw_scenario *sc, const sw_setup *s)
+{
+    const size_t n = sw_grid_cells(&s->grid);
+    return s->model_bytes
+         + n * 2 * sizeof(double)                                  /* input depth and initial elevation */
+         + n * sw_tracker_bytes_per_cell()                          /* running maps during the run */
+         + n * 5 * sizeof(double)                                   /* the five result maps written */
+         + (s->n_snapshots ? n * sizeof(double) : 0)                /* one snapshot frame */
+         + sc->n_gauges * s->n_samples * 3 * sizeof(double);       /* gauge series */
+}

@@ -1,0 +1,382 @@
+/* bench.c - step rates against STREAM triad, interleaved in one process (see bench.h). */
+#define _POSIX_C_SOURCE 200809L
+#include "studies/bench.h"
+
+#include <cjson/cJSON.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "model/layout.h"
+#include "model/model.h"
+#include "base/omp_compat.h"
+#include "base/real.h"
+#include "observers/tracker.h"
+
+#define MAX_ROUNDS 32
+#define MEASURE_S 0.4   /* aim for measurements of about this long */
+
+typedef struct {
+    double v[MAX_ROUNDS];
+    int n;
+} samples;
+
+static int cmp_double(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+static sw_bench_stat summarise(const samples *s)
+{
+    sw_bench_stat st = {0, 0, 0, s->n};
+    if (s->n == 0)
+        return st;
+    double v[MAX_ROUNDS];
+    memcpy(v, s->v, (size_t)s->n * sizeof(double));
+    qsort(v, (size_t)s->n, sizeof(double), cmp_double);
+    st.min = v[0];
+    st.max = v[s->n - 1];
+    st.median = s->n % 2 ? v[s->n / 2] : 0.5 * (v[s->n / 2 - 1] + v[s->n / 2]);
+    return st;
+}
+
+static void push(samples *s, double x)
+{
+    if (s->n < MAX_ROUNDS)
+        s->v[s->n++] = x;
+}
+
+static size_t llc_bytes(void)
+{
+    long v = sysconf(_SC_LEVEL3_CACHE_SIZE);
+    if (v <= 0)
+        v = sysconf(_SC_LEVEL2_CACHE_SIZE);
+    return v > 0 ? (size_t)v : (size_t)32 << 20;
+}
+
+double sw_bench_triad(size_t n, int repeats)
+{
+    double *a = malloc(n * sizeof(double)), *b = malloc(n * sizeof(double)), *c = malloc(n * sizeof(double));
+    double best = 0;
+    if (a && b && c) {
+        SW_OMP(parallel for schedule(static))
+        for (size_t i = 0; i < n; i++) {   /* first touch by the threads that will use each page */
+            a[i] = 0;
+            b[i] = 1;
+            c[i] = 2;
+        }
+        const double s = 3.0;
+        for (int r = 0; r < repeats; r++) {
+            double t0 = omp_get_wtime();
+            SW_OMP(parallel for simd schedule(static))
+            for (size_t i = 0; i < n; i++)
+                a[i] = b[i] + s * c[i];
+            double t = omp_get_wtime() - t0;
+            if (t > 0 && 3.0 * 8.0 * (double)n / t > best)
+                best = 3.0 * 8.0 * (double)n / t;
+        }
+        if (a[n / 2] != 7.0)   /* keep the loop honest */
+            best = 0;
+    }
+    free(a);
+    free(b);
+    free(c);
+    return best;
+}
+
+/* The source's e-folding radius, cells: a 20 km hump on 1 km cells, as a fault or a landslide makes
+ * one, small beside the basin as in a real domain. Tracking costs most where its maps still change
+ * (rising and falling water): a hump an eighth of the basin wide keeps a quarter of the grid changing. */
+#define SOURCE_CELLS 20.0
+
+/* A square basin of n x n cells, 1000 m deep, with a hump, at 90 % of the layout's limit. */
+static sw_model *make_model(const sw_layout *lay, size_t n, sw_precision precision, sw_error *err)
+{
+    sw_grid g = {.nx = n, .ny = n, .dx_m = 1000, .dy_m = 1000};
+    double *depth = malloc(n * n * sizeof(double));
+    double *eta = malloc(n * n * sizeof(double));
+    sw_model *m = NULL;
+    if (!depth || !eta) {
+        sw_fail(err, SW_ERR_NOMEM, "out of memory for a %zu x %zu benchmark grid", n, n);
+    } else {
+        SW_OMP(parallel for schedule(static))
+        for (size_t j = 0; j < n; j++)
+            for (size_t i = 0; i < n; i++) {
+                double x = ((double)i - (double)n / 2) / SOURCE_CELLS, y = ((double)j - (double)n / 2) / SOURCE_CELLS;
+                depth[j * n + i] = 1000;
+                eta[j * n + i] = exp(-(x * x + y * y));
+            }
+        sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta, .min_depth_m = 1,
+                               .gravity_ms2 = 9.81, .precision = precision};
+        cfg.dt_s = 0.9 * sw_model_dt_limit(lay, &g, depth, 1, 9.81, 2);
+        sw_model_create(&cfg, &m, err);
+    }
+    free(depth);
+    free(eta);
+    return m;
+}
+
+/* Seconds for `steps` steps as a run takes them (step, then the clock's tick), with arrival and
+ * extreme tracking attached when t is not NULL, on `threads` threads. */
+static double time_steps(sw_model *m, sw_tracker *t, int threads, int steps)
+{
+    omp_set_num_threads(threads);
+    if (sw_tracker_attach(t, m, NULL) != SW_OK)   /* t = NULL detaches */
+        return NAN;   /* no memory for the tracker's thread buffers: the figure reads NaN */
+    double t0 = omp_get_wtime();
+    SW_OMP(parallel)
+    for (int k = 0; k < steps; k++) {
+        sw_model_step(m);
+        SW_OMP(single)
+        sw_model_tick(m);
+    }
+    double wall = omp_get_wtime() - t0;
+    sw_tracker_attach(NULL, m, NULL);
+    return wall;
+}
+
+/* Steps that make a measurement last about MEASURE_S, from one timed step. */
+static int steps_for(sw_model *m, int threads)
+{
+    double t = time_steps(m, NULL, threads, 1);
+    int s = t > 0 ? (int)(MEASURE_S / t) : 100;
+    return s < 2 ? 2 : s > 100000 ? 100000 : s;
+}
+
+/* Runs the NumPy script; its cell-update rate, or 0 on failure. */
+static double numpy_rate(const sw_bench_options *opt, size_t n, int steps)
+{
+    char cmd[2048];
+    snprintf(cmd, sizeof cmd, "'%s' '%s' %zu %d %s 2>/dev/null", opt->python, opt->numpy_script, n, steps,
+             opt->precision == SW_SINGLE ? "float32" : "float64");
+    FILE *p = popen(cmd, "r");
+    if (!p)
+        return 0;
+    char buf[4096];
+    size_t got = fread(buf, 1, sizeof buf - 1, p);
+    buf[got] = '\0';
+    if (pclose(p) != 0)
+        return 0;
+    cJSON *o = cJSON_Parse(buf);
+    const cJSON *r = cJSON_GetObjectItemCaseSensitive(o, "cell_updates_per_s");
+    double rate = cJSON_IsNumber(r) ? r->valuedouble : 0;
+    cJSON_Delete(o);
+    return rate;
+}
+
+static void say(const sw_bench_options *opt, const char *what)
+{
+    if (opt->progress)
+        opt->progress(what, opt->user);
+}
+
+/* All figures of one layout, interleaved with triad. */
+static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res,
+                              sw_bench_layout *out, sw_error *err)
+{
+    char what[128];
+    const int top = res->threads[res->n_threads - 1];
+    const size_t triad_n = res->working_set_bytes / 24;
+    snprintf(out->layout, sizeof out->layout, "%s", lay->name);
+    out->values_per_cell = lay->stream_values;
+
+    snprintf(what, sizeof what, "layout %s: building the %zu x %zu grid", lay->name, res->n_large, res->n_large);
+    say(opt, what);
+    sw_model *big = make_model(lay, res->n_large, opt->precision, err);
+    sw_model *small = big ? make_model(lay, res->n_small, opt->precision, err) : NULL;
+    sw_tracker *tr = NULL;
+    if (small && sw_tracker_create(big, 0.01, top, &tr, err) != SW_OK)
+        tr = NULL;
+    if (!big || !small || !tr) {
+        sw_tracker_free(tr);
+        sw_model_free(small);
+        sw_model_free(big);
+        return err->code ? err->code : sw_fail(err, SW_ERR_NOMEM, "out of memory for the benchmark");
+    }
+    int steps_big = steps_for(big, top), steps_small = steps_for(small, top);
+    const double cells = (double)res->n_large * (double)res->n_large;
+    const double cells_small = (double)res->n_small * (double)res->n_small;
+    samples tri = {0}, lg = {0}, lt = {0}, sm = {0}, sc[SW_BENCH_MAX_THREADS] = {{{0}, 0}}, np = {0}, npc = {0};
+    int with_numpy = opt->numpy_script && !strcmp(lay->name, "C");
+    for (int r = 0; r < opt->rounds; r++) {
+        snprintf(what, sizeof what, "layout %s: round %d of %d", lay->name, r + 1, opt->rounds);
+        say(opt, what);
+        omp_set_num_threads(top);
+        push(&tri, sw_bench_triad(triad_n, 3));
+        push(&lg, cells * steps_big / time_steps(big, NULL, top, steps_big));
+        push(&lt, cells * steps_big / time_steps(big, tr, top, steps_big));
+        push(&sm, cells_small * steps_small / time_steps(small, NULL, top, steps_small));
+        for (int q = 0; q < res->n_threads; q++)
+            push(&sc[q], cells * steps_big / time_steps(big, NULL, res->threads[q], steps_big));
+        if (with_numpy) {
+            double rate = numpy_rate(opt, res->n_large, 2);
+            if (rate > 0) {
+                push(&np, rate);
+                push(&npc, cells * steps_big / time_steps(big, NULL, top, steps_big));
+            }
+        }
+    }
+    out->triad = summarise(&tri);
+    out->large = summarise(&lg);
+    out->large_tracked = summarise(&lt);
+    out->small = summarise(&sm);
+    for (int q = 0; q < res->n_threads; q++)
+        out->scaling[q] = summarise(&sc[q]);
+    out->bandwidth = out->large.median * lay->stream_values * (double)res->real_bytes;
+    out->bandwidth_ratio = out->triad.median > 0 ? out->bandwidth / out->triad.median : 0;
+    out->tracking_cost = out->large_tracked.median > 0 ? out->large.median / out->large_tracked.median - 1 : 0;
+    long long seen, updated;
+    sw_tracker_segments(tr, &seen, &updated);
+    out->tracking_active = seen > 0 ? (double)updated / (double)seen : 0;
+    out->efficiency_2 = out->scaling[0].median > 0
+        ? out->scaling[res->n_threads - 1].median / (out->scaling[0].median * top / res->threads[0]) : 0;
+    if (with_numpy) {
+        res->numpy = summarise(&np);
+        res->numpy_c = summarise(&npc);
+        res->numpy_ratio = res->numpy.median > 0 ? res->numpy_c.median / res->numpy.median : 0;
+        if (np.n == 0)
+            snprintf(res->numpy_note, sizeof res->numpy_note, "NumPy run failed (is %s with numpy installed?)",
+                     opt->python);
+    }
+    sw_tracker_free(tr);
+    sw_model_free(small);
+    sw_model_free(big);
+    return SW_OK;
+}
+
+sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_error *err)
+{
+    memset(res, 0, sizeof *res);
+    if (opt->rounds < 3 || opt->rounds > MAX_ROUNDS)
+        return sw_fail(err, SW_ERR_USAGE, "rounds = %d (accepted: 3 to %d)", opt->rounds, MAX_ROUNDS);
+    if ((unsigned)opt->precision >= SW_PRECISIONS)
+        return sw_fail(err, SW_ERR_USAGE, "precision %d (accepted: double, single)", (int)opt->precision);
+    for (const char *p = opt->layouts; p && *p; p++) {
+        char name[2] = {*p, '\0'};
+        if (!sw_layout_find(name, NULL))
+            return sw_fail(err, SW_ERR_USAGE, "layout '%c' (accepted: %s)", *p, sw_layout_names());
+    }
+    res->precision = opt->precision;
+    res->real_bytes = (int)sw_precision_bytes(opt->precision);
+    res->llc_bytes = llc_bytes();
+    const size_t per_cell = 6 * (size_t)res->real_bytes + 1;   /* the six state arrays and the wet mask */
+    size_t target = 4 * res->llc_bytes;
+    if (target < ((size_t)2 << 30))
+        target = (size_t)2 << 30;
+    res->n_large = opt->n_large ? opt->n_large : (size_t)ceil(sqrt((double)target / (double)per_cell));
+    res->n_small = opt->n_small ? opt->n_small : 128;
+    res->working_set_bytes = res->n_large * res->n_large * per_cell;
+    if (opt->n_threads > 0) {
+        res->n_threads = opt->n_threads;
+        memcpy(res->threads, opt->threads, sizeof res->threads);
+    } else {
+        int cores = omp_get_max_threads();
+        res->n_threads = cores < SW_BENCH_MAX_THREADS ? cores : SW_BENCH_MAX_THREADS;
+        for (int q = 0; q < res->n_threads; q++)
+            res->threads[q] = q + 1;
+    }
+    if (!opt->numpy_script)
+        snprintf(res->numpy_note, sizeof res->numpy_note, "skipped");
+    for (size_t q = 0; q < sw_layout_count() && q < SW_BENCH_MAX_LAYOUTS; q++) {
+        if (opt->layouts && !strchr(opt->layouts, sw_layout_at(q)->name[0])
+            && !strchr(opt->layouts, sw_layout_at(q)->name[0] - 'A' + 'a'))
+            continue;
+        sw_status rc = bench_layout(opt, sw_layout_at(q), res, &res->layouts[res->n_layouts], err);
+        if (rc != SW_OK)
+            return rc;
+        res->n_layouts++;
+    }
+    omp_set_num_threads(res->threads[res->n_threads - 1]);
+    return SW_OK;
+}
+
+static void print_stat(FILE *f, const char *label, sw_bench_stat s, double scale, const char *unit)
+{
+    fprintf(f, "  %-34s %10.3g %s  (min %.3g, max %.3g, n = %d)\n", label, s.median / scale, unit, s.min / scale,
+           s.max / scale, s.n);
+}
+
+void sw_bench_print(FILE *f, const sw_bench_result *res)
+{
+    fprintf(f, "Grid %zu x %zu (working set %.2f GB, last-level cache %.0f MB), cache-resident grid %zu x %zu, %s precision\n",
+           res->n_large, res->n_large, (double)res->working_set_bytes / 1e9, (double)res->llc_bytes / 1048576.0,
+           res->n_small, res->n_small, sw_precision_name(res->precision));
+    for (size_t q = 0; q < res->n_layouts; q++) {
+        const sw_bench_layout *l = &res->layouts[q];
+        fprintf(f, "\nLayout %s (bytes model: %d values per cell update)\n", l->layout, l->values_per_cell);
+        print_stat(f, "triad bandwidth", l->triad, 1e9, "GB/s");
+        print_stat(f, "step, large grid", l->large, 1e6, "M cell-updates/s");
+        print_stat(f, "step + tracking, large grid", l->large_tracked, 1e6, "M cell-updates/s");
+        print_stat(f, "step, cache-resident grid", l->small, 1e6, "M cell-updates/s");
+        for (int t = 0; t < res->n_threads; t++) {
+            char label[48];
+            snprintf(label, sizeof label, "step, large grid, %d thread%s", res->threads[t], res->threads[t] > 1 ? "s" : "");
+            print_stat(f, label, l->scaling[t], 1e6, "M cell-updates/s");
+        }
+        fprintf(f, "  effective bandwidth %.3g GB/s = %.2f x triad; tracking adds %.1f %% (maps rewritten in %.2g %% of "
+               "segments); parallel efficiency %d -> %d threads %.0f %%\n",
+               l->bandwidth / 1e9, l->bandwidth_ratio, 100 * l->tracking_cost, 100 * l->tracking_active,
+               res->threads[0], res->threads[res->n_threads - 1], 100 * l->efficiency_2);
+    }
+    if (res->numpy.n > 0)
+        fprintf(f, "\nNumPy C-layout step: %.3g M cell-updates/s; shoreward C in the same rounds %.3g M: %.1f x\n",
+               res->numpy.median / 1e6, res->numpy_c.median / 1e6, res->numpy_ratio);
+    else
+        fprintf(f, "\nNumPy comparison: %s\n", res->numpy_note);
+}
+
+static cJSON *stat_json(sw_bench_stat s)
+{
+    cJSON *o = cJSON_CreateObject();
+    cJSON_AddNumberToObject(o, "median", s.median);
+    cJSON_AddNumberToObject(o, "min", s.min);
+    cJSON_AddNumberToObject(o, "max", s.max);
+    cJSON_AddNumberToObject(o, "n", s.n);
+    return o;
+}
+
+char *sw_bench_json(const sw_bench_result *res)
+{
+    cJSON *o = cJSON_CreateObject();
+    if (!o)
+        return NULL;
+    cJSON_AddNumberToObject(o, "n_large", (double)res->n_large);
+    cJSON_AddNumberToObject(o, "n_small", (double)res->n_small);
+    cJSON_AddNumberToObject(o, "working_set_bytes", (double)res->working_set_bytes);
+    cJSON_AddNumberToObject(o, "llc_bytes", (double)res->llc_bytes);
+    cJSON_AddStringToObject(o, "precision", sw_precision_name(res->precision));
+    cJSON *ls = cJSON_AddArrayToObject(o, "layouts");
+    for (size_t q = 0; q < res->n_layouts; q++) {
+        const sw_bench_layout *l = &res->layouts[q];
+        cJSON *e = cJSON_CreateObject();
+        cJSON_AddStringToObject(e, "layout", l->layout);
+        cJSON_AddNumberToObject(e, "values_per_cell", l->values_per_cell);
+        cJSON_AddItemToObject(e, "triad_bytes_per_s", stat_json(l->triad));
+        cJSON_AddItemToObject(e, "large", stat_json(l->large));
+        cJSON_AddItemToObject(e, "large_tracked", stat_json(l->large_tracked));
+        cJSON_AddItemToObject(e, "small", stat_json(l->small));
+        cJSON *sc = cJSON_AddArrayToObject(e, "scaling");
+        for (int t = 0; t < res->n_threads; t++) {
+            cJSON *x = stat_json(l->scaling[t]);
+            cJSON_AddNumberToObject(x, "threads", res->threads[t]);
+            cJSON_AddItemToArray(sc, x);
+        }
+        cJSON_AddNumberToObject(e, "bandwidth_bytes_per_s", l->bandwidth);
+        cJSON_AddNumberToObject(e, "bandwidth_ratio_to_triad", l->bandwidth_ratio);
+        cJSON_AddNumberToObject(e, "tracking_cost", l->tracking_cost);
+        cJSON_AddNumberToObject(e, "tracking_active_share", l->tracking_active);
+        cJSON_AddNumberToObject(e, "parallel_efficiency", l->efficiency_2);
+        cJSON_AddItemToArray(ls, e);
+    }
+    cJSON *np = cJSON_AddObjectToObject(o, "numpy");
+    cJSON_AddItemToObject(np, "rate", stat_json(res->numpy));
+    cJSON_AddItemToObject(np, "shoreward_c_rate", stat_json(res->numpy_c));
+    cJSON_AddNumberToObject(np, "ratio", res->numpy_ratio);
+    cJSON_AddStringToObject(np, "note", res->numpy_note);
+    char *s = cJSON_Print(o);
+    cJSON_Delete(o);
+    return s;
+}

@@ -1,0 +1,84 @@
+/* bench.h - measuring the step against the machine's memory bandwidth, side by side in one process.
+ *
+ * Every figure is taken in interleaved rounds (triad, then each measurement, then triad again ...) so
+ * that noise from other work on a shared machine hits all of them alike; ratios are formed from the
+ * medians of one run. Benchmarks never pass or fail anything: they report.
+ */
+#ifndef SW_BENCH_H
+#define SW_BENCH_H
+
+#include <stddef.h>
+#include <stdio.h>
+
+#include "base/real.h"
+#include "base/status.h"
+
+#define SW_BENCH_MAX_THREADS 64
+#define SW_BENCH_MAX_LAYOUTS 8
+
+/* Median and spread of repeated measurements. */
+typedef struct {
+    double median, min, max;   /* same units as the measurement */
+    int n;                     /* measurements */
+} sw_bench_stat;
+
+typedef struct {
+    size_t n_large;        /* cells per side of the large grid; 0 = working set >= max(4 x LLC, 2 GB) */
+    size_t n_small;        /* cells per side of the cache-resident grid; 0 = 128 */
+    int threads[SW_BENCH_MAX_THREADS]; /* thread counts for the scaling figures; n_threads = 0: 1 .. cores */
+    int n_threads;
+    int rounds;            /* interleaved rounds, >= 3 (default 5) */
+    sw_precision precision;/* of the model state (and of the NumPy arrays) */
+    const char *layouts;   /* layout letters to measure, e.g. "C" or "AC"; NULL = every layout */
+    const char *numpy_script; /* tools/bench_numpy.py to compare against (run with python), NULL = skip */
+    const char *python;    /* interpreter for it, e.g. /usr/bin/python3 */
+    void (*progress)(const char *what, void *user);   /* called before each measurement; may be NULL */
+    void *user;
+} sw_bench_options;
+
+/* One layout's figures. Rates in cell-updates per second; bandwidths in bytes per second. */
+typedef struct {
+    char layout[8];
+    int values_per_cell;        /* the bytes model: values a fused cell update must move (layout.h) */
+    sw_bench_stat large;        /* step on the large grid, all threads */
+    sw_bench_stat large_tracked;/* step + arrival/extreme tracking, all threads */
+    sw_bench_stat small;        /* step on the cache-resident grid, all threads */
+    sw_bench_stat triad;        /* triad bandwidth measured in the same rounds, B/s */
+    sw_bench_stat scaling[SW_BENCH_MAX_THREADS]; /* large grid step with threads[q] */
+    double bandwidth;           /* effective: median rate x values_per_cell x sizeof(value), B/s */
+    double bandwidth_ratio;     /* bandwidth / median triad */
+    double tracking_cost;       /* large_tracked time / large time - 1 (fraction added) */
+    double tracking_active;     /* share of row segments whose maps the tracked steps rewrote (the cost
+                                 * grows with it: quiet water costs a compare per segment) */
+    double efficiency_2;        /* parallel efficiency from 1 thread to the most threads */
+} sw_bench_layout;
+
+typedef struct {
+    size_t n_large, n_small;    /* grid sides used */
+    size_t llc_bytes;           /* last-level cache as the system reports it */
+    size_t working_set_bytes;   /* state + depth arrays of the large grid */
+    sw_precision precision;     /* of the state */
+    int real_bytes;             /* bytes of one state value: 8 (double) or 4 (single) */
+    int n_threads, threads[SW_BENCH_MAX_THREADS];
+    size_t n_layouts;
+    sw_bench_layout layouts[SW_BENCH_MAX_LAYOUTS];
+    sw_bench_stat numpy;        /* NumPy C-layout step rate, interleaved with the C rounds (n = 0: skipped) */
+    sw_bench_stat numpy_c;      /* the C layout's rate measured in the same rounds */
+    double numpy_ratio;         /* numpy_c median / numpy median */
+    char numpy_note[256];       /* why NumPy was skipped, or its grid when the full grid did not fit */
+} sw_bench_result;
+
+/* Runs the benchmark. Needs about working_set x 1.5 of memory. Returns SW_ERR_NOMEM when the grid
+ * does not fit, SW_ERR_USAGE for bad options (rounds out of range, a letter in opt->layouts that names
+ * no layout of this build). */
+sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_error *err);
+
+/* McCalpin's STREAM triad a[i] = b[i] + s c[i] on three arrays of n doubles with the current OpenMP
+ * threads, best of `repeats`: bytes moved (3 n 8, as STREAM counts them) per second. 0 on no memory. */
+double sw_bench_triad(size_t n, int repeats);
+
+/* Prints the result as text to f, and as JSON (caller frees; NULL when out of memory). */
+void sw_bench_print(FILE *f, const sw_bench_result *res);
+char *sw_bench_json(const sw_bench_result *res);
+
+#endif
