@@ -15,17 +15,13 @@
 #include "base/grid.h"
 #include "base/real.h"
 #include "base/status.h"
+#include "model/edges.h"
 
 #define SW_NAME_MAX 64        /* longest gauge / feature / source name, including the NUL */
 #define SW_PATH_MAX 1024      /* longest file path, including the NUL */
 #define SW_MAX_FEATURES 64    /* bays + islands + shoals */
 #define SW_MAX_SOURCES 32
 #define SW_MAX_GAUGES 256
-
-/* Domain edges: a wall reflects (no normal flow); open lets waves leave (radiation condition); level
- * holds the sea surface at mean level on the edge line (a node), as where a bay opens onto a large basin. */
-typedef enum { SW_EDGE_WALL = 0, SW_EDGE_OPEN = 1, SW_EDGE_LEVEL = 2 } sw_edge_kind;
-enum { SW_WEST = 0, SW_EAST = 1, SW_SOUTH = 2, SW_NORTH = 3 };   /* index into edges[] */
 
 typedef enum { SW_COAST_NONE = 0, SW_COAST_WEST, SW_COAST_EAST, SW_COAST_SOUTH, SW_COAST_NORTH } sw_coast_side;
 

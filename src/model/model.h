@@ -22,7 +22,7 @@
 
 #include "base/grid.h"
 #include "model/layout.h"
-#include "inputs/scenario.h"
+#include "model/edges.h"
 #include "base/status.h"
 
 typedef struct sw_model sw_model;

@@ -17,7 +17,7 @@
 #include "model/layout.h"
 #include "model/model.h"
 #include "base/real.h"
-#include "inputs/scenario.h"
+#include "model/edges.h"
 
 /* One ghost (halo) cell beyond an open or level edge. After each eta update the ghost is set to
  *     eta_g <- keep * eta_g + take * eta_in

@@ -26,11 +26,6 @@ void sw_format_duration(double s, char *buf, size_t n)
         snprintf(buf, n, "%lld min %02lld s", mi, se);
 }
 
-static const char *edge_name(sw_edge_kind e)
-{
-    return e == SW_EDGE_OPEN ? "open" : e == SW_EDGE_LEVEL ? "level" : "wall";
-}
-
 static double bytes_mb(size_t b) { return (double)b / (1024.0 * 1024.0); }
 
 /* "just now", "5 min ago", "3 h ago" or "2 days ago" for an age in days, into buf. */
@@ -55,8 +50,8 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
     fprintf(f, "Grid       %zu x %zu cells of %g m x %g m, %.1f km x %.1f km, %zu water cells (%.0f %%)\n",
             g->nx, g->ny, g->dx_m, g->dy_m, g->nx * g->dx_m / 1000, g->ny * g->dy_m / 1000, s->wet_cells,
             100.0 * (double)s->wet_cells / (double)sw_grid_cells(g));
-    fprintf(f, "Edges      west %s, east %s, south %s, north %s\n", edge_name(sc->edges[SW_WEST]),
-            edge_name(sc->edges[SW_EAST]), edge_name(sc->edges[SW_SOUTH]), edge_name(sc->edges[SW_NORTH]));
+    fprintf(f, "Edges      west %s, east %s, south %s, north %s\n", sw_edge_name(sc->edges[SW_WEST]),
+            sw_edge_name(sc->edges[SW_EAST]), sw_edge_name(sc->edges[SW_SOUTH]), sw_edge_name(sc->edges[SW_NORTH]));
     fprintf(f, "Layout     %s (%s)\n", s->layout->name, s->layout->summary);
     fprintf(f, "Precision  %s (%zu-byte state values)\n", sw_precision_name(sc->precision),
             sw_precision_bytes(sc->precision));
