@@ -2,11 +2,12 @@
  *
  * A layout owns where eta, u and v live on the cell, its continuity and momentum stencils, how walls
  * and open edges enter those stencils, its stability limit, and how it reports values at cell
- * centres. The model (model.c) owns the memory and the time loop and calls a layout only through
- * this table, so adding a layout is one file (layout_x.c) plus one line in layouts.c.
+ * centres. It does so as per-row stage kernels (stage.h); the model (model.c) owns the memory and
+ * the stepper (stepper.c) the schedule, and both call a layout only through this table, so adding a
+ * layout is one file (layout_x.c) plus one line in layouts.c.
  *
- * Every layout stores eta at cell centres. What u and v mean in sw_model (model_impl.h) is the
- * layout's business; the sketch at the top of each layout file shows it.
+ * Every layout stores eta at cell centres. What u and v mean is the layout's business; the sketch at
+ * the top of each layout file shows it.
  */
 #ifndef SW_LAYOUT_H
 #define SW_LAYOUT_H
@@ -16,8 +17,7 @@
 
 #include "base/real.h"
 #include "base/status.h"
-
-typedef struct sw_model sw_model;
+#include "model/stage.h"
 
 /* Fourier symbols of a layout's discrete operators for a plane wave exp(i (k x + l y)), each taken
  * relative to the phase at the point where the result lives. Applying an operator to the wave
@@ -31,41 +31,61 @@ typedef struct {
     double complex u_at_v;  /* u averaged onto v points */
 } sw_symbols;
 
-/* The functions that touch the state, compiled once per precision (real.h): each layout file
- * defines sw_layout_x_kernels_f64 and _f32 from one source. They read and write the state through
- * SW_F (model_impl.h) as the build's sw_real, and give everything else doubles. */
+/* Momentum stages a layout may have (one for u and v together, or one each). */
+#define SW_MAX_MOMENTUM 2
+
+/* The functions that touch the state, compiled once per precision (base/real.h): each layout file
+ * defines sw_layout_x_kernels_f64 and _f32 from one source. They work on a plain view of the fields
+ * (model/stage.h), row by row; the stepper (stepper.c) owns the schedule: thread blocks, barriers, the
+ * fused sweep, ghost and periodic halo cells, and handing finished rows to the observers. */
 typedef struct sw_layout_kernels {
-    /* Fills the layout's depth-at-velocity-point arrays (hx, hy) and open-edge lists from h and
-     * m->edges, after model.c has allocated every array. Returns SW_OK or an error. */
-    sw_status (*prepare)(sw_model *m, sw_error *err);
+    /* Fills the depth-at-velocity-point arrays (hx, hy) from h and the edges (p->f.hx, hy are 0 on
+     * entry) and adjusts the ghost cells of open and level edges (sw_edge_cell) where the layout's
+     * ghosts differ from the shared rule. Clears what the layout does not store (E: eta of u,v cells). */
+    void (*prepare)(sw_prep *p);
 
-    /* Advances the state by one forward-backward step: eta first, from the old velocities, then the
-     * velocities from the new eta. Must be called by every thread of an enclosing parallel region
-     * (it uses orphaned `omp for` loops and their barriers); also works outside one. */
-    void (*step)(sw_model *m);
+    /* The continuity stage: eta of a row from the old velocities (stage 0 of every step). */
+    sw_stage continuity;
 
-    /* Values at the centres of row j (0 .. ny-1) into eta, u, v (each nx long): elevation (m) and
+    /* Continuity of a row fused with the centre values of a finished row (stage.h). */
+    sw_continuity_observed_fn continuity_observed;
+
+    /* The momentum stages, in the order they run, for each sw_terms_variant: [SW_TERMS_PLAIN] without
+     * rotation and friction (the step's bits do not depend on the terms being compiled in), then with
+     * rotation and linear friction, then also quadratic friction. Each variant declares its own reads. */
+    int n_momentum;
+    sw_stage momentum[SW_TERMS_VARIANTS][SW_MAX_MOMENTUM];
+
+    /* Ghost cells' velocities (and radiated elevations) after the momentum stages; NULL when the
+     * layout keeps no velocity in ghosts (B, C). */
+    sw_edge_fn edge_velocities;
+
+    /* Rows of eta, u and v the centre values of a row read (relative to it): when a row is final. */
+    sw_rows observes[SW_N_FIELDS];
+
+    /* 1 when centre values read halo cells (as neighbours, weighted by 0): then they wait for the
+     * ghosts of the step to be finished (E). */
+    int centre_reads_halo;
+
+    /* Values at the centres of grid row j (0 .. ny-1) into eta, u, v (each nx long): elevation (m) and
      * the two velocity components (m/s) interpolated to the centre. Land cells give 0. */
-    void (*centre_row)(const sw_model *m, size_t j, double *eta, double *u, double *v);
+    void (*centre_row)(const sw_view *v, size_t j, double *eta, double *u, double *vel);
 
-    /* centre_row in float, for the tracker, whose maps are float: centre_row's values to float
-     * round-off (A, C: exactly (float) of them), made without the double detour. Optional: NULL makes
-     * sw_model_centre_row_f32 convert centre_row's doubles. A step that hands an observer its rows'
-     * values (sw_row_values) must make them exactly as this does. */
-    void (*centre_row_f32)(const sw_model *m, size_t j, float *eta, float *u, float *v);
+    /* centre_row in float, for the tracker, whose maps are float: centre_row's values to float round-off
+     * (A, C: exactly (float) of them), made without the double detour; continuity_observed makes the
+     * same bits. */
+    void (*centre_row_f32)(const sw_view *v, size_t j, float *eta, float *u, float *vel);
 
     /* Elevation at the centre of cell (i, j), m, as centre_row gives it; 0 on land. NULL when every
      * cell stores its own elevation (then it is the stored value). */
-    double (*eta_at)(const sw_model *m, size_t i, size_t j);
+    double (*eta_at)(const sw_view *v, size_t i, size_t j);
 
-    /* The discrete energy that forward-backward stepping conserves exactly (walls, no forcing), per
-     * unit density, m5 s-2:  E* = sum (g/2) eta^2 dA + sum (hu/2) |u|^2 dA - (g dt / 2) sum eta D(h u) dA,
-     * with D the layout's divergence and hu the depth carried by each velocity point. Summed in double. */
-    double (*energy)(const sw_model *m);
-
-    /* 1 when step shows every finished row to the model's observer itself (sw_model_observe_row, once per
-     * row, after the row's last value is final); 0 and sw_model_step observes after the step. */
-    int observes_rows;
+    /* The discrete energy that the step conserves exactly without friction and forcing (walls, periodic
+     * edges), per unit density, m5 s-2: E* = sum (g/2) eta^2 dA + sum (hu/2) |u|^2 dA
+     * - (g dt / 2) sum eta D(h u) dA, with D the layout's divergence and hu the depth carried by each
+     * velocity point, plus with rotation (dt/2) u.K v, the rotation term's share (docs/terms.md).
+     * Summed in double. */
+    double (*energy)(const sw_view *v);
 } sw_layout_kernels;
 
 typedef struct sw_layout {

@@ -28,7 +28,7 @@
  * h_c the mean depth of its water cells: hx * u is then the true depth-times-velocity, du/dt is the raw
  * difference, and the kinetic energy is (hx u^2 + hy v^2) / 2, the same form as on the C layout.
  * A channel one cell wide (walls north and south) is therefore exactly the C layout in 1D.
- * Open and level edges: the ghost cells (halo) carry eta (model_impl.h, sw_edge_cell); the corners on
+ * Open and level edges: the ghost cells (halo) carry eta (stage.h, sw_edge_cell); the corners on
  * the edge line are ordinary corners, so no ghost velocity is needed. Their velocity ALONG the edge
  * would difference ghost elevations, which lag behind the water (open) and then pump energy into
  * the edge (an eigenvalue analysis of the one-step matrix shows growth): it is held at 0. The
@@ -47,7 +47,7 @@
 #include <stddef.h>
 
 #include "model/layout.h"
-#include "model/model_impl.h"
+#include "model/stage.h"
 #include "base/omp_compat.h"
 
 #if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
@@ -58,15 +58,21 @@ static double b_max_frequency(double gh, double dx, double dy, int dims)
 }
 #endif
 
-static sw_status b_prepare(sw_model *m, sw_error *err)
+static void b_prepare(sw_prep *p)
 {
-    const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
+    const sw_view *v = &p->f;
+    const ptrdiff_t nx = (ptrdiff_t)v->nx, ny = (ptrdiff_t)v->ny;
+    sw_real *hx = SW_V(v, hx), *hy = SW_V(v, hy);
+    const int line_w = p->edges[SW_WEST] == SW_EDGE_OPEN || p->edges[SW_WEST] == SW_EDGE_LEVEL;
+    const int line_e = p->edges[SW_EAST] == SW_EDGE_OPEN || p->edges[SW_EAST] == SW_EDGE_LEVEL;
+    const int line_s = p->edges[SW_SOUTH] == SW_EDGE_OPEN || p->edges[SW_SOUTH] == SW_EDGE_LEVEL;
+    const int line_n = p->edges[SW_NORTH] == SW_EDGE_OPEN || p->edges[SW_NORTH] == SW_EDGE_LEVEL;
     /* corner (i, j) = north-east corner of cell (i, j) */
     for (ptrdiff_t j = -1; j < ny; j++)
         for (ptrdiff_t i = -1; i < nx; i++) {
             double d[4];
-            int sw = sw_model_water_at(m, i, j, &d[0]), se = sw_model_water_at(m, i + 1, j, &d[1]);
-            int nw = sw_model_water_at(m, i, j + 1, &d[2]), ne = sw_model_water_at(m, i + 1, j + 1, &d[3]);
+            int sw = sw_prep_water(p, i, j, &d[0]), se = sw_prep_water(p, i + 1, j, &d[1]);
+            int nw = sw_prep_water(p, i, j + 1, &d[2]), ne = sw_prep_water(p, i + 1, j + 1, &d[3]);
             int n = sw + se + nw + ne;
             if (n == 0)
                 continue;
@@ -76,167 +82,98 @@ static sw_status b_prepare(sw_model *m, sw_error *err)
             int v_ok = sw == nw && se == ne;
             /* on the line of an open or level edge the velocity along the edge would difference ghost
              * elevations, which lag behind (open) and pump energy into the edge: it is held at 0 */
-            if ((i == -1 && m->edges[SW_WEST] != SW_EDGE_WALL) || (i == nx - 1 && m->edges[SW_EAST] != SW_EDGE_WALL))
+            if ((i == -1 && line_w) || (i == nx - 1 && line_e))
                 v_ok = 0;
-            if ((j == -1 && m->edges[SW_SOUTH] != SW_EDGE_WALL) || (j == ny - 1 && m->edges[SW_NORTH] != SW_EDGE_WALL))
+            if ((j == -1 && line_s) || (j == ny - 1 && line_n))
                 u_ok = 0;
-            size_t c = sw_pidx_halo(m, i, j);
-            SW_F(m, hx)[c] = u_ok ? (sw_real)per_f : 0;
-            SW_F(m, hy)[c] = v_ok ? (sw_real)per_f : 0;
+            size_t c = sw_pad(v, i, j);
+            hx[c] = u_ok ? (sw_real)per_f : 0;
+            hy[c] = v_ok ? (sw_real)per_f : 0;
         }
-    return sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
 }
 
 /* The new elevation of cell k: continuity from the old corner velocities; a wall corner also feeds the
- * dry cells of its stencil, which must stay at 0 (the one formula of both continuity loops). */
-static inline sw_real b_eta_new(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
-                                const sw_real *restrict hx, const sw_real *restrict hy, const sw_real *restrict h,
-                                size_t k, size_t s, sw_real cx, sw_real cy)
+ * dry cells of its stencil, which must stay at 0 (the one formula of both kernels). */
+SW_INLINE sw_real b_eta_cell(const sw_cells *c, size_t k)
 {
-    return h[k] > 0 ? eta[k] - cx * (hx[k] * u[k] + hx[k - s] * u[k - s] - hx[k - 1] * u[k - 1] - hx[k - s - 1] * u[k - s - 1])
-                             - cy * (hy[k] * v[k] + hy[k - 1] * v[k - 1] - hy[k - s] * v[k - s] - hy[k - s - 1] * v[k - s - 1])
-                    : 0;
-}
-
-/* Continuity (forward: from the old corner velocities of corner rows j-1 and j) on padded row j, at
- * r = j * stride; a wall corner also feeds the dry cells of its stencil, which must stay at 0. */
-static inline void b_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
-                                    const sw_real *restrict hx, const sw_real *restrict hy,
-                                    const sw_real *restrict h, size_t r, size_t nx, size_t s, sw_real cx, sw_real cy)
-{
-    SW_OMP(simd)
-    for (size_t i = r + 1; i <= r + nx; i++)
-        eta[i] = b_eta_new(eta, u, v, hx, hy, h, i, s, cx, cy);
+    const size_t s = c->s;
+    const sw_real *hx = c->hx, *hy = c->hy, *u = c->u, *v = c->v;
+    return c->h[k] > 0 ? c->eta[k] - c->cx * (hx[k] * u[k] + hx[k - s] * u[k - s] - hx[k - 1] * u[k - 1] - hx[k - s - 1] * u[k - s - 1])
+                                   - c->cy * (hy[k] * v[k] + hy[k - 1] * v[k - 1] - hy[k - s] * v[k - s] - hy[k - s - 1] * v[k - s - 1])
+                       : 0;
 }
 
 /* The centre values of cell k as b_centre_row makes them, in the state's precision and rounded to
  * float (one division, not two in double: the tracker's input, within float round-off of centre_row). */
-static inline void b_centre_f32(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
-                                const sw_real *restrict hx, const sw_real *restrict hy, const sw_real *restrict h,
-                                size_t k, size_t s, float *e, float *uc, float *vc)
+SW_INLINE void b_centre_cell(const sw_cells *c, size_t k, size_t i, size_t j, float *e, float *uc, float *vc)
 {
-    const int wet = h[k] > 0;
-    const sw_real w = wet ? (sw_real)0.25 / h[k] : 0;
-    *e = wet ? (float)eta[k] : 0.0f;
+    (void)i;
+    (void)j;
+    const size_t s = c->s;
+    const sw_real *hx = c->hx, *hy = c->hy, *u = c->u, *v = c->v;
+    const int wet = c->h[k] > 0;
+    const sw_real w = wet ? (sw_real)0.25 / c->h[k] : 0;
+    *e = wet ? (float)c->eta[k] : 0.0f;
     *uc = (float)((hx[k] * u[k] + hx[k - 1] * u[k - 1] + hx[k - s] * u[k - s] + hx[k - s - 1] * u[k - s - 1]) * w);
     *vc = (float)((hy[k] * v[k] + hy[k - 1] * v[k - 1] + hy[k - s] * v[k - s] + hy[k - s - 1] * v[k - s - 1]) * w);
 }
 
-/* b_continuity_row on padded row j (r = j * stride), and in the same pass the values an observer needs
- * of the finished row at f = its padded row * stride (sw_row_values into buf), as layout_c.c's
- * c_continuity_row_observed. */
-static inline void b_continuity_row_observed(sw_real *restrict eta, const sw_real *restrict u,
-                                             const sw_real *restrict v, const sw_real *restrict hx,
-                                             const sw_real *restrict hy, const sw_real *restrict h, size_t r,
-                                             size_t nx, size_t s, sw_real cx, sw_real cy, size_t f,
-                                             float *restrict buf)
+static sw_cells b_cells(const sw_view *v)
 {
-    const sw_obs_row o = sw_obs_row_in(buf, nx);
-    float *restrict oe = o.eta, *restrict ou = o.u, *restrict ov = o.v;
-    for (size_t q = 0; q < o.n_seg; q++) {
-        const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
-        SW_OMP(simd)
-        for (size_t i = a; i < b; i++) {
-            const size_t k = r + 1 + i;
-            eta[k] = b_eta_new(eta, u, v, hx, hy, h, k, s, cx, cy);
-            float e, uc, vc;
-            b_centre_f32(eta, u, v, hx, hy, h, f + 1 + i, s, &e, &uc, &vc);
-            oe[i] = e;
-            ou[i] = uc;
-            ov[i] = vc;
-        }
-        sw_row_extremes(oe, ou, ov, a, b, &o.hi[q], &o.lo[q], &o.speed2[q]);   /* the segment is in L1 */
-    }
+    return (sw_cells){SW_V(v, eta), SW_V(v, u), SW_V(v, v), SW_V(v, h), SW_V(v, hx), SW_V(v, hy), v->stride,
+                      (sw_real)(0.5 * v->dt_s / v->dx_m), (sw_real)(0.5 * v->dt_s / v->dy_m)};
 }
 
-/* b_centre_row in float (sw_layout_kernels.centre_row_f32). */
-static void b_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
+static void b_continuity(const sw_view *v, size_t j)
 {
-    const size_t r = sw_pidx(m, 0, j), s = m->stride;
-    SW_OMP(simd)
-    for (size_t i = 0; i < m->grid.nx; i++)
-        b_centre_f32(SW_F(m, eta), SW_F(m, u), SW_F(m, v), SW_F(m, hx), SW_F(m, hy), SW_F(m, h), r + i, s, &eta[i],
-                     &u[i], &v[i]);
+    const sw_cells c = b_cells(v);
+    sw_continuity_loop(&c, j * v->stride + 1, v->nx, b_eta_cell);
 }
 
-/* Momentum (backward) on corner row j (columns 0..nx), at r = j * stride: from the new eta of cell rows
- * j and j+1. */
-static inline void b_momentum_row(sw_real *restrict u, sw_real *restrict v, const sw_real *restrict eta,
-                                  const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
-                                  size_t s, sw_real gx, sw_real gy)
+static void b_continuity_observed(const sw_view *v, size_t j, size_t f, float *buf)
 {
+    const sw_cells c = b_cells(v);
+    sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, b_eta_cell, b_centre_cell);
+}
+
+static void b_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, float *vel)
+{
+    const sw_cells c = b_cells(v);
+    sw_centre_loop(&c, j, v->nx, eta, u, vel, b_centre_cell);
+}
+
+/* Momentum (backward) on corner row j (columns 0..nx): from the new eta of cell rows j and j+1. */
+static void b_momentum(const sw_view *v, size_t j)
+{
+    sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
+    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
+    const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
-    for (size_t i = r; i <= r + nx; i++) {
+    for (size_t i = r; i <= r + v->nx; i++) {
         u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] + eta[i + s + 1] - eta[i] - eta[i + s]) : 0;
-        v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]) : 0;
+        vv[i] = hy[i] > 0 ? vv[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]) : 0;
     }
-}
-
-/* The step in one sweep over memory, as layout_c.c's. Each thread owns padded cell rows j0..j1 and, for
- * each row j: continuity of row j (old corners of corner rows j-1, j), its edge ghosts, then momentum of
- * corner row j-1 (new eta of cell rows j-1, j); corner row 0 (the south edge) after cell row 1.
- * Corner row j1 needs the next block's first row of new eta and waits for a barrier, as the next
- * block's continuity reads it old before. A cell row is final once both its corner rows are: rows
- * j0+1 .. j1-1 are observed in the sweep, j0 (its south corners are the previous block's) and j1 at
- * the end. Each cell is computed as in two passes, for any thread count. */
-static void b_step(sw_model *m)
-{
-    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
-    const sw_real cx = (sw_real)(0.5 * m->dt / m->grid.dx_m), cy = (sw_real)(0.5 * m->dt / m->grid.dy_m);
-    const sw_real gx = (sw_real)(0.5 * m->g * m->dt / m->grid.dx_m);
-    const sw_real gy = (sw_real)(0.5 * m->g * m->dt / m->grid.dy_m);
-    sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
-    const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy), *restrict h = SW_F(m, h);
-    const size_t nt = (size_t)omp_get_num_threads(), t = (size_t)omp_get_thread_num();
-    const size_t j0 = 1 + ny * t / nt, j1 = ny * (t + 1) / nt;   /* padded rows; empty when j1 < j0 */
-    float *restrict buf = sw_model_obs_buffer(m, (int)t);
-
-    for (size_t j = j0; j <= j1; j++) {
-        if (buf && j >= j0 + 3)   /* with room for them, row j-2's values are made in row j's pass */
-            b_continuity_row_observed(eta, u, v, hx, hy, h, j * s, nx, s, cx, cy, (j - 2) * s, buf);
-        else
-            b_continuity_row(eta, u, v, hx, hy, h, j * s, nx, s, cx, cy);
-        sw_model_edge_eta_row(m, j);
-        if (j == 1)
-            b_momentum_row(u, v, eta, hx, hy, 0, nx, s, gx, gy);   /* the south edge's corners */
-        if (j > j0)
-            b_momentum_row(u, v, eta, hx, hy, (j - 1) * s, nx, s, gx, gy);
-        if (buf && j >= j0 + 3)
-            sw_model_observe_row_values(m, j - 2, buf);
-        else if (!buf && j > j0 + 1)
-            sw_model_observe_row(m, j - 1);
-    }
-    if (buf && j1 >= j0 + 2)
-        sw_model_observe_row(m, j1 - 1);
-    SW_OMP(barrier)
-    if (j1 >= j0)
-        b_momentum_row(u, v, eta, hx, hy, j1 * s, nx, s, gx, gy);
-    SW_OMP(barrier)
-    if (j1 >= j0)
-        sw_model_observe_row(m, j0);
-    if (j1 > j0)
-        sw_model_observe_row(m, j1);
-    SW_OMP(barrier)   /* the step ends when every row has been observed */
 }
 
 /* Centre values: eta as stored; velocity = the four corners' mean volume flux (hx u = depth x
  * velocity) divided by the cell's depth, i.e. the depth-mean velocity at the centre. */
-static void b_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
+static void b_centre_row(const sw_view *v, size_t j, double *eta, double *u, double *vel)
 {
-    const size_t r = sw_pidx(m, 0, j), s = m->stride;
-    const sw_real *hx = SW_F(m, hx), *hy = SW_F(m, hy), *uu = SW_F(m, u), *vv = SW_F(m, v);
-    for (size_t i = 0; i < m->grid.nx; i++) {
+    const size_t r = sw_pad(v, 0, (ptrdiff_t)j), s = v->stride;
+    const sw_real *hx = SW_V(v, hx), *hy = SW_V(v, hy), *uu = SW_V(v, u), *vv = SW_V(v, v);
+    for (size_t i = 0; i < v->nx; i++) {
         const size_t k = r + i;
-        const double h = SW_F(m, h)[k];
+        const double h = SW_V(v, h)[k];
         if (!(h > 0)) {
-            eta[i] = u[i] = v[i] = 0;
+            eta[i] = u[i] = vel[i] = 0;
             continue;
         }
-        eta[i] = SW_F(m, eta)[k];
+        eta[i] = SW_V(v, eta)[k];
         u[i] = ((double)hx[k] * uu[k] + (double)hx[k - 1] * uu[k - 1] + (double)hx[k - s] * uu[k - s]
                 + (double)hx[k - s - 1] * uu[k - s - 1]) / (4 * h);
-        v[i] = ((double)hy[k] * vv[k] + (double)hy[k - 1] * vv[k - 1] + (double)hy[k - s] * vv[k - s]
-                + (double)hy[k - s - 1] * vv[k - s - 1]) / (4 * h);
+        vel[i] = ((double)hy[k] * vv[k] + (double)hy[k - 1] * vv[k - 1] + (double)hy[k - s] * vv[k - s]
+                  + (double)hy[k - s - 1] * vv[k - s - 1]) / (4 * h);
     }
 }
 
@@ -252,34 +189,42 @@ static void b_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 }
 #endif
 
-static double b_energy(const sw_model *m)
+static double b_energy(const sw_view *v)
 {
-    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
-    const double dx = m->grid.dx_m, dy = m->grid.dy_m;
-    const sw_real *eta = SW_F(m, eta), *u = SW_F(m, u), *v = SW_F(m, v), *hx = SW_F(m, hx), *hy = SW_F(m, hy);
+    const size_t nx = v->nx, ny = v->ny, s = v->stride;
+    const double dx = v->dx_m, dy = v->dy_m;
+    const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
     double pot = 0, kin = 0, cross = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
             double div = ((double)hx[i] * u[i] + (double)hx[i - s] * u[i - s] - (double)hx[i - 1] * u[i - 1]
                           - (double)hx[i - s - 1] * u[i - s - 1]) / (2 * dx)
-                       + ((double)hy[i] * v[i] + (double)hy[i - 1] * v[i - 1] - (double)hy[i - s] * v[i - s]
-                          - (double)hy[i - s - 1] * v[i - s - 1]) / (2 * dy);
+                       + ((double)hy[i] * vv[i] + (double)hy[i - 1] * vv[i - 1] - (double)hy[i - s] * vv[i - s]
+                          - (double)hy[i - s - 1] * vv[i - s - 1]) / (2 * dy);
             pot += (double)eta[i] * eta[i];
             cross += eta[i] * div;
         }
     for (size_t j = 0; j <= ny; j++)
         for (size_t i = j * s; i <= j * s + nx; i++)
-            kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * v[i] * v[i];
-    return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * dx * dy;
+            kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * vv[i] * vv[i];
+    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * v->dt_s * cross) * dx * dy;
 }
 
+/* Stages: continuity of cell row j reads the corners of corner rows j-1 and j; momentum of corner row j
+ * (u and v) reads eta of cell rows j and j+1 (corner row 0 is the south edge's line). */
 const sw_layout_kernels SW_NAME(sw_layout_b_kernels) = {
     .prepare = b_prepare,
-    .step = b_step,
+    .continuity = {b_continuity, SW_WRITES(SW_FIELD_ETA), {SW_NO_ROWS, SW_ROWS(-1, 0), SW_ROWS(-1, 0)}, 0},
+    .continuity_observed = b_continuity_observed,
+    .n_momentum = 1,
+    .momentum = {
+        [SW_TERMS_PLAIN] = {{b_momentum, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                             {SW_ROWS(0, 1), SW_NO_ROWS, SW_NO_ROWS}, 1}},
+    },
+    .observes = {SW_ROWS(0, 0), SW_ROWS(-1, 0), SW_ROWS(-1, 0)},
     .centre_row = b_centre_row,
     .centre_row_f32 = b_centre_row_f32,
     .energy = b_energy,
-    .observes_rows = 1,
 };
 
 #if SW_REAL_BITS == 64

@@ -10,7 +10,8 @@
  *
  * Face depth: the mean of the two cells' depths when both are water; 0 (a wall) when either is land
  * or beyond a wall edge; the inner cell's depth on an open or level edge, whose ghost cell (halo)
- * carries the outgoing wave or the mirrored elevation (model_impl.h, sw_edge_cell).
+ * carries the outgoing wave or the mirrored elevation (stage.h, sw_edge_cell); across a periodic edge
+ * the mean with the cell on the opposite side.
  * Semi-discrete frequency: omega^2 = 4 g h (sin^2(k dx/2) / dx^2 + sin^2(l dy/2) / dy^2), highest at the
  * 2-cell wave: 2 sqrt(g h) sqrt(1/dx^2 + 1/dy^2); in a channel 2 sqrt(g h) / dx. With square cells
  * the Courant limit sqrt(g h) dt / dx <= 2 / max(omega dx / sqrt(g h)) is 1/sqrt(2) in 2D and 1 in 1D.
@@ -18,7 +19,7 @@
 #include <math.h>
 
 #include "model/layout.h"
-#include "model/model_impl.h"
+#include "model/stage.h"
 #include "base/omp_compat.h"
 
 #if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
@@ -29,180 +30,113 @@ static double c_max_frequency(double gh, double dx, double dy, int dims)
 }
 #endif
 
-static sw_status c_prepare(sw_model *m, sw_error *err)
+/* Face depths (see the top of the file): the mean of the two cells' depths between two water cells
+ * (a periodic edge joins the last column or row to the first), the inner cell's beside the ghost of an
+ * open or level edge, 0 against land or a wall. */
+static void c_prepare(sw_prep *p)
 {
-    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
-    const sw_real *h = SW_F(m, h);
-    for (size_t j = 0; j < ny; j++)
-        for (size_t i = 0; i < nx; i++) {
-            size_t k = sw_pidx(m, i, j);
+    const sw_view *v = &p->f;
+    const ptrdiff_t nx = (ptrdiff_t)v->nx, ny = (ptrdiff_t)v->ny;
+    const sw_real *h = SW_V(v, h);
+    sw_real *hx = SW_V(v, hx), *hy = SW_V(v, hy);
+    for (ptrdiff_t j = 0; j < ny; j++)
+        for (ptrdiff_t i = 0; i < nx; i++) {
+            const size_t k = sw_pad(v, i, j), s = v->stride;
             if (h[k] <= 0)
                 continue;
-            /* east face: interior, or the east edge */
-            if (i + 1 < nx)
-                SW_F(m, hx)[k] = h[k + 1] > 0 ? (sw_real)0.5 * (h[k] + h[k + 1]) : 0;
-            else
-                SW_F(m, hx)[k] = m->edges[SW_EAST] != SW_EDGE_WALL ? h[k] : 0;
+            double d;
+            /* a face shared with another water cell of the grid: the mean (the same bits from either
+             * side); beside a ghost: the inner depth; else a wall */
+#define C_FACE(kind) ((kind) == SW_CELL_WATER ? (sw_real)0.5 * (h[k] + (sw_real)d) : (kind) == SW_CELL_GHOST ? h[k] : 0)
+            hx[k] = C_FACE(sw_prep_cell(p, i + 1, j, &d));          /* east face */
+            hy[k] = C_FACE(sw_prep_cell(p, i, j + 1, &d));          /* north face */
             if (i == 0)
-                SW_F(m, hx)[k - 1] = m->edges[SW_WEST] != SW_EDGE_WALL ? h[k] : 0;
-            /* north face */
-            if (j + 1 < ny)
-                SW_F(m, hy)[k] = h[k + s] > 0 ? (sw_real)0.5 * (h[k] + h[k + s]) : 0;
-            else
-                SW_F(m, hy)[k] = m->edges[SW_NORTH] != SW_EDGE_WALL ? h[k] : 0;
+                hx[k - 1] = C_FACE(sw_prep_cell(p, i - 1, j, &d));  /* the west edge's face */
             if (j == 0)
-                SW_F(m, hy)[k - s] = m->edges[SW_SOUTH] != SW_EDGE_WALL ? h[k] : 0;
+                hy[k - s] = C_FACE(sw_prep_cell(p, i, j - 1, &d));  /* the south edge's face */
+#undef C_FACE
         }
-    return sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
 }
 
-/* The new elevation of cell k: continuity from the old velocities. The one formula both continuity
- * loops use, so that a row comes out the same bits whichever loop a thread's block gives it to. */
-static inline sw_real c_eta_new(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
-                                const sw_real *restrict hx, const sw_real *restrict hy, size_t k, size_t s,
-                                sw_real cx, sw_real cy)
+/* The new elevation of cell k: continuity from the old velocities (the one formula of both kernels). */
+SW_INLINE sw_real c_eta_cell(const sw_cells *c, size_t k)
 {
-    return eta[k] - (cx * (hx[k] * u[k] - hx[k - 1] * u[k - 1]) + cy * (hy[k] * v[k] - hy[k - s] * v[k - s]));
+    const size_t s = c->s;
+    return c->eta[k] - (c->cx * (c->hx[k] * c->u[k] - c->hx[k - 1] * c->u[k - 1])
+                        + c->cy * (c->hy[k] * c->v[k] - c->hy[k - s] * c->v[k - s]));
 }
 
-/* One row of each half-step, k0 = padded index of the row's first interior cell. */
-static inline void c_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
-                                    const sw_real *restrict hx, const sw_real *restrict hy, size_t k0, size_t nx,
-                                    size_t s, sw_real cx, sw_real cy)
+/* The centre values of cell k, rounded to float: each is (float) of c_centre_row's. In single precision
+ * the float sum rounds once where c_centre_row rounds to double and then to float; rounding twice gives
+ * the same result when the wider format has at least 2 p + 2 bits for a p-bit narrower one
+ * (53 >= 2 * 24 + 2; Figueroa 1995, ACM SIGNUM Newsletter 30(3) [memory]); halving is exact. */
+SW_INLINE void c_centre_cell(const sw_cells *c, size_t k, size_t i, size_t j, float *e, float *uc, float *vc)
 {
+    (void)i;
+    (void)j;
+    *e = (float)c->eta[k];
+    *uc = (float)((sw_real)0.5 * (c->u[k - 1] + c->u[k]));
+    *vc = (float)((sw_real)0.5 * (c->v[k - c->s] + c->v[k]));
+}
+
+static sw_cells c_cells(const sw_view *v)
+{
+    return (sw_cells){SW_V(v, eta), SW_V(v, u), SW_V(v, v), SW_V(v, h), SW_V(v, hx), SW_V(v, hy), v->stride,
+                      (sw_real)(v->dt_s / v->dx_m), (sw_real)(v->dt_s / v->dy_m)};
+}
+
+static void c_continuity(const sw_view *v, size_t j)
+{
+    const sw_cells c = c_cells(v);
+    sw_continuity_loop(&c, j * v->stride + 1, v->nx, c_eta_cell);
+}
+
+static void c_continuity_observed(const sw_view *v, size_t j, size_t f, float *buf)
+{
+    const sw_cells c = c_cells(v);
+    sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, c_eta_cell, c_centre_cell);
+}
+
+/* u on the faces of padded row j from its west edge face to its east edge face (new eta of row j). */
+static void c_u_row(const sw_view *v, size_t j)
+{
+    sw_real *restrict u = SW_V(v, u);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx);
+    const sw_real gx = (sw_real)(v->g * v->dt_s / v->dx_m);
+    const size_t k0 = j * v->stride + 1;
     SW_OMP(simd)
-    for (size_t i = k0; i < k0 + nx; i++)
-        eta[i] = c_eta_new(eta, u, v, hx, hy, i, s, cx, cy);
-}
-
-/* The centre values of cell k as c_centre_row makes them, rounded to float: each is (float) of
- * c_centre_row's. In single precision the float sum rounds once where c_centre_row rounds to double
- * and then to float; rounding twice gives the same result when the wider format has at least 2 p + 2
- * bits for a p-bit narrower one (53 >= 2 * 24 + 2; Figueroa 1995, ACM SIGNUM Newsletter 30(3)
- * [memory]); halving is exact. */
-static inline void c_centre_f32(const sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
-                                size_t k, size_t s, float *e, float *uc, float *vc)
-{
-    *e = (float)eta[k];
-    *uc = (float)((sw_real)0.5 * (u[k - 1] + u[k]));
-    *vc = (float)((sw_real)0.5 * (v[k - s] + v[k]));
-}
-
-/* c_continuity_row for the row at k0, and in the same pass the values an observer needs of the
- * finished row at r0 (sw_row_values, into buf: eta, u, v at the centres as floats, then per segment the
- * highest and lowest eta and the highest u*u + v*v). The finished row is in cache, and its arithmetic
- * hides behind the memory stream of the row being stepped. */
-static inline void c_continuity_row_observed(sw_real *restrict eta, const sw_real *restrict u,
-                                             const sw_real *restrict v, const sw_real *restrict hx,
-                                             const sw_real *restrict hy, size_t k0, size_t nx, size_t s, sw_real cx,
-                                             sw_real cy, size_t r0, float *restrict buf)
-{
-    const sw_obs_row o = sw_obs_row_in(buf, nx);
-    float *restrict oe = o.eta, *restrict ou = o.u, *restrict ov = o.v;
-    for (size_t q = 0; q < o.n_seg; q++) {
-        const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
-        SW_OMP(simd)
-        for (size_t i = a; i < b; i++) {
-            const size_t k = k0 + i, r = r0 + i;
-            eta[k] = c_eta_new(eta, u, v, hx, hy, k, s, cx, cy);
-            float e, uc, vc;
-            c_centre_f32(eta, u, v, r, s, &e, &uc, &vc);
-            oe[i] = e;
-            ou[i] = uc;
-            ov[i] = vc;
-        }
-        sw_row_extremes(oe, ou, ov, a, b, &o.hi[q], &o.lo[q], &o.speed2[q]);   /* the segment is in L1 */
-    }
-}
-
-/* u on the faces k0 - 1 .. k0 + nx - 1 (the west edge face through the east edge face). */
-static inline void c_u_row(sw_real *restrict u, const sw_real *restrict eta, const sw_real *restrict hx, size_t k0,
-                           size_t nx, sw_real gx)
-{
-    SW_OMP(simd)
-    for (size_t i = k0 - 1; i < k0 + nx; i++)
+    for (size_t i = k0 - 1; i < k0 + v->nx; i++)
         u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i]) : 0;
 }
 
-/* v on the north faces of the row starting at k0 (padded row 0 holds the south edge's faces). */
-static inline void c_v_row(sw_real *restrict v, const sw_real *restrict eta, const sw_real *restrict hy, size_t k0,
-                           size_t nx, size_t s, sw_real gy)
+/* v on the north faces of padded row j (row 0: the south edge's faces), from the new eta of rows j, j+1. */
+static void c_v_row(const sw_view *v, size_t j)
 {
+    sw_real *restrict vv = SW_V(v, v);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hy = SW_V(v, hy);
+    const sw_real gy = (sw_real)(v->g * v->dt_s / v->dy_m);
+    const size_t k0 = j * v->stride + 1, s = v->stride;
     SW_OMP(simd)
-    for (size_t i = k0; i < k0 + nx; i++)
-        v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] - eta[i]) : 0;
+    for (size_t i = k0; i < k0 + v->nx; i++)
+        vv[i] = hy[i] > 0 ? vv[i] - gy * (eta[i + s] - eta[i]) : 0;
 }
 
-/* The step in one sweep over memory. Each thread owns a block of rows j0..j1 and, for each row j:
- * advances eta (old u, v), sets that row's edge ghosts, advances u of row j (new eta of row j) and
- * v of row j-1 (new eta of rows j-1 and j). v of the block's last row needs the next block's first
- * row of eta, so it waits for a barrier. The next block reads that old v before the barrier, as the
- * continuity equation requires. Each cell is computed the same way for any thread count.
- * Observing (model_impl.h): row j-1 is final once v of row j-1 is, except the block's first row,
- * whose south face belongs to the previous block's last v; so rows j0+1 .. j1-1 are observed in the
- * sweep, while still in cache, and rows j0 and j1 after the second barrier (a third ends the step).
- * With room for the row's values (sw_model_obs_buffer) the observer is handed them made in the
- * continuity pass two rows on (c_continuity_row_observed), row j-2 at row j, and the block's row
- * j1-1 after the sweep; without, it makes them itself. The choice is per thread and step: one branch
- * per row, none per cell. */
-static void c_step(sw_model *m)
+static void c_centre_row(const sw_view *v, size_t j, double *eta, double *u, double *vel)
 {
-    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
-    const sw_real cx = (sw_real)(m->dt / m->grid.dx_m), cy = (sw_real)(m->dt / m->grid.dy_m);
-    const sw_real gx = (sw_real)(m->g * m->dt / m->grid.dx_m), gy = (sw_real)(m->g * m->dt / m->grid.dy_m);
-    sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
-    const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy);
-    const size_t nt = (size_t)omp_get_num_threads(), t = (size_t)omp_get_thread_num();
-    const size_t j0 = 1 + ny * t / nt, j1 = ny * (t + 1) / nt;   /* padded rows; empty when j1 < j0 */
-    float *restrict buf = sw_model_obs_buffer(m, (int)t);
-
-    for (size_t j = j0; j <= j1; j++) {
-        if (buf && j >= j0 + 3)
-            c_continuity_row_observed(eta, u, v, hx, hy, j * s + 1, nx, s, cx, cy, (j - 2) * s + 1, buf);
-        else
-            c_continuity_row(eta, u, v, hx, hy, j * s + 1, nx, s, cx, cy);
-        sw_model_edge_eta_row(m, j);
-        c_u_row(u, eta, hx, j * s + 1, nx, gx);
-        if (j == 1)
-            c_v_row(v, eta, hy, 1, nx, s, gy);   /* the south edge's faces: ghost row 0 and row 1 */
-        if (j > j0)
-            c_v_row(v, eta, hy, (j - 1) * s + 1, nx, s, gy);
-        if (buf && j >= j0 + 3)
-            sw_model_observe_row_values(m, j - 2, buf);
-        else if (!buf && j > j0 + 1)
-            sw_model_observe_row(m, j - 1);
-    }
-    if (buf && j1 >= j0 + 2)
-        sw_model_observe_row(m, j1 - 1);
-    SW_OMP(barrier)
-    if (j1 >= j0)
-        c_v_row(v, eta, hy, j1 * s + 1, nx, s, gy);
-    SW_OMP(barrier)
-    if (j1 >= j0)
-        sw_model_observe_row(m, j0);
-    if (j1 > j0)
-        sw_model_observe_row(m, j1);
-    SW_OMP(barrier)   /* the step ends when every row has been observed */
-}
-
-static void c_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
-{
-    const size_t r = sw_pidx(m, 0, j), s = m->stride;
-    for (size_t i = 0; i < m->grid.nx; i++) {
+    const size_t r = sw_pad(v, 0, (ptrdiff_t)j), s = v->stride;
+    const sw_real *e = SW_V(v, eta), *uu = SW_V(v, u), *vv = SW_V(v, v);
+    for (size_t i = 0; i < v->nx; i++) {
         size_t k = r + i;
-        eta[i] = SW_F(m, eta)[k];
-        u[i] = 0.5 * ((double)SW_F(m, u)[k - 1] + SW_F(m, u)[k]);
-        v[i] = 0.5 * ((double)SW_F(m, v)[k - s] + SW_F(m, v)[k]);
+        eta[i] = e[k];
+        u[i] = 0.5 * ((double)uu[k - 1] + uu[k]);
+        vel[i] = 0.5 * ((double)vv[k - s] + vv[k]);
     }
 }
 
-/* c_centre_row in float (sw_layout_kernels.centre_row_f32). */
-static void c_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
+static void c_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, float *vel)
 {
-    const size_t r = sw_pidx(m, 0, j), s = m->stride;
-    SW_OMP(simd)
-    for (size_t i = 0; i < m->grid.nx; i++)
-        c_centre_f32(SW_F(m, eta), SW_F(m, u), SW_F(m, v), r + i, s, &eta[i], &u[i], &v[i]);
+    const sw_cells c = c_cells(v);
+    sw_centre_loop(&c, j, v->nx, eta, u, vel, c_centre_cell);
 }
 
 #if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
@@ -215,16 +149,16 @@ static void c_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 }
 #endif
 
-static double c_energy(const sw_model *m)
+static double c_energy(const sw_view *v)
 {
-    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
-    const double dx = m->grid.dx_m, dy = m->grid.dy_m;
-    const sw_real *eta = SW_F(m, eta), *u = SW_F(m, u), *v = SW_F(m, v), *hx = SW_F(m, hx), *hy = SW_F(m, hy);
+    const size_t nx = v->nx, ny = v->ny, s = v->stride;
+    const double dx = v->dx_m, dy = v->dy_m;
+    const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
     double pot = 0, kin = 0, cross = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
             double div = ((double)hx[i] * u[i] - (double)hx[i - 1] * u[i - 1]) / dx
-                       + ((double)hy[i] * v[i] - (double)hy[i - s] * v[i - s]) / dy;
+                       + ((double)hy[i] * vv[i] - (double)hy[i - s] * vv[i - s]) / dy;
             pot += (double)eta[i] * eta[i];
             cross += eta[i] * div;
         }
@@ -233,18 +167,26 @@ static double c_energy(const sw_model *m)
             if (j > 0)
                 kin += (double)hx[i] * u[i] * u[i];
             if (i > j * s)
-                kin += (double)hy[i] * v[i] * v[i];
+                kin += (double)hy[i] * vv[i] * vv[i];
         }
-    return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * dx * dy;
+    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * v->dt_s * cross) * dx * dy;
 }
 
+/* Stages: continuity of row j reads u of row j and v of rows j-1, j; u of row j reads eta of row j;
+ * v of row j reads eta of rows j, j+1 (and row 0 holds the south edge's faces). */
 const sw_layout_kernels SW_NAME(sw_layout_c_kernels) = {
     .prepare = c_prepare,
-    .step = c_step,
+    .continuity = {c_continuity, SW_WRITES(SW_FIELD_ETA), {SW_NO_ROWS, SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
+    .continuity_observed = c_continuity_observed,
+    .n_momentum = 2,
+    .momentum = {
+        [SW_TERMS_PLAIN] = {{c_u_row, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_NO_ROWS, SW_NO_ROWS}, 0},
+                            {c_v_row, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_NO_ROWS, SW_NO_ROWS}, 1}},
+    },
+    .observes = {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)},
     .centre_row = c_centre_row,
     .centre_row_f32 = c_centre_row_f32,
     .energy = c_energy,
-    .observes_rows = 1,
 };
 
 #if SW_REAL_BITS == 64

@@ -32,7 +32,7 @@
  * mean u and v of its water neighbours.
  * Open and level edges use the shared ghost list, in two kinds: beside an eta cell the ghost is a
  * velocity point, beside a u,v cell an eta point (no velocity, hx = hy = 0). Open: a velocity ghost
- * takes eta from the inner cell (sw_model_edge_eta_row) and the outgoing wave's velocity
+ * takes eta from the inner cell (the shared ghost update) and the outgoing wave's velocity
  * sign sqrt(g/h) eta_ghost; an eta ghost is left alone by the shared update (keep = 1, take = 0)
  * and moves, by an implicit upwind step over dx, towards the outgoing-wave elevation of the inner
  * velocity, u / (sign sqrt(g/h)). It must follow that velocity (its own lattice), not the inner
@@ -55,7 +55,7 @@
 #include <stddef.h>
 
 #include "model/layout.h"
-#include "model/model_impl.h"
+#include "model/stage.h"
 #include "base/omp_compat.h"
 
 #if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
@@ -66,46 +66,23 @@ static double e_max_frequency(double gh, double dx, double dy, int dims)
 }
 #endif
 
-/* Padded index of cell (i, j), -1 <= i <= nx, -1 <= j <= ny. */
-static size_t e_pad(const sw_model *m, ptrdiff_t i, ptrdiff_t j)
-{
-    return (size_t)(j + 1) * m->stride + (size_t)(i + 1);
-}
-
-/* 1 when cell (i, j) (halo included) is water the stencils may use: a water cell of the grid, or the
- * ghost beside an open or level edge. Halo corners are never water. */
-static int e_water(const sw_model *m, ptrdiff_t i, ptrdiff_t j)
-{
-    const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
-    const int out_x = i < 0 || i >= nx, out_y = j < 0 || j >= ny;
-    if (out_x && out_y)
-        return 0;
-    if (out_x && m->edges[i < 0 ? SW_WEST : SW_EAST] == SW_EDGE_WALL)
-        return 0;
-    if (out_y && m->edges[j < 0 ? SW_SOUTH : SW_NORTH] == SW_EDGE_WALL)
-        return 0;
-    ptrdiff_t ii = i < 0 ? 0 : i >= nx ? nx - 1 : i;
-    ptrdiff_t jj = j < 0 ? 0 : j >= ny ? ny - 1 : j;
-    return SW_F(m, h)[e_pad(m, ii, jj)] > 0;
-}
-
 /* Turns the shared edge list into the E layout's two kinds of ghost (see the file comment). A ghost
  * beside an eta cell is a velocity point: it keeps the shared coefficients and gets a flux depth.
  * A ghost beside a u,v cell is an eta point with no velocity and no flux depth: the shared update
- * leaves it alone (keep = 1, take = 0) and e_step radiates it from the inner velocity (open, vel
- * kept as sign sqrt(g/h)), or it is the level node and stays 0 (keep = take = vel = 0). */
-static void e_prepare_edges(sw_model *m)
+ * leaves it alone (keep = 1, take = 0) and e_edge_velocities radiates it from the inner velocity (open,
+ * vel kept as sign sqrt(g/h)), or it is the level node and stays 0 (keep = take = vel = 0). */
+static void e_prepare_edges(sw_prep *p)
 {
-    const size_t s = m->stride;
-    for (size_t q = 0; q < m->n_edge; q++) {
-        sw_edge_cell *oc = &m->edge[q];
+    const size_t s = p->f.stride;
+    for (size_t q = 0; q < p->n_edge; q++) {
+        sw_edge_cell *oc = &p->edge[q];
         const size_t i = oc->inner % s - 1, j = oc->inner / s - 1;
-        sw_real *hn = oc->normal_x ? SW_F(m, hx) : SW_F(m, hy);
+        sw_real *hn = oc->normal_x ? SW_V(&p->f, hx) : SW_V(&p->f, hy);
         if ((i + j) % 2 == 0) {
-            hn[oc->ghost] = SW_F(m, h)[oc->inner];
+            hn[oc->ghost] = SW_V(&p->f, h)[oc->inner];
             continue;
         }
-        const int open = oc->mirror == 0;   /* the shared list marks level ghosts with mirror = 1 */
+        const int open = oc->kind == SW_EDGE_OPEN;
         oc->mirror = 0;
         oc->keep = open ? 1 : 0;
         oc->take = 0;
@@ -114,87 +91,102 @@ static void e_prepare_edges(sw_model *m)
     }
 }
 
-static sw_status e_prepare(sw_model *m, sw_error *err)
+static void e_prepare(sw_prep *p)
 {
-    const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
+    const sw_view *v = &p->f;
+    const ptrdiff_t nx = (ptrdiff_t)v->nx, ny = (ptrdiff_t)v->ny;
+    sw_real *h = SW_V(v, h), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
+    double d;
     for (ptrdiff_t j = 0; j < ny; j++)
         for (ptrdiff_t i = 0; i < nx; i++) {
-            size_t k = e_pad(m, i, j);
+            size_t k = sw_pad(v, i, j);
             if ((i + j) % 2 == 0)
                 continue;
-            SW_F(m, eta)[k] = 0;   /* a u,v cell holds no elevation */
-            if (!(SW_F(m, h)[k] > 0))
+            SW_V(v, eta)[k] = 0;   /* a u,v cell holds no elevation */
+            if (!(h[k] > 0))
                 continue;
-            SW_F(m, hx)[k] = e_water(m, i - 1, j) && e_water(m, i + 1, j) ? SW_F(m, h)[k] : 0;
-            SW_F(m, hy)[k] = e_water(m, i, j - 1) && e_water(m, i, j + 1) ? SW_F(m, h)[k] : 0;
+            hx[k] = sw_prep_water(p, i - 1, j, &d) && sw_prep_water(p, i + 1, j, &d) ? h[k] : 0;
+            hy[k] = sw_prep_water(p, i, j - 1, &d) && sw_prep_water(p, i, j + 1, &d) ? h[k] : 0;
         }
-    sw_status rc = sw_model_build_edges(m, m->grid.dx_m, m->grid.dy_m, err);
-    if (rc != SW_OK)
-        return rc;
-    e_prepare_edges(m);
-    return SW_OK;
+    e_prepare_edges(p);
 }
 
-/* Continuity (forward: from the old velocities; a no-op on u,v cells, whose neighbours carry no flux)
- * on the padded row at r + 1. */
-static inline void e_continuity_row(sw_real *restrict eta, const sw_real *restrict u, const sw_real *restrict v,
-                                    const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
-                                    size_t s, sw_real cx, sw_real cy)
+/* The new elevation of cell k (a no-op on u,v cells, whose neighbours carry no flux): A's formula. */
+SW_INLINE sw_real e_eta_cell(const sw_cells *c, size_t k)
 {
-    SW_OMP(simd)
-    for (size_t i = r + 1; i <= r + nx; i++)
-        eta[i] -= cx * (hx[i + 1] * u[i + 1] - hx[i - 1] * u[i - 1]) + cy * (hy[i + s] * v[i + s] - hy[i - s] * v[i - s]);
+    const size_t s = c->s;
+    return c->eta[k] - (c->cx * (c->hx[k + 1] * c->u[k + 1] - c->hx[k - 1] * c->u[k - 1])
+                        + c->cy * (c->hy[k + s] * c->v[k + s] - c->hy[k - s] * c->v[k - s]));
+}
+
+/* Centre values of cell k (grid column i, row j) in the state's precision, rounded to float: a cell's
+ * own variables, and the other kind as the mean over its water neighbours (within float round-off of
+ * e_centre_row, which sums in double). */
+SW_INLINE void e_centre_cell(const sw_cells *c, size_t k, size_t i, size_t j, float *eta, float *u, float *v)
+{
+    const size_t s = c->s;
+    const sw_real *h = c->h, *e = c->eta, *uu = c->u, *vv = c->v;
+    const sw_real ww = h[k - 1] > 0, we = h[k + 1] > 0, ws = h[k - s] > 0, wn = h[k + s] > 0;
+    const sw_real w = ww + we + ws + wn, inv = w > 0 ? 1 / w : 0, wet = h[k] > 0;
+    const int own = (i + j) % 2 == 0;   /* the cell stores eta; else u and v */
+    const sw_real ea = (ww * e[k - 1] + we * e[k + 1] + ws * e[k - s] + wn * e[k + s]) * inv;
+    const sw_real ua = (ww * uu[k - 1] + we * uu[k + 1] + ws * uu[k - s] + wn * uu[k + s]) * inv;
+    const sw_real va = (ww * vv[k - 1] + we * vv[k + 1] + ws * vv[k - s] + wn * vv[k + s]) * inv;
+    *eta = (float)(wet * (own ? e[k] : ea));
+    *u = (float)(wet * (own ? ua : uu[k]));
+    *v = (float)(wet * (own ? va : vv[k]));
+}
+
+static sw_cells e_cells(const sw_view *v)
+{
+    return (sw_cells){SW_V(v, eta), SW_V(v, u), SW_V(v, v), SW_V(v, h), SW_V(v, hx), SW_V(v, hy), v->stride,
+                      (sw_real)(0.5 * v->dt_s / v->dx_m), (sw_real)(0.5 * v->dt_s / v->dy_m)};
+}
+
+static void e_continuity(const sw_view *v, size_t j)
+{
+    const sw_cells c = e_cells(v);
+    sw_continuity_loop(&c, j * v->stride + 1, v->nx, e_eta_cell);
+}
+
+static void e_continuity_observed(const sw_view *v, size_t j, size_t f, float *buf)
+{
+    const sw_cells c = e_cells(v);
+    sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, e_eta_cell, e_centre_cell);
+}
+
+static void e_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, float *vel)
+{
+    const sw_cells c = e_cells(v);
+    sw_centre_loop(&c, j, v->nx, eta, u, vel, e_centre_cell);
 }
 
 /* Momentum (backward: from the new eta of this row and its two neighbours; eta cells have hx = hy = 0
- * and stay at rest) on the padded row at r + 1. */
-static inline void e_momentum_row(sw_real *restrict u, sw_real *restrict v, const sw_real *restrict eta,
-                                  const sw_real *restrict hx, const sw_real *restrict hy, size_t r, size_t nx,
-                                  size_t s, sw_real gx, sw_real gy)
+ * and stay at rest) on padded row j. */
+static void e_momentum(const sw_view *v, size_t j)
 {
+    sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
+    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
+    const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
-    for (size_t i = r + 1; i <= r + nx; i++) {
+    for (size_t i = r + 1; i <= r + v->nx; i++) {
         u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i - 1]) : 0;
-        v[i] = hy[i] > 0 ? v[i] - gy * (eta[i + s] - eta[i - s]) : 0;
+        vv[i] = hy[i] > 0 ? vv[i] - gy * (eta[i + s] - eta[i - s]) : 0;
     }
 }
 
-/* The step in one sweep over memory, as layout_a.c's (the same stencils): continuity of row j, its
- * edge ghosts, momentum of row j-1; the block's first and last rows' momentum after a barrier, then
- * the ghosts. A row's centre values need its neighbours' (e_centre_row) and the ghosts, so the model
- * observes rows after the step (observes_rows = 0). */
-static void e_step(sw_model *m)
+/* Ghost normal velocities beside eta cells: the outgoing wave's (open); on the mirror line, stepped like
+ * any velocity with the ghost's eta (the inner eta mirrored) as the far neighbour (level). Open eta
+ * ghosts beside u,v cells: radiated. */
+static void e_edge_velocities(const sw_view *v, const sw_edge_cell *oc, size_t q0, size_t q1)
 {
-    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
-    const sw_real cx = (sw_real)(0.5 * m->dt / m->grid.dx_m), cy = (sw_real)(0.5 * m->dt / m->grid.dy_m);
-    const sw_real gx = (sw_real)(0.5 * m->g * m->dt / m->grid.dx_m);
-    const sw_real gy = (sw_real)(0.5 * m->g * m->dt / m->grid.dy_m);
-    const sw_real rx = (sw_real)(m->dt / m->grid.dx_m), ry = (sw_real)(m->dt / m->grid.dy_m);
-    sw_real *restrict eta = SW_F(m, eta), *restrict u = SW_F(m, u), *restrict v = SW_F(m, v);
-    const sw_real *restrict hx = SW_F(m, hx), *restrict hy = SW_F(m, hy), *restrict h = SW_F(m, h);
-    const size_t nt = (size_t)omp_get_num_threads(), t = (size_t)omp_get_thread_num();
-    const size_t j0 = 1 + ny * t / nt, j1 = ny * (t + 1) / nt;   /* padded rows; empty when j1 < j0 */
-
-    for (size_t j = j0; j <= j1; j++) {
-        e_continuity_row(eta, u, v, hx, hy, j * s, nx, s, cx, cy);
-        sw_model_edge_eta_row(m, j);
-        if (j > j0 + 1)
-            e_momentum_row(u, v, eta, hx, hy, (j - 1) * s, nx, s, gx, gy);
-    }
-    SW_OMP(barrier)
-    if (j1 >= j0)
-        e_momentum_row(u, v, eta, hx, hy, j0 * s, nx, s, gx, gy);
-    if (j1 > j0)
-        e_momentum_row(u, v, eta, hx, hy, j1 * s, nx, s, gx, gy);
-    SW_OMP(barrier)
-
-    /* ghost normal velocities beside eta cells: the outgoing wave's (open); on the mirror line, stepped
-     * like any velocity with the ghost's eta (the inner eta mirrored) as the far neighbour (level) */
-    const sw_edge_cell *restrict oc = m->edge;
-    const size_t n_edge = m->n_edge;
-    SW_OMP(for schedule(static))
-    for (size_t q = 0; q < n_edge; q++) {
-        sw_real *vel = oc[q].normal_x ? u : v;
+    sw_real *u = SW_V(v, u), *vv = SW_V(v, v), *eta = SW_V(v, eta);
+    const sw_real *hx = SW_V(v, hx), *hy = SW_V(v, hy), *h = SW_V(v, h);
+    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
+    const sw_real rx = (sw_real)(v->dt_s / v->dx_m), ry = (sw_real)(v->dt_s / v->dy_m);
+    for (size_t q = q0; q < q1; q++) {
+        sw_real *vel = oc[q].normal_x ? u : vv;
         const sw_real *hn = oc[q].normal_x ? hx : hy;
         const size_t g = oc[q].ghost, n = oc[q].inner;
         if (hn[g] > 0) {   /* a velocity ghost */
@@ -213,14 +205,14 @@ static void e_step(sw_model *m)
 
 /* Centre values: a cell's own variables, and the other kind as the mean over its water neighbours
  * (cells of the grid with depth; the halo and land hold nothing of their own). */
-static void e_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
+static void e_centre_row(const sw_view *v, size_t j, double *eta, double *u, double *vel)
 {
-    const size_t r = sw_pidx(m, 0, j), s = m->stride;
-    const sw_real *h = SW_F(m, h), *e = SW_F(m, eta), *uu = SW_F(m, u), *vv = SW_F(m, v);
-    for (size_t i = 0; i < m->grid.nx; i++) {
+    const size_t r = sw_pad(v, 0, (ptrdiff_t)j), s = v->stride;
+    const sw_real *h = SW_V(v, h), *e = SW_V(v, eta), *uu = SW_V(v, u), *vv = SW_V(v, v);
+    for (size_t i = 0; i < v->nx; i++) {
         const size_t k = r + i;
         if (!(h[k] > 0)) {
-            eta[i] = u[i] = v[i] = 0;
+            eta[i] = u[i] = vel[i] = 0;
             continue;
         }
         const double ww = h[k - 1] > 0, we = h[k + 1] > 0, ws = h[k - s] > 0, wn = h[k + s] > 0;
@@ -229,42 +221,19 @@ static void e_centre_row(const sw_model *m, size_t j, double *eta, double *u, do
         if ((i + j) % 2 == 0) {
             eta[i] = e[k];
             u[i] = (ww * uu[k - 1] + we * uu[k + 1] + ws * uu[k - s] + wn * uu[k + s]) * inv;
-            v[i] = (ww * vv[k - 1] + we * vv[k + 1] + ws * vv[k - s] + wn * vv[k + s]) * inv;
+            vel[i] = (ww * vv[k - 1] + we * vv[k + 1] + ws * vv[k - s] + wn * vv[k + s]) * inv;
         } else {
             eta[i] = (ww * e[k - 1] + we * e[k + 1] + ws * e[k - s] + wn * e[k + s]) * inv;
             u[i] = uu[k];
-            v[i] = vv[k];
+            vel[i] = vv[k];
         }
     }
 }
 
-/* One cell's centre elevation, as e_centre_row computes it. */
-/* e_centre_row in the state's precision, rounded to float (centre_row_f32: within float round-off of
- * e_centre_row, which sums in double). */
-static void e_centre_row_f32(const sw_model *m, size_t j, float *restrict eta, float *restrict u, float *restrict v)
+static double e_eta_at(const sw_view *v, size_t i, size_t j)
 {
-    const size_t r = sw_pidx(m, 0, j), s = m->stride, nx = m->grid.nx;
-    const sw_real *restrict h = SW_F(m, h), *restrict e = SW_F(m, eta), *restrict uu = SW_F(m, u);
-    const sw_real *restrict vv = SW_F(m, v);
-    SW_OMP(simd)
-    for (size_t i = 0; i < nx; i++) {
-        const size_t k = r + i;
-        const sw_real ww = h[k - 1] > 0, we = h[k + 1] > 0, ws = h[k - s] > 0, wn = h[k + s] > 0;
-        const sw_real w = ww + we + ws + wn, inv = w > 0 ? 1 / w : 0, wet = h[k] > 0;
-        const int own = (i + j) % 2 == 0;   /* the cell stores eta; else u and v */
-        const sw_real ea = (ww * e[k - 1] + we * e[k + 1] + ws * e[k - s] + wn * e[k + s]) * inv;
-        const sw_real ua = (ww * uu[k - 1] + we * uu[k + 1] + ws * uu[k - s] + wn * uu[k + s]) * inv;
-        const sw_real va = (ww * vv[k - 1] + we * vv[k + 1] + ws * vv[k - s] + wn * vv[k + s]) * inv;
-        eta[i] = (float)(wet * (own ? e[k] : ea));
-        u[i] = (float)(wet * (own ? ua : uu[k]));
-        v[i] = (float)(wet * (own ? va : vv[k]));
-    }
-}
-
-static double e_eta_at(const sw_model *m, size_t i, size_t j)
-{
-    const size_t k = sw_pidx(m, i, j), s = m->stride;
-    const sw_real *h = SW_F(m, h), *e = SW_F(m, eta);
+    const size_t k = sw_pad(v, (ptrdiff_t)i, (ptrdiff_t)j), s = v->stride;
+    const sw_real *h = SW_V(v, h), *e = SW_V(v, eta);
     if (!(h[k] > 0))
         return 0;
     if ((i + j) % 2 == 0)
@@ -285,26 +254,37 @@ static void e_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 #endif
 
 /* E* with each eta point and each velocity point standing for 2 dx dy. */
-static double e_energy(const sw_model *m)
+static double e_energy(const sw_view *v)
 {
-    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
-    const double dx = m->grid.dx_m, dy = m->grid.dy_m;
-    const sw_real *eta = SW_F(m, eta), *u = SW_F(m, u), *v = SW_F(m, v), *hx = SW_F(m, hx), *hy = SW_F(m, hy);
+    const size_t nx = v->nx, ny = v->ny, s = v->stride;
+    const double dx = v->dx_m, dy = v->dy_m;
+    const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
     double pot = 0, kin = 0, cross = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
             double div = ((double)hx[i + 1] * u[i + 1] - (double)hx[i - 1] * u[i - 1]) / (2 * dx)
-                       + ((double)hy[i + s] * v[i + s] - (double)hy[i - s] * v[i - s]) / (2 * dy);
+                       + ((double)hy[i + s] * vv[i + s] - (double)hy[i - s] * vv[i - s]) / (2 * dy);
             pot += (double)eta[i] * eta[i];
-            kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * v[i] * v[i];
+            kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * vv[i] * vv[i];
             cross += eta[i] * div;
         }
-    return (0.5 * m->g * pot + 0.5 * kin - 0.5 * m->g * m->dt * cross) * 2 * dx * dy;
+    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * v->dt_s * cross) * 2 * dx * dy;
 }
 
+/* Stages as the A layout's: continuity of row j reads u of row j and v of rows j-1 .. j+1; momentum of
+ * row j reads eta of rows j-1 .. j+1. A row's centre values read its neighbours' rows. */
 const sw_layout_kernels SW_NAME(sw_layout_e_kernels) = {
     .prepare = e_prepare,
-    .step = e_step,
+    .continuity = {e_continuity, SW_WRITES(SW_FIELD_ETA), {SW_NO_ROWS, SW_ROWS(0, 0), SW_ROWS(-1, 1)}, 0},
+    .continuity_observed = e_continuity_observed,
+    .n_momentum = 1,
+    .momentum = {
+        [SW_TERMS_PLAIN] = {{e_momentum, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                             {SW_ROWS(-1, 1), SW_NO_ROWS, SW_NO_ROWS}, 0}},
+    },
+    .edge_velocities = e_edge_velocities,
+    .observes = {SW_ROWS(-1, 1), SW_ROWS(-1, 1), SW_ROWS(-1, 1)},
+    .centre_reads_halo = 1,
     .centre_row = e_centre_row,
     .centre_row_f32 = e_centre_row_f32,
     .eta_at = e_eta_at,

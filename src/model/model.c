@@ -1,7 +1,8 @@
 /* model.c - model state, its memory, and what every layout shares (see model.h).
  *
  * Invariant: on land cells and in the halo at walls, eta, u, v, h, hx and hy are 0 and stay 0;
- * the layouts guarantee it by giving every face next to land a zero flux depth.
+ * the layouts guarantee it by giving every face next to land a zero flux depth. The halo beyond a
+ * periodic edge holds a copy of the opposite side (the stepper keeps it so).
  * Time levels: after n steps the state holds eta at t_n = n dt and u, v at t_n + dt/2; a new model is
  * the water at rest at t = 0 (start_at_rest).
  */
@@ -14,21 +15,16 @@
 
 #include "base/fpmode.h"
 #include "base/omp_compat.h"
+#include "model/stepper.h"
 
 #define SW_ALIGN 64
 
-/* The layout's step, and the observer over every row when the step does not observe rows itself, with
- * subnormal numbers flushed to zero (fpmode.h); the caller's floating-point mode is restored after. */
+/* The stepper's step (which also shows the observer every finished row), with subnormal numbers
+ * flushed to zero (fpmode.h); the caller's floating-point mode is restored after. */
 static void step_flushed(sw_model *m)
 {
     const unsigned int saved = sw_fp_flush();
-    m->kernels->step(m);
-    if (m->observed && !m->kernels->observes_rows) {
-        const double t = (double)(m->steps + 1) * m->dt;
-        SW_OMP(for schedule(static))
-        for (size_t j = 0; j < m->grid.ny; j++)
-            m->observe(m->observe_ctx, m, j, t, NULL);
-    }
+    m->step(m);
     sw_fp_restore(saved);
 }
 
@@ -111,6 +107,22 @@ double sw_model_courant(const sw_grid *g, double h_max_m, double gravity_ms2, do
     return sqrt(gravity_ms2 * h_max_m) * dt_s / d;
 }
 
+/* Refreshes the halo of padded field f beyond periodic edges: the cells of the opposite side (rows
+ * after columns, so that the corners follow too). For set-up; the stepper keeps the halo during steps. */
+static void wrap_halo(sw_model *m, void *f)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride, size = sw_precision_bytes(m->precision);
+    if (m->edges[SW_WEST] == SW_EDGE_PERIODIC)
+        for (size_t j = 0; j < ny + 2; j++) {
+            sw_model_put(m, f, j * s, sw_model_get(m, f, j * s + nx));
+            sw_model_put(m, f, j * s + nx + 1, sw_model_get(m, f, j * s + 1));
+        }
+    if (m->edges[SW_SOUTH] == SW_EDGE_PERIODIC) {
+        memcpy(f, (char *)f + ny * s * size, s * size);
+        memcpy((char *)f + (ny + 1) * s * size, (char *)f + s * size, s * size);
+    }
+}
+
 /* Every ghost elevation at the fixed point of its update (sw_edge_cell) for the present inner
  * elevation: eta_g = keep eta_g + take eta_in solved for eta_g, i.e. take / (1 - keep) eta_in, what the
  * ghost holds once the inner cell has been still long enough. Open edges (keep + take = 1): the inner
@@ -121,8 +133,9 @@ static void ghosts_at_rest(sw_model *m)
     for (size_t q = 0; q < m->n_edge; q++) {
         const sw_edge_cell *oc = &m->edge[q];
         if (oc->keep != 1)
-            sw_model_put(m, m->eta, oc->ghost, oc->take / (1 - oc->keep) * sw_model_get(m, m->eta, oc->inner));
+            sw_model_put(m, m->view.eta, oc->ghost, oc->take / (1 - oc->keep) * sw_model_get(m, m->view.eta, oc->inner));
     }
+    wrap_halo(m, m->view.eta);
 }
 
 /* Makes the new state (eta_0 in place, u = v = 0, ghosts as allocated) the state at rest at t = 0.
@@ -159,10 +172,9 @@ static sw_status start_at_rest(sw_model *m, sw_error *err)
         m->edge[q].take = 0;
         m->edge[q].vel = 0;
     }
-    const double dt = m->dt;
-    m->dt = 0.5 * dt;
+    m->view.dt_s = 0.5 * m->dt;
     step_flushed(m);
-    m->dt = dt;
+    m->view.dt_s = m->dt;
     if (m->n_edge)
         memcpy(m->edge, saved, m->n_edge * sizeof *saved);
     free(saved);
@@ -181,9 +193,12 @@ static void observe_nothing(void *ctx, const sw_model *m, size_t j, double time_
     (void)time_s;
 }
 
-sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *err)
+static sw_status sort_edges_by_row(sw_model *m, sw_error *err);
+
+/* The configuration's faults that are the caller's (not the scenario's: setup.c checks those with
+ * line numbers first), or SW_OK. */
+static sw_status check_config(const sw_model_config *cfg, sw_error *err)
 {
-    *out = NULL;
     const sw_grid *g = &cfg->grid;
     if (!cfg->layout || g->nx == 0 || g->ny == 0 || !(g->dx_m > 0) || !(g->dy_m > 0) || !(cfg->dt_s > 0)
         || !(cfg->gravity_ms2 > 0) || !(cfg->min_depth_m > 0))
@@ -191,7 +206,69 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     if ((unsigned)cfg->precision >= SW_PRECISIONS || !cfg->layout->kernels[cfg->precision])
         return sw_fail(err, SW_ERR_USAGE, "model: precision %d is not one of 0 (double), 1 (single)",
                        (int)cfg->precision);
+    for (int e = 0; e < 4; e++)
+        if ((unsigned)cfg->edges[e] > SW_EDGE_PERIODIC)
+            return sw_fail(err, SW_ERR_USAGE, "model: edge %d has kind %d, not one of 0 .. 3", e, (int)cfg->edges[e]);
+    if ((cfg->edges[SW_WEST] == SW_EDGE_PERIODIC) != (cfg->edges[SW_EAST] == SW_EDGE_PERIODIC)
+        || (cfg->edges[SW_SOUTH] == SW_EDGE_PERIODIC) != (cfg->edges[SW_NORTH] == SW_EDGE_PERIODIC))
+        return sw_fail(err, SW_ERR_RANGE, "model: a periodic edge needs the opposite edge periodic too");
+    return SW_OK;
+}
 
+/* The ghost list of the open and level edges: one halo cell beyond each water cell on such an edge,
+ * with the shared coefficients (stage.h, sw_edge_cell); r uses the cell sizes dx, dy. */
+static sw_status build_edges(sw_model *m, sw_error *err)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny;
+    size_t cap = 0;
+    for (int e = 0; e < 4; e++)
+        if (m->edges[e] == SW_EDGE_OPEN || m->edges[e] == SW_EDGE_LEVEL)
+            cap += (e == SW_SOUTH || e == SW_NORTH) ? nx : ny;
+    m->n_edge = 0;
+    m->edge_row = calloc(ny + 3, sizeof *m->edge_row);
+    m->edge = calloc(cap ? cap : 1, sizeof *m->edge);
+    if (!m->edge || !m->edge_row)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating edge cells");
+
+    for (int e = 0; e < 4; e++) {
+        if (m->edges[e] != SW_EDGE_OPEN && m->edges[e] != SW_EDGE_LEVEL)
+            continue;
+        int along_x = (e == SW_SOUTH || e == SW_NORTH);
+        size_t n = along_x ? nx : ny;
+        for (size_t t = 0; t < n; t++) {
+            size_t i = along_x ? t : (e == SW_WEST ? 0 : nx - 1);
+            size_t j = along_x ? (e == SW_SOUTH ? 0 : ny - 1) : t;
+            if (!m->wet[j * nx + i])
+                continue;
+            size_t inner = sw_pidx(m, i, j);
+            size_t ghost = e == SW_WEST ? inner - 1 : e == SW_EAST ? inner + 1
+                         : e == SW_SOUTH ? inner - m->stride : inner + m->stride;
+            double h = sw_model_get(m, m->view.h, inner);
+            double c = sqrt(m->g * h);
+            double r = c * m->dt / (along_x ? m->grid.dy_m : m->grid.dx_m);
+            double sign = (e == SW_EAST || e == SW_NORTH) ? 1 : -1;
+            int open = m->edges[e] == SW_EDGE_OPEN;
+            sw_edge_cell *oc = &m->edge[m->n_edge++];
+            oc->ghost = ghost;
+            oc->inner = inner;
+            oc->keep = open ? 1 / (1 + r) : 0;
+            oc->take = open ? r / (1 + r) : -1;
+            oc->vel = open ? sign * c / h : 0;
+            oc->mirror = open ? 0 : 1;
+            oc->normal_x = !along_x;
+            oc->kind = m->edges[e];
+        }
+    }
+    return SW_OK;
+}
+
+sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *err)
+{
+    *out = NULL;
+    sw_status rc = check_config(cfg, err);
+    if (rc != SW_OK)
+        return rc;
+    const sw_grid *g = &cfg->grid;
     double h_max = deepest(g, cfg->depth_m, cfg->min_depth_m);
     if (h_max <= 0.0)
         return sw_fail(err, SW_ERR_RANGE, "the domain has no water: every cell is shallower than min_depth = %g m",
@@ -212,6 +289,7 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     m->layout = cfg->layout;
     m->precision = cfg->precision;
     m->kernels = cfg->layout->kernels[cfg->precision];
+    m->step = cfg->precision == SW_SINGLE ? sw_stepper_step_f32 : sw_stepper_step_f64;
     m->observe = observe_nothing;
     m->grid = *g;
     m->g = cfg->gravity_ms2;
@@ -219,22 +297,29 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     m->min_depth = cfg->min_depth_m;
     m->h_max = h_max;
     memcpy(m->edges, cfg->edges, sizeof m->edges);
+    m->terms_cfg = cfg->terms;
     const size_t size = sw_precision_bytes(cfg->precision);
     m->stride = stride_for(g, size);
     m->n_pad = m->stride * (g->ny + 2);
 
-    m->eta = alloc_field(g->ny + 2, m->stride, size);
-    m->u = alloc_field(g->ny + 2, m->stride, size);
-    m->v = alloc_field(g->ny + 2, m->stride, size);
-    m->h = alloc_field(g->ny + 2, m->stride, size);
-    m->hx = alloc_field(g->ny + 2, m->stride, size);
-    m->hy = alloc_field(g->ny + 2, m->stride, size);
+    sw_view *v = &m->view;
+    *v = (sw_view){.nx = g->nx, .ny = g->ny, .stride = m->stride, .dx_m = g->dx_m, .dy_m = g->dy_m, .g = m->g,
+                   .dt_s = m->dt, .terms = &m->terms};
+    v->eta = alloc_field(g->ny + 2, m->stride, size);
+    v->u = alloc_field(g->ny + 2, m->stride, size);
+    v->v = alloc_field(g->ny + 2, m->stride, size);
+    v->h = alloc_field(g->ny + 2, m->stride, size);
+    v->hx = alloc_field(g->ny + 2, m->stride, size);
+    v->hy = alloc_field(g->ny + 2, m->stride, size);
     m->wet = calloc(sw_grid_cells(g), 1);
-    if (!m->eta || !m->u || !m->v || !m->h || !m->hx || !m->hy || !m->wet) {
+    m->f_rows = calloc(2 * (g->ny + 2), sizeof *m->f_rows);
+    if (!v->eta || !v->u || !v->v || !v->h || !v->hx || !v->hy || !m->wet || !m->f_rows) {
         sw_model_free(m);
         return sw_fail(err, SW_ERR_NOMEM, "out of memory: the model needs %zu MB for a %zu x %zu grid in %s precision",
                        sw_model_bytes_for(g, cfg->precision) >> 20, g->nx, g->ny, sw_precision_name(cfg->precision));
     }
+    m->terms.f_centre = m->f_rows;
+    m->terms.f_face = m->f_rows + g->ny + 2;
 
     for (size_t j = 0; j < g->ny; j++)
         for (size_t i = 0; i < g->nx; i++) {
@@ -242,12 +327,24 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
             double d = cfg->depth_m[k];
             if (d >= cfg->min_depth_m) {
                 m->wet[k] = 1;
-                sw_model_put(m, m->h, sw_pidx(m, i, j), d);
-                sw_model_put(m, m->eta, sw_pidx(m, i, j), cfg->eta0_m ? cfg->eta0_m[k] : 0);
+                sw_model_put(m, v->h, sw_pidx(m, i, j), d);
+                sw_model_put(m, v->eta, sw_pidx(m, i, j), cfg->eta0_m ? cfg->eta0_m[k] : 0);
             }
         }
+    wrap_halo(m, v->h);
 
-    sw_status rc = m->kernels->prepare(m, err);
+    rc = build_edges(m, err);
+    if (rc == SW_OK) {
+        sw_prep prep = {.f = *v, .edge = m->edge, .n_edge = m->n_edge};
+        memcpy(prep.edges, m->edges, sizeof prep.edges);
+        m->kernels->prepare(&prep);
+        wrap_halo(m, v->hx);
+        wrap_halo(m, v->hy);
+        wrap_halo(m, v->eta);
+        rc = sort_edges_by_row(m, err);
+    }
+    if (rc == SW_OK)
+        rc = sw_step_plan_build(m->kernels, sw_terms_variant_of(&m->terms_cfg), m->edges, &m->plan, err);
     if (rc == SW_OK)
         rc = start_at_rest(m, err);
     if (rc != SW_OK) {
@@ -262,34 +359,19 @@ void sw_model_free(sw_model *m)
 {
     if (!m)
         return;
-    free(m->eta);
-    free(m->u);
-    free(m->v);
-    free(m->h);
-    free(m->hx);
-    free(m->hy);
+    free(m->view.eta);
+    free(m->view.u);
+    free(m->view.v);
+    free(m->view.h);
+    free(m->view.hx);
+    free(m->view.hy);
     free(m->wet);
+    free(m->f_rows);
+    free(m->drag);
     free(m->edge);
     free(m->edge_row);
     free(m->obs_buf);
     free(m);
-}
-
-int sw_model_water_at(const sw_model *m, ptrdiff_t i, ptrdiff_t j, double *depth_m)
-{
-    const ptrdiff_t nx = (ptrdiff_t)m->grid.nx, ny = (ptrdiff_t)m->grid.ny;
-    const int out_x = i < 0 || i >= nx, out_y = j < 0 || j >= ny;
-    *depth_m = 0;
-    if (out_x && out_y)
-        return 0;
-    if (out_x && m->edges[i < 0 ? SW_WEST : SW_EAST] == SW_EDGE_WALL)
-        return 0;
-    if (out_y && m->edges[j < 0 ? SW_SOUTH : SW_NORTH] == SW_EDGE_WALL)
-        return 0;
-    ptrdiff_t ii = i < 0 ? 0 : i >= nx ? nx - 1 : i;
-    ptrdiff_t jj = j < 0 ? 0 : j >= ny ? ny - 1 : j;
-    *depth_m = sw_model_get(m, m->h, sw_pidx_halo(m, ii, jj));
-    return *depth_m > 0;
 }
 
 /* Orders m->edge by the padded row of the inner cell (a stable counting sort) and fills m->edge_row. */
@@ -317,50 +399,6 @@ static sw_status sort_edges_by_row(sw_model *m, sw_error *err)
     return SW_OK;
 }
 
-sw_status sw_model_build_edges(sw_model *m, double spacing_x, double spacing_y, sw_error *err)
-{
-    const size_t nx = m->grid.nx, ny = m->grid.ny;
-    size_t cap = 0;
-    for (int e = 0; e < 4; e++)
-        if (m->edges[e] != SW_EDGE_WALL)
-            cap += (e == SW_SOUTH || e == SW_NORTH) ? nx : ny;
-    m->n_edge = 0;
-    m->edge_row = calloc(ny + 3, sizeof *m->edge_row);
-    m->edge = calloc(cap ? cap : 1, sizeof *m->edge);
-    if (!m->edge || !m->edge_row)
-        return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating edge cells");
-
-    for (int e = 0; e < 4; e++) {
-        if (m->edges[e] == SW_EDGE_WALL)
-            continue;
-        int along_x = (e == SW_SOUTH || e == SW_NORTH);
-        size_t n = along_x ? nx : ny;
-        for (size_t t = 0; t < n; t++) {
-            size_t i = along_x ? t : (e == SW_WEST ? 0 : nx - 1);
-            size_t j = along_x ? (e == SW_SOUTH ? 0 : ny - 1) : t;
-            if (!m->wet[j * nx + i])
-                continue;
-            size_t inner = sw_pidx(m, i, j);
-            size_t ghost = e == SW_WEST ? inner - 1 : e == SW_EAST ? inner + 1
-                         : e == SW_SOUTH ? inner - m->stride : inner + m->stride;
-            double h = sw_model_get(m, m->h, inner);
-            double c = sqrt(m->g * h);
-            double r = c * m->dt / (along_x ? spacing_y : spacing_x);
-            double sign = (e == SW_EAST || e == SW_NORTH) ? 1 : -1;
-            int open = m->edges[e] == SW_EDGE_OPEN;
-            sw_edge_cell *oc = &m->edge[m->n_edge++];
-            oc->ghost = ghost;
-            oc->inner = inner;
-            oc->keep = open ? 1 / (1 + r) : 0;
-            oc->take = open ? r / (1 + r) : -1;
-            oc->vel = open ? sign * c / h : 0;
-            oc->mirror = open ? 0 : 1;
-            oc->normal_x = !along_x;
-        }
-    }
-    return sort_edges_by_row(m, err);
-}
-
 void sw_model_step(sw_model *m) { step_flushed(m); }
 
 void sw_model_set_observer(sw_model *m, sw_row_observer fn, void *ctx)
@@ -373,7 +411,7 @@ void sw_model_set_observer(sw_model *m, sw_row_observer fn, void *ctx)
     m->obs_threads = 0;
     if (fn) {
         const size_t nx = m->grid.nx;
-        m->obs_len = 3 * nx + 3 * ((nx + SW_OBS_SEG - 1) / SW_OBS_SEG);
+        m->obs_len = sw_row_values_len(nx);
         m->obs_len = (m->obs_len + 15) / 16 * 16;   /* whole 64-byte lines: threads share none */
         int n = omp_get_max_threads();
         m->obs_buf = aligned_alloc(SW_ALIGN, (size_t)n * m->obs_len * sizeof(float));
@@ -381,7 +419,7 @@ void sw_model_set_observer(sw_model *m, sw_row_observer fn, void *ctx)
     }
 }
 
-double sw_model_energy(const sw_model *m) { return m->kernels->energy(m); }
+double sw_model_energy(const sw_model *m) { return m->kernels->energy(&m->view); }
 
 void sw_model_tick(sw_model *m)
 {
@@ -391,35 +429,25 @@ void sw_model_tick(sw_model *m)
 
 void sw_model_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v)
 {
-    m->kernels->centre_row(m, j, eta, u, v);
+    m->kernels->centre_row(&m->view, j, eta, u, v);
 }
 
-void sw_model_centre_row_f32(const sw_model *m, size_t j, float *eta, float *u, float *v, double *scratch)
+void sw_model_centre_row_f32(const sw_model *m, size_t j, float *eta, float *u, float *v)
 {
-    if (m->kernels->centre_row_f32) {
-        m->kernels->centre_row_f32(m, j, eta, u, v);
-        return;
-    }
-    const size_t nx = m->grid.nx;
-    m->kernels->centre_row(m, j, scratch, scratch + nx, scratch + 2 * nx);
-    for (size_t i = 0; i < nx; i++) {
-        eta[i] = (float)scratch[i];
-        u[i] = (float)scratch[nx + i];
-        v[i] = (float)scratch[2 * nx + i];
-    }
+    m->kernels->centre_row_f32(&m->view, j, eta, u, v);
 }
 
-double sw_model_eta(const sw_model *m, size_t i, size_t j) { return sw_model_get(m, m->eta, sw_pidx(m, i, j)); }
+double sw_model_eta(const sw_model *m, size_t i, size_t j) { return sw_model_get(m, m->view.eta, sw_pidx(m, i, j)); }
 
 double sw_model_eta_centre(const sw_model *m, size_t i, size_t j)
 {
-    return m->kernels->eta_at ? m->kernels->eta_at(m, i, j) : sw_model_eta(m, i, j);
+    return m->kernels->eta_at ? m->kernels->eta_at(&m->view, i, j) : sw_model_eta(m, i, j);
 }
 
 void sw_model_set_eta(sw_model *m, size_t i, size_t j, double eta_m)
 {
     if (m->wet[j * m->grid.nx + i])
-        sw_model_put(m, m->eta, sw_pidx(m, i, j), eta_m);
+        sw_model_put(m, m->view.eta, sw_pidx(m, i, j), eta_m);
 }
 
 double sw_model_volume(const sw_model *m)
@@ -428,7 +456,7 @@ double sw_model_volume(const sw_model *m)
     double sum = 0.0, comp = 0.0;
     for (size_t j = 0; j < m->grid.ny; j++)
         for (size_t i = 0; i < m->grid.nx; i++) {
-            double x = sw_model_get(m, m->eta, sw_pidx(m, i, j));
+            double x = sw_model_get(m, m->view.eta, sw_pidx(m, i, j));
             double t = sum + x;
             comp += fabs(sum) >= fabs(x) ? (sum - t) + x : (x - t) + sum;
             sum = t;

@@ -4,7 +4,9 @@
  *     d(eta)/dt + d(h u)/dx + d(h v)/dy = 0,      du/dt = -g d(eta)/dx,      dv/dt = -g d(eta)/dy,
  * with forward-backward stepping: eta is advanced first from the old velocities, then the
  * velocities from the new eta. Cells shallower than the minimum depth are land (walls: no flow
- * across their faces); each domain edge is a wall or open (a radiation condition).
+ * across their faces); each domain edge is a wall, open (a radiation condition), level (mean sea
+ * level held on the edge line) or periodic (joined to the opposite edge). Rotation and bottom
+ * friction enter the momentum equations when cfg->terms asks for them (terms.h).
  *
  * Time levels: after n steps (sw_model_time = n dt) the model holds eta at t_n and the velocities at
  * t_n + dt/2, the staggering in time that makes forward-backward second order. The initial state is
@@ -23,43 +25,11 @@
 #include "base/grid.h"
 #include "model/layout.h"
 #include "model/edges.h"
+#include "model/row_values.h"
+#include "model/terms.h"
 #include "base/status.h"
 
 typedef struct sw_model sw_model;
-
-/* Cells per segment of a row in sw_row_values. */
-#define SW_OBS_SEG 512
-
-/* A row's centre values as a layout's step may hand them to an observer, made in the same pass as the
- * step's own arithmetic: the values sw_model_centre_row_f32 gives, bit for bit, and
- * for each segment q of SW_OBS_SEG cells (the last may be shorter) the highest and lowest elevation and
- * the highest u*u + v*v, computed in float, over the segment. */
-typedef struct {
-    const float *eta, *u, *v;         /* [nx] m, m/s, m/s */
-    const float *hi, *lo, *speed2;    /* [ceil(nx / SW_OBS_SEG)] m, m, m2 s-2 */
-} sw_row_values;
-
-/* The extremes of sw_row_values over cells [a, b) of a row's centre values e, u, v: the highest and
- * lowest e and the highest u*u + v*v, in float. The one definition the steps that hand rows' values
- * and the tracker (which makes them when not handed) both use; the comparisons are not fmaxf /
- * fminf, which are libm calls per cell and stop the loop from vectorising. */
-static inline void sw_row_extremes(const float *restrict e, const float *restrict u, const float *restrict v,
-                                   size_t a, size_t b, float *hi_out, float *lo_out, float *speed2_out)
-{
-    float hi = -INFINITY, lo = INFINITY, top = 0;
-#ifdef _OPENMP
-#pragma omp simd reduction(max : hi, top) reduction(min : lo)
-#endif
-    for (size_t i = a; i < b; i++) {
-        const float s2 = u[i] * u[i] + v[i] * v[i];
-        hi = e[i] > hi ? e[i] : hi;
-        lo = e[i] < lo ? e[i] : lo;
-        top = s2 > top ? s2 : top;
-    }
-    *hi_out = hi;
-    *lo_out = lo;
-    *speed2_out = top;
-}
 
 /* An observer of the state, row by row: called with grid row j (0 .. ny-1) once a step has finished
  * every value of that row, with time_s the time of that state (s), by the thread that finished the row
@@ -77,7 +47,9 @@ typedef struct {
     double min_depth_m;        /* land threshold, m (> 0) */
     double gravity_ms2;        /* g, m s-2 */
     double dt_s;               /* time step, s (> 0); see sw_model_dt_limit */
-    sw_edge_kind edges[4];     /* SW_WEST .. SW_NORTH */
+    sw_edge_kind edges[4];     /* SW_WEST .. SW_NORTH; periodic ones come in pairs (west and east,
+                                * south and north) */
+    sw_terms_config terms;     /* rotation and friction; the zero value is none */
     int allow_unstable;        /* 1 = accept dt beyond the stability limit (for stability experiments) */
     sw_precision precision;    /* of the state: SW_DOUBLE (the zero default) or SW_SINGLE (real.h) */
 } sw_model_config;
@@ -104,11 +76,10 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
 /* Frees the model. m may be NULL. */
 void sw_model_free(sw_model *m);
 
-/* One time step (see sw_layout.step: call from all threads of a parallel region, or outside one).
- * With an observer set (sw_model_set_observer) it also shows the observer every row of the new state:
- * layouts whose step observes rows as it finishes them (sw_layout_kernels.observes_rows) do it while
- * the row is still in cache; for the others every row is observed after the step. The time passed is
- * the time after the step, what sw_model_time gives after the sw_model_tick that follows. */
+/* One time step (the stepper, stepper.h: call from all threads of a parallel region, or outside one).
+ * With an observer set (sw_model_set_observer) it also shows the observer every row of the new state,
+ * each as soon as the step has finished it (while it is still in cache, for most rows). The time passed
+ * is the time after the step, what sw_model_time gives after the sw_model_tick that follows. */
 void sw_model_step(sw_model *m);
 
 /* Sets the row observer sw_model_step calls (NULL: none), with room for steps on up to
@@ -123,8 +94,8 @@ void sw_model_tick(sw_model *m);
 void sw_model_centre_row(const sw_model *m, size_t j, double *eta, double *u, double *v);
 
 /* sw_model_centre_row in float, to float round-off (sw_layout_kernels.centre_row_f32), into eta, u, v
- * (each nx long); scratch holds 3 nx doubles for layouts without a float kernel. The tracker's input. */
-void sw_model_centre_row_f32(const sw_model *m, size_t j, float *eta, float *u, float *v, double *scratch);
+ * (each nx long). The tracker's input. */
+void sw_model_centre_row_f32(const sw_model *m, size_t j, float *eta, float *u, float *v);
 
 /* Elevation at cell centre (i, j), m. */
 double sw_model_eta(const sw_model *m, size_t i, size_t j);

@@ -55,7 +55,6 @@ static float trigger(float weakest, float floor_value)
  * its own (threads write their counts every row); its size is a whole number of lines. */
 typedef struct {
     _Alignas(64) float *row;   /* [3 nx]: centre eta, u, v of one row */
-    double *scratch;      /* [3 nx]: for layouts without a float centre row */
     int nonfinite;        /* the thread met a NaN or Inf */
     long long seen;       /* segments looked at */
     long long updated;    /* segments whose maps were rewritten */
@@ -81,7 +80,6 @@ static void free_slots(sw_tracker *t)
 {
     for (int q = 0; t->slot && q <= t->n_threads; q++) {
         free(t->slot[q].row);
-        free(t->slot[q].scratch);
     }
     free(t->slot);
     t->slot = NULL;
@@ -101,8 +99,7 @@ static sw_status ensure_slots(sw_tracker *t, int n, sw_error *err)
     int ok = 1;
     for (int q = 0; q <= n; q++) {
         slot[q].row = malloc(3 * t->nx * sizeof(float));
-        slot[q].scratch = malloc(3 * t->nx * sizeof(double));
-        ok &= slot[q].row && slot[q].scratch;
+        ok &= slot[q].row != NULL;
     }
     for (int q = 0; t->slot && q <= t->n_threads; q++) {   /* counts: the old overflow slot's into the new */
         const int to = q < t->n_threads ? q : n;
@@ -113,7 +110,6 @@ static sw_status ensure_slots(sw_tracker *t, int n, sw_error *err)
     if (!ok) {
         for (int q = 0; q <= n; q++) {
             free(slot[q].row);
-            free(slot[q].scratch);
         }
         free(slot);
         return sw_fail(err, SW_ERR_NOMEM, "out of memory for the tracker's %d thread buffers", n);
@@ -233,7 +229,7 @@ static void track_row_in(sw_tracker *t, thread_slot *sl, const sw_model *m, size
         uu = pre->u;
         vv = pre->v;
     } else {
-        sw_model_centre_row_f32(m, j, row, row + nx, row + 2 * nx, sl->scratch);
+        sw_model_centre_row_f32(m, j, row, row + nx, row + 2 * nx);
         e = row;
         uu = row + nx;
         vv = row + 2 * nx;

@@ -1,0 +1,228 @@
+/* stage.h - what a layout's per-row stage kernels see and declare; shared by the layouts and the stepper.
+ *
+ * A layout does not step the model: it gives the stepper (stepper.c) a few stage kernels, each of
+ * which advances ONE padded row of the fields it writes, on a plain view of the fields (sw_view: arrays,
+ * stride, constants; no sw_model). Each stage also declares which rows of each field it reads, relative
+ * to its own row; from that the stepper derives the one fused sweep over memory (continuity of row j,
+ * then the velocity rows it completes), the rows that must wait for a barrier at thread-block
+ * boundaries, the periodic halo copies, and when a row is final so that observers can see it.
+ *
+ * Every field array is padded with one halo cell on each side: cell (i, j) of the grid (0-based) lives
+ * at (j + 1) * stride + (i + 1); padded row j holds grid row j - 1. Stage rows are padded rows.
+ *
+ * Precision: this header is included by files compiled once per precision (SW_REAL_BITS, base/real.h);
+ * the arrays hold sw_real there and are reached through SW_V(view, field).
+ */
+#ifndef SW_STAGE_H
+#define SW_STAGE_H
+
+#include <stddef.h>
+
+#include "base/real.h"
+#include "model/edges.h"
+#include "model/row_values.h"
+#include "model/terms.h"
+
+enum { SW_FIELD_ETA = 0, SW_FIELD_U = 1, SW_FIELD_V = 2, SW_N_FIELDS = 3 };
+#define SW_WRITES(field) (1u << (field))
+
+/* Rows row + lo .. row + hi of one field; lo > hi means none. */
+typedef struct {
+    signed char lo, hi;
+} sw_rows;
+#define SW_ROWS(lo, hi) {(lo), (hi)}
+#define SW_NO_ROWS {1, 0}
+
+/* The fields of a model and the step's constants, as stage kernels see them. */
+typedef struct sw_view {
+    void *eta;            /* elevation at cell centres, m (sw_real [n_pad]) */
+    void *u, *v;          /* velocities where the layout puts them, m/s */
+    void *h;              /* depth at cell centres, m; 0 on land and in the halo at walls */
+    void *hx, *hy;        /* depth carried by each u and v point, m; 0 = no flow there */
+    size_t nx, ny;        /* grid cells */
+    size_t stride;        /* values between rows */
+    double dx_m, dy_m;    /* cell size, m */
+    double g;             /* gravity, m s-2 */
+    double dt_s;          /* the step being taken, s (dt, or dt/2 for the start at rest) */
+    const sw_terms *terms;/* rotation and friction; never NULL (all zero without terms) */
+} sw_view;
+
+/* Advances padded row `row` of the fields the stage writes. */
+typedef void (*sw_stage_fn)(const sw_view *v, size_t row);
+
+/* One stage of a step. Stages run in table order over each row: continuity first (writes eta from the
+ * old velocities), then the momentum stages. A stage reads the fields written by earlier stages as new
+ * and the others as old; it may read the field it writes only on its own row. */
+typedef struct {
+    sw_stage_fn run;
+    unsigned writes;                 /* SW_WRITES(SW_FIELD_...) of the fields it writes */
+    sw_rows reads[SW_N_FIELDS];      /* rows of eta, u, v it reads, relative to its row */
+    int south_line;                  /* 1: it also computes padded row 0, the line of the south edge
+                                      * (velocities on the edge), unless that edge is periodic */
+} sw_stage;
+
+/* Continuity of padded row `row` and, in the same pass over memory, the values an observer needs of
+ * the finished padded row `obs_row` (sw_row_values layout: eta, u, v at the centres [nx] as floats,
+ * then per segment of SW_OBS_SEG cells the highest and lowest eta and the highest u*u + v*v) into buf.
+ * The values must be bit for bit those of the layout's centre_row_f32. */
+typedef void (*sw_continuity_observed_fn)(const sw_view *v, size_t row, size_t obs_row, float *buf);
+
+/* One ghost (halo) cell beyond an open or level edge. After the continuity of its inner cell's row the
+ * stepper sets
+ *     eta_g <- keep * eta_g + take * eta_in
+ * open:  keep = 1/(1+r), take = r/(1+r): an implicit upwind step of d(eta)/dt + c d(eta)/dn = 0
+ *        (unconditionally stable; r = c dt / spacing, c = sqrt(g h)), so the ghost follows the
+ *        outgoing wave;
+ * level: keep = 0, take = -1: eta is antisymmetric about the edge line, a node of mean level there.
+ * Layouts that keep a velocity in the ghost (A, D, E) set it in their edge_velocities kernel from
+ * vel * eta_g + mirror * (inner velocity): open: vel = sign sqrt(g/h), mirror = 0 (the outgoing wave's
+ * velocity); level: vel = 0, mirror = 1. vel = 0 also switches off the radiation of ghosts that a layout
+ * moves by a rule of its own (D, E): the model's start at rest holds every ghost still that way. */
+typedef struct {
+    size_t ghost;   /* padded index of the ghost (halo) cell */
+    size_t inner;   /* padded index of the edge cell inside the domain */
+    double keep, take;   /* ghost update coefficients, dimensionless */
+    double vel;     /* s-1: ghost normal velocity per metre of ghost eta */
+    double mirror;  /* dimensionless: ghost normal velocity per unit inner normal velocity */
+    int normal_x;   /* 1 if the edge is west/east (normal along x), 0 if south/north */
+    sw_edge_kind kind;   /* of its edge: SW_EDGE_OPEN or SW_EDGE_LEVEL */
+} sw_edge_cell;
+
+/* Velocities (and, for layouts that radiate them, elevations) of ghost cells q0 .. q1-1, after every
+ * momentum stage of the step has finished. */
+typedef void (*sw_edge_fn)(const sw_view *v, const sw_edge_cell *cells, size_t q0, size_t q1);
+
+/* What a layout's prepare sees: the fields (h, and eta as the initial state, are set; hx and hy are 0),
+ * the edges, and the ghost list the model built for open and level edges, which prepare may adjust. */
+typedef struct {
+    sw_view f;
+    sw_edge_kind edges[4];
+    sw_edge_cell *edge;   /* [n_edge] */
+    size_t n_edge;
+} sw_prep;
+
+/* What a cell of the halo-extended grid (-1 <= i <= nx, -1 <= j <= ny) is to a stencil. */
+typedef enum {
+    SW_CELL_NONE = 0,   /* land, a halo cell beyond a wall, or a halo corner */
+    SW_CELL_WATER = 1,  /* a water cell of the grid (beyond a periodic edge: the cell it wraps to) */
+    SW_CELL_GHOST = 2   /* the ghost beside an open or level edge (it has a water cell inside) */
+} sw_cell_kind;
+
+#ifdef SW_REAL_BITS
+/* A field of a view with the type of this copy of the kernels: SW_V(v, eta)[k]. */
+#define SW_V(view, field) ((sw_real *)(view)->field)
+
+/* Padded index of cell (i, j), halo included: -1 <= i <= nx, -1 <= j <= ny. */
+static inline size_t sw_pad(const sw_view *v, ptrdiff_t i, ptrdiff_t j)
+{
+    return (size_t)(j + 1) * v->stride + (size_t)(i + 1);
+}
+
+/* What cell (i, j) of the halo-extended grid is (sw_cell_kind), with its depth in *depth_m (a ghost
+ * takes the inner cell's, a wrapped cell its own; 0 for NONE). For prepare kernels. */
+static inline sw_cell_kind sw_prep_cell(const sw_prep *p, ptrdiff_t i, ptrdiff_t j, double *depth_m)
+{
+    const ptrdiff_t nx = (ptrdiff_t)p->f.nx, ny = (ptrdiff_t)p->f.ny;
+    int ghost = 0;
+    *depth_m = 0;
+    if (i < 0 || i >= nx) {
+        const sw_edge_kind e = p->edges[i < 0 ? SW_WEST : SW_EAST];
+        if (e == SW_EDGE_WALL)
+            return SW_CELL_NONE;
+        if (e == SW_EDGE_PERIODIC)
+            i = i < 0 ? i + nx : i - nx;
+        else
+            ghost = 1, i = i < 0 ? 0 : nx - 1;
+    }
+    if (j < 0 || j >= ny) {
+        const sw_edge_kind e = p->edges[j < 0 ? SW_SOUTH : SW_NORTH];
+        if (e == SW_EDGE_WALL || ghost)   /* a halo corner beside a ghost is nothing */
+            return SW_CELL_NONE;
+        if (e == SW_EDGE_PERIODIC)
+            j = j < 0 ? j + ny : j - ny;
+        else
+            ghost = 1, j = j < 0 ? 0 : ny - 1;
+    }
+    *depth_m = (double)SW_V(&p->f, h)[sw_pad(&p->f, i, j)];
+    if (!(*depth_m > 0)) {
+        *depth_m = 0;
+        return SW_CELL_NONE;
+    }
+    return ghost ? SW_CELL_GHOST : SW_CELL_WATER;
+}
+
+/* 1 when cell (i, j) is water a stencil may use (a water cell, wrapped or not, or a ghost). */
+static inline int sw_prep_water(const sw_prep *p, ptrdiff_t i, ptrdiff_t j, double *depth_m)
+{
+    return sw_prep_cell(p, i, j, depth_m) != SW_CELL_NONE;
+}
+
+/* The arrays and constants of one row kernel, unpacked from a view: what a layout's per-cell formulas
+ * (below) read. Local to a kernel call, so the compiler keeps its members in registers. */
+typedef struct {
+    sw_real *eta;
+    const sw_real *u, *v, *h, *hx, *hy;
+    size_t s;             /* stride */
+    sw_real cx, cy;       /* the layout's continuity coefficients (dt / dx times its stencil weight) */
+} sw_cells;
+
+/* A layout's per-cell formulas, for sw_continuity_observed_loop: the new elevation of padded cell k, and
+ * the float centre values of padded cell k (grid column i, grid row j). Written `static inline` with
+ * always_inline so that the loop below is compiled with them in place. */
+typedef sw_real (*sw_eta_cell_fn)(const sw_cells *c, size_t k);
+typedef void (*sw_centre_cell_fn)(const sw_cells *c, size_t k, size_t i, size_t j, float *e, float *u, float *v);
+
+#define SW_INLINE static inline __attribute__((always_inline))
+
+/* The body every layout's continuity_observed shares: continuity of the row starting at padded index
+ * k0, and in the same pass the centre values of grid row jf (padded index f0 of its first cell) into
+ * buf, segment by segment, each segment's extremes taken while it is in L1. */
+SW_INLINE void sw_continuity_observed_loop(const sw_cells *c, size_t k0, size_t f0, size_t jf, size_t nx,
+                                           float *restrict buf, sw_eta_cell_fn eta_new, sw_centre_cell_fn centre)
+{
+    const size_t n_seg = (nx + SW_OBS_SEG - 1) / SW_OBS_SEG;
+    float *restrict oe = buf, *restrict ou = buf + nx, *restrict ov = buf + 2 * nx;
+    float *hi = buf + 3 * nx, *lo = hi + n_seg, *speed2 = lo + n_seg;
+    sw_real *restrict eta = c->eta;
+    for (size_t q = 0; q < n_seg; q++) {
+        const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
+#ifdef _OPENMP
+#pragma omp simd
+#endif
+        for (size_t i = a; i < b; i++) {
+            eta[k0 + i] = eta_new(c, k0 + i);
+            float e, uc, vc;
+            centre(c, f0 + i, i, jf, &e, &uc, &vc);
+            oe[i] = e;
+            ou[i] = uc;
+            ov[i] = vc;
+        }
+        sw_row_extremes(oe, ou, ov, a, b, &hi[q], &lo[q], &speed2[q]);   /* the segment is in L1 */
+    }
+}
+
+/* Continuity alone on the row starting at padded index k0, with the same per-cell formula. */
+SW_INLINE void sw_continuity_loop(const sw_cells *c, size_t k0, size_t nx, sw_eta_cell_fn eta_new)
+{
+    sw_real *restrict eta = c->eta;
+#ifdef _OPENMP
+#pragma omp simd
+#endif
+    for (size_t i = k0; i < k0 + nx; i++)
+        eta[i] = eta_new(c, i);
+}
+
+/* The centre values of grid row j into e, u, v with the same per-cell formula. */
+SW_INLINE void sw_centre_loop(const sw_cells *c, size_t j, size_t nx, float *restrict e, float *restrict u,
+                              float *restrict v, sw_centre_cell_fn centre)
+{
+    const size_t f0 = (j + 1) * c->s + 1;
+#ifdef _OPENMP
+#pragma omp simd
+#endif
+    for (size_t i = 0; i < nx; i++)
+        centre(c, f0 + i, i, j, &e[i], &u[i], &v[i]);
+}
+#endif
+
+#endif

@@ -1,0 +1,304 @@
+/* stepper.c - the schedule of a step over a layout's stage kernels (see stepper.h).
+ *
+ * Compiled once per precision (SW_REAL_BITS): the halo copies and ghost updates touch sw_real values.
+ * The plan (sw_step_plan_build) is precision-free and compiled in the double copy only.
+ *
+ * Invariant: stage s computes row r of its fields exactly once per step, after every row its reads
+ * depend on has been finished by the stage that writes it (read-after-write) and after every earlier
+ * stage that reads the old value of row r has done so (write-after-read). Within a thread's block this
+ * is the lag; across blocks it is the barrier: a row whose stencil reaches a neighbouring block, in
+ * either direction, waits for it (the margins below and above). A row's observer call comes after every
+ * row its centre values read is final.
+ *
+ * The plan, for stages s = 0 (continuity, lag 0, no margins) .. n-1, from each earlier stage p:
+ *   p writes a field s reads at rows +lo .. +hi:  lag[s] >= lag[p] + hi,  below[s] >= below[p] - lo,
+ *                                                 above[s] >= above[p] + hi;
+ *   s writes a field p reads at rows +lo .. +hi:  lag[s] >= lag[p] - lo,  below[s] >= below[p] + hi,
+ *                                                 above[s] >= above[p] - lo.
+ * A block's rows j0 + below[s] .. j1 - above[s] of stage s run in the sweep; its first `below` and last
+ * `above` rows wait for the barrier, where a neighbour (or a periodic partner) lies on that side. At the
+ * south and north domain edges there is none: the halo rows belong to the first and last blocks.
+ */
+#include "model/stepper.h"
+
+#include <string.h>
+
+#include "base/omp_compat.h"
+#include "model/model_impl.h"
+
+#if SW_REAL_BITS == 64   /* the plan is precision-free: compiled in the double copy only */
+static int rows_empty(sw_rows r) { return r.lo > r.hi; }
+static int imax(int a, int b) { return a > b ? a : b; }
+
+sw_status sw_step_plan_build(const sw_layout_kernels *k, sw_terms_variant variant, const sw_edge_kind edges[4],
+                             sw_step_plan *out, sw_error *err)
+{
+    memset(out, 0, sizeof *out);
+    if (k->n_momentum < 1 || k->n_momentum > SW_MAX_MOMENTUM)
+        return sw_fail(err, SW_ERR_USAGE, "stepper: a layout needs 1 to %d momentum stages, not %d", SW_MAX_MOMENTUM,
+                       k->n_momentum);
+    out->n_stages = 1 + k->n_momentum;
+    out->stage[0] = &k->continuity;
+    for (int s = 1; s < out->n_stages; s++)
+        out->stage[s] = &k->momentum[variant][s - 1];
+    for (int f = 0; f < SW_N_FIELDS; f++)
+        out->writer[f] = -1;
+    for (int s = 0; s < out->n_stages; s++) {
+        const sw_stage *st = out->stage[s];
+        if (!st->run)
+            return sw_fail(err, SW_ERR_USAGE, "stepper: stage %d of variant %d has no kernel", s, (int)variant);
+        for (int f = 0; f < SW_N_FIELDS; f++) {
+            if (!(st->writes & SW_WRITES(f)))
+                continue;
+            if (out->writer[f] >= 0)
+                return sw_fail(err, SW_ERR_USAGE, "stepper: field %d is written by stages %d and %d", f,
+                               out->writer[f], s);
+            out->writer[f] = s;
+            if (!rows_empty(st->reads[f]) && (st->reads[f].lo != 0 || st->reads[f].hi != 0))
+                return sw_fail(err, SW_ERR_USAGE, "stepper: stage %d reads the field it writes on other rows", s);
+        }
+    }
+    if (out->writer[SW_FIELD_ETA] != 0)
+        return sw_fail(err, SW_ERR_USAGE, "stepper: stage 0 must be the continuity stage (it writes eta)");
+    for (int f = 0; f < SW_N_FIELDS; f++)
+        if (out->writer[f] < 0)
+            return sw_fail(err, SW_ERR_USAGE, "stepper: no stage writes field %d", f);
+
+    for (int s = 1; s < out->n_stages; s++) {
+        const sw_stage *st = out->stage[s];
+        int lag = 0, below = 0, above = 0, needs_barrier = 0;
+        for (int p = 0; p < s; p++) {
+            const sw_stage *sp = out->stage[p];
+            for (int f = 0; f < SW_N_FIELDS; f++) {
+                if ((sp->writes & SW_WRITES(f)) && !rows_empty(st->reads[f])) {   /* s reads p's new values */
+                    const sw_rows r = st->reads[f];
+                    lag = imax(lag, out->lag[p] + r.hi);
+                    below = imax(below, out->below[p] - r.lo);
+                    above = imax(above, out->above[p] + r.hi);
+                    needs_barrier |= p > 0;
+                }
+                if ((st->writes & SW_WRITES(f)) && !rows_empty(sp->reads[f])) {   /* p reads s's old values */
+                    const sw_rows r = sp->reads[f];
+                    lag = imax(lag, out->lag[p] - r.lo);
+                    below = imax(below, out->below[p] + r.hi);
+                    above = imax(above, out->above[p] - r.lo);
+                    needs_barrier |= p > 0;
+                }
+            }
+        }
+        out->first_row[s] = st->south_line && edges[SW_SOUTH] != SW_EDGE_PERIODIC ? 0 : 1;
+        if (out->first_row[s] + lag < 1)
+            return sw_fail(err, SW_ERR_USAGE, "stepper: stage %d computes the south edge's line with no lag", s);
+        out->lag[s] = lag;
+        out->below[s] = below;
+        out->above[s] = above;
+        out->barrier_before[s] = needs_barrier;
+        out->max_lag = imax(out->max_lag, lag);
+    }
+    out->first_row[0] = 1;
+
+    out->obs_lag = 0;
+    for (int f = 0; f < SW_N_FIELDS; f++) {
+        out->observes[f] = k->observes[f];
+        if (!rows_empty(k->observes[f]))
+            out->obs_lag = imax(out->obs_lag, out->lag[out->writer[f]] + k->observes[f].hi);
+    }
+    out->periodic_x = edges[SW_WEST] == SW_EDGE_PERIODIC;
+    out->periodic_y = edges[SW_SOUTH] == SW_EDGE_PERIODIC;
+    out->ghosts_before_obs = k->centre_reads_halo && k->edge_velocities;
+    return SW_OK;
+}
+#endif
+
+/* ---- one step ------------------------------------------------------------------------------------ */
+
+/* The rows of one stage in one thread's block: those it runs in the sweep, and those that wait. */
+typedef struct {
+    ptrdiff_t lo, hi;         /* in the sweep: lo .. hi */
+    ptrdiff_t first, last;    /* all of the block's rows of this stage: first .. last */
+} stage_rows;
+
+/* What one thread does in a step. */
+typedef struct {
+    ptrdiff_t j0, j1;                    /* its block of padded rows (empty when j1 < j0) */
+    stage_rows st[SW_MAX_STAGES];
+    ptrdiff_t ob_lo, ob_hi;              /* rows observed in the sweep */
+    float *buf;                          /* room for rows' values made by the step, or NULL */
+} block;
+
+static ptrdiff_t pmax(ptrdiff_t a, ptrdiff_t b) { return a > b ? a : b; }
+static ptrdiff_t pmin(ptrdiff_t a, ptrdiff_t b) { return a < b ? a : b; }
+
+static block block_of(const sw_model *m, int t, int nt)
+{
+    const sw_step_plan *pl = &m->plan;
+    const ptrdiff_t ny = (ptrdiff_t)m->grid.ny;
+    block b = {0};
+    b.j0 = 1 + ny * t / nt;
+    b.j1 = ny * (t + 1) / nt;
+    /* the block holding row 1 (ny) also holds the south (north) halo rows, unless the edge is periodic;
+     * blocks may be empty when there are more threads than rows */
+    const int south_domain = b.j0 == 1 && !pl->periodic_y, north_domain = b.j1 == ny && !pl->periodic_y;
+    for (int s = 0; s < pl->n_stages; s++) {
+        stage_rows *r = &b.st[s];
+        r->first = south_domain ? pl->first_row[s] : b.j0;
+        r->last = b.j1;
+        r->lo = south_domain ? r->first : b.j0 + pl->below[s];
+        r->hi = north_domain ? r->last : b.j1 - pl->above[s];
+    }
+    /* a row is observed in the sweep when every row its centre values read is finished there (rows
+     * beyond a domain edge are ghosts or never written: no wait) */
+    b.ob_lo = b.j0;
+    b.ob_hi = b.j1;
+    for (int f = 0; f < SW_N_FIELDS; f++) {
+        const sw_rows o = pl->observes[f];
+        if (o.lo > o.hi)
+            continue;
+        const stage_rows *r = &b.st[pl->writer[f]];
+        const ptrdiff_t lo = south_domain ? pmax(r->lo, 1) : r->lo, hi = north_domain ? pmin(r->hi, ny) : r->hi;
+        b.ob_lo = pmax(b.ob_lo, south_domain && b.j0 + o.lo < lo ? b.j0 : lo - o.lo);
+        b.ob_hi = pmin(b.ob_hi, north_domain && b.j1 + o.hi > hi ? b.j1 : hi - o.hi);
+    }
+    b.buf = sw_model_obs_buffer(m, t);
+    return b;
+}
+
+/* The halo copies of periodic edges for padded row r of field f, after it was written. */
+static void periodic_row(const sw_model *m, sw_real *restrict f, ptrdiff_t r)
+{
+    const size_t s = m->stride, nx = m->grid.nx, ny = m->grid.ny;
+    if (m->plan.periodic_x) {
+        f[(size_t)r * s] = f[(size_t)r * s + nx];
+        f[(size_t)r * s + nx + 1] = f[(size_t)r * s + 1];
+    }
+    if (m->plan.periodic_y) {
+        if ((size_t)r == ny)
+            memcpy(f, f + ny * s, s * sizeof *f);
+        if (r == 1)
+            memcpy(f + (ny + 1) * s, f + s, s * sizeof *f);
+    }
+}
+
+/* Stage s on row r, with the periodic copies of what it wrote. */
+static void run_stage(sw_model *m, int s, ptrdiff_t r)
+{
+    const sw_stage *st = m->plan.stage[s];
+    st->run(&m->view, (size_t)r);
+    if (m->plan.periodic_x || m->plan.periodic_y)
+        for (int f = 0; f < SW_N_FIELDS; f++)
+            if (st->writes & SW_WRITES(f))
+                periodic_row(m, f == SW_FIELD_ETA ? SW_V(&m->view, eta) : f == SW_FIELD_U ? SW_V(&m->view, u)
+                                                                                            : SW_V(&m->view, v), r);
+}
+
+/* After the continuity of row j: the ghosts whose inner cell is in row j (model_impl.h), then the periodic
+ * copies of the row, and of a ghost row of the south or north edge when west and east are periodic. */
+static void after_continuity(sw_model *m, ptrdiff_t j)
+{
+    sw_real *restrict eta = SW_V(&m->view, eta);
+    for (size_t q = m->edge_row[j]; q < m->edge_row[j + 1]; q++) {
+        const sw_edge_cell *oc = &m->edge[q];
+        eta[oc->ghost] = (sw_real)oc->keep * eta[oc->ghost] + (sw_real)oc->take * eta[oc->inner];
+    }
+    if (m->plan.periodic_x || m->plan.periodic_y)
+        periodic_row(m, eta, j);
+    if (m->plan.periodic_x && !m->plan.periodic_y) {
+        if (j == 1)
+            periodic_row(m, eta, 0);
+        if ((size_t)j == m->grid.ny)
+            periodic_row(m, eta, (ptrdiff_t)m->grid.ny + 1);
+    }
+}
+
+static int in(ptrdiff_t r, ptrdiff_t lo, ptrdiff_t hi) { return r >= lo && r <= hi; }
+
+/* Observes the rows of the block outside lo .. hi (those not seen in the sweep). */
+static void observe_rest(const sw_model *m, const block *b)
+{
+    for (ptrdiff_t f = b->j0; f <= b->j1; f++)
+        if (!in(f, b->ob_lo, b->ob_hi))
+            sw_model_observe_row(m, (size_t)f, NULL);
+}
+
+/* The ghost velocities of the step, each thread a static share of the list (as `omp for` would give),
+ * then the periodic copies they need (a ghost row or column wraps); ends with a barrier when the rows
+ * observed next read halo cells. */
+static void ghosts(sw_model *m, int t, int nt)
+{
+    const size_t n = m->n_edge, q0 = n * (size_t)t / (size_t)nt, q1 = n * (size_t)(t + 1) / (size_t)nt;
+    if (q1 > q0)
+        m->kernels->edge_velocities(&m->view, m->edge, q0, q1);
+    if (m->plan.periodic_x || m->plan.periodic_y) {
+        SW_OMP(barrier)
+        SW_OMP(single)
+        {
+            const ptrdiff_t last = (ptrdiff_t)m->grid.ny + 1;
+            sw_real *f[3] = {SW_V(&m->view, eta), SW_V(&m->view, u), SW_V(&m->view, v)};
+            for (int q = 0; q < 3; q++) {
+                if (m->plan.periodic_x) {   /* ghost rows of the south and north edges */
+                    periodic_row(m, f[q], 0);
+                    periodic_row(m, f[q], last);
+                }
+                if (m->plan.periodic_y) {   /* rows holding ghosts of the west and east edges */
+                    periodic_row(m, f[q], 1);
+                    periodic_row(m, f[q], last - 1);
+                }
+            }
+        }   /* the end of `single` is a barrier */
+    } else if (m->plan.ghosts_before_obs) {
+        SW_OMP(barrier)
+    }
+}
+
+void SW_NAME(sw_stepper_step)(sw_model *m)
+{
+    const sw_step_plan *pl = &m->plan;
+    const int nt = omp_get_num_threads(), t = omp_get_thread_num();
+    const block b = block_of(m, t, nt);
+    const int observed = m->observed;
+
+    if (b.j1 >= b.j0) {
+        const ptrdiff_t end = b.j1 + (pl->max_lag > pl->obs_lag ? pl->max_lag : pl->obs_lag);
+        for (ptrdiff_t j = b.j0; j <= end; j++) {
+            if (j <= b.j1) {
+                const ptrdiff_t f = j - pl->obs_lag - 1;   /* final since the last iteration */
+                if (observed && b.buf && in(f, b.ob_lo, b.ob_hi) && m->kernels->continuity_observed) {
+                    m->kernels->continuity_observed(&m->view, (size_t)j, (size_t)f, b.buf);
+                    after_continuity(m, j);
+                    sw_model_observe_row(m, (size_t)f, b.buf);
+                } else {
+                    m->plan.stage[0]->run(&m->view, (size_t)j);
+                    after_continuity(m, j);
+                }
+            }
+            for (int st = 1; st < pl->n_stages; st++) {
+                const ptrdiff_t r = j - pl->lag[st];
+                if (in(r, b.st[st].lo, b.st[st].hi))
+                    run_stage(m, st, r);
+            }
+            if (observed) {   /* rows not handed in a continuity pass: the observer makes their values */
+                const ptrdiff_t f = j - pl->obs_lag;
+                const int handed = b.buf && m->kernels->continuity_observed && f + pl->obs_lag + 1 <= b.j1;
+                if (in(f, b.ob_lo, b.ob_hi) && !handed)
+                    sw_model_observe_row(m, (size_t)f, NULL);
+            }
+        }
+    }
+    SW_OMP(barrier)
+    for (int st = 1; st < pl->n_stages; st++) {
+        if (pl->barrier_before[st]) {
+            SW_OMP(barrier)
+        }
+        if (b.j1 < b.j0)
+            continue;
+        for (ptrdiff_t r = b.st[st].first; r <= b.st[st].last; r++)
+            if (!in(r, b.st[st].lo, b.st[st].hi))
+                run_stage(m, st, r);
+    }
+    SW_OMP(barrier)
+    if (m->kernels->edge_velocities && m->n_edge)
+        ghosts(m, t, nt);
+    if (observed && b.j1 >= b.j0)
+        observe_rest(m, &b);
+    SW_OMP(barrier)   /* the step ends when every row has been observed */
+}

@@ -1,0 +1,78 @@
+/* terms.h - the momentum terms beside the pressure gradient: rotation (Coriolis) and bottom friction.
+ *
+ * What a scenario asks for is an sw_terms_config; the model turns it into an sw_terms, the view its
+ * stage kernels read: the Coriolis parameter per row (no per-cell array: f depends on y only) and the
+ * friction coefficients. docs/terms.md derives the time discretisation and the energy it conserves.
+ *
+ *   du/dt = ... + f v - (r + Cd |U|) u / h,     dv/dt = ... - f u - (r + Cd |U|) v / h
+ *
+ * Rotation: the u equation takes v from before the step, then the v equation takes the new u (the
+ * forward-backward idea applied to the Coriolis pair); the other component is averaged onto a
+ * velocity point with the layout's own v_at_u / u_at_v operator, weighted so that rotation does no
+ * work on any depth. Friction is centred in time (Crank-Nicolson), on the still-water depth carried by
+ * the velocity point (hx, hy), so it only ever removes energy and cannot make a step unstable.
+ */
+#ifndef SW_TERMS_H
+#define SW_TERMS_H
+
+#include <stddef.h>
+
+typedef enum {
+    SW_ROTATION_NONE = 0,   /* f = 0 */
+    SW_ROTATION_F_PLANE,    /* f = f0 everywhere */
+    SW_ROTATION_BETA_PLANE  /* f = f0 + beta (y - y_ref) */
+} sw_rotation_kind;
+
+typedef enum {
+    SW_FRICTION_NONE = 0,
+    SW_FRICTION_LINEAR,     /* r u / h, r a rate in m/s */
+    SW_FRICTION_QUADRATIC,  /* Cd |U| u / h, Cd a constant drag coefficient */
+    SW_FRICTION_MANNING     /* Cd = g n^2 / h^(1/3), Manning's n */
+} sw_friction_kind;
+
+/* What a run asks for. The zero value is "no terms": the model then steps with the plain kernels. */
+typedef struct {
+    sw_rotation_kind rotation;
+    double f0_s;              /* Coriolis parameter at y_ref (f-plane: everywhere), s-1 */
+    double beta_ms;           /* beta-plane: df/dy, m-1 s-1 */
+    double y_ref_m;           /* beta-plane: the y where f = f0, m (same axis as the grid's y0) */
+    sw_friction_kind friction;
+    double friction_rate_ms;  /* linear: r, m/s (> 0) */
+    double drag;              /* quadratic: Cd, dimensionless (> 0) */
+    double manning_n;         /* Manning: n, s m-1/3 (> 0) */
+} sw_terms_config;
+
+/* Which kernels a configuration needs: none (bit-identical to a model without terms), rotation
+ * and/or linear friction, or also quadratic friction (which reads per-point drag arrays). */
+typedef enum { SW_TERMS_PLAIN = 0, SW_TERMS_LINEAR = 1, SW_TERMS_DRAG = 2 } sw_terms_variant;
+#define SW_TERMS_VARIANTS 3
+
+static inline sw_terms_variant sw_terms_variant_of(const sw_terms_config *c)
+{
+    if (c->friction == SW_FRICTION_QUADRATIC || c->friction == SW_FRICTION_MANNING)
+        return SW_TERMS_DRAG;
+    return c->rotation != SW_ROTATION_NONE || c->friction == SW_FRICTION_LINEAR ? SW_TERMS_LINEAR
+                                                                                : SW_TERMS_PLAIN;
+}
+
+/* The terms as the stage kernels read them (built by model.c from an sw_terms_config). */
+typedef struct sw_terms {
+    const double *f_centre;   /* [ny + 2] Coriolis parameter at the cell centres of padded row j, s-1 */
+    const double *f_face;     /* [ny + 2] at the line between padded rows j and j + 1 (the north faces
+                               * of row j), s-1; both all 0 without rotation */
+    double friction_rate_ms;  /* linear friction r, m/s; 0 without */
+    const void *drag_x;       /* [n_pad] sw_real: quadratic drag coefficient at each u point (the same
+                               * padded index as u), dimensionless; NULL unless the variant is DRAG */
+    const void *drag_y;       /* [n_pad] the same at v points */
+} sw_terms;
+
+/* Short words for plans and file attributes: "none", "f-plane", "beta-plane"; "none", "linear",
+ * "quadratic", "manning". */
+const char *sw_rotation_name(sw_rotation_kind k);
+const char *sw_friction_name(sw_friction_kind k);
+
+/* One line naming the terms in force, e.g. "rotation f-plane (f = 1e-04 s-1); friction linear
+ * (r = 0.002 m/s)" or "none", into buf (size n). For plans, JSON and the NetCDF globals. */
+void sw_terms_describe(const sw_terms_config *c, char *buf, size_t n);
+
+#endif
