@@ -44,6 +44,11 @@ typedef struct sw_layout_kernels {
      * ghosts differ from the shared rule. Clears what the layout does not store (E: eta of u,v cells). */
     void (*prepare)(sw_prep *p);
 
+    /* Sets the velocities at t = 0 from values at the cell centres uc, vc ([ny * nx], m/s): at each
+     * point that flows, the mean of the water cells (or ghosts) around it, stored as the layout stores
+     * velocities (B, D: times the point's water fraction). After prepare. */
+    void (*initial_velocity)(sw_prep *p, const double *uc, const double *vc);
+
     /* The continuity stage: eta of a row from the old velocities (stage 0 of every step). */
     sw_stage continuity;
 
@@ -95,6 +100,8 @@ typedef struct sw_layout {
                            * E: 2 (half the cells store eta) */
     double level_node_offset; /* where a `level` edge holds its node: cells beyond the edge line
                                * (0 = on it; E: 0.5, on the ghost centres, see layout_e.c) */
+    int transport_weighted; /* 1 when velocity points store f * velocity with f their water fraction
+                             * (B, D): friction then needs 1 / f per point (terms.h, share_x) */
     int stream_values;    /* the bytes model: values a fused cell update must move at least (each state
                            * value read and written once, each depth array read once); x bytes per value */
 

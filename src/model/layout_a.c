@@ -53,6 +53,18 @@ static void a_prepare(sw_prep *p)
     }
 }
 
+/* Initial velocities: the centre values, where the cell's u (v) flows. */
+static void a_initial_velocity(sw_prep *p, const double *uc, const double *vc)
+{
+    const sw_view *v = &p->f;
+    for (size_t j = 0; j < v->ny; j++)
+        for (size_t i = 0; i < v->nx; i++) {
+            const size_t k = sw_pad(v, (ptrdiff_t)i, (ptrdiff_t)j), c = j * v->nx + i;
+            SW_V(v, u)[k] = SW_V(v, hx)[k] > 0 ? (sw_real)uc[c] : 0;
+            SW_V(v, v)[k] = SW_V(v, hy)[k] > 0 ? (sw_real)vc[c] : 0;
+        }
+}
+
 /* The new elevation of cell k: continuity from the old velocities (the one formula of both kernels). */
 SW_INLINE sw_real a_eta_cell(const sw_cells *c, size_t k)
 {
@@ -103,6 +115,37 @@ static void a_momentum(const sw_view *v, size_t j)
     }
 }
 
+/* Momentum with rotation and friction (terms.h, docs/terms.md): u from the old v at the same point,
+ * then v from the new u, F = f dt at the cell centres; where both flow hx = hy, so the pair weight is
+ * f h and rotation does no work. With `drag` the friction adds Cd |U| dt (old u and v for u, new u and
+ * old v for v). */
+SW_INLINE void a_momentum_terms(const sw_view *v, size_t j, const int drag)
+{
+    sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
+    const sw_real *restrict cdx = drag ? (const sw_real *)v->terms->drag_x : NULL;
+    const sw_real *restrict cdy = drag ? (const sw_real *)v->terms->drag_y : NULL;
+    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
+    const sw_real F = (sw_real)(v->dt_s * v->terms->f_centre[j]);
+    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const size_t s = v->stride, r = j * s;
+    SW_OMP(simd)
+    for (size_t i = r + 1; i <= r + v->nx; i++) {
+        const sw_real Hx = hx[i], Hy = hy[i], u0 = u[i], v0 = vv[i];
+        sw_real rx = rho0, ry = rho0;
+        if (drag)
+            rx += dtc * cdx[i] * (sw_real)sqrt(u0 * u0 + v0 * v0);
+        const sw_real u1 = sw_terms_update(u0, Hx, -gx * (eta[i + 1] - eta[i - 1]), 2 * Hx * F * v0, rx);
+        if (drag)
+            ry += dtc * cdy[i] * (sw_real)sqrt(u1 * u1 + v0 * v0);
+        u[i] = u1;
+        vv[i] = sw_terms_update(v0, Hy, -gy * (eta[i + s] - eta[i - s]), -2 * Hy * F * u1, ry);
+    }
+}
+
+static void a_momentum_linear(const sw_view *v, size_t j) { a_momentum_terms(v, j, 0); }
+static void a_momentum_drag(const sw_view *v, size_t j) { a_momentum_terms(v, j, 1); }
+
 /* Ghost normal velocities: the outgoing wave's (open) or the inner cell's mirror (level). */
 static void a_edge_velocities(const sw_view *v, const sw_edge_cell *cells, size_t q0, size_t q1)
 {
@@ -140,12 +183,13 @@ static void a_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 }
 #endif
 
+/* E* (layout.h), with the rotation share (dt/2) f h u v at each point (hx = hy where both flow). */
 static double a_energy(const sw_view *v)
 {
     const size_t nx = v->nx, ny = v->ny, s = v->stride;
-    const double dx = v->dx_m, dy = v->dy_m;
+    const double dx = v->dx_m, dy = v->dy_m, dt = v->dt_s;
     const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
-    double pot = 0, kin = 0, cross = 0;
+    double pot = 0, kin = 0, cross = 0, rot = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
             double div = ((double)hx[i + 1] * u[i + 1] - (double)hx[i - 1] * u[i - 1]) / (2 * dx)
@@ -153,20 +197,26 @@ static double a_energy(const sw_view *v)
             pot += (double)eta[i] * eta[i];
             kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * vv[i] * vv[i];
             cross += eta[i] * div;
+            rot += v->terms->f_centre[j] * hx[i] * u[i] * vv[i];
         }
-    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * v->dt_s * cross) * dx * dy;
+    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + 0.5 * dt * rot) * dx * dy;
 }
 
 /* Stages: continuity of row j reads u of row j and v of rows j-1 .. j+1; momentum of row j (u and v)
  * reads eta of rows j-1 .. j+1. */
 const sw_layout_kernels SW_NAME(sw_layout_a_kernels) = {
     .prepare = a_prepare,
+    .initial_velocity = a_initial_velocity,
     .continuity = {a_continuity, SW_WRITES(SW_FIELD_ETA), {SW_NO_ROWS, SW_ROWS(0, 0), SW_ROWS(-1, 1)}, 0},
     .continuity_observed = a_continuity_observed,
     .n_momentum = 1,
     .momentum = {
         [SW_TERMS_PLAIN] = {{a_momentum, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                              {SW_ROWS(-1, 1), SW_NO_ROWS, SW_NO_ROWS}, 0}},
+        [SW_TERMS_LINEAR] = {{a_momentum_linear, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                              {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
+        [SW_TERMS_DRAG] = {{a_momentum_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                            {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
     },
     .edge_velocities = a_edge_velocities,
     .observes = {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(0, 0)},

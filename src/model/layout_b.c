@@ -63,10 +63,10 @@ static void b_prepare(sw_prep *p)
     const sw_view *v = &p->f;
     const ptrdiff_t nx = (ptrdiff_t)v->nx, ny = (ptrdiff_t)v->ny;
     sw_real *hx = SW_V(v, hx), *hy = SW_V(v, hy);
-    const int line_w = p->edges[SW_WEST] == SW_EDGE_OPEN || p->edges[SW_WEST] == SW_EDGE_LEVEL;
-    const int line_e = p->edges[SW_EAST] == SW_EDGE_OPEN || p->edges[SW_EAST] == SW_EDGE_LEVEL;
-    const int line_s = p->edges[SW_SOUTH] == SW_EDGE_OPEN || p->edges[SW_SOUTH] == SW_EDGE_LEVEL;
-    const int line_n = p->edges[SW_NORTH] == SW_EDGE_OPEN || p->edges[SW_NORTH] == SW_EDGE_LEVEL;
+    const int line_w = p->f.edges[SW_WEST] == SW_EDGE_OPEN || p->f.edges[SW_WEST] == SW_EDGE_LEVEL;
+    const int line_e = p->f.edges[SW_EAST] == SW_EDGE_OPEN || p->f.edges[SW_EAST] == SW_EDGE_LEVEL;
+    const int line_s = p->f.edges[SW_SOUTH] == SW_EDGE_OPEN || p->f.edges[SW_SOUTH] == SW_EDGE_LEVEL;
+    const int line_n = p->f.edges[SW_NORTH] == SW_EDGE_OPEN || p->f.edges[SW_NORTH] == SW_EDGE_LEVEL;
     /* corner (i, j) = north-east corner of cell (i, j) */
     for (ptrdiff_t j = -1; j < ny; j++)
         for (ptrdiff_t i = -1; i < nx; i++) {
@@ -89,6 +89,32 @@ static void b_prepare(sw_prep *p)
             size_t c = sw_pad(v, i, j);
             hx[c] = u_ok ? (sw_real)per_f : 0;
             hy[c] = v_ok ? (sw_real)per_f : 0;
+            if (p->share_x) {   /* 1 / f = 4 / n */
+                SW_V(p, share_x)[c] = u_ok ? (sw_real)(4.0 / n) : 0;
+                SW_V(p, share_y)[c] = v_ok ? (sw_real)(4.0 / n) : 0;
+            }
+        }
+}
+
+/* Initial velocities: at each corner that flows, the mean of its water cells times its water fraction
+ * (the stored, transport-weighted value). */
+static void b_initial_velocity(sw_prep *p, const double *uc, const double *vc)
+{
+    const sw_view *v = &p->f;
+    const ptrdiff_t nx = (ptrdiff_t)v->nx, ny = (ptrdiff_t)v->ny;
+    int n;
+    for (ptrdiff_t j = -1; j < ny; j++)
+        for (ptrdiff_t i = -1; i < nx; i++) {
+            const size_t k = sw_pad(v, i, j);
+            const ptrdiff_t four[8] = {i, j, i + 1, j, i, j + 1, i + 1, j + 1};
+            if (SW_V(v, hx)[k] > 0) {
+                const double mean = sw_prep_mean(p, uc, four, 4, &n);
+                SW_V(v, u)[k] = (sw_real)(mean * n / 4);
+            }
+            if (SW_V(v, hy)[k] > 0) {
+                const double mean = sw_prep_mean(p, vc, four, 4, &n);
+                SW_V(v, v)[k] = (sw_real)(mean * n / 4);
+            }
         }
 }
 
@@ -156,6 +182,40 @@ static void b_momentum(const sw_view *v, size_t j)
     }
 }
 
+/* Momentum with rotation and friction on corner row j: as layout_a.c's a_momentum_terms, F = f dt on
+ * the corner line (hx = hy where both flow, and both hold f * velocity: the rotation of the stored pair is
+ * the rotation of the velocity). The corners store f * velocity with hx = h / f, so the friction rate
+ * r / h of the velocity is that of the stored value when rho carries 1 / f (share): rho = dt r / f, and
+ * for quadratic friction, |velocity| = |stored| / f, rho = dt Cd |stored| / f^2. */
+SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag)
+{
+    sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
+    const sw_real *restrict cdx = drag ? (const sw_real *)v->terms->drag_x : NULL;
+    const sw_real *restrict cdy = drag ? (const sw_real *)v->terms->drag_y : NULL;
+    const sw_real *restrict shx = v->terms->share_x, *restrict shy = v->terms->share_y;
+    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
+    const sw_real F = (sw_real)(v->dt_s * v->terms->f_face[j]);
+    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const size_t s = v->stride, r = j * s;
+    SW_OMP(simd)
+    for (size_t i = r; i <= r + v->nx; i++) {
+        const sw_real Hx = hx[i], Hy = hy[i], u0 = u[i], v0 = vv[i];
+        sw_real rx = rho0 * shx[i], ry = rho0 * shy[i];
+        if (drag)
+            rx += dtc * cdx[i] * shx[i] * shx[i] * (sw_real)sqrt(u0 * u0 + v0 * v0);
+        const sw_real u1 = sw_terms_update(u0, Hx, -gx * (eta[i + 1] + eta[i + s + 1] - eta[i] - eta[i + s]),
+                                           2 * Hx * F * v0, rx);
+        if (drag)
+            ry += dtc * cdy[i] * shy[i] * shy[i] * (sw_real)sqrt(u1 * u1 + v0 * v0);
+        u[i] = u1;
+        vv[i] = sw_terms_update(v0, Hy, -gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]), -2 * Hy * F * u1, ry);
+    }
+}
+
+static void b_momentum_linear(const sw_view *v, size_t j) { b_momentum_terms(v, j, 0); }
+static void b_momentum_drag(const sw_view *v, size_t j) { b_momentum_terms(v, j, 1); }
+
 /* Centre values: eta as stored; velocity = the four corners' mean volume flux (hx u = depth x
  * velocity) divided by the cell's depth, i.e. the depth-mean velocity at the centre. */
 static void b_centre_row(const sw_view *v, size_t j, double *eta, double *u, double *vel)
@@ -189,12 +249,14 @@ static void b_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 }
 #endif
 
+/* E* (layout.h), corners counted once (a periodic edge's halo copy left out), with the rotation share
+ * (dt/2) f hx u v at each corner. */
 static double b_energy(const sw_view *v)
 {
-    const size_t nx = v->nx, ny = v->ny, s = v->stride;
-    const double dx = v->dx_m, dy = v->dy_m;
+    const size_t nx = v->nx, ny = v->ny, s = v->stride, c0 = sw_first_col(v), r0 = sw_first_row(v);
+    const double dx = v->dx_m, dy = v->dy_m, dt = v->dt_s;
     const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
-    double pot = 0, kin = 0, cross = 0;
+    double pot = 0, kin = 0, cross = 0, rot = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
             double div = ((double)hx[i] * u[i] + (double)hx[i - s] * u[i - s] - (double)hx[i - 1] * u[i - 1]
@@ -204,22 +266,29 @@ static double b_energy(const sw_view *v)
             pot += (double)eta[i] * eta[i];
             cross += eta[i] * div;
         }
-    for (size_t j = 0; j <= ny; j++)
-        for (size_t i = j * s; i <= j * s + nx; i++)
+    for (size_t j = r0; j <= ny; j++)
+        for (size_t i = j * s + c0; i <= j * s + nx; i++) {
             kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * vv[i] * vv[i];
-    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * v->dt_s * cross) * dx * dy;
+            rot += v->terms->f_face[j] * hx[i] * u[i] * vv[i];
+        }
+    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + 0.5 * dt * rot) * dx * dy;
 }
 
 /* Stages: continuity of cell row j reads the corners of corner rows j-1 and j; momentum of corner row j
  * (u and v) reads eta of cell rows j and j+1 (corner row 0 is the south edge's line). */
 const sw_layout_kernels SW_NAME(sw_layout_b_kernels) = {
     .prepare = b_prepare,
+    .initial_velocity = b_initial_velocity,
     .continuity = {b_continuity, SW_WRITES(SW_FIELD_ETA), {SW_NO_ROWS, SW_ROWS(-1, 0), SW_ROWS(-1, 0)}, 0},
     .continuity_observed = b_continuity_observed,
     .n_momentum = 1,
     .momentum = {
         [SW_TERMS_PLAIN] = {{b_momentum, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                              {SW_ROWS(0, 1), SW_NO_ROWS, SW_NO_ROWS}, 1}},
+        [SW_TERMS_LINEAR] = {{b_momentum_linear, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                              {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 1}},
+        [SW_TERMS_DRAG] = {{b_momentum_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                            {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 1}},
     },
     .observes = {SW_ROWS(0, 0), SW_ROWS(-1, 0), SW_ROWS(-1, 0)},
     .centre_row = b_centre_row,
@@ -233,6 +302,7 @@ extern const sw_layout_kernels sw_layout_b_kernels_f32;
 const sw_layout sw_layout_b = {
     .name = "B",
     .summary = "eta at centres, u and v together at cell corners, two-row averaged differences",
+    .transport_weighted = 1,
     .stream_values = 9,   /* eta, u, v read and written; hx, hy, h read */
     .max_frequency = b_max_frequency,
     .symbols = b_symbols,

@@ -58,6 +58,23 @@ static void c_prepare(sw_prep *p)
         }
 }
 
+/* Initial velocities: on each face that flows, the mean of the two cells beside it. */
+static void c_initial_velocity(sw_prep *p, const double *uc, const double *vc)
+{
+    const sw_view *v = &p->f;
+    const ptrdiff_t nx = (ptrdiff_t)v->nx, ny = (ptrdiff_t)v->ny;
+    int n;
+    for (ptrdiff_t j = -1; j < ny; j++)
+        for (ptrdiff_t i = -1; i < nx; i++) {
+            const size_t k = sw_pad(v, i, j);
+            const ptrdiff_t east[4] = {i, j, i + 1, j}, north[4] = {i, j, i, j + 1};
+            if (j >= 0 && SW_V(v, hx)[k] > 0)
+                SW_V(v, u)[k] = (sw_real)sw_prep_mean(p, uc, east, 2, &n);
+            if (i >= 0 && SW_V(v, hy)[k] > 0)
+                SW_V(v, v)[k] = (sw_real)sw_prep_mean(p, vc, north, 2, &n);
+        }
+}
+
 /* The new elevation of cell k: continuity from the old velocities (the one formula of both kernels). */
 SW_INLINE sw_real c_eta_cell(const sw_cells *c, size_t k)
 {
@@ -121,6 +138,65 @@ static void c_v_row(const sw_view *v, size_t j)
         vv[i] = hy[i] > 0 ? vv[i] - gy * (eta[i + s] - eta[i]) : 0;
 }
 
+/* The momentum stages with rotation and friction (terms.h; docs/terms.md derives the weights).
+ * u of row j first, from the old v on the four faces around it (two on the line of row j's north faces,
+ * two on the line below): with F = f dt on each line,
+ *     rot = (F / 4) [ hx (v0 + v1) + hy0 v0 + hy1 v1 ]  summed over the two lines,
+ * i.e. 2 dt times the pair weights K = (f / 8) (hx + hy) of the four neighbours. Then v of row j from the
+ * new u on its four neighbouring faces (rows j and j+1, all on the line of v's own faces), with the
+ * same pair weights and the opposite sign, so rotation does no work on any depth. With `drag` the
+ * friction rho adds Cd |U| dt, |U| from the point's velocity and the other component's plain average. */
+SW_INLINE void c_u_terms(const sw_view *v, size_t j, const int drag)
+{
+    sw_real *restrict u = SW_V(v, u);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
+    const sw_real *restrict vv = SW_V(v, v), *restrict cd = drag ? (const sw_real *)v->terms->drag_x : NULL;
+    const sw_real gx = (sw_real)(v->g * v->dt_s / v->dx_m);
+    const sw_real qn = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j - 1]);
+    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const size_t k0 = j * v->stride + 1, s = v->stride;
+    SW_OMP(simd)
+    for (size_t i = k0 - 1; i < k0 + v->nx; i++) {
+        const sw_real H = hx[i], n0 = vv[i], n1 = vv[i + 1], s0 = vv[i - s], s1 = vv[i - s + 1];
+        const sw_real rot = qn * (H * (n0 + n1) + hy[i] * n0 + hy[i + 1] * n1)
+                          + qs * (H * (s0 + s1) + hy[i - s] * s0 + hy[i - s + 1] * s1);
+        sw_real rho = rho0;
+        if (drag) {
+            const sw_real vbar = (sw_real)0.25 * (n0 + n1 + s0 + s1);
+            rho += dtc * cd[i] * (sw_real)sqrt(u[i] * u[i] + vbar * vbar);
+        }
+        u[i] = sw_terms_update(u[i], H, -gx * (eta[i + 1] - eta[i]), rot, rho);
+    }
+}
+
+SW_INLINE void c_v_terms(const sw_view *v, size_t j, const int drag)
+{
+    sw_real *restrict vv = SW_V(v, v);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
+    const sw_real *restrict u = SW_V(v, u), *restrict cd = drag ? (const sw_real *)v->terms->drag_y : NULL;
+    const sw_real gy = (sw_real)(v->g * v->dt_s / v->dy_m);
+    const sw_real q = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j]);
+    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const size_t k0 = j * v->stride + 1, s = v->stride;
+    SW_OMP(simd)
+    for (size_t i = k0; i < k0 + v->nx; i++) {
+        const sw_real H = hy[i], w0 = u[i - 1], w1 = u[i], n0 = u[i + s - 1], n1 = u[i + s];
+        const sw_real rot = q * (H * (w0 + w1 + n0 + n1) + hx[i - 1] * w0 + hx[i] * w1 + hx[i + s - 1] * n0
+                                 + hx[i + s] * n1);
+        sw_real rho = rho0;
+        if (drag) {
+            const sw_real ubar = (sw_real)0.25 * (w0 + w1 + n0 + n1);
+            rho += dtc * cd[i] * (sw_real)sqrt(vv[i] * vv[i] + ubar * ubar);
+        }
+        vv[i] = sw_terms_update(vv[i], H, -gy * (eta[i + s] - eta[i]), -rot, rho);
+    }
+}
+
+static void c_u_linear(const sw_view *v, size_t j) { c_u_terms(v, j, 0); }
+static void c_v_linear(const sw_view *v, size_t j) { c_v_terms(v, j, 0); }
+static void c_u_drag(const sw_view *v, size_t j) { c_u_terms(v, j, 1); }
+static void c_v_drag(const sw_view *v, size_t j) { c_v_terms(v, j, 1); }
+
 static void c_centre_row(const sw_view *v, size_t j, double *eta, double *u, double *vel)
 {
     const size_t r = sw_pad(v, 0, (ptrdiff_t)j), s = v->stride;
@@ -149,12 +225,15 @@ static void c_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 }
 #endif
 
+/* E* (layout.h). Velocity points are counted once: a periodic edge's halo copy is left out. The
+ * rotation share (dt/2) u.K v sums each u point's four v neighbours with K = (f / 8) (hx + hy). */
 static double c_energy(const sw_view *v)
 {
-    const size_t nx = v->nx, ny = v->ny, s = v->stride;
-    const double dx = v->dx_m, dy = v->dy_m;
+    const size_t nx = v->nx, ny = v->ny, s = v->stride, c0 = sw_first_col(v), r0 = sw_first_row(v);
+    const double dx = v->dx_m, dy = v->dy_m, dt = v->dt_s;
     const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
-    double pot = 0, kin = 0, cross = 0;
+    const double *ff = v->terms->f_face;
+    double pot = 0, kin = 0, cross = 0, rot = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
             double div = ((double)hx[i] * u[i] - (double)hx[i - 1] * u[i - 1]) / dx
@@ -162,26 +241,38 @@ static double c_energy(const sw_view *v)
             pot += (double)eta[i] * eta[i];
             cross += eta[i] * div;
         }
-    for (size_t j = 0; j <= ny; j++)
-        for (size_t i = j * s; i <= j * s + nx; i++) {
-            if (j > 0)
-                kin += (double)hx[i] * u[i] * u[i];
-            if (i > j * s)
-                kin += (double)hy[i] * vv[i] * vv[i];
+    for (size_t j = 1; j <= ny; j++)   /* u: columns 0 (the west edge's faces) .. nx */
+        for (size_t i = j * s + c0; i <= j * s + nx; i++) {
+            kin += (double)hx[i] * u[i] * u[i];
+            double pair = 0;
+            for (int q = 0; q < 2; q++) {
+                const size_t a = q ? i : i - s;   /* v on the line above, then below */
+                const double f = q ? ff[j] : ff[j - 1];
+                pair += f * (((double)hx[i] + hy[a]) * vv[a] + ((double)hx[i] + hy[a + 1]) * vv[a + 1]);
+            }
+            rot += u[i] * pair;
         }
-    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * v->dt_s * cross) * dx * dy;
+    for (size_t j = r0; j <= ny; j++)   /* v: rows 0 (the south edge's faces) .. ny */
+        for (size_t i = j * s + 1; i <= j * s + nx; i++)
+            kin += (double)hy[i] * vv[i] * vv[i];
+    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + dt / 16 * rot) * dx * dy;
 }
 
 /* Stages: continuity of row j reads u of row j and v of rows j-1, j; u of row j reads eta of row j;
  * v of row j reads eta of rows j, j+1 (and row 0 holds the south edge's faces). */
 const sw_layout_kernels SW_NAME(sw_layout_c_kernels) = {
     .prepare = c_prepare,
+    .initial_velocity = c_initial_velocity,
     .continuity = {c_continuity, SW_WRITES(SW_FIELD_ETA), {SW_NO_ROWS, SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
     .continuity_observed = c_continuity_observed,
     .n_momentum = 2,
     .momentum = {
         [SW_TERMS_PLAIN] = {{c_u_row, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_NO_ROWS, SW_NO_ROWS}, 0},
                             {c_v_row, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_NO_ROWS, SW_NO_ROWS}, 1}},
+        [SW_TERMS_LINEAR] = {{c_u_linear, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
+                             {c_v_linear, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_ROWS(0, 1), SW_ROWS(0, 0)}, 1}},
+        [SW_TERMS_DRAG] = {{c_u_drag, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
+                           {c_v_drag, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_ROWS(0, 1), SW_ROWS(0, 0)}, 1}},
     },
     .observes = {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)},
     .centre_row = c_centre_row,

@@ -77,9 +77,10 @@ static double d_max_frequency(double gh, double dx, double dy, int dims)
 
 /* Flux depth (h_c / f) of the velocity on the face between cells o1 and o2 (its "own" cells), with
  * the stencil pairs (a1, b1) and (a2, b2) that must match; 0 when it may not flow. Cells are given
- * as (i, j) pairs. */
-static double d_face_depth(const sw_prep *p, const ptrdiff_t own[4], const ptrdiff_t st[8])
+ * as (i, j) pairs. *share gets 1 / f (0 when it may not flow). */
+static double d_face_depth(const sw_prep *p, const ptrdiff_t own[4], const ptrdiff_t st[8], double *share)
 {
+    *share = 0;
     double h1, h2, d[4];
     int w1 = sw_prep_water(p, own[0], own[1], &h1), w2 = sw_prep_water(p, own[2], own[3], &h2);
     if (!w1 && !w2)
@@ -90,12 +91,13 @@ static double d_face_depth(const sw_prep *p, const ptrdiff_t own[4], const ptrdi
     if (n == 0 || s0 != s1 || s2 != s3)
         return 0;
     double hc = (h1 + h2) / (w1 + w2);
+    *share = 4.0 / n;
     return hc * 4.0 / n;
 }
 
 static int d_ghost_line(const sw_prep *p, int edge)
 {
-    return p->edges[edge] == SW_EDGE_OPEN || p->edges[edge] == SW_EDGE_LEVEL;
+    return p->f.edges[edge] == SW_EDGE_OPEN || p->f.edges[edge] == SW_EDGE_LEVEL;
 }
 
 static void d_prepare(sw_prep *p)
@@ -112,7 +114,10 @@ static void d_prepare(sw_prep *p)
             const ptrdiff_t st[8] = {i - 1, j, i + 1, j, i - 1, j + 1, i + 1, j + 1};
             /* on a south or north open/level edge line u would difference lagging ghosts: held at 0 */
             int edge_line = (j == -1 && d_ghost_line(p, SW_SOUTH)) || (j == ny - 1 && d_ghost_line(p, SW_NORTH));
-            hx[sw_pad(v, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(p, own, st);
+            double share, depth = d_face_depth(p, own, st, &share);
+            hx[sw_pad(v, i, j)] = edge_line ? 0 : (sw_real)depth;
+            if (p->share_x)
+                SW_V(p, share_x)[sw_pad(v, i, j)] = edge_line ? 0 : (sw_real)share;
         }
     /* v on the east face of (i, j): own (i, j), (i+1, j); pairs (i, j-1)~(i, j+1), (i+1, j-1)~(i+1, j+1) */
     for (ptrdiff_t j = 0; j < ny; j++)
@@ -120,7 +125,10 @@ static void d_prepare(sw_prep *p)
             const ptrdiff_t own[4] = {i, j, i + 1, j};
             const ptrdiff_t st[8] = {i, j - 1, i, j + 1, i + 1, j - 1, i + 1, j + 1};
             int edge_line = (i == -1 && d_ghost_line(p, SW_WEST)) || (i == nx - 1 && d_ghost_line(p, SW_EAST));
-            hy[sw_pad(v, i, j)] = edge_line ? 0 : (sw_real)d_face_depth(p, own, st);
+            double share, depth = d_face_depth(p, own, st, &share);
+            hy[sw_pad(v, i, j)] = edge_line ? 0 : (sw_real)depth;
+            if (p->share_y)
+                SW_V(p, share_y)[sw_pad(v, i, j)] = edge_line ? 0 : (sw_real)share;
         }
     /* Ghost normal velocities live on the two along-edge faces of each ghost cell: the face at +t
      * (index ghost) always, the face at -t (index ghost - t) when no ghost of the same edge owns it.
@@ -138,6 +146,31 @@ static void d_prepare(sw_prep *p)
             oc->take = 0;
         }
     }
+}
+
+/* Initial velocities: on each face that flows, the mean of its water cells times its water fraction
+ * (the water cells of its four-cell stencil over 4: the stored, transport-weighted value). */
+static void d_initial_velocity(sw_prep *p, const double *uc, const double *vc)
+{
+    const sw_view *v = &p->f;
+    const ptrdiff_t nx = (ptrdiff_t)v->nx, ny = (ptrdiff_t)v->ny;
+    int n, ns;
+    for (ptrdiff_t j = -1; j < ny; j++)
+        for (ptrdiff_t i = -1; i < nx; i++) {
+            const size_t k = sw_pad(v, i, j);
+            if (i >= 0 && SW_V(v, hx)[k] > 0) {   /* u on the north face of (i, j) */
+                const ptrdiff_t own[4] = {i, j, i, j + 1}, st[8] = {i - 1, j, i + 1, j, i - 1, j + 1, i + 1, j + 1};
+                const double mean = sw_prep_mean(p, uc, own, 2, &n);
+                sw_prep_mean(p, uc, st, 4, &ns);
+                SW_V(v, u)[k] = (sw_real)(mean * ns / 4);
+            }
+            if (j >= 0 && SW_V(v, hy)[k] > 0) {   /* v on the east face of (i, j) */
+                const ptrdiff_t own[4] = {i, j, i + 1, j}, st[8] = {i, j - 1, i, j + 1, i + 1, j - 1, i + 1, j + 1};
+                const double mean = sw_prep_mean(p, vc, own, 2, &n);
+                sw_prep_mean(p, vc, st, 4, &ns);
+                SW_V(v, v)[k] = (sw_real)(mean * ns / 4);
+            }
+        }
 }
 
 /* The new elevation of cell k: continuity from the old velocities; a wall velocity also feeds the dry
@@ -216,6 +249,65 @@ static void d_v_row(const sw_view *v, size_t j)
         vv[i] = hy[i] > 0 ? vv[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1]) : 0;
 }
 
+/* The momentum stages with rotation and friction (terms.h; docs/terms.md), as layout_c.c's with the
+ * roles of the faces turned: u of row j (north faces, on the line j) from the old v on the four east
+ * faces around it (rows j and j+1, corners on line j); then v of row j (east faces) from the new u on
+ * the two north faces of row j (line j) and the two of row j-1 (line j-1). Pair weights
+ * K = (f / 8) (hx + hy): rotation does no work on any depth. Friction carries 1 / f (share) as on the B
+ * layout (layout_b.c), since the faces store f * velocity with hx = h / f. */
+SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag)
+{
+    sw_real *restrict u = SW_V(v, u);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
+    const sw_real *restrict vv = SW_V(v, v), *restrict cd = drag ? (const sw_real *)v->terms->drag_x : NULL;
+    const sw_real *restrict sh = v->terms->share_x;
+    const sw_real gx = (sw_real)(0.25 * v->g * v->dt_s / v->dx_m);
+    const sw_real q = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j]);
+    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const size_t s = v->stride, r = j * s;
+    SW_OMP(simd)
+    for (size_t i = r + 1; i <= r + v->nx; i++) {
+        const sw_real H = hx[i], w0 = vv[i - 1], w1 = vv[i], n0 = vv[i + s - 1], n1 = vv[i + s];
+        const sw_real rot = q * (H * (w0 + w1 + n0 + n1) + hy[i - 1] * w0 + hy[i] * w1 + hy[i + s - 1] * n0
+                                 + hy[i + s] * n1);
+        sw_real rho = rho0 * sh[i];
+        if (drag) {
+            const sw_real vbar = (sw_real)0.25 * (w0 + w1 + n0 + n1);
+            rho += dtc * cd[i] * sh[i] * sh[i] * (sw_real)sqrt(u[i] * u[i] + vbar * vbar);
+        }
+        u[i] = sw_terms_update(u[i], H, -gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s]), rot, rho);
+    }
+}
+
+SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag)
+{
+    sw_real *restrict vv = SW_V(v, v);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
+    const sw_real *restrict u = SW_V(v, u), *restrict cd = drag ? (const sw_real *)v->terms->drag_y : NULL;
+    const sw_real *restrict sh = v->terms->share_y;
+    const sw_real gy = (sw_real)(0.25 * v->g * v->dt_s / v->dy_m);
+    const sw_real qn = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j - 1]);
+    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const size_t s = v->stride, r = j * s;
+    SW_OMP(simd)
+    for (size_t i = r; i <= r + v->nx; i++) {
+        const sw_real H = hy[i], n0 = u[i], n1 = u[i + 1], s0 = u[i - s], s1 = u[i - s + 1];
+        const sw_real rot = qn * (H * (n0 + n1) + hx[i] * n0 + hx[i + 1] * n1)
+                          + qs * (H * (s0 + s1) + hx[i - s] * s0 + hx[i - s + 1] * s1);
+        sw_real rho = rho0 * sh[i];
+        if (drag) {
+            const sw_real ubar = (sw_real)0.25 * (n0 + n1 + s0 + s1);
+            rho += dtc * cd[i] * sh[i] * sh[i] * (sw_real)sqrt(vv[i] * vv[i] + ubar * ubar);
+        }
+        vv[i] = sw_terms_update(vv[i], H, -gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1]), -rot, rho);
+    }
+}
+
+static void d_u_linear(const sw_view *v, size_t j) { d_u_terms(v, j, 0); }
+static void d_v_linear(const sw_view *v, size_t j) { d_v_terms(v, j, 0); }
+static void d_u_drag(const sw_view *v, size_t j) { d_u_terms(v, j, 1); }
+static void d_v_drag(const sw_view *v, size_t j) { d_v_terms(v, j, 1); }
+
 /* Ghost normal velocities on the faces of the ghost cells (see d_prepare), and the radiated elevation of
  * open ghosts. */
 static void d_edge_velocities(const sw_view *v, const sw_edge_cell *oc, size_t q0, size_t q1)
@@ -278,12 +370,14 @@ static void d_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 }
 #endif
 
+/* E* (layout.h), velocity points counted once (a periodic edge's halo copy left out), with the
+ * rotation share (dt/2) u.K v: each u point's four v neighbours, K = (f / 8) (hx + hy). */
 static double d_energy(const sw_view *v)
 {
-    const size_t nx = v->nx, ny = v->ny, s = v->stride;
-    const double dx = v->dx_m, dy = v->dy_m;
+    const size_t nx = v->nx, ny = v->ny, s = v->stride, c0 = sw_first_col(v), r0 = sw_first_row(v);
+    const double dx = v->dx_m, dy = v->dy_m, dt = v->dt_s;
     const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
-    double pot = 0, kin = 0, cross = 0;
+    double pot = 0, kin = 0, cross = 0, rot = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
             double div = ((double)hx[i + 1] * u[i + 1] + (double)hx[i + 1 - s] * u[i + 1 - s]
@@ -293,26 +387,35 @@ static double d_energy(const sw_view *v)
             pot += (double)eta[i] * eta[i];
             cross += eta[i] * div;
         }
-    for (size_t j = 0; j <= ny; j++) {
-        for (size_t i = j * s + 1; i <= j * s + nx; i++)
+    for (size_t j = r0; j <= ny; j++)   /* u: rows 0 (the south edge's faces) .. ny, columns 1 .. nx */
+        for (size_t i = j * s + 1; i <= j * s + nx; i++) {
             kin += (double)hx[i] * u[i] * u[i];
-        if (j > 0)
-            for (size_t i = j * s; i <= j * s + nx; i++)
-                kin += (double)hy[i] * vv[i] * vv[i];
-    }
-    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * v->dt_s * cross) * dx * dy;
+            double pair = 0;
+            for (size_t a = i; a <= i + s; a += s)   /* v of rows j and j+1, west and east */
+                pair += ((double)hx[i] + hy[a - 1]) * vv[a - 1] + ((double)hx[i] + hy[a]) * vv[a];
+            rot += v->terms->f_face[j] * u[i] * pair;
+        }
+    for (size_t j = 1; j <= ny; j++)     /* v: rows 1 .. ny, columns 0 (the west edge's faces) .. nx */
+        for (size_t i = j * s + c0; i <= j * s + nx; i++)
+            kin += (double)hy[i] * vv[i] * vv[i];
+    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + dt / 16 * rot) * dx * dy;
 }
 
 /* Stages: continuity of row j reads u of rows j-1, j and v of rows j-1 .. j+1; u of row j (its north
  * faces; row 0 holds the south edge's) reads eta of rows j, j+1; v of row j reads eta of rows j-1 .. j+1. */
 const sw_layout_kernels SW_NAME(sw_layout_d_kernels) = {
     .prepare = d_prepare,
+    .initial_velocity = d_initial_velocity,
     .continuity = {d_continuity, SW_WRITES(SW_FIELD_ETA), {SW_NO_ROWS, SW_ROWS(-1, 0), SW_ROWS(-1, 1)}, 0},
     .continuity_observed = d_continuity_observed,
     .n_momentum = 2,
     .momentum = {
         [SW_TERMS_PLAIN] = {{d_u_row, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_NO_ROWS, SW_NO_ROWS}, 1},
                             {d_v_row, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_NO_ROWS, SW_NO_ROWS}, 0}},
+        [SW_TERMS_LINEAR] = {{d_u_linear, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 1)}, 1},
+                             {d_v_linear, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_ROWS(-1, 0), SW_ROWS(0, 0)}, 0}},
+        [SW_TERMS_DRAG] = {{d_u_drag, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 1)}, 1},
+                           {d_v_drag, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_ROWS(-1, 0), SW_ROWS(0, 0)}, 0}},
     },
     .edge_velocities = d_edge_velocities,
     .observes = {SW_ROWS(0, 0), SW_ROWS(-1, 0), SW_ROWS(0, 0)},
@@ -327,6 +430,7 @@ extern const sw_layout_kernels sw_layout_d_kernels_f32;
 const sw_layout sw_layout_d = {
     .name = "D",
     .summary = "eta at centres, u on north/south faces, v on east/west faces, four-point averages",
+    .transport_weighted = 1,
     .stream_values = 9,   /* eta, u, v read and written; hx, hy, h read */
     .max_frequency = d_max_frequency,
     .symbols = d_symbols,

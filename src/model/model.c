@@ -158,7 +158,11 @@ static void ghosts_at_rest(sw_model *m)
  * the outgoing wave's velocity, which would set the water beyond the edge in motion at t = 0; a
  * mirrored velocity (level edge, mirror = 1) follows the half step like any other. The coefficients
  * are restored afterwards, the ghosts set at rest again (a layout's own ghost rule may have run), and
- * the clock stays at step 0, t = 0 (the step does not tick). SW_OK, or SW_ERR_NOMEM. */
+ * the clock stays at step 0, t = 0 (the step does not tick).
+ * With initial velocities (cfg->u0_ms, v0_ms) the same half step gives u^{1/2} = u_0 + (dt/2) u_t(0) to
+ * second order, rotation and friction included; its continuity half would move eta by
+ * -(dt/2) D(h u_0), so eta is put back as it was at t = 0 afterwards (the momentum half saw that moved
+ * eta: an O(dt^2) change of u^{1/2}, within the scheme's second order). SW_OK, or SW_ERR_NOMEM. */
 static sw_status start_at_rest(sw_model *m, sw_error *err)
 {
     sw_edge_cell *saved = malloc((m->n_edge ? m->n_edge : 1) * sizeof *saved);
@@ -172,9 +176,23 @@ static sw_status start_at_rest(sw_model *m, sw_error *err)
         m->edge[q].take = 0;
         m->edge[q].vel = 0;
     }
+    void *eta0 = NULL;
+    const size_t bytes = m->n_pad * sw_precision_bytes(m->precision);
+    if (m->moving) {   /* the half step's continuity would move eta: keep t = 0's */
+        eta0 = malloc(bytes);
+        if (!eta0) {
+            free(saved);
+            return sw_fail(err, SW_ERR_NOMEM, "out of memory starting the model");
+        }
+        memcpy(eta0, m->view.eta, bytes);
+    }
     m->view.dt_s = 0.5 * m->dt;
     step_flushed(m);
     m->view.dt_s = m->dt;
+    if (eta0) {
+        memcpy(m->view.eta, eta0, bytes);
+        free(eta0);
+    }
     if (m->n_edge)
         memcpy(m->edge, saved, m->n_edge * sizeof *saved);
     free(saved);
@@ -195,6 +213,20 @@ static void observe_nothing(void *ctx, const sw_model *m, size_t j, double time_
 
 static sw_status sort_edges_by_row(sw_model *m, sw_error *err);
 
+/* The layout's initial velocities from centre values (either may be NULL: 0 there). SW_OK or
+ * SW_ERR_NOMEM. */
+static sw_status initial_velocity(sw_model *m, sw_prep *prep, const double *u0, const double *v0, sw_error *err)
+{
+    const size_t n = sw_grid_cells(&m->grid);
+    double *zero = (!u0 || !v0) ? calloc(n, sizeof *zero) : NULL;
+    if ((!u0 || !v0) && !zero)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the initial velocities");
+    m->kernels->initial_velocity(prep, u0 ? u0 : zero, v0 ? v0 : zero);
+    free(zero);
+    m->moving = 1;
+    return SW_OK;
+}
+
 /* The configuration's faults that are the caller's (not the scenario's: setup.c checks those with
  * line numbers first), or SW_OK. */
 static sw_status check_config(const sw_model_config *cfg, sw_error *err)
@@ -206,6 +238,17 @@ static sw_status check_config(const sw_model_config *cfg, sw_error *err)
     if ((unsigned)cfg->precision >= SW_PRECISIONS || !cfg->layout->kernels[cfg->precision])
         return sw_fail(err, SW_ERR_USAGE, "model: precision %d is not one of 0 (double), 1 (single)",
                        (int)cfg->precision);
+    const sw_terms_config *t = &cfg->terms;
+    if ((unsigned)t->rotation > SW_ROTATION_BETA_PLANE || (unsigned)t->friction > SW_FRICTION_MANNING)
+        return sw_fail(err, SW_ERR_USAGE, "model: unknown rotation (%d) or friction (%d) kind", (int)t->rotation,
+                       (int)t->friction);
+    if (t->rotation != SW_ROTATION_NONE && !(isfinite(t->f0_s) && isfinite(t->beta_ms) && isfinite(t->y_ref_m)))
+        return sw_fail(err, SW_ERR_USAGE, "model: the Coriolis parameter, beta and y_ref must be finite");
+    if ((t->friction == SW_FRICTION_LINEAR && !(t->friction_rate_ms > 0 && isfinite(t->friction_rate_ms)))
+        || (t->friction == SW_FRICTION_QUADRATIC && !(t->drag > 0 && isfinite(t->drag)))
+        || (t->friction == SW_FRICTION_MANNING && !(t->manning_n > 0 && isfinite(t->manning_n))))
+        return sw_fail(err, SW_ERR_USAGE, "model: the %s friction coefficient must be positive and finite",
+                       sw_friction_name(t->friction));
     for (int e = 0; e < 4; e++)
         if ((unsigned)cfg->edges[e] > SW_EDGE_PERIODIC)
             return sw_fail(err, SW_ERR_USAGE, "model: edge %d has kind %d, not one of 0 .. 3", e, (int)cfg->edges[e]);
@@ -262,6 +305,50 @@ static sw_status build_edges(sw_model *m, sw_error *err)
     return SW_OK;
 }
 
+/* The Coriolis parameter at the centres and on the north-face line of every padded row (terms.h), and
+ * for quadratic friction the drag coefficient at every velocity point that flows: Cd, or with Manning's
+ * n, g n^2 / h^(1/3) on the depth the point carries. After prepare (it reads hx, hy). */
+static sw_status build_terms(sw_model *m, sw_error *err)
+{
+    const sw_terms_config *c = &m->terms_cfg;
+    const sw_grid *g = &m->grid;
+    for (size_t j = 0; j < g->ny + 2; j++) {
+        const double yc = g->y0_m + ((double)j - 0.5) * g->dy_m, yf = g->y0_m + (double)j * g->dy_m;
+        double fc = 0, ff = 0;
+        if (c->rotation == SW_ROTATION_F_PLANE)
+            fc = ff = c->f0_s;
+        else if (c->rotation == SW_ROTATION_BETA_PLANE) {
+            fc = c->f0_s + c->beta_ms * (yc - c->y_ref_m);
+            ff = c->f0_s + c->beta_ms * (yf - c->y_ref_m);
+        }
+        m->f_rows[j] = fc;
+        m->f_rows[g->ny + 2 + j] = ff;
+    }
+    m->terms.friction_rate_ms = c->friction == SW_FRICTION_LINEAR ? c->friction_rate_ms : 0;
+    if (sw_terms_variant_of(c) != SW_TERMS_DRAG)
+        return SW_OK;
+    const size_t size = sw_precision_bytes(m->precision);
+    m->drag = calloc(2 * m->n_pad, size);
+    if (!m->drag)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the drag coefficients (%zu MB)",
+                       (2 * m->n_pad * size) >> 20);
+    void *dx = m->drag, *dy = (char *)m->drag + m->n_pad * size;
+    for (size_t k = 0; k < m->n_pad; k++)
+        for (int q = 0; q < 2; q++) {
+            /* the water depth at the point: hx, or on transport-weighted layouts hx f = hx / share */
+            const void *share = q ? m->terms.share_y : m->terms.share_x;
+            double h = sw_model_get(m, q ? m->view.hy : m->view.hx, k);
+            if (h > 0 && share)
+                h /= sw_model_get(m, share, k);
+            if (h > 0)
+                sw_model_put(m, q ? dy : dx, k,
+                             c->friction == SW_FRICTION_QUADRATIC ? c->drag : m->g * c->manning_n * c->manning_n / cbrt(h));
+        }
+    m->terms.drag_x = dx;
+    m->terms.drag_y = dy;
+    return SW_OK;
+}
+
 sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *err)
 {
     *out = NULL;
@@ -305,6 +392,7 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     sw_view *v = &m->view;
     *v = (sw_view){.nx = g->nx, .ny = g->ny, .stride = m->stride, .dx_m = g->dx_m, .dy_m = g->dy_m, .g = m->g,
                    .dt_s = m->dt, .terms = &m->terms};
+    memcpy(v->edges, m->edges, sizeof v->edges);
     v->eta = alloc_field(g->ny + 2, m->stride, size);
     v->u = alloc_field(g->ny + 2, m->stride, size);
     v->v = alloc_field(g->ny + 2, m->stride, size);
@@ -334,15 +422,38 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     wrap_halo(m, v->h);
 
     rc = build_edges(m, err);
+    sw_prep prep = {.f = *v, .edge = m->edge, .n_edge = m->n_edge};
     if (rc == SW_OK) {
-        sw_prep prep = {.f = *v, .edge = m->edge, .n_edge = m->n_edge};
-        memcpy(prep.edges, m->edges, sizeof prep.edges);
+        if (m->layout->transport_weighted && sw_terms_variant_of(&m->terms_cfg) != SW_TERMS_PLAIN) {
+            m->share = alloc_field(2 * (g->ny + 2), m->stride, size);
+            if (!m->share)
+                rc = sw_fail(err, SW_ERR_NOMEM, "out of memory for the velocity points' water fractions");
+            else {
+                prep.share_x = m->share;
+                prep.share_y = (char *)m->share + m->n_pad * size;
+            }
+        }
+    }
+    if (rc == SW_OK) {
         m->kernels->prepare(&prep);
+        if (cfg->u0_ms || cfg->v0_ms)
+            rc = initial_velocity(m, &prep, cfg->u0_ms, cfg->v0_ms, err);
         wrap_halo(m, v->hx);
         wrap_halo(m, v->hy);
         wrap_halo(m, v->eta);
-        rc = sort_edges_by_row(m, err);
+        wrap_halo(m, v->u);
+        wrap_halo(m, v->v);
+        if (m->share) {
+            wrap_halo(m, prep.share_x);
+            wrap_halo(m, prep.share_y);
+            m->terms.share_x = prep.share_x;
+            m->terms.share_y = prep.share_y;
+        }
+        if (rc == SW_OK)
+            rc = sort_edges_by_row(m, err);
     }
+    if (rc == SW_OK)
+        rc = build_terms(m, err);
     if (rc == SW_OK)
         rc = sw_step_plan_build(m->kernels, sw_terms_variant_of(&m->terms_cfg), m->edges, &m->plan, err);
     if (rc == SW_OK)
@@ -368,6 +479,7 @@ void sw_model_free(sw_model *m)
     free(m->wet);
     free(m->f_rows);
     free(m->drag);
+    free(m->share);
     free(m->edge);
     free(m->edge_row);
     free(m->obs_buf);

@@ -44,6 +44,10 @@ typedef struct {
     sw_grid grid;
     const double *depth_m;     /* still-water depth, positive down; < min_depth_m = land */
     const double *eta0_m;      /* initial elevation, m (NULL = 0); land cells are set to 0 */
+    const double *u0_ms;       /* initial velocity along x at the cell centres, m/s (NULL = at rest); the
+                                * layout interpolates it onto its velocity points (mean of the cells
+                                * around each, water cells only) */
+    const double *v0_ms;       /* the same along y (NULL = at rest) */
     double min_depth_m;        /* land threshold, m (> 0) */
     double gravity_ms2;        /* g, m s-2 */
     double dt_s;               /* time step, s (> 0); see sw_model_dt_limit */
@@ -62,10 +66,11 @@ double sw_model_dt_limit(const sw_layout *layout, const sw_grid *g, const double
 /* The Courant number of a time step: sqrt(g h_max) dt / min(dx, dy). */
 double sw_model_courant(const sw_grid *g, double h_max_m, double gravity_ms2, double dt_s);
 
-/* Creates a model whose initial state is at rest at t = 0 with elevation cfg->eta0_m: the velocities
- * it stores are those of t = dt/2, -(g dt / 2) times the layout's gradient of eta0 (0 where the layout
- * holds a velocity at 0: walls, land); the ghost cells beyond open and level edges start still, at the
- * fixed point of their update (model.c: the edge cell's elevation, or its mirror image). Step 0, time 0.
+/* Creates a model whose initial state at t = 0 has elevation cfg->eta0_m and velocities cfg->u0_ms,
+ * cfg->v0_ms (at rest when those are NULL): the velocities it stores are those of t = dt/2, one half
+ * momentum step on (at rest: -(g dt / 2) times the layout's gradient of eta0; 0 where the layout holds a
+ * velocity at 0: walls, land); the ghost cells beyond open and level edges start still, at the fixed
+ * point of their update (model.c: the edge cell's elevation, or its mirror image). Step 0, time 0.
  * It runs the layout's step once (with dt/2): call it outside a parallel region, or inside one that has a
  * single thread.
  * Refuses (SW_ERR_UNSTABLE) a dt beyond the layout's stability limit, naming both, unless

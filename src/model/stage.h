@@ -45,6 +45,7 @@ typedef struct sw_view {
     double g;             /* gravity, m s-2 */
     double dt_s;          /* the step being taken, s (dt, or dt/2 for the start at rest) */
     const sw_terms *terms;/* rotation and friction; never NULL (all zero without terms) */
+    sw_edge_kind edges[4];/* SW_WEST .. SW_NORTH */
 } sw_view;
 
 /* Advances padded row `row` of the fields the stage writes. */
@@ -95,10 +96,12 @@ typedef void (*sw_edge_fn)(const sw_view *v, const sw_edge_cell *cells, size_t q
 /* What a layout's prepare sees: the fields (h, and eta as the initial state, are set; hx and hy are 0),
  * the edges, and the ghost list the model built for open and level edges, which prepare may adjust. */
 typedef struct {
-    sw_view f;
-    sw_edge_kind edges[4];
+    sw_view f;            /* f.edges: the edge kinds */
     sw_edge_cell *edge;   /* [n_edge] */
     size_t n_edge;
+    void *share_x, *share_y;  /* [n_pad] sw_real to fill with 1 / f at each velocity point that flows (f
+                               * its water fraction; terms.h), on transport-weighted layouts; NULL when
+                               * no term needs them */
 } sw_prep;
 
 /* What a cell of the halo-extended grid (-1 <= i <= nx, -1 <= j <= ny) is to a stencil. */
@@ -126,7 +129,7 @@ static inline sw_cell_kind sw_prep_cell(const sw_prep *p, ptrdiff_t i, ptrdiff_t
     int ghost = 0;
     *depth_m = 0;
     if (i < 0 || i >= nx) {
-        const sw_edge_kind e = p->edges[i < 0 ? SW_WEST : SW_EAST];
+        const sw_edge_kind e = p->f.edges[i < 0 ? SW_WEST : SW_EAST];
         if (e == SW_EDGE_WALL)
             return SW_CELL_NONE;
         if (e == SW_EDGE_PERIODIC)
@@ -135,7 +138,7 @@ static inline sw_cell_kind sw_prep_cell(const sw_prep *p, ptrdiff_t i, ptrdiff_t
             ghost = 1, i = i < 0 ? 0 : nx - 1;
     }
     if (j < 0 || j >= ny) {
-        const sw_edge_kind e = p->edges[j < 0 ? SW_SOUTH : SW_NORTH];
+        const sw_edge_kind e = p->f.edges[j < 0 ? SW_SOUTH : SW_NORTH];
         if (e == SW_EDGE_WALL || ghost)   /* a halo corner beside a ghost is nothing */
             return SW_CELL_NONE;
         if (e == SW_EDGE_PERIODIC)
@@ -149,6 +152,34 @@ static inline sw_cell_kind sw_prep_cell(const sw_prep *p, ptrdiff_t i, ptrdiff_t
         return SW_CELL_NONE;
     }
     return ghost ? SW_CELL_GHOST : SW_CELL_WATER;
+}
+
+/* The value of an unpadded centre field c ([ny * nx]) at cell (i, j) of the halo-extended grid: the
+ * cell's own, the wrapped cell's across a periodic edge, the inner cell's for a ghost; 0 for NONE. */
+static inline double sw_prep_centre(const sw_prep *p, const double *c, ptrdiff_t i, ptrdiff_t j)
+{
+    const ptrdiff_t nx = (ptrdiff_t)p->f.nx, ny = (ptrdiff_t)p->f.ny;
+    double d;
+    if (sw_prep_cell(p, i, j, &d) == SW_CELL_NONE)
+        return 0;
+    i = i < 0 ? (p->f.edges[SW_WEST] == SW_EDGE_PERIODIC ? i + nx : 0) : i >= nx ? (p->f.edges[SW_EAST] == SW_EDGE_PERIODIC ? i - nx : nx - 1) : i;
+    j = j < 0 ? (p->f.edges[SW_SOUTH] == SW_EDGE_PERIODIC ? j + ny : 0) : j >= ny ? (p->f.edges[SW_NORTH] == SW_EDGE_PERIODIC ? j - ny : ny - 1) : j;
+    return c[(size_t)j * p->f.nx + (size_t)i];
+}
+
+/* The mean of centre field c over those of the n cells (ij[2q], ij[2q + 1]) that are water or ghosts
+ * (0 when none is), their count in *n_water. */
+static inline double sw_prep_mean(const sw_prep *p, const double *c, const ptrdiff_t *ij, int n, int *n_water)
+{
+    double sum = 0, d;
+    int w = 0;
+    for (int q = 0; q < n; q++)
+        if (sw_prep_cell(p, ij[2 * q], ij[2 * q + 1], &d) != SW_CELL_NONE) {
+            sum += sw_prep_centre(p, c, ij[2 * q], ij[2 * q + 1]);
+            w++;
+        }
+    *n_water = w;
+    return w == 0 ? 0 : sum / w;
 }
 
 /* 1 when cell (i, j) is water a stencil may use (a water cell, wrapped or not, or a ghost). */
@@ -199,6 +230,24 @@ SW_INLINE void sw_continuity_observed_loop(const sw_cells *c, size_t k0, size_t 
         }
         sw_row_extremes(oe, ou, ov, a, b, &hi[q], &lo[q], &speed2[q]);   /* the segment is in L1 */
     }
+}
+
+/* The first padded row (column) of velocities that are the grid's own along y (x): 1 beyond a periodic
+ * edge, whose row 0 (column 0) is a copy of the opposite side, else 0. For sums over velocity points. */
+static inline size_t sw_first_row(const sw_view *v) { return v->edges[SW_SOUTH] == SW_EDGE_PERIODIC; }
+static inline size_t sw_first_col(const sw_view *v) { return v->edges[SW_WEST] == SW_EDGE_PERIODIC; }
+
+/* One velocity point's momentum update with rotation and friction (terms.h, docs/terms.md): from the
+ * old value vel, the depth it carries H (m; 0 holds it at 0), the pressure-gradient increment
+ * dvel_gravity (m/s, -g dt d(eta)/dn), the rotation term rot = 2 dt (K w) (m2/s: the other component
+ * w averaged onto the point with the energy-neutral weights K) and rho = dt (r + Cd |U|) (m), friction
+ * centred in time:
+ *     vel' = (vel (2H - rho) + 2H dvel_gravity + rot) / (2H + rho).
+ * Without friction this is vel + dvel_gravity + rot / (2H); friction multiplies the old velocity by
+ * (1 - a) / (1 + a) and the increments by 1 / (1 + a), a = rho / (2H). */
+SW_INLINE sw_real sw_terms_update(sw_real vel, sw_real H, sw_real dvel_gravity, sw_real rot, sw_real rho)
+{
+    return H > 0 ? (vel * (2 * H - rho) + 2 * H * dvel_gravity + rot) / (2 * H + rho) : 0;
 }
 
 /* Continuity alone on the row starting at padded index k0, with the same per-cell formula. */

@@ -64,6 +64,12 @@ typedef struct sw_terms {
     const void *drag_x;       /* [n_pad] sw_real: quadratic drag coefficient at each u point (the same
                                * padded index as u), dimensionless; NULL unless the variant is DRAG */
     const void *drag_y;       /* [n_pad] the same at v points */
+    const void *share_x;      /* [n_pad] sw_real, on layouts whose velocity points can stand for part of a
+                               * cell's area (B, D: sw_layout.transport_weighted): 1 / f at each u point,
+                               * f its water fraction (1 in open water, 1/2 along a wall), which turns the
+                               * friction rate of the velocity into that of the stored f * velocity;
+                               * NULL on the other layouts and without terms */
+    const void *share_y;      /* [n_pad] the same at v points */
 } sw_terms;
 
 /* Short words for plans and file attributes: "none", "f-plane", "beta-plane"; "none", "linear",
