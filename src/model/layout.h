@@ -100,6 +100,8 @@ typedef struct sw_layout {
                            * E: 2 (half the cells store eta) */
     double level_node_offset; /* where a `level` edge holds its node: cells beyond the edge line
                                * (0 = on it; E: 0.5, on the ghost centres, see layout_e.c) */
+    int checkerboard;     /* 1 when the variables alternate from cell to cell (E): a periodic pair of edges
+                           * then needs an even number of cells between them */
     int transport_weighted; /* 1 when velocity points store f * velocity with f their water fraction
                              * (B, D): friction then needs 1 / f per point (terms.h, share_x) */
     int stream_values;    /* the bytes model: values a fused cell update must move at least (each state

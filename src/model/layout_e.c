@@ -348,6 +348,7 @@ const sw_layout sw_layout_e = {
     .stream_values = 8,   /* eta, u, v read and written; hx, hy read (half of them zeros) */
     .max_frequency = e_max_frequency,
     .level_node_offset = 0.5,
+    .checkerboard = 1,
     .eta_cells = 2,
     .symbols = e_symbols,
     .kernels = {[SW_DOUBLE] = &sw_layout_e_kernels_f64, [SW_SINGLE] = &sw_layout_e_kernels_f32},

@@ -255,6 +255,10 @@ static sw_status check_config(const sw_model_config *cfg, sw_error *err)
     if ((cfg->edges[SW_WEST] == SW_EDGE_PERIODIC) != (cfg->edges[SW_EAST] == SW_EDGE_PERIODIC)
         || (cfg->edges[SW_SOUTH] == SW_EDGE_PERIODIC) != (cfg->edges[SW_NORTH] == SW_EDGE_PERIODIC))
         return sw_fail(err, SW_ERR_RANGE, "model: a periodic edge needs the opposite edge periodic too");
+    if (cfg->layout->checkerboard && ((cfg->edges[SW_WEST] == SW_EDGE_PERIODIC && g->nx % 2)
+                                      || (cfg->edges[SW_SOUTH] == SW_EDGE_PERIODIC && g->ny % 2)))
+        return sw_fail(err, SW_ERR_RANGE, "the %s layout's checkerboard needs an even number of cells between "
+                       "periodic edges (nx = %zu, ny = %zu)", cfg->layout->name, g->nx, g->ny);
     return SW_OK;
 }
 
