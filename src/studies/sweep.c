@@ -25,7 +25,6 @@
 #include "studies/sweep.h"
 
 #include <cjson/cJSON.h>
-#include <errno.h>
 #include <limits.h>
 #include <math.h>
 #include <stdint.h>
@@ -33,6 +32,7 @@
 #include <string.h>
 #include <sys/stat.h>
 
+#include "base/atomic_file.h"
 #include "studies/estimate.h"
 #include "model/layout.h"
 #include "model/model.h"
@@ -107,23 +107,6 @@ static int file_exists(const char *path)
 {
     struct stat st;
     return stat(path, &st) == 0 && S_ISREG(st.st_mode);
-}
-
-/* Writes text to path via path.part and rename. */
-static sw_status write_text_file(const char *path, const char *text, sw_error *err)
-{
-    char part[SW_PATH_MAX + 8];
-    snprintf(part, sizeof part, "%s.part", path);
-    FILE *f = fopen(part, "w");
-    if (!f)
-        return sw_fail(err, SW_ERR_IO, "cannot create %s: %s", part, strerror(errno));
-    int bad = fputs(text, f) < 0;
-    bad |= fclose(f) != 0;
-    if (bad || rename(part, path) != 0) {
-        remove(part);
-        return sw_fail(err, SW_ERR_IO, "cannot write %s: %s", path, strerror(errno));
-    }
-    return SW_OK;
 }
 
 /* Reads a whole small text file (caller frees); NULL when it cannot. */
@@ -883,7 +866,7 @@ static sw_status manifest(const sw_sweep_plan *plan, const char *members_dir, sw
     free(design);
     if (!txt)
         return sw_fail(err, SW_ERR_NOMEM, "out of memory writing the sweep manifest");
-    st = write_text_file(path, txt, err);
+    st = sw_atomic_write_text(path, txt, err);
     free(txt);
     return st;
 }
@@ -1004,7 +987,7 @@ static sw_status write_member_scenario(const sw_sweep_plan *plan, size_t k, sw_e
                             "expresses it, so `shoreward run` of this file runs the member without it.\n" : "");
         char path[SW_PATH_MAX + 32];
         member_file(plan, k, "scn", path, sizeof path);
-        st = write_text_file(path, text, err);
+        st = sw_atomic_write_text(path, text, err);
     }
     free(text);
     sw_scenario_free(sc);
@@ -1654,11 +1637,11 @@ void sw_sweep_report(FILE *f, const sw_sweep_plan *plan, const sw_sweep_summary 
 sw_status sw_sweep_write_markdown(const char *path, const sw_sweep_plan *plan, const sw_sweep_summary *s,
                                   sw_error *err)
 {
-    char part[SW_PATH_MAX + 8];
-    snprintf(part, sizeof part, "%s.part", path);
-    FILE *f = fopen(part, "w");
-    if (!f)
-        return sw_fail(err, SW_ERR_IO, "cannot create %s: %s", part, strerror(errno));
+    sw_atomic_file af;
+    sw_status st = sw_atomic_open(&af, path, err);
+    if (st != SW_OK)
+        return st;
+    FILE *f = af.f;
     fprintf(f, "# Sweep: %s\n\n> **%s**\n\n", plan->base->title, sw_caution());
     fprintf(f, "Scenario `%s`, %s design, %zu members: %zu ran, %zu failed.\n\n", plan->base->path,
             DESIGN_NAME[plan->base->sweep.design], s->n_members, s->n_ok, s->n_failed);
@@ -1683,13 +1666,7 @@ sw_status sw_sweep_write_markdown(const char *path, const sw_sweep_plan *plan, c
     }
     fprintf(f, "\nMaps (earliest, median and latest arrival, arrival spread, eta_max percentiles) are in `%s`.\n",
             s->sweep_path);
-    int bad = ferror(f);
-    bad |= fclose(f) != 0;
-    if (bad || rename(part, path) != 0) {
-        remove(part);
-        return sw_fail(err, SW_ERR_IO, "cannot write %s: %s", path, strerror(errno));
-    }
-    return SW_OK;
+    return sw_atomic_close(&af, err);
 }
 
 static void add_number(cJSON *o, const char *key, double v)
