@@ -5,8 +5,8 @@
  * re-parse: key parameters first, then resolution_factor (grid.nx/ny/dx/dy from the effective grid),
  * amplitude_factor (each source's amplitude, and a pair's trough) and the source offsets (each
  * source's x, y), each computed from the values already in the list. depth_factor multiplies the
- * depth field after the setup is built; dt and the step count are then derived again exactly as
- * setup.c derives them (rescale_depth mirrors setup.c's choose_dt: keep the two in step).
+ * depth field after the setup is built; dt, the step count and the sizes are then derived again by
+ * the same function that sw_setup_build uses (sw_setup_derive).
  *
  * Threads. Small members run side by side: an outer `omp parallel for schedule(dynamic, 1)` over
  * the members, each member inside a nested one-thread `omp parallel` (so that orphaned `omp for`
@@ -456,47 +456,15 @@ sw_status sw_sweep_member_scenario(const sw_sweep_plan *plan, size_t k, sw_scena
 
 /* ---- a member's setup and run --------------------------------------------------------------- */
 
-/* Multiplies the depth field by s and derives what depends on it as setup.c does (choose_dt and the
- * sizes at the end of sw_setup_build). */
+/* Multiplies the depth field by factor and derives again what depends on it (sw_setup_derive). */
 static sw_status rescale_depth(const sw_scenario *sc, sw_setup *s, double factor, sw_error *err)
 {
     size_t n = sw_grid_cells(&s->grid);
-    s->wet_cells = 0;
-    s->h_max_m = 0;
-    for (size_t k = 0; k < n; k++) {
+    for (size_t k = 0; k < n; k++)
         s->depth_m[k] *= factor;
-        if (s->depth_m[k] >= sc->min_depth_m) {
-            s->wet_cells++;
-            s->h_max_m = fmax(s->h_max_m, s->depth_m[k]);
-        }
-    }
-    if (s->wet_cells == 0)
-        return sw_fail(err, SW_ERR_RANGE, "%s: depth_factor = %g leaves no water: every cell is shallower than "
-                       "[seabed] min_depth = %g m", sc->path, factor, sc->min_depth_m);
-    const sw_grid *g = &s->grid;
-    s->dt_limit_s = sw_model_dt_limit(s->layout, g, s->depth_m, sc->min_depth_m, sc->gravity_ms2, s->dims);
-    s->courant_limit = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_limit_s);
-    if (sc->dt_s > 0) {
-        s->dt_s = sc->dt_s;
-        s->courant = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_s);
-        if (s->dt_s > s->dt_limit_s * (1 + 1e-12))
-            return sw_fail(err, SW_ERR_UNSTABLE, "%s:%d: [run] dt = %g s with depth_factor = %g: Courant number %.4g "
-                           "exceeds the %s-layout limit %.4g (largest stable dt = %.4g s at the deepest water, %g m)",
-                           sc->path, sc->dt_line, sc->dt_s, factor, s->courant, s->layout->name, s->courant_limit,
-                           s->dt_limit_s, s->h_max_m);
-    } else {
-        s->dt_s = sc->courant_fraction * s->dt_limit_s;
-        s->courant = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_s);
-    }
-    double steps = ceil(sc->duration_s / s->dt_s - 1e-9);
-    if (steps > 1e12)
-        return sw_fail(err, SW_ERR_RANGE, "%s: the run needs %.3g steps", sc->path, steps);
-    s->n_steps = (long long)steps;
-    double run_end = (double)s->n_steps * s->dt_s;
-    s->n_samples = (size_t)floor(run_end / sc->gauge_interval_s) + 2;
-    s->n_snapshots = sc->snapshot_interval_s > 0 ? (size_t)floor(run_end / sc->snapshot_interval_s) + 1 : 0;
-    s->total_bytes = sw_setup_total_bytes(sc, s);
-    return SW_OK;
+    char change[64];
+    snprintf(change, sizeof change, "depth_factor = %g", factor);
+    return sw_setup_derive(sc, s, change, err);
 }
 
 /* Member k's scenario and setup (depth_factor applied). On failure both own nothing. */
