@@ -29,6 +29,7 @@
 #include <ini.h>
 
 #include "base/units.h"
+#include "model/layout.h"
 
 #define LINE_MAX_CHARS 200              /* longest line accepted, without its line break */
 #define FILE_MAX_BYTES (16u << 20)      /* a scenario is small; refuse anything above 16 MiB */
@@ -51,7 +52,7 @@ typedef enum {
     K_ANGLE,     /* double, deg */
     K_TEXT,      /* char[size], not empty */
     K_CHOICE,    /* int (an enum): index in `words` plus `first` */
-    K_LAYOUT,    /* char[8]: one letter A..E, stored upper case */
+    K_LAYOUT,    /* char[size]: a name of the layout registry (layout.h, any case), stored as it spells it */
     K_ORIGIN     /* char[32]: "YYYY-MM-DD HH:MM:SS" */
 } key_kind;
 
@@ -103,7 +104,8 @@ static const key_def RUN_KEYS[] = {
     { .name = "title", TEXT_SC(title), .dflt = "untitled scenario", .accepted = "up to 255 characters" },
     { .name = "duration", .kind = K_TIME, SC(duration_s), ABOVE(0, 30 * DAY), .required = 1,
       .accepted = "0 < duration <= 30 d" },
-    { .name = "layout", .kind = K_LAYOUT, SC(layout), .dflt = "C", .accepted = "A, B, C, D, E (any case)" },
+    { .name = "layout", .kind = K_LAYOUT, SC(layout), .size = FIELD_SIZE(sw_scenario, layout), .dflt = "C",
+      .accepted = "the registry's names, sw_layout_names() (any case)" },
     { .name = "precision", .kind = K_CHOICE, SC(precision), .words = PRECISION_WORDS, .first = SW_DOUBLE,
       .dflt = "double", .accepted = "double, single" },
     { .name = "courant", .kind = K_NUMBER, SC(courant_fraction), ABOVE(0, 1), .dflt = "0.9",
@@ -419,6 +421,19 @@ static int is_numeric(key_kind k)
     return k == K_NUMBER || k == K_INTEGER || k == K_LENGTH || k == K_TIME || k == K_ANGLE;
 }
 
+/* The registry position (sw_layout_at) of the layout called `name` (any case) into *index, as a sweep
+ * stores a layout value. Returns 0 when no layout has that name. */
+static int layout_index(const char *name, double *index)
+{
+    const sw_layout *lay = sw_layout_find(name, NULL);
+    for (size_t q = 0; lay && q < sw_layout_count(); q++)
+        if (sw_layout_at(q) == lay) {
+            *index = (double)q;
+            return 1;
+        }
+    return 0;
+}
+
 /* Parses `value` as a number of numeric key k (unit, whole number, range) into *v. Returns SW_OK,
  * or SW_ERR_PARSE / SW_ERR_RANGE with the cause in why. */
 static sw_status parse_number(const key_def *k, const char *value, double *v, char *why, size_t n)
@@ -487,13 +502,17 @@ static sw_status store_value(const key_def *k, void *home, const char *value, ch
         return SW_ERR_PARSE;
     }
     case K_LAYOUT: {
-        char c = (char)toupper((unsigned char)value[0]);
-        if (strlen(value) != 1 || c < 'A' || c > 'E') {
-            snprintf(why, n, "unknown layout (accepted: %s)", k->accepted);
+        const sw_layout *lay = sw_layout_find(value, NULL);
+        if (!lay) {
+            snprintf(why, n, "unknown layout (accepted: %s (any case))", sw_layout_names());
             return SW_ERR_PARSE;
         }
-        at[0] = c;
-        at[1] = '\0';
+        size_t len = strlen(lay->name);
+        if (len >= k->size) {
+            snprintf(why, n, "internal: the layout name %s is longer than %zu characters", lay->name, k->size - 1);
+            return SW_ERR_RANGE;
+        }
+        memcpy(at, lay->name, len + 1);
         return SW_OK;
     }
     case K_ORIGIN: {
@@ -1119,16 +1138,14 @@ static void join_target(char *out, size_t n, const char *kind, const char *name,
     snprintf(out, n, "%.16s%s%.63s.%.24s", kind, name[0] ? " " : "", name, key);
 }
 
-/* Reads one value of parameter p (key k) into *v; layouts as their index. */
+/* Reads one value of parameter p (key k) into *v; layouts as their registry index. */
 static sw_status sweep_value(const key_def *k, const char *text, double *v, char *why, size_t n)
 {
     if (k->kind == K_LAYOUT) {
-        char c = (char)toupper((unsigned char)text[0]);
-        if (strlen(text) != 1 || c < 'A' || c > 'E') {
-            snprintf(why, n, "unknown layout (accepted: A, B, C, D, E)");
+        if (!layout_index(text, v)) {
+            snprintf(why, n, "unknown layout (accepted: %s)", sw_layout_names());
             return SW_ERR_PARSE;
         }
-        *v = (double)(c - 'A');
         return SW_OK;
     }
     return parse_number(k, text, v, why, n);
@@ -1939,7 +1956,9 @@ sw_status sw_scenario_value(const sw_scenario *sc, const char *target, double *o
         return sw_fail(err, SW_ERR_RANGE, "%s: %s: no such numeric key in this scenario", sc->path, target);
     const char *at = (const char *)home + k->off;
     if (k->kind == K_LAYOUT) {
-        *out = (double)(at[0] - 'A');
+        if (!layout_index(at, out))
+            return sw_fail(err, SW_ERR_RANGE, "%s: %s = %s: not a layout of this build (accepted: %s)", sc->path,
+                           target, at, sw_layout_names());
     } else if (k->kind == K_INTEGER) {
         size_t v;
         memcpy(&v, at, sizeof v);

@@ -19,7 +19,7 @@ typedef struct {
     const char *title;          /* scenario title */
     const char *history;        /* the command line that produced the file */
     const char *scenario_text;  /* the whole scenario file, verbatim */
-    const char *layout;         /* "A".."E" */
+    const char *layout;         /* the layout's name (registry, model/layout.h) */
     const char *precision;      /* of the model state: "double" or "single" */
     const char *version;        /* shoreward version string */
     const char *caution;        /* the caution text (not a forecast ...) */

@@ -19,19 +19,14 @@ void sw_setup_free(sw_setup *s)
     memset(s, 0, sizeof *s);
 }
 
-/* Picks the layout, or explains which ones exist. */
+/* Picks the layout, or says which ones exist. */
 static sw_status choose_layout(const sw_scenario *sc, sw_setup *s, sw_error *err)
 {
-    int known = 0;
-    s->layout = sw_layout_find(sc->layout, &known);
+    s->layout = sw_layout_find(sc->layout, NULL);
     if (s->layout)
         return SW_OK;
-    if (known)
-        return sw_fail(err, SW_ERR_UNSUPPORTED,
-                       "%s:%d: [run] layout = %s: not available in this version yet (available: %s)",
-                       sc->path, sc->layout_line, sc->layout, sw_layout_names());
-    return sw_fail(err, SW_ERR_RANGE, "%s:%d: [run] layout = %s: unknown (accepted: A, B, C, D, E)",
-                   sc->path, sc->layout_line, sc->layout);
+    return sw_fail(err, SW_ERR_RANGE, "%s:%d: [run] layout = %s: unknown (accepted: %s)", sc->path,
+                   sc->layout_line, sc->layout, sw_layout_names());
 }
 
 /* Every gauge must lie in the domain. The parser checks this when [grid] is given; a grid taken

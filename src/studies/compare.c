@@ -114,12 +114,9 @@ sw_status sw_compare_run(const sw_scenario *sc, const char *const *layouts, size
     if (n_layouts * n_refine > SW_COMPARE_MAX_RUNS)
         return sw_fail(err, SW_ERR_RANGE, "%zu runs requested (accepted: at most %d)", n_layouts * n_refine,
                        SW_COMPARE_MAX_RUNS);
-    for (size_t a = 0; a < n_layouts; a++) {
-        int known = 0;
-        if (!sw_layout_find(layouts[a], &known))
-            return sw_fail(err, known ? SW_ERR_UNSUPPORTED : SW_ERR_RANGE, "layout '%s' %s (available: %s)",
-                           layouts[a], known ? "is not available in this version" : "is unknown", sw_layout_names());
-    }
+    for (size_t a = 0; a < n_layouts; a++)
+        if (!sw_layout_find(layouts[a], NULL))
+            return sw_fail(err, SW_ERR_RANGE, "layout '%s' is unknown (available: %s)", layouts[a], sw_layout_names());
     for (size_t b = 0; b < n_refine; b++)
         if (refine[b] < 1 || refine[b] > 64)
             return sw_fail(err, SW_ERR_RANGE, "refinement %d (accepted: whole numbers 1 to 64)", refine[b]);

@@ -16,6 +16,7 @@
 #include <string.h>
 
 #include "base/atomic_file.h"
+#include "model/layout.h"
 
 #define NCS_NAME_STRLEN 64      /* station, parameter and value text length */
 #define NCS_ERROR_STRLEN 512    /* member failure messages are cut to this */
@@ -441,7 +442,11 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
     int v_pname = ncs_var(&f, "parameter_name", NC_CHAR, 2, dims2);
     ncs_text(&f, v_pname, "long_name", "varied parameter, as named in the scenario's [sweep] section");
     int v_punit = ncs_var(&f, "parameter_units", NC_CHAR, 2, dims2);
-    ncs_text(&f, v_punit, "long_name", "units of parameter_value (1: dimensionless; layout: A = 0 .. E = 4)");
+    char units_text[160];   /* layouts are stored as their registry index (A = 0 .. E = 4 today) */
+    size_t n_layouts = sw_layout_count();
+    snprintf(units_text, sizeof units_text, "units of parameter_value (1: dimensionless; layout: %s = 0 .. %s = %zu)",
+             sw_layout_at(0)->name, sw_layout_at(n_layouts - 1)->name, n_layouts - 1);
+    ncs_text(&f, v_punit, "long_name", units_text);
     int dims_mp[2] = { d_m, d_p };
     int v_pval = ncs_var(&f, "parameter_value", NC_DOUBLE, 2, dims_mp);
     ncs_text(&f, v_pval, "long_name", "each member's parameter values, in parameter_units");

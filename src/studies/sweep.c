@@ -68,12 +68,19 @@ static const char *unit_text(const sw_sweep_param *p)
     return "1";
 }
 
+/* The name of the layout a sweep value stands for (its index in the registry). */
+static const char *layout_name(double v)
+{
+    const sw_layout *lay = v >= 0 ? sw_layout_at((size_t)v) : NULL;
+    return lay ? lay->name : "?";
+}
+
 /* The exact text of value v for an override: every double round-trips through "%.17g". */
 static void override_text(const sw_sweep_param *p, double v, char *buf, size_t n)
 {
     const char *u = unit_text(p);
     if (p->layout)
-        snprintf(buf, n, "%c", 'A' + (int)v);
+        snprintf(buf, n, "%s", layout_name(v));
     else if (p->integer)
         snprintf(buf, n, "%.0f", v);
     else if (strcmp(u, "1") == 0)
@@ -89,7 +96,7 @@ void sw_sweep_format_value(const sw_sweep_param *p, double v, char *buf, size_t 
         return;
     }
     if (p->layout)
-        snprintf(buf, n, "%c", 'A' + (int)v);
+        snprintf(buf, n, "%s", layout_name(v));
     else if (p->unit == SW_UNIT_LENGTH && fabs(v) >= 1000)
         snprintf(buf, n, "%.6g km", v / 1000);
     else if (p->unit == SW_UNIT_NONE)
@@ -1845,8 +1852,7 @@ sw_status sw_sweep_check(const sw_scenario *sc, double rate_all, FILE *f, char *
     sw_status st = sw_sweep_plan_build(sc, NULL, &plan, err);
     if (st != SW_OK)
         return st;
-    int known = 0;
-    const sw_layout *layout = sw_layout_find(sc->layout, &known);
+    const sw_layout *layout = sw_layout_find(sc->layout, NULL);
     /* the one-thread rate, cached as check's all-thread one (estimate.h); cache trouble only measures */
     sw_rate_info one = {0};
     double rate1 = layout && sw_estimate_rate_cached(layout, sc->precision, 1, 0, SW_RATE_CALIBRATION_S, &one, NULL) == SW_OK

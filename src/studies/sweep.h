@@ -30,7 +30,8 @@
 /* One member as planned: its parameter values, and what a run of it costs. */
 typedef struct {
     size_t index;             /* 0-based member number; files are mNNNNN with this number */
-    double *value;            /* [n_params] the parameters' values, base units (a layout as A = 0 .. E = 4) */
+    double *value;            /* [n_params] the parameters' values, base units (a layout as its registry
+                               * index, sw_layout_at) */
     long varied;              /* one-at-a-time: the parameter this member changes; -1 for the base member
                                * and in the other designs */
     sw_status status;         /* SW_OK when it can run; else why not, found while planning */
