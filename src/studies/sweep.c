@@ -528,20 +528,6 @@ sw_status sw_sweep_plan_build(const sw_scenario *base, const char *out_dir, sw_s
     return SW_OK;
 }
 
-void sw_sweep_member_result_free(sw_sweep_member_result *r)
-{
-    if (!r)
-        return;
-    free(r->time_s);
-    free(r->eta_m);
-    free(r->arrival_map_s);
-    free(r->eta_max_map_m);
-    free(r->wet);
-    r->time_s = r->eta_m = r->arrival_map_s = r->eta_max_map_m = NULL;
-    r->wet = NULL;
-    r->n_times = r->n_cells = 0;
-}
-
 /* What the run hands back through the sink: maps onto the base grid, the gauge series copied. */
 typedef struct {
     const sw_grid *base;
