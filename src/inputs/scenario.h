@@ -67,7 +67,7 @@ typedef struct {
     double x_m, y_m;
 } sw_gauge_spec;
 
-/* ---- [sweep]: what a sensitivity sweep varies (see docs/sweep.md; run by sweep.c) ---------- */
+/* ---- [sweep]: what a sensitivity sweep varies (see docs/sweep.md; run by studies/sweep_*.c) */
 
 #define SW_MAX_SWEEP_PARAMS 16    /* parameters one sweep may vary */
 #define SW_MAX_SWEEP_LEVELS 64    /* values one parameter may list (or `in N` may generate) */

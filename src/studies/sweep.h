@@ -8,7 +8,9 @@
  * Data flow: plan (design + each member's grid, dt and cost) -> members run, several at once with
  * one thread each when they are small, else one after another with all threads -> each finished
  * member written to OUT/members/mNNNNN.nc (via .part + rename) -> the aggregate read back from
- * those files -> OUT/sweep.nc, OUT/sweep.md and a summary for the terminal or JSON.
+ * those files -> OUT/sweep.nc, OUT/sweep.md and a summary for the terminal or JSON. The stages live
+ * in sweep_design.c, sweep_member.c, sweep_run.c, sweep_combine.c and sweep_report.c (statistics
+ * in sweep_stats.c, the files in ncsweep.c).
  *
  * Invariant: a member's results do not depend on which other members ran, in which order, on how
  * many threads, or in which attempt (resume); the aggregate is always computed from the member
