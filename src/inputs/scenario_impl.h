@@ -92,8 +92,6 @@ extern const size_t scn_n_sections;
 extern const char *const scn_coast_words[]; /* sw_coast_side names, NULL-terminated */
 extern const char *const scn_shape_words[]; /* sw_source_shape names, NULL-terminated */
 
-/* The table of section kind `name` ("run", "source"), or NULL. */
-const section_def *scn_find_section_def(const char *name);
 
 /* The unit kind of a numeric key kind (SW_UNIT_NONE for the others). */
 sw_unit_kind scn_unit_kind(key_kind k);
@@ -121,8 +119,20 @@ typedef struct {
 void scn_suggest_try(suggestion *s, const char *typed, const char *candidate);
 const char *scn_suggest_text(const suggestion *s, char *out, size_t n);
 
+/* The table of section kind `name` ("run", "source"), or NULL. When s is not NULL, the other kinds
+ * are offered to it as suggestions (scn_suggest_try). */
+const section_def *scn_find_section_def(const char *name, suggestion *s);
+
+/* The key called `name` in def's table, or NULL (also for def NULL). When s is not NULL, the other
+ * keys are offered to it as suggestions (scn_suggest_try). */
+const key_def *scn_find_key(const section_def *def, const char *name, suggestion *s);
+
 /* Removes leading and trailing blanks of t in place. */
 void scn_trim(char *t);
+
+/* Splits a section's header text "kind words" (blanks around it ignored; at most LINE_MAX_CHARS)
+ * into its kind, the first word, and its name, the rest trimmed (each of size LINE_MAX_CHARS + 1). */
+void scn_split_section(const char *text, char *kind, char *name);
 
 /* Splits a target "section words.key" at the last '.' into kind, name and key (each of size
  * LINE_MAX_CHARS + 1). Returns 0 when a part is missing or too long. */

@@ -171,11 +171,25 @@ _Static_assert(sizeof(sw_edge_kind) == sizeof(int) && sizeof(sw_coast_side) == s
                && sizeof(sw_precision) == sizeof(int),
                "K_CHOICE stores an int");
 
-const section_def *scn_find_section_def(const char *name)
+const section_def *scn_find_section_def(const char *name, suggestion *s)
 {
-    for (size_t i = 0; i < scn_n_sections; i++)
+    for (size_t i = 0; i < scn_n_sections; i++) {
         if (strcmp(scn_sections[i].name, name) == 0)
             return &scn_sections[i];
+        if (s)
+            scn_suggest_try(s, name, scn_sections[i].name);
+    }
+    return NULL;
+}
+
+const key_def *scn_find_key(const section_def *def, const char *name, suggestion *s)
+{
+    for (size_t i = 0; def && i < def->n_keys; i++) {
+        if (strcmp(def->keys[i].name, name) == 0)
+            return &def->keys[i];
+        if (s)
+            scn_suggest_try(s, name, def->keys[i].name);
+    }
     return NULL;
 }
 
@@ -402,17 +416,25 @@ int scn_split_target(const char *target, char *kind, char *name, char *key)
     char sect[LINE_MAX_CHARS + 1];
     memcpy(sect, target, (size_t)(dot - target));
     sect[dot - target] = '\0';
-    scn_trim(sect);
     snprintf(key, LINE_MAX_CHARS + 1, "%s", dot + 1);
     scn_trim(key);
-    size_t kn = 0;
-    while (sect[kn] && !isspace((unsigned char)sect[kn]))
-        kn++;
-    memcpy(kind, sect, kn);
-    kind[kn] = '\0';
-    snprintf(name, LINE_MAX_CHARS + 1, "%s", sect + kn);
-    scn_trim(name);
+    scn_split_section(sect, kind, name);
     return kind[0] && key[0] && strlen(name) < SW_NAME_MAX;
+}
+
+/* Splits "kind words": the first word is the kind, the rest (trimmed) the name. */
+void scn_split_section(const char *text, char *kind, char *name)
+{
+    char t[LINE_MAX_CHARS + 1];
+    snprintf(t, sizeof t, "%s", text);
+    scn_trim(t);
+    size_t kn = 0;
+    while (t[kn] && !isspace((unsigned char)t[kn]))
+        kn++;
+    memcpy(kind, t, kn);
+    kind[kn] = '\0';
+    snprintf(name, LINE_MAX_CHARS + 1, "%s", t + kn);
+    scn_trim(name);
 }
 
 /* Canonical "kind name.key" / "kind.key". */

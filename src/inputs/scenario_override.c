@@ -10,7 +10,6 @@
  */
 #include "inputs/scenario_impl.h"
 
-#include <ctype.h>
 #include <limits.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -30,14 +29,7 @@ static int header_of(const char *clean, char *kind, char *name)
     char inner[LINE_MAX_CHARS + 1];
     memcpy(inner, clean + 1, (size_t)(close - clean - 1));
     inner[close - clean - 1] = '\0';
-    scn_trim(inner);
-    size_t kn = 0;
-    while (inner[kn] && !isspace((unsigned char)inner[kn]))
-        kn++;
-    memcpy(kind, inner, kn);
-    kind[kn] = '\0';
-    snprintf(name, LINE_MAX_CHARS + 1, "%s", inner + kn);
-    scn_trim(name);
+    scn_split_section(inner, kind, name);
     return 1;
 }
 
@@ -109,12 +101,7 @@ static sw_status locate_overrides(const sw_scenario *sc, const text_line *lines,
         if (!scn_split_target(o->target, o->kind, o->name, o->key))
             return sw_fail(err, SW_ERR_USAGE, "%s: override '%s': expected SECTION.KEY (e.g. grid.dx)", sc->path,
                            o->target);
-        const section_def *def = scn_find_section_def(o->kind);
-        const key_def *k = NULL;
-        for (size_t i = 0; def && i < def->n_keys && !k; i++)
-            if (strcmp(def->keys[i].name, o->key) == 0)
-                k = &def->keys[i];
-        if (!k)
+        if (!scn_find_key(scn_find_section_def(o->kind, NULL), o->key, NULL))
             return sw_fail(err, SW_ERR_RANGE, "%s: override '%s': no such key in the scenario tables", sc->path,
                            o->target);
         if (!o->value[0] || strlen(o->value) > LINE_MAX_CHARS - strlen(o->key) - 3 || strchr(o->value, ';'))
@@ -299,11 +286,8 @@ sw_status sw_scenario_value(const sw_scenario *sc, const char *target, double *o
     char kind[LINE_MAX_CHARS + 1], name[LINE_MAX_CHARS + 1], key[LINE_MAX_CHARS + 1];
     if (!sc || !target || !out || !scn_split_target(target, kind, name, key))
         return sw_fail(err, SW_ERR_RANGE, "'%s': expected SECTION.KEY (e.g. grid.dx)", target ? target : "");
-    const section_def *def = scn_find_section_def(kind);
-    const key_def *k = NULL;
-    for (size_t i = 0; def && i < def->n_keys && !k; i++)
-        if (strcmp(def->keys[i].name, key) == 0)
-            k = &def->keys[i];
+    const section_def *def = scn_find_section_def(kind, NULL);
+    const key_def *k = scn_find_key(def, key, NULL);
     const void *home = k ? home_for(sc, def, k, name) : NULL;
     if (!home || (!scn_is_numeric(k->kind) && k->kind != K_LAYOUT))
         return sw_fail(err, SW_ERR_RANGE, "%s: %s: no such numeric key in this scenario", sc->path, target);

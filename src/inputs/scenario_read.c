@@ -86,8 +86,8 @@ static int begin_section(parse_state *ps, const char *inner, size_t n)
         n--;
     if (n == 0)
         return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "empty section header [] (accepted: run, grid, edges, "
-                                                   "seabed, gauges, bay NAME, island NAME, shoal NAME, source NAME, "
-                                                   "sweep)");
+                                                       "seabed, gauges, bay NAME, island NAME, shoal NAME, source "
+                                                       "NAME, sweep)");
     char kind[LINE_MAX_CHARS + 1];
     size_t kn = 0;
     while (kn < n && !isspace((unsigned char)inner[kn]))
@@ -101,15 +101,13 @@ static int begin_section(parse_state *ps, const char *inner, size_t n)
         nn--;
     }
 
-    const section_def *def = scn_find_section_def(kind);
+    suggestion near = { 0 };
+    const section_def *def = scn_find_section_def(kind, &near);
     if (!def) {
-        suggestion s = { 0 };
-        for (size_t i = 0; i < scn_n_sections; i++)
-            scn_suggest_try(&s, kind, scn_sections[i].name);
         char hint[96];
-        if (s.best)
+        if (near.best)
             return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "unknown section [%.*s]%s", (int)n, inner,
-                               scn_suggest_text(&s, hint, sizeof hint));
+                               scn_suggest_text(&near, hint, sizeof hint));
         return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "unknown section [%.*s] (accepted: run, grid, edges, seabed, "
                            "gauges, bay NAME, island NAME, shoal NAME, source NAME, sweep)", (int)n, inner);
     }
@@ -275,8 +273,7 @@ static char *read_line(char *buf, int size, void *stream)
         unsigned char c = (unsigned char)s[i];
         if ((c < 0x20 && c != '\t') || c == 0x7f) {
             scn_fail_at(ps, SW_ERR_PARSE, ps->line, "control character 0x%02x in column %zu (accepted: plain text; is "
-                        "this "
-                        "a scenario file?)", c, i + 1);
+                        "this a scenario file?)", c, i + 1);
             return NULL;
         }
     }
@@ -298,8 +295,7 @@ static char *read_line(char *buf, int size, void *stream)
     }
     if (len >= (size_t)size) {   /* inih's buffer holds one character less than our limit */
         scn_fail_at(ps, SW_ERR_PARSE, ps->line, "the line has %zu characters with no blank around '=' (accepted: at "
-                    "most "
-                    "%d then; write 'key = value')", len, size - 1);
+                    "most %d then; write 'key = value')", len, size - 1);
         return NULL;
     }
     memcpy(buf, clean, len + 1);
@@ -397,14 +393,8 @@ static int on_key(void *user, const char *section, const char *name, const char 
         return scn_add_sweep_entry(ps, name, value);
 
     const section_def *def = sec->def;
-    const key_def *k = NULL;
     suggestion s = { 0 };
-    for (size_t i = 0; i < def->n_keys && !k; i++) {
-        if (strcmp(def->keys[i].name, name) == 0)
-            k = &def->keys[i];
-        else
-            scn_suggest_try(&s, name, def->keys[i].name);
-    }
+    const key_def *k = scn_find_key(def, name, &s);
     if (!k) {
         char hint[96];
         return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s unknown key '%s'%s", sec->label, name,
@@ -452,8 +442,8 @@ static int finish_run(parse_state *ps, const section_ctx *run)
     int dt = key_line(run, "dt"), courant = key_line(run, "courant");
     if (dt && courant)
         return scn_fail_at(ps, SW_ERR_PARSE, dt > courant ? dt : courant, "[run] dt (line %d) and courant (line %d) "
-                           "are "
-                           "both given (accepted: one of them; dt fixes the step, courant derives it)", dt, courant);
+                           "are both given (accepted: one of them; dt fixes the step, courant derives it)",
+                           dt, courant);
     /* lines for later messages: the key's, or the [run] header's when defaulted */
     sc->layout_line = key_line(run, "layout") ? key_line(run, "layout") : run->line;
     sc->courant_line = courant ? courant : run->line;
@@ -467,8 +457,7 @@ static int finish_grid(parse_state *ps, const section_ctx *grid)
     if (!grid) {
         if (!sc->bed_file[0])
             return scn_fail_at(ps, SW_ERR_PARSE, 0, "missing section [grid] with nx, ny and dx (it may be left out "
-                               "only "
-                               "when [seabed] file gives the grid)");
+                               "only when [seabed] file gives the grid)");
         memset(&sc->grid, 0, sizeof sc->grid);
         sc->has_grid = 0;
         return 1;
@@ -522,8 +511,7 @@ static int finish_seabed(parse_state *ps, const section_ctx *bed)
         sc->shelf_depth_m = sc->deep_m;
     else if (sc->shelf_depth_m > sc->deep_m)
         return scn_fail_at(ps, SW_ERR_RANGE, shelf, "[seabed] shelf_depth = %g m: out of range (accepted: 0 < "
-                           "shelf_depth "
-                           "<= deep = %g m)", sc->shelf_depth_m, sc->deep_m);
+                           "shelf_depth <= deep = %g m)", sc->shelf_depth_m, sc->deep_m);
     return 1;
 }
 
@@ -539,8 +527,8 @@ static int finish_source(parse_state *ps, const section_ctx *sec)
     if (s->shape == SW_SOURCE_PAIR) {
         if (!(s->amplitude_m > 0))
             return scn_fail_at(ps, SW_ERR_RANGE, key_line(sec, "amplitude"), "%s amplitude = %g m: out of range "
-                               "(accepted: "
-                               "0 < amplitude <= 100 m for a pair, the uplift crest)", sec->label, s->amplitude_m);
+                               "(accepted: 0 < amplitude <= 100 m for a pair, the uplift crest)",
+                               sec->label, s->amplitude_m);
         if (!key_line(sec, "trough"))
             s->trough_m = s->amplitude_m;
     }
@@ -565,8 +553,7 @@ static int finish_gauges(parse_state *ps)
             format_length(px, sizeof px, gs->x_m);
             format_length(py, sizeof py, gs->y_m);
             return scn_fail_at(ps, SW_ERR_RANGE, gs->line, "[gauges] %s = %s, %s: outside the domain (accepted: %s <= "
-                               "x <= "
-                               "%s, %s <= y <= %s)", gs->name, px, py, a[0], a[1], a[2], a[3]);
+                               "x <= %s, %s <= y <= %s)", gs->name, px, py, a[0], a[1], a[2], a[3]);
         }
     }
     return 1;

@@ -90,8 +90,7 @@ static int sweep_values(parse_state *ps, const sweep_entry *e, const key_def *k,
     if (dots) {
         if (k->kind == K_LAYOUT)
             return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: a layout takes a list, not a range "
-                               "(accepted: "
-                               "e.g. A, C)", e->name, e->value);
+                               "(accepted: e.g. A, C)", e->name, e->value);
         char lo[LINE_MAX_CHARS + 1], hi[LINE_MAX_CHARS + 1], count[LINE_MAX_CHARS + 1] = "";
         memcpy(lo, text, (size_t)(dots - text));
         lo[dots - text] = '\0';
@@ -106,8 +105,7 @@ static int sweep_values(parse_state *ps, const sweep_entry *e, const key_def *k,
         scn_trim(hi);
         if (!lo[0] || !hi[0] || (in && !count[0]))
             return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: expected a range 'LO .. HI' or 'LO .. HI "
-                               "in N' "
-                               "(e.g. 0.9 .. 1.1 in 3)", e->name, e->value);
+                               "in N' (e.g. 0.9 .. 1.1 in 3)", e->name, e->value);
         const char *part[2] = { lo, hi };
         double *into[2] = { &p->lo, &p->hi };
         for (int q = 0; q < 2; q++)
@@ -121,8 +119,7 @@ static int sweep_values(parse_state *ps, const sweep_entry *e, const key_def *k,
         if (!in) {
             if (k->kind == K_INTEGER)
                 return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: a whole-number key needs 'in N' or a "
-                                   "list "
-                                   "(e.g. %s .. %s in 3)", e->name, e->value, lo, hi);
+                                   "list (e.g. %s .. %s in 3)", e->name, e->value, lo, hi);
             p->n_levels = 0;
             return 1;
         }
@@ -150,8 +147,7 @@ static int sweep_values(parse_state *ps, const sweep_entry *e, const key_def *k,
         scn_trim(item);
         if (!item[0])
             return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: an empty value in the list (accepted: "
-                               "values "
-                               "separated by commas, or a range LO .. HI)", e->name, e->value);
+                               "values separated by commas, or a range LO .. HI)", e->name, e->value);
         if (p->n_levels >= SW_MAX_SWEEP_LEVELS)
             return scn_fail_at(ps, SW_ERR_RANGE, e->line, "[sweep] %s: too many values (accepted: at most %d)", e->name,
                                SW_MAX_SWEEP_LEVELS);
@@ -188,31 +184,22 @@ static int sweep_key_target(parse_state *ps, const sweep_entry *e, const char *t
     if (!scn_split_target(target, kind, name, key))
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: expected SECTION.KEY (e.g. grid.dx, source "
                            "main.amplitude)", e->name);
-    const section_def *def = scn_find_section_def(kind);
+    suggestion near_section = { 0 };
+    const section_def *def = scn_find_section_def(kind, &near_section);
     if (!def) {
-        suggestion s = { 0 };
-        for (size_t i = 0; i < scn_n_sections; i++)
-            scn_suggest_try(&s, kind, scn_sections[i].name);
         char hint[96];
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: unknown section '%s'%s", e->name, kind,
-                           scn_suggest_text(&s, hint, sizeof hint));
+                           scn_suggest_text(&near_section, hint, sizeof hint));
     }
     if (def->type == S_GAUGES || def->type == S_SWEEP)
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: [%s] entries cannot be varied (accepted: keys of "
-                           "[run], "
-                           "[grid], [seabed], features and sources)", e->name, kind);
+                           "[run], [grid], [seabed], features and sources)", e->name, kind);
     const section_ctx *sec = find_named_section(ps, def, name);
     if (!sec)
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: the file has no section [%s%s%s] to vary",
                            e->name, kind, name[0] ? " " : "", name);
-    const key_def *k = NULL;
     suggestion s = { 0 };
-    for (size_t i = 0; i < def->n_keys && !k; i++) {
-        if (strcmp(def->keys[i].name, key) == 0)
-            k = &def->keys[i];
-        else
-            scn_suggest_try(&s, key, def->keys[i].name);
-    }
+    const key_def *k = scn_find_key(def, key, &s);
     if (!k) {
         char hint[96];
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s has no key '%s'%s", e->name, sec->label, key,
@@ -244,9 +231,8 @@ static int sweep_needs_sources(parse_state *ps, const sweep_entry *e)
     for (size_t i = 0; i < sc->n_sources; i++)
         if (sc->sources[i].shape == SW_SOURCE_FILE)
             return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: [source %s] (line %d) is read from a file "
-                               "(accepted: "
-                               "hump, ellipse and pair sources; vary a file source with its own keys)", e->name,
-                               sc->sources[i].name, sc->sources[i].line);
+                               "(accepted: hump, ellipse and pair sources; vary a file source with its own keys)",
+                               e->name, sc->sources[i].name, sc->sources[i].line);
     return 1;
 }
 
@@ -275,8 +261,7 @@ static int sweep_param(parse_state *ps, const sweep_entry *e)
             return 0;
         if (p->kind == SW_SWEEP_RESOLUTION_FACTOR && !scn_find_section(ps, S_GRID))
             return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] resolution_factor: the grid comes from the seabed "
-                               "file "
-                               "(accepted: a scenario with a [grid] section)");
+                               "file (accepted: a scenario with a [grid] section)");
     } else if (strchr(e->name, '.')) {
         if (!sweep_key_target(ps, e, e->name, p, &k))
             return 0;
@@ -370,21 +355,18 @@ int scn_finish_sweep(parse_state *ps)
     }
     if (members_line || seed_line)
         return scn_fail_at(ps, SW_ERR_PARSE, members_line ? members_line : seed_line, "[sweep] %s: not used with "
-                           "design = "
-                           "%s (only with latin-hypercube)", members_line ? "members" : "seed", design);
+                           "design = %s (only with latin-hypercube)", members_line ? "members" : "seed", design);
     double count = 1;   /* factorial: the product of the counts; one-at-a-time: 1 + their sum (at most) */
     for (size_t i = 0; i < sw->n_params; i++) {
         const sw_sweep_param *p = &sw->param[i];
         if (p->n_levels == 0)
             return scn_fail_at(ps, SW_ERR_PARSE, p->line, "[sweep] %s: a range needs a count with design = %s "
-                               "(accepted: "
-                               "LO .. HI in N, or a list of values)", p->name, design);
+                               "(accepted: LO .. HI in N, or a list of values)", p->name, design);
         count = sw->design == SW_SWEEP_FACTORIAL ? count * (double)p->n_levels : count + (double)p->n_levels;
     }
     if (count > SW_MAX_SWEEP_MEMBERS)
         return scn_fail_at(ps, SW_ERR_RANGE, design_line ? design_line : sw->line, "[sweep] design = %s makes %.0f "
-                           "members "
-                           "(accepted: at most %d; use latin-hypercube with fewer members)", design, count,
+                           "members (accepted: at most %d; use latin-hypercube with fewer members)", design, count,
                            SW_MAX_SWEEP_MEMBERS);
     return 1;
 }
