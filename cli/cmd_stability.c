@@ -94,14 +94,11 @@ static int stab_number(const char *s, double *out)
     return 1;
 }
 
-/* Prints the usage error for an unknown or unbuilt layout name. */
+/* Prints the usage error for an unknown layout name. */
 static int stab_bad_layout(const char *name)
 {
-    int known = 0;
-    sw_layout_find(name, &known);
     char msg[256];
-    snprintf(msg, sizeof msg, "%s layout '%s' (accepted: %s)", known ? "this build has no" : "unknown",
-             name, sw_layout_names());
+    snprintf(msg, sizeof msg, "unknown layout '%s' (accepted: %s)", name, sw_layout_names());
     return cli_usage_error("stability", "%s", msg);
 }
 

@@ -1,4 +1,4 @@
-/* cmd_sweep.c - `shoreward sweep`: a sensitivity sweep of one scenario (the work is in src/studies/sweep.c). */
+/* cmd_sweep.c - `shoreward sweep`: a sensitivity sweep of one scenario (the work is in src/studies/sweep_*.c). */
 #define _POSIX_C_SOURCE 200809L
 #include <stdio.h>
 #include <stdlib.h>

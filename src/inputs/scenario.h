@@ -67,7 +67,7 @@ typedef struct {
     double x_m, y_m;
 } sw_gauge_spec;
 
-/* ---- [sweep]: what a sensitivity sweep varies (see docs/sweep.md; run by sweep.c) ---------- */
+/* ---- [sweep]: what a sensitivity sweep varies (see docs/sweep.md; run by studies/sweep_*.c) */
 
 #define SW_MAX_SWEEP_PARAMS 16    /* parameters one sweep may vary */
 #define SW_MAX_SWEEP_LEVELS 64    /* values one parameter may list (or `in N` may generate) */
@@ -89,8 +89,8 @@ typedef enum {
     SW_SWEEP_RESOLUTION_FACTOR   /* dimensionless; cells per unit length relative to [grid] (2 = half dx) */
 } sw_sweep_kind;
 
-/* One varied parameter. Values are in base units (m, s, deg, or none); a layout is stored as its
- * letter's index (A = 0 .. E = 4). */
+/* One varied parameter. Values are in base units (m, s, deg, or none); a layout is stored as its index
+ * in the layout registry (sw_layout_at, model/layout.h: A = 0 .. E = 4 today). */
 typedef struct {
     char name[SW_TARGET_MAX];    /* as written in [sweep], e.g. "depth_factor", "source main.amplitude" */
     sw_sweep_kind kind;
@@ -124,7 +124,7 @@ typedef struct {
     /* [run] */
     char title[256];          /* default "untitled scenario" */
     double duration_s;        /* required, > 0 */
-    char layout[8];           /* "A".."E", upper case; default "C" */
+    char layout[8];           /* a name of the layout registry (model/layout.h) as it spells it; default "C" */
     int layout_line;
     sw_precision precision;   /* of the model state; default SW_DOUBLE (real.h) */
     double courant_fraction;  /* fraction of the layout's stability limit, (0, 1]; default 0.9 */
@@ -217,8 +217,8 @@ sw_status sw_scenario_override(const sw_scenario *sc, const sw_override *ov, siz
                                sw_error *err);
 
 /* Reads the current value of a numeric or layout key `target` ("section.key", as for overrides)
- * of a parsed scenario into *out, in base units (a layout as its index, A = 0). Returns SW_OK, or
- * SW_ERR_RANGE when the section or key does not exist or is not numeric. */
+ * of a parsed scenario into *out, in base units (a layout as its registry index, sw_layout_at).
+ * Returns SW_OK, or SW_ERR_RANGE when the section or key does not exist or is not numeric. */
 sw_status sw_scenario_value(const sw_scenario *sc, const char *target, double *out, sw_error *err);
 
 #endif

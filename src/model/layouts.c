@@ -1,8 +1,15 @@
-/* layouts.c - the registry of grid layouts: one line per layout. */
+/* layouts.c - the registry of grid layouts: one line per layout.
+ *
+ * Everything that names layouts (the scenario parser, setup, sweeps, compare, bench, stability) takes
+ * the names from here, so a new layout is its file plus an `extern` line and an entry below. Every
+ * layout in the registry is built, so no name is "known but not built": sw_layout_find sets *known
+ * to 0 always (the parameter stays for its callers).
+ */
 #include <ctype.h>
-#include <string.h>
 #include <stddef.h>
+#include <string.h>
 
+#include "base/omp_compat.h"
 #include "model/layout.h"
 
 extern const sw_layout sw_layout_a;
@@ -19,33 +26,39 @@ static const sw_layout *const registry[] = {
     &sw_layout_e,
 };
 
-static const char *const all_names = "ABCDE";   /* the Arakawa family: names a build may lack */
+/* 1 when a and b are the same name but for letter case. */
+static int same_name(const char *a, const char *b)
+{
+    for (; *a && *b; a++, b++)
+        if (toupper((unsigned char)*a) != toupper((unsigned char)*b))
+            return 0;
+    return *a == *b;
+}
 
 const sw_layout *sw_layout_find(const char *name, int *known)
 {
     if (known)
         *known = 0;
-    if (!name || !name[0] || name[1])
-        return NULL;
-    char c = (char)toupper((unsigned char)name[0]);
-    for (size_t q = 0; q < sizeof registry / sizeof registry[0]; q++)
-        if (registry[q]->name[0] == c)
+    for (size_t q = 0; name && q < sizeof registry / sizeof registry[0]; q++)
+        if (same_name(registry[q]->name, name))
             return registry[q];
-    for (const char *p = all_names; *p; p++)
-        if (*p == c && known)
-            *known = 1;
     return NULL;
 }
 
 const char *sw_layout_names(void)
 {
-    static char names[64];
+    static char names[256];   /* built once; the critical section keeps threads from building it together */
+    SW_OMP(critical(sw_layout_names))
     if (!names[0]) {
         size_t n = 0;
-        for (size_t q = 0; q < sizeof registry / sizeof registry[0] && n + 4 < sizeof names; q++) {
+        for (size_t q = 0; q < sizeof registry / sizeof registry[0]; q++) {
+            size_t len = strlen(registry[q]->name);
+            if (n + len + 3 > sizeof names)
+                break;
             if (q)
                 names[n++] = ',', names[n++] = ' ';
-            names[n++] = registry[q]->name[0];
+            memcpy(names + n, registry[q]->name, len);
+            n += len;
         }
         names[n] = '\0';
     }

@@ -10,7 +10,7 @@
 #include <stddef.h>
 
 #include "model/model.h"
-#include "outputs/ncwrite.h"
+#include "observers/observed.h"
 #include "inputs/scenario.h"
 #include "base/status.h"
 

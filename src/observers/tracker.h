@@ -7,7 +7,7 @@
 #define SW_TRACKER_H
 
 #include "model/model.h"
-#include "outputs/ncwrite.h"
+#include "observers/observed.h"
 #include "base/status.h"
 
 typedef struct sw_tracker sw_tracker;

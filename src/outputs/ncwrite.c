@@ -11,14 +11,14 @@
  */
 #include "outputs/ncwrite.h"
 
-#include <errno.h>
 #include <math.h>
 #include <netcdf.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <sys/stat.h>
+
+#include "base/atomic_file.h"
 
 #define NCW_NAME_STRLEN 64                 /* length of the station_name character dimension */
 #define NCW_DEFLATE_LEVEL 1                /* zlib level of compressed variables */
@@ -31,8 +31,7 @@ static const char NCW_COMMENT[] = "Linear shallow-water model run; see the cauti
 typedef struct {
     int ncid;         /* NetCDF id, valid while is_open */
     int is_open;      /* 1 between a successful nc_create and nc_close */
-    char *path;       /* the final path (owned; `part` points into the same block) */
-    char *part;       /* path + ".part", the file actually written */
+    sw_atomic_file af; /* the final path (af.path) and the .part actually written (af.part) */
     sw_error *err;    /* where failures are recorded (may be NULL) */
     sw_status rc;     /* first failure, SW_OK until then */
 } ncw_file;
@@ -45,7 +44,7 @@ static int ncw_ok(ncw_file *f, int rc, const char *what, const char *name)
         return 0;
     if (rc == NC_NOERR)
         return 1;
-    f->rc = sw_fail(f->err, SW_ERR_NETCDF, "%s: %s%s%s: %s", f->path, what, name ? " " : "",
+    f->rc = sw_fail(f->err, SW_ERR_NETCDF, "%s: %s%s%s: %s", f->af.path, what, name ? " " : "",
                     name ? name : "", nc_strerror(rc));
     return 0;
 }
@@ -54,63 +53,27 @@ static int ncw_ok(ncw_file *f, int rc, const char *what, const char *name)
 static void ncw_fail(ncw_file *f, sw_status code, const char *what)
 {
     if (f->rc == SW_OK)
-        f->rc = sw_fail(f->err, code, "%s: %s", f->path, what);
+        f->rc = sw_fail(f->err, code, "%s: %s", f->af.path, what);
 }
 
-/* Returns 1 when the folder part of path (up to its last '/', or "." without one) does not
- * exist, and copies that folder into out (size n). */
-static int ncw_missing_folder(const char *path, char *out, size_t n)
-{
-    const char *slash = strrchr(path, '/');
-    size_t len = slash ? (size_t)(slash - path) : 1;
-    if (slash == path)
-        len = 1;  /* "/name": the root */
-    if (len + 1 > n)
-        return 0;
-    memcpy(out, slash ? path : ".", len);
-    out[len] = '\0';
-    struct stat st;
-    return stat(out, &st) != 0 && errno == ENOENT;
-}
-
-/* Creates "<path>.part" (NetCDF-4, replacing a stale .part). On failure records it, frees what it
- * allocated, removes any partial .part and returns the status; f is then not open. */
+/* Creates "<path>.part" (NetCDF-4, replacing a stale .part). On failure records it, removes any
+ * partial .part and returns the status; f is then not open. */
 static sw_status ncw_create(ncw_file *f, const char *path, sw_error *err)
 {
     memset(f, 0, sizeof *f);
     f->err = err;
-    size_t n = strlen(path);
-    f->path = malloc(2 * n + sizeof ".part" + 1);
-    if (!f->path)
-        return f->rc = sw_fail(err, SW_ERR_NOMEM, "%s: out of memory", path);
-    memcpy(f->path, path, n + 1);
-    f->part = f->path + n + 1;
-    memcpy(f->part, path, n);
-    memcpy(f->part + n, ".part", sizeof ".part");
-
-    int rc = nc_create(f->part, NC_NETCDF4 | NC_CLOBBER, &f->ncid);
-    if (rc != NC_NOERR) {
-        /* positive codes are errno values; the HDF5 layer reports a missing folder as
-         * "Permission denied", so name that case ourselves */
-        char folder[4096];
-        if (ncw_missing_folder(path, folder, sizeof folder))
-            f->rc = sw_fail(err, SW_ERR_IO, "%s: cannot create %s: folder %s does not exist", path,
-                            f->part, folder);
-        else
-            f->rc = sw_fail(err, rc > 0 ? SW_ERR_IO : SW_ERR_NETCDF, "%s: cannot create %s: %s", path,
-                            f->part, nc_strerror(rc));
-        remove(f->part);  /* the HDF5 layer may have left a partial file */
-        free(f->path);
-        f->path = f->part = NULL;
+    if ((f->rc = sw_atomic_begin(&f->af, path, err)) != SW_OK)
         return f->rc;
-    }
+    int rc = nc_create(f->af.part, NC_NETCDF4 | NC_CLOBBER, &f->ncid);
+    if (rc != NC_NOERR)   /* positive codes are errno values */
+        return f->rc = sw_atomic_create_failed(&f->af, rc > 0 ? SW_ERR_IO : SW_ERR_NETCDF, nc_strerror(rc), err);
     f->is_open = 1;
     return SW_OK;
 }
 
 /* Ends the dataset: when nothing failed, closes it and renames the .part to the final path;
- * otherwise (or when closing / renaming fails) closes it and removes the .part. Frees f's
- * memory in every case and returns the first failure or SW_OK. */
+ * otherwise (or when closing / renaming fails) closes it and removes the .part. Returns the first
+ * failure or SW_OK. */
 static sw_status ncw_finish(ncw_file *f)
 {
     if (f->is_open) {
@@ -118,13 +81,10 @@ static sw_status ncw_finish(ncw_file *f)
         f->is_open = 0;
         ncw_ok(f, rc, "closing", NULL);
     }
-    if (f->rc == SW_OK && f->part && rename(f->part, f->path) != 0)
-        f->rc = sw_fail(f->err, SW_ERR_IO, "%s: cannot rename %s to it: %s", f->path, f->part,
-                        strerror(errno));
-    if (f->rc != SW_OK && f->part)
-        remove(f->part);
-    free(f->path);
-    f->path = f->part = NULL;
+    if (f->rc == SW_OK)
+        f->rc = sw_atomic_commit(&f->af, f->err);
+    else
+        sw_atomic_discard(&f->af);
     return f->rc;
 }
 
@@ -642,7 +602,7 @@ sw_status sw_ncw_snapshots_append(sw_ncw_snapshots *s, double t_s, const double 
     ncw_file *f = &s->f;
     f->err = err;
     if (f->rc != SW_OK)
-        return sw_fail(err, f->rc, "%s: an earlier snapshot failed", f->path);
+        return sw_fail(err, f->rc, "%s: an earlier snapshot failed", f->af.path);
     if (!isfinite(t_s) || !(t_s > s->last_t_s)) {
         ncw_fail(f, SW_ERR_USAGE, "snapshot time is not finite or not after the previous one");
         return f->rc;
@@ -667,7 +627,7 @@ sw_status sw_ncw_snapshots_commit(sw_ncw_snapshots *s, sw_error *err)
         return sw_fail(err, SW_ERR_USAGE, "snapshots: no handle to commit");
     s->f.err = err;
     if (s->f.rc != SW_OK)  /* report the earlier failure again to this caller */
-        sw_fail(err, s->f.rc, "%s: not written: an earlier snapshot failed", s->f.path);
+        sw_fail(err, s->f.rc, "%s: not written: an earlier snapshot failed", s->f.af.path);
     sw_status st = ncw_finish(&s->f);
     free(s->slice);
     free(s);

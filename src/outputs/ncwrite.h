@@ -12,13 +12,14 @@
 
 #include "base/grid.h"
 #include "base/status.h"
+#include "observers/observed.h"   /* sw_gauge_table, sw_map_set */
 
 /* Metadata written as global attributes of every file. Strings must not be NULL. */
 typedef struct {
     const char *title;          /* scenario title */
     const char *history;        /* the command line that produced the file */
     const char *scenario_text;  /* the whole scenario file, verbatim */
-    const char *layout;         /* "A".."E" */
+    const char *layout;         /* the layout's name (registry, model/layout.h) */
     const char *precision;      /* of the model state: "double" or "single" */
     const char *version;        /* shoreward version string */
     const char *caution;        /* the caution text (not a forecast ...) */
@@ -29,32 +30,6 @@ typedef struct {
     double arrival_threshold_m; /* |eta| threshold defining arrival, m */
     double gravity_ms2;         /* g, m s-2 */
 } sw_run_meta;
-
-/* Gauge series in memory, station-major: value of station s at time index t is [s * n_times + t]. */
-typedef struct {
-    size_t n_stations;
-    size_t n_times;
-    const char *const *names;   /* [n_stations] station names */
-    const double *x_m, *y_m;    /* [n_stations] positions, m */
-    const double *depth_m;      /* [n_stations] still-water depth at the gauge, m (<= 0 on land) */
-    const double *time_s;       /* [n_times] seconds since the origin */
-    const double *eta_m;        /* [n_stations * n_times] sea-surface elevation, m */
-    const double *u_ms;         /* [n_stations * n_times] x velocity, m/s */
-    const double *v_ms;         /* [n_stations * n_times] y velocity, m/s */
-} sw_gauge_table;
-
-/* Maps at cell centres, each [ny * nx], row j at [j * nx]. Values on land cells (wet[k] == 0) and
- * arrival where never reached are NaN here and written as _FillValue. */
-typedef struct {
-    const sw_grid *grid;
-    const double *depth_m;        /* still-water depth, positive down (land negative), written everywhere */
-    const unsigned char *wet;     /* 1 = water cell in the model, 0 = land */
-    const double *eta_max_m;      /* highest eta reached, m */
-    const double *eta_min_m;      /* lowest eta reached, m */
-    const double *arrival_s;      /* first time |eta| >= threshold, s since the origin; NaN if never */
-    const double *eta_max_time_s; /* time of eta_max, s since the origin */
-    const double *speed_max_ms;   /* highest current speed, m/s */
-} sw_map_set;
 
 /* Writes the gauge file (CF discrete sampling geometry, featureType timeSeries). */
 sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gauge_table *gt, sw_error *err);

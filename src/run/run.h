@@ -9,7 +9,7 @@
 #include <signal.h>
 #include <stddef.h>
 
-#include "outputs/ncwrite.h"
+#include "observers/observed.h"
 #include "inputs/scenario.h"
 #include "run/setup.h"
 #include "base/status.h"

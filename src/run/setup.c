@@ -19,47 +19,14 @@ void sw_setup_free(sw_setup *s)
     memset(s, 0, sizeof *s);
 }
 
-/* Picks the layout, or explains which ones exist. */
+/* Picks the layout, or says which ones exist. */
 static sw_status choose_layout(const sw_scenario *sc, sw_setup *s, sw_error *err)
 {
-    int known = 0;
-    s->layout = sw_layout_find(sc->layout, &known);
+    s->layout = sw_layout_find(sc->layout, NULL);
     if (s->layout)
         return SW_OK;
-    if (known)
-        return sw_fail(err, SW_ERR_UNSUPPORTED,
-                       "%s:%d: [run] layout = %s: not available in this version yet (available: %s)",
-                       sc->path, sc->layout_line, sc->layout, sw_layout_names());
-    return sw_fail(err, SW_ERR_RANGE, "%s:%d: [run] layout = %s: unknown (accepted: A, B, C, D, E)",
-                   sc->path, sc->layout_line, sc->layout);
-}
-
-/* Sets dt from the Courant fraction, or checks the explicit dt against the limit. */
-static sw_status choose_dt(const sw_scenario *sc, sw_setup *s, sw_error *err)
-{
-    const sw_grid *g = &s->grid;
-    s->dims = (g->nx == 1 || g->ny == 1) ? 1 : 2;
-    s->dt_limit_s = sw_model_dt_limit(s->layout, g, s->depth_m, sc->min_depth_m, sc->gravity_ms2, s->dims);
-    s->courant_limit = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_limit_s);
-    if (sc->dt_s > 0) {
-        s->dt_s = sc->dt_s;
-        s->courant = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_s);
-        if (s->dt_s > s->dt_limit_s * (1 + 1e-12))
-            return sw_fail(err, SW_ERR_UNSTABLE,
-                           "%s:%d: [run] dt = %g s: Courant number %.4g exceeds the %s-layout limit %.4g "
-                           "(largest stable dt = %.4g s at the deepest water, %g m)",
-                           sc->path, sc->dt_line, sc->dt_s, s->courant, s->layout->name, s->courant_limit,
-                           s->dt_limit_s, s->h_max_m);
-    } else {
-        s->dt_s = sc->courant_fraction * s->dt_limit_s;
-        s->courant = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_s);
-    }
-    double steps = ceil(sc->duration_s / s->dt_s - 1e-9);
-    if (steps > 1e12)
-        return sw_fail(err, SW_ERR_RANGE, "%s: the run needs %.3g steps (duration %g s / dt %g s); "
-                       "shorten the duration or coarsen the grid", sc->path, steps, sc->duration_s, s->dt_s);
-    s->n_steps = (long long)steps;
-    return SW_OK;
+    return sw_fail(err, SW_ERR_RANGE, "%s:%d: [run] layout = %s: unknown (accepted: %s)", sc->path,
+                   sc->layout_line, sc->layout, sw_layout_names());
 }
 
 /* Every gauge must lie in the domain. The parser checks this when [grid] is given; a grid taken
@@ -102,25 +69,59 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
         sw_setup_free(s);
         return rc;
     }
+    rc = sw_setup_derive(sc, s, NULL, err);
+    if (rc != SW_OK)
+        sw_setup_free(s);
+    return rc;
+}
+
+sw_status sw_setup_derive(const sw_scenario *sc, sw_setup *s, const char *change, sw_error *err)
+{
+    const sw_grid *g = &s->grid;
+    size_t n = sw_grid_cells(g);
+    s->wet_cells = 0;
+    s->h_max_m = 0;
     for (size_t k = 0; k < n; k++)
         if (s->depth_m[k] >= sc->min_depth_m) {
             s->wet_cells++;
             s->h_max_m = fmax(s->h_max_m, s->depth_m[k]);
         }
     if (s->wet_cells == 0) {
-        sw_setup_free(s);
+        if (change)
+            return sw_fail(err, SW_ERR_RANGE, "%s: %s leaves no water: every cell is shallower than [seabed] "
+                           "min_depth = %g m", sc->path, change, sc->min_depth_m);
         return sw_fail(err, SW_ERR_RANGE, "%s: the domain has no water: every cell is shallower than "
                        "[seabed] min_depth = %g m", sc->path, sc->min_depth_m);
     }
-    rc = choose_dt(sc, s, err);
-    if (rc != SW_OK) {
-        sw_setup_free(s);
-        return rc;
+
+    /* dt from the Courant fraction, or the explicit dt checked against the limit */
+    s->dims = (g->nx == 1 || g->ny == 1) ? 1 : 2;
+    s->dt_limit_s = sw_model_dt_limit(s->layout, g, s->depth_m, sc->min_depth_m, sc->gravity_ms2, s->dims);
+    s->courant_limit = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_limit_s);
+    if (sc->dt_s > 0) {
+        s->dt_s = sc->dt_s;
+        s->courant = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_s);
+        if (s->dt_s > s->dt_limit_s * (1 + 1e-12))
+            return sw_fail(err, SW_ERR_UNSTABLE,
+                           "%s:%d: [run] dt = %g s%s%s: Courant number %.4g exceeds the %s-layout limit %.4g "
+                           "(largest stable dt = %.4g s at the deepest water, %g m)",
+                           sc->path, sc->dt_line, sc->dt_s, change ? " with " : "", change ? change : "",
+                           s->courant, s->layout->name, s->courant_limit, s->dt_limit_s, s->h_max_m);
+    } else {
+        s->dt_s = sc->courant_fraction * s->dt_limit_s;
+        s->courant = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_s);
     }
+
+    /* sizes */
+    double steps = ceil(sc->duration_s / s->dt_s - 1e-9);
+    if (steps > 1e12)
+        return sw_fail(err, SW_ERR_RANGE, "%s: the run needs %.3g steps (duration %g s / dt %g s); "
+                       "shorten the duration or coarsen the grid", sc->path, steps, sc->duration_s, s->dt_s);
+    s->n_steps = (long long)steps;
     double run_end = (double)s->n_steps * s->dt_s;
     s->n_samples = (size_t)floor(run_end / sc->gauge_interval_s) + 2;
     s->n_snapshots = sc->snapshot_interval_s > 0 ? (size_t)floor(run_end / sc->snapshot_interval_s) + 1 : 0;
-    s->model_bytes = sw_model_bytes_for(&s->grid, sc->precision);
+    s->model_bytes = sw_model_bytes_for(g, sc->precision);
     s->total_bytes = sw_setup_total_bytes(sc, s);
     return SW_OK;
 }

@@ -38,6 +38,16 @@ typedef struct {
  * Free with sw_setup_free. */
 sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err);
 
+/* Derives from the depth field s->depth_m (on s->grid, for s->layout) everything that depends on it:
+ * wet_cells, h_max_m, dims, dt_limit_s, courant_limit, the time step dt_s (sc's Courant fraction of the
+ * limit, or sc's explicit dt, refused beyond the limit) and courant, then n_steps, n_samples, n_snapshots,
+ * model_bytes and total_bytes. sw_setup_build calls it once the depth is built; a caller that changes the
+ * depth afterwards (a sweep's depth_factor) calls it again, so both derive dt and sizes the same way.
+ * `change` names such a change in messages ("depth_factor = 1.1"); NULL for none. Returns SW_OK, or
+ * SW_ERR_RANGE (no water, too many steps) / SW_ERR_UNSTABLE (dt beyond the layout's limit) with err
+ * naming the scenario file and line; s keeps its arrays either way (the caller frees). */
+sw_status sw_setup_derive(const sw_scenario *sc, sw_setup *s, const char *change, sw_error *err);
+
 /* Releases the arrays s owns and zeroes it. s may be NULL. */
 void sw_setup_free(sw_setup *s);
 

@@ -247,6 +247,17 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
     return SW_OK;
 }
 
+/* 1 when the layout letters in `letters` (any case, as in sw_bench_options.layouts) name lay. */
+static int selected(const char *letters, const sw_layout *lay)
+{
+    for (const char *p = letters; *p; p++) {
+        char name[2] = {*p, '\0'};
+        if (sw_layout_find(name, NULL) == lay)
+            return 1;
+    }
+    return 0;
+}
+
 sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_error *err)
 {
     memset(res, 0, sizeof *res);
@@ -281,8 +292,7 @@ sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_err
     if (!opt->numpy_script)
         snprintf(res->numpy_note, sizeof res->numpy_note, "skipped");
     for (size_t q = 0; q < sw_layout_count() && q < SW_BENCH_MAX_LAYOUTS; q++) {
-        if (opt->layouts && !strchr(opt->layouts, sw_layout_at(q)->name[0])
-            && !strchr(opt->layouts, sw_layout_at(q)->name[0] - 'A' + 'a'))
+        if (opt->layouts && !selected(opt->layouts, sw_layout_at(q)))
             continue;
         sw_status rc = bench_layout(opt, sw_layout_at(q), res, &res->layouts[res->n_layouts], err);
         if (rc != SW_OK)

@@ -2,11 +2,11 @@
 #include "studies/compare.h"
 
 #include <cjson/cJSON.h>
-#include <errno.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
+#include "base/atomic_file.h"
 #include "model/layout.h"
 #include "inputs/seabed.h"
 #include "run/setup.h"
@@ -114,12 +114,9 @@ sw_status sw_compare_run(const sw_scenario *sc, const char *const *layouts, size
     if (n_layouts * n_refine > SW_COMPARE_MAX_RUNS)
         return sw_fail(err, SW_ERR_RANGE, "%zu runs requested (accepted: at most %d)", n_layouts * n_refine,
                        SW_COMPARE_MAX_RUNS);
-    for (size_t a = 0; a < n_layouts; a++) {
-        int known = 0;
-        if (!sw_layout_find(layouts[a], &known))
-            return sw_fail(err, known ? SW_ERR_UNSUPPORTED : SW_ERR_RANGE, "layout '%s' %s (available: %s)",
-                           layouts[a], known ? "is not available in this version" : "is unknown", sw_layout_names());
-    }
+    for (size_t a = 0; a < n_layouts; a++)
+        if (!sw_layout_find(layouts[a], NULL))
+            return sw_fail(err, SW_ERR_RANGE, "layout '%s' is unknown (available: %s)", layouts[a], sw_layout_names());
     for (size_t b = 0; b < n_refine; b++)
         if (refine[b] < 1 || refine[b] > 64)
             return sw_fail(err, SW_ERR_RANGE, "refinement %d (accepted: whole numbers 1 to 64)", refine[b]);
@@ -195,35 +192,14 @@ void sw_compare_print(FILE *f, const sw_compare *cmp)
         }
 }
 
-/* Opens "<path>.part" for writing. */
-static FILE *open_part(const char *path, char *part, size_t n, sw_error *err)
-{
-    snprintf(part, n, "%s.part", path);
-    FILE *f = fopen(part, "w");
-    if (!f)
-        sw_fail(err, SW_ERR_IO, "cannot write %s: %s", part, strerror(errno));
-    return f;
-}
-
-/* Closes f and renames part to path; removes part on failure. */
-static sw_status close_part(FILE *f, const char *part, const char *path, sw_error *err)
-{
-    int bad = ferror(f);
-    bad |= fclose(f) != 0;
-    if (bad || rename(part, path) != 0) {
-        int e = errno;
-        remove(part);
-        return sw_fail(err, SW_ERR_IO, "cannot write %s: %s", path, strerror(e));
-    }
-    return SW_OK;
-}
-
 sw_status sw_compare_write_markdown(const char *path, const sw_scenario *sc, const sw_compare *cmp, sw_error *err)
 {
-    char part[SW_PATH_MAX + 8], a[32], b[32];
-    FILE *f = open_part(path, part, sizeof part, err);
-    if (!f)
-        return SW_ERR_IO;
+    char a[32], b[32];
+    sw_atomic_file af;
+    sw_status st = sw_atomic_open(&af, path, err);
+    if (st != SW_OK)
+        return st;
+    FILE *f = af.f;
     fprintf(f, "# Layout comparison: %s\n\nScenario `%s`. Reference: ", sc->title, sc->path);
     if (cmp->reference >= 0)
         fprintf(f, "layout %s refined x%d.\n\n", cmp->rows[cmp->reference].layout, cmp->rows[cmp->reference].refine);
@@ -258,15 +234,16 @@ sw_status sw_compare_write_markdown(const char *path, const sw_scenario *sc, con
     }
     fprintf(f, "\nThe noise index is the RMS of eta_max minus its 1-2-1 smoothed copy, relative to the RMS of "
                "eta_max: energy near the 2-cell wavenumber.\n\n%s\n", sw_caution());
-    return close_part(f, part, path, err);
+    return sw_atomic_close(&af, err);
 }
 
 sw_status sw_compare_write_csv(const char *path, const sw_compare *cmp, sw_error *err)
 {
-    char part[SW_PATH_MAX + 8];
-    FILE *f = open_part(path, part, sizeof part, err);
-    if (!f)
-        return SW_ERR_IO;
+    sw_atomic_file af;
+    sw_status st = sw_atomic_open(&af, path, err);
+    if (st != SW_OK)
+        return st;
+    FILE *f = af.f;
     fprintf(f, "layout,refine,status,nx,ny,dt_s,steps,wall_s,cell_updates_per_s,memory_bytes,courant,courant_limit,"
                "noise_index,gauge,arrival_s,d_arrival_s,peak_m,d_peak_m\n");
     for (size_t q = 0; q < cmp->n_rows; q++) {
@@ -283,7 +260,7 @@ sw_status sw_compare_write_csv(const char *path, const sw_compare *cmp, sw_error
                 fprintf(f, ",,,,\n");
         }
     }
-    return close_part(f, part, path, err);
+    return sw_atomic_close(&af, err);
 }
 
 static void add_num(cJSON *o, const char *k, double v)

@@ -17,6 +17,7 @@
 #include <time.h>
 #include <unistd.h>
 
+#include "base/atomic_file.h"
 #include "model/model.h"
 #include "base/omp_compat.h"
 #include "run/run.h"
@@ -298,33 +299,26 @@ static FILE *open_part(const char *part, sw_error *why)
 static sw_status write_cache(const char *path, const rate_entry *old, size_t n, const rate_entry *add,
                              long long now, sw_error *why)
 {
-    char part[SW_PATH_MAX + 8];
-    snprintf(part, sizeof part, "%s.part", path);
-    FILE *f = open_part(part, why);
-    if (!f)
+    sw_atomic_file af;
+    sw_status st = sw_atomic_begin(&af, path, why);
+    if (st != SW_OK)
+        return st;
+    af.f = open_part(af.part, why);
+    if (!af.f)
         return SW_ERR_IO;
-    fprintf(f, "# shoreward calibration cache: cell updates per second (time step + arrival tracking) measured\n"
-               "# by `shoreward check` on a 512 x 512 basin. Safe to delete; entries older than %g days are\n"
-               "# measured again. One entry per line, tab-separated:\n"
-               "# version\tlayout\tprecision\tthreads\tcpu_model\tcells_per_s\tunix_time\n",
+    fprintf(af.f, "# shoreward calibration cache: cell updates per second (time step + arrival tracking) measured\n"
+                  "# by `shoreward check` on a 512 x 512 basin. Safe to delete; entries older than %g days are\n"
+                  "# measured again. One entry per line, tab-separated:\n"
+                  "# version\tlayout\tprecision\tthreads\tcpu_model\tcells_per_s\tunix_time\n",
             SW_RATE_MAX_AGE_DAYS);
     for (size_t k = 0; k <= n; k++) {
         const rate_entry *e = k < n ? &old[k] : add;
         if (k < n && (same_key(e, add) || age_days(e, now) > SW_RATE_MAX_AGE_DAYS))
             continue;
-        fprintf(f, "%s\t%s\t%s\t%d\t%s\t%.17g\t%lld\n", e->version, e->layout, e->precision, e->threads, e->cpu,
+        fprintf(af.f, "%s\t%s\t%s\t%d\t%s\t%.17g\t%lld\n", e->version, e->layout, e->precision, e->threads, e->cpu,
                 e->cells_per_s, e->when);
     }
-    int bad = fflush(f) != 0 || ferror(f);
-    int saved = errno;
-    bad |= fclose(f) != 0;
-    if (!bad && rename(part, path) == 0)
-        return SW_OK;
-    if (!bad)
-        saved = errno;
-    sw_fail(why, SW_ERR_IO, "%s: %s", bad ? part : path, strerror(saved ? saved : EIO));
-    unlink(part);
-    return SW_ERR_IO;
+    return sw_atomic_close(&af, why);
 }
 
 /* Appends "; " (when note is not empty) and the printf-style text to note (size SW_ERROR_MSG_MAX),

@@ -8,13 +8,15 @@
 #include "studies/ncsweep.h"
 
 #include <dlfcn.h>
-#include <errno.h>
 #include <math.h>
 #include <netcdf.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+
+#include "base/atomic_file.h"
+#include "model/layout.h"
 
 #define NCS_NAME_STRLEN 64      /* station, parameter and value text length */
 #define NCS_ERROR_STRLEN 512    /* member failure messages are cut to this */
@@ -23,8 +25,7 @@
 typedef struct {
     int ncid;
     int is_open;
-    char path[SW_PATH_MAX];
-    char part[SW_PATH_MAX + 8];
+    sw_atomic_file af;   /* the final path and the .part written */
     sw_error *err;
     sw_status rc;
 } ncs_file;
@@ -36,7 +37,7 @@ static int ncs_ok(ncs_file *f, int rc, const char *what, const char *name)
         return 0;
     if (rc == NC_NOERR)
         return 1;
-    f->rc = sw_fail(f->err, SW_ERR_NETCDF, "%s: %s%s%s: %s", f->path, what, name ? " " : "", name ? name : "",
+    f->rc = sw_fail(f->err, SW_ERR_NETCDF, "%s: %s%s%s: %s", f->af.path, what, name ? " " : "", name ? name : "",
                     nc_strerror(rc));
     return 0;
 }
@@ -45,16 +46,11 @@ static sw_status ncs_create(ncs_file *f, const char *path, sw_error *err)
 {
     memset(f, 0, sizeof *f);
     f->err = err;
-    if (snprintf(f->path, sizeof f->path, "%s", path) >= (int)sizeof f->path)
-        return f->rc = sw_fail(err, SW_ERR_RANGE, "%s: path too long", path);
-    snprintf(f->part, sizeof f->part, "%s.part", path);
-    int rc = nc_create(f->part, NC_NETCDF4 | NC_CLOBBER, &f->ncid);
-    if (rc != NC_NOERR) {
-        f->rc = sw_fail(err, rc > 0 ? SW_ERR_IO : SW_ERR_NETCDF, "%s: cannot create %s: %s", path, f->part,
-                        nc_strerror(rc));
-        remove(f->part);
+    if ((f->rc = sw_atomic_begin(&f->af, path, err)) != SW_OK)
         return f->rc;
-    }
+    int rc = nc_create(f->af.part, NC_NETCDF4 | NC_CLOBBER, &f->ncid);
+    if (rc != NC_NOERR)
+        return f->rc = sw_atomic_create_failed(&f->af, rc > 0 ? SW_ERR_IO : SW_ERR_NETCDF, nc_strerror(rc), err);
     f->is_open = 1;
     return SW_OK;
 }
@@ -67,10 +63,10 @@ static sw_status ncs_finish(ncs_file *f)
         f->is_open = 0;
         ncs_ok(f, rc, "closing", NULL);
     }
-    if (f->rc == SW_OK && rename(f->part, f->path) != 0)
-        f->rc = sw_fail(f->err, SW_ERR_IO, "%s: cannot rename %s to it: %s", f->path, f->part, strerror(errno));
-    if (f->rc != SW_OK)
-        remove(f->part);
+    if (f->rc == SW_OK)
+        f->rc = sw_atomic_commit(&f->af, f->err);
+    else
+        sw_atomic_discard(&f->af);
     return f->rc;
 }
 
@@ -126,7 +122,7 @@ static void ncs_put(ncs_file *f, int id, const char *name, const double *v, size
         return;
     double *tmp = malloc((n ? n : 1) * sizeof *tmp);
     if (!tmp) {
-        f->rc = sw_fail(f->err, SW_ERR_NOMEM, "%s: out of memory writing %s", f->path, name);
+        f->rc = sw_fail(f->err, SW_ERR_NOMEM, "%s: out of memory writing %s", f->af.path, name);
         return;
     }
     for (size_t k = 0; k < n; k++)
@@ -142,7 +138,7 @@ static void ncs_put_strings(ncs_file *f, int id, const char *name, const char *c
         return;
     char *buf = calloc(n ? n : 1, width);
     if (!buf) {
-        f->rc = sw_fail(f->err, SW_ERR_NOMEM, "%s: out of memory writing %s", f->path, name);
+        f->rc = sw_fail(f->err, SW_ERR_NOMEM, "%s: out of memory writing %s", f->af.path, name);
         return;
     }
     for (size_t k = 0; k < n; k++) {
@@ -181,7 +177,7 @@ static void ncs_put_xy(ncs_file *f, const int id[2], const sw_grid *g)
     double *c = malloc(n * sizeof *c);
     if (!c) {
         if (f->rc == SW_OK)
-            f->rc = sw_fail(f->err, SW_ERR_NOMEM, "%s: out of memory", f->path);
+            f->rc = sw_fail(f->err, SW_ERR_NOMEM, "%s: out of memory", f->af.path);
         return;
     }
     for (size_t i = 0; i < g->nx; i++)
@@ -446,7 +442,11 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
     int v_pname = ncs_var(&f, "parameter_name", NC_CHAR, 2, dims2);
     ncs_text(&f, v_pname, "long_name", "varied parameter, as named in the scenario's [sweep] section");
     int v_punit = ncs_var(&f, "parameter_units", NC_CHAR, 2, dims2);
-    ncs_text(&f, v_punit, "long_name", "units of parameter_value (1: dimensionless; layout: A = 0 .. E = 4)");
+    char units_text[160];   /* layouts are stored as their registry index (A = 0 .. E = 4 today) */
+    size_t n_layouts = sw_layout_count();
+    snprintf(units_text, sizeof units_text, "units of parameter_value (1: dimensionless; layout: %s = 0 .. %s = %zu)",
+             sw_layout_at(0)->name, sw_layout_at(n_layouts - 1)->name, n_layouts - 1);
+    ncs_text(&f, v_punit, "long_name", units_text);
     int dims_mp[2] = { d_m, d_p };
     int v_pval = ncs_var(&f, "parameter_value", NC_DOUBLE, 2, dims_mp);
     ncs_text(&f, v_pval, "long_name", "each member's parameter values, in parameter_units");

@@ -5,7 +5,7 @@
  * file at <path> is always whole: a member file's presence is what marks the member finished. NaN
  * in the caller's arrays means "no value" and is written as the variable's _FillValue; readers
  * turn the _FillValue back into NaN. Doubles round-trip exactly. NetCDF-C is not thread-safe:
- * callers must not run these functions in several threads at once (sweep.c serialises them).
+ * callers must not run these functions in several threads at once (the sweep serialises them).
  */
 #ifndef SW_NCSWEEP_H
 #define SW_NCSWEEP_H
@@ -14,7 +14,7 @@
 
 #include "base/grid.h"
 #include "base/status.h"
-#include "studies/sweep.h"
+#include "studies/sweep_member.h"
 
 /* Quiets HDF5's automatic error printing in the calling thread. A thread-safe HDF5 keeps that switch
  * per thread, and netCDF turns it off only in the thread that first called it, so in other threads

@@ -11,14 +11,14 @@
  */
 #include "studies/stability.h"
 
-#include <errno.h>
 #include <float.h>
 #include <math.h>
 #include <netcdf.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <sys/stat.h>
+
+#include "base/atomic_file.h"
 
 #define STAB_PI 3.14159265358979323846
 #define STAB_MAX_COURANT 1e6        /* the scan gives up beyond this Courant number */
@@ -465,22 +465,6 @@ static int def_var(int ncid, const char *name, nc_type type, int ndims, const in
     return id;
 }
 
-/* Returns 1 when the folder of `path` does not exist. */
-static int folder_missing(const char *path)
-{
-    const char *slash = strrchr(path, '/');
-    if (!slash || slash == path)
-        return 0;
-    char folder[4096];
-    size_t len = (size_t)(slash - path);
-    if (len >= sizeof folder)
-        return 0;
-    memcpy(folder, path, len);
-    folder[len] = '\0';
-    struct stat sb;
-    return stat(folder, &sb) != 0 && errno == ENOENT;
-}
-
 sw_status sw_stab_write_planes(const char *path, const sw_stab_plane *planes, size_t n_planes, double f_dt,
                                size_t n_k, const char *history, sw_error *err)
 {
@@ -501,15 +485,12 @@ sw_status sw_stab_write_planes(const char *path, const sw_stab_plane *planes, si
     double *ratio = malloc(n_planes * n_plane * sizeof *ratio);
     double *per = malloc(3 * n_planes * sizeof *per);
     char *names = calloc(n_planes, STAB_NAME_LEN);
-    size_t plen = strlen(path);
-    char *part = malloc(plen + sizeof ".part");
-    if (!k || !amp || !ratio || !per || !names || !part) {
-        free(k), free(amp), free(ratio), free(per), free(names), free(part);
+    sw_atomic_file *af = malloc(sizeof *af);
+    if (!k || !amp || !ratio || !per || !names || !af) {
+        free(k), free(amp), free(ratio), free(per), free(names), free(af);
         return sw_fail(err, SW_ERR_NOMEM, "%s: out of memory for %zu x %zu x %zu values", path, n_planes, n_k,
                        n_k);
     }
-    memcpy(part, path, plen);
-    memcpy(part + plen, ".part", sizeof ".part");
 
     /* compute first: nothing is created until the numbers exist */
     for (size_t i = 0; i < n_k; i++)
@@ -533,15 +514,14 @@ sw_status sw_stab_write_planes(const char *path, const sw_stab_plane *planes, si
             }
     }
 
-    sw_status st = SW_OK;
-    int ncid = -1, rc = nc_create(part, NC_NETCDF4 | NC_CLOBBER, &ncid);
-    if (rc != NC_NOERR) {
-        if (folder_missing(path))
-            st = sw_fail(err, SW_ERR_IO, "%s: cannot create %s: its folder does not exist", path, part);
-        else
-            st = sw_fail(err, rc > 0 ? SW_ERR_IO : SW_ERR_NETCDF, "%s: cannot create %s: %s", path, part,
-                         nc_strerror(rc));
-        ncid = -1;
+    int ncid = -1;
+    sw_status st = sw_atomic_begin(af, path, err);
+    if (st == SW_OK) {
+        int rc = nc_create(af->part, NC_NETCDF4 | NC_CLOBBER, &ncid);
+        if (rc != NC_NOERR) {
+            st = sw_atomic_create_failed(af, rc > 0 ? SW_ERR_IO : SW_ERR_NETCDF, nc_strerror(rc), err);
+            ncid = -1;
+        }
     }
 
     int d_layout = -1, d_len = -1, d_ky = -1, d_kx = -1;
@@ -622,11 +602,11 @@ sw_status sw_stab_write_planes(const char *path, const sw_stab_plane *planes, si
         int crc = nc_close(ncid);
         if (st == SW_OK)
             nc_ok(crc, &st, err, path, "closing");
-        if (st == SW_OK && rename(part, path) != 0)
-            st = sw_fail(err, SW_ERR_IO, "%s: cannot rename %s to it: %s", path, part, strerror(errno));
+        if (st == SW_OK)
+            st = sw_atomic_commit(af, err);
+        else
+            sw_atomic_discard(af);
     }
-    if (st != SW_OK)
-        remove(part);   /* also a partial file the HDF5 layer may have left */
-    free(k), free(amp), free(ratio), free(per), free(names), free(part);
+    free(k), free(amp), free(ratio), free(per), free(names), free(af);
     return st;
 }

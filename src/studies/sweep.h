@@ -8,7 +8,9 @@
  * Data flow: plan (design + each member's grid, dt and cost) -> members run, several at once with
  * one thread each when they are small, else one after another with all threads -> each finished
  * member written to OUT/members/mNNNNN.nc (via .part + rename) -> the aggregate read back from
- * those files -> OUT/sweep.nc, OUT/sweep.md and a summary for the terminal or JSON.
+ * those files -> OUT/sweep.nc, OUT/sweep.md and a summary for the terminal or JSON. The stages live
+ * in sweep_design.c, sweep_member.c, sweep_run.c, sweep_combine.c and sweep_report.c (statistics
+ * in sweep_stats.c, the files in ncsweep.c).
  *
  * Invariant: a member's results do not depend on which other members ran, in which order, on how
  * many threads, or in which attempt (resume); the aggregate is always computed from the member
@@ -24,13 +26,15 @@
 #include "base/grid.h"
 #include "inputs/scenario.h"
 #include "base/status.h"
+#include "studies/sweep_member.h"   /* sw_sweep_member_result */
 
 #define SW_SWEEP_SMALL_CELLS ((size_t)1 << 18) /* members up to 512 x 512 cells run side by side */
 
 /* One member as planned: its parameter values, and what a run of it costs. */
 typedef struct {
     size_t index;             /* 0-based member number; files are mNNNNN with this number */
-    double *value;            /* [n_params] the parameters' values, base units (a layout as A = 0 .. E = 4) */
+    double *value;            /* [n_params] the parameters' values, base units (a layout as its registry
+                               * index, sw_layout_at) */
     long varied;              /* one-at-a-time: the parameter this member changes; -1 for the base member
                                * and in the other designs */
     sw_status status;         /* SW_OK when it can run; else why not, found while planning */
@@ -81,31 +85,6 @@ void sw_sweep_member_label(const sw_sweep_plan *plan, size_t k, char *buf, size_
 
 /* Formats value v of parameter p with its unit ("30 km", "0.9", "C") into buf. */
 void sw_sweep_format_value(const sw_sweep_param *p, double v, char *buf, size_t n);
-
-/* What one member produced, on the base grid. */
-typedef struct {
-    size_t index;             /* member number */
-    sw_status status;         /* SW_OK, or why the member failed (SW_ERR_INTERRUPTED: not finished) */
-    char error[SW_ERROR_MSG_MAX]; /* the failure, "" when ok */
-    size_t n_gauges;
-    double arrival_s[SW_MAX_GAUGES];   /* first arrival, s since the origin (NaN: never, or dry) */
-    double peak_m[SW_MAX_GAUGES];      /* highest elevation, m */
-    double peak_time_s[SW_MAX_GAUGES]; /* when, s */
-    double trough_m[SW_MAX_GAUGES];    /* lowest elevation, m */
-    size_t n_times;           /* gauge samples */
-    double *time_s;           /* [n_times] sample times, s (owned) */
-    double *eta_m;            /* [n_gauges * n_times] gauge elevation, station-major, m (owned) */
-    size_t n_cells;           /* cells of the base grid */
-    double *arrival_map_s;    /* [n_cells] first arrival, s; NaN where never reached or land (owned) */
-    double *eta_max_map_m;    /* [n_cells] highest elevation, m; NaN on land (owned) */
-    unsigned char *wet;       /* [n_cells] 1 where the member has water at the base cell's centre (owned) */
-    double dt_s;              /* its time step, s */
-    long long steps;          /* steps taken */
-    double wall_s;            /* wall-clock time of its run, s */
-} sw_sweep_member_result;
-
-/* Frees the arrays of r (not r itself) and zeroes them. r may be NULL. */
-void sw_sweep_member_result_free(sw_sweep_member_result *r);
 
 /* Progress of a sweep, for a callback about twice a second. */
 typedef struct {

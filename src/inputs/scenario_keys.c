@@ -1,0 +1,445 @@
+/* scenario_keys.c - the scenario's key tables and the values they accept (see scenario_impl.h).
+ *
+ * Each section is a table of keys (name, kind, range, where it is stored, default, accepted
+ * text): adding a key is one table row. Defaults are written as they would be in a file and go
+ * through the same code as the file's values (scn_store_value), so a table row is the whole truth
+ * about its key: the reader, [sweep] and overrides all look keys up here.
+ */
+#include "inputs/scenario_impl.h"
+
+#include <ctype.h>
+#include <math.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "model/layout.h"
+
+static const char *const EDGE_WORDS[] = { "wall", "open", "level", NULL };                   /* sw_edge_kind */
+const char *const scn_coast_words[] = { "none", "west", "east", "south", "north", NULL };    /* sw_coast_side */
+static const char *const POSITIVE_WORDS[] = { "down", "up", NULL };                        /* from SW_POSITIVE_DOWN */
+const char *const scn_shape_words[] = { "hump", "ellipse", "pair", "file", NULL };          /* sw_source_shape */
+static const char *const PRECISION_WORDS[] = { "double", "single", NULL };                 /* sw_precision */
+
+static const key_def RUN_KEYS[] = {
+    { .name = "title", TEXT_SC(title), .dflt = "untitled scenario", .accepted = "up to 255 characters" },
+    { .name = "duration", .kind = K_TIME, SC(duration_s), ABOVE(0, 30 * DAY), .required = 1,
+      .accepted = "0 < duration <= 30 d" },
+    { .name = "layout", .kind = K_LAYOUT, SC(layout), .size = FIELD_SIZE(sw_scenario, layout), .dflt = "C",
+      .accepted = "the registry's names, sw_layout_names() (any case)" },
+    { .name = "precision", .kind = K_CHOICE, SC(precision), .words = PRECISION_WORDS, .first = SW_DOUBLE,
+      .dflt = "double", .accepted = "double, single" },
+    { .name = "courant", .kind = K_NUMBER, SC(courant_fraction), ABOVE(0, 1), .dflt = "0.9",
+      .accepted = "0 < courant <= 1, a fraction of the layout's limit" },
+    { .name = "dt", .kind = K_TIME, SC(dt_s), ABOVE(0, DAY), .accepted = "0 < dt <= 1 d, not together with courant" },
+    { .name = "gauge_interval", .kind = K_TIME, SC(gauge_interval_s), ABOVE(0, DAY), .dflt = "30 s",
+      .accepted = "0 < gauge_interval <= 1 d" },
+    { .name = "snapshot_interval", .kind = K_TIME, SC(snapshot_interval_s), RANGE(0, 30 * DAY), .dflt = "0",
+      .accepted = "0 <= snapshot_interval <= 30 d; 0 writes none" },
+    { .name = "arrival_threshold", .kind = K_LENGTH, SC(arrival_threshold_m), ABOVE(0, 100), .dflt = "0.01 m",
+      .accepted = "0 < arrival_threshold <= 100 m" },
+    { .name = "gravity", .kind = K_NUMBER, SC(gravity_ms2), RANGE(1, 30), .dflt = "9.81",
+      .accepted = "1 <= gravity <= 30, in m s-2" },
+    { .name = "origin", .kind = K_ORIGIN, SC(origin), .dflt = "2000-01-01 00:00:00",
+      .accepted = "YYYY-MM-DD HH:MM:SS" },
+};
+
+static const key_def GRID_KEYS[] = {
+    { .name = "nx", .kind = K_INTEGER, SC(grid.nx), RANGE(1, 100000), .required = 1,
+      .accepted = "a whole number, 1 <= nx <= 100000, nx * ny <= 400000000" },
+    { .name = "ny", .kind = K_INTEGER, SC(grid.ny), RANGE(1, 100000), .required = 1,
+      .accepted = "a whole number, 1 <= ny <= 100000, nx * ny <= 400000000" },
+    { .name = "dx", .kind = K_LENGTH, SC(grid.dx_m), RANGE(1, 1000 * KM), .required = 1,
+      .accepted = "1 m <= dx <= 1000 km" },
+    { .name = "dy", .kind = K_LENGTH, SC(grid.dy_m), RANGE(1, 1000 * KM), .accepted = "1 m <= dy <= 1000 km" },
+    { .name = "x0", .kind = K_LENGTH, SC(grid.x0_m), RANGE(-1e5 * KM, 1e5 * KM), .dflt = "0",
+      .accepted = "|x0| <= 100000 km" },
+    { .name = "y0", .kind = K_LENGTH, SC(grid.y0_m), RANGE(-1e5 * KM, 1e5 * KM), .dflt = "0",
+      .accepted = "|y0| <= 100000 km" },
+};
+
+static const key_def EDGES_KEYS[] = {
+    { .name = "west", .kind = K_CHOICE, SC(edges[SW_WEST]),
+      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level" },
+    { .name = "east", .kind = K_CHOICE, SC(edges[SW_EAST]),
+      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level" },
+    { .name = "south", .kind = K_CHOICE, SC(edges[SW_SOUTH]),
+      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level" },
+    { .name = "north", .kind = K_CHOICE, SC(edges[SW_NORTH]),
+      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level" },
+    { .name = "all", .kind = K_CHOICE, .home = IN_PARSER, .off = 0 /* home_of: parse_state.edges_all */,
+      .words = EDGE_WORDS, .accepted = "wall, open, level" },
+};
+
+static const key_def SEABED_KEYS[] = {
+    { .name = "min_depth", .kind = K_LENGTH, SC(min_depth_m), ABOVE(0, 100), .dflt = "1 m",
+      .accepted = "0 < min_depth <= 100 m" },
+    { .name = "file", TEXT_SC(bed_file), .accepted = "a NetCDF path, relative to the scenario's folder" },
+    { .name = "variable", TEXT_SC(bed_variable), .dflt = "depth", .only = BED_FILE, .accepted = "a variable name" },
+    { .name = "positive", .kind = K_CHOICE, SC(bed_positive), .words = POSITIVE_WORDS, .first = SW_POSITIVE_DOWN,
+      .only = BED_FILE, .accepted = "down (depth), up (elevation)" },
+    { .name = "deep", .kind = K_LENGTH, SC(deep_m), ABOVE(0, 12 * KM), .required = 1, .only = BED_RECIPE,
+      .accepted = "0 < deep <= 12 km" },
+    { .name = "coast", .kind = K_CHOICE, SC(coast), .words = scn_coast_words, .dflt = "none", .only = BED_RECIPE,
+      .accepted = "none, west, east, south, north" },
+    { .name = "shoreline", .kind = K_LENGTH, SC(shoreline_m), .only = BED_RECIPE,
+      .accepted = "x (coast west/east) or y (coast south/north) of the mean shoreline" },
+    { .name = "coast_wiggle", .kind = K_LENGTH, SC(coast_wiggle_m), RANGE(-1000 * KM, 1000 * KM), .dflt = "0",
+      .only = BED_RECIPE, .accepted = "|coast_wiggle| <= 1000 km" },
+    { .name = "coast_wavelength", .kind = K_LENGTH, SC(coast_wavelength_m), ABOVE(0, HUGE_VAL), .dflt = "50 km",
+      .only = BED_RECIPE, .accepted = "coast_wavelength > 0" },
+    { .name = "shelf_depth", .kind = K_LENGTH, SC(shelf_depth_m), ABOVE(0, 12 * KM), .only = BED_RECIPE,
+      .accepted = "0 < shelf_depth <= deep" },
+    { .name = "shelf_width", .kind = K_LENGTH, SC(shelf_width_m), ABOVE(0, HUGE_VAL), .only = BED_RECIPE,
+      .accepted = "shelf_width > 0" },
+    { .name = "slope_width", .kind = K_LENGTH, SC(slope_width_m), RANGE(0, HUGE_VAL), .dflt = "0",
+      .only = BED_RECIPE, .accepted = "slope_width >= 0" },
+    { .name = "land_height", .kind = K_LENGTH, SC(land_height_m), ABOVE(0, 9 * KM), .dflt = "10 m",
+      .only = BED_RECIPE, .accepted = "0 < land_height <= 9 km" },
+};
+
+static const key_def BAY_KEYS[] = {
+    { .name = "x", .kind = K_LENGTH, FE(x_m), .required = 1, .accepted = "x of the centre" },
+    { .name = "y", .kind = K_LENGTH, FE(y_m), .required = 1, .accepted = "y of the centre" },
+    { .name = "radius_x", .kind = K_LENGTH, FE(radius_x_m), ABOVE(0, HUGE_VAL),
+      .required = 1, .accepted = "radius_x > 0" },
+    { .name = "radius_y", .kind = K_LENGTH, FE(radius_y_m), ABOVE(0, HUGE_VAL),
+      .required = 1, .accepted = "radius_y > 0" },
+    { .name = "depth", .kind = K_LENGTH, FE(depth_m), ABOVE(0, HUGE_VAL), .required = 1,
+      .accepted = "depth > 0, the floor depth at the centre" },
+};
+
+static const key_def ISLAND_KEYS[] = {
+    { .name = "x", .kind = K_LENGTH, FE(x_m), .required = 1, .accepted = "x of the centre" },
+    { .name = "y", .kind = K_LENGTH, FE(y_m), .required = 1, .accepted = "y of the centre" },
+    { .name = "radius", .kind = K_LENGTH, FE(radius_x_m), ABOVE(0, HUGE_VAL), .required = 1,
+      .accepted = "radius > 0, the e-folding radius" },
+    { .name = "height", .kind = K_LENGTH, FE(height_m), ABOVE(0, HUGE_VAL), .required = 1,
+      .accepted = "height > 0, the summit above sea level" },
+};
+
+static const key_def SHOAL_KEYS[] = {
+    { .name = "x", .kind = K_LENGTH, FE(x_m), .required = 1, .accepted = "x of the centre" },
+    { .name = "y", .kind = K_LENGTH, FE(y_m), .required = 1, .accepted = "y of the centre" },
+    { .name = "radius", .kind = K_LENGTH, FE(radius_x_m), ABOVE(0, HUGE_VAL), .required = 1,
+      .accepted = "radius > 0, the e-folding radius" },
+    { .name = "crest", .kind = K_LENGTH, FE(crest_m), ABOVE(0, HUGE_VAL), .required = 1,
+      .accepted = "crest > 0, the water depth over the crest" },
+};
+
+static const key_def SOURCE_KEYS[] = {
+    { .name = "shape", .kind = K_CHOICE, SO(shape), .words = scn_shape_words, .required = 1,
+      .accepted = "hump, ellipse, pair, file" },
+    { .name = "x", .kind = K_LENGTH, SO(x_m), .required = 1, .only = SHAPES_XY, .accepted = "x of the centre" },
+    { .name = "y", .kind = K_LENGTH, SO(y_m), .required = 1, .only = SHAPES_XY, .accepted = "y of the centre" },
+    { .name = "amplitude", .kind = K_LENGTH, SO(amplitude_m), RANGE(-100, 100), .required = 1, .only = SHAPES_XY,
+      .accepted = "|amplitude| <= 100 m; > 0 for a pair" },
+    { .name = "trough", .kind = K_LENGTH, SO(trough_m), ABOVE(0, 100), .only = SHAPE(SW_SOURCE_PAIR),
+      .accepted = "0 < trough <= 100 m (default: amplitude)" },
+    { .name = "radius", .kind = K_LENGTH, SO(radius_m), ABOVE(0, HUGE_VAL), .required = 1,
+      .only = SHAPE(SW_SOURCE_HUMP), .accepted = "radius > 0" },
+    { .name = "length", .kind = K_LENGTH, SO(length_m), ABOVE(0, HUGE_VAL), .required = 1, .only = SHAPES_AXES,
+      .accepted = "length > 0" },
+    { .name = "width", .kind = K_LENGTH, SO(width_m), ABOVE(0, HUGE_VAL), .required = 1, .only = SHAPES_AXES,
+      .accepted = "width > 0" },
+    { .name = "angle", .kind = K_ANGLE, SO(angle_deg), .required = 1, .only = SHAPES_AXES,
+      .accepted = "degrees counter-clockwise from east" },
+    { .name = "separation", .kind = K_LENGTH, SO(separation_m), ABOVE(0, HUGE_VAL), .required = 1,
+      .only = SHAPE(SW_SOURCE_PAIR), .accepted = "separation > 0" },
+    { .name = "file", TEXT_SO(file), .required = 1, .only = SHAPE(SW_SOURCE_FILE),
+      .accepted = "a NetCDF path, relative to the scenario's folder" },
+    { .name = "variable", TEXT_SO(variable), .dflt = "eta", .only = SHAPE(SW_SOURCE_FILE),
+      .accepted = "a variable name" },
+};
+
+#define TABLE(t) t, sizeof t / sizeof t[0]
+const section_def scn_sections[] = {
+    { "run", S_RUN, 0, TABLE(RUN_KEYS) },          { "grid", S_GRID, 0, TABLE(GRID_KEYS) },
+    { "edges", S_EDGES, 0, TABLE(EDGES_KEYS) },    { "seabed", S_SEABED, 0, TABLE(SEABED_KEYS) },
+    { "gauges", S_GAUGES, 0, NULL, 0 },            { "bay", S_BAY, 1, TABLE(BAY_KEYS) },
+    { "island", S_ISLAND, 1, TABLE(ISLAND_KEYS) }, { "shoal", S_SHOAL, 1, TABLE(SHOAL_KEYS) },
+    { "source", S_SOURCE, 1, TABLE(SOURCE_KEYS) }, { "sweep", S_SWEEP, 0, NULL, 0 },
+};
+const size_t scn_n_sections = sizeof scn_sections / sizeof scn_sections[0];
+
+_Static_assert(sizeof RUN_KEYS / sizeof RUN_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX");
+_Static_assert(sizeof SEABED_KEYS / sizeof SEABED_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX");
+_Static_assert(sizeof SOURCE_KEYS / sizeof SOURCE_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX");
+_Static_assert(sizeof(sw_edge_kind) == sizeof(int) && sizeof(sw_coast_side) == sizeof(int)
+               && sizeof(sw_positive) == sizeof(int) && sizeof(sw_source_shape) == sizeof(int)
+               && sizeof(sw_precision) == sizeof(int),
+               "K_CHOICE stores an int");
+
+const section_def *scn_find_section_def(const char *name, suggestion *s)
+{
+    for (size_t i = 0; i < scn_n_sections; i++) {
+        if (strcmp(scn_sections[i].name, name) == 0)
+            return &scn_sections[i];
+        if (s)
+            scn_suggest_try(s, name, scn_sections[i].name);
+    }
+    return NULL;
+}
+
+const key_def *scn_find_key(const section_def *def, const char *name, suggestion *s)
+{
+    for (size_t i = 0; def && i < def->n_keys; i++) {
+        if (strcmp(def->keys[i].name, name) == 0)
+            return &def->keys[i];
+        if (s)
+            scn_suggest_try(s, name, def->keys[i].name);
+    }
+    return NULL;
+}
+
+/* ---- suggestions --------------------------------------------------------------------------- */
+
+/* Levenshtein distance between a and b (insertions, deletions, substitutions), SIZE_MAX when
+ * either is longer than 64 characters (then they are not close anyway). */
+static size_t edit_distance(const char *a, const char *b)
+{
+    size_t la = strlen(a), lb = strlen(b);
+    if (la > 64 || lb > 64)
+        return SIZE_MAX;
+    size_t row[65];
+    for (size_t j = 0; j <= lb; j++)
+        row[j] = j;
+    for (size_t i = 1; i <= la; i++) {
+        size_t diag = row[0];   /* distance(a[:i-1], b[:j-1]) */
+        row[0] = i;
+        for (size_t j = 1; j <= lb; j++) {
+            size_t up = row[j];
+            size_t best = diag + (a[i - 1] != b[j - 1]);
+            if (up + 1 < best)
+                best = up + 1;
+            if (row[j - 1] + 1 < best)
+                best = row[j - 1] + 1;
+            row[j] = best;
+            diag = up;
+        }
+    }
+    return row[lb];
+}
+
+/* Keeps the closest candidate to `typed`: within edit distance 2, or one that `typed` begins (or
+ * that begins `typed`, for candidates of 3 characters or more). */
+void scn_suggest_try(suggestion *s, const char *typed, const char *candidate)
+{
+    size_t d = edit_distance(typed, candidate);
+    size_t lt = strlen(typed), lc = strlen(candidate);
+    if (d > 2 && ((lt > 0 && strncmp(candidate, typed, lt) == 0) || (lc >= 3 && strncmp(typed, candidate, lc) == 0)))
+        d = 2;   /* "dur" for "duration", "downward" for "down": close too */
+    if (d <= 2 && (!s->best || d < s->dist)) {
+        s->best = candidate;
+        s->dist = d;
+    }
+}
+
+/* Writes " (did you mean 'x'?)" or "" into out. */
+const char *scn_suggest_text(const suggestion *s, char *out, size_t n)
+{
+    if (s->best)
+        snprintf(out, n, " (did you mean '%s'?)", s->best);
+    else if (n)
+        out[0] = '\0';
+    return out;
+}
+
+/* ---- values -------------------------------------------------------------------------------- */
+
+sw_unit_kind scn_unit_kind(key_kind k)
+{
+    switch (k) {
+    case K_LENGTH: return SW_UNIT_LENGTH;
+    case K_TIME: return SW_UNIT_TIME;
+    case K_ANGLE: return SW_UNIT_ANGLE;
+    default: return SW_UNIT_NONE;
+    }
+}
+
+static int is_leap(int y) { return (y % 4 == 0 && y % 100 != 0) || y % 400 == 0; }
+
+/* Checks "YYYY-MM-DD HH:MM:SS" with a real calendar date (proleptic Gregorian). */
+static sw_status check_origin(const char *v, char *why, size_t n)
+{
+    static const char pattern[] = "dddd-dd-dd dd:dd:dd";
+    size_t len = strlen(v);
+    int ok = len == sizeof pattern - 1;
+    for (size_t i = 0; ok && i < len; i++)
+        ok = pattern[i] == 'd' ? isdigit((unsigned char)v[i]) != 0 : v[i] == pattern[i];
+    if (!ok) {
+        snprintf(why, n, "not a date and time (accepted: YYYY-MM-DD HH:MM:SS, e.g. 2000-01-01 00:00:00)");
+        return SW_ERR_PARSE;
+    }
+    int y = atoi(v), mo = atoi(v + 5), d = atoi(v + 8), h = atoi(v + 11), mi = atoi(v + 14), s = atoi(v + 17);
+    static const int days[12] = { 31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31 };
+    int dim = mo >= 1 && mo <= 12 ? days[mo - 1] + (mo == 2 && is_leap(y)) : 0;
+    if (y < 1 || mo < 1 || mo > 12 || d < 1 || d > dim || h > 23 || mi > 59 || s > 59) {
+        snprintf(why, n, "no such date or time (accepted: year 0001..9999, month 01..12, a day of that month, "
+                         "HH 00..23, MM and SS 00..59)");
+        return SW_ERR_RANGE;
+    }
+    return SW_OK;
+}
+
+int scn_is_numeric(key_kind k)
+{
+    return k == K_NUMBER || k == K_INTEGER || k == K_LENGTH || k == K_TIME || k == K_ANGLE;
+}
+
+/* The registry position (sw_layout_at) of the layout called `name` (any case) into *index, as a sweep
+ * stores a layout value. Returns 0 when no layout has that name. */
+int scn_layout_index(const char *name, double *index)
+{
+    const sw_layout *lay = sw_layout_find(name, NULL);
+    for (size_t q = 0; lay && q < sw_layout_count(); q++)
+        if (sw_layout_at(q) == lay) {
+            *index = (double)q;
+            return 1;
+        }
+    return 0;
+}
+
+/* Parses `value` as a number of numeric key k (unit, whole number, range) into *v. Returns SW_OK,
+ * or SW_ERR_PARSE / SW_ERR_RANGE with the cause in why. */
+sw_status scn_parse_number(const key_def *k, const char *value, double *v, char *why, size_t n)
+{
+    if (sw_units_parse(value, scn_unit_kind(k->kind), v, why, (unsigned)n) != 0)
+        return SW_ERR_PARSE;
+    if (k->kind == K_INTEGER && *v != floor(*v)) {
+        snprintf(why, n, "not a whole number (accepted: %s)", k->accepted);
+        return SW_ERR_PARSE;
+    }
+    if (k->ranged && ((k->gt ? !(*v > k->lo) : !(*v >= k->lo)) || !(*v <= k->hi))) {
+        snprintf(why, n, "out of range (accepted: %s)", k->accepted);
+        return SW_ERR_RANGE;
+    }
+    return SW_OK;
+}
+
+/* Parses `value` as key k and stores it into home. Returns SW_OK, or SW_ERR_PARSE / SW_ERR_RANGE
+ * with the cause in why. Nothing is stored on failure. */
+sw_status scn_store_value(const key_def *k, void *home, const char *value, char *why, size_t n)
+{
+    char *at = (char *)home + k->off;
+    switch (k->kind) {
+    case K_NUMBER:
+    case K_INTEGER:
+    case K_LENGTH:
+    case K_TIME:
+    case K_ANGLE: {
+        double v;
+        sw_status st = scn_parse_number(k, value, &v, why, n);
+        if (st != SW_OK)
+            return st;
+        if (k->kind == K_INTEGER) {
+            size_t iv = (size_t)v;   /* ranged: 1 .. 100000 */
+            memcpy(at, &iv, sizeof iv);
+        } else {
+            memcpy(at, &v, sizeof v);
+        }
+        return SW_OK;
+    }
+    case K_TEXT: {
+        size_t len = strlen(value);
+        if (len == 0) {
+            snprintf(why, n, "empty (accepted: %s)", k->accepted);
+            return SW_ERR_PARSE;
+        }
+        if (len >= k->size) {
+            snprintf(why, n, "too long: %zu characters (accepted: at most %zu)", len, k->size - 1);
+            return SW_ERR_RANGE;
+        }
+        memcpy(at, value, len + 1);
+        return SW_OK;
+    }
+    case K_CHOICE: {
+        suggestion s = { 0 };
+        for (int i = 0; k->words[i]; i++) {
+            if (strcmp(value, k->words[i]) == 0) {
+                int v = k->first + i;
+                memcpy(at, &v, sizeof v);
+                return SW_OK;
+            }
+            scn_suggest_try(&s, value, k->words[i]);
+        }
+        char hint[96];
+        snprintf(why, n, "unknown value%s (accepted: %s)", scn_suggest_text(&s, hint, sizeof hint), k->accepted);
+        return SW_ERR_PARSE;
+    }
+    case K_LAYOUT: {
+        const sw_layout *lay = sw_layout_find(value, NULL);
+        if (!lay) {
+            snprintf(why, n, "unknown layout (accepted: %s (any case))", sw_layout_names());
+            return SW_ERR_PARSE;
+        }
+        size_t len = strlen(lay->name);
+        if (len >= k->size) {
+            snprintf(why, n, "internal: the layout name %s is longer than %zu characters", lay->name, k->size - 1);
+            return SW_ERR_RANGE;
+        }
+        memcpy(at, lay->name, len + 1);
+        return SW_OK;
+    }
+    case K_ORIGIN: {
+        sw_status st = check_origin(value, why, n);
+        if (st == SW_OK)
+            memcpy(at, value, strlen(value) + 1);   /* 19 characters into char[32] */
+        return st;
+    }
+    }
+    snprintf(why, n, "internal: unknown key kind");
+    return SW_ERR_PARSE;
+}
+
+/* ---- targets: "section name.key" ----------------------------------------------------------- */
+
+void scn_trim(char *t)
+{
+    size_t n = strlen(t), a = 0;
+    while (a < n && isspace((unsigned char)t[a]))
+        a++;
+    while (n > a && isspace((unsigned char)t[n - 1]))
+        n--;
+    memmove(t, t + a, n - a);
+    t[n - a] = '\0';
+}
+
+/* Splits "section words.key" at the last '.' into the section's kind (first word), its name (the
+ * rest, trimmed) and the key. Returns 0 when a part is missing or too long. */
+int scn_split_target(const char *target, char *kind, char *name, char *key)
+{
+    const char *dot = strrchr(target, '.');
+    if (!dot || strlen(target) > LINE_MAX_CHARS)
+        return 0;
+    char sect[LINE_MAX_CHARS + 1];
+    memcpy(sect, target, (size_t)(dot - target));
+    sect[dot - target] = '\0';
+    snprintf(key, LINE_MAX_CHARS + 1, "%s", dot + 1);
+    scn_trim(key);
+    scn_split_section(sect, kind, name);
+    return kind[0] && key[0] && strlen(name) < SW_NAME_MAX;
+}
+
+/* Splits "kind words": the first word is the kind, the rest (trimmed) the name. */
+void scn_split_section(const char *text, char *kind, char *name)
+{
+    char t[LINE_MAX_CHARS + 1];
+    snprintf(t, sizeof t, "%s", text);
+    scn_trim(t);
+    size_t kn = 0;
+    while (t[kn] && !isspace((unsigned char)t[kn]))
+        kn++;
+    memcpy(kind, t, kn);
+    kind[kn] = '\0';
+    snprintf(name, LINE_MAX_CHARS + 1, "%s", t + kn);
+    scn_trim(name);
+}
+
+/* Canonical "kind name.key" / "kind.key". */
+void scn_join_target(char *out, size_t n, const char *kind, const char *name, const char *key)
+{
+    /* kinds and keys are short table words; names are below SW_NAME_MAX (scn_split_target) */
+    snprintf(out, n, "%.16s%s%.63s.%.24s", kind, name[0] ? " " : "", name, key);
+}

@@ -1,0 +1,773 @@
+/* scenario_read.c - reading a scenario text into sw_scenario: the reader, the whole-file rules and
+ * the entry points of scenario.h (load, parse, free, resolve).
+ *
+ * How it works. inih splits the text into `key = value` pairs. It reads through our own line
+ * reader (read_line), which counts lines, refuses over-long lines, strips blanks and comments,
+ * and sees every [section] header: the reader opens the section itself (inih cuts section names
+ * at 49 characters and says nothing about a section without keys). The key handler (on_key) looks
+ * the key up in the open section's table (scenario_keys.c) and stores the value in SI units. After
+ * the last line, `finish` applies the rules that involve several keys or sections, [sweep] last
+ * (scenario_sweep.c).
+ *
+ * Invariant: the first problem found is the one reported. Once `ps->failed` is set, the reader
+ * ends the input and the handler refuses every further key.
+ */
+#include "inputs/scenario_impl.h"
+
+#include <ctype.h>
+#include <errno.h>
+#include <limits.h>
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <ini.h>
+
+#define FILE_MAX_BYTES (16u << 20)      /* a scenario is small; refuse anything above 16 MiB */
+
+/* ---- messages ------------------------------------------------------------------------------ */
+
+/* Records "NAME:LINE: message" (or "NAME: message" when line <= 0) unless a problem is already
+ * recorded. Returns 0, the value inih's handler returns on error. */
+int scn_fail_at(parse_state *ps, sw_status code, int line, const char *fmt, ...)
+{
+    if (ps->failed)
+        return 0;
+    char msg[SW_ERROR_MSG_MAX];
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(msg, sizeof msg, fmt, ap);
+    va_end(ap);
+    memcpy(ps->bare, msg, sizeof ps->bare);
+    if (line > 0)
+        sw_fail(&ps->err, code, "%s:%d: %s", ps->name, line, msg);
+    else
+        sw_fail(&ps->err, code, "%s: %s", ps->name, msg);
+    ps->failed = 1;
+    ps->fail_line = line > 0 ? line : INT_MAX;
+    return 0;
+}
+
+/* ---- sections ------------------------------------------------------------------------------ */
+
+/* Where values of key k live for the open section. */
+static void *home_of(parse_state *ps, const section_ctx *sec, const key_def *k)
+{
+    switch (k->home) {
+    case IN_SCENARIO: return ps->sc;
+    case IN_ITEM: return sec->item;
+    case IN_PARSER: return &ps->edges_all;   /* the only IN_PARSER key: [edges] all */
+    }
+    return NULL;
+}
+
+/* Stores the defaults of a section's keys into their homes (defaults are known-good text). */
+static void apply_defaults(parse_state *ps, const section_ctx *sec, const section_def *def, key_home which)
+{
+    char why[256];
+    for (size_t i = 0; i < def->n_keys; i++) {
+        const key_def *k = &def->keys[i];
+        if (k->dflt && k->home == which)
+            (void)scn_store_value(k, home_of(ps, sec, k), k->dflt, why, sizeof why);
+    }
+}
+
+/* Opens the section whose header text (between '[' and ']') is inner[0..n). Returns 0 after
+ * recording a problem. */
+static int begin_section(parse_state *ps, const char *inner, size_t n)
+{
+    while (n > 0 && isspace((unsigned char)*inner)) {
+        inner++;
+        n--;
+    }
+    while (n > 0 && isspace((unsigned char)inner[n - 1]))
+        n--;
+    if (n == 0)
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "empty section header [] (accepted: run, grid, edges, "
+                                                       "seabed, gauges, bay NAME, island NAME, shoal NAME, source "
+                                                       "NAME, sweep)");
+    char kind[LINE_MAX_CHARS + 1];
+    size_t kn = 0;
+    while (kn < n && !isspace((unsigned char)inner[kn]))
+        kn++;
+    memcpy(kind, inner, kn);
+    kind[kn] = '\0';
+    const char *name = inner + kn;
+    size_t nn = n - kn;
+    while (nn > 0 && isspace((unsigned char)*name)) {
+        name++;
+        nn--;
+    }
+
+    suggestion near = { 0 };
+    const section_def *def = scn_find_section_def(kind, &near);
+    if (!def) {
+        char hint[96];
+        if (near.best)
+            return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "unknown section [%.*s]%s", (int)n, inner,
+                               scn_suggest_text(&near, hint, sizeof hint));
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "unknown section [%.*s] (accepted: run, grid, edges, seabed, "
+                           "gauges, bay NAME, island NAME, shoal NAME, source NAME, sweep)", (int)n, inner);
+    }
+    if (def->named && nn == 0)
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "section [%s] needs a name, e.g. [%s %s]", kind, kind,
+                           def->type == S_SOURCE ? "main" : "Gull Rock");
+    if (!def->named && nn > 0)
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "section [%s] takes no name, found [%.*s] (accepted: [%s])",
+                           kind, (int)n, inner, kind);
+    if (nn >= SW_NAME_MAX)
+        return scn_fail_at(ps, SW_ERR_RANGE, ps->line, "[%s ...]: the name has %zu characters (accepted: at most %d)",
+                           kind, nn, SW_NAME_MAX - 1);
+
+    for (size_t i = 0; i < ps->n_sections; i++) {
+        const section_ctx *o = &ps->sections[i];
+        if (o->def == def && strlen(o->name) == nn && strncmp(o->name, name, nn) == 0)
+            return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "duplicate section %s (first on line %d)",
+                               o->label, o->line);
+    }
+
+    sw_scenario *sc = ps->sc;
+    void *item = NULL;
+    if (def->type == S_BAY || def->type == S_ISLAND || def->type == S_SHOAL) {
+        if (sc->n_features >= SW_MAX_FEATURES)
+            return scn_fail_at(ps, SW_ERR_RANGE, ps->line, "too many features at [%.*s] (accepted: at most %d bays, "
+                               "islands and shoals)", (int)n, inner, SW_MAX_FEATURES);
+        sw_feature *f = &sc->features[sc->n_features++];
+        f->kind = def->type == S_BAY ? SW_FEATURE_BAY : def->type == S_ISLAND ? SW_FEATURE_ISLAND : SW_FEATURE_SHOAL;
+        memcpy(f->name, name, nn);
+        f->name[nn] = '\0';
+        f->line = ps->line;
+        item = f;
+    } else if (def->type == S_SOURCE) {
+        if (sc->n_sources >= SW_MAX_SOURCES)
+            return scn_fail_at(ps, SW_ERR_RANGE, ps->line, "too many sources at [%.*s] (accepted: at most %d)", (int)n,
+                               inner, SW_MAX_SOURCES);
+        sw_source_spec *s = &sc->sources[sc->n_sources++];
+        memcpy(s->name, name, nn);
+        s->name[nn] = '\0';
+        s->line = ps->line;
+        item = s;
+    }
+
+    section_ctx *sec = &ps->sections[ps->n_sections++];   /* SECTIONS_MAX covers every kind's limit */
+    memset(sec, 0, sizeof *sec);
+    sec->def = def;
+    sec->line = ps->line;
+    sec->item = item;
+    memcpy(sec->name, name, nn);
+    sec->name[nn] = '\0';
+    if (nn)
+        snprintf(sec->label, sizeof sec->label, "[%s %.*s]", def->name, (int)nn, name);
+    else
+        snprintf(sec->label, sizeof sec->label, "[%s]", def->name);
+    if (item)
+        apply_defaults(ps, sec, def, IN_ITEM);
+    ps->cur = sec;
+    return 1;
+}
+
+const section_ctx *scn_find_section(const parse_state *ps, section_type type)
+{
+    for (size_t i = 0; i < ps->n_sections; i++)
+        if (ps->sections[i].def->type == type)
+            return &ps->sections[i];
+    return NULL;
+}
+
+/* Index of key `name` in sec's table (the name must be in it). */
+static size_t key_index(const section_def *def, const char *name)
+{
+    for (size_t i = 0; i < def->n_keys; i++)
+        if (strcmp(def->keys[i].name, name) == 0)
+            return i;
+    return 0;
+}
+
+/* Line where key `name` was given in sec, 0 if it was not (or sec is NULL). */
+static int key_line(const section_ctx *sec, const char *name)
+{
+    return sec ? sec->key_line[key_index(sec->def, name)] : 0;
+}
+
+/* ---- reading lines ------------------------------------------------------------------------- */
+
+/* Copies the raw line raw[0..n) into out (size > n) without the BOM (first line), leading and
+ * trailing blanks and comments: a line starting with ';' or '#' becomes empty, and " ;..." after
+ * text is dropped (the same rule inih applies, so inih sees the same content). Returns the length. */
+size_t scn_clean_line(const char *raw, size_t n, int first_line, char *out)
+{
+    if (first_line && n >= 3 && memcmp(raw, "\xEF\xBB\xBF", 3) == 0) {
+        raw += 3;
+        n -= 3;
+    }
+    while (n > 0 && isspace((unsigned char)*raw)) {
+        raw++;
+        n--;
+    }
+    if (n > 0 && (*raw == ';' || *raw == '#'))
+        n = 0;
+    for (size_t i = 1; i < n; i++)
+        if (raw[i] == ';' && isspace((unsigned char)raw[i - 1])) {
+            n = i;
+            break;
+        }
+    while (n > 0 && isspace((unsigned char)raw[n - 1]))
+        n--;
+    memcpy(out, raw, n);
+    out[n] = '\0';
+    return n;
+}
+
+/* Drops the blanks around the first '=' or ':' of a key line (inih strips them anyway), so that a
+ * 200-character line fits inih's buffer. Returns the new length. */
+static size_t squeeze_separator(char *line, size_t len)
+{
+    char *sep = strpbrk(line, "=:");
+    if (!sep)
+        return len;
+    char *a = sep, *b = sep + 1;
+    while (a > line && isspace((unsigned char)a[-1]))
+        a--;
+    while (isspace((unsigned char)*b))
+        b++;
+    *a++ = *sep;
+    memmove(a, b, strlen(b) + 1);
+    return strlen(line);
+}
+
+/* Finds line `number` (1-based) of the text: sets *start and *n (without the line break). */
+static void find_line(const parse_state *ps, int number, const char **start, size_t *n)
+{
+    const char *s = ps->text, *end = ps->text + ps->len;
+    for (int l = 1; l < number && s < end; l++) {
+        const char *nl = memchr(s, '\n', (size_t)(end - s));
+        s = nl ? nl + 1 : end;
+    }
+    const char *nl = memchr(s, '\n', (size_t)(end - s));
+    *start = s;
+    *n = nl ? (size_t)(nl - s) : (size_t)(end - s);
+}
+
+/* The ini_reader: hands inih the next line, cleaned (fgets-like: returns buf, or NULL at the end
+ * of the text or once a problem is recorded). Opens sections as their headers go by. */
+static char *read_line(char *buf, int size, void *stream)
+{
+    parse_state *ps = stream;
+    if (ps->failed || ps->pos >= ps->len || size <= 1)
+        return NULL;
+    const char *s = ps->text + ps->pos;
+    const char *nl = memchr(s, '\n', ps->len - ps->pos);
+    size_t n = nl ? (size_t)(nl - s) : ps->len - ps->pos;
+    ps->pos += n + (nl != NULL);
+    ps->line++;
+    if (n > 0 && s[n - 1] == '\r')
+        n--;
+    if (n > LINE_MAX_CHARS) {
+        scn_fail_at(ps, SW_ERR_PARSE, ps->line, "the line has %zu characters (accepted: at most %d)",
+                    n, LINE_MAX_CHARS);
+        return NULL;
+    }
+    for (size_t i = 0; i < n; i++) {
+        unsigned char c = (unsigned char)s[i];
+        if ((c < 0x20 && c != '\t') || c == 0x7f) {
+            scn_fail_at(ps, SW_ERR_PARSE, ps->line, "control character 0x%02x in column %zu (accepted: plain text; is "
+                        "this a scenario file?)", c, i + 1);
+            return NULL;
+        }
+    }
+    char clean[LINE_MAX_CHARS + 1];
+    size_t len = scn_clean_line(s, n, ps->line == 1, clean);
+    if (clean[0] == '[') {
+        const char *close = strchr(clean, ']');
+        if (close) {   /* without ']' inih reports the line as a syntax error */
+            if (close[1] != '\0') {
+                scn_fail_at(ps, SW_ERR_PARSE, ps->line, "unexpected '%s' after the section header %.*s", close + 1,
+                            (int)(close - clean + 1), clean);
+                return NULL;
+            }
+            if (!begin_section(ps, clean + 1, (size_t)(close - clean - 1)))
+                return NULL;   /* names that long are refused here, so headers always fit below */
+        }
+    } else if (len >= (size_t)size) {
+        len = squeeze_separator(clean, len);
+    }
+    if (len >= (size_t)size) {   /* inih's buffer holds one character less than our limit */
+        scn_fail_at(ps, SW_ERR_PARSE, ps->line, "the line has %zu characters with no blank around '=' (accepted: at "
+                    "most %d then; write 'key = value')", len, size - 1);
+        return NULL;
+    }
+    memcpy(buf, clean, len + 1);
+    return buf;
+}
+
+/* Replaces any recorded problem by inih's syntax error at `line`, with its likely cause. */
+static void syntax_error(parse_state *ps, int line)
+{
+    const char *raw;
+    size_t n;
+    find_line(ps, line, &raw, &n);
+    char clean[LINE_MAX_CHARS + 1];
+    size_t len = scn_clean_line(raw, n > LINE_MAX_CHARS ? LINE_MAX_CHARS : n, line == 1, clean);
+    ps->failed = 0;
+    if (len > 0 && clean[0] == '[')
+        scn_fail_at(ps, SW_ERR_PARSE, line, "missing ']' at the end of the section header '%s'", clean);
+    else
+        scn_fail_at(ps, SW_ERR_PARSE, line, "cannot read '%.60s%s' (accepted: key = value, a [section] header, or a "
+                    "comment starting with ; or #)", clean, len > 60 ? "..." : "");
+}
+
+/* ---- keys ---------------------------------------------------------------------------------- */
+
+static void format_length(char *out, size_t n, double v_m)
+{
+    if (fabs(v_m) >= 1000.0)
+        snprintf(out, n, "%g km", v_m / 1000.0);
+    else
+        snprintf(out, n, "%g m", v_m);
+}
+
+/* [gauges] Name = x, y */
+static int add_gauge(parse_state *ps, const char *name, const char *value)
+{
+    sw_scenario *sc = ps->sc;
+    const char *label = ps->cur->label;
+    if (!name[0])
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s a gauge needs a name before '=' (e.g. Port Harrow = 42 km, "
+                           "18.5 km)", label);
+    size_t nl = strlen(name);
+    if (nl >= SW_NAME_MAX)
+        return scn_fail_at(ps, SW_ERR_RANGE, ps->line, "%s gauge name '%.20s...' has %zu characters (accepted: at most "
+                           "%d)", label, name, nl, SW_NAME_MAX - 1);
+    for (size_t i = 0; i < sc->n_gauges; i++)
+        if (strcmp(sc->gauges[i].name, name) == 0)
+            return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s duplicate gauge '%s' (first on line %d, again on line "
+                               "%d)", label, name, sc->gauges[i].line, ps->line);
+    if (sc->n_gauges >= SW_MAX_GAUGES)
+        return scn_fail_at(ps, SW_ERR_RANGE, ps->line, "%s too many gauges at '%s' (accepted: at most %d)", label, name,
+                           SW_MAX_GAUGES);
+    const char *comma = strchr(value, ',');
+    if (!comma || strchr(comma + 1, ','))
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s %s = %s: expected two lengths 'x, y' (e.g. 42 km, 18.5 km)",
+                           label, name, value);
+    char xs[LINE_MAX_CHARS + 1];
+    size_t xn = (size_t)(comma - value);
+    memcpy(xs, value, xn);
+    xs[xn] = '\0';
+    double xy[2];
+    const char *part[2] = { xs, comma + 1 };
+    for (int i = 0; i < 2; i++) {
+        char why[256];
+        if (sw_units_parse(part[i], SW_UNIT_LENGTH, &xy[i], why, sizeof why) != 0)
+            return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s %s = %s: %s: %s", label, name, value, i ? "y" : "x",
+                               why);
+    }
+    sw_gauge_spec *g = &sc->gauges[sc->n_gauges++];
+    memcpy(g->name, name, nl + 1);
+    g->line = ps->line;
+    g->x_m = xy[0];
+    g->y_m = xy[1];
+    return 1;
+}
+
+/* The ini_handler: one `name = value` of the open section. `section` is ignored: the reader
+ * opened the section already (and inih truncates long names). Returns 1, or 0 after recording a
+ * problem. */
+static int on_key(void *user, const char *section, const char *name, const char *value)
+{
+    parse_state *ps = user;
+    (void)section;
+    if (ps->failed)
+        return 0;
+    section_ctx *sec = ps->cur;
+    if (!name[0])
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s%sa key name is missing before '='", sec ? sec->label : "",
+                           sec ? " " : "");
+    if (!sec)
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "key '%s' comes before any [section] header (put it under "
+                           "[run], [grid], ...)", name);
+    if (sec->def->type == S_GAUGES)
+        return add_gauge(ps, name, value);
+    if (sec->def->type == S_SWEEP)
+        return scn_add_sweep_entry(ps, name, value);
+
+    const section_def *def = sec->def;
+    suggestion s = { 0 };
+    const key_def *k = scn_find_key(def, name, &s);
+    if (!k) {
+        char hint[96];
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s unknown key '%s'%s", sec->label, name,
+                           scn_suggest_text(&s, hint, sizeof hint));
+    }
+    size_t ki = (size_t)(k - def->keys);
+    if (sec->key_line[ki])
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s duplicate key '%s' (first on line %d, again on line %d)",
+                           sec->label, name, sec->key_line[ki], ps->line);
+    sec->key_line[ki] = ps->line;
+
+    char why[512];
+    sw_status st = scn_store_value(k, home_of(ps, sec, k), value, why, sizeof why);
+    if (st != SW_OK)
+        return scn_fail_at(ps, st, ps->line, "%s %s = %s: %s", sec->label, name, value, why);
+    return 1;
+}
+
+/* ---- rules over the whole file ------------------------------------------------------------- */
+
+/* Missing required keys and keys outside their group; `active` is the group bit in force. */
+static int check_keys(parse_state *ps, const section_ctx *sec, unsigned active, const char *group_text)
+{
+    const section_def *def = sec->def;
+    for (size_t i = 0; i < def->n_keys; i++) {
+        const key_def *k = &def->keys[i];
+        int applies = k->only == 0 || (k->only & active) != 0;
+        if (sec->key_line[i] && !applies)
+            return scn_fail_at(ps, SW_ERR_PARSE, sec->key_line[i], "%s %s: not used %s",
+                               sec->label, k->name, group_text);
+        if (!sec->key_line[i] && applies && k->required)
+            return scn_fail_at(ps, SW_ERR_PARSE, sec->line, "%s missing key '%s' (accepted: %s)", sec->label, k->name,
+                               k->accepted);
+    }
+    return 1;
+}
+
+static int finish_run(parse_state *ps, const section_ctx *run)
+{
+    sw_scenario *sc = ps->sc;
+    if (!run)
+        return scn_fail_at(ps, SW_ERR_PARSE, 0, "missing section [run] (it needs at least 'duration')");
+    if (!check_keys(ps, run, 1, ""))
+        return 0;
+    int dt = key_line(run, "dt"), courant = key_line(run, "courant");
+    if (dt && courant)
+        return scn_fail_at(ps, SW_ERR_PARSE, dt > courant ? dt : courant, "[run] dt (line %d) and courant (line %d) "
+                           "are both given (accepted: one of them; dt fixes the step, courant derives it)",
+                           dt, courant);
+    /* lines for later messages: the key's, or the [run] header's when defaulted */
+    sc->layout_line = key_line(run, "layout") ? key_line(run, "layout") : run->line;
+    sc->courant_line = courant ? courant : run->line;
+    sc->dt_line = dt ? dt : run->line;
+    return 1;
+}
+
+static int finish_grid(parse_state *ps, const section_ctx *grid)
+{
+    sw_scenario *sc = ps->sc;
+    if (!grid) {
+        if (!sc->bed_file[0])
+            return scn_fail_at(ps, SW_ERR_PARSE, 0, "missing section [grid] with nx, ny and dx (it may be left out "
+                               "only when [seabed] file gives the grid)");
+        memset(&sc->grid, 0, sizeof sc->grid);
+        sc->has_grid = 0;
+        return 1;
+    }
+    if (!check_keys(ps, grid, 1, ""))
+        return 0;
+    sc->has_grid = 1;
+    if (!key_line(grid, "dy"))
+        sc->grid.dy_m = sc->grid.dx_m;
+    double cells = (double)sc->grid.nx * (double)sc->grid.ny;
+    if (cells > 4e8) {
+        int line = key_line(grid, "nx") > key_line(grid, "ny") ? key_line(grid, "nx") : key_line(grid, "ny");
+        return scn_fail_at(ps, SW_ERR_RANGE, line, "[grid] nx * ny = %zu * %zu = %.0f cells: out of range (accepted: "
+                           "nx * ny <= 400000000)", sc->grid.nx, sc->grid.ny, cells);
+    }
+    return 1;
+}
+
+static void finish_edges(parse_state *ps, const section_ctx *edges)
+{
+    static const char *const side[4] = { "west", "east", "south", "north" };   /* SW_WEST.. SW_NORTH */
+    if (ps->edges_all < 0)
+        return;
+    for (int i = 0; i < 4; i++)
+        if (!key_line(edges, side[i]))
+            ps->sc->edges[i] = (sw_edge_kind)ps->edges_all;
+}
+
+static int finish_seabed(parse_state *ps, const section_ctx *bed)
+{
+    sw_scenario *sc = ps->sc;
+    if (!bed)
+        return scn_fail_at(ps, SW_ERR_PARSE, 0, "missing section [seabed] (it needs 'deep', or 'file' for a NetCDF "
+                           "depth grid)");
+    int file = key_line(bed, "file");
+    sc->bed_line = file ? file : bed->line;
+    if (!check_keys(ps, bed, file ? BED_FILE : BED_RECIPE,
+                    file ? "with 'file' (the depth comes from the file)" : "without 'file' (it describes the file)"))
+        return 0;
+    if (file)
+        return 1;
+    if (sc->coast != SW_COAST_NONE) {
+        static const char *const needed[] = { "shoreline", "shelf_width" };
+        for (int i = 0; i < 2; i++)
+            if (!key_line(bed, needed[i]))
+                return scn_fail_at(ps, SW_ERR_PARSE, bed->line, "[seabed] missing key '%s' (needed with coast = %s)",
+                                   needed[i], scn_coast_words[sc->coast]);
+    }
+    int shelf = key_line(bed, "shelf_depth");
+    if (!shelf)
+        sc->shelf_depth_m = sc->deep_m;
+    else if (sc->shelf_depth_m > sc->deep_m)
+        return scn_fail_at(ps, SW_ERR_RANGE, shelf, "[seabed] shelf_depth = %g m: out of range (accepted: 0 < "
+                           "shelf_depth <= deep = %g m)", sc->shelf_depth_m, sc->deep_m);
+    return 1;
+}
+
+static int finish_source(parse_state *ps, const section_ctx *sec)
+{
+    sw_source_spec *s = sec->item;
+    if (!key_line(sec, "shape"))
+        return check_keys(ps, sec, 0, "");   /* reports the missing shape */
+    char group[64];
+    snprintf(group, sizeof group, "by shape '%s'", scn_shape_words[s->shape]);
+    if (!check_keys(ps, sec, SHAPE(s->shape), group))
+        return 0;
+    if (s->shape == SW_SOURCE_PAIR) {
+        if (!(s->amplitude_m > 0))
+            return scn_fail_at(ps, SW_ERR_RANGE, key_line(sec, "amplitude"), "%s amplitude = %g m: out of range "
+                               "(accepted: 0 < amplitude <= 100 m for a pair, the uplift crest)",
+                               sec->label, s->amplitude_m);
+        if (!key_line(sec, "trough"))
+            s->trough_m = s->amplitude_m;
+    }
+    return 1;
+}
+
+static int finish_gauges(parse_state *ps)
+{
+    const sw_scenario *sc = ps->sc;
+    if (!sc->has_grid)
+        return 1;   /* the grid comes from the seabed file: checked once it is read */
+    const sw_grid *g = &sc->grid;
+    double x1 = g->x0_m + (double)g->nx * g->dx_m, y1 = g->y0_m + (double)g->ny * g->dy_m;
+    for (size_t i = 0; i < sc->n_gauges; i++) {
+        const sw_gauge_spec *gs = &sc->gauges[i];
+        if (gs->x_m < g->x0_m || gs->x_m > x1 || gs->y_m < g->y0_m || gs->y_m > y1) {
+            char a[4][32], px[32], py[32];
+            format_length(a[0], sizeof a[0], g->x0_m);
+            format_length(a[1], sizeof a[1], x1);
+            format_length(a[2], sizeof a[2], g->y0_m);
+            format_length(a[3], sizeof a[3], y1);
+            format_length(px, sizeof px, gs->x_m);
+            format_length(py, sizeof py, gs->y_m);
+            return scn_fail_at(ps, SW_ERR_RANGE, gs->line, "[gauges] %s = %s, %s: outside the domain (accepted: %s <= "
+                               "x <= %s, %s <= y <= %s)", gs->name, px, py, a[0], a[1], a[2], a[3]);
+        }
+    }
+    return 1;
+}
+
+/* The rules that need the whole file, section by section in a fixed order. */
+static int finish(parse_state *ps)
+{
+    if (!finish_run(ps, scn_find_section(ps, S_RUN)) || !finish_seabed(ps, scn_find_section(ps, S_SEABED))
+        || !finish_grid(ps, scn_find_section(ps, S_GRID)))
+        return 0;
+    finish_edges(ps, scn_find_section(ps, S_EDGES));
+    for (size_t i = 0; i < ps->n_sections; i++) {
+        section_ctx *sec = &ps->sections[i];
+        switch (sec->def->type) {
+        case S_BAY:
+        case S_ISLAND:
+        case S_SHOAL: {
+            if (!check_keys(ps, sec, 1, ""))
+                return 0;
+            sw_feature *f = sec->item;
+            if (f->kind != SW_FEATURE_BAY)
+                f->radius_y_m = f->radius_x_m;
+            break;
+        }
+        case S_SOURCE:
+            if (!finish_source(ps, sec))
+                return 0;
+            break;
+        default:
+            break;
+        }
+    }
+    return finish_gauges(ps) && scn_finish_sweep(ps);
+}
+
+/* ---- entry points -------------------------------------------------------------------------- */
+
+/* Parses sc->text; sc->path and sc->dir are set. On failure fills err; the caller frees. When
+ * fail_line / bare are not NULL they receive the failing line (INT_MAX: none) and the message
+ * without its "NAME:LINE: " prefix (size SW_ERROR_MSG_MAX). */
+sw_status scn_parse_text(sw_scenario *sc, sw_error *err, int *fail_line, char *bare)
+{
+    parse_state *ps = calloc(1, sizeof *ps);
+    if (!ps)
+        return sw_fail(err, SW_ERR_NOMEM, "%s: out of memory while parsing", sc->path);
+    ps->sc = sc;
+    ps->name = sc->path;
+    ps->text = sc->text;
+    ps->len = strlen(sc->text);
+    ps->edges_all = -1;
+    for (size_t i = 0; i < scn_n_sections; i++)
+        apply_defaults(ps, NULL, &scn_sections[i], IN_SCENARIO);
+
+    int rc = ini_parse_stream(read_line, ps, on_key, ps);
+    if (rc > 0 && (!ps->failed || rc < ps->fail_line))
+        syntax_error(ps, rc);
+    else if (rc < 0 && !ps->failed)
+        scn_fail_at(ps, SW_ERR_NOMEM, 0, "the INI reader could not allocate its line buffer");
+    if (!ps->failed)
+        finish(ps);
+
+    sw_status st = ps->failed ? ps->err.code : SW_OK;
+    if (st != SW_OK && err)
+        *err = ps->err;
+    if (st != SW_OK && fail_line)
+        *fail_line = ps->fail_line;
+    if (st != SW_OK && bare)
+        memcpy(bare, ps->bare, SW_ERROR_MSG_MAX);
+    free(ps);
+    return st;
+}
+
+static sw_status parse_text(sw_scenario *sc, sw_error *err) { return scn_parse_text(sc, err, NULL, NULL); }
+
+/* Copies src into dst (size n); SW_ERR_RANGE if it does not fit. */
+static sw_status copy_text(char *dst, size_t n, const char *src, const char *what, sw_error *err)
+{
+    size_t len = strlen(src);
+    if (len >= n)
+        return sw_fail(err, SW_ERR_RANGE, "%s '%.40s...' has %zu characters (accepted: at most %zu)", what, src, len,
+                       n - 1);
+    memcpy(dst, src, len + 1);
+    return SW_OK;
+}
+
+/* Reads the whole file into a NUL-terminated buffer *out (caller frees). */
+static sw_status read_file(const char *path, char **out, sw_error *err)
+{
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return sw_fail(err, SW_ERR_IO, "%s: cannot open the scenario: %s", path, strerror(errno));
+    size_t cap = 4096, len = 0;
+    char *buf = malloc(cap);
+    sw_status st = buf ? SW_OK : sw_fail(err, SW_ERR_NOMEM, "%s: out of memory", path);
+    while (st == SW_OK) {
+        if (len + 1 >= cap) {
+            if (cap >= FILE_MAX_BYTES) {
+                st = sw_fail(err, SW_ERR_PARSE, "%s: larger than %u MiB; is this a scenario file?", path,
+                             FILE_MAX_BYTES >> 20);
+                break;
+            }
+            char *bigger = realloc(buf, cap * 2);
+            if (!bigger) {
+                st = sw_fail(err, SW_ERR_NOMEM, "%s: out of memory", path);
+                break;
+            }
+            buf = bigger;
+            cap *= 2;
+        }
+        size_t got = fread(buf + len, 1, cap - 1 - len, f);
+        len += got;
+        if (got == 0) {
+            if (ferror(f))
+                st = sw_fail(err, SW_ERR_IO, "%s: cannot read the scenario: %s", path, strerror(errno));
+            break;
+        }
+    }
+    fclose(f);
+    if (st != SW_OK) {
+        free(buf);
+        return st;
+    }
+    buf[len] = '\0';
+    const char *nul = memchr(buf, '\0', len);
+    if (nul) {
+        int line = 1;
+        for (const char *p = buf; p < nul; p++)
+            line += *p == '\n';
+        free(buf);
+        return sw_fail(err, SW_ERR_PARSE, "%s:%d: contains a NUL byte (accepted: a plain text file)", path, line);
+    }
+    *out = buf;
+    return SW_OK;
+}
+
+sw_status sw_scenario_load(const char *path, sw_scenario *sc, sw_error *err)
+{
+    if (!path || !sc)
+        return sw_fail(err, SW_ERR_USAGE, "sw_scenario_load: path and sc are required");
+    memset(sc, 0, sizeof *sc);
+    sw_status st = copy_text(sc->path, sizeof sc->path, path, "the scenario path", err);
+    if (st != SW_OK)
+        return st;
+    /* the folder: everything before the last '/', "/" for a file at the root, "." without one */
+    const char *slash = strrchr(path, '/');
+    if (!slash) {
+        strcpy(sc->dir, ".");
+    } else {
+        size_t n = (size_t)(slash - path);
+        while (n > 0 && path[n - 1] == '/')
+            n--;
+        if (n == 0)
+            n = 1;   /* keep the root's '/' */
+        memcpy(sc->dir, path, n);   /* n < strlen(path) < SW_PATH_MAX */
+        sc->dir[n] = '\0';
+    }
+    st = read_file(path, &sc->text, err);
+    if (st == SW_OK)
+        st = parse_text(sc, err);
+    if (st != SW_OK)
+        sw_scenario_free(sc);
+    return st;
+}
+
+sw_status sw_scenario_parse(const char *text, const char *name, const char *dir, sw_scenario *sc,
+                            sw_error *err)
+{
+    if (!text || !sc)
+        return sw_fail(err, SW_ERR_USAGE, "sw_scenario_parse: text and sc are required");
+    memset(sc, 0, sizeof *sc);
+    sw_status st = copy_text(sc->path, sizeof sc->path, name ? name : "<string>", "the scenario name", err);
+    if (st == SW_OK)
+        st = copy_text(sc->dir, sizeof sc->dir, dir && dir[0] ? dir : ".", "the scenario folder", err);
+    if (st != SW_OK) {
+        sw_scenario_free(sc);
+        return st;
+    }
+    size_t len = strlen(text);
+    sc->text = malloc(len + 1);
+    if (!sc->text) {
+        st = sw_fail(err, SW_ERR_NOMEM, "%s: out of memory", sc->path);
+        sw_scenario_free(sc);
+        return st;
+    }
+    memcpy(sc->text, text, len + 1);
+    st = parse_text(sc, err);
+    if (st != SW_OK)
+        sw_scenario_free(sc);
+    return st;
+}
+
+void sw_scenario_free(sw_scenario *sc)
+{
+    if (!sc)
+        return;
+    free(sc->text);
+    memset(sc, 0, sizeof *sc);
+}
+
+sw_status sw_scenario_resolve(const sw_scenario *sc, const char *rel, char *out, size_t out_size,
+                              sw_error *err)
+{
+    if (!sc || !rel || !out || out_size == 0)
+        return sw_fail(err, SW_ERR_USAGE, "sw_scenario_resolve: sc, rel and out are required");
+    int n;
+    if (rel[0] == '/' || !sc->dir[0])
+        n = snprintf(out, out_size, "%s", rel);
+    else
+        n = snprintf(out, out_size, "%s%s%s", sc->dir, sc->dir[strlen(sc->dir) - 1] == '/' ? "" : "/", rel);
+    if (n < 0 || (size_t)n >= out_size) {
+        out[0] = '\0';
+        return sw_fail(err, SW_ERR_RANGE, "%s: the path '%s' joined to '%s' has %d characters (accepted: at most %zu)",
+                       sc->path, rel, sc->dir, n, out_size - 1);
+    }
+    return SW_OK;
+}
