@@ -79,7 +79,7 @@ int cmd_bench(int argc, char **argv, const char *history)
                 if (*p == ',')
                     continue;
                 char name[2] = {*p, '\0'};
-                if (!sw_layout_find(name, NULL) || n + 1 >= sizeof layouts)
+                if (!sw_layout_find(name) || n + 1 >= sizeof layouts)
                     return cli_usage_error("bench", "--layouts takes a list of layouts such as A,C, not '%s'", val);
                 layouts[n++] = *p;
                 layouts[n] = '\0';

@@ -146,7 +146,7 @@ static int stab_parse(int argc, char **argv, stab_args *a)
     if (layout && all)
         return cli_usage_error("stability", "%s", "give either --layout L or --all, not both");
     if (layout) {
-        const sw_layout *lay = sw_layout_find(layout, NULL);
+        const sw_layout *lay = sw_layout_find(layout);
         if (!lay)
             return stab_bad_layout(layout);
         a->layouts[a->n_layouts++] = lay;

@@ -19,7 +19,7 @@ typedef enum {
     SW_ERR_NETCDF,    /* the NetCDF library reported an error */
     SW_ERR_NOMEM,     /* an allocation failed */
     SW_ERR_UNSTABLE,  /* the time step exceeds the layout's stability limit, or the run blew up */
-    SW_ERR_UNSUPPORTED, /* a valid request this build cannot serve (e.g. a layout not yet implemented) */
+    SW_ERR_UNSUPPORTED, /* a valid request this build cannot serve */
     SW_ERR_INTERRUPTED  /* the run was stopped by a signal */
 } sw_status;
 

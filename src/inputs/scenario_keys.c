@@ -292,7 +292,7 @@ int scn_is_numeric(key_kind k)
  * stores a layout value. Returns 0 when no layout has that name. */
 int scn_layout_index(const char *name, double *index)
 {
-    const sw_layout *lay = sw_layout_find(name, NULL);
+    const sw_layout *lay = sw_layout_find(name);
     for (size_t q = 0; lay && q < sw_layout_count(); q++)
         if (sw_layout_at(q) == lay) {
             *index = (double)q;
@@ -369,7 +369,7 @@ sw_status scn_store_value(const key_def *k, void *home, const char *value, char 
         return SW_ERR_PARSE;
     }
     case K_LAYOUT: {
-        const sw_layout *lay = sw_layout_find(value, NULL);
+        const sw_layout *lay = sw_layout_find(value);
         if (!lay) {
             snprintf(why, n, "unknown layout (accepted: %s (any case))", sw_layout_names());
             return SW_ERR_PARSE;

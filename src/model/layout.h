@@ -1,4 +1,4 @@
-/* layout.h - the table of functions that makes one Arakawa grid layout (A to E).
+/* layout.h - the table of functions that makes one grid layout (the Arakawa layouts A to E).
  *
  * A layout owns where eta, u and v live on the cell, its continuity and momentum stencils, how walls
  * and open edges enter those stencils, its stability limit, and how it reports values at cell
@@ -94,7 +94,7 @@ typedef struct sw_layout_kernels {
 } sw_layout_kernels;
 
 typedef struct sw_layout {
-    const char *name;     /* "A" .. "E" */
+    const char *name;     /* "A" .. "E": at most 7 characters (sw_scenario.layout) */
     const char *summary;  /* one line for --help and reports */
     double eta_cells;     /* cells of area each stored elevation stands for: 0 or 1 = one cell each;
                            * E: 2 (half the cells store eta) */
@@ -121,9 +121,9 @@ typedef struct sw_layout {
     const sw_layout_kernels *kernels[SW_PRECISIONS];
 } sw_layout;
 
-/* Finds a layout by name ("A".."E", any case). Returns NULL for an unknown name; for a known name
- * this build does not implement yet, also NULL with *known set to 1 (known may be NULL). */
-const sw_layout *sw_layout_find(const char *name, int *known);
+/* Finds a layout of the registry by name, in any letter case ("c" finds "C"). NULL for an unknown name
+ * (sw_layout_names lists the known ones). */
+const sw_layout *sw_layout_find(const char *name);
 
 /* Comma-separated names of the implemented layouts, e.g. "A, C". */
 const char *sw_layout_names(void);

@@ -35,10 +35,8 @@ static int same_name(const char *a, const char *b)
     return *a == *b;
 }
 
-const sw_layout *sw_layout_find(const char *name, int *known)
+const sw_layout *sw_layout_find(const char *name)
 {
-    if (known)
-        *known = 0;
     for (size_t q = 0; name && q < sizeof registry / sizeof registry[0]; q++)
         if (same_name(registry[q]->name, name))
             return registry[q];

@@ -22,7 +22,7 @@ void sw_setup_free(sw_setup *s)
 /* Picks the layout, or says which ones exist. */
 static sw_status choose_layout(const sw_scenario *sc, sw_setup *s, sw_error *err)
 {
-    s->layout = sw_layout_find(sc->layout, NULL);
+    s->layout = sw_layout_find(sc->layout);
     if (s->layout)
         return SW_OK;
     return sw_fail(err, SW_ERR_RANGE, "%s:%d: [run] layout = %s: unknown (accepted: %s)", sc->path,

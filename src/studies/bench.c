@@ -252,7 +252,7 @@ static int selected(const char *letters, const sw_layout *lay)
 {
     for (const char *p = letters; *p; p++) {
         char name[2] = {*p, '\0'};
-        if (sw_layout_find(name, NULL) == lay)
+        if (sw_layout_find(name) == lay)
             return 1;
     }
     return 0;
@@ -267,7 +267,7 @@ sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_err
         return sw_fail(err, SW_ERR_USAGE, "precision %d (accepted: double, single)", (int)opt->precision);
     for (const char *p = opt->layouts; p && *p; p++) {
         char name[2] = {*p, '\0'};
-        if (!sw_layout_find(name, NULL))
+        if (!sw_layout_find(name))
             return sw_fail(err, SW_ERR_USAGE, "layout '%c' (accepted: %s)", *p, sw_layout_names());
     }
     res->precision = opt->precision;

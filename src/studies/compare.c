@@ -115,7 +115,7 @@ sw_status sw_compare_run(const sw_scenario *sc, const char *const *layouts, size
         return sw_fail(err, SW_ERR_RANGE, "%zu runs requested (accepted: at most %d)", n_layouts * n_refine,
                        SW_COMPARE_MAX_RUNS);
     for (size_t a = 0; a < n_layouts; a++)
-        if (!sw_layout_find(layouts[a], NULL))
+        if (!sw_layout_find(layouts[a]))
             return sw_fail(err, SW_ERR_RANGE, "layout '%s' is unknown (available: %s)", layouts[a], sw_layout_names());
     for (size_t b = 0; b < n_refine; b++)
         if (refine[b] < 1 || refine[b] > 64)
@@ -134,7 +134,7 @@ sw_status sw_compare_run(const sw_scenario *sc, const char *const *layouts, size
     for (size_t a = 0, q = 0; a < n_layouts; a++)
         for (size_t b = 0; b < n_refine; b++, q++) {
             sw_compare_row *row = &out->rows[q];
-            const sw_layout *lay = sw_layout_find(layouts[a], NULL);
+            const sw_layout *lay = sw_layout_find(layouts[a]);
             snprintf(row->layout, sizeof row->layout, "%s", lay->name);
             row->refine = refine[b];
             one_run(sc, opt, row, sc->n_gauges);

@@ -429,7 +429,7 @@ sw_status sw_sweep_check(const sw_scenario *sc, double rate_all, FILE *f, char *
     sw_status st = sw_sweep_plan_build(sc, NULL, &plan, err);
     if (st != SW_OK)
         return st;
-    const sw_layout *layout = sw_layout_find(sc->layout, NULL);
+    const sw_layout *layout = sw_layout_find(sc->layout);
     /* the one-thread rate, cached as check's all-thread one (estimate.h); cache trouble only measures */
     sw_rate_info one = {0};
     double rate1 = layout && sw_estimate_rate_cached(layout, sc->precision, 1, 0, SW_RATE_CALIBRATION_S, &one, NULL) == SW_OK

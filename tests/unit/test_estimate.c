@@ -30,7 +30,7 @@
 
 static const sw_layout *layout_named(const char *name)
 {
-    const sw_layout *l = sw_layout_find(name, NULL);
+    const sw_layout *l = sw_layout_find(name);
     if (!l)
         fail_msg("layout %s is not implemented", name);
     return l;

@@ -1,12 +1,12 @@
 /* test_layouts.c - every grid layout (A to E) against published formulas and exact discrete answers.
  *
- * Sources (see ../shared/REFERENCES.md):
+ * Sources (see docs/references.md):
  *  - Merian's formula, closed basin T_n = 2 L / (n sqrt(g h)); basin open at one end (node at the
  *    mouth) T_0 = 4 L / sqrt(g h): Rabinovich (2009), "Seiches and harbour oscillations", Handbook of
  *    Coastal and Ocean Engineering [seen]; h = 10 m, L = 10 km: 2019.28 s and 4038.55 s.
  *  - Phase speed sqrt(g h) and the progressive-wave velocity u = sqrt(g / h) eta: Lamb (1932),
  *    Hydrodynamics, ch. VIII [memory].
- *  - Fully discrete frequency of forward-backward stepping [derived, REFERENCES.md]: a mode of
+ *  - Fully discrete frequency of forward-backward stepping [derived, docs/references.md]: a mode of
  *    semi-discrete frequency w has lambda^2 - (2 - p^2) lambda + 1 = 0, p = w dt; neutral exactly
  *    while p <= 2, with cos(W dt) = 1 - p^2 / 2; beyond, one root has |lambda| > 1.
  *  - Semi-discrete frequencies without rotation, square cells d, a = k d/2, b = l d/2:
@@ -16,7 +16,7 @@
  *    docs/layouts.md]. D: (c/d)^2 (sin^2 2a cos^2 b + cos^2 a sin^2 2b) and E: the A formula on the
  *    diamond |k d| + |l d| <= pi [derived in docs/layouts.md]. The D maximum 32/27 at
  *    sin^2 a = sin^2 b = 1/3 was confirmed with scipy.optimize.minimize while writing this test.
- *  - Conservation of volume and of E* with walls [derived, REFERENCES.md "Friction and conservation"].
+ *  - Conservation of volume and of E* with walls [derived, docs/references.md "Friction and conservation"].
  */
 #include <complex.h>
 #include <math.h>
@@ -73,7 +73,7 @@ static sw_model *make(const spec *sp)
             depth[j * nx + i] = sp->depth ? sp->depth[j * nx + i] : sp->h;
             eta[j * nx + i] = sp->eta0 ? sp->eta0(i, j, x, y, sp->user) : 0.0;
         }
-    const sw_layout *lay = sw_layout_find(sp->layout, NULL);
+    const sw_layout *lay = sw_layout_find(sp->layout);
     assert_non_null(lay);
     sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta, .min_depth_m = 1,
                            .gravity_ms2 = G, .allow_unstable = sp->courant_frac > 1,
@@ -278,7 +278,7 @@ static void test_limits_closed_form(void **state)
     (void)state;
     assert_true(fabs(LIMIT_2D[3] - sqrt(27.0 / 8.0)) < 1e-15);
     for (int q = 0; q < 5; q++) {
-        const sw_layout *lay = sw_layout_find(NAMES[q], NULL);
+        const sw_layout *lay = sw_layout_find(NAMES[q]);
         sw_grid g2 = {.nx = 10, .ny = 10, .dx_m = 100, .dy_m = 100};
         sw_grid g1 = {.nx = 10, .ny = 1, .dx_m = 100, .dy_m = 100};
         double depth[100];
@@ -329,7 +329,7 @@ static void test_symbols(void **state)
     const double gh = G * 100, dx = 1000;
     const double aspects[3] = {1.0, 1.3, 1.7};   /* D: the interior maximum for 1.0, 1.3; the edge for 1.7 */
     for (int q = 0; q < 5; q++) {
-        const sw_layout *lay = sw_layout_find(NAMES[q], NULL);
+        const sw_layout *lay = sw_layout_find(NAMES[q]);
         for (int a = 0; a < 3; a++) {
             const double dy = aspects[a] * dx;
             for (int dims = 1; dims <= 2; dims++) {
@@ -657,8 +657,7 @@ static void test_registry_all(void **state)
     (void)state;
     assert_int_equal(sw_layout_count(), 5);
     for (size_t q = 0; q < 5; q++) {
-        int known = -1;
-        const sw_layout *lay = sw_layout_find(NAMES[q], &known);
+        const sw_layout *lay = sw_layout_find(NAMES[q]);
         assert_non_null(lay);
         assert_ptr_equal(lay, sw_layout_at(q));
         assert_string_equal(lay->name, NAMES[q]);

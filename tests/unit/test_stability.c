@@ -1,8 +1,8 @@
 /* test_stability.c - the von Neumann analysis (stability.c) against published and derived formulas,
  * and against the model itself.
  *
- * Sources (see /work/shared/REFERENCES.md):
- *  - Forward-backward step [derived, REFERENCES "Fully discrete answer"]: a mode of semi-discrete
+ * Sources (see docs/references.md):
+ *  - Forward-backward step [derived, docs/references.md "Fully discrete answer"]: a mode of semi-discrete
  *    frequency omega has lambda^2 - (2 - p^2) lambda + 1 = 0, p = omega dt: neutral iff p <= 2, and then
  *    cos(W dt) = 1 - p^2 / 2.
  *  - Semi-discrete frequencies (no rotation, square cells, c = sqrt(g h) dt / dx, a = k dx / 2,
@@ -52,10 +52,10 @@
 
 static const sw_layout *need(const char *name)
 {
-    return sw_layout_find(name, NULL);
+    return sw_layout_find(name);
 }
 
-/* Semi-discrete (omega dt)^2 without rotation, a = k dx / 2, b = l dy / 2. A, B, C: REFERENCES (Arakawa &
+/* Semi-discrete (omega dt)^2 without rotation, a = k dx / 2, b = l dy / 2. A, B, C: docs/references.md (Arakawa &
  * Lamb 1977; Randall 1994) [formulas memory, re-derived]; D, E: [derived] in docs/stability.md from the
  * stencils written at the top of layout_d.c and layout_e.c. Returns -1 for a layout without one. */
 static double p2_published(const char *name, double c, double kdx, double ldy)
@@ -173,7 +173,7 @@ static void test_scan_equals_closed_form(void **state)
     }
 }
 
-/* The known values: A 2 and sqrt(2), C 1 and 1/sqrt(2) (REFERENCES; header). */
+/* The known values: A 2 and sqrt(2), C 1 and 1/sqrt(2) (docs/references.md; header). */
 static void test_known_limits(void **state)
 {
     (void)state;
@@ -331,7 +331,7 @@ static void test_rotation_k0(void **state)
     }
 }
 
-/* The averaging factor w of the rotating formulas (REFERENCES): 1 where u and v share a point (A, B; E
+/* The averaging factor w of the rotating formulas (docs/references.md): 1 where u and v share a point (A, B; E
  * [derived]), cos a cos b where they sit on different faces (C; D [derived]); -1 when unknown. */
 static double w_published(const char *name, double kdx, double ldy)
 {

@@ -1,7 +1,7 @@
 /* test_terms.c - rotation, bottom friction and periodic edges on every layout, against published results
  * and exact discrete answers.
  *
- * Sources (restated with their status in docs/terms.md and ../shared/REFERENCES.md):
+ * Sources (restated with their status in docs/terms.md and docs/references.md):
  *  - Geostrophic adjustment of one Fourier mode from rest, eta0 cos(k x), on the f-plane:
  *    eta(t) / eta0 = f^2 / w^2 + (g h k^2 / w^2) cos(w t), w^2 = f^2 + g h k^2 [derived from the linear
  *    rotating equations; the adjustment problem as in Gill (1982) Atmosphere-Ocean Dynamics, ch. 7

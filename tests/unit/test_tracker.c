@@ -51,7 +51,7 @@ static sw_model *basin(const char *layout, sw_precision precision, size_t nx, si
             eta[j * nx + i] = 0.8 * exp(-r2);
         }
     sw_grid g = {.nx = nx, .ny = ny, .dx_m = d, .dy_m = d};
-    const sw_layout *lay = sw_layout_find(layout, NULL);
+    const sw_layout *lay = sw_layout_find(layout);
     assert_non_null(lay);
     sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta, .min_depth_m = 1,
                            .gravity_ms2 = G, .precision = precision,

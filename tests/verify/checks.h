@@ -2,7 +2,7 @@
  *
  * A check never stops at a failed comparison: it records every row (pass or fail) so the report
  * shows all figures. A model the library refuses to build becomes a failed row naming the reason.
- * The published sources are listed in ../../../shared/REFERENCES.md and docs/verification.md.
+ * The published sources are listed in docs/references.md and docs/verification.md.
  */
 #ifndef VC_CHECKS_H
 #define VC_CHECKS_H

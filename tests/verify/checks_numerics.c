@@ -78,10 +78,10 @@ void vc_stability(const sw_layout *lay, vr_table *t)
     const double gh = VH_G * 100.0, d = 1000.0;
     const double declared = lay->max_frequency(gh, d, d, 2), scanned = symbol_max_frequency(lay, gh, d);
     vr_add(t, "declared highest frequency vs the maximum of the symbols", "forward-backward stable iff max omega_h dt <= 2 "
-           "(REFERENCES.md, [derived]); omega_h^2 = -g h (div_x grad_x + div_y grad_y)", "rad/s", VR_RELATIVE, scanned,
+           "(docs/references.md, [derived]); omega_h^2 = -g h (div_x grad_x + div_y grad_y)", "rad/s", VR_RELATIVE, scanned,
            declared, 1e-6, "the declared value sets the Courant limit; the scan covers (k dx, l dy) in [-pi, pi]^2");
 
-    const char *src = "|lambda| = 1 exactly while p = omega_h dt <= 2, else one root has |lambda| > 1 (REFERENCES.md, [derived])";
+    const char *src = "|lambda| = 1 exactly while p = omega_h dt <= 2, else one root has |lambda| > 1 (docs/references.md, [derived])";
     double growth, drift;
     long steps;
     sw_error err = {0};
@@ -94,7 +94,7 @@ void vc_stability(const sw_layout *lay, vr_table *t)
         vr_add(t, "0.98 of the limit, walls: largest |eta| / start over 3000 steps", src, "1", VR_AT_MOST, 1.0, growth,
                5.0, "noise in a 32 x 32 walled basin started at rest; every mode neutral, eta_n = eta_0 cos(n theta): "
                "at most its start, phases lining up across the cells make the rest");
-        vr_add(t, "0.98 of the limit, walls: drift of E* over 3000 steps", "E* conserved by forward-backward (REFERENCES.md, "
+        vr_add(t, "0.98 of the limit, walls: drift of E* over 3000 steps", "E* conserved by forward-backward (docs/references.md, "
                "[derived]); positive definite only while p < 2", "1", VR_AT_MOST, 0.0, drift, vh_tol(1e-9, VH_SINGLE_DRIFT),
                NULL);
     }
@@ -155,7 +155,7 @@ void vc_conservation(const sw_layout *lay, vr_table *t)
             drift = fmax(drift, fabs(sw_model_volume(m) - v0) / v0);
         }
         vr_add(t, "volume with walls (bumpy floor, island): relative drift over 2000 steps",
-               "mass conservation: sum of eta dA conserved with walls (REFERENCES.md, [derived])", "1", VR_AT_MOST, 0.0,
+               "mass conservation: sum of eta dA conserved with walls (docs/references.md, [derived])", "1", VR_AT_MOST, 0.0,
                drift, vh_tol(1e-11, VH_SINGLE_DRIFT), "displaced volume %.6e m3; round-off only (flux form telescopes)",
                v0);
         sw_model_free(m);
@@ -174,7 +174,7 @@ void vc_conservation(const sw_layout *lay, vr_table *t)
         }
         vr_add(t, "E* with walls, constant depth: relative drift over 2000 steps",
                "E* = sum[(g/2) eta^2 + (H/2)|u|^2] dA - (g H dt/2) sum eta D u dA conserved when the gradient is minus "
-               "the transpose of the divergence (REFERENCES.md, [derived])", "1", VR_AT_MOST, 0.0, drift,
+               "the transpose of the divergence (docs/references.md, [derived])", "1", VR_AT_MOST, 0.0, drift,
                vh_tol(1e-12, VH_SINGLE_DRIFT),
                "E* = %.6e m5 s-2", e0);
         sw_model_free(m);
@@ -198,7 +198,7 @@ void vc_conservation(const sw_layout *lay, vr_table *t)
             top = fmax(top, e);
             prev = e;
         }
-        const char *src = "radiation edges only let energy out: E* (REFERENCES.md, [derived]) can only fall, "
+        const char *src = "radiation edges only let energy out: E* (docs/references.md, [derived]) can only fall, "
                           "to round-off, when the edge flux is outward";
         vr_add(t, "E* with open edges never rises above its start (5000 steps): max E* / E*_0", src, "1", VR_AT_MOST,
                1.0, top / e0, 1.0 + vh_tol(1e-12, VH_SINGLE_RISE),

@@ -244,7 +244,7 @@ static double shoal_depth(double x, double xa, double xb, double h1, double h2)
     return s * s;
 }
 
-/* A pulse crosses a 400 km slope from 4000 m to 100 m (REFERENCES.md's example, factor 2.5149).
+/* A pulse crosses a 400 km slope from 4000 m to 100 m (docs/references.md's example, factor 2.5149).
  * The eastward half's peak is read at a gauge on the deep floor and at one on the shallow shelf. */
 void vc_shoaling(const sw_layout *lay, vr_table *t)
 {

@@ -8,7 +8,7 @@ b = 10 km, at rest on 4000 m of water, 1 km cells, walls far enough that no refl
 gauge in its window; gauges every 20 km along the x axis and near the same radii along the
 diagonal. gauges.nc holds eta(station, time) at every step.
 
-Exact solution [derived, REFERENCES.md]: eta(r, t) = int_0^inf k F(k) J0(k r) cos(c k t) dk with
+Exact solution [derived, docs/references.md]: eta(r, t) = int_0^inf k F(k) J0(k r) cos(c k t) dk with
 F(k) = (a b^2 / 2) exp(-k^2 b^2 / 4), c = sqrt(g h) (Lamb 1932, Hydrodynamics, ch. VIII [memory]),
 evaluated with scipy.integrate.quad and scipy.special.j0. Far field: the peak decays like r^(-1/2)
 (cylindrical spreading, energy flux 2 pi r c A^2 constant [memory]).
@@ -50,8 +50,8 @@ SLOPE_EXACT_TOL = 0.04               # log-log slope of the peaks vs the exact s
 SLOPE_ASYMPTOTIC_TOL = 0.05          # ... vs -1/2 (the exact slope over 40-100 km is -0.485)
 
 SRC_EXACT = ("Hankel-transform solution eta = int k F(k) J0(k r) cos(c k t) dk, F = (a b^2/2) exp(-k^2 b^2/4) "
-             "[derived, REFERENCES.md]; scipy.integrate.quad + scipy.special.j0")
-SRC_DECAY = "cylindrical spreading: far-field amplitude ~ r^(-1/2) [memory, REFERENCES.md]"
+             "[derived, docs/references.md]; scipy.integrate.quad + scipy.special.j0")
+SRC_DECAY = "cylindrical spreading: far-field amplitude ~ r^(-1/2) [memory, docs/references.md]"
 
 
 def exact(r, t):
