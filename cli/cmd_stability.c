@@ -31,8 +31,9 @@ static const char *const usage_stability =
     "  --all         every built layout (the default)\n"
     "  --courant C   absolute Courant number of the table and planes (default: 0.9 of each\n"
     "                layout's limit, 2D unless --dims 1); above the limit the table shows growth\n"
-    "  --f-dt X      Coriolis parameter times dt, rad (default 0): the step with trapezoidal\n"
-    "                rotation; e.g. f = 1e-4 s-1 and dt = 30 s give 0.003\n"
+    "  --f-dt X      Coriolis parameter times dt, rad (default 0): the step with rotation as the\n"
+    "                model takes it (u from the old v, then v from the new u; docs/terms.md);\n"
+    "                e.g. f = 1e-4 s-1 and dt = 30 s give 0.003\n"
     "  --dims 1|2    only the channel (1) or only the plane (2); default both\n"
     "  --json        print one JSON object on stdout instead of text\n"
     "  --out FILE    also write |lambda| and the speed ratio over the whole wavenumber plane\n"
@@ -170,12 +171,14 @@ static sw_status stab_analyse(const stab_args *a, const sw_layout *lay, stab_res
         if (rc != SW_OK)
             return rc;
     }
+    /* the limit of the step analysed: with rotation the scanned one (it may lie below the closed form) */
     int base = a->dims == 1 ? 0 : 1;
+    const double limit = a->f_dt != 0 ? r->scan[base].courant : r->closed[base];
     if (a->courant > 0) {
         r->courant = a->courant;
-        r->fraction = a->courant / r->closed[base];
+        r->fraction = a->courant / limit;
     } else {
-        r->courant = STAB_CLI_DEFAULT_FRACTION * r->closed[base];
+        r->courant = STAB_CLI_DEFAULT_FRACTION * limit;
         r->fraction = STAB_CLI_DEFAULT_FRACTION;
     }
     sw_stab_table(lay, r->courant, a->f_dt, r->rows);
@@ -199,7 +202,8 @@ static void stab_print(const stab_args *a, const stab_result *r)
     const sw_layout *lay = r->layout;
     char b1[32], b2[32];
     printf("Layout %s: %s\n", lay->name, lay->summary);
-    printf("  Courant limit   closed form    scan           first wave to grow (k dx, l dy)\n");
+    printf("  Courant limit   closed form%s scan%s first wave to grow (k dx, l dy)\n",
+           a->f_dt != 0 ? " (f=0)" : "      ", a->f_dt != 0 ? " (with f)" : "         ");
     for (int d = 1; d <= 2; d++) {
         if (a->dims && a->dims != d)
             continue;

@@ -2,7 +2,8 @@
  *
  * A value is: blanks, a plain decimal number (optional sign, digits with an optional fraction,
  * optional exponent; no hexadecimal, no "inf" or "nan"), optional blanks, an optional unit word of
- * letters, blanks. The number times the unit's factor must be finite. Anything else is refused
+ * letters (for rates and speeds also '/', and '-' and digits after the first character: "s-1",
+ * "m/s"), blanks. The number times the unit's factor must be finite. Anything else is refused
  * with a cause a user can act on; nothing here allocates.
  */
 #include "base/units.h"
@@ -25,6 +26,10 @@ static const unit_def LENGTH_UNITS[] = { { "m", 1.0 }, { "km", 1e3 }, { NULL, 0.
 static const unit_def TIME_UNITS[] = { { "s", 1.0 }, { "min", 60.0 }, { "h", 3600.0 }, { "d", 86400.0 },
                                        { NULL, 0.0 } };
 static const unit_def ANGLE_UNITS[] = { { "deg", 1.0 }, { NULL, 0.0 } };
+/* Rates (a Coriolis parameter) and speeds (a friction rate): compound units of the same factors. */
+static const unit_def RATE_UNITS[] = { { "s-1", 1.0 }, { "/s", 1.0 }, { "h-1", 1.0 / 3600 }, { "/h", 1.0 / 3600 },
+                                       { NULL, 0.0 } };
+static const unit_def SPEED_UNITS[] = { { "m/s", 1.0 }, { "cm/s", 1e-2 }, { "mm/s", 1e-3 }, { NULL, 0.0 } };
 
 static const unit_def *units_of(sw_unit_kind kind)
 {
@@ -32,6 +37,8 @@ static const unit_def *units_of(sw_unit_kind kind)
     case SW_UNIT_LENGTH: return LENGTH_UNITS;
     case SW_UNIT_TIME: return TIME_UNITS;
     case SW_UNIT_ANGLE: return ANGLE_UNITS;
+    case SW_UNIT_RATE: return RATE_UNITS;
+    case SW_UNIT_SPEED: return SPEED_UNITS;
     case SW_UNIT_NONE: break;
     }
     return NULL;
@@ -43,6 +50,8 @@ const char *sw_units_accepted(sw_unit_kind kind)
     case SW_UNIT_LENGTH: return "m, km";
     case SW_UNIT_TIME: return "s, min, h, d";
     case SW_UNIT_ANGLE: return "deg";
+    case SW_UNIT_RATE: return "s-1, /s, h-1, /h";
+    case SW_UNIT_SPEED: return "m/s, cm/s, mm/s";
     case SW_UNIT_NONE: break;
     }
     return "no unit";
@@ -141,7 +150,10 @@ int sw_units_parse(const char *text, sw_unit_kind kind, double *out, char *why, 
     while (rest < rest_end && isspace((unsigned char)*rest))
         rest++;
     const char *word = rest;
-    while (rest < rest_end && isalpha((unsigned char)*rest))
+    /* compound units (rates, speeds) may hold '/', '-' and digits after their first character */
+    const int compound = kind == SW_UNIT_RATE || kind == SW_UNIT_SPEED;
+    while (rest < rest_end && (isalpha((unsigned char)*rest) || (compound && (*rest == '/' || (rest > word
+           && (*rest == '-' || isdigit((unsigned char)*rest)))))))
         rest++;
     int word_len = (int)(rest - word);
     if (rest < rest_end) {   /* something that is not a unit word */

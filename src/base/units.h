@@ -4,12 +4,14 @@
  *   length:   m, km                 (base m)
  *   time:     s, min, h, d          (base s)
  *   angle:    deg                   (base deg)
+ *   rate:     s-1, /s, h-1, /h      (base s-1)
+ *   speed:    m/s, cm/s, mm/s       (base m/s)
  *   none:     no unit allowed
  */
 #ifndef SW_UNITS_H
 #define SW_UNITS_H
 
-typedef enum { SW_UNIT_NONE = 0, SW_UNIT_LENGTH, SW_UNIT_TIME, SW_UNIT_ANGLE } sw_unit_kind;
+typedef enum { SW_UNIT_NONE = 0, SW_UNIT_LENGTH, SW_UNIT_TIME, SW_UNIT_ANGLE, SW_UNIT_RATE, SW_UNIT_SPEED } sw_unit_kind;
 
 /* Parses `text` (leading/trailing blanks allowed) as a finite number with an optional unit of
  * `kind`. On success stores the value in base units in *out and returns 0. On failure returns -1

@@ -16,6 +16,7 @@
 #include "base/real.h"
 #include "base/status.h"
 #include "model/edges.h"
+#include "model/terms.h"
 
 #define SW_NAME_MAX 64        /* longest gauge / feature / source name, including the NUL */
 #define SW_PATH_MAX 1024      /* longest file path, including the NUL */
@@ -136,6 +137,11 @@ typedef struct {
     double arrival_threshold_m; /* default 0.01 m */
     double gravity_ms2;       /* default 9.81 */
     char origin[32];          /* time origin "YYYY-MM-DD HH:MM:SS", default "2000-01-01 00:00:00" */
+    sw_terms_config terms;    /* rotation and friction (model/terms.h); from the keys below, f0 and beta
+                               * derived from latitude when it is given; zero: none */
+    double latitude_deg;      /* rotation's reference latitude, deg (when given) */
+    int rotation_line;        /* line of `rotation` (or of [run] when defaulted) */
+    int friction_line;        /* line of `friction` (or of [run]) */
 
     /* [grid]; has_grid == 0 when the section is absent and the grid comes from the seabed file */
     int has_grid;

@@ -16,7 +16,7 @@
 #include "inputs/scenario.h"
 
 #define LINE_MAX_CHARS 200              /* longest line accepted, without its line break */
-#define KEYS_MAX 16                     /* most keys in one section's table */
+#define KEYS_MAX 24                     /* most keys in one section's table */
 #define LABEL_MAX (SW_NAME_MAX + 16)    /* "[island <name>]" */
 #define SECTIONS_MAX (6 + SW_MAX_FEATURES + SW_MAX_SOURCES)
 #define SWEEP_ENTRIES_MAX (SW_MAX_SWEEP_PARAMS + 3)   /* parameters + design, members, seed */
@@ -33,6 +33,8 @@ typedef enum {
     K_LENGTH,    /* double, m */
     K_TIME,      /* double, s */
     K_ANGLE,     /* double, deg */
+    K_RATE,      /* double, s-1 */
+    K_SPEED,     /* double, m/s */
     K_TEXT,      /* char[size], not empty */
     K_CHOICE,    /* int (an enum): index in `words` plus `first` */
     K_LAYOUT,    /* char[size]: a name of the layout registry (layout.h, any case), stored as it spells it */

@@ -16,7 +16,9 @@
 
 #include "model/layout.h"
 
-static const char *const EDGE_WORDS[] = { "wall", "open", "level", NULL };                   /* sw_edge_kind */
+static const char *const EDGE_WORDS[] = { "wall", "open", "level", "periodic", NULL };       /* sw_edge_kind */
+static const char *const ROTATION_WORDS[] = { "none", "f-plane", "beta-plane", NULL };      /* sw_rotation_kind */
+static const char *const FRICTION_WORDS[] = { "none", "linear", "quadratic", "manning", NULL }; /* sw_friction_kind */
 const char *const scn_coast_words[] = { "none", "west", "east", "south", "north", NULL };    /* sw_coast_side */
 static const char *const POSITIVE_WORDS[] = { "down", "up", NULL };                        /* from SW_POSITIVE_DOWN */
 const char *const scn_shape_words[] = { "hump", "ellipse", "pair", "file", NULL };          /* sw_source_shape */
@@ -43,6 +45,25 @@ static const key_def RUN_KEYS[] = {
       .accepted = "1 <= gravity <= 30, in m s-2" },
     { .name = "origin", .kind = K_ORIGIN, SC(origin), .dflt = "2000-01-01 00:00:00",
       .accepted = "YYYY-MM-DD HH:MM:SS" },
+    /* rotation and friction (docs/terms.md); which keys go with which kind is checked in finish_run */
+    { .name = "rotation", .kind = K_CHOICE, SC(terms.rotation), .words = ROTATION_WORDS, .dflt = "none",
+      .accepted = "none, f-plane, beta-plane" },
+    { .name = "coriolis", .kind = K_RATE, SC(terms.f0_s), RANGE(-1e-3, 1e-3),
+      .accepted = "-1e-3 <= coriolis <= 1e-3 s-1 (on Earth |f| <= 2 Omega = 1.458e-4 s-1)" },
+    { .name = "latitude", .kind = K_ANGLE, SC(latitude_deg), RANGE(-89, 89),
+      .accepted = "-89 <= latitude <= 89 deg (f = 2 Omega sin(latitude))" },
+    { .name = "beta", .kind = K_NUMBER, SC(terms.beta_ms), RANGE(-1e-9, 1e-9),
+      .accepted = "|beta| <= 1e-9, in m-1 s-1 (on Earth |beta| <= 2 Omega / R = 2.29e-11)" },
+    { .name = "reference_y", .kind = K_LENGTH, SC(terms.y_ref_m), RANGE(-1e5 * KM, 1e5 * KM),
+      .accepted = "the y where f is coriolis (or the latitude's), |reference_y| <= 100000 km" },
+    { .name = "friction", .kind = K_CHOICE, SC(terms.friction), .words = FRICTION_WORDS, .dflt = "none",
+      .accepted = "none, linear, quadratic, manning" },
+    { .name = "friction_rate", .kind = K_SPEED, SC(terms.friction_rate_ms), ABOVE(0, 0.1),
+      .accepted = "0 < friction_rate <= 0.1 m/s (the r of r u / h)" },
+    { .name = "drag", .kind = K_NUMBER, SC(terms.drag), ABOVE(0, 0.1),
+      .accepted = "0 < drag <= 0.1 (the Cd of Cd |U| u / h)" },
+    { .name = "manning", .kind = K_NUMBER, SC(terms.manning_n), ABOVE(0, 0.2),
+      .accepted = "0 < manning <= 0.2, in s m-1/3 (Manning's n)" },
 };
 
 static const key_def GRID_KEYS[] = {
@@ -61,15 +82,15 @@ static const key_def GRID_KEYS[] = {
 
 static const key_def EDGES_KEYS[] = {
     { .name = "west", .kind = K_CHOICE, SC(edges[SW_WEST]),
-      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level" },
+      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level, periodic" },
     { .name = "east", .kind = K_CHOICE, SC(edges[SW_EAST]),
-      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level" },
+      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level, periodic" },
     { .name = "south", .kind = K_CHOICE, SC(edges[SW_SOUTH]),
-      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level" },
+      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level, periodic" },
     { .name = "north", .kind = K_CHOICE, SC(edges[SW_NORTH]),
-      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level" },
+      .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level, periodic" },
     { .name = "all", .kind = K_CHOICE, .home = IN_PARSER, .off = 0 /* home_of: parse_state.edges_all */,
-      .words = EDGE_WORDS, .accepted = "wall, open, level" },
+      .words = EDGE_WORDS, .accepted = "wall, open, level, periodic" },
 };
 
 static const key_def SEABED_KEYS[] = {
@@ -167,6 +188,7 @@ _Static_assert(sizeof RUN_KEYS / sizeof RUN_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX
 _Static_assert(sizeof SEABED_KEYS / sizeof SEABED_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX");
 _Static_assert(sizeof SOURCE_KEYS / sizeof SOURCE_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX");
 _Static_assert(sizeof(sw_edge_kind) == sizeof(int) && sizeof(sw_coast_side) == sizeof(int)
+               && sizeof(sw_rotation_kind) == sizeof(int) && sizeof(sw_friction_kind) == sizeof(int)
                && sizeof(sw_positive) == sizeof(int) && sizeof(sw_source_shape) == sizeof(int)
                && sizeof(sw_precision) == sizeof(int),
                "K_CHOICE stores an int");
@@ -254,6 +276,8 @@ sw_unit_kind scn_unit_kind(key_kind k)
     case K_LENGTH: return SW_UNIT_LENGTH;
     case K_TIME: return SW_UNIT_TIME;
     case K_ANGLE: return SW_UNIT_ANGLE;
+    case K_RATE: return SW_UNIT_RATE;
+    case K_SPEED: return SW_UNIT_SPEED;
     default: return SW_UNIT_NONE;
     }
 }
@@ -285,7 +309,8 @@ static sw_status check_origin(const char *v, char *why, size_t n)
 
 int scn_is_numeric(key_kind k)
 {
-    return k == K_NUMBER || k == K_INTEGER || k == K_LENGTH || k == K_TIME || k == K_ANGLE;
+    return k == K_NUMBER || k == K_INTEGER || k == K_LENGTH || k == K_TIME || k == K_ANGLE || k == K_RATE
+        || k == K_SPEED;
 }
 
 /* The registry position (sw_layout_at) of the layout called `name` (any case) into *index, as a sweep
@@ -328,7 +353,9 @@ sw_status scn_store_value(const key_def *k, void *home, const char *value, char 
     case K_INTEGER:
     case K_LENGTH:
     case K_TIME:
-    case K_ANGLE: {
+    case K_ANGLE:
+    case K_RATE:
+    case K_SPEED: {
         double v;
         sw_status st = scn_parse_number(k, value, &v, why, n);
         if (st != SW_OK)

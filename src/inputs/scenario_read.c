@@ -432,6 +432,80 @@ static int check_keys(parse_state *ps, const section_ctx *sec, unsigned active, 
     return 1;
 }
 
+/* Earth's constants for `latitude`, common practice: the sidereal rotation rate Omega = 7.2921159e-5 s-1
+ * and the mean radius 6371.0 km (IUGG) [memory; docs/references.md]. */
+#define EARTH_OMEGA 7.2921159e-5
+#define EARTH_RADIUS_M 6.371e6
+
+/* Rotation: which keys go with which kind, and f0 and beta from the latitude. */
+static int finish_rotation(parse_state *ps, const section_ctx *run)
+{
+    sw_scenario *sc = ps->sc;
+    sw_terms_config *t = &sc->terms;
+    const int kind = key_line(run, "rotation"), f = key_line(run, "coriolis"), lat = key_line(run, "latitude");
+    const int beta = key_line(run, "beta"), yref = key_line(run, "reference_y");
+    const char *name = sw_rotation_name(t->rotation);
+    sc->rotation_line = kind ? kind : run->line;
+    if (t->rotation == SW_ROTATION_NONE) {
+        const int given[4] = {f, lat, beta, yref};
+        static const char *const keys[4] = {"coriolis", "latitude", "beta", "reference_y"};
+        for (int q = 0; q < 4; q++)
+            if (given[q])
+                return scn_fail_at(ps, SW_ERR_PARSE, given[q], "[run] %s: not used without rotation (accepted: "
+                                   "rotation = f-plane or beta-plane with it)", keys[q]);
+        return 1;
+    }
+    if (f && lat)
+        return scn_fail_at(ps, SW_ERR_PARSE, f > lat ? f : lat, "[run] coriolis (line %d) and latitude (line %d) "
+                           "are both given (accepted: one of them; latitude gives f = 2 Omega sin(latitude))", f, lat);
+    if (!f && !lat)
+        return scn_fail_at(ps, SW_ERR_PARSE, sc->rotation_line, "[run] rotation = %s needs coriolis (s-1) or "
+                           "latitude (deg)", name);
+    if (lat) {
+        const double phi = sc->latitude_deg * 3.14159265358979323846 / 180;
+        t->f0_s = 2 * EARTH_OMEGA * sin(phi);
+        if (!beta)
+            t->beta_ms = 2 * EARTH_OMEGA * cos(phi) / EARTH_RADIUS_M;
+    }
+    if (t->rotation == SW_ROTATION_F_PLANE) {
+        if (beta || yref)
+            return scn_fail_at(ps, SW_ERR_PARSE, beta ? beta : yref, "[run] %s: not used with rotation = f-plane "
+                               "(accepted: rotation = beta-plane with it)", beta ? "beta" : "reference_y");
+        t->beta_ms = 0;
+        return 1;
+    }
+    if (!yref)
+        return scn_fail_at(ps, SW_ERR_PARSE, sc->rotation_line, "[run] rotation = beta-plane needs reference_y, the y "
+                           "where f is %s (accepted: a length, e.g. reference_y = 200 km)",
+                           lat ? "that of the latitude" : "coriolis");
+    if (!beta && !lat)
+        return scn_fail_at(ps, SW_ERR_PARSE, sc->rotation_line, "[run] rotation = beta-plane needs beta (m-1 s-1), or "
+                           "latitude instead of coriolis to derive both");
+    return 1;
+}
+
+/* Friction: the coefficient its kind needs, and no other. */
+static int finish_friction(parse_state *ps, const section_ctx *run)
+{
+    sw_scenario *sc = ps->sc;
+    static const char *const keys[4] = {NULL, "friction_rate", "drag", "manning"};   /* by sw_friction_kind */
+    static const char *const units[4] = {NULL, "m/s", "dimensionless", "s m-1/3"};
+    const int kind = key_line(run, "friction");
+    const sw_friction_kind k = sc->terms.friction;
+    sc->friction_line = kind ? kind : run->line;
+    for (int q = 1; q < 4; q++) {
+        const int line = key_line(run, keys[q]);
+        if (line && q != (int)k)
+            return scn_fail_at(ps, SW_ERR_PARSE, line, "[run] %s: not used %s%s (accepted: friction = %s with it)",
+                               keys[q], k == SW_FRICTION_NONE ? "without friction" : "with friction = ",
+                               k == SW_FRICTION_NONE ? "" : sw_friction_name(k), sw_friction_name((sw_friction_kind)q));
+    }
+    if (k != SW_FRICTION_NONE && !key_line(run, keys[k]))
+        return scn_fail_at(ps, SW_ERR_PARSE, sc->friction_line, "[run] friction = %s needs %s (%s)",
+                           sw_friction_name(k), keys[k], units[k]);
+    return 1;
+}
+
 static int finish_run(parse_state *ps, const section_ctx *run)
 {
     sw_scenario *sc = ps->sc;
@@ -448,7 +522,7 @@ static int finish_run(parse_state *ps, const section_ctx *run)
     sc->layout_line = key_line(run, "layout") ? key_line(run, "layout") : run->line;
     sc->courant_line = courant ? courant : run->line;
     sc->dt_line = dt ? dt : run->line;
-    return 1;
+    return finish_rotation(ps, run) && finish_friction(ps, run);
 }
 
 static int finish_grid(parse_state *ps, const section_ctx *grid)
@@ -476,14 +550,23 @@ static int finish_grid(parse_state *ps, const section_ctx *grid)
     return 1;
 }
 
-static void finish_edges(parse_state *ps, const section_ctx *edges)
+/* `all`, then periodic edges in pairs. */
+static int finish_edges(parse_state *ps, const section_ctx *edges)
 {
     static const char *const side[4] = { "west", "east", "south", "north" };   /* SW_WEST.. SW_NORTH */
-    if (ps->edges_all < 0)
-        return;
-    for (int i = 0; i < 4; i++)
-        if (!key_line(edges, side[i]))
-            ps->sc->edges[i] = (sw_edge_kind)ps->edges_all;
+    sw_edge_kind *e = ps->sc->edges;
+    if (ps->edges_all >= 0)
+        for (int i = 0; i < 4; i++)
+            if (!key_line(edges, side[i]))
+                e[i] = (sw_edge_kind)ps->edges_all;
+    for (int a = 0; a < 4; a += 2)
+        if ((e[a] == SW_EDGE_PERIODIC) != (e[a + 1] == SW_EDGE_PERIODIC)) {
+            const int p = e[a] == SW_EDGE_PERIODIC ? a : a + 1, o = p == a ? a + 1 : a;
+            const int line = key_line(edges, side[p]) ? key_line(edges, side[p]) : key_line(edges, "all");
+            return scn_fail_at(ps, SW_ERR_PARSE, line, "[edges] %s = periodic needs %s = periodic too (a periodic "
+                               "edge joins the opposite one; %s is %s)", side[p], side[o], side[o], sw_edge_name(e[o]));
+        }
+    return 1;
 }
 
 static int finish_seabed(parse_state *ps, const section_ctx *bed)
@@ -565,7 +648,8 @@ static int finish(parse_state *ps)
     if (!finish_run(ps, scn_find_section(ps, S_RUN)) || !finish_seabed(ps, scn_find_section(ps, S_SEABED))
         || !finish_grid(ps, scn_find_section(ps, S_GRID)))
         return 0;
-    finish_edges(ps, scn_find_section(ps, S_EDGES));
+    if (!finish_edges(ps, scn_find_section(ps, S_EDGES)))
+        return 0;
     for (size_t i = 0; i < ps->n_sections; i++) {
         section_ctx *sec = &ps->sections[i];
         switch (sec->def->type) {

@@ -36,11 +36,15 @@ static size_t stride_for(const sw_grid *g, size_t size)
     return round_up(g->nx + 2, SW_ALIGN / size);
 }
 
-size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision)
+size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision, const sw_layout *layout,
+                          const sw_terms_config *terms)
 {
     const size_t size = sw_precision_bytes(precision);
-    size_t n_pad = stride_for(g, size) * (g->ny + 2);
-    return 6 * n_pad * size + g->nx * g->ny + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell);
+    const size_t n_pad = stride_for(g, size) * (g->ny + 2);
+    const sw_terms_variant v = terms ? sw_terms_variant_of(terms) : SW_TERMS_PLAIN;
+    size_t arrays = 6 + (v == SW_TERMS_DRAG ? 2 : 0) + (v != SW_TERMS_PLAIN && layout && layout->transport_weighted ? 2 : 0);
+    return arrays * n_pad * size + g->nx * g->ny + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell)
+         + 2 * (g->ny + 2) * sizeof(double);
 }
 
 /* 64-byte aligned array of `rows` rows of `stride` values of `size` bytes, zeroed by the threads
@@ -364,14 +368,16 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     if (h_max <= 0.0)
         return sw_fail(err, SW_ERR_RANGE, "the domain has no water: every cell is shallower than min_depth = %g m",
                        cfg->min_depth_m);
-    double dt_max = sw_model_dt_limit(cfg->layout, g, cfg->depth_m, cfg->min_depth_m, cfg->gravity_ms2, 2);
+    const double f_max = sw_terms_f_max(&cfg->terms, g->y0_m, g->y0_m + (double)g->ny * g->dy_m);
+    double dt_max = sw_terms_dt_limit(sw_model_dt_limit(cfg->layout, g, cfg->depth_m, cfg->min_depth_m,
+                                                        cfg->gravity_ms2, 2), f_max);
     if (cfg->dt_s > dt_max * (1.0 + 1e-12) && !cfg->allow_unstable) {
         double c = sw_model_courant(g, h_max, cfg->gravity_ms2, cfg->dt_s);
         double c_max = sw_model_courant(g, h_max, cfg->gravity_ms2, dt_max);
         return sw_fail(err, SW_ERR_UNSTABLE,
-                       "dt = %g s gives Courant number %.4g, beyond the %s-layout limit %.4g "
+                       "dt = %g s gives Courant number %.4g, beyond the %s-layout limit %.4g%s "
                        "(dt <= %.4g s at the deepest water, %g m)",
-                       cfg->dt_s, c, cfg->layout->name, c_max, dt_max, h_max);
+                       cfg->dt_s, c, cfg->layout->name, c_max, f_max > 0 ? " with rotation" : "", dt_max, h_max);
     }
 
     sw_model *m = calloc(1, sizeof *m);
@@ -408,7 +414,7 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     if (!v->eta || !v->u || !v->v || !v->h || !v->hx || !v->hy || !m->wet || !m->f_rows) {
         sw_model_free(m);
         return sw_fail(err, SW_ERR_NOMEM, "out of memory: the model needs %zu MB for a %zu x %zu grid in %s precision",
-                       sw_model_bytes_for(g, cfg->precision) >> 20, g->nx, g->ny, sw_precision_name(cfg->precision));
+                       sw_model_bytes_for(g, cfg->precision, cfg->layout, &cfg->terms) >> 20, g->nx, g->ny, sw_precision_name(cfg->precision));
     }
     m->terms.f_centre = m->f_rows;
     m->terms.f_face = m->f_rows + g->ny + 2;
@@ -587,5 +593,5 @@ const unsigned char *sw_model_wet(const sw_model *m) { return m->wet; }
 double sw_model_time(const sw_model *m) { return m->time; }
 double sw_model_dt(const sw_model *m) { return m->dt; }
 double sw_model_h_max(const sw_model *m) { return m->h_max; }
-size_t sw_model_bytes(const sw_model *m) { return sw_model_bytes_for(&m->grid, m->precision); }
+size_t sw_model_bytes(const sw_model *m) { return sw_model_bytes_for(&m->grid, m->precision, m->layout, &m->terms_cfg); }
 sw_precision sw_model_precision(const sw_model *m) { return m->precision; }

@@ -131,7 +131,11 @@ double sw_model_h_max(const sw_model *m);              /* deepest water cell, m 
 size_t sw_model_bytes(const sw_model *m);              /* memory held, bytes */
 sw_precision sw_model_precision(const sw_model *m);    /* of the state arrays */
 
-/* Bytes a model of this grid would hold in this precision (for plans), without creating it. */
-size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision);
+/* Bytes a model of this grid, layout and terms would hold in this precision (for plans), without creating
+ * it: the six padded state and depth arrays, the wet mask and edge cells, and with terms the per-row
+ * Coriolis parameters, the drag arrays of quadratic friction (2 padded arrays) and on transport-weighted
+ * layouts the water fractions (2 more). terms may be NULL (none). */
+size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision, const sw_layout *layout,
+                          const sw_terms_config *terms);
 
 #endif

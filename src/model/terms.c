@@ -1,6 +1,7 @@
 /* terms.c - names and one-line descriptions of the momentum terms (see terms.h). */
 #include "model/terms.h"
 
+#include <math.h>
 #include <stdio.h>
 
 const char *sw_rotation_name(sw_rotation_kind k)
@@ -32,4 +33,45 @@ void sw_terms_describe(const sw_terms_config *c, char *buf, size_t n)
         snprintf(buf, n, "none");
     else
         snprintf(buf, n, "%s%s%s", rot, rot[0] && fric[0] ? "; " : "", fric);
+}
+
+double sw_terms_stiff_depth(const sw_terms_config *c, double dt_s, double gravity_ms2)
+{
+    const double speed = 1.0;   /* m/s, the reference current for the quadratic laws */
+    switch (c->friction) {
+    case SW_FRICTION_LINEAR: return 0.5 * dt_s * c->friction_rate_ms;
+    case SW_FRICTION_QUADRATIC: return 0.5 * dt_s * c->drag * speed;
+    case SW_FRICTION_MANNING:   /* dt g n^2 |U| / (2 h^(4/3)) > 1 */
+        return pow(0.5 * dt_s * gravity_ms2 * c->manning_n * c->manning_n * speed, 0.75);
+    case SW_FRICTION_NONE: break;
+    }
+    return 0;
+}
+
+double sw_terms_f_max(const sw_terms_config *c, double y0_m, double y1_m)
+{
+    if (c->rotation == SW_ROTATION_F_PLANE)
+        return fabs(c->f0_s);
+    if (c->rotation != SW_ROTATION_BETA_PLANE)
+        return 0;
+    return fmax(fabs(c->f0_s + c->beta_ms * (y0_m - c->y_ref_m)), fabs(c->f0_s + c->beta_ms * (y1_m - c->y_ref_m)));
+}
+
+/* The bound comes from the rotating step's Q = P + F^2 w^2 - F w c^2 sx sy <= 4 (docs/stability.md) with
+ * |w| <= 1 and c^2 |sx sy| <= P / 2: Q <= P (1 + |F| / 2) + F^2, and P <= 4 c^2 / c0^2. dt - dt0 factor(f dt)
+ * increases with dt, so bisection finds the largest dt it allows; the lower end is returned, which
+ * always satisfies it. */
+double sw_terms_dt_limit(double dt0_s, double f_max_s)
+{
+    if (!(f_max_s > 0))
+        return dt0_s;
+    double lo = 0, hi = fmin(dt0_s, 2 / f_max_s);
+    for (int it = 0; it < 100 && hi - lo > 1e-15 * dt0_s; it++) {
+        const double mid = 0.5 * (lo + hi), F = f_max_s * mid;
+        if (mid <= dt0_s * sqrt((1 - F * F / 4) / (1 + F / 2)))
+            lo = mid;
+        else
+            hi = mid;
+    }
+    return lo;
 }

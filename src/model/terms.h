@@ -81,4 +81,19 @@ const char *sw_friction_name(sw_friction_kind k);
  * (r = 0.002 m/s)" or "none", into buf (size n). For plans, JSON and the NetCDF globals. */
 void sw_terms_describe(const sw_terms_config *c, char *buf, size_t n);
 
+/* The largest |f| (s-1) over a domain whose rows span y0_m .. y1_m (m): |f0| on the f-plane, the larger
+ * end of the beta-plane; 0 without rotation. */
+double sw_terms_f_max(const sw_terms_config *c, double y0_m, double y1_m);
+
+/* The largest stable time step (s) with rotation, from the one without, dt0_s, and the largest |f|:
+ * dt0 sqrt((1 - F^2 / 4) / (1 + |F| / 2)), F = f_max dt, solved for dt. The factor bounds the Courant
+ * limit of the rotating step from below on every layout (exact for A and E; docs/terms.md derives it),
+ * so a step within it is stable. dt0_s itself when f_max = 0. */
+double sw_terms_dt_limit(double dt0_s, double f_max_s);
+
+/* The depth (m) below which friction is stiff, i.e. dt k / 2 > 1 with k = (r + Cd |U|) / h, so that the
+ * velocity alternates in sign from step to step while its energy decays (docs/terms.md): for linear
+ * friction dt r / 2; for quadratic and Manning friction with a current of |U| = 1 m/s. 0 without friction. */
+double sw_terms_stiff_depth(const sw_terms_config *c, double dt_s, double gravity_ms2);
+
 #endif

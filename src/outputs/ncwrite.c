@@ -158,6 +158,32 @@ static void ncw_compress(ncw_file *f, int varid, const size_t *chunks)
         ncw_ok(f, nc_def_var_deflate(f->ncid, varid, 1, 1, NCW_DEFLATE_LEVEL), "setting compression of", label);
 }
 
+/* The momentum terms in force as global attributes: a line naming them (momentum_terms), the kinds
+ * (rotation, bottom_friction) and the coefficients of the kinds in force. */
+static void ncw_terms(ncw_file *f, const sw_terms_config *t)
+{
+    const sw_terms_config none = {0};
+    char line[256];
+    if (!t)
+        t = &none;
+    sw_terms_describe(t, line, sizeof line);
+    ncw_text(f, NC_GLOBAL, "momentum_terms", line);
+    ncw_text(f, NC_GLOBAL, "rotation", sw_rotation_name(t->rotation));
+    if (t->rotation != SW_ROTATION_NONE)
+        ncw_double(f, NC_GLOBAL, "coriolis_f0_per_s", t->f0_s);
+    if (t->rotation == SW_ROTATION_BETA_PLANE) {
+        ncw_double(f, NC_GLOBAL, "coriolis_beta_per_m_s", t->beta_ms);
+        ncw_double(f, NC_GLOBAL, "coriolis_reference_y_m", t->y_ref_m);
+    }
+    ncw_text(f, NC_GLOBAL, "bottom_friction", sw_friction_name(t->friction));
+    if (t->friction == SW_FRICTION_LINEAR)
+        ncw_double(f, NC_GLOBAL, "friction_rate_m_s", t->friction_rate_ms);
+    else if (t->friction == SW_FRICTION_QUADRATIC)
+        ncw_double(f, NC_GLOBAL, "drag_coefficient", t->drag);
+    else if (t->friction == SW_FRICTION_MANNING)
+        ncw_double(f, NC_GLOBAL, "manning_n", t->manning_n);
+}
+
 /* The global attributes shared by every file. */
 static void ncw_globals(ncw_file *f, const sw_run_meta *m)
 {
@@ -174,6 +200,7 @@ static void ncw_globals(ncw_file *f, const sw_run_meta *m)
     ncw_double(f, NC_GLOBAL, "courant_limit", m->courant_limit);
     ncw_double(f, NC_GLOBAL, "arrival_threshold_m", m->arrival_threshold_m);
     ncw_double(f, NC_GLOBAL, "gravity_m_s2", m->gravity_ms2);
+    ncw_terms(f, m->terms);
     ncw_text(f, NC_GLOBAL, "scenario", m->scenario_text);
     ncw_text(f, NC_GLOBAL, "caution", m->caution);
     ncw_text(f, NC_GLOBAL, "comment", NCW_COMMENT);

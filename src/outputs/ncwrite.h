@@ -12,6 +12,7 @@
 
 #include "base/grid.h"
 #include "base/status.h"
+#include "model/terms.h"
 #include "observers/observed.h"   /* sw_gauge_table, sw_map_set */
 
 /* Metadata written as global attributes of every file. Strings must not be NULL. */
@@ -29,6 +30,7 @@ typedef struct {
     double courant_limit;       /* the layout's limit of the same number */
     double arrival_threshold_m; /* |eta| threshold defining arrival, m */
     double gravity_ms2;         /* g, m s-2 */
+    const sw_terms_config *terms; /* rotation and friction in force (NULL: none) */
 } sw_run_meta;
 
 /* Writes the gauge file (CF discrete sampling geometry, featureType timeSeries). */

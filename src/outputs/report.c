@@ -42,6 +42,29 @@ static void format_age(double days, char *buf, size_t n)
         snprintf(buf, n, "%.0f days ago", floor(days));
 }
 
+/* Water cells shallower than depth_m. */
+static size_t cells_shallower(const sw_scenario *sc, const sw_setup *s, double depth_m)
+{
+    size_t n = 0;
+    for (size_t k = 0; k < sw_grid_cells(&s->grid); k++)
+        n += s->depth_m[k] >= sc->min_depth_m && s->depth_m[k] < depth_m;
+    return n;
+}
+
+/* The plan's line about rotation and friction, with a warning where friction is stiff. */
+static void print_terms(FILE *f, const sw_scenario *sc, const sw_setup *s)
+{
+    char line[256];
+    sw_terms_describe(&sc->terms, line, sizeof line);
+    fprintf(f, "Terms      %s\n", line);
+    const double stiff = sw_terms_stiff_depth(&sc->terms, s->dt_s, sc->gravity_ms2);
+    const size_t n = stiff > 0 ? cells_shallower(sc, s, stiff) : 0;
+    if (n)
+        fprintf(f, "           warning: friction is stiff in %zu water cells shallower than %.3g m%s: their "
+                "velocities alternate in sign from step to step (docs/terms.md); a smaller dt or a larger "
+                "min_depth avoids it\n", n, stiff, sc->terms.friction == SW_FRICTION_LINEAR ? "" : " (for a 1 m/s current)");
+}
+
 void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
 {
     const sw_grid *g = &s->grid;
@@ -58,6 +81,7 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
     fprintf(f, "Depth      deepest water %g m (wave speed %.1f m/s)\n", s->h_max_m, sqrt(sc->gravity_ms2 * s->h_max_m));
     fprintf(f, "Time step  dt = %.4g s: Courant number %.4g, %s-layout %dD limit %.4g (%.0f %% of it)\n", s->dt_s,
             s->courant, s->layout->name, s->dims, s->courant_limit, 100 * s->courant / s->courant_limit);
+    print_terms(f, sc, s);
     sw_format_duration(sc->duration_s, buf, sizeof buf);
     fprintf(f, "Run        %s simulated in %lld steps; %zu gauge samples each; %zu snapshots\n", buf, s->n_steps,
             s->n_samples, s->n_snapshots);
@@ -99,6 +123,32 @@ static void add_number_or_null(cJSON *o, const char *key, double v)
         cJSON_AddNullToObject(o, key);
 }
 
+/* "terms": the rotation and friction in force, as the NetCDF globals name them. */
+static void add_terms(cJSON *o, const sw_scenario *sc, const sw_setup *s)
+{
+    const sw_terms_config *t = &sc->terms;
+    char line[256];
+    sw_terms_describe(t, line, sizeof line);
+    cJSON *e = cJSON_AddObjectToObject(o, "terms");
+    cJSON_AddStringToObject(e, "description", line);
+    cJSON_AddStringToObject(e, "rotation", sw_rotation_name(t->rotation));
+    if (t->rotation != SW_ROTATION_NONE)
+        cJSON_AddNumberToObject(e, "coriolis_f0_per_s", t->f0_s);
+    if (t->rotation == SW_ROTATION_BETA_PLANE) {
+        cJSON_AddNumberToObject(e, "coriolis_beta_per_m_s", t->beta_ms);
+        cJSON_AddNumberToObject(e, "coriolis_reference_y_m", t->y_ref_m);
+    }
+    cJSON_AddStringToObject(e, "bottom_friction", sw_friction_name(t->friction));
+    if (t->friction == SW_FRICTION_LINEAR)
+        cJSON_AddNumberToObject(e, "friction_rate_m_s", t->friction_rate_ms);
+    else if (t->friction == SW_FRICTION_QUADRATIC)
+        cJSON_AddNumberToObject(e, "drag_coefficient", t->drag);
+    else if (t->friction == SW_FRICTION_MANNING)
+        cJSON_AddNumberToObject(e, "manning_n", t->manning_n);
+    const double stiff = sw_terms_stiff_depth(t, s->dt_s, sc->gravity_ms2);
+    cJSON_AddNumberToObject(e, "stiff_friction_cells", stiff > 0 ? (double)cells_shallower(sc, s, stiff) : 0);
+}
+
 static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
 {
     cJSON *o = cJSON_CreateObject();
@@ -118,6 +168,7 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
     cJSON_AddStringToObject(o, "layout", s->layout->name);
     cJSON_AddStringToObject(o, "precision", sw_precision_name(sc->precision));
     cJSON_AddNumberToObject(o, "depth_max_m", s->h_max_m);
+    add_terms(o, sc, s);
     cJSON_AddNumberToObject(o, "dt_s", s->dt_s);
     cJSON_AddNumberToObject(o, "courant", s->courant);
     cJSON_AddNumberToObject(o, "courant_limit", s->courant_limit);
@@ -167,9 +218,13 @@ void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_r
 {
     char a[48], pt[48], wall[48];
     sw_format_duration(r->wall_s, wall, sizeof wall);
+    char terms[256];
+    sw_terms_describe(&sc->terms, terms, sizeof terms);
     fprintf(f, "\n%s: layout %s in %s precision, %lld steps of %.4g s, %s wall time with %d thread%s "
             "(%.3g cell-updates/s)\n", sc->title, s->layout->name, sw_precision_name(sc->precision), r->steps, s->dt_s, wall, r->threads, r->threads == 1 ? "" : "s",
             r->cell_updates_per_s);
+    if (strcmp(terms, "none"))
+        fprintf(f, "Terms: %s\n", terms);
     if (r->n_gauges) {
         fprintf(f, "\n%-24s %9s %16s %10s %16s %10s\n", "Gauge", "depth m", "first arrival", "peak m",
                 "peak at", "trough m");

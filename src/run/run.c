@@ -197,7 +197,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
     sw_model_config cfg = {
         .layout = setup->layout, .grid = setup->grid, .depth_m = setup->depth_m, .eta0_m = setup->eta0_m,
         .min_depth_m = sc->min_depth_m, .gravity_ms2 = sc->gravity_ms2, .dt_s = setup->dt_s,
-        .precision = sc->precision,
+        .precision = sc->precision, .terms = sc->terms,
     };
     memcpy(cfg.edges, sc->edges, sizeof cfg.edges);
 
@@ -205,7 +205,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         .title = sc->title, .history = opt->history ? opt->history : "", .scenario_text = sc->text ? sc->text : "",
         .layout = setup->layout->name, .precision = sw_precision_name(sc->precision), .version = SW_VERSION, .caution = sw_caution(), .time_origin = sc->origin,
         .dt_s = setup->dt_s, .courant = setup->courant, .courant_limit = setup->courant_limit,
-        .arrival_threshold_m = sc->arrival_threshold_m, .gravity_ms2 = sc->gravity_ms2,
+        .arrival_threshold_m = sc->arrival_threshold_m, .gravity_ms2 = sc->gravity_ms2, .terms = &sc->terms,
     };
     if (!opt->sink) {   /* with a sink the paths stay "" */
         file_path(res->gauges_path, opt, "gauges.nc");

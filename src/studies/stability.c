@@ -118,28 +118,26 @@ void sw_stab_cubic_roots(double complex b, double complex c, double complex d, d
 
 /* ---- one mode ------------------------------------------------------------------------------ */
 
-/* N = M - I from the symbols of a mode (taken with dx = dy = 1). */
+/* N = M - I from the symbols of a mode (taken with dx = dy = 1), for the step of docs/terms.md:
+ *     eta' = eta - c (Dx u + Dy v),   u' = u - c Gx eta' + F Vu v,   v' = v - c Gy eta' - F Uv u'
+ * (F = f dt; u from the old v, then v from the new u). With eta' = eta + N0 x and u' = u + N1 x the rows
+ * are N0 = (0, -c Dx, -c Dy), N1 = (-c Gx, c^2 Gx Dx, c^2 Gx Dy + F Vu) and
+ * N2 = (-c Gy, c^2 Gy Dx, c^2 Gy Dy) - F Uv (e_u + N1). */
 static void step_matrix(const sw_symbols *sy, double courant, double f_dt, double complex n[3][3])
 {
     const double complex dx = sy->div_x, dy = sy->div_y, gx = sy->grad_x, gy = sy->grad_y;
     const double complex vu = sy->v_at_u, uv = sy->u_at_v;
-    const double a = 0.5 * f_dt, c = courant;
-    /* the rotation solves R w' = R~ w - c g eta' with R = [1, -a vu; a uv, 1], R~ = [1, a vu; -a uv, 1];
-     * R^-1 = [1, a vu; -a uv, 1] / det and Q - I = R^-1 (R~ - R) */
-    const double complex det = 1 + a * a * vu * uv;
-    const double complex rg0 = (gx + a * vu * gy) / det, rg1 = (gy - a * uv * gx) / det;
-    const double complex q00 = -2 * a * a * vu * uv / det, q01 = 2 * a * vu / det;
-    const double complex q10 = -2 * a * uv / det, q11 = q00;
+    const double c = courant, F = f_dt;
 
     n[0][0] = 0;
     n[0][1] = -c * dx;
     n[0][2] = -c * dy;
-    n[1][0] = -c * rg0;
-    n[1][1] = q00 + c * c * rg0 * dx;
-    n[1][2] = q01 + c * c * rg0 * dy;
-    n[2][0] = -c * rg1;
-    n[2][1] = q10 + c * c * rg1 * dx;
-    n[2][2] = q11 + c * c * rg1 * dy;
+    n[1][0] = -c * gx;
+    n[1][1] = c * c * gx * dx;
+    n[1][2] = c * c * gx * dy + F * vu;
+    n[2][0] = -c * gy - F * uv * n[1][0];
+    n[2][1] = c * c * gy * dx - F * uv * (1 + n[1][1]);
+    n[2][2] = c * c * gy * dy - F * uv * n[1][2];
 }
 
 void sw_stab_step_matrix(const sw_layout *lay, double kdx, double ldy, double courant, double f_dt,
@@ -418,8 +416,8 @@ done:
 /* ---- NetCDF -------------------------------------------------------------------------------- */
 
 static const char STAB_COMMENT[] =
-    "Von Neumann analysis of one forward-backward step (eta first, then velocities from the new eta, "
-    "trapezoidal rotation) for the Fourier mode exp(i (k x + l y)) on square cells. "
+    "Von Neumann analysis of one forward-backward step (eta first, then velocities from the new eta; "
+    "rotation: u from the old v, then v from the new u) for the Fourier mode exp(i (k x + l y)) on square cells. "
     "amplification is the largest modulus of the three eigenvalues of the one-step matrix: 1 is neutral, "
     "above 1 the mode grows every step. phase_speed_ratio is the numerical frequency of the fastest mode "
     "(max |arg lambda| / dt) over the exact continuous frequency sqrt(f^2 + g h K^2), which is the ratio of "

@@ -6,13 +6,14 @@
  * With velocities scaled by sqrt(h / g), one step of the model maps the amplitudes (eta, u, v) of the
  * mode exp(i (k x + l y)) by a 3 x 3 complex matrix M:
  *     eta' = eta - c (Dx u + Dy v)
- *     u'   = u - c Gx eta' + (f dt / 2) Vu (v + v')      (trapezoidal, Crank-Nicolson, rotation)
- *     v'   = v - c Gy eta' - (f dt / 2) Uv (u + u')
+ *     u'   = u - c Gx eta' + f dt Vu v            (rotation: u from the old v,
+ *     v'   = v - c Gy eta' - f dt Uv u'            then v from the new u; docs/terms.md)
  * with Dx, Dy, Gx, Gy the layout's divergence and gradient symbols times dx, and Vu, Uv its v-to-u and
  * u-to-v averaging symbols. Its eigenvalues lambda are the amplification factors of the mode; the step
  * is stable for the mode when every |lambda| <= 1. docs/stability.md has the derivation and the reading.
  *
- * The model itself has no rotation yet; f dt analyses the step the model would take with it.
+ * This is the step the model takes (docs/terms.md): the analysis and the runs agree (test_stability.c).
+ * Friction (centred in time) only takes energy out of this step, so it is left out here.
  * Nothing here prints; sw_stab_write_planes is the only function that touches files.
  */
 #ifndef SW_STABILITY_H

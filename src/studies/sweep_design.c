@@ -37,6 +37,8 @@ const char *swp_unit_text(const sw_sweep_param *p)
     case SW_UNIT_LENGTH: return "m";
     case SW_UNIT_TIME: return "s";
     case SW_UNIT_ANGLE: return "deg";
+    case SW_UNIT_RATE: return "s-1";
+    case SW_UNIT_SPEED: return "m s-1";
     case SW_UNIT_NONE: break;
     }
     return "1";

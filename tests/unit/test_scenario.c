@@ -10,6 +10,7 @@
  *    suggestion checks are counted by hand from that definition.
  *  - docs/scenario.md: the defaults, ranges and message formats a user is promised.
  */
+#include <math.h>
 #include <stdarg.h>
 #include <stddef.h>
 #include <setjmp.h>
@@ -458,7 +459,7 @@ static void test_values_out_of_range_or_malformed(void **state)
         { "[grid]\ndx = 0.5 m\n", SW_ERR_RANGE, "[grid] dx = 0.5 m: out of range (accepted: 1 m <= dx <= 1000 km)", NULL },
         { "[grid]\ndy = 1001 km\n", SW_ERR_RANGE, "[grid] dy = 1001 km: out of range", NULL },
         { "[grid]\nx0 = 100001 km\n", SW_ERR_RANGE, "[grid] x0 = 100001 km: out of range", NULL },
-        { "[edges]\nwest = closed\n", SW_ERR_PARSE, "[edges] west = closed: unknown value (accepted: wall, open, level)", NULL },
+        { "[edges]\nwest = closed\n", SW_ERR_PARSE, "[edges] west = closed: unknown value (accepted: wall, open, level, periodic)", NULL },
         { "[seabed]\ndeep = 13 km\n", SW_ERR_RANGE, "[seabed] deep = 13 km: out of range (accepted: 0 < deep <= 12 km)",
           NULL },
         { "[seabed]\nmin_depth = 0\n", SW_ERR_RANGE, "[seabed] min_depth = 0: out of range", NULL },
@@ -856,9 +857,92 @@ static void test_precision_key(void **state)
     del_sc(sc);
 }
 
+/* Rotation and friction keys: values in SI, f0 and beta from the latitude (f = 2 Omega sin(phi),
+ * beta = 2 Omega cos(phi) / R with Omega = 7.2921159e-5 s-1 and R = 6371 km, common practice [memory;
+ * docs/references.md]: at 45 deg f = 1.03126e-4 s-1, beta = 1.61868e-11 m-1 s-1). */
+#define TERMS_BASE "[grid]\nnx = 10\nny = 20\ndx = 1 km\n[seabed]\ndeep = 100 m\n[run]\nduration = 1 h\n"
+static void test_terms_keys(void **state)
+{
+    (void)state;
+    sw_scenario *sc = parse_ok(TERMS_BASE "rotation = f-plane\ncoriolis = 1e-4 s-1\nfriction = linear\n"
+                                          "friction_rate = 2 mm/s\n");
+    assert_int_equal(sc->terms.rotation, SW_ROTATION_F_PLANE);
+    assert_true(fabs(sc->terms.f0_s - 1e-4) < 1e-18);
+    assert_int_equal(sc->terms.friction, SW_FRICTION_LINEAR);
+    assert_true(fabs(sc->terms.friction_rate_ms - 2e-3) < 1e-15);
+    assert_int_equal(sc->rotation_line, 9);
+    del_sc(sc);
+    sc = parse_ok(TERMS_BASE "rotation = beta-plane\nlatitude = 45 deg\nreference_y = 10 km\nfriction = manning\n"
+                             "manning = 0.025\n");
+    print_message("45 deg: f = %.6e s-1, beta = %.6e m-1 s-1\n", sc->terms.f0_s, sc->terms.beta_ms);
+    assert_true(fabs(sc->terms.f0_s / 1.03126e-4 - 1) < 1e-5);
+    assert_true(fabs(sc->terms.beta_ms / 1.61868e-11 - 1) < 1e-5);
+    assert_true(fabs(sc->terms.y_ref_m - 1e4) < 1e-9);
+    assert_int_equal(sc->terms.friction, SW_FRICTION_MANNING);
+    del_sc(sc);
+    sc = parse_ok(TERMS_BASE "rotation = beta-plane\ncoriolis = -5e-5 /s\nbeta = 2e-11\nreference_y = 0\n"
+                             "friction = quadratic\ndrag = 0.0025\n");
+    assert_true(sc->terms.f0_s == -5e-5 && sc->terms.beta_ms == 2e-11 && sc->terms.drag == 0.0025);
+    del_sc(sc);
+    sc = parse_ok(TERMS_BASE "[edges]\nwest = periodic\neast = periodic\n");
+    assert_int_equal(sc->edges[SW_WEST], SW_EDGE_PERIODIC);
+    assert_int_equal(sc->terms.rotation, SW_ROTATION_NONE);
+    assert_int_equal(sc->terms.friction, SW_FRICTION_NONE);
+    del_sc(sc);
+    sc = parse_ok(TERMS_BASE "[edges]\nall = periodic\n");
+    assert_int_equal(sc->edges[SW_NORTH], SW_EDGE_PERIODIC);
+    del_sc(sc);
+
+    /* bad input: one line with file, line, key and the accepted values */
+    static const bad_case cases[] = {
+        { TERMS_BASE "coriolis = 1e-4\n", SW_ERR_PARSE, "t.scn:9: [run] coriolis: not used without rotation "
+          "(accepted: rotation = f-plane or beta-plane with it)", NULL },
+        { TERMS_BASE "rotation = f-plane\n", SW_ERR_PARSE, "t.scn:9: [run] rotation = f-plane needs coriolis (s-1) "
+          "or latitude (deg)", NULL },
+        { TERMS_BASE "rotation = f-plane\ncoriolis = 1e-4\nlatitude = 40 deg\n", SW_ERR_PARSE,
+          "t.scn:11: [run] coriolis (line 10) and latitude (line 11) are both given", NULL },
+        { TERMS_BASE "rotation = f-plane\ncoriolis = 2e-3\n", SW_ERR_RANGE, "t.scn:10: [run] coriolis = 2e-3: out of "
+          "range (accepted: -1e-3 <= coriolis <= 1e-3 s-1", NULL },
+        { TERMS_BASE "rotation = f-plane\ncoriolis = 1e-4 Hz\n", SW_ERR_PARSE, "unknown unit 'Hz' (accepted: s-1, /s, "
+          "h-1, /h)", NULL },
+        { TERMS_BASE "rotation = f-plane\nlatitude = 90 deg\n", SW_ERR_RANGE, "latitude = 90 deg: out of range", NULL },
+        { TERMS_BASE "rotation = f-plane\ncoriolis = 1e-4\nbeta = 1e-11\n", SW_ERR_PARSE,
+          "t.scn:11: [run] beta: not used with rotation = f-plane", NULL },
+        { TERMS_BASE "rotation = beta-plane\nlatitude = 30 deg\n", SW_ERR_PARSE,
+          "t.scn:9: [run] rotation = beta-plane needs reference_y", NULL },
+        { TERMS_BASE "rotation = beta-plane\ncoriolis = 1e-4\nreference_y = 0\n", SW_ERR_PARSE,
+          "t.scn:9: [run] rotation = beta-plane needs beta (m-1 s-1), or latitude", NULL },
+        { TERMS_BASE "rotation = spherical\n", SW_ERR_PARSE, "[run] rotation = spherical: unknown value (accepted: "
+          "none, f-plane, beta-plane)", NULL },
+        { TERMS_BASE "drag = 0.0025\n", SW_ERR_PARSE, "t.scn:9: [run] drag: not used without friction (accepted: "
+          "friction = quadratic with it)", NULL },
+        { TERMS_BASE "friction = linear\ndrag = 0.0025\n", SW_ERR_PARSE, "t.scn:10: [run] drag: not used with "
+          "friction = linear (accepted: friction = quadratic with it)", NULL },
+        { TERMS_BASE "friction = quadratic\n", SW_ERR_PARSE, "t.scn:9: [run] friction = quadratic needs drag "
+          "(dimensionless)", NULL },
+        { TERMS_BASE "friction = manning\nmanning = 0\n", SW_ERR_RANGE, "[run] manning = 0: out of range (accepted: "
+          "0 < manning <= 0.2", NULL },
+        { TERMS_BASE "friction = linear\nfriction_rate = 2 m\n", SW_ERR_PARSE, "unknown unit 'm' (accepted: m/s, "
+          "cm/s, mm/s)", NULL },
+        { TERMS_BASE "friction = linear\nfriction_rate = -1 mm/s\n", SW_ERR_RANGE, "friction_rate = -1 mm/s: out "
+          "of range (accepted: 0 < friction_rate <= 0.1 m/s", NULL },
+        { TERMS_BASE "friction = turbulent\n", SW_ERR_PARSE, "unknown value (accepted: none, linear, quadratic, "
+          "manning)", NULL },
+        { TERMS_BASE "[edges]\nwest = periodic\n", SW_ERR_PARSE, "t.scn:10: [edges] west = periodic needs east = "
+          "periodic too (a periodic edge joins the opposite one; east is wall)", NULL },
+        { TERMS_BASE "[edges]\nall = periodic\nnorth = open\n", SW_ERR_PARSE, "t.scn:10: [edges] south = periodic "
+          "needs north = periodic too", NULL },
+    };
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+        print_message("case %zu\n", i);
+        parse_bad(cases[i].text, cases[i].code, cases[i].want1, cases[i].want2);
+    }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_terms_keys),
         cmocka_unit_test(test_precision_key),
         cmocka_unit_test(test_full_scenario_in_si),
         cmocka_unit_test(test_defaults),

@@ -52,6 +52,19 @@ static void test_each_unit(void **state)
     assert_true(ok("1.5 d", SW_UNIT_TIME) == 129600.0);
     assert_true(ok("45 deg", SW_UNIT_ANGLE) == 45.0);
     assert_true(ok("-30.5 deg", SW_UNIT_ANGLE) == -30.5);
+    /* rates and speeds, the same factors: h-1 = 1/3600 s-1, cm = 1e-2 m, mm = 1e-3 m */
+    assert_true(ok("1e-4 s-1", SW_UNIT_RATE) == 1e-4);
+    assert_true(ok("-1e-4 /s", SW_UNIT_RATE) == -1e-4);
+    assert_true(ok("0.36 h-1", SW_UNIT_RATE) == 0.36 / 3600);
+    assert_true(ok("3.6/h", SW_UNIT_RATE) == 3.6 / 3600);
+    assert_true(ok("2e-3", SW_UNIT_RATE) == 2e-3);
+    assert_true(ok("0.002 m/s", SW_UNIT_SPEED) == 0.002);
+    assert_true(ok("2 mm/s", SW_UNIT_SPEED) == 2e-3);
+    assert_true(ok("0.5 cm/s", SW_UNIT_SPEED) == 0.005);
+    bad("1e-4 s-2", SW_UNIT_RATE, "unknown unit 's-2' (accepted: s-1, /s, h-1, /h)");
+    bad("2 km/h", SW_UNIT_SPEED, "unknown unit 'km/h' (accepted: m/s, cm/s, mm/s)");
+    bad("2 m/s extra", SW_UNIT_SPEED, "after the unit");
+    bad("2 m-1", SW_UNIT_LENGTH, "unexpected");   /* only rates and speeds take '-', '/' and digits */
 }
 
 static void test_bare_numbers_and_spacing(void **state)
