@@ -140,55 +140,53 @@ static void c_v_row(const sw_view *v, size_t j)
 
 /* The momentum stages with rotation and friction (terms.h; docs/terms.md derives the weights).
  * u of row j first, from the old v on the four faces around it (two on the line of row j's north faces,
- * two on the line below): with F = f dt on each line,
- *     rot = (F / 4) [ hx (v0 + v1) + hy0 v0 + hy1 v1 ]  summed over the two lines,
- * i.e. 2 dt times the pair weights K = (f / 8) (hx + hy) of the four neighbours. Then v of row j from the
- * new u on its four neighbouring faces (rows j and j+1, all on the line of v's own faces), with the
- * same pair weights and the opposite sign, so rotation does no work on any depth. With `drag` the
- * friction rho adds Cd |U| dt, |U| from the point's velocity and the other component's plain average. */
+ * two on the line below), as a transport: with F = f dt on each line,
+ *     rot = (F / 2) (hy0 v0 + hy1 v1)   summed over the two lines,
+ * i.e. 2 dt times K v with pair weights K = (f / 4) hy. Then v of row j from the new u on its four
+ * neighbouring faces (rows j and j+1, all on the line of v's own faces), plainly averaged: with the same
+ * K divided by v's own depth hy, rot = (F / 2) hy (u0 + u1 + u2 + u3), and the opposite sign; so rotation
+ * does no work on any depth (one weight matrix, K and its transpose). With `drag` the friction rho adds
+ * Cd |U| dt, |U| from the point's velocity and the other component's plain average. */
 SW_INLINE void c_u_terms(const sw_view *v, size_t j, const int drag)
 {
     sw_real *restrict u = SW_V(v, u);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
     const sw_real *restrict vv = SW_V(v, v), *restrict cd = drag ? (const sw_real *)v->terms->drag_x : NULL;
     const sw_real gx = (sw_real)(v->g * v->dt_s / v->dx_m);
-    const sw_real qn = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j - 1]);
+    const sw_real qn = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j - 1]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
     const size_t k0 = j * v->stride + 1, s = v->stride;
     SW_OMP(simd)
     for (size_t i = k0 - 1; i < k0 + v->nx; i++) {
-        const sw_real H = hx[i], n0 = vv[i], n1 = vv[i + 1], s0 = vv[i - s], s1 = vv[i - s + 1];
-        const sw_real rot = qn * (H * (n0 + n1) + hy[i] * n0 + hy[i + 1] * n1)
-                          + qs * (H * (s0 + s1) + hy[i - s] * s0 + hy[i - s + 1] * s1);
+        const sw_real n0 = vv[i], n1 = vv[i + 1], s0 = vv[i - s], s1 = vv[i - s + 1];
+        const sw_real rot = qn * (hy[i] * n0 + hy[i + 1] * n1) + qs * (hy[i - s] * s0 + hy[i - s + 1] * s1);
         sw_real rho = rho0;
         if (drag) {
             const sw_real vbar = (sw_real)0.25 * (n0 + n1 + s0 + s1);
             rho += dtc * cd[i] * (sw_real)sqrt(u[i] * u[i] + vbar * vbar);
         }
-        u[i] = sw_terms_update(u[i], H, -gx * (eta[i + 1] - eta[i]), rot, rho);
+        u[i] = sw_terms_update(u[i], hx[i], -gx * (eta[i + 1] - eta[i]), rot, rho);
     }
 }
 
 SW_INLINE void c_v_terms(const sw_view *v, size_t j, const int drag)
 {
     sw_real *restrict vv = SW_V(v, v);
-    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hy = SW_V(v, hy);
     const sw_real *restrict u = SW_V(v, u), *restrict cd = drag ? (const sw_real *)v->terms->drag_y : NULL;
     const sw_real gy = (sw_real)(v->g * v->dt_s / v->dy_m);
-    const sw_real q = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j]);
+    const sw_real q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
     const size_t k0 = j * v->stride + 1, s = v->stride;
     SW_OMP(simd)
     for (size_t i = k0; i < k0 + v->nx; i++) {
-        const sw_real H = hy[i], w0 = u[i - 1], w1 = u[i], n0 = u[i + s - 1], n1 = u[i + s];
-        const sw_real rot = q * (H * (w0 + w1 + n0 + n1) + hx[i - 1] * w0 + hx[i] * w1 + hx[i + s - 1] * n0
-                                 + hx[i + s] * n1);
+        const sw_real H = hy[i], sum = u[i - 1] + u[i] + u[i + s - 1] + u[i + s];
         sw_real rho = rho0;
         if (drag) {
-            const sw_real ubar = (sw_real)0.25 * (w0 + w1 + n0 + n1);
+            const sw_real ubar = (sw_real)0.25 * sum;
             rho += dtc * cd[i] * (sw_real)sqrt(vv[i] * vv[i] + ubar * ubar);
         }
-        vv[i] = sw_terms_update(vv[i], H, -gy * (eta[i + s] - eta[i]), -rot, rho);
+        vv[i] = sw_terms_update(vv[i], H, -gy * (eta[i + s] - eta[i]), -(q * H * sum), rho);
     }
 }
 
@@ -226,7 +224,7 @@ static void c_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 #endif
 
 /* E* (layout.h). Velocity points are counted once: a periodic edge's halo copy is left out. The
- * rotation share (dt/2) u.K v sums each u point's four v neighbours with K = (f / 8) (hx + hy). */
+ * rotation share (dt/2) u.K v sums each u point's four v neighbours with K = (f / 4) hy. */
 static double c_energy(const sw_view *v)
 {
     const size_t nx = v->nx, ny = v->ny, s = v->stride, c0 = sw_first_col(v), r0 = sw_first_row(v);
@@ -248,14 +246,14 @@ static double c_energy(const sw_view *v)
             for (int q = 0; q < 2; q++) {
                 const size_t a = q ? i : i - s;   /* v on the line above, then below */
                 const double f = q ? ff[j] : ff[j - 1];
-                pair += f * (((double)hx[i] + hy[a]) * vv[a] + ((double)hx[i] + hy[a + 1]) * vv[a + 1]);
+                pair += f * ((double)hy[a] * vv[a] + (double)hy[a + 1] * vv[a + 1]);
             }
             rot += u[i] * pair;
         }
     for (size_t j = r0; j <= ny; j++)   /* v: rows 0 (the south edge's faces) .. ny */
         for (size_t i = j * s + 1; i <= j * s + nx; i++)
             kin += (double)hy[i] * vv[i] * vv[i];
-    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + dt / 16 * rot) * dx * dy;
+    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + dt / 8 * rot) * dx * dy;
 }
 
 /* Stages: continuity of row j reads u of row j and v of rows j-1, j; u of row j reads eta of row j;

@@ -250,11 +250,12 @@ static void d_v_row(const sw_view *v, size_t j)
 }
 
 /* The momentum stages with rotation and friction (terms.h; docs/terms.md), as layout_c.c's with the
- * roles of the faces turned: u of row j (north faces, on the line j) from the old v on the four east
- * faces around it (rows j and j+1, corners on line j); then v of row j (east faces) from the new u on
- * the two north faces of row j (line j) and the two of row j-1 (line j-1). Pair weights
- * K = (f / 8) (hx + hy): rotation does no work on any depth. Friction carries 1 / f (share) as on the B
- * layout (layout_b.c), since the faces store f * velocity with hx = h / f. */
+ * roles of the faces turned: u of row j (north faces, on the line j) from the transport of the old v on
+ * the four east faces around it (rows j and j+1, corners on line j), rot = (F / 2) sum hy v; then v of
+ * row j (east faces) from the plain average of the new u on the two north faces of row j (line j) and the
+ * two of row j-1 (line j-1), rot = (F / 2) hy sum u, F on each line. One weight matrix K = (f / 4) hy
+ * and its transpose: rotation does no work on any depth. Friction carries 1 / f (share) as on the B layout
+ * (layout_b.c), since the faces store f * velocity with hx = h / f. */
 SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag)
 {
     sw_real *restrict u = SW_V(v, u);
@@ -262,38 +263,36 @@ SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag)
     const sw_real *restrict vv = SW_V(v, v), *restrict cd = drag ? (const sw_real *)v->terms->drag_x : NULL;
     const sw_real *restrict sh = v->terms->share_x;
     const sw_real gx = (sw_real)(0.25 * v->g * v->dt_s / v->dx_m);
-    const sw_real q = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j]);
+    const sw_real q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + v->nx; i++) {
-        const sw_real H = hx[i], w0 = vv[i - 1], w1 = vv[i], n0 = vv[i + s - 1], n1 = vv[i + s];
-        const sw_real rot = q * (H * (w0 + w1 + n0 + n1) + hy[i - 1] * w0 + hy[i] * w1 + hy[i + s - 1] * n0
-                                 + hy[i + s] * n1);
+        const sw_real w0 = vv[i - 1], w1 = vv[i], n0 = vv[i + s - 1], n1 = vv[i + s];
+        const sw_real rot = q * (hy[i - 1] * w0 + hy[i] * w1 + hy[i + s - 1] * n0 + hy[i + s] * n1);
         sw_real rho = rho0 * sh[i];
         if (drag) {
             const sw_real vbar = (sw_real)0.25 * (w0 + w1 + n0 + n1);
             rho += dtc * cd[i] * sh[i] * sh[i] * (sw_real)sqrt(u[i] * u[i] + vbar * vbar);
         }
-        u[i] = sw_terms_update(u[i], H, -gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s]), rot, rho);
+        u[i] = sw_terms_update(u[i], hx[i], -gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s]), rot, rho);
     }
 }
 
 SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag)
 {
     sw_real *restrict vv = SW_V(v, v);
-    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
+    const sw_real *restrict eta = SW_V(v, eta), *restrict hy = SW_V(v, hy);
     const sw_real *restrict u = SW_V(v, u), *restrict cd = drag ? (const sw_real *)v->terms->drag_y : NULL;
     const sw_real *restrict sh = v->terms->share_y;
     const sw_real gy = (sw_real)(0.25 * v->g * v->dt_s / v->dy_m);
-    const sw_real qn = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.25 * v->dt_s * v->terms->f_face[j - 1]);
+    const sw_real qn = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j - 1]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r; i <= r + v->nx; i++) {
         const sw_real H = hy[i], n0 = u[i], n1 = u[i + 1], s0 = u[i - s], s1 = u[i - s + 1];
-        const sw_real rot = qn * (H * (n0 + n1) + hx[i] * n0 + hx[i + 1] * n1)
-                          + qs * (H * (s0 + s1) + hx[i - s] * s0 + hx[i - s + 1] * s1);
+        const sw_real rot = H * (qn * (n0 + n1) + qs * (s0 + s1));
         sw_real rho = rho0 * sh[i];
         if (drag) {
             const sw_real ubar = (sw_real)0.25 * (n0 + n1 + s0 + s1);
@@ -371,7 +370,7 @@ static void d_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 #endif
 
 /* E* (layout.h), velocity points counted once (a periodic edge's halo copy left out), with the
- * rotation share (dt/2) u.K v: each u point's four v neighbours, K = (f / 8) (hx + hy). */
+ * rotation share (dt/2) u.K v: each u point's four v neighbours, K = (f / 4) hy. */
 static double d_energy(const sw_view *v)
 {
     const size_t nx = v->nx, ny = v->ny, s = v->stride, c0 = sw_first_col(v), r0 = sw_first_row(v);
@@ -392,13 +391,13 @@ static double d_energy(const sw_view *v)
             kin += (double)hx[i] * u[i] * u[i];
             double pair = 0;
             for (size_t a = i; a <= i + s; a += s)   /* v of rows j and j+1, west and east */
-                pair += ((double)hx[i] + hy[a - 1]) * vv[a - 1] + ((double)hx[i] + hy[a]) * vv[a];
+                pair += (double)hy[a - 1] * vv[a - 1] + (double)hy[a] * vv[a];
             rot += v->terms->f_face[j] * u[i] * pair;
         }
     for (size_t j = 1; j <= ny; j++)     /* v: rows 1 .. ny, columns 0 (the west edge's faces) .. nx */
         for (size_t i = j * s + c0; i <= j * s + nx; i++)
             kin += (double)hy[i] * vv[i] * vv[i];
-    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + dt / 16 * rot) * dx * dy;
+    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + dt / 8 * rot) * dx * dy;
 }
 
 /* Stages: continuity of row j reads u of rows j-1, j and v of rows j-1 .. j+1; u of row j (its north

@@ -14,6 +14,8 @@
 #include "base/omp_compat.h"
 #include "base/real.h"
 #include "observers/tracker.h"
+#include "base/fpmode.h"
+#include "studies/bench_reference.h"
 
 #define MAX_ROUNDS 32
 #define MEASURE_S 0.4   /* aim for measurements of about this long */
@@ -92,8 +94,14 @@ double sw_bench_triad(size_t n, int repeats)
  * (rising and falling water): a hump an eighth of the basin wide keeps a quarter of the grid changing. */
 #define SOURCE_CELLS 20.0
 
-/* A square basin of n x n cells, 1000 m deep, with a hump, at 90 % of the layout's limit. */
-static sw_model *make_model(const sw_layout *lay, size_t n, sw_precision precision, sw_error *err)
+/* The terms of the "with terms" figures: rotation at about 43 deg and a typical linear friction rate. */
+static const sw_terms_config BENCH_TERMS = {.rotation = SW_ROTATION_F_PLANE, .f0_s = 1e-4,
+                                            .friction = SW_FRICTION_LINEAR, .friction_rate_ms = 1e-3};
+
+/* A square basin of n x n cells, 1000 m deep, with a hump, at 90 % of the layout's limit, with the given
+ * terms (NULL: none). */
+static sw_model *make_model(const sw_layout *lay, size_t n, sw_precision precision, const sw_terms_config *terms,
+                            sw_error *err)
 {
     sw_grid g = {.nx = n, .ny = n, .dx_m = 1000, .dy_m = 1000};
     double *depth = malloc(n * n * sizeof(double));
@@ -111,7 +119,9 @@ static sw_model *make_model(const sw_layout *lay, size_t n, sw_precision precisi
             }
         sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta, .min_depth_m = 1,
                                .gravity_ms2 = 9.81, .precision = precision};
-        cfg.dt_s = 0.9 * sw_model_dt_limit(lay, &g, depth, 1, 9.81, 2);
+        if (terms)
+            cfg.terms = *terms;
+        cfg.dt_s = 0.9 * sw_model_dt_limit(lay, &g, depth, 1, 9.81, 2);   /* the same dt with or without terms */
         sw_model_create(&cfg, &m, err);
     }
     free(depth);
@@ -136,6 +146,46 @@ static double time_steps(sw_model *m, sw_tracker *t, int threads, int steps)
     double wall = omp_get_wtime() - t0;
     sw_tracker_attach(NULL, m, NULL);
     return wall;
+}
+
+/* The same as time_steps without tracking, through the pre-stepper C step (bench_reference.c). */
+static double time_reference_steps(sw_model *m, int threads, int steps)
+{
+    omp_set_num_threads(threads);
+    void (*step)(sw_model *) = sw_model_precision(m) == SW_SINGLE ? sw_bench_reference_c_step_f32
+                                                                 : sw_bench_reference_c_step_f64;
+    double t0 = omp_get_wtime();
+    SW_OMP(parallel)
+    {
+        const unsigned int saved = sw_fp_flush();
+        for (int k = 0; k < steps; k++) {
+            step(m);
+            SW_OMP(single)
+            sw_model_tick(m);
+        }
+        sw_fp_restore(saved);
+    }
+    return omp_get_wtime() - t0;
+}
+
+/* 1 when the pre-stepper C step and the stepper leave the same bits after 50 steps of two models built
+ * alike (a benchmark that checks its reference computes the same thing). */
+static int reference_identical(size_t n, sw_precision precision, int threads)
+{
+    sw_model *a = make_model(sw_layout_find("C"), n, precision, NULL, NULL);
+    sw_model *b = make_model(sw_layout_find("C"), n, precision, NULL, NULL);
+    int same = a && b;
+    if (same) {
+        time_steps(a, NULL, threads, 50);
+        time_reference_steps(b, threads, 50);
+        for (size_t k = 0; k < n * n && same; k++) {
+            const double x = sw_model_eta(a, k % n, k / n), y = sw_model_eta(b, k % n, k / n);
+            same = memcmp(&x, &y, sizeof x) == 0;
+        }
+    }
+    sw_model_free(a);
+    sw_model_free(b);
+    return same;
 }
 
 /* Steps that make a measurement last about MEASURE_S, from one timed step. */
@@ -185,8 +235,11 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
 
     snprintf(what, sizeof what, "layout %s: building the %zu x %zu grid", lay->name, res->n_large, res->n_large);
     say(opt, what);
-    sw_model *big = make_model(lay, res->n_large, opt->precision, err);
-    sw_model *small = big ? make_model(lay, res->n_small, opt->precision, err) : NULL;
+    sw_model *big = make_model(lay, res->n_large, opt->precision, NULL, err);
+    sw_model *small = big ? make_model(lay, res->n_small, opt->precision, NULL, err) : NULL;
+    /* a second large model for the step with terms (chosen at creation); without memory for it, no figure */
+    sw_model *big_terms = small ? make_model(lay, res->n_large, opt->precision, &BENCH_TERMS, NULL) : NULL;
+    const int is_c = !strcmp(lay->name, "C");
     sw_tracker *tr = NULL;
     if (small && sw_tracker_create(big, 0.01, top, &tr, err) != SW_OK)
         tr = NULL;
@@ -197,6 +250,7 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
         return err->code ? err->code : sw_fail(err, SW_ERR_NOMEM, "out of memory for the benchmark");
     }
     int steps_big = steps_for(big, top), steps_small = steps_for(small, top);
+    samples lgt = {0}, rt = {0}, ref = {0}, rr = {0};
     const double cells = (double)res->n_large * (double)res->n_large;
     const double cells_small = (double)res->n_small * (double)res->n_small;
     samples tri = {0}, lg = {0}, lt = {0}, sm = {0}, sc[SW_BENCH_MAX_THREADS] = {{{0}, 0}}, np = {0}, npc = {0};
@@ -206,7 +260,18 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
         say(opt, what);
         omp_set_num_threads(top);
         push(&tri, sw_bench_triad(triad_n, 3));
-        push(&lg, cells * steps_big / time_steps(big, NULL, top, steps_big));
+        const double plain = cells * steps_big / time_steps(big, NULL, top, steps_big);
+        push(&lg, plain);
+        if (big_terms) {
+            const double with = cells * steps_big / time_steps(big_terms, NULL, top, steps_big);
+            push(&lgt, with);
+            push(&rt, with / plain);
+        }
+        if (is_c) {
+            const double old = cells * steps_big / time_reference_steps(big, top, steps_big);
+            push(&ref, old);
+            push(&rr, plain / old);
+        }
         push(&lt, cells * steps_big / time_steps(big, tr, top, steps_big));
         push(&sm, cells_small * steps_small / time_steps(small, NULL, top, steps_small));
         for (int q = 0; q < res->n_threads; q++)
@@ -221,6 +286,12 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
     }
     out->triad = summarise(&tri);
     out->large = summarise(&lg);
+    out->large_terms = summarise(&lgt);
+    out->terms_ratio = summarise(&rt).median;
+    out->reference = summarise(&ref);
+    out->reference_ratio = summarise(&rr).median;
+    if (is_c)
+        out->reference_identical = reference_identical(res->n_small, opt->precision, top);
     out->large_tracked = summarise(&lt);
     out->small = summarise(&sm);
     for (int q = 0; q < res->n_threads; q++)
@@ -242,6 +313,7 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
                      opt->python);
     }
     sw_tracker_free(tr);
+    sw_model_free(big_terms);
     sw_model_free(small);
     sw_model_free(big);
     return SW_OK;
@@ -320,6 +392,10 @@ void sw_bench_print(FILE *f, const sw_bench_result *res)
         print_stat(f, "triad bandwidth", l->triad, 1e9, "GB/s");
         print_stat(f, "step, large grid", l->large, 1e6, "M cell-updates/s");
         print_stat(f, "step + tracking, large grid", l->large_tracked, 1e6, "M cell-updates/s");
+        if (l->large_terms.n)
+            print_stat(f, "step + rotation + friction, large", l->large_terms, 1e6, "M cell-updates/s");
+        if (l->reference.n)
+            print_stat(f, "pre-stepper C step, large grid", l->reference, 1e6, "M cell-updates/s");
         print_stat(f, "step, cache-resident grid", l->small, 1e6, "M cell-updates/s");
         for (int t = 0; t < res->n_threads; t++) {
             char label[48];
@@ -330,6 +406,14 @@ void sw_bench_print(FILE *f, const sw_bench_result *res)
                "segments); parallel efficiency %d -> %d threads %.0f %%\n",
                l->bandwidth / 1e9, l->bandwidth_ratio, 100 * l->tracking_cost, 100 * l->tracking_active,
                res->threads[0], res->threads[res->n_threads - 1], 100 * l->efficiency_2);
+        if (l->large_terms.n)
+            fprintf(f, "  with rotation and linear friction: %.3f x the plain step (median of the rounds' ratios)\n",
+                    l->terms_ratio);
+        else
+            fprintf(f, "  with rotation and linear friction: not measured (no memory for a second large grid)\n");
+        if (l->reference.n)
+            fprintf(f, "  the stepper: %.3f x the pre-stepper C step (median of the rounds' ratios); the two leave %s\n",
+                    l->reference_ratio, l->reference_identical ? "the same bits" : "DIFFERENT bits");
     }
     if (res->numpy.n > 0)
         fprintf(f, "\nNumPy C-layout step: %.3g M cell-updates/s; shoreward C in the same rounds %.3g M: %.1f x\n",
@@ -379,6 +463,13 @@ char *sw_bench_json(const sw_bench_result *res)
         cJSON_AddNumberToObject(e, "tracking_cost", l->tracking_cost);
         cJSON_AddNumberToObject(e, "tracking_active_share", l->tracking_active);
         cJSON_AddNumberToObject(e, "parallel_efficiency", l->efficiency_2);
+        cJSON_AddItemToObject(e, "large_terms", stat_json(l->large_terms));
+        cJSON_AddNumberToObject(e, "terms_ratio", l->terms_ratio);
+        if (l->reference.n) {
+            cJSON_AddItemToObject(e, "reference", stat_json(l->reference));
+            cJSON_AddNumberToObject(e, "reference_ratio", l->reference_ratio);
+            cJSON_AddBoolToObject(e, "reference_identical", l->reference_identical);
+        }
         cJSON_AddItemToArray(ls, e);
     }
     cJSON *np = cJSON_AddObjectToObject(o, "numpy");

@@ -51,6 +51,14 @@ typedef struct {
     double tracking_active;     /* share of row segments whose maps the tracked steps rewrote (the cost
                                  * grows with it: quiet water costs a compare per segment) */
     double efficiency_2;        /* parallel efficiency from 1 thread to the most threads */
+    sw_bench_stat large_terms;  /* step with rotation and linear friction (f = 1e-4 s-1, r = 1 mm/s), large grid;
+                                 * n = 0 when the second large model did not fit in memory */
+    double terms_ratio;         /* median over rounds of (step with terms / plain step) measured in the same round */
+    sw_bench_stat reference;    /* C only: the pre-stepper C step (bench_reference.h) on the same model; n = 0
+                                 * for the other layouts */
+    double reference_ratio;     /* C only: median over rounds of (stepper / pre-stepper step), same round */
+    int reference_identical;    /* C only: 1 when the pre-stepper step and the stepper left the same bits
+                                 * after 50 steps on the cache-resident grid (checked once), else 0 */
 } sw_bench_layout;
 
 typedef struct {
