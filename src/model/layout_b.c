@@ -89,10 +89,8 @@ static void b_prepare(sw_prep *p)
             size_t c = sw_pad(v, i, j);
             hx[c] = u_ok ? (sw_real)per_f : 0;
             hy[c] = v_ok ? (sw_real)per_f : 0;
-            if (p->share_x) {   /* 1 / f = 4 / n */
-                SW_V(p, share_x)[c] = u_ok ? (sw_real)(4.0 / n) : 0;
-                SW_V(p, share_y)[c] = v_ok ? (sw_real)(4.0 / n) : 0;
-            }
+            if (p->share_x)   /* 3 / f = 12 / n, whether or not u and v flow (hx, hy say that) */
+                p->share_x[c] = p->share_y[c] = sw_share_code(n);
         }
 }
 
@@ -186,28 +184,29 @@ static void b_momentum(const sw_view *v, size_t j)
  * the corner line (hx = hy where both flow, and both hold f * velocity: the rotation of the stored pair is
  * the rotation of the velocity). The corners store f * velocity with hx = h / f, so the friction rate
  * r / h of the velocity is that of the stored value when rho carries 1 / f (share): rho = dt r / f, and
- * for quadratic friction, |velocity| = |stored| / f, rho = dt Cd |stored| / f^2. */
+ * for quadratic friction, |velocity| = |stored| / f, rho = dt Cd |stored| / f^2. u and v of a corner
+ * have one f, read from share_x (the byte 3 / f: the thirds are folded into rho0 and dtc). */
 SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag)
 {
     sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
     const sw_real *restrict cdx = drag ? (const sw_real *)v->terms->drag_x : NULL;
     const sw_real *restrict cdy = drag ? (const sw_real *)v->terms->drag_y : NULL;
-    const sw_real *restrict shx = v->terms->share_x, *restrict shy = v->terms->share_y;
+    const uint8_t *restrict sh = v->terms->share_x;   /* 3 / f of the corner, for u and v alike */
     const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
     const sw_real F = (sw_real)(v->dt_s * v->terms->f_face[j]);
-    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r; i <= r + v->nx; i++) {
-        const sw_real Hx = hx[i], Hy = hy[i], u0 = u[i], v0 = vv[i];
-        sw_real rx = rho0 * shx[i], ry = rho0 * shy[i];
+        const sw_real Hx = hx[i], Hy = hy[i], u0 = u[i], v0 = vv[i], c = (sw_real)sh[i];
+        sw_real rx = rho0 * c, ry = rho0 * c;
         if (drag)
-            rx += dtc * cdx[i] * shx[i] * shx[i] * (sw_real)sqrt(u0 * u0 + v0 * v0);
+            rx += dtc * cdx[i] * (c * c) * (sw_real)sqrt(u0 * u0 + v0 * v0);
         const sw_real u1 = sw_terms_update(u0, Hx, -gx * (eta[i + 1] + eta[i + s + 1] - eta[i] - eta[i + s]),
                                            2 * Hx * F * v0, rx);
         if (drag)
-            ry += dtc * cdy[i] * shy[i] * shy[i] * (sw_real)sqrt(u1 * u1 + v0 * v0);
+            ry += dtc * cdy[i] * (c * c) * (sw_real)sqrt(u1 * u1 + v0 * v0);
         u[i] = u1;
         vv[i] = sw_terms_update(v0, Hy, -gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]), -2 * Hy * F * u1, ry);
     }

@@ -77,8 +77,8 @@ static double d_max_frequency(double gh, double dx, double dy, int dims)
 
 /* Flux depth (h_c / f) of the velocity on the face between cells o1 and o2 (its "own" cells), with
  * the stencil pairs (a1, b1) and (a2, b2) that must match; 0 when it may not flow. Cells are given
- * as (i, j) pairs. *share gets 1 / f (0 when it may not flow). */
-static double d_face_depth(const sw_prep *p, const ptrdiff_t own[4], const ptrdiff_t st[8], double *share)
+ * as (i, j) pairs. *share gets sw_share_code of the point (0 when it may not flow). */
+static double d_face_depth(const sw_prep *p, const ptrdiff_t own[4], const ptrdiff_t st[8], uint8_t *share)
 {
     *share = 0;
     double h1, h2, d[4];
@@ -91,7 +91,7 @@ static double d_face_depth(const sw_prep *p, const ptrdiff_t own[4], const ptrdi
     if (n == 0 || s0 != s1 || s2 != s3)
         return 0;
     double hc = (h1 + h2) / (w1 + w2);
-    *share = 4.0 / n;
+    *share = sw_share_code(n);
     return hc * 4.0 / n;
 }
 
@@ -114,10 +114,11 @@ static void d_prepare(sw_prep *p)
             const ptrdiff_t st[8] = {i - 1, j, i + 1, j, i - 1, j + 1, i + 1, j + 1};
             /* on a south or north open/level edge line u would difference lagging ghosts: held at 0 */
             int edge_line = (j == -1 && d_ghost_line(p, SW_SOUTH)) || (j == ny - 1 && d_ghost_line(p, SW_NORTH));
-            double share, depth = d_face_depth(p, own, st, &share);
+            uint8_t share;
+            double depth = d_face_depth(p, own, st, &share);
             hx[sw_pad(v, i, j)] = edge_line ? 0 : (sw_real)depth;
             if (p->share_x)
-                SW_V(p, share_x)[sw_pad(v, i, j)] = edge_line ? 0 : (sw_real)share;
+                p->share_x[sw_pad(v, i, j)] = edge_line ? 0 : share;
         }
     /* v on the east face of (i, j): own (i, j), (i+1, j); pairs (i, j-1)~(i, j+1), (i+1, j-1)~(i+1, j+1) */
     for (ptrdiff_t j = 0; j < ny; j++)
@@ -125,10 +126,11 @@ static void d_prepare(sw_prep *p)
             const ptrdiff_t own[4] = {i, j, i + 1, j};
             const ptrdiff_t st[8] = {i, j - 1, i, j + 1, i + 1, j - 1, i + 1, j + 1};
             int edge_line = (i == -1 && d_ghost_line(p, SW_WEST)) || (i == nx - 1 && d_ghost_line(p, SW_EAST));
-            double share, depth = d_face_depth(p, own, st, &share);
+            uint8_t share;
+            double depth = d_face_depth(p, own, st, &share);
             hy[sw_pad(v, i, j)] = edge_line ? 0 : (sw_real)depth;
             if (p->share_y)
-                SW_V(p, share_y)[sw_pad(v, i, j)] = edge_line ? 0 : (sw_real)share;
+                p->share_y[sw_pad(v, i, j)] = edge_line ? 0 : share;
         }
     /* Ghost normal velocities live on the two along-edge faces of each ghost cell: the face at +t
      * (index ghost) always, the face at -t (index ghost - t) when no ghost of the same edge owns it.
@@ -261,19 +263,20 @@ SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag)
     sw_real *restrict u = SW_V(v, u);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
     const sw_real *restrict vv = SW_V(v, v), *restrict cd = drag ? (const sw_real *)v->terms->drag_x : NULL;
-    const sw_real *restrict sh = v->terms->share_x;
+    const uint8_t *restrict sh = v->terms->share_x;   /* 3 / f */
     const sw_real gx = (sw_real)(0.25 * v->g * v->dt_s / v->dx_m);
     const sw_real q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]);
-    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + v->nx; i++) {
         const sw_real w0 = vv[i - 1], w1 = vv[i], n0 = vv[i + s - 1], n1 = vv[i + s];
         const sw_real rot = q * (hy[i - 1] * w0 + hy[i] * w1 + hy[i + s - 1] * n0 + hy[i + s] * n1);
-        sw_real rho = rho0 * sh[i];
+        const sw_real c = (sw_real)sh[i];
+        sw_real rho = rho0 * c;
         if (drag) {
             const sw_real vbar = (sw_real)0.25 * (w0 + w1 + n0 + n1);
-            rho += dtc * cd[i] * sh[i] * sh[i] * (sw_real)sqrt(u[i] * u[i] + vbar * vbar);
+            rho += dtc * cd[i] * (c * c) * (sw_real)sqrt(u[i] * u[i] + vbar * vbar);
         }
         u[i] = sw_terms_update(u[i], hx[i], -gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s]), rot, rho);
     }
@@ -284,19 +287,20 @@ SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag)
     sw_real *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hy = SW_V(v, hy);
     const sw_real *restrict u = SW_V(v, u), *restrict cd = drag ? (const sw_real *)v->terms->drag_y : NULL;
-    const sw_real *restrict sh = v->terms->share_y;
+    const uint8_t *restrict sh = v->terms->share_y;
     const sw_real gy = (sw_real)(0.25 * v->g * v->dt_s / v->dy_m);
     const sw_real qn = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j - 1]);
-    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r; i <= r + v->nx; i++) {
         const sw_real H = hy[i], n0 = u[i], n1 = u[i + 1], s0 = u[i - s], s1 = u[i - s + 1];
         const sw_real rot = H * (qn * (n0 + n1) + qs * (s0 + s1));
-        sw_real rho = rho0 * sh[i];
+        const sw_real c = (sw_real)sh[i];
+        sw_real rho = rho0 * c;
         if (drag) {
             const sw_real ubar = (sw_real)0.25 * (n0 + n1 + s0 + s1);
-            rho += dtc * cd[i] * sh[i] * sh[i] * (sw_real)sqrt(vv[i] * vv[i] + ubar * ubar);
+            rho += dtc * cd[i] * (c * c) * (sw_real)sqrt(vv[i] * vv[i] + ubar * ubar);
         }
         vv[i] = sw_terms_update(vv[i], H, -gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1]), -rot, rho);
     }

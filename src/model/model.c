@@ -42,8 +42,9 @@ size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision, const sw_lay
     const size_t size = sw_precision_bytes(precision);
     const size_t n_pad = stride_for(g, size) * (g->ny + 2);
     const sw_terms_variant v = terms ? sw_terms_variant_of(terms) : SW_TERMS_PLAIN;
-    size_t arrays = 6 + (v == SW_TERMS_DRAG ? 2 : 0) + (v != SW_TERMS_PLAIN && layout && layout->transport_weighted ? 2 : 0);
-    return arrays * n_pad * size + g->nx * g->ny + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell)
+    const size_t arrays = 6 + (v == SW_TERMS_DRAG ? 2 : 0);
+    const size_t share_bytes = v != SW_TERMS_PLAIN && layout && layout->transport_weighted ? 2 * n_pad : 0;
+    return arrays * n_pad * size + share_bytes + g->nx * g->ny + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell)
          + 2 * (g->ny + 2) * sizeof(double);
 }
 
@@ -113,18 +114,24 @@ double sw_model_courant(const sw_grid *g, double h_max_m, double gravity_ms2, do
 
 /* Refreshes the halo of padded field f beyond periodic edges: the cells of the opposite side (rows
  * after columns, so that the corners follow too). For set-up; the stepper keeps the halo during steps. */
-static void wrap_halo(sw_model *m, void *f)
+static void wrap_halo_bytes(const sw_model *m, void *f, size_t size)
 {
-    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride, size = sw_precision_bytes(m->precision);
+    const size_t nx = m->grid.nx, ny = m->grid.ny, s = m->stride;
+    char *b = f;
     if (m->edges[SW_WEST] == SW_EDGE_PERIODIC)
         for (size_t j = 0; j < ny + 2; j++) {
-            sw_model_put(m, f, j * s, sw_model_get(m, f, j * s + nx));
-            sw_model_put(m, f, j * s + nx + 1, sw_model_get(m, f, j * s + 1));
+            memcpy(b + j * s * size, b + (j * s + nx) * size, size);
+            memcpy(b + (j * s + nx + 1) * size, b + (j * s + 1) * size, size);
         }
     if (m->edges[SW_SOUTH] == SW_EDGE_PERIODIC) {
-        memcpy(f, (char *)f + ny * s * size, s * size);
-        memcpy((char *)f + (ny + 1) * s * size, (char *)f + s * size, s * size);
+        memcpy(b, b + ny * s * size, s * size);
+        memcpy(b + (ny + 1) * s * size, b + s * size, s * size);
     }
+}
+
+static void wrap_halo(sw_model *m, void *f)
+{
+    wrap_halo_bytes(m, f, sw_precision_bytes(m->precision));
 }
 
 /* Every ghost elevation at the fixed point of its update (sw_edge_cell) for the present inner
@@ -344,10 +351,10 @@ static sw_status build_terms(sw_model *m, sw_error *err)
     for (size_t k = 0; k < m->n_pad; k++)
         for (int q = 0; q < 2; q++) {
             /* the water depth at the point: hx, or on transport-weighted layouts hx f = hx / share */
-            const void *share = q ? m->terms.share_y : m->terms.share_x;
+            const uint8_t *share = q ? m->terms.share_y : m->terms.share_x;   /* 3 / f */
             double h = sw_model_get(m, q ? m->view.hy : m->view.hx, k);
             if (h > 0 && share)
-                h /= sw_model_get(m, share, k);
+                h = share[k] > 0 ? h * 3.0 / share[k] : 0;
             if (h > 0)
                 sw_model_put(m, q ? dy : dx, k,
                              c->friction == SW_FRICTION_QUADRATIC ? c->drag : m->g * c->manning_n * c->manning_n / cbrt(h));
@@ -435,12 +442,12 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     sw_prep prep = {.f = *v, .edge = m->edge, .n_edge = m->n_edge};
     if (rc == SW_OK) {
         if (m->layout->transport_weighted && sw_terms_variant_of(&m->terms_cfg) != SW_TERMS_PLAIN) {
-            m->share = alloc_field(2 * (g->ny + 2), m->stride, size);
+            m->share = alloc_field(2 * (g->ny + 2), m->stride, 1);
             if (!m->share)
                 rc = sw_fail(err, SW_ERR_NOMEM, "out of memory for the velocity points' water fractions");
             else {
                 prep.share_x = m->share;
-                prep.share_y = (char *)m->share + m->n_pad * size;
+                prep.share_y = m->share + m->n_pad;
             }
         }
     }
@@ -454,8 +461,8 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
         wrap_halo(m, v->u);
         wrap_halo(m, v->v);
         if (m->share) {
-            wrap_halo(m, prep.share_x);
-            wrap_halo(m, prep.share_y);
+            wrap_halo_bytes(m, prep.share_x, 1);
+            wrap_halo_bytes(m, prep.share_y, 1);
             m->terms.share_x = prep.share_x;
             m->terms.share_y = prep.share_y;
         }

@@ -44,8 +44,8 @@ struct sw_model {
     sw_terms terms;              /* what the kernels read (view.terms points here) */
     double *f_rows;              /* [2 (ny + 2)] owned: terms.f_centre, then terms.f_face */
     void *drag;                  /* [2 n_pad] owned: terms.drag_x, then drag_y (quadratic friction), or NULL */
-    void *share;                 /* [2 n_pad] owned: terms.share_x, then share_y (transport-weighted layouts
-                                  * with terms), or NULL */
+    uint8_t *share;              /* [2 n_pad] owned: terms.share_x, then share_y (bytes; transport-weighted
+                                  * layouts with terms), or NULL */
 
     size_t n_edge;       /* ghost cells of open and level edges */
     sw_edge_cell *edge;  /* [n_edge], sorted by the padded row of their inner cell */

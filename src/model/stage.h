@@ -99,9 +99,9 @@ typedef struct {
     sw_view f;            /* f.edges: the edge kinds */
     sw_edge_cell *edge;   /* [n_edge] */
     size_t n_edge;
-    void *share_x, *share_y;  /* [n_pad] sw_real to fill with 1 / f at each velocity point that flows (f
-                               * its water fraction; terms.h), on transport-weighted layouts; NULL when
-                               * no term needs them */
+    uint8_t *share_x, *share_y;  /* [n_pad] to fill with sw_share_code of each velocity point that flows
+                                  * (terms.h), on transport-weighted layouts; NULL when no term needs
+                                  * them */
 } sw_prep;
 
 /* What a cell of the halo-extended grid (-1 <= i <= nx, -1 <= j <= ny) is to a stencil. */

@@ -16,6 +16,7 @@
 #define SW_TERMS_H
 
 #include <stddef.h>
+#include <stdint.h>
 
 typedef enum {
     SW_ROTATION_NONE = 0,   /* f = 0 */
@@ -64,13 +65,23 @@ typedef struct sw_terms {
     const void *drag_x;       /* [n_pad] sw_real: quadratic drag coefficient at each u point (the same
                                * padded index as u), dimensionless; NULL unless the variant is DRAG */
     const void *drag_y;       /* [n_pad] the same at v points */
-    const void *share_x;      /* [n_pad] sw_real, on layouts whose velocity points can stand for part of a
-                               * cell's area (B, D: sw_layout.transport_weighted): 1 / f at each u point,
-                               * f its water fraction (1 in open water, 1/2 along a wall), which turns the
-                               * friction rate of the velocity into that of the stored f * velocity;
-                               * NULL on the other layouts and without terms */
-    const void *share_y;      /* [n_pad] the same at v points */
+    const uint8_t *share_x;   /* [n_pad] on layouts whose velocity points can stand for part of a cell's
+                               * area (B, D: sw_layout.transport_weighted): 3 / f at each u point in a
+                               * byte (sw_share_code), f = n / 4 its water fraction (1 in open water, 1/2
+                               * along a wall), which turns the friction rate of the velocity into that of
+                               * the stored f * velocity; NULL on the other layouts and without terms.
+                               * A byte, not a real: the step reads it at every point, and four bytes
+                               * there cost a quarter of the step's memory traffic */
+    const uint8_t *share_y;   /* [n_pad] the same at v points */
 } sw_terms;
+
+/* The byte stored for a velocity point whose control area holds n_water (1..4) water cells of its
+ * four: 3 / f = 12 / n_water (12, 6, 4, 3), exact; 0 for none. A kernel multiplies by it and by a third
+ * folded into its constant (rho = (dt r / 3) code). */
+static inline uint8_t sw_share_code(int n_water)
+{
+    return n_water > 0 && n_water <= 4 ? (uint8_t)(12 / n_water) : 0;
+}
 
 /* Short words for plans and file attributes: "none", "f-plane", "beta-plane"; "none", "linear",
  * "quadratic", "manning". */
