@@ -19,6 +19,7 @@
 #include <math.h>
 
 #include "model/layout.h"
+#include "model/momentum_colocated.h"
 #include "model/stage.h"
 #include "base/omp_compat.h"
 
@@ -101,50 +102,10 @@ static void a_continuity_observed(const sw_view *v, size_t j, size_t f, float *b
     sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, a_eta_cell, a_centre_cell);
 }
 
-/* Momentum (backward: from the new eta of this row and its two neighbours) on padded row j. */
-static void a_momentum(const sw_view *v, size_t j)
-{
-    sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
-    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
-    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
-    const size_t s = v->stride, r = j * s;
-    SW_OMP(simd)
-    for (size_t i = r + 1; i <= r + v->nx; i++) {
-        u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i - 1]) : 0;
-        vv[i] = hy[i] > 0 ? vv[i] - gy * (eta[i + s] - eta[i - s]) : 0;
-    }
-}
-
-/* Momentum with rotation and friction (terms.h, docs/terms.md): u from the old v at the same point,
- * then v from the new u, F = f dt at the cell centres; where both flow hx = hy, so the pair weight is
- * f h and rotation does no work. With `drag` the friction adds Cd |U| dt (old u and v for u, new u and
- * old v for v). */
-SW_INLINE void a_momentum_terms(const sw_view *v, size_t j, const int drag)
-{
-    sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
-    const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
-    const sw_real *restrict cdx = drag ? (const sw_real *)v->terms->drag_x : NULL;
-    const sw_real *restrict cdy = drag ? (const sw_real *)v->terms->drag_y : NULL;
-    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
-    const sw_real F = (sw_real)(v->dt_s * v->terms->f_centre[j]);
-    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
-    const size_t s = v->stride, r = j * s;
-    SW_OMP(simd)
-    for (size_t i = r + 1; i <= r + v->nx; i++) {
-        const sw_real Hx = hx[i], Hy = hy[i], u0 = u[i], v0 = vv[i];
-        sw_real rx = rho0, ry = rho0;
-        if (drag)
-            rx += dtc * cdx[i] * (sw_real)sqrt(u0 * u0 + v0 * v0);
-        const sw_real u1 = sw_terms_update(u0, Hx, -gx * (eta[i + 1] - eta[i - 1]), 2 * Hx * F * v0, rx);
-        if (drag)
-            ry += dtc * cdy[i] * (sw_real)sqrt(u1 * u1 + v0 * v0);
-        u[i] = u1;
-        vv[i] = sw_terms_update(v0, Hy, -gy * (eta[i + s] - eta[i - s]), -2 * Hy * F * u1, ry);
-    }
-}
-
-static void a_momentum_linear(const sw_view *v, size_t j) { a_momentum_terms(v, j, 0); }
-static void a_momentum_drag(const sw_view *v, size_t j) { a_momentum_terms(v, j, 1); }
+/* Momentum on padded row j, plain and with the terms: the co-located stencil (momentum_colocated.h). */
+static void a_momentum(const sw_view *v, size_t j) { sw_colocated_momentum(v, j); }
+static void a_momentum_linear(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0); }
+static void a_momentum_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1); }
 
 /* Ghost normal velocities: the outgoing wave's (open) or the inner cell's mirror (level). */
 static void a_edge_velocities(const sw_view *v, const sw_edge_cell *cells, size_t q0, size_t q1)
