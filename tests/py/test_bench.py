@@ -29,6 +29,14 @@ for lay in doc["layouts"]:
             lay["small"]["median"]] + [s["median"] for s in lay["scaling"]]
     check(all(f > 0 for f in figs) and lay["values_per_cell"] > 0,
           "layout %s: every figure measured and positive" % lay["layout"])
+    check(lay["large_terms"]["n"] == 3 and lay["large_terms"]["median"] > 0 and lay["terms_ratio"] > 0,
+          "layout %s: the step with rotation and friction measured beside the plain one" % lay["layout"])
+    if lay["layout"] == "C":
+        # the pre-stepper C step kept in bench_reference.c must compute what the stepper computes
+        check(lay["reference"]["median"] > 0 and lay["reference_ratio"] > 0 and lay["reference_identical"] is True,
+              "layout C: the pre-stepper step measured, and it leaves the stepper's bits")
+check(any(lay["layout"] == "C" and "reference_identical" in lay for lay in doc["layouts"]),
+      "the C layout reports the comparison with the pre-stepper step")
 check(doc["numpy"]["rate"]["n"] == 3 and doc["numpy"]["ratio"] > 0, "NumPy comparison measured in every round")
 print("%d failed" % len(FAILURES))
 sys.exit(1 if FAILURES else 0)
