@@ -19,7 +19,7 @@
 #include <math.h>
 
 #include "model/layout.h"
-#include "model/momentum_colocated.h"
+#include "model/colocated.h"
 #include "model/stage.h"
 #include "base/omp_compat.h"
 
@@ -102,7 +102,7 @@ static void a_continuity_observed(const sw_view *v, size_t j, size_t f, float *b
     sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, a_eta_cell, a_centre_cell);
 }
 
-/* Momentum on padded row j, plain and with the terms: the co-located stencil (momentum_colocated.h). */
+/* Momentum on padded row j, plain and with the terms: the co-located stencil (colocated.h). */
 static void a_momentum(const sw_view *v, size_t j) { sw_colocated_momentum(v, j); }
 static void a_momentum_linear(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0); }
 static void a_momentum_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1); }
@@ -138,29 +138,14 @@ static void a_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, f
 #if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static void a_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 {
-    o->div_x = o->grad_x = I * sin(k * dx) / dx;
-    o->div_y = o->grad_y = I * sin(l * dy) / dy;
-    o->v_at_u = o->u_at_v = 1;   /* co-located */
+    sw_colocated_symbols(k, l, dx, dy, o);
 }
 #endif
 
-/* E* (layout.h), with the rotation share (dt/2) f h u v at each point (hx = hy where both flow). */
+/* E* (layout.h), each point standing for dx dy, with the rotation share (colocated.h). */
 static double a_energy(const sw_view *v)
 {
-    const size_t nx = v->nx, ny = v->ny, s = v->stride;
-    const double dx = v->dx_m, dy = v->dy_m, dt = v->dt_s;
-    const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
-    double pot = 0, kin = 0, cross = 0, rot = 0;
-    for (size_t j = 1; j <= ny; j++)
-        for (size_t i = j * s + 1; i <= j * s + nx; i++) {
-            double div = ((double)hx[i + 1] * u[i + 1] - (double)hx[i - 1] * u[i - 1]) / (2 * dx)
-                       + ((double)hy[i + s] * vv[i + s] - (double)hy[i - s] * vv[i - s]) / (2 * dy);
-            pot += (double)eta[i] * eta[i];
-            kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * vv[i] * vv[i];
-            cross += eta[i] * div;
-            rot += v->terms->f_centre[j] * hx[i] * u[i] * vv[i];
-        }
-    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + 0.5 * dt * rot) * dx * dy;
+    return sw_colocated_energy_sum(v) * v->dx_m * v->dy_m;
 }
 
 /* Stages: continuity of row j reads u of row j and v of rows j-1 .. j+1; momentum of row j (u and v)

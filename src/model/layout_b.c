@@ -180,7 +180,7 @@ static void b_momentum(const sw_view *v, size_t j)
     }
 }
 
-/* Momentum with rotation and friction on corner row j: as the A layout's (momentum_colocated.h),
+/* Momentum with rotation and friction on corner row j: as the A layout's (colocated.h),
  * F = f dt on the corner line (hx = hy where both flow, and both hold f * velocity: the rotation of the
  * stored pair is the rotation of the velocity). The corners store f * velocity with hx = h / f, so the friction rate
  * r / h of the velocity is that of the stored value when rho carries 1 / f (share): rho = dt r / f, and

@@ -55,7 +55,7 @@
 #include <stddef.h>
 
 #include "model/layout.h"
-#include "model/momentum_colocated.h"
+#include "model/colocated.h"
 #include "model/stage.h"
 #include "base/omp_compat.h"
 
@@ -174,7 +174,7 @@ static void e_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, f
     sw_centre_loop(&c, j, v->nx, eta, u, vel, e_centre_cell);
 }
 
-/* Momentum on padded row j, plain and with the terms: the co-located stencil (momentum_colocated.h);
+/* Momentum on padded row j, plain and with the terms: the co-located stencil (colocated.h);
  * eta cells have hx = hy = 0 and stay at rest. */
 static void e_momentum(const sw_view *v, size_t j) { sw_colocated_momentum(v, j); }
 static void e_momentum_linear(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0); }
@@ -251,30 +251,14 @@ static double e_eta_at(const sw_view *v, size_t i, size_t j)
 #if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
 static void e_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 {
-    o->div_x = o->grad_x = I * sin(k * dx) / dx;
-    o->div_y = o->grad_y = I * sin(l * dy) / dy;
-    o->v_at_u = o->u_at_v = 1;   /* co-located */
+    sw_colocated_symbols(k, l, dx, dy, o);
 }
 #endif
 
-/* E* with each eta point and each velocity point standing for 2 dx dy. */
 /* E* with each eta point and each velocity point standing for 2 dx dy; the rotation share as A's. */
 static double e_energy(const sw_view *v)
 {
-    const size_t nx = v->nx, ny = v->ny, s = v->stride;
-    const double dx = v->dx_m, dy = v->dy_m, dt = v->dt_s;
-    const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
-    double pot = 0, kin = 0, cross = 0, rot = 0;
-    for (size_t j = 1; j <= ny; j++)
-        for (size_t i = j * s + 1; i <= j * s + nx; i++) {
-            double div = ((double)hx[i + 1] * u[i + 1] - (double)hx[i - 1] * u[i - 1]) / (2 * dx)
-                       + ((double)hy[i + s] * vv[i + s] - (double)hy[i - s] * vv[i - s]) / (2 * dy);
-            pot += (double)eta[i] * eta[i];
-            kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * vv[i] * vv[i];
-            cross += eta[i] * div;
-            rot += v->terms->f_centre[j] * hx[i] * u[i] * vv[i];
-        }
-    return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + 0.5 * dt * rot) * 2 * dx * dy;
+    return sw_colocated_energy_sum(v) * 2 * v->dx_m * v->dy_m;
 }
 
 /* Stages as the A layout's: continuity of row j reads u of row j and v of rows j-1 .. j+1; momentum of

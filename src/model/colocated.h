@@ -1,10 +1,12 @@
-/* momentum_colocated.h - the momentum stages of the layouts whose u and v share their points and
- * difference eta across the two neighbouring cells: A, and E on its checkerboard (its eta cells have
- * hx = hy = 0 and stay at rest). Included by layout_a.c and layout_e.c, compiled per precision with them.
+/* colocated.h - what the layouts whose u and v share their points and difference across the two
+ * neighbouring cells have in common: A, and E on its checkerboard (its eta cells have hx = hy = 0 and
+ * stay at rest). Their momentum stages, plain and with the terms, their symbols and their energy sum.
+ * Included by layout_a.c and layout_e.c, compiled per precision with them.
  */
-#ifndef SW_MOMENTUM_COLOCATED_H
-#define SW_MOMENTUM_COLOCATED_H
+#ifndef SW_COLOCATED_H
+#define SW_COLOCATED_H
 
+#include <complex.h>
 #include <math.h>
 #include <stddef.h>
 
@@ -52,6 +54,36 @@ SW_INLINE void sw_colocated_momentum_terms(const sw_view *v, size_t j, const int
         u[i] = u1;
         vv[i] = sw_terms_update(v0, Hy, -gy * (eta[i + s] - eta[i - s]), -2 * Hy * F * u1, ry);
     }
+}
+
+/* The symbols of the co-located stencil: centred differences over two cells, no averaging. */
+#if SW_REAL_BITS == 64   /* precision-free: compiled in the double copy only */
+static inline void sw_colocated_symbols(double k, double l, double dx, double dy, sw_symbols *o)
+{
+    o->div_x = o->grad_x = I * sin(k * dx) / dx;
+    o->div_y = o->grad_y = I * sin(l * dy) / dy;
+    o->v_at_u = o->u_at_v = 1;   /* co-located */
+}
+#endif
+
+/* E* (layout.h) per unit of the area a point stands for (the layout multiplies: A dx dy, E 2 dx dy),
+ * with the rotation share (dt/2) f h u v at each point (hx = hy where both flow). */
+static inline double sw_colocated_energy_sum(const sw_view *v)
+{
+    const size_t nx = v->nx, ny = v->ny, s = v->stride;
+    const double dx = v->dx_m, dy = v->dy_m, dt = v->dt_s;
+    const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
+    double pot = 0, kin = 0, cross = 0, rot = 0;
+    for (size_t j = 1; j <= ny; j++)
+        for (size_t i = j * s + 1; i <= j * s + nx; i++) {
+            double div = ((double)hx[i + 1] * u[i + 1] - (double)hx[i - 1] * u[i - 1]) / (2 * dx)
+                       + ((double)hy[i + s] * vv[i + s] - (double)hy[i - s] * vv[i - s]) / (2 * dy);
+            pot += (double)eta[i] * eta[i];
+            kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * vv[i] * vv[i];
+            cross += eta[i] * div;
+            rot += v->terms->f_centre[j] * hx[i] * u[i] * vv[i];
+        }
+    return 0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + 0.5 * dt * rot;
 }
 
 #endif
