@@ -13,6 +13,27 @@
 #include "base/omp_compat.h"
 #include "model/stage.h"
 
+/* Initial velocities: the centre values uc, vc ([ny * nx], m/s), where the point's u (v) flows. */
+static inline void sw_colocated_initial_velocity(sw_prep *p, const double *uc, const double *vc)
+{
+    const sw_view *v = &p->f;
+    for (size_t j = 0; j < v->ny; j++)
+        for (size_t i = 0; i < v->nx; i++) {
+            const size_t k = sw_pad(v, (ptrdiff_t)i, (ptrdiff_t)j), c = j * v->nx + i;
+            SW_V(v, u)[k] = SW_V(v, hx)[k] > 0 ? (sw_real)uc[c] : 0;
+            SW_V(v, v)[k] = SW_V(v, hy)[k] > 0 ? (sw_real)vc[c] : 0;
+        }
+}
+
+/* The new elevation of cell k: continuity from the old velocities (the one formula of a layout's
+ * continuity kernels, plain and observed). */
+SW_INLINE sw_real sw_colocated_eta_cell(const sw_cells *c, size_t k)
+{
+    const size_t s = c->s;
+    return c->eta[k] - (c->cx * (c->hx[k + 1] * c->u[k + 1] - c->hx[k - 1] * c->u[k - 1])
+                        + c->cy * (c->hy[k + s] * c->v[k + s] - c->hy[k - s] * c->v[k - s]));
+}
+
 /* Momentum (backward: from the new eta of this row and its two neighbours) on padded row j; a point
  * with hx (hy) = 0 is held at rest. */
 SW_INLINE void sw_colocated_momentum(const sw_view *v, size_t j)

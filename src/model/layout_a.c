@@ -54,26 +54,6 @@ static void a_prepare(sw_prep *p)
     }
 }
 
-/* Initial velocities: the centre values, where the cell's u (v) flows. */
-static void a_initial_velocity(sw_prep *p, const double *uc, const double *vc)
-{
-    const sw_view *v = &p->f;
-    for (size_t j = 0; j < v->ny; j++)
-        for (size_t i = 0; i < v->nx; i++) {
-            const size_t k = sw_pad(v, (ptrdiff_t)i, (ptrdiff_t)j), c = j * v->nx + i;
-            SW_V(v, u)[k] = SW_V(v, hx)[k] > 0 ? (sw_real)uc[c] : 0;
-            SW_V(v, v)[k] = SW_V(v, hy)[k] > 0 ? (sw_real)vc[c] : 0;
-        }
-}
-
-/* The new elevation of cell k: continuity from the old velocities (the one formula of both kernels). */
-SW_INLINE sw_real a_eta_cell(const sw_cells *c, size_t k)
-{
-    const size_t s = c->s;
-    return c->eta[k] - (c->cx * (c->hx[k + 1] * c->u[k + 1] - c->hx[k - 1] * c->u[k - 1])
-                        + c->cy * (c->hy[k + s] * c->v[k + s] - c->hy[k - s] * c->v[k - s]));
-}
-
 /* The centre values of cell k (the stored ones), rounded to float. */
 SW_INLINE void a_centre_cell(const sw_cells *c, size_t k, size_t i, size_t j, float *e, float *uc, float *vc)
 {
@@ -93,13 +73,13 @@ static sw_cells a_cells(const sw_view *v)
 static void a_continuity(const sw_view *v, size_t j)
 {
     const sw_cells c = a_cells(v);
-    sw_continuity_loop(&c, j * v->stride + 1, v->nx, a_eta_cell);
+    sw_continuity_loop(&c, j * v->stride + 1, v->nx, sw_colocated_eta_cell);
 }
 
 static void a_continuity_observed(const sw_view *v, size_t j, size_t f, float *buf)
 {
     const sw_cells c = a_cells(v);
-    sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, a_eta_cell, a_centre_cell);
+    sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, sw_colocated_eta_cell, a_centre_cell);
 }
 
 /* Momentum on padded row j, plain and with the terms: the co-located stencil (colocated.h). */
@@ -152,7 +132,7 @@ static double a_energy(const sw_view *v)
  * reads eta of rows j-1 .. j+1. */
 const sw_layout_kernels SW_NAME(sw_layout_a_kernels) = {
     .prepare = a_prepare,
-    .initial_velocity = a_initial_velocity,
+    .initial_velocity = sw_colocated_initial_velocity,
     .continuity = {a_continuity, SW_WRITES(SW_FIELD_ETA), {SW_NO_ROWS, SW_ROWS(0, 0), SW_ROWS(-1, 1)}, 0},
     .continuity_observed = a_continuity_observed,
     .n_momentum = 1,

@@ -112,26 +112,6 @@ static void e_prepare(sw_prep *p)
     e_prepare_edges(p);
 }
 
-/* Initial velocities: the centre values of the u,v cells, where they flow (eta cells have hx = hy = 0). */
-static void e_initial_velocity(sw_prep *p, const double *uc, const double *vc)
-{
-    const sw_view *v = &p->f;
-    for (size_t j = 0; j < v->ny; j++)
-        for (size_t i = 0; i < v->nx; i++) {
-            const size_t k = sw_pad(v, (ptrdiff_t)i, (ptrdiff_t)j), c = j * v->nx + i;
-            SW_V(v, u)[k] = SW_V(v, hx)[k] > 0 ? (sw_real)uc[c] : 0;
-            SW_V(v, v)[k] = SW_V(v, hy)[k] > 0 ? (sw_real)vc[c] : 0;
-        }
-}
-
-/* The new elevation of cell k (a no-op on u,v cells, whose neighbours carry no flux): A's formula. */
-SW_INLINE sw_real e_eta_cell(const sw_cells *c, size_t k)
-{
-    const size_t s = c->s;
-    return c->eta[k] - (c->cx * (c->hx[k + 1] * c->u[k + 1] - c->hx[k - 1] * c->u[k - 1])
-                        + c->cy * (c->hy[k + s] * c->v[k + s] - c->hy[k - s] * c->v[k - s]));
-}
-
 /* Centre values of cell k (grid column i, row j) in the state's precision, rounded to float: a cell's
  * own variables, and the other kind as the mean over its water neighbours (within float round-off of
  * e_centre_row, which sums in double). */
@@ -156,16 +136,18 @@ static sw_cells e_cells(const sw_view *v)
                       (sw_real)(0.5 * v->dt_s / v->dx_m), (sw_real)(0.5 * v->dt_s / v->dy_m)};
 }
 
+/* Continuity with A's cell formula (colocated.h): a no-op on u,v cells, whose neighbours carry no flux;
+ * initial velocities likewise (eta cells have hx = hy = 0 and keep none). */
 static void e_continuity(const sw_view *v, size_t j)
 {
     const sw_cells c = e_cells(v);
-    sw_continuity_loop(&c, j * v->stride + 1, v->nx, e_eta_cell);
+    sw_continuity_loop(&c, j * v->stride + 1, v->nx, sw_colocated_eta_cell);
 }
 
 static void e_continuity_observed(const sw_view *v, size_t j, size_t f, float *buf)
 {
     const sw_cells c = e_cells(v);
-    sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, e_eta_cell, e_centre_cell);
+    sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, sw_colocated_eta_cell, e_centre_cell);
 }
 
 static void e_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, float *vel)
@@ -265,7 +247,7 @@ static double e_energy(const sw_view *v)
  * row j reads eta of rows j-1 .. j+1. A row's centre values read its neighbours' rows. */
 const sw_layout_kernels SW_NAME(sw_layout_e_kernels) = {
     .prepare = e_prepare,
-    .initial_velocity = e_initial_velocity,
+    .initial_velocity = sw_colocated_initial_velocity,
     .continuity = {e_continuity, SW_WRITES(SW_FIELD_ETA), {SW_NO_ROWS, SW_ROWS(0, 0), SW_ROWS(-1, 1)}, 0},
     .continuity_observed = e_continuity_observed,
     .n_momentum = 1,
