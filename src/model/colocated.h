@@ -53,7 +53,7 @@ SW_INLINE void sw_colocated_momentum(const sw_view *v, size_t j)
  * then v from the new u, F = f dt at the cell centres; where both flow hx = hy, so the pair weight is
  * f h and rotation does no work. With `drag` the friction adds Cd |U| dt (old u and v for u, new u and
  * old v for v). */
-SW_INLINE void sw_colocated_momentum_terms(const sw_view *v, size_t j, const int drag)
+SW_INLINE void sw_colocated_momentum_terms(const sw_view *v, size_t j, const int drag, const int forced)
 {
     sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
@@ -62,6 +62,9 @@ SW_INLINE void sw_colocated_momentum_terms(const sw_view *v, size_t j, const int
     const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
     const sw_real F = (sw_real)(v->dt_s * v->terms->f_centre[j]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const float *restrict ax0 = forced ? v->terms->surface_x[0] : NULL, *restrict ax1 = forced ? v->terms->surface_x[1] : NULL;
+    const float *restrict ay0 = forced ? v->terms->surface_y[0] : NULL, *restrict ay1 = forced ? v->terms->surface_y[1] : NULL;
+    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + v->nx; i++) {
@@ -69,11 +72,15 @@ SW_INLINE void sw_colocated_momentum_terms(const sw_view *v, size_t j, const int
         sw_real rx = rho0, ry = rho0;
         if (drag)
             rx += dtc * cdx[i] * (sw_real)sqrt(u0 * u0 + v0 * v0);
-        const sw_real u1 = sw_terms_update(u0, Hx, -gx * (eta[i + 1] - eta[i - 1]), 2 * Hx * F * v0, rx);
+        const sw_real u1 = forced ? sw_terms_update_forced(u0, Hx, -gx * (eta[i + 1] - eta[i - 1]), 2 * Hx * F * v0, rx,
+                                                           sw_surface_push(ax0, ax1, i, c2, w))
+                                  : sw_terms_update(u0, Hx, -gx * (eta[i + 1] - eta[i - 1]), 2 * Hx * F * v0, rx);
         if (drag)
             ry += dtc * cdy[i] * (sw_real)sqrt(u1 * u1 + v0 * v0);
         u[i] = u1;
-        vv[i] = sw_terms_update(v0, Hy, -gy * (eta[i + s] - eta[i - s]), -2 * Hy * F * u1, ry);
+        vv[i] = forced ? sw_terms_update_forced(v0, Hy, -gy * (eta[i + s] - eta[i - s]), -2 * Hy * F * u1, ry,
+                                                sw_surface_push(ay0, ay1, i, c2, w))
+                       : sw_terms_update(v0, Hy, -gy * (eta[i + s] - eta[i - s]), -2 * Hy * F * u1, ry);
     }
 }
 

@@ -104,6 +104,9 @@ typedef struct sw_layout {
                            * then needs an even number of cells between them */
     int transport_weighted; /* 1 when velocity points store f * velocity with f their water fraction
                              * (B, D): friction then needs 1 / f per point (terms.h, share_x) */
+    double u_at[2];       /* where u[k] lies relative to the centre of the cell k indexes, in cells along
+                           * x and y (C: the east face, +1/2, 0); surface forcing is evaluated there */
+    double v_at[2];       /* the same for v[k] */
     int stream_values;    /* the bytes model: values a fused cell update must move at least (each state
                            * value read and written once, each depth array read once); x bytes per value */
 

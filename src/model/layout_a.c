@@ -84,8 +84,10 @@ static void a_continuity_observed(const sw_view *v, size_t j, size_t f, float *b
 
 /* Momentum on padded row j, plain and with the terms: the co-located stencil (colocated.h). */
 static void a_momentum(const sw_view *v, size_t j) { sw_colocated_momentum(v, j); }
-static void a_momentum_linear(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0); }
-static void a_momentum_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1); }
+static void a_momentum_linear(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0, 0); }
+static void a_momentum_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1, 0); }
+static void a_momentum_forced(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0, 1); }
+static void a_momentum_forced_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1, 1); }
 
 /* Ghost normal velocities: the outgoing wave's (open) or the inner cell's mirror (level). */
 static void a_edge_velocities(const sw_view *v, const sw_edge_cell *cells, size_t q0, size_t q1)
@@ -143,6 +145,10 @@ const sw_layout_kernels SW_NAME(sw_layout_a_kernels) = {
                               {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
         [SW_TERMS_DRAG] = {{a_momentum_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
+        [SW_TERMS_FORCED] = {{a_momentum_forced, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                            {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
+        [SW_TERMS_FORCED_DRAG] = {{a_momentum_forced_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                            {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
     },
     .edge_velocities = a_edge_velocities,
     .observes = {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(0, 0)},
@@ -157,6 +163,8 @@ extern const sw_layout_kernels sw_layout_a_kernels_f32;
 const sw_layout sw_layout_a = {
     .name = "A",
     .summary = "co-located: eta, u and v at cell centres, centred differences",
+    .u_at = {0, 0},
+    .v_at = {0, 0},
     .stream_values = 8,   /* eta, u, v read and written; hx, hy read */
     .max_frequency = a_max_frequency,
     .symbols = a_symbols,

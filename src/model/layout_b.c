@@ -186,7 +186,7 @@ static void b_momentum(const sw_view *v, size_t j)
  * r / h of the velocity is that of the stored value when rho carries 1 / f (share): rho = dt r / f, and
  * for quadratic friction, |velocity| = |stored| / f, rho = dt Cd |stored| / f^2. u and v of a corner
  * have one f, read from share_x (the byte 3 / f: the thirds are folded into rho0 and dtc). */
-SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag)
+SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag, const int forced)
 {
     sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
@@ -196,6 +196,9 @@ SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag)
     const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
     const sw_real F = (sw_real)(v->dt_s * v->terms->f_face[j]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
+    const float *restrict ax0 = forced ? v->terms->surface_x[0] : NULL, *restrict ax1 = forced ? v->terms->surface_x[1] : NULL;
+    const float *restrict ay0 = forced ? v->terms->surface_y[0] : NULL, *restrict ay1 = forced ? v->terms->surface_y[1] : NULL;
+    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r; i <= r + v->nx; i++) {
@@ -203,17 +206,22 @@ SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag)
         sw_real rx = rho0 * c, ry = rho0 * c;
         if (drag)
             rx += dtc * cdx[i] * (c * c) * (sw_real)sqrt(u0 * u0 + v0 * v0);
-        const sw_real u1 = sw_terms_update(u0, Hx, -gx * (eta[i + 1] + eta[i + s + 1] - eta[i] - eta[i + s]),
-                                           2 * Hx * F * v0, rx);
+        const sw_real dgx = -gx * (eta[i + 1] + eta[i + s + 1] - eta[i] - eta[i + s]);
+        const sw_real u1 = forced ? sw_terms_update_forced(u0, Hx, dgx, 2 * Hx * F * v0, rx, sw_surface_push(ax0, ax1, i, c2, w))
+                                  : sw_terms_update(u0, Hx, dgx, 2 * Hx * F * v0, rx);
         if (drag)
             ry += dtc * cdy[i] * (c * c) * (sw_real)sqrt(u1 * u1 + v0 * v0);
         u[i] = u1;
-        vv[i] = sw_terms_update(v0, Hy, -gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]), -2 * Hy * F * u1, ry);
+        const sw_real dgy = -gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]);
+        vv[i] = forced ? sw_terms_update_forced(v0, Hy, dgy, -2 * Hy * F * u1, ry, sw_surface_push(ay0, ay1, i, c2, w))
+                       : sw_terms_update(v0, Hy, dgy, -2 * Hy * F * u1, ry);
     }
 }
 
-static void b_momentum_linear(const sw_view *v, size_t j) { b_momentum_terms(v, j, 0); }
-static void b_momentum_drag(const sw_view *v, size_t j) { b_momentum_terms(v, j, 1); }
+static void b_momentum_linear(const sw_view *v, size_t j) { b_momentum_terms(v, j, 0, 0); }
+static void b_momentum_drag(const sw_view *v, size_t j) { b_momentum_terms(v, j, 1, 0); }
+static void b_momentum_forced(const sw_view *v, size_t j) { b_momentum_terms(v, j, 0, 1); }
+static void b_momentum_forced_drag(const sw_view *v, size_t j) { b_momentum_terms(v, j, 1, 1); }
 
 /* Centre values: eta as stored; velocity = the four corners' mean volume flux (hx u = depth x
  * velocity) divided by the cell's depth, i.e. the depth-mean velocity at the centre. */
@@ -288,6 +296,10 @@ const sw_layout_kernels SW_NAME(sw_layout_b_kernels) = {
                               {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 1}},
         [SW_TERMS_DRAG] = {{b_momentum_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 1}},
+        [SW_TERMS_FORCED] = {{b_momentum_forced, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                            {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 1}},
+        [SW_TERMS_FORCED_DRAG] = {{b_momentum_forced_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                            {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 1}},
     },
     .observes = {SW_ROWS(0, 0), SW_ROWS(-1, 0), SW_ROWS(-1, 0)},
     .centre_row = b_centre_row,
@@ -302,6 +314,8 @@ const sw_layout sw_layout_b = {
     .name = "B",
     .summary = "eta at centres, u and v together at cell corners, two-row averaged differences",
     .transport_weighted = 1,
+    .u_at = {0.5, 0.5},
+    .v_at = {0.5, 0.5},
     .stream_values = 9,   /* eta, u, v read and written; hx, hy, h read */
     .max_frequency = b_max_frequency,
     .symbols = b_symbols,

@@ -147,7 +147,7 @@ static void c_v_row(const sw_view *v, size_t j)
  * K divided by v's own depth hy, rot = (F / 2) hy (u0 + u1 + u2 + u3), and the opposite sign; so rotation
  * does no work on any depth (one weight matrix, K and its transpose). With `drag` the friction rho adds
  * Cd |U| dt, |U| from the point's velocity and the other component's plain average. */
-SW_INLINE void c_u_terms(const sw_view *v, size_t j, const int drag)
+SW_INLINE void c_u_terms(const sw_view *v, size_t j, const int drag, const int forced)
 {
     sw_real *restrict u = SW_V(v, u);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
@@ -155,6 +155,8 @@ SW_INLINE void c_u_terms(const sw_view *v, size_t j, const int drag)
     const sw_real gx = (sw_real)(v->g * v->dt_s / v->dx_m);
     const sw_real qn = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j - 1]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const float *restrict a0 = forced ? v->terms->surface_x[0] : NULL, *restrict a1 = forced ? v->terms->surface_x[1] : NULL;
+    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
     const size_t k0 = j * v->stride + 1, s = v->stride;
     SW_OMP(simd)
     for (size_t i = k0 - 1; i < k0 + v->nx; i++) {
@@ -165,11 +167,14 @@ SW_INLINE void c_u_terms(const sw_view *v, size_t j, const int drag)
             const sw_real vbar = (sw_real)0.25 * (n0 + n1 + s0 + s1);
             rho += dtc * cd[i] * (sw_real)sqrt(u[i] * u[i] + vbar * vbar);
         }
-        u[i] = sw_terms_update(u[i], hx[i], -gx * (eta[i + 1] - eta[i]), rot, rho);
+        if (forced)
+            u[i] = sw_terms_update_forced(u[i], hx[i], -gx * (eta[i + 1] - eta[i]), rot, rho, sw_surface_push(a0, a1, i, c2, w));
+        else
+            u[i] = sw_terms_update(u[i], hx[i], -gx * (eta[i + 1] - eta[i]), rot, rho);
     }
 }
 
-SW_INLINE void c_v_terms(const sw_view *v, size_t j, const int drag)
+SW_INLINE void c_v_terms(const sw_view *v, size_t j, const int drag, const int forced)
 {
     sw_real *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hy = SW_V(v, hy);
@@ -177,6 +182,8 @@ SW_INLINE void c_v_terms(const sw_view *v, size_t j, const int drag)
     const sw_real gy = (sw_real)(v->g * v->dt_s / v->dy_m);
     const sw_real q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
+    const float *restrict a0 = forced ? v->terms->surface_y[0] : NULL, *restrict a1 = forced ? v->terms->surface_y[1] : NULL;
+    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
     const size_t k0 = j * v->stride + 1, s = v->stride;
     SW_OMP(simd)
     for (size_t i = k0; i < k0 + v->nx; i++) {
@@ -186,14 +193,21 @@ SW_INLINE void c_v_terms(const sw_view *v, size_t j, const int drag)
             const sw_real ubar = (sw_real)0.25 * sum;
             rho += dtc * cd[i] * (sw_real)sqrt(vv[i] * vv[i] + ubar * ubar);
         }
-        vv[i] = sw_terms_update(vv[i], H, -gy * (eta[i + s] - eta[i]), -(q * H * sum), rho);
+        if (forced)
+            vv[i] = sw_terms_update_forced(vv[i], H, -gy * (eta[i + s] - eta[i]), -(q * H * sum), rho, sw_surface_push(a0, a1, i, c2, w));
+        else
+            vv[i] = sw_terms_update(vv[i], H, -gy * (eta[i + s] - eta[i]), -(q * H * sum), rho);
     }
 }
 
-static void c_u_linear(const sw_view *v, size_t j) { c_u_terms(v, j, 0); }
-static void c_v_linear(const sw_view *v, size_t j) { c_v_terms(v, j, 0); }
-static void c_u_drag(const sw_view *v, size_t j) { c_u_terms(v, j, 1); }
-static void c_v_drag(const sw_view *v, size_t j) { c_v_terms(v, j, 1); }
+static void c_u_linear(const sw_view *v, size_t j) { c_u_terms(v, j, 0, 0); }
+static void c_v_linear(const sw_view *v, size_t j) { c_v_terms(v, j, 0, 0); }
+static void c_u_drag(const sw_view *v, size_t j) { c_u_terms(v, j, 1, 0); }
+static void c_v_drag(const sw_view *v, size_t j) { c_v_terms(v, j, 1, 0); }
+static void c_u_forced(const sw_view *v, size_t j) { c_u_terms(v, j, 0, 1); }
+static void c_v_forced(const sw_view *v, size_t j) { c_v_terms(v, j, 0, 1); }
+static void c_u_forced_drag(const sw_view *v, size_t j) { c_u_terms(v, j, 1, 1); }
+static void c_v_forced_drag(const sw_view *v, size_t j) { c_v_terms(v, j, 1, 1); }
 
 static void c_centre_row(const sw_view *v, size_t j, double *eta, double *u, double *vel)
 {
@@ -271,6 +285,10 @@ const sw_layout_kernels SW_NAME(sw_layout_c_kernels) = {
                              {c_v_linear, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_ROWS(0, 1), SW_ROWS(0, 0)}, 1}},
         [SW_TERMS_DRAG] = {{c_u_drag, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
                            {c_v_drag, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_ROWS(0, 1), SW_ROWS(0, 0)}, 1}},
+        [SW_TERMS_FORCED] = {{c_u_forced, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
+                             {c_v_forced, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_ROWS(0, 1), SW_ROWS(0, 0)}, 1}},
+        [SW_TERMS_FORCED_DRAG] = {{c_u_forced_drag, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
+                                  {c_v_forced_drag, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_ROWS(0, 1), SW_ROWS(0, 0)}, 1}},
     },
     .observes = {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)},
     .centre_row = c_centre_row,
@@ -284,6 +302,8 @@ extern const sw_layout_kernels sw_layout_c_kernels_f32;
 const sw_layout sw_layout_c = {
     .name = "C",
     .summary = "staggered: eta at centres, u on east/west faces, v on north/south faces",
+    .u_at = {0.5, 0},
+    .v_at = {0, 0.5},
     .stream_values = 8,   /* eta, u, v read and written; hx, hy read */
     .max_frequency = c_max_frequency,
     .symbols = c_symbols,

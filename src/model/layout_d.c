@@ -258,7 +258,7 @@ static void d_v_row(const sw_view *v, size_t j)
  * two of row j-1 (line j-1), rot = (F / 2) hy sum u, F on each line. One weight matrix K = (f / 4) hy
  * and its transpose: rotation does no work on any depth. Friction carries 1 / f (share) as on the B layout
  * (layout_b.c), since the faces store f * velocity with hx = h / f. */
-SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag)
+SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag, const int forced)
 {
     sw_real *restrict u = SW_V(v, u);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
@@ -267,6 +267,8 @@ SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag)
     const sw_real gx = (sw_real)(0.25 * v->g * v->dt_s / v->dx_m);
     const sw_real q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
+    const float *restrict a0 = forced ? v->terms->surface_x[0] : NULL, *restrict a1 = forced ? v->terms->surface_x[1] : NULL;
+    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + v->nx; i++) {
@@ -278,11 +280,13 @@ SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag)
             const sw_real vbar = (sw_real)0.25 * (w0 + w1 + n0 + n1);
             rho += dtc * cd[i] * (c * c) * (sw_real)sqrt(u[i] * u[i] + vbar * vbar);
         }
-        u[i] = sw_terms_update(u[i], hx[i], -gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s]), rot, rho);
+        const sw_real dg = -gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s]);
+        u[i] = forced ? sw_terms_update_forced(u[i], hx[i], dg, rot, rho, sw_surface_push(a0, a1, i, c2, w))
+                      : sw_terms_update(u[i], hx[i], dg, rot, rho);
     }
 }
 
-SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag)
+SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag, const int forced)
 {
     sw_real *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hy = SW_V(v, hy);
@@ -291,6 +295,8 @@ SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag)
     const sw_real gy = (sw_real)(0.25 * v->g * v->dt_s / v->dy_m);
     const sw_real qn = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j - 1]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
+    const float *restrict a0 = forced ? v->terms->surface_y[0] : NULL, *restrict a1 = forced ? v->terms->surface_y[1] : NULL;
+    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r; i <= r + v->nx; i++) {
@@ -302,14 +308,20 @@ SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag)
             const sw_real ubar = (sw_real)0.25 * (n0 + n1 + s0 + s1);
             rho += dtc * cd[i] * (c * c) * (sw_real)sqrt(vv[i] * vv[i] + ubar * ubar);
         }
-        vv[i] = sw_terms_update(vv[i], H, -gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1]), -rot, rho);
+        const sw_real dg = -gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1]);
+        vv[i] = forced ? sw_terms_update_forced(vv[i], H, dg, -rot, rho, sw_surface_push(a0, a1, i, c2, w))
+                       : sw_terms_update(vv[i], H, dg, -rot, rho);
     }
 }
 
-static void d_u_linear(const sw_view *v, size_t j) { d_u_terms(v, j, 0); }
-static void d_v_linear(const sw_view *v, size_t j) { d_v_terms(v, j, 0); }
-static void d_u_drag(const sw_view *v, size_t j) { d_u_terms(v, j, 1); }
-static void d_v_drag(const sw_view *v, size_t j) { d_v_terms(v, j, 1); }
+static void d_u_linear(const sw_view *v, size_t j) { d_u_terms(v, j, 0, 0); }
+static void d_v_linear(const sw_view *v, size_t j) { d_v_terms(v, j, 0, 0); }
+static void d_u_drag(const sw_view *v, size_t j) { d_u_terms(v, j, 1, 0); }
+static void d_v_drag(const sw_view *v, size_t j) { d_v_terms(v, j, 1, 0); }
+static void d_u_forced(const sw_view *v, size_t j) { d_u_terms(v, j, 0, 1); }
+static void d_v_forced(const sw_view *v, size_t j) { d_v_terms(v, j, 0, 1); }
+static void d_u_forced_drag(const sw_view *v, size_t j) { d_u_terms(v, j, 1, 1); }
+static void d_v_forced_drag(const sw_view *v, size_t j) { d_v_terms(v, j, 1, 1); }
 
 /* Ghost normal velocities on the faces of the ghost cells (see d_prepare), and the radiated elevation of
  * open ghosts. */
@@ -419,6 +431,10 @@ const sw_layout_kernels SW_NAME(sw_layout_d_kernels) = {
                              {d_v_linear, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_ROWS(-1, 0), SW_ROWS(0, 0)}, 0}},
         [SW_TERMS_DRAG] = {{d_u_drag, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 1)}, 1},
                            {d_v_drag, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_ROWS(-1, 0), SW_ROWS(0, 0)}, 0}},
+        [SW_TERMS_FORCED] = {{d_u_forced, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 1)}, 1},
+                           {d_v_forced, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_ROWS(-1, 0), SW_ROWS(0, 0)}, 0}},
+        [SW_TERMS_FORCED_DRAG] = {{d_u_forced_drag, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 1)}, 1},
+                           {d_v_forced_drag, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_ROWS(-1, 0), SW_ROWS(0, 0)}, 0}},
     },
     .edge_velocities = d_edge_velocities,
     .observes = {SW_ROWS(0, 0), SW_ROWS(-1, 0), SW_ROWS(0, 0)},
@@ -434,6 +450,8 @@ const sw_layout sw_layout_d = {
     .name = "D",
     .summary = "eta at centres, u on north/south faces, v on east/west faces, four-point averages",
     .transport_weighted = 1,
+    .u_at = {0, 0.5},
+    .v_at = {0.5, 0},
     .stream_values = 9,   /* eta, u, v read and written; hx, hy, h read */
     .max_frequency = d_max_frequency,
     .symbols = d_symbols,

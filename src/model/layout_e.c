@@ -159,8 +159,10 @@ static void e_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, f
 /* Momentum on padded row j, plain and with the terms: the co-located stencil (colocated.h);
  * eta cells have hx = hy = 0 and stay at rest. */
 static void e_momentum(const sw_view *v, size_t j) { sw_colocated_momentum(v, j); }
-static void e_momentum_linear(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0); }
-static void e_momentum_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1); }
+static void e_momentum_linear(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0, 0); }
+static void e_momentum_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1, 0); }
+static void e_momentum_forced(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0, 1); }
+static void e_momentum_forced_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1, 1); }
 
 /* Ghost normal velocities beside eta cells: the outgoing wave's (open); on the mirror line, stepped like
  * any velocity with the ghost's eta (the inner eta mirrored) as the far neighbour (level). Open eta
@@ -258,6 +260,10 @@ const sw_layout_kernels SW_NAME(sw_layout_e_kernels) = {
                               {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
         [SW_TERMS_DRAG] = {{e_momentum_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
+        [SW_TERMS_FORCED] = {{e_momentum_forced, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                            {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
+        [SW_TERMS_FORCED_DRAG] = {{e_momentum_forced_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                            {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
     },
     .edge_velocities = e_edge_velocities,
     .observes = {SW_ROWS(-1, 1), SW_ROWS(-1, 1), SW_ROWS(-1, 1)},
@@ -274,6 +280,8 @@ extern const sw_layout_kernels sw_layout_e_kernels_f32;
 const sw_layout sw_layout_e = {
     .name = "E",
     .summary = "checkerboard: eta on (i+j) even cells, u and v on (i+j) odd cells (B turned 45 degrees)",
+    .u_at = {0, 0},
+    .v_at = {0, 0},
     .stream_values = 8,   /* eta, u, v read and written; hx, hy read (half of them zeros) */
     .max_frequency = e_max_frequency,
     .level_node_offset = 0.5,

@@ -42,9 +42,10 @@ size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision, const sw_lay
     const size_t size = sw_precision_bytes(precision);
     const size_t n_pad = stride_for(g, size) * (g->ny + 2);
     const sw_terms_variant v = terms ? sw_terms_variant_of(terms) : SW_TERMS_PLAIN;
-    const size_t arrays = 6 + (v == SW_TERMS_DRAG ? 2 : 0);
+    const size_t arrays = 6 + (sw_terms_variant_drags(v) ? 2 : 0) + (terms && terms->surface ? 3 : 0);
     const size_t share_bytes = v != SW_TERMS_PLAIN && layout && layout->transport_weighted ? 2 * n_pad : 0;
-    return arrays * n_pad * size + share_bytes + g->nx * g->ny + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell)
+    const size_t surface_bytes = terms && terms->surface ? 4 * n_pad * sizeof(float) : 0;
+    return arrays * n_pad * size + share_bytes + surface_bytes + g->nx * g->ny + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell)
          + 2 * (g->ny + 2) * sizeof(double);
 }
 
@@ -135,8 +136,9 @@ static void wrap_halo(sw_model *m, void *f)
 }
 
 /* Every ghost elevation at the fixed point of its update (sw_edge_cell) for the present inner
- * elevation: eta_g = keep eta_g + take eta_in solved for eta_g, i.e. take / (1 - keep) eta_in, what the
- * ghost holds once the inner cell has been still long enough. Open edges (keep + take = 1): the inner
+ * elevation: eta_g = keep eta_g + take eta_in + level_gain L solved for eta_g, i.e.
+ * (take eta_in + level_gain L) / (1 - keep), what the ghost holds once the inner cell has been still long
+ * enough. Open edges (keep + take = 1): the inner
  * value; level edges (keep = 0): take eta_in, the mirror -eta_in; a ghost its layout moves by a rule
  * of its own (keep = 1, no fixed point): left as it is. */
 static void ghosts_at_rest(sw_model *m)
@@ -144,7 +146,8 @@ static void ghosts_at_rest(sw_model *m)
     for (size_t q = 0; q < m->n_edge; q++) {
         const sw_edge_cell *oc = &m->edge[q];
         if (oc->keep != 1)
-            sw_model_put(m, m->view.eta, oc->ghost, oc->take / (1 - oc->keep) * sw_model_get(m, m->view.eta, oc->inner));
+            sw_model_put(m, m->view.eta, oc->ghost, oc->take / (1 - oc->keep) * sw_model_get(m, m->view.eta, oc->inner)
+                                                        + oc->level_gain * m->edge_level / (1 - oc->keep));
     }
     wrap_halo(m, m->view.eta);
 }
@@ -186,6 +189,7 @@ static sw_status start_at_rest(sw_model *m, sw_error *err)
         m->edge[q].keep = 1;
         m->edge[q].take = 0;
         m->edge[q].vel = 0;
+        m->edge[q].level_gain = 0;
     }
     void *eta0 = NULL;
     const size_t bytes = m->n_pad * sw_precision_bytes(m->precision);
@@ -313,8 +317,8 @@ static sw_status build_edges(sw_model *m, sw_error *err)
             oc->take = open ? r / (1 + r) : -1;
             oc->vel = open ? sign * c / h : 0;
             oc->mirror = open ? 0 : 1;
-            oc->normal_x = !along_x;
-            oc->kind = m->edges[e];
+            oc->normal_x = (unsigned char)!along_x;
+            oc->kind = (unsigned char)m->edges[e];
         }
     }
     return SW_OK;
@@ -340,7 +344,19 @@ static sw_status build_terms(sw_model *m, sw_error *err)
         m->f_rows[g->ny + 2 + j] = ff;
     }
     m->terms.friction_rate_ms = c->friction == SW_FRICTION_LINEAR ? c->friction_rate_ms : 0;
-    if (sw_terms_variant_of(c) != SW_TERMS_DRAG)
+    if (c->surface) {
+        m->surface = alloc_field(4 * (g->ny + 2), m->stride, sizeof(float));
+        m->surface_scratch = alloc_field(3 * (g->ny + 2), m->stride, sw_precision_bytes(m->precision));
+        if (!m->surface || !m->surface_scratch)
+            return sw_fail(err, SW_ERR_NOMEM, "out of memory for the surface forcing (%zu MB)",
+                           (m->n_pad * (4 * sizeof(float) + 3 * sw_precision_bytes(m->precision))) >> 20);
+        for (int q = 0; q < 4; q++)
+            m->slab[q / 2][q % 2] = m->surface + (size_t)q * m->n_pad;
+        sw_model_surface_shift(m);   /* only sets the views */
+        sw_model_surface_shift(m);
+        m->surface_build = m->precision == SW_SINGLE ? sw_surface_build_f32 : sw_surface_build_f64;
+    }
+    if (!sw_terms_variant_drags(sw_terms_variant_of(c)))
         return SW_OK;
     const size_t size = sw_precision_bytes(m->precision);
     m->drag = calloc(2 * m->n_pad, size);
@@ -402,6 +418,7 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     m->h_max = h_max;
     memcpy(m->edges, cfg->edges, sizeof m->edges);
     m->terms_cfg = cfg->terms;
+    m->edge_level = cfg->edge_level_m;
     const size_t size = sw_precision_bytes(cfg->precision);
     m->stride = stride_for(g, size);
     m->n_pad = m->stride * (g->ny + 2);
@@ -453,6 +470,10 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     }
     if (rc == SW_OK) {
         m->kernels->prepare(&prep);
+        for (size_t q = 0; q < m->n_edge; q++) {   /* what prepare left: a level ghost mirrors eta - L */
+            sw_edge_cell *oc = &m->edge[q];
+            oc->level_gain = oc->kind == SW_EDGE_LEVEL && oc->keep == 0 ? (float)(1 - oc->take) : 0.0f;
+        }
         if (cfg->u0_ms || cfg->v0_ms)
             rc = initial_velocity(m, &prep, cfg->u0_ms, cfg->v0_ms, err);
         wrap_halo(m, v->hx);
@@ -497,6 +518,8 @@ void sw_model_free(sw_model *m)
     free(m->f_rows);
     free(m->drag);
     free(m->share);
+    free(m->surface);
+    free(m->surface_scratch);
     free(m->edge);
     free(m->edge_row);
     free(m->obs_buf);
@@ -602,3 +625,38 @@ double sw_model_dt(const sw_model *m) { return m->dt; }
 double sw_model_h_max(const sw_model *m) { return m->h_max; }
 size_t sw_model_bytes(const sw_model *m) { return sw_model_bytes_for(&m->grid, m->precision, m->layout, &m->terms_cfg); }
 sw_precision sw_model_precision(const sw_model *m) { return m->precision; }
+
+void sw_model_surface_build(sw_model *m, int slot, sw_surface_row_fn fn, void *ctx)
+{
+    if (m->surface_build)
+        m->surface_build(m, slot & 1, fn, ctx);
+}
+
+void sw_model_surface_shift(sw_model *m)
+{
+    if (!m->surface)
+        return;
+    for (int q = 0; q < 2; q++) {
+        float *t = m->slab[0][q];
+        m->slab[0][q] = m->slab[1][q];
+        m->slab[1][q] = t;
+    }
+    m->terms.surface_x[0] = m->slab[0][0];
+    m->terms.surface_x[1] = m->slab[1][0];
+    m->terms.surface_y[0] = m->slab[0][1];
+    m->terms.surface_y[1] = m->slab[1][1];
+}
+
+void sw_model_surface_weight(sw_model *m, double w) { m->terms.surface_w = w < 0 ? 0 : w > 1 ? 1 : w; }
+
+void sw_model_set_edge_level(sw_model *m, double level_m) { m->edge_level = level_m; }
+
+void sw_model_velocity_points(const sw_model *m, size_t i, size_t j, double u_xy[2], double v_xy[2])
+{
+    const sw_grid *g = &m->grid;
+    const double xc = sw_grid_xc(g, i), yc = sw_grid_yc(g, j);
+    u_xy[0] = xc + m->layout->u_at[0] * g->dx_m;
+    u_xy[1] = yc + m->layout->u_at[1] * g->dy_m;
+    v_xy[0] = xc + m->layout->v_at[0] * g->dx_m;
+    v_xy[1] = yc + m->layout->v_at[1] * g->dy_m;
+}

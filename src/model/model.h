@@ -54,6 +54,8 @@ typedef struct {
     sw_edge_kind edges[4];     /* SW_WEST .. SW_NORTH; periodic ones come in pairs (west and east,
                                 * south and north) */
     sw_terms_config terms;     /* rotation and friction; the zero value is none */
+    double edge_level_m;       /* the level `level` edges hold at t = 0, m (0: mean sea level); later levels
+                                * come from sw_model_set_edge_level */
     int allow_unstable;        /* 1 = accept dt beyond the stability limit (for stability experiments) */
     sw_precision precision;    /* of the state: SW_DOUBLE (the zero default) or SW_SINGLE (real.h) */
 } sw_model_config;
@@ -131,10 +133,51 @@ double sw_model_h_max(const sw_model *m);              /* deepest water cell, m 
 size_t sw_model_bytes(const sw_model *m);              /* memory held, bytes */
 sw_precision sw_model_precision(const sw_model *m);    /* of the state arrays */
 
+/* ---- surface forcing: wind stress and air pressure (terms.h sw_terms_config.surface; forcing/forcing.h)
+ *
+ * The forcing is held in two slabs, at two forcing times around the step, and is linear in time between
+ * them: each step's momentum takes slab0 + w (slab1 - slab0) with the weight w set for the step's
+ * time (sw_model_surface_weight). A slab holds, at every velocity point, the depth the point carries
+ * times its acceleration, tau / rho_w - H g grad(p_b): the air pressure enters as a head of water p_b
+ * whose gradient is the layout's own gradient of eta (so a still sea under steady pressure settles to
+ * eta = -p_b exactly, the inverse barometer), the wind stress at the point's own position. */
+
+/* What a forcing source gives the model, along one row: the n values at x = x0_m + i dx_m, y = y_m, into
+ * out: SW_SURFACE_HEAD: the air pressure as a head of water, (p - p_ref) / (rho_w g), m, at cell centres
+ * (j is the grid row, -1 .. ny, the halo rows included; the row starts at column -1); SW_SURFACE_STRESS_X
+ * (_Y): the kinematic wind stress along x (y), tau / rho_w, m2 s-2, at the layout's u (v) points of padded
+ * row j + 1. Called by several threads at once, for different rows. */
+typedef enum { SW_SURFACE_HEAD = 0, SW_SURFACE_STRESS_X = 1, SW_SURFACE_STRESS_Y = 2 } sw_surface_kind;
+typedef void (*sw_surface_row_fn)(void *ctx, sw_surface_kind kind, ptrdiff_t j, double y_m, double x0_m, double dx_m,
+                                  size_t n, float *out);
+
+/* Builds slab `slot` (0 or 1) from a source: the head at every cell centre and its gradient by the
+ * layout's own momentum kernel, the stresses at every velocity point. For a model made with
+ * cfg->terms.surface (otherwise nothing happens). Call from every thread of a parallel region, or outside
+ * one: it splits the rows among the threads and ends with a barrier. */
+void sw_model_surface_build(sw_model *m, int slot, sw_surface_row_fn fn, void *ctx);
+
+/* Slab 1 becomes slab 0 (the arrays are swapped; slab 1 then holds the old slab 0 until rebuilt). Call
+ * from one thread. */
+void sw_model_surface_shift(sw_model *m);
+
+/* The weight of slab 1 for the next steps, 0 .. 1. Call from one thread, between steps. */
+void sw_model_surface_weight(sw_model *m, double w);
+
+/* The sea level (m) that `level` edges hold for the next steps: their ghost cells mirror eta about it
+ * (sw_edge_cell), so that the level on the edge's node line follows a tide or a remote surge. 0 at
+ * creation (mean sea level). Call from one thread, between steps. */
+void sw_model_set_edge_level(sw_model *m, double level_m);
+
+/* Where the layout puts u[k] and v[k] relative to the centre of grid cell (i, j) sharing their index:
+ * the position (m) of the u and v points of cell (i, j) (sw_layout.u_at, v_at). */
+void sw_model_velocity_points(const sw_model *m, size_t i, size_t j, double u_xy[2], double v_xy[2]);
+
 /* Bytes a model of this grid, layout and terms would hold in this precision (for plans), without creating
  * it: the six padded state and depth arrays, the wet mask and edge cells, and with terms the per-row
- * Coriolis parameters, the drag arrays of quadratic friction (2 padded arrays) and on transport-weighted
- * layouts the water fractions (2 more). terms may be NULL (none). */
+ * Coriolis parameters, the drag arrays of quadratic friction (2 padded arrays), on transport-weighted
+ * layouts the water fractions (2 more), and with surface forcing its two slabs (4 padded float arrays)
+ * and the scratch of their making (3 padded arrays). terms may be NULL (none). */
 size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision, const sw_layout *layout,
                           const sw_terms_config *terms);
 

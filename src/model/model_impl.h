@@ -46,6 +46,13 @@ struct sw_model {
     void *drag;                  /* [2 n_pad] owned: terms.drag_x, then drag_y (quadratic friction), or NULL */
     uint8_t *share;              /* [2 n_pad] owned: terms.share_x, then share_y (bytes; transport-weighted
                                   * layouts with terms), or NULL */
+    float *surface;              /* [4 n_pad] owned with surface forcing: the slabs terms.surface_x[0, 1],
+                                  * surface_y[0, 1] point into it (in some order), or NULL */
+    float *slab[2][2];           /* [slot][x = 0, y = 1]: writable views of terms.surface_x/_y */
+    void *surface_scratch;       /* [3 n_pad] sw_real owned with surface forcing: the head and its gradient
+                                  * at u and v points while a slab is built, or NULL */
+    void (*surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void *ctx);   /* of this precision */
+    double edge_level;           /* m: the level `level` edges hold (sw_model_set_edge_level) */
 
     size_t n_edge;       /* ghost cells of open and level edges */
     sw_edge_cell *edge;  /* [n_edge], sorted by the padded row of their inner cell */

@@ -74,7 +74,8 @@ typedef void (*sw_continuity_observed_fn)(const sw_view *v, size_t row, size_t o
  * open:  keep = 1/(1+r), take = r/(1+r): an implicit upwind step of d(eta)/dt + c d(eta)/dn = 0
  *        (unconditionally stable; r = c dt / spacing, c = sqrt(g h)), so the ghost follows the
  *        outgoing wave;
- * level: keep = 0, take = -1: eta is antisymmetric about the edge line, a node of mean level there.
+ * level: keep = 0, take = -1: eta is antisymmetric about the edge line, a node of mean level there
+ *        (with a tide or surge series L(t): eta - L antisymmetric, eta_g = -eta_in + 2 L; level_gain).
  * Layouts that keep a velocity in the ghost (A, D, E) set it in their edge_velocities kernel from
  * vel * eta_g + mirror * (inner velocity): open: vel = sign sqrt(g/h), mirror = 0 (the outgoing wave's
  * velocity); level: vel = 0, mirror = 1. vel = 0 also switches off the radiation of ghosts that a layout
@@ -85,8 +86,12 @@ typedef struct {
     double keep, take;   /* ghost update coefficients, dimensionless */
     double vel;     /* s-1: ghost normal velocity per metre of ghost eta */
     double mirror;  /* dimensionless: ghost normal velocity per unit inner normal velocity */
-    int normal_x;   /* 1 if the edge is west/east (normal along x), 0 if south/north */
-    sw_edge_kind kind;   /* of its edge: SW_EDGE_OPEN or SW_EDGE_LEVEL */
+    float level_gain; /* the ghost update adds level_gain * L, L the level the edges hold now
+                       * (sw_model_set_edge_level): 1 - take on a level edge, whose ghost then mirrors
+                       * eta - L (eta_g - L = take (eta_in - L)); 0 on an open edge */
+    unsigned char normal_x;   /* 1 if the edge is west/east (normal along x), 0 if south/north */
+    unsigned char kind;       /* sw_edge_kind of its edge: SW_EDGE_OPEN or SW_EDGE_LEVEL (a byte: the list
+                               * stays 56 bytes a cell) */
 } sw_edge_cell;
 
 /* Velocities (and, for layouts that radiate them, elevations) of ghost cells q0 .. q1-1, after every
@@ -248,6 +253,23 @@ static inline size_t sw_first_col(const sw_view *v) { return v->edges[SW_WEST] =
 SW_INLINE sw_real sw_terms_update(sw_real vel, sw_real H, sw_real dvel_gravity, sw_real rot, sw_real rho)
 {
     return H > 0 ? (vel * (2 * H - rho) + 2 * H * dvel_gravity + rot) / (2 * H + rho) : 0;
+}
+
+/* The same with surface forcing: push = 2 dt A (m2/s), A the point's surface forcing at the step's time
+ * (sw_terms.surface_x: H times the acceleration, so that push / (2H) is its velocity increment), enters
+ * beside the rotation term and is damped by friction like the other increments:
+ *     vel' = (vel (2H - rho) + 2H dvel_gravity + rot + push) / (2H + rho). */
+SW_INLINE sw_real sw_terms_update_forced(sw_real vel, sw_real H, sw_real dvel_gravity, sw_real rot, sw_real rho,
+                                         sw_real push)
+{
+    return H > 0 ? (vel * (2 * H - rho) + 2 * H * dvel_gravity + (rot + push)) / (2 * H + rho) : 0;
+}
+
+/* The surface forcing push = 2 dt (A0 + w (A1 - A0)) of point i, from slabs a0, a1 (sw_terms.surface_x
+ * or _y), c2 = 2 dt and the weight w of the later slab. */
+SW_INLINE sw_real sw_surface_push(const float *restrict a0, const float *restrict a1, size_t i, sw_real c2, sw_real w)
+{
+    return c2 * ((sw_real)a0[i] + w * ((sw_real)a1[i] - (sw_real)a0[i]));
 }
 
 /* Continuity alone on the row starting at padded index k0, with the same per-cell formula. */

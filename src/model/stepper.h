@@ -18,6 +18,7 @@
 #include "base/status.h"
 #include "model/edges.h"
 #include "model/layout.h"
+#include "model/model.h"
 #include "model/stage.h"
 #include "model/terms.h"
 
@@ -57,5 +58,9 @@ typedef struct sw_model sw_model;
  * or outside one. Through sw_model_step only (it sets the floating-point mode). */
 void sw_stepper_step_f64(sw_model *m);
 void sw_stepper_step_f32(sw_model *m);
+
+/* sw_model_surface_build in each precision (surface.c). */
+void sw_surface_build_f64(sw_model *m, int slot, sw_surface_row_fn fn, void *ctx);
+void sw_surface_build_f32(sw_model *m, int slot, sw_surface_row_fn fn, void *ctx);
 
 #endif

@@ -41,20 +41,36 @@ typedef struct {
     double friction_rate_ms;  /* linear: r, m/s (> 0) */
     double drag;              /* quadratic: Cd, dimensionless (> 0) */
     double manning_n;         /* Manning: n, s m-1/3 (> 0) */
+    int surface;              /* 1: the momentum step also carries surface forcing (wind stress and the
+                               * air-pressure gradient), which the run supplies in time slabs
+                               * (sw_model_surface_build, model.h; forcing/forcing.h) */
 } sw_terms_config;
 
 /* Which kernels a configuration needs: none (bit-identical to a model without terms), rotation
- * and/or linear friction, or also quadratic friction (which reads per-point drag arrays). */
-typedef enum { SW_TERMS_PLAIN = 0, SW_TERMS_LINEAR = 1, SW_TERMS_DRAG = 2 } sw_terms_variant;
-#define SW_TERMS_VARIANTS 3
+ * and/or linear friction, or also quadratic friction (which reads per-point drag arrays); each of the
+ * last two also with surface forcing (which reads the forcing slabs). */
+typedef enum {
+    SW_TERMS_PLAIN = 0,
+    SW_TERMS_LINEAR = 1,
+    SW_TERMS_DRAG = 2,
+    SW_TERMS_FORCED = 3,        /* LINEAR with surface forcing */
+    SW_TERMS_FORCED_DRAG = 4    /* DRAG with surface forcing */
+} sw_terms_variant;
+#define SW_TERMS_VARIANTS 5
 
 static inline sw_terms_variant sw_terms_variant_of(const sw_terms_config *c)
 {
-    if (c->friction == SW_FRICTION_QUADRATIC || c->friction == SW_FRICTION_MANNING)
+    const int drag = c->friction == SW_FRICTION_QUADRATIC || c->friction == SW_FRICTION_MANNING;
+    if (c->surface)
+        return drag ? SW_TERMS_FORCED_DRAG : SW_TERMS_FORCED;
+    if (drag)
         return SW_TERMS_DRAG;
     return c->rotation != SW_ROTATION_NONE || c->friction == SW_FRICTION_LINEAR ? SW_TERMS_LINEAR
                                                                                 : SW_TERMS_PLAIN;
 }
+
+/* 1 when a variant reads the quadratic drag arrays (sw_terms.drag_x, drag_y). */
+static inline int sw_terms_variant_drags(sw_terms_variant v) { return v == SW_TERMS_DRAG || v == SW_TERMS_FORCED_DRAG; }
 
 /* The terms as the stage kernels read them (built by model.c from an sw_terms_config). */
 typedef struct sw_terms {
@@ -73,6 +89,14 @@ typedef struct sw_terms {
                                * A byte, not a real: the step reads it at every point, and four bytes
                                * there cost a quarter of the step's memory traffic */
     const uint8_t *share_y;   /* [n_pad] the same at v points */
+    const float *surface_x[2];/* [n_pad] surface forcing at each u point (same padded index as u) at the two
+                               * forcing times around the step, earlier then later: the depth the point
+                               * carries times the acceleration, tau_x / rho_w - H g d(p_b)/dx, m2 s-2
+                               * (p_b the air pressure as a head of water, tau_x the wind stress; built by
+                               * sw_model_surface_build); NULL unless the variant is FORCED or FORCED_DRAG */
+    const float *surface_y[2];/* [n_pad] the same at v points */
+    double surface_w;         /* weight of the later slab at the time the step's momentum is centred on
+                               * (its new elevation's), 0 .. 1: the forcing is linear in time between slabs */
 } sw_terms;
 
 /* The byte stored for a velocity point whose control area holds n_water (1..4) water cells of its

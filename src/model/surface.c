@@ -1,0 +1,86 @@
+/* surface.c - building a slab of surface forcing on the model's velocity points (see model.h,
+ * sw_model_surface_build).
+ *
+ * Compiled once per precision (SW_REAL_BITS), beside the stepper: it runs the layout's own plain
+ * momentum stages on a scratch view. A slab holds, at each velocity point that flows,
+ *     A = tau / rho_w - H g grad(p_b),
+ * the depth the point carries (H = hx, hy) times the point's acceleration: the wind stress at the point's
+ * own position, and the gradient of the air pressure head p_b (m) at the cell centres taken by the plain
+ * momentum stage with eta = p_b (0 on land, like eta, and the air's own value in the ghost cells of open
+ * and level edges), velocities 0 and dt = 1 s, which returns -g grad(p_b) with the layout's
+ * gradient, walls and edges, in the form the layout stores velocities (B, D: times the water fraction,
+ * which is why the product is with H = h / f). The forced momentum stages then add 2 dt A (stage.h,
+ * sw_terms_update_forced); at the points of walls and land (H = 0) A is 0.
+ *
+ * Invariant: every row is built by one thread from values no other thread writes in the same phase, so
+ * the slab does not depend on the thread count.
+ */
+#include <string.h>
+
+#include "base/omp_compat.h"
+#include "model/model_impl.h"
+#include "model/stepper.h"
+
+void SW_NAME(sw_surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void *ctx)
+{
+    const sw_grid *g = &m->grid;
+    const size_t s = m->stride, nx = g->nx, ny = g->ny, np = nx + 2, n_pad = m->n_pad;
+    sw_real *restrict pb = (sw_real *)m->surface_scratch, *restrict gu = pb + n_pad, *restrict gv = gu + n_pad;
+    float *restrict ax = m->slab[slot][0], *restrict ay = m->slab[slot][1];
+    const sw_real *restrict h = SW_V(&m->view, h), *restrict hx = SW_V(&m->view, hx), *restrict hy = SW_V(&m->view, hy);
+    const int periodic_x = m->edges[SW_WEST] == SW_EDGE_PERIODIC, periodic_y = m->edges[SW_SOUTH] == SW_EDGE_PERIODIC;
+    const double x_centre0 = g->x0_m - 0.5 * g->dx_m;   /* x of padded column 0's centre */
+
+    /* 1: the head at every centre, halo included (the halo of a periodic edge: the opposite side's) */
+    SW_OMP(for schedule(static))
+    for (size_t jp = 0; jp < ny + 2; jp++) {
+        float *tmp = ax + jp * s;   /* the slab's row serves as the row buffer until phase 2 */
+        fn(ctx, SW_SURFACE_HEAD, (ptrdiff_t)jp - 1, g->y0_m + ((double)jp - 0.5) * g->dy_m, x_centre0, g->dx_m, np, tmp);
+        sw_real *restrict row = pb + jp * s;
+        const sw_real *restrict hr = h + jp * s;
+        for (size_t i = 0; i < np; i++)   /* 0 on land, as eta is there: no gradient from the land's air */
+            row[i] = hr[i] > 0 ? (sw_real)tmp[i] : 0;
+        if (periodic_x) {
+            row[0] = row[nx];
+            row[nx + 1] = row[1];
+        }
+        memset(gu + jp * s, 0, s * sizeof *gu);
+        memset(gv + jp * s, 0, s * sizeof *gv);
+    }
+    SW_OMP(single)
+    {
+        for (size_t q = 0; q < m->n_edge; q++)   /* the ghosts of open and level edges: the air beyond the edge */
+            pb[m->edge[q].ghost] = (sw_real)ax[m->edge[q].ghost];
+        if (periodic_y) {
+            memcpy(pb, pb + ny * s, s * sizeof *pb);
+            memcpy(pb + (ny + 1) * s, pb + s, s * sizeof *pb);
+        }
+    }
+
+    /* 2: -g grad(p_b) by the plain momentum stages, then A at the u and v points of each row */
+    sw_view sv = m->view;
+    const sw_terms none = {.f_centre = m->terms.f_centre, .f_face = m->terms.f_face};
+    sv.eta = pb;
+    sv.u = gu;
+    sv.v = gv;
+    sv.dt_s = 1;
+    sv.terms = &none;
+    const sw_stage *plain = m->kernels->momentum[SW_TERMS_PLAIN];
+    SW_OMP(for schedule(static))
+    for (size_t jp = 0; jp < ny + 2; jp++) {
+        for (int q = 0; q < m->kernels->n_momentum; q++) {
+            const size_t first = plain[q].south_line && !periodic_y ? 0 : 1;
+            if (jp >= first && jp <= ny)
+                plain[q].run(&sv, jp);
+        }
+        const double yc = g->y0_m + ((double)jp - 0.5) * g->dy_m;
+        fn(ctx, SW_SURFACE_STRESS_X, (ptrdiff_t)jp - 1, yc + m->layout->u_at[1] * g->dy_m,
+           x_centre0 + m->layout->u_at[0] * g->dx_m, g->dx_m, np, ax + jp * s);
+        fn(ctx, SW_SURFACE_STRESS_Y, (ptrdiff_t)jp - 1, yc + m->layout->v_at[1] * g->dy_m,
+           x_centre0 + m->layout->v_at[0] * g->dx_m, g->dx_m, np, ay + jp * s);
+        for (size_t k = jp * s; k < jp * s + np; k++) {
+            ax[k] = hx[k] > 0 ? (float)((sw_real)ax[k] + hx[k] * gu[k]) : 0.0f;
+            ay[k] = hy[k] > 0 ? (float)((sw_real)ay[k] + hy[k] * gv[k]) : 0.0f;
+        }
+    }
+}
