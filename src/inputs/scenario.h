@@ -116,6 +116,39 @@ typedef struct {
     sw_sweep_param param[SW_MAX_SWEEP_PARAMS];
 } sw_sweep_spec;
 
+/* What drives the water after t = 0 (docs/storm-surge.md): a moving parametric storm ([storm]) or a
+ * weather file ([weather]), the wind drag and densities ([wind]), and a sea-level series for `level`
+ * edges ([edges] level_series). The zero value (storm = weather = 0, level_file "") is none. */
+typedef struct {
+    int storm;                    /* 1 when [storm] is present */
+    int storm_line;               /* line of its header */
+    char track[SW_PATH_MAX];      /* the track file as written (relative to the scenario's folder) */
+    double ambient_hpa;           /* environmental pressure when the track has no ambient_pressure column,
+                                   * hPa; default 1013 */
+    double reduction;             /* 10 m wind / gradient wind; default 0.8 (common practice) */
+    double inflow_deg;            /* inflow angle of the 10 m wind, deg; default 20 (common practice) */
+    double translation_fraction;  /* share of the forward velocity added at rmax; default 0.5 (common practice) */
+    int south;                    /* 1: clockwise (southern hemisphere) when [run] has no rotation */
+    double update_s;              /* the storm's forcing is made every update_s (the slabs, model.h), s;
+                                   * default 300 s */
+    double shift_across_m;        /* the track moved to the left of its mean heading, m; default 0 */
+    double shift_along_m;         /* moved along its mean heading, m; default 0 */
+    double dp_factor;             /* every pressure drop times this; default 1 */
+    double rmax_factor;           /* every radius of maximum wind times this; default 1 */
+    double speed_factor;          /* forward speed times this (the track is run faster about its first
+                                   * point's time); default 1 */
+    int weather;                  /* 1 when [weather] is present */
+    int weather_line;
+    char weather_file[SW_PATH_MAX]; /* NetCDF file of 10 m wind and sea-level pressure (docs/weather-file.md) */
+    int drag_law;                 /* sw_drag_law (forcing/drag.h); default Large & Pond (1981) */
+    double drag_cap;              /* the largest drag coefficient; 0 = none (default) */
+    double air_density_kgm3;      /* default 1.15 (common practice) */
+    double water_density_kgm3;    /* default 1025 (sea water, common practice) */
+    char level_file[SW_PATH_MAX]; /* [edges] level_series: the level `level` edges follow; "" = mean sea level */
+    char level_variable[SW_NAME_MAX]; /* [edges] level_variable: its NetCDF variable ("" = by standard name) */
+    int level_line;               /* line of level_series */
+} sw_forcing_spec;
+
 typedef struct {
     /* where it came from */
     char path[SW_PATH_MAX];   /* scenario path as given ("<demo>" or "<string>" when parsed from memory) */
@@ -174,6 +207,9 @@ typedef struct {
 
     size_t n_gauges;
     sw_gauge_spec gauges[SW_MAX_GAUGES];
+
+    /* [storm], [weather], [wind], [edges] level_series */
+    sw_forcing_spec forcing;
 
     /* [sweep]; sweep.present == 0 without one. `shoreward run` ignores it. */
     sw_sweep_spec sweep;

@@ -18,7 +18,7 @@
 #define LINE_MAX_CHARS 200              /* longest line accepted, without its line break */
 #define KEYS_MAX 24                     /* most keys in one section's table */
 #define LABEL_MAX (SW_NAME_MAX + 16)    /* "[island <name>]" */
-#define SECTIONS_MAX (6 + SW_MAX_FEATURES + SW_MAX_SOURCES)
+#define SECTIONS_MAX (9 + SW_MAX_FEATURES + SW_MAX_SOURCES)
 #define SWEEP_ENTRIES_MAX (SW_MAX_SWEEP_PARAMS + 3)   /* parameters + design, members, seed */
 
 #define KM 1e3                       /* m */
@@ -79,7 +79,8 @@ typedef struct {
 #define RANGE(l, h) .ranged = 1, .lo = (l), .hi = (h)          /* l <= v <= h */
 #define ABOVE(l, h) .ranged = 1, .gt = 1, .lo = (l), .hi = (h) /* l <  v <= h */
 
-typedef enum { S_RUN, S_GRID, S_EDGES, S_SEABED, S_GAUGES, S_BAY, S_ISLAND, S_SHOAL, S_SOURCE, S_SWEEP } section_type;
+typedef enum { S_RUN, S_GRID, S_EDGES, S_SEABED, S_GAUGES, S_BAY, S_ISLAND, S_SHOAL, S_SOURCE, S_SWEEP, S_STORM,
+               S_WEATHER, S_WIND } section_type;
 
 typedef struct {
     const char *name;       /* first word of the header */

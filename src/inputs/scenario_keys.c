@@ -23,6 +23,8 @@ const char *const scn_coast_words[] = { "none", "west", "east", "south", "north"
 static const char *const POSITIVE_WORDS[] = { "down", "up", NULL };                        /* from SW_POSITIVE_DOWN */
 const char *const scn_shape_words[] = { "hump", "ellipse", "pair", "file", NULL };          /* sw_source_shape */
 static const char *const PRECISION_WORDS[] = { "double", "single", NULL };                 /* sw_precision */
+static const char *const DRAG_WORDS[] = { "large-pond", "wu", "garratt", NULL };           /* sw_drag_law */
+static const char *const HEMISPHERE_WORDS[] = { "north", "south", NULL };
 
 static const key_def RUN_KEYS[] = {
     { .name = "title", TEXT_SC(title), .dflt = "untitled scenario", .accepted = "up to 255 characters" },
@@ -91,6 +93,55 @@ static const key_def EDGES_KEYS[] = {
       .words = EDGE_WORDS, .dflt = "wall", .accepted = "wall, open, level, periodic" },
     { .name = "all", .kind = K_CHOICE, .home = IN_PARSER, .off = 0 /* home_of: parse_state.edges_all */,
       .words = EDGE_WORDS, .accepted = "wall, open, level, periodic" },
+    { .name = "level_series", TEXT_SC(forcing.level_file),
+      .accepted = "a text or NetCDF file of time and sea level that `level` edges follow (docs/storm-surge.md)" },
+    { .name = "level_variable", TEXT_SC(forcing.level_variable),
+      .accepted = "the NetCDF variable of level_series (default: the one with standard_name "
+                  "sea_surface_height_above_mean_sea_level)" },
+};
+
+static const key_def STORM_KEYS[] = {
+    { .name = "track", TEXT_SC(forcing.track), .required = 1,
+      .accepted = "a track file, relative to the scenario's folder (docs/storm.md)" },
+    { .name = "ambient_pressure", .kind = K_NUMBER, SC(forcing.ambient_hpa), RANGE(800, 1100), .dflt = "1013",
+      .accepted = "800 <= ambient_pressure <= 1100, in hPa" },
+    { .name = "reduction", .kind = K_NUMBER, SC(forcing.reduction), ABOVE(0, 1), .dflt = "0.8",
+      .accepted = "0 < reduction <= 1, the 10 m wind over the gradient wind" },
+    { .name = "inflow_angle", .kind = K_ANGLE, SC(forcing.inflow_deg), RANGE(0, 60), .dflt = "20",
+      .accepted = "0 <= inflow_angle <= 60 deg" },
+    { .name = "translation_fraction", .kind = K_NUMBER, SC(forcing.translation_fraction), RANGE(0, 1), .dflt = "0.5",
+      .accepted = "0 <= translation_fraction <= 1" },
+    { .name = "hemisphere", .kind = K_CHOICE, SC(forcing.south), .words = HEMISPHERE_WORDS, .dflt = "north",
+      .accepted = "north (counter-clockwise), south (clockwise); with [run] rotation the sign of f decides" },
+    { .name = "update", .kind = K_TIME, SC(forcing.update_s), ABOVE(0, DAY), .dflt = "300 s",
+      .accepted = "0 < update <= 1 d" },
+    { .name = "shift_across", .kind = K_LENGTH, SC(forcing.shift_across_m), RANGE(-1e4 * KM, 1e4 * KM), .dflt = "0",
+      .accepted = "|shift_across| <= 10000 km, to the left of the mean heading" },
+    { .name = "shift_along", .kind = K_LENGTH, SC(forcing.shift_along_m), RANGE(-1e4 * KM, 1e4 * KM), .dflt = "0",
+      .accepted = "|shift_along| <= 10000 km, along the mean heading" },
+    { .name = "pressure_drop_factor", .kind = K_NUMBER, SC(forcing.dp_factor), ABOVE(0, 10), .dflt = "1",
+      .accepted = "0 < pressure_drop_factor <= 10" },
+    { .name = "rmax_factor", .kind = K_NUMBER, SC(forcing.rmax_factor), ABOVE(0, 10), .dflt = "1",
+      .accepted = "0 < rmax_factor <= 10" },
+    { .name = "speed_factor", .kind = K_NUMBER, SC(forcing.speed_factor), ABOVE(0, 10), .dflt = "1",
+      .accepted = "0 < speed_factor <= 10" },
+};
+
+static const key_def WEATHER_KEYS[] = {
+    { .name = "file", TEXT_SC(forcing.weather_file), .required = 1,
+      .accepted = "a NetCDF file of 10 m wind and sea-level pressure, relative to the scenario's folder "
+                  "(docs/weather-file.md)" },
+};
+
+static const key_def WIND_KEYS[] = {
+    { .name = "drag_law", .kind = K_CHOICE, SC(forcing.drag_law), .words = DRAG_WORDS, .dflt = "large-pond",
+      .accepted = "large-pond, wu, garratt" },
+    { .name = "drag_cap", .kind = K_NUMBER, SC(forcing.drag_cap), RANGE(0, 0.01), .dflt = "0",
+      .accepted = "0 <= drag_cap <= 0.01; 0 = no cap (2.5e-3 is common practice for storm winds)" },
+    { .name = "air_density", .kind = K_NUMBER, SC(forcing.air_density_kgm3), RANGE(0.5, 2), .dflt = "1.15",
+      .accepted = "0.5 <= air_density <= 2, in kg m-3" },
+    { .name = "water_density", .kind = K_NUMBER, SC(forcing.water_density_kgm3), RANGE(900, 1100), .dflt = "1025",
+      .accepted = "900 <= water_density <= 1100, in kg m-3" },
 };
 
 static const key_def SEABED_KEYS[] = {
@@ -181,6 +232,8 @@ const section_def scn_sections[] = {
     { "gauges", S_GAUGES, 0, NULL, 0 },            { "bay", S_BAY, 1, TABLE(BAY_KEYS) },
     { "island", S_ISLAND, 1, TABLE(ISLAND_KEYS) }, { "shoal", S_SHOAL, 1, TABLE(SHOAL_KEYS) },
     { "source", S_SOURCE, 1, TABLE(SOURCE_KEYS) }, { "sweep", S_SWEEP, 0, NULL, 0 },
+    { "storm", S_STORM, 0, TABLE(STORM_KEYS) },    { "weather", S_WEATHER, 0, TABLE(WEATHER_KEYS) },
+    { "wind", S_WIND, 0, TABLE(WIND_KEYS) },
 };
 const size_t scn_n_sections = sizeof scn_sections / sizeof scn_sections[0];
 

@@ -618,6 +618,44 @@ static int finish_source(parse_state *ps, const section_ctx *sec)
     return 1;
 }
 
+/* [storm], [weather] and [wind]: what is present, required keys, one atmosphere at most, and a level
+ * series only with a level edge. */
+static int finish_forcing(parse_state *ps)
+{
+    sw_forcing_spec *f = &ps->sc->forcing;
+    const section_ctx *storm = scn_find_section(ps, S_STORM), *weather = scn_find_section(ps, S_WEATHER);
+    const section_ctx *wind = scn_find_section(ps, S_WIND), *edges = scn_find_section(ps, S_EDGES);
+    f->storm = storm != NULL;
+    f->weather = weather != NULL;
+    f->storm_line = storm ? storm->line : 0;
+    f->weather_line = weather ? weather->line : 0;
+    if ((storm && !check_keys(ps, storm, 1, "")) || (weather && !check_keys(ps, weather, 1, ""))
+        || (wind && !check_keys(ps, wind, 1, "")))
+        return 0;
+    if (storm && weather)
+        return scn_fail_at(ps, SW_ERR_PARSE, storm->line > weather->line ? storm->line : weather->line,
+                           "[storm] (line %d) and [weather] (line %d) are both given (accepted: one of them)",
+                           storm->line, weather->line);
+    if (wind && !storm && !weather)
+        return scn_fail_at(ps, SW_ERR_PARSE, wind->line, "[wind] without [storm] or [weather]: nothing blows "
+                           "(accepted: [wind] beside one of them)");
+    f->level_line = edges ? key_line(edges, "level_series") : 0;
+    const int lv = edges ? key_line(edges, "level_variable") : 0;
+    if (lv && !f->level_line)
+        return scn_fail_at(ps, SW_ERR_PARSE, lv, "[edges] level_variable: not used without level_series");
+    if (f->level_line) {
+        int any = 0;
+        for (int e = 0; e < 4; e++)
+            any |= ps->sc->edges[e] == SW_EDGE_LEVEL;
+        if (!any)
+            return scn_fail_at(ps, SW_ERR_PARSE, f->level_line, "[edges] level_series: no edge is `level` "
+                               "(accepted: with at least one edge = level)");
+    }
+    if (storm || weather)
+        ps->sc->terms.surface = 1;
+    return 1;
+}
+
 static int finish_gauges(parse_state *ps)
 {
     const sw_scenario *sc = ps->sc;
@@ -671,7 +709,7 @@ static int finish(parse_state *ps)
             break;
         }
     }
-    return finish_gauges(ps) && scn_finish_sweep(ps);
+    return finish_forcing(ps) && finish_gauges(ps) && scn_finish_sweep(ps);
 }
 
 /* ---- entry points -------------------------------------------------------------------------- */

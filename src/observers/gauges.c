@@ -19,6 +19,7 @@ struct sw_gauges {
     stencil *st;              /* [n] */
     double *time;             /* [cap] */
     double *eta, *u, *v;      /* [n * cap] station-major */
+    double *air;              /* [3 n cap]: pressure, wind u, wind v, each [n * cap] station-major; or NULL */
     double *row;              /* 3 * nx scratch: eta, u, v of one row */
     size_t nx;
     int *dry;                 /* [n] */
@@ -91,6 +92,7 @@ void sw_gauges_free(sw_gauges *gs)
     free(gs->eta);
     free(gs->u);
     free(gs->v);
+    free(gs->air);
     free(gs->row);
     free(gs->dry);
     free(gs->stats);
@@ -179,6 +181,30 @@ sw_status sw_gauges_sample(sw_gauges *gs, const sw_model *m, sw_error *err)
     return SW_OK;
 }
 
+sw_status sw_gauges_enable_air(sw_gauges *gs, sw_error *err)
+{
+    if (gs->air)
+        return SW_OK;
+    gs->air = malloc(3 * (gs->n ? gs->n : 1) * (gs->cap ? gs->cap : 1) * sizeof *gs->air);
+    if (!gs->air)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the gauges' wind and pressure");
+    for (size_t k = 0; k < 3 * gs->n * gs->cap; k++)
+        gs->air[k] = NAN;
+    return SW_OK;
+}
+
+void sw_gauges_put_air(sw_gauges *gs, const double *p_pa, const double *u10_ms, const double *v10_ms)
+{
+    if (!gs->air || gs->count == 0)
+        return;
+    const size_t t = gs->count - 1, plane = gs->n * gs->cap;
+    for (size_t q = 0; q < gs->n; q++) {
+        gs->air[q * gs->cap + t] = p_pa[q];
+        gs->air[plane + q * gs->cap + t] = u10_ms[q];
+        gs->air[2 * plane + q * gs->cap + t] = v10_ms[q];
+    }
+}
+
 void sw_gauges_table(sw_gauges *gs, sw_gauge_table *out)
 {
     /* Series are stored `cap` apart; the table wants them `count` apart: compact once. */
@@ -189,8 +215,18 @@ void sw_gauges_table(sw_gauges *gs, sw_gauge_table *out)
             memmove(w->u + q * w->count, w->u + q * w->cap, w->count * sizeof(double));
             memmove(w->v + q * w->count, w->v + q * w->cap, w->count * sizeof(double));
         }
+        if (w->air) {   /* three planes of n * cap into three of n * count, in order (never overlapping ahead) */
+            const size_t plane = w->n * w->cap;
+            for (size_t c = 0; c < 3; c++)
+                for (size_t q = 0; q < w->n; q++)
+                    memmove(w->air + c * w->n * w->count + q * w->count, w->air + c * plane + q * w->cap,
+                            w->count * sizeof(double));
+        }
         w->cap = w->count;
     }
+    out->air_pressure_pa = w->air;
+    out->wind_u_ms = w->air ? w->air + w->n * w->count : NULL;
+    out->wind_v_ms = w->air ? w->air + 2 * w->n * w->count : NULL;
     out->n_stations = gs->n;
     out->n_times = gs->count;
     out->names = gs->name_ptrs;

@@ -26,6 +26,14 @@ sw_status sw_gauges_create(const sw_model *m, const double *depth_m, const sw_ga
  * Returns SW_ERR_USAGE (recording nothing) when the capacity is used up. */
 sw_status sw_gauges_sample(sw_gauges *gs, const sw_model *m, sw_error *err);
 
+/* Makes room for the air pressure and 10 m wind at every gauge (a run with an atmosphere). Call once,
+ * before the first sample. SW_OK or SW_ERR_NOMEM. */
+sw_status sw_gauges_enable_air(sw_gauges *gs, sw_error *err);
+
+/* Stores the air pressure (Pa) and 10 m wind (m/s) of every gauge ([n] each) for the sample just
+ * taken (after sw_gauges_sample). Ignored when sw_gauges_enable_air was not called. */
+void sw_gauges_put_air(sw_gauges *gs, const double *p_pa, const double *u10_ms, const double *v10_ms);
+
 /* Follows every gauge's elevation at the model's current time (call at time 0 and after every step,
  * from one thread): first arrival (the time |eta| first reaches threshold_m, interpolated linearly
  * between the two steps around the crossing), highest and lowest elevation and their times.

@@ -22,6 +22,10 @@ typedef struct {
     const double *eta_m;        /* [n_stations * n_times] sea-surface elevation, m */
     const double *u_ms;         /* [n_stations * n_times] x velocity, m/s */
     const double *v_ms;         /* [n_stations * n_times] y velocity, m/s */
+    const double *air_pressure_pa; /* [n_stations * n_times] air pressure at sea level, Pa; NULL when the run
+                                    * has no atmosphere ([storm] or [weather]) */
+    const double *wind_u_ms;    /* [n_stations * n_times] 10 m wind along x (east), m/s; NULL likewise */
+    const double *wind_v_ms;    /* [n_stations * n_times] 10 m wind along y (north), m/s; NULL likewise */
 } sw_gauge_table;
 
 /* Maps at cell centres, each [ny * nx], row j at [j * nx]. Values on land cells (wet[k] == 0) and
@@ -35,6 +39,13 @@ typedef struct {
     const double *arrival_s;      /* first time |eta| >= threshold, s since the origin; NaN if never */
     const double *eta_max_time_s; /* time of eta_max, s since the origin */
     const double *speed_max_ms;   /* highest current speed, m/s */
+    const double *wind_max_ms;    /* highest 10 m wind speed the water felt, m/s; NULL without an atmosphere */
+    const double *air_pressure_min_pa; /* lowest air pressure the water felt, Pa; NULL likewise */
+    size_t n_track;               /* points of the storm's track (0 without a storm) */
+    const double *track_time_s;   /* [n_track] times, s since the origin, from 0 to the end of the run */
+    const double *track_x_m, *track_y_m; /* [n_track] the storm's centre at those times, m (as the run
+                                   * moved it: [storm] shifts and factors applied) */
+    const double *track_p_pa;     /* [n_track] its central pressure, Pa */
 } sw_map_set;
 
 #endif

@@ -203,6 +203,8 @@ static void ncw_globals(ncw_file *f, const sw_run_meta *m)
     ncw_terms(f, m->terms);
     ncw_text(f, NC_GLOBAL, "scenario", m->scenario_text);
     ncw_text(f, NC_GLOBAL, "caution", m->caution);
+    if (m->forcing)
+        ncw_text(f, NC_GLOBAL, "forcing", m->forcing);
     ncw_text(f, NC_GLOBAL, "comment", NCW_COMMENT);
 }
 

@@ -31,6 +31,7 @@ typedef struct {
     double arrival_threshold_m; /* |eta| threshold defining arrival, m */
     double gravity_ms2;         /* g, m s-2 */
     const sw_terms_config *terms; /* rotation and friction in force (NULL: none) */
+    const char *forcing;        /* a line naming the storm, weather file or level series (NULL: none) */
 } sw_run_meta;
 
 /* Writes the gauge file (CF discrete sampling geometry, featureType timeSeries). */

@@ -20,12 +20,27 @@
 #include "outputs/ncwrite.h"
 #include "base/omp_compat.h"
 #include "observers/tracker.h"
+#include "forcing/forcing.h"
 
 const char *sw_caution(void)
 {
     return "CAUTION: results come from a simplified linear model for exploring scenarios. They are not a "
            "hazard forecast or warning. In an emergency follow official warning agencies and local "
            "emergency management. Planning decisions need qualified professionals and local codes.";
+}
+
+const char *sw_caution_surge(void)
+{
+    return "CAUTION: results come from a simplified linear, depth-averaged model for exploring scenarios: no "
+           "waves, no tide-surge interaction beyond adding the two, no flooding of land. They are not a surge, "
+           "tide or hazard forecast or warning. In an emergency follow official warning agencies and local "
+           "emergency management. Planning decisions need qualified professionals and local codes.";
+}
+
+const char *sw_caution_for(const sw_scenario *sc)
+{
+    const sw_forcing_spec *f = &sc->forcing;
+    return f->storm || f->weather || f->level_file[0] ? sw_caution_surge() : sw_caution();
 }
 
 sw_status sw_make_dirs(const char *path, sw_error *err)
@@ -58,6 +73,8 @@ typedef struct {
     sw_model *model;
     sw_tracker *tracker;
     sw_gauges *gauges;
+    sw_forcing *forcing;      /* storm, weather, level series; NULL when none */
+    double *air;              /* [3 n_gauges] the gauges' pressure and wind at a sample */
     sw_ncw_snapshots *snaps;
     double *frame;            /* [ny * nx] snapshot buffer, or NULL */
     double next_sample, next_snapshot, next_progress;
@@ -99,6 +116,11 @@ static void observe(run_ctx *c, int last)
         if (sw_gauges_sample(c->gauges, m, &c->loop_err) != SW_OK) {
             c->stop = 2;
             return;
+        }
+        if (c->air) {
+            const size_t n = c->sc->n_gauges;
+            sw_forcing_sample(c->forcing, now, c->air, c->air + n, c->air + 2 * n);
+            sw_gauges_put_air(c->gauges, c->air, c->air + n, c->air + 2 * n);
         }
         while (c->next_sample <= now + 1e-9 * c->sc->gauge_interval_s)
             c->next_sample += c->sc->gauge_interval_s;
@@ -144,10 +166,15 @@ static void time_loop(run_ctx *c)
     SW_OMP(parallel)
     {
         for (long long n = 0; n < n_steps; n++) {
+            if (c->forcing)   /* the slabs and edge level at the time the step ends (forcing.h) */
+                sw_forcing_advance(c->forcing, c->model, (double)(n + 1) * sw_model_dt(c->model));
             sw_model_step(c->model);   /* also updates the tracker (attached in sw_run) */
             SW_OMP(single)
             {
                 sw_model_tick(c->model);
+                if (sw_forcing_failed(c->forcing, &c->loop_err))
+                    c->stop = 2;
+                else
                 between_steps(c, n + 1 == n_steps);
             }
             /* the barrier at the end of `single` publishes c->stop to every thread */
@@ -207,6 +234,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         .dt_s = setup->dt_s, .courant = setup->courant, .courant_limit = setup->courant_limit,
         .arrival_threshold_m = sc->arrival_threshold_m, .gravity_ms2 = sc->gravity_ms2, .terms = &sc->terms,
     };
+    meta.caution = sw_caution_for(sc);
     if (!opt->sink) {   /* with a sink the paths stay "" */
         file_path(res->gauges_path, opt, "gauges.nc");
         file_path(res->maps_path, opt, "maps.nc");
@@ -219,6 +247,27 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         rc = sw_tracker_attach(c.tracker, c.model, err);   /* after omp_set_num_threads above */
     if (rc == SW_OK)
         rc = sw_gauges_create(c.model, setup->depth_m, sc->gauges, sc->n_gauges, setup->n_samples, &c.gauges, err);
+    if (rc == SW_OK) {
+        double gx[SW_MAX_GAUGES], gy[SW_MAX_GAUGES];
+        for (size_t q = 0; q < sc->n_gauges; q++) {
+            gx[q] = sc->gauges[q].x_m;
+            gy[q] = sc->gauges[q].y_m;
+        }
+        rc = sw_forcing_create(sc, c.model, (double)setup->n_steps * setup->dt_s, gx, gy, sc->n_gauges, &c.forcing, err);
+        if (rc == SW_OK && c.forcing) {
+            sw_forcing_describe(c.forcing, res->forcing, sizeof res->forcing);
+            meta.forcing = res->forcing;
+        }
+        if (rc == SW_OK && sw_forcing_has_air(c.forcing)) {
+            c.air = malloc(3 * (sc->n_gauges ? sc->n_gauges : 1) * sizeof *c.air);
+            rc = c.air ? sw_gauges_enable_air(c.gauges, err) : sw_fail(err, SW_ERR_NOMEM, "out of memory for the gauges' wind");
+        }
+        if (rc == SW_OK && c.forcing) {   /* the slabs around t = 0, for the first sample */
+            sw_forcing_advance(c.forcing, c.model, 0);
+            if (sw_forcing_failed(c.forcing, err))
+                rc = err->code;
+        }
+    }
     if (rc == SW_OK && sc->snapshot_interval_s > 0 && !opt->sink) {
         file_path(res->snapshots_path, opt, "snapshots.nc");
         c.frame = malloc(sw_grid_cells(&setup->grid) * sizeof(double));
@@ -253,8 +302,29 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
                          "or dt");
     }
     sw_map_set maps = {0};
+    double *air_maps = NULL;   /* [2 cells]: highest wind, lowest pressure */
+    res->wind_max_ms = res->air_pressure_min_pa = NAN;
     if (rc == SW_OK)
         rc = sw_tracker_maps(c.tracker, c.model, setup->depth_m, &maps, err);
+    if (rc == SW_OK && sw_forcing_has_air(c.forcing)) {
+        const size_t n = sw_grid_cells(&setup->grid);
+        air_maps = malloc(2 * n * sizeof *air_maps);
+        if (!air_maps)
+            rc = sw_fail(err, SW_ERR_NOMEM, "out of memory for the wind and pressure maps");
+        else {
+            sw_forcing_maps(c.forcing, maps.wet, air_maps, air_maps + n);
+            sw_forcing_track(c.forcing, &maps.n_track, &maps.track_time_s, &maps.track_x_m, &maps.track_y_m,
+                             &maps.track_p_pa);
+            maps.wind_max_ms = air_maps;
+            maps.air_pressure_min_pa = air_maps + n;
+            for (size_t k = 0; k < n; k++) {
+                if (air_maps[k] > res->wind_max_ms || isnan(res->wind_max_ms))
+                    res->wind_max_ms = isnan(air_maps[k]) ? res->wind_max_ms : air_maps[k];
+                if (air_maps[n + k] < res->air_pressure_min_pa || isnan(res->air_pressure_min_pa))
+                    res->air_pressure_min_pa = isnan(air_maps[n + k]) ? res->air_pressure_min_pa : air_maps[n + k];
+            }
+        }
+    }
     if (rc == SW_OK) {
         sw_gauge_table table;
         res->max_abs_eta_m = sw_tracker_max_abs(c.tracker);
@@ -275,6 +345,9 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         }
     }
     sw_ncw_snapshots_abort(c.snaps);
+    free(air_maps);
+    free(c.air);
+    sw_forcing_free(c.forcing);
     free(c.frame);
     sw_gauges_free(c.gauges);
     sw_tracker_free(c.tracker);

@@ -70,10 +70,20 @@ typedef struct {
     double volume_start_m3, volume_end_m3; /* displaced water volume at start and end, m3 */
     double max_abs_eta_m;             /* largest |eta| anywhere, m */
     double noise_index;               /* grid-scale noise of the eta_max map (sw_tracker_noise) */
+    char forcing[3 * SW_PATH_MAX];    /* the forcing in force (sw_forcing_describe), "" when none */
+    double wind_max_ms;               /* highest 10 m wind over the water, m/s; NaN without an atmosphere */
+    double air_pressure_min_pa;       /* lowest air pressure over the water, Pa; NaN likewise */
 } sw_run_result;
 
 /* The caution every run, file and report carries: a simplified linear model, not a forecast. */
 const char *sw_caution(void);
+
+/* The caution of a run with a storm, weather file or level series: sw_caution's, and what a linear,
+ * depth-averaged surge sandbox leaves out (waves, tide-surge interaction, flooding of land). */
+const char *sw_caution_surge(void);
+
+/* The caution for scenario sc: sw_caution_surge when it has forcing, else sw_caution. */
+const char *sw_caution_for(const sw_scenario *sc);
 
 /* Runs the scenario with the setup built from it and writes <out_dir>/<prefix>gauges.nc (when there
  * are gauges), maps.nc and (with a snapshot interval) snapshots.nc, each only once complete. Fills *res. On failure (I/O,

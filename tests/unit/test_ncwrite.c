@@ -199,7 +199,7 @@ static sw_gauge_table gauge_table(double *eta, double *u, double *v)
     }
     for (size_t t = 0; t < NT; t++)  /* the third gauge is on land: no values */
         eta[2 * NT + t] = u[2 * NT + t] = v[2 * NT + t] = NAN;
-    sw_gauge_table gt = {NS, NT, G_NAMES, G_X, G_Y, G_DEPTH, G_TIME, eta, u, v};
+    sw_gauge_table gt = {NS, NT, G_NAMES, G_X, G_Y, G_DEPTH, G_TIME, eta, u, v, NULL, NULL, NULL};
     return gt;
 }
 
@@ -353,7 +353,7 @@ static sw_map_set map_set(map_data *d)
         d->speed[k] = i > 0 ? 0.125 * (double)k : NAN;
     }
     d->arrival[MN - 1] = NAN;
-    sw_map_set m = {&M_GRID, d->depth, d->wet, d->eta_max, d->eta_min, d->arrival, d->max_time, d->speed};
+    sw_map_set m = {&M_GRID, d->depth, d->wet, d->eta_max, d->eta_min, d->arrival, d->max_time, d->speed, NULL, NULL, 0, NULL, NULL, NULL, NULL};
     return m;
 }
 

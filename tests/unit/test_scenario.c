@@ -374,7 +374,20 @@ static void test_messages_name_file_line_key(void **state)
         { BASE "[edges west]\n", SW_ERR_PARSE, "t.scn:9: section [edges] takes no name", NULL },
         { BASE "[]\n", SW_ERR_PARSE, "t.scn:9: empty section header", NULL },
         { BASE "[Run]\n", SW_ERR_PARSE, "t.scn:9: unknown section [Run] (did you mean 'run'?)", NULL },
-        { BASE "[weather]\n", SW_ERR_PARSE, "t.scn:9: unknown section [weather] (accepted: run, grid", NULL },
+        { BASE "[tide]\n", SW_ERR_PARSE, "t.scn:9: unknown section [tide] (accepted: run, grid", NULL },
+        /* what drives the water after t = 0 */
+        { BASE "[weather]\n", SW_ERR_PARSE, "t.scn:9: [weather] missing key 'file' (accepted: a NetCDF file", NULL },
+        { BASE "[storm]\ntrack = a.txt\n[weather]\nfile = b.nc\n", SW_ERR_PARSE,
+          "t.scn:11: [storm] (line 9) and [weather] (line 11) are both given (accepted: one of them)", NULL },
+        { BASE "[wind]\ndrag_law = wu\n", SW_ERR_PARSE, "t.scn:9: [wind] without [storm] or [weather]", NULL },
+        { BASE "[storm]\ntrack = a.txt\n[wind]\ndrag_law = smith\n", SW_ERR_PARSE,
+          "t.scn:12: [wind] drag_law = smith: unknown value", "large-pond, wu, garratt" },
+        { BASE "[storm]\ntrack = a.txt\nrmax_factor = 0\n", SW_ERR_RANGE,
+          "t.scn:11: [storm] rmax_factor = 0: out of range (accepted: 0 < rmax_factor <= 10)", NULL },
+        { BASE "[edges]\nlevel_series = tide.txt\n", SW_ERR_PARSE,
+          "t.scn:10: [edges] level_series: no edge is `level` (accepted: with at least one edge = level)", NULL },
+        { BASE "[edges]\nwest = level\nlevel_variable = z\n", SW_ERR_PARSE,
+          "t.scn:11: [edges] level_variable: not used without level_series", NULL },
         { BASE "[run] extra\n", SW_ERR_PARSE, "t.scn:9: unexpected ' extra' after the section header [run]", NULL },
         /* missing keys: at the header line */
         { "[run]\ntitle = x\n[grid]\nnx = 1\nny = 1\ndx = 1\n[seabed]\ndeep = 1\n", SW_ERR_PARSE,
@@ -800,6 +813,35 @@ static void test_load_file_and_resolve(void **state)
     del_sc(sc);
 }
 
+/* [storm], [wind] and a level series: the values, the defaults (common practice, docs/storm-surge.md) and
+ * the surface term they switch on. */
+static void test_forcing_keys(void **state)
+{
+    (void)state;
+    sw_scenario *sc = parse_ok(BASE "[edges]\nwest = level\nlevel_series = tide.txt\n[storm]\ntrack = a.txt\n"
+                               "inflow_angle = 25\nshift_across = 30 km\n[wind]\ndrag_law = garratt\ndrag_cap = 2.5e-3\n");
+    const sw_forcing_spec *f = &sc->forcing;
+    assert_int_equal(f->storm, 1);
+    assert_int_equal(f->weather, 0);
+    assert_string_equal(f->track, "a.txt");
+    assert_string_equal(f->level_file, "tide.txt");
+    assert_true(f->inflow_deg == 25);
+    assert_true(f->shift_across_m == 30e3);
+    assert_int_equal(f->drag_law, 2);
+    assert_true(f->drag_cap == 2.5e-3);
+    assert_true(f->reduction == 0.8);          /* defaults */
+    assert_true(f->air_density_kgm3 == 1.15);
+    assert_true(f->water_density_kgm3 == 1025);
+    assert_true(f->ambient_hpa == 1013);
+    assert_true(f->update_s == 300);
+    assert_int_equal(sc->terms.surface, 1);
+    del_sc(sc);
+    sc = parse_ok(BASE);
+    assert_int_equal(sc->forcing.storm + sc->forcing.weather, 0);
+    assert_int_equal(sc->terms.surface, 0);
+    del_sc(sc);
+}
+
 static void test_dir_of_paths(void **state)
 {
     (void)state;
@@ -957,6 +999,7 @@ int main(void)
         cmocka_unit_test(test_lengths_and_limits),
         cmocka_unit_test(test_nasty_inputs),
         cmocka_unit_test(test_load_file_and_resolve),
+        cmocka_unit_test(test_forcing_keys),
         cmocka_unit_test(test_dir_of_paths),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
