@@ -99,6 +99,8 @@ typedef struct {
     int unit;                    /* sw_unit_kind (units.h) of the values */
     int integer;                 /* 1: whole numbers (e.g. grid.nx) */
     int layout;                  /* 1: values are layouts */
+    const char *const *words;    /* a key of named choices (e.g. wind.drag_law): its words, NULL-terminated;
+                                  * the values are their indices (0 = the first word); NULL otherwise */
     int line;                    /* line of the parameter in the file */
     int is_range;                /* 1: written as `LO .. HI` (optionally `in N`) */
     double lo, hi;               /* the range, base units (is_range) */

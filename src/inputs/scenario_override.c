@@ -289,13 +289,17 @@ sw_status sw_scenario_value(const sw_scenario *sc, const char *target, double *o
     const section_def *def = scn_find_section_def(kind, NULL);
     const key_def *k = scn_find_key(def, key, NULL);
     const void *home = k ? home_for(sc, def, k, name) : NULL;
-    if (!home || (!scn_is_numeric(k->kind) && k->kind != K_LAYOUT))
+    if (!home || (!scn_is_numeric(k->kind) && k->kind != K_LAYOUT && k->kind != K_CHOICE))
         return sw_fail(err, SW_ERR_RANGE, "%s: %s: no such numeric key in this scenario", sc->path, target);
     const char *at = (const char *)home + k->off;
     if (k->kind == K_LAYOUT) {
         if (!scn_layout_index(at, out))
             return sw_fail(err, SW_ERR_RANGE, "%s: %s = %s: not a layout of this build (accepted: %s)", sc->path,
                            target, at, sw_layout_names());
+    } else if (k->kind == K_CHOICE) {   /* the index of its word */
+        int v;
+        memcpy(&v, at, sizeof v);
+        *out = (double)(v - k->first);
     } else if (k->kind == K_INTEGER) {
         size_t v;
         memcpy(&v, at, sizeof v);

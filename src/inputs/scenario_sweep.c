@@ -14,6 +14,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 
 #include "model/layout.h"
 
@@ -70,6 +71,18 @@ int scn_add_sweep_entry(parse_state *ps, const char *name, const char *value)
 /* Reads one value of parameter p (key k) into *v; layouts as their registry index. */
 static sw_status sweep_value(const key_def *k, const char *text, double *v, char *why, size_t n)
 {
+    if (k->kind == K_CHOICE) {   /* a named choice: its index among the words */
+        char word[LINE_MAX_CHARS + 1];
+        snprintf(word, sizeof word, "%s", text);
+        scn_trim(word);
+        for (size_t q = 0; k->words[q]; q++)
+            if (strcasecmp(word, k->words[q]) == 0) {
+                *v = (double)q;
+                return SW_OK;
+            }
+        snprintf(why, n, "unknown value (accepted: %s)", k->accepted);
+        return SW_ERR_PARSE;
+    }
     if (k->kind == K_LAYOUT) {
         if (!scn_layout_index(text, v)) {
             snprintf(why, n, "unknown layout (accepted: %s)", sw_layout_names());
@@ -91,6 +104,9 @@ static int sweep_values(parse_state *ps, const sweep_entry *e, const key_def *k,
         if (k->kind == K_LAYOUT)
             return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: a layout takes a list, not a range "
                                "(accepted: e.g. A, C)", e->name, e->value);
+        if (k->kind == K_CHOICE)
+            return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s = %s: a choice takes a list, not a range "
+                               "(accepted: a list of %s)", e->name, e->value, k->accepted);
         char lo[LINE_MAX_CHARS + 1], hi[LINE_MAX_CHARS + 1], count[LINE_MAX_CHARS + 1] = "";
         memcpy(lo, text, (size_t)(dots - text));
         lo[dots - text] = '\0';
@@ -193,7 +209,7 @@ static int sweep_key_target(parse_state *ps, const sweep_entry *e, const char *t
     }
     if (def->type == S_GAUGES || def->type == S_SWEEP)
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: [%s] entries cannot be varied (accepted: keys of "
-                           "[run], [grid], [seabed], features and sources)", e->name, kind);
+                           "[run], [grid], [seabed], [storm], [wind], features and sources)", e->name, kind);
     const section_ctx *sec = find_named_section(ps, def, name);
     if (!sec)
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: the file has no section [%s%s%s] to vary",
@@ -205,9 +221,11 @@ static int sweep_key_target(parse_state *ps, const sweep_entry *e, const char *t
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s has no key '%s'%s", e->name, sec->label, key,
                            scn_suggest_text(&s, hint, sizeof hint));
     }
-    if (!scn_is_numeric(k->kind) && k->kind != K_LAYOUT)
-        return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s %s is not a number (accepted: numeric keys, and "
-                           "run.layout)", e->name, sec->label, key);
+    /* numbers, the layout, and named choices of the storm surge ([wind] drag_law) */
+    const int choice = k->kind == K_CHOICE && def->type == S_WIND;
+    if (!scn_is_numeric(k->kind) && k->kind != K_LAYOUT && !choice)
+        return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s %s is not a number (accepted: numeric keys, "
+                           "run.layout and wind.drag_law)", e->name, sec->label, key);
     unsigned active = 1;
     if (def->type == S_SEABED)
         active = ps->sc->bed_file[0] ? BED_FILE : BED_RECIPE;
@@ -295,6 +313,7 @@ static int sweep_param(parse_state *ps, const sweep_entry *e)
     p->unit = (int)scn_unit_kind(k->kind);
     p->integer = k->kind == K_INTEGER;
     p->layout = k->kind == K_LAYOUT;
+    p->words = k->kind == K_CHOICE ? k->words : NULL;
     if (!sweep_values(ps, e, k, p))
         return 0;
     sw->n_params++;

@@ -33,6 +33,8 @@ const char *swp_unit_text(const sw_sweep_param *p)
 {
     if (p->layout)
         return "layout";
+    if (p->words)
+        return "choice";
     switch ((sw_unit_kind)p->unit) {
     case SW_UNIT_LENGTH: return "m";
     case SW_UNIT_TIME: return "s";
@@ -51,12 +53,23 @@ static const char *layout_name(double v)
     return lay ? lay->name : "?";
 }
 
+/* The word a choice value stands for (its index among p->words). */
+static const char *choice_word(const sw_sweep_param *p, double v)
+{
+    size_t n = 0;
+    while (p->words[n])
+        n++;
+    return v >= 0 && (size_t)v < n ? p->words[(size_t)v] : "?";
+}
+
 /* The exact text of value v for an override: every double round-trips through "%.17g". */
 void swp_override_text(const sw_sweep_param *p, double v, char *buf, size_t n)
 {
     const char *u = swp_unit_text(p);
     if (p->layout)
         snprintf(buf, n, "%s", layout_name(v));
+    else if (p->words)
+        snprintf(buf, n, "%s", choice_word(p, v));
     else if (p->integer)
         snprintf(buf, n, "%.0f", v);
     else if (strcmp(u, "1") == 0)
@@ -73,6 +86,8 @@ void sw_sweep_format_value(const sw_sweep_param *p, double v, char *buf, size_t 
     }
     if (p->layout)
         snprintf(buf, n, "%s", layout_name(v));
+    else if (p->words)
+        snprintf(buf, n, "%s", choice_word(p, v));
     else if (p->unit == SW_UNIT_LENGTH && fabs(v) >= 1000)
         snprintf(buf, n, "%.6g km", v / 1000);
     else if (p->unit == SW_UNIT_NONE)

@@ -246,7 +246,7 @@ static void run_one(sweep_ctx *c, size_t k, int threads, int side_by_side)
         char path[SW_PATH_MAX + 32];
         swp_member_file(plan, k, "nc", path, sizeof path);
         SW_OMP(critical(sw_netcdf))
-        st = sw_ncs_member_write(path, &r, plan->member[k].value, plan->n_params, &plan->base_grid, sw_caution(), &e);
+        st = sw_ncs_member_write(path, &r, plan->member[k].value, plan->n_params, &plan->base_grid, sw_caution_for(plan->base), &e);
         kept = st == SW_OK;
     }
     sw_sweep_member_result_free(&r);
@@ -342,7 +342,7 @@ sw_status sw_sweep_run(sw_sweep_plan *plan, const sw_sweep_options *opt, sw_swee
         if (st == SW_OK && m->status != SW_OK) {   /* cannot run: kept as a failed member right away */
             sw_sweep_member_result r = { .index = k, .status = m->status };
             snprintf(r.error, sizeof r.error, "%s", m->error ? m->error : "");
-            st = sw_ncs_member_write(path, &r, m->value, plan->n_params, &plan->base_grid, sw_caution(), err);
+            st = sw_ncs_member_write(path, &r, m->value, plan->n_params, &plan->base_grid, sw_caution_for(plan->base), err);
             c.done++;
             continue;
         }

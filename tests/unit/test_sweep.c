@@ -234,6 +234,45 @@ static void override_ok(const sw_scenario *sc, const sw_override *ov, size_t n, 
         fail_msg("override refused: %s", err.msg);
 }
 
+/* A storm surge's parameters: [storm] keys and the [wind] drag law, a choice swept by its words. */
+static void test_storm_sweep(void **state)
+{
+    (void)state;
+    const char *text = "[run]\nduration = 1 h\n[grid]\nnx = 10\nny = 10\ndx = 1 km\n[seabed]\ndeep = 50 m\n"
+                       "[storm]\ntrack = t.txt\n[wind]\ndrag_law = wu\n[sweep]\nstorm.shift_across = -20 km, 20 km\n"
+                       "storm.pressure_drop_factor = 0.8, 1.2\nwind.drag_law = large-pond, Garratt\n";
+    sw_scenario *sc = parse_ok(text);
+    const sw_sweep_spec *sw = &sc->sweep;
+    assert_int_equal(sw->n_params, 3);
+    assert_string_equal(sw->param[0].target, "storm.shift_across");
+    assert_true(sw->param[0].level[1] == 20e3);
+    assert_null(sw->param[0].words);
+    const sw_sweep_param *law = &sw->param[2];
+    assert_non_null(law->words);
+    assert_int_equal(law->n_levels, 2);
+    assert_true(law->level[0] == 0 && law->level[1] == 2);   /* large-pond, garratt */
+    char buf[64];
+    sw_sweep_format_value(law, 2, buf, sizeof buf);
+    assert_string_equal(buf, "garratt");
+    double v;
+    sw_error err = {0};
+    assert_int_equal(sw_scenario_value(sc, "wind.drag_law", &v, &err), SW_OK);   /* the base: wu */
+    assert_true(v == 1);
+    /* the override a member gets is the word, read back through the key table */
+    sw_override ov = {.target = "wind.drag_law", .value = "garratt"};
+    sw_scenario out = {0};
+    assert_int_equal(sw_scenario_override(sc, &ov, 1, &out, &err), SW_OK);
+    assert_int_equal(out.forcing.drag_law, 2);
+    sw_scenario_free(&out);
+    del_sc(sc);
+    parse_bad("[run]\nduration = 1 h\n[grid]\nnx = 10\nny = 10\ndx = 1 km\n[seabed]\ndeep = 50 m\n[storm]\n"
+              "track = t.txt\n[wind]\n[sweep]\nwind.drag_law = wu .. garratt\n", SW_ERR_PARSE,
+              "t.scn:13: [sweep] wind.drag_law = wu .. garratt: a choice takes a list", NULL);
+    parse_bad("[run]\nduration = 1 h\n[grid]\nnx = 10\nny = 10\ndx = 1 km\n[seabed]\ndeep = 50 m\n[storm]\n"
+              "track = t.txt\n[wind]\n[sweep]\nwind.drag_law = wu, smith\n", SW_ERR_PARSE, "t.scn:13:",
+              "unknown value (accepted: large-pond, wu, garratt)");
+}
+
 static void test_override(void **state)
 {
     (void)state;
@@ -619,6 +658,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_sweep_values),
         cmocka_unit_test(test_sweep_errors),
+        cmocka_unit_test(test_storm_sweep),
         cmocka_unit_test(test_override),
         cmocka_unit_test(test_designs),
         cmocka_unit_test(test_statistics),
