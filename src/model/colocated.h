@@ -35,17 +35,22 @@ SW_INLINE sw_real sw_colocated_eta_cell(const sw_cells *c, size_t k)
 }
 
 /* Momentum (backward: from the new eta of this row and its two neighbours) on padded row j; a point
- * with hx (hy) = 0 is held at rest. */
-SW_INLINE void sw_colocated_momentum(const sw_view *v, size_t j)
+ * with hx (hy) = 0 is held at rest. With `forced` the surface forcing's increment is added (stage.h). */
+SW_INLINE void sw_colocated_momentum(const sw_view *v, size_t j, const int forced)
 {
     sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
     const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
     const size_t s = v->stride, r = j * s;
+    const float *restrict ax0 = forced ? v->terms->surface_x[0] : NULL, *restrict ax1 = forced ? v->terms->surface_x[1] : NULL;
+    const float *restrict ay0 = forced ? v->terms->surface_y[0] : NULL, *restrict ay1 = forced ? v->terms->surface_y[1] : NULL;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + v->nx; i++) {
-        u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i - 1]) : 0;
-        vv[i] = hy[i] > 0 ? vv[i] - gy * (eta[i + s] - eta[i - s]) : 0;
+        u[i] = hx[i] > 0 ? (forced ? u[i] - gx * (eta[i + 1] - eta[i - 1]) + sw_surface_dvel(ax0, ax1, i, c0, c1)
+                                   : u[i] - gx * (eta[i + 1] - eta[i - 1])) : 0;
+        vv[i] = hy[i] > 0 ? (forced ? vv[i] - gy * (eta[i + s] - eta[i - s]) + sw_surface_dvel(ay0, ay1, i, c0, c1)
+                                    : vv[i] - gy * (eta[i + s] - eta[i - s])) : 0;
     }
 }
 
@@ -64,7 +69,7 @@ SW_INLINE void sw_colocated_momentum_terms(const sw_view *v, size_t j, const int
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
     const float *restrict ax0 = forced ? v->terms->surface_x[0] : NULL, *restrict ax1 = forced ? v->terms->surface_x[1] : NULL;
     const float *restrict ay0 = forced ? v->terms->surface_y[0] : NULL, *restrict ay1 = forced ? v->terms->surface_y[1] : NULL;
-    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + v->nx; i++) {
@@ -72,14 +77,12 @@ SW_INLINE void sw_colocated_momentum_terms(const sw_view *v, size_t j, const int
         sw_real rx = rho0, ry = rho0;
         if (drag)
             rx += dtc * cdx[i] * (sw_real)sqrt(u0 * u0 + v0 * v0);
-        const sw_real u1 = forced ? sw_terms_update_forced(u0, Hx, -gx * (eta[i + 1] - eta[i - 1]), 2 * Hx * F * v0, rx,
-                                                           sw_surface_push(ax0, ax1, i, c2, w))
+        const sw_real u1 = forced ? sw_terms_update(u0, Hx, -gx * (eta[i + 1] - eta[i - 1]) + sw_surface_dvel(ax0, ax1, i, c0, c1), 2 * Hx * F * v0, rx)
                                   : sw_terms_update(u0, Hx, -gx * (eta[i + 1] - eta[i - 1]), 2 * Hx * F * v0, rx);
         if (drag)
             ry += dtc * cdy[i] * (sw_real)sqrt(u1 * u1 + v0 * v0);
         u[i] = u1;
-        vv[i] = forced ? sw_terms_update_forced(v0, Hy, -gy * (eta[i + s] - eta[i - s]), -2 * Hy * F * u1, ry,
-                                                sw_surface_push(ay0, ay1, i, c2, w))
+        vv[i] = forced ? sw_terms_update(v0, Hy, -gy * (eta[i + s] - eta[i - s]) + sw_surface_dvel(ay0, ay1, i, c0, c1), -2 * Hy * F * u1, ry)
                        : sw_terms_update(v0, Hy, -gy * (eta[i + s] - eta[i - s]), -2 * Hy * F * u1, ry);
     }
 }

@@ -83,10 +83,11 @@ static void a_continuity_observed(const sw_view *v, size_t j, size_t f, float *b
 }
 
 /* Momentum on padded row j, plain and with the terms: the co-located stencil (colocated.h). */
-static void a_momentum(const sw_view *v, size_t j) { sw_colocated_momentum(v, j); }
+static void a_momentum(const sw_view *v, size_t j) { sw_colocated_momentum(v, j, 0); }
+static void a_momentum_forced(const sw_view *v, size_t j) { sw_colocated_momentum(v, j, 1); }
 static void a_momentum_linear(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0, 0); }
 static void a_momentum_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1, 0); }
-static void a_momentum_forced(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0, 1); }
+static void a_momentum_forced_linear(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0, 1); }
 static void a_momentum_forced_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1, 1); }
 
 /* Ghost normal velocities: the outgoing wave's (open) or the inner cell's mirror (level). */
@@ -141,11 +142,13 @@ const sw_layout_kernels SW_NAME(sw_layout_a_kernels) = {
     .momentum = {
         [SW_TERMS_PLAIN] = {{a_momentum, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                              {SW_ROWS(-1, 1), SW_NO_ROWS, SW_NO_ROWS}, 0}},
+        [SW_TERMS_FORCED] = {{a_momentum_forced, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                             {SW_ROWS(-1, 1), SW_NO_ROWS, SW_NO_ROWS}, 0}},
         [SW_TERMS_LINEAR] = {{a_momentum_linear, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                               {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
         [SW_TERMS_DRAG] = {{a_momentum_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
-        [SW_TERMS_FORCED] = {{a_momentum_forced, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+        [SW_TERMS_FORCED_LINEAR] = {{a_momentum_forced_linear, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
         [SW_TERMS_FORCED_DRAG] = {{a_momentum_forced_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},

@@ -167,16 +167,21 @@ static void b_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, f
 }
 
 /* Momentum (backward) on corner row j (columns 0..nx): from the new eta of cell rows j and j+1. */
-static void b_momentum(const sw_view *v, size_t j)
+SW_INLINE void b_momentum_plain(const sw_view *v, size_t j, const int forced)
 {
     sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
     const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
     const size_t s = v->stride, r = j * s;
+    const float *restrict ax0 = forced ? v->terms->surface_x[0] : NULL, *restrict ax1 = forced ? v->terms->surface_x[1] : NULL;
+    const float *restrict ay0 = forced ? v->terms->surface_y[0] : NULL, *restrict ay1 = forced ? v->terms->surface_y[1] : NULL;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     SW_OMP(simd)
     for (size_t i = r; i <= r + v->nx; i++) {
-        u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] + eta[i + s + 1] - eta[i] - eta[i + s]) : 0;
-        vv[i] = hy[i] > 0 ? vv[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]) : 0;
+        const sw_real du = gx * (eta[i + 1] + eta[i + s + 1] - eta[i] - eta[i + s]);
+        const sw_real dv = gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]);
+        u[i] = hx[i] > 0 ? (forced ? u[i] - du + sw_surface_dvel(ax0, ax1, i, c0, c1) : u[i] - du) : 0;
+        vv[i] = hy[i] > 0 ? (forced ? vv[i] - dv + sw_surface_dvel(ay0, ay1, i, c0, c1) : vv[i] - dv) : 0;
     }
 }
 
@@ -198,7 +203,7 @@ SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag, cons
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
     const float *restrict ax0 = forced ? v->terms->surface_x[0] : NULL, *restrict ax1 = forced ? v->terms->surface_x[1] : NULL;
     const float *restrict ay0 = forced ? v->terms->surface_y[0] : NULL, *restrict ay1 = forced ? v->terms->surface_y[1] : NULL;
-    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r; i <= r + v->nx; i++) {
@@ -207,20 +212,22 @@ SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag, cons
         if (drag)
             rx += dtc * cdx[i] * (c * c) * (sw_real)sqrt(u0 * u0 + v0 * v0);
         const sw_real dgx = -gx * (eta[i + 1] + eta[i + s + 1] - eta[i] - eta[i + s]);
-        const sw_real u1 = forced ? sw_terms_update_forced(u0, Hx, dgx, 2 * Hx * F * v0, rx, sw_surface_push(ax0, ax1, i, c2, w))
+        const sw_real u1 = forced ? sw_terms_update(u0, Hx, dgx + sw_surface_dvel(ax0, ax1, i, c0, c1), 2 * Hx * F * v0, rx)
                                   : sw_terms_update(u0, Hx, dgx, 2 * Hx * F * v0, rx);
         if (drag)
             ry += dtc * cdy[i] * (c * c) * (sw_real)sqrt(u1 * u1 + v0 * v0);
         u[i] = u1;
         const sw_real dgy = -gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]);
-        vv[i] = forced ? sw_terms_update_forced(v0, Hy, dgy, -2 * Hy * F * u1, ry, sw_surface_push(ay0, ay1, i, c2, w))
+        vv[i] = forced ? sw_terms_update(v0, Hy, dgy + sw_surface_dvel(ay0, ay1, i, c0, c1), -2 * Hy * F * u1, ry)
                        : sw_terms_update(v0, Hy, dgy, -2 * Hy * F * u1, ry);
     }
 }
 
+static void b_momentum(const sw_view *v, size_t j) { b_momentum_plain(v, j, 0); }
+static void b_momentum_forced(const sw_view *v, size_t j) { b_momentum_plain(v, j, 1); }
 static void b_momentum_linear(const sw_view *v, size_t j) { b_momentum_terms(v, j, 0, 0); }
 static void b_momentum_drag(const sw_view *v, size_t j) { b_momentum_terms(v, j, 1, 0); }
-static void b_momentum_forced(const sw_view *v, size_t j) { b_momentum_terms(v, j, 0, 1); }
+static void b_momentum_forced_linear(const sw_view *v, size_t j) { b_momentum_terms(v, j, 0, 1); }
 static void b_momentum_forced_drag(const sw_view *v, size_t j) { b_momentum_terms(v, j, 1, 1); }
 
 /* Centre values: eta as stored; velocity = the four corners' mean volume flux (hx u = depth x
@@ -292,11 +299,13 @@ const sw_layout_kernels SW_NAME(sw_layout_b_kernels) = {
     .momentum = {
         [SW_TERMS_PLAIN] = {{b_momentum, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                              {SW_ROWS(0, 1), SW_NO_ROWS, SW_NO_ROWS}, 1}},
+        [SW_TERMS_FORCED] = {{b_momentum_forced, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                             {SW_ROWS(0, 1), SW_NO_ROWS, SW_NO_ROWS}, 1}},
         [SW_TERMS_LINEAR] = {{b_momentum_linear, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                               {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 1}},
         [SW_TERMS_DRAG] = {{b_momentum_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 1}},
-        [SW_TERMS_FORCED] = {{b_momentum_forced, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+        [SW_TERMS_FORCED_LINEAR] = {{b_momentum_forced_linear, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 1}},
         [SW_TERMS_FORCED_DRAG] = {{b_momentum_forced_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 1}},

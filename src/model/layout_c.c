@@ -115,27 +115,33 @@ static void c_continuity_observed(const sw_view *v, size_t j, size_t f, float *b
 }
 
 /* u on the faces of padded row j from its west edge face to its east edge face (new eta of row j). */
-static void c_u_row(const sw_view *v, size_t j)
+SW_INLINE void c_u_plain(const sw_view *v, size_t j, const int forced)
 {
     sw_real *restrict u = SW_V(v, u);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx);
     const sw_real gx = (sw_real)(v->g * v->dt_s / v->dx_m);
     const size_t k0 = j * v->stride + 1;
+    const float *restrict a0 = forced ? v->terms->surface_x[0] : NULL, *restrict a1 = forced ? v->terms->surface_x[1] : NULL;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     SW_OMP(simd)
     for (size_t i = k0 - 1; i < k0 + v->nx; i++)
-        u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] - eta[i]) : 0;
+        u[i] = hx[i] > 0 ? (forced ? u[i] - gx * (eta[i + 1] - eta[i]) + sw_surface_dvel(a0, a1, i, c0, c1)
+                                   : u[i] - gx * (eta[i + 1] - eta[i])) : 0;
 }
 
 /* v on the north faces of padded row j (row 0: the south edge's faces), from the new eta of rows j, j+1. */
-static void c_v_row(const sw_view *v, size_t j)
+SW_INLINE void c_v_plain(const sw_view *v, size_t j, const int forced)
 {
     sw_real *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hy = SW_V(v, hy);
     const sw_real gy = (sw_real)(v->g * v->dt_s / v->dy_m);
     const size_t k0 = j * v->stride + 1, s = v->stride;
+    const float *restrict a0 = forced ? v->terms->surface_y[0] : NULL, *restrict a1 = forced ? v->terms->surface_y[1] : NULL;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     SW_OMP(simd)
     for (size_t i = k0; i < k0 + v->nx; i++)
-        vv[i] = hy[i] > 0 ? vv[i] - gy * (eta[i + s] - eta[i]) : 0;
+        vv[i] = hy[i] > 0 ? (forced ? vv[i] - gy * (eta[i + s] - eta[i]) + sw_surface_dvel(a0, a1, i, c0, c1)
+                                    : vv[i] - gy * (eta[i + s] - eta[i])) : 0;
 }
 
 /* The momentum stages with rotation and friction (terms.h; docs/terms.md derives the weights).
@@ -156,7 +162,7 @@ SW_INLINE void c_u_terms(const sw_view *v, size_t j, const int drag, const int f
     const sw_real qn = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j - 1]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
     const float *restrict a0 = forced ? v->terms->surface_x[0] : NULL, *restrict a1 = forced ? v->terms->surface_x[1] : NULL;
-    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     const size_t k0 = j * v->stride + 1, s = v->stride;
     SW_OMP(simd)
     for (size_t i = k0 - 1; i < k0 + v->nx; i++) {
@@ -168,7 +174,7 @@ SW_INLINE void c_u_terms(const sw_view *v, size_t j, const int drag, const int f
             rho += dtc * cd[i] * (sw_real)sqrt(u[i] * u[i] + vbar * vbar);
         }
         if (forced)
-            u[i] = sw_terms_update_forced(u[i], hx[i], -gx * (eta[i + 1] - eta[i]), rot, rho, sw_surface_push(a0, a1, i, c2, w));
+            u[i] = sw_terms_update(u[i], hx[i], -gx * (eta[i + 1] - eta[i]) + sw_surface_dvel(a0, a1, i, c0, c1), rot, rho);
         else
             u[i] = sw_terms_update(u[i], hx[i], -gx * (eta[i + 1] - eta[i]), rot, rho);
     }
@@ -183,7 +189,7 @@ SW_INLINE void c_v_terms(const sw_view *v, size_t j, const int drag, const int f
     const sw_real q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
     const float *restrict a0 = forced ? v->terms->surface_y[0] : NULL, *restrict a1 = forced ? v->terms->surface_y[1] : NULL;
-    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     const size_t k0 = j * v->stride + 1, s = v->stride;
     SW_OMP(simd)
     for (size_t i = k0; i < k0 + v->nx; i++) {
@@ -194,18 +200,22 @@ SW_INLINE void c_v_terms(const sw_view *v, size_t j, const int drag, const int f
             rho += dtc * cd[i] * (sw_real)sqrt(vv[i] * vv[i] + ubar * ubar);
         }
         if (forced)
-            vv[i] = sw_terms_update_forced(vv[i], H, -gy * (eta[i + s] - eta[i]), -(q * H * sum), rho, sw_surface_push(a0, a1, i, c2, w));
+            vv[i] = sw_terms_update(vv[i], H, -gy * (eta[i + s] - eta[i]) + sw_surface_dvel(a0, a1, i, c0, c1), -(q * H * sum), rho);
         else
             vv[i] = sw_terms_update(vv[i], H, -gy * (eta[i + s] - eta[i]), -(q * H * sum), rho);
     }
 }
 
+static void c_u_row(const sw_view *v, size_t j) { c_u_plain(v, j, 0); }
+static void c_v_row(const sw_view *v, size_t j) { c_v_plain(v, j, 0); }
+static void c_u_forced(const sw_view *v, size_t j) { c_u_plain(v, j, 1); }
+static void c_v_forced(const sw_view *v, size_t j) { c_v_plain(v, j, 1); }
 static void c_u_linear(const sw_view *v, size_t j) { c_u_terms(v, j, 0, 0); }
 static void c_v_linear(const sw_view *v, size_t j) { c_v_terms(v, j, 0, 0); }
 static void c_u_drag(const sw_view *v, size_t j) { c_u_terms(v, j, 1, 0); }
 static void c_v_drag(const sw_view *v, size_t j) { c_v_terms(v, j, 1, 0); }
-static void c_u_forced(const sw_view *v, size_t j) { c_u_terms(v, j, 0, 1); }
-static void c_v_forced(const sw_view *v, size_t j) { c_v_terms(v, j, 0, 1); }
+static void c_u_forced_linear(const sw_view *v, size_t j) { c_u_terms(v, j, 0, 1); }
+static void c_v_forced_linear(const sw_view *v, size_t j) { c_v_terms(v, j, 0, 1); }
 static void c_u_forced_drag(const sw_view *v, size_t j) { c_u_terms(v, j, 1, 1); }
 static void c_v_forced_drag(const sw_view *v, size_t j) { c_v_terms(v, j, 1, 1); }
 
@@ -281,12 +291,14 @@ const sw_layout_kernels SW_NAME(sw_layout_c_kernels) = {
     .momentum = {
         [SW_TERMS_PLAIN] = {{c_u_row, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_NO_ROWS, SW_NO_ROWS}, 0},
                             {c_v_row, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_NO_ROWS, SW_NO_ROWS}, 1}},
+        [SW_TERMS_FORCED] = {{c_u_forced, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_NO_ROWS, SW_NO_ROWS}, 0},
+                            {c_v_forced, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_NO_ROWS, SW_NO_ROWS}, 1}},
         [SW_TERMS_LINEAR] = {{c_u_linear, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
                              {c_v_linear, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_ROWS(0, 1), SW_ROWS(0, 0)}, 1}},
         [SW_TERMS_DRAG] = {{c_u_drag, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
                            {c_v_drag, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_ROWS(0, 1), SW_ROWS(0, 0)}, 1}},
-        [SW_TERMS_FORCED] = {{c_u_forced, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
-                             {c_v_forced, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_ROWS(0, 1), SW_ROWS(0, 0)}, 1}},
+        [SW_TERMS_FORCED_LINEAR] = {{c_u_forced_linear, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
+                             {c_v_forced_linear, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_ROWS(0, 1), SW_ROWS(0, 0)}, 1}},
         [SW_TERMS_FORCED_DRAG] = {{c_u_forced_drag, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 0), SW_ROWS(0, 0), SW_ROWS(-1, 0)}, 0},
                                   {c_v_forced_drag, SW_WRITES(SW_FIELD_V), {SW_ROWS(0, 1), SW_ROWS(0, 1), SW_ROWS(0, 0)}, 1}},
     },

@@ -228,27 +228,35 @@ static void d_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, f
 }
 
 /* u on the north faces of padded row j (row 0: the south edge's), from the new eta of rows j and j+1. */
-static void d_u_row(const sw_view *v, size_t j)
+SW_INLINE void d_u_plain(const sw_view *v, size_t j, const int forced)
 {
     sw_real *restrict u = SW_V(v, u);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx);
     const sw_real gx = (sw_real)(0.25 * v->g * v->dt_s / v->dx_m);
     const size_t s = v->stride, r = j * s;
+    const float *restrict a0 = forced ? v->terms->surface_x[0] : NULL, *restrict a1 = forced ? v->terms->surface_x[1] : NULL;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + v->nx; i++)
-        u[i] = hx[i] > 0 ? u[i] - gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s]) : 0;
+        u[i] = hx[i] > 0 ? (forced ? u[i] - gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s])
+                                         + sw_surface_dvel(a0, a1, i, c0, c1)
+                                   : u[i] - gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s])) : 0;
 }
 
 /* v on the east faces of padded row j (columns 0..nx), from the new eta of rows j-1 and j+1. */
-static void d_v_row(const sw_view *v, size_t j)
+SW_INLINE void d_v_plain(const sw_view *v, size_t j, const int forced)
 {
     sw_real *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hy = SW_V(v, hy);
     const sw_real gy = (sw_real)(0.25 * v->g * v->dt_s / v->dy_m);
     const size_t s = v->stride, r = j * s;
+    const float *restrict a0 = forced ? v->terms->surface_y[0] : NULL, *restrict a1 = forced ? v->terms->surface_y[1] : NULL;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     SW_OMP(simd)
     for (size_t i = r; i <= r + v->nx; i++)
-        vv[i] = hy[i] > 0 ? vv[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1]) : 0;
+        vv[i] = hy[i] > 0 ? (forced ? vv[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1])
+                                          + sw_surface_dvel(a0, a1, i, c0, c1)
+                                    : vv[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1])) : 0;
 }
 
 /* The momentum stages with rotation and friction (terms.h; docs/terms.md), as layout_c.c's with the
@@ -268,7 +276,7 @@ SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag, const int f
     const sw_real q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
     const float *restrict a0 = forced ? v->terms->surface_x[0] : NULL, *restrict a1 = forced ? v->terms->surface_x[1] : NULL;
-    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + v->nx; i++) {
@@ -281,7 +289,7 @@ SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag, const int f
             rho += dtc * cd[i] * (c * c) * (sw_real)sqrt(u[i] * u[i] + vbar * vbar);
         }
         const sw_real dg = -gx * (eta[i + 1] + eta[i + 1 + s] - eta[i - 1] - eta[i - 1 + s]);
-        u[i] = forced ? sw_terms_update_forced(u[i], hx[i], dg, rot, rho, sw_surface_push(a0, a1, i, c2, w))
+        u[i] = forced ? sw_terms_update(u[i], hx[i], dg + sw_surface_dvel(a0, a1, i, c0, c1), rot, rho)
                       : sw_terms_update(u[i], hx[i], dg, rot, rho);
     }
 }
@@ -296,7 +304,7 @@ SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag, const int f
     const sw_real qn = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j - 1]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
     const float *restrict a0 = forced ? v->terms->surface_y[0] : NULL, *restrict a1 = forced ? v->terms->surface_y[1] : NULL;
-    const sw_real c2 = (sw_real)(2 * v->dt_s), w = (sw_real)v->terms->surface_w;
+    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
     const size_t s = v->stride, r = j * s;
     SW_OMP(simd)
     for (size_t i = r; i <= r + v->nx; i++) {
@@ -309,17 +317,21 @@ SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag, const int f
             rho += dtc * cd[i] * (c * c) * (sw_real)sqrt(vv[i] * vv[i] + ubar * ubar);
         }
         const sw_real dg = -gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1]);
-        vv[i] = forced ? sw_terms_update_forced(vv[i], H, dg, -rot, rho, sw_surface_push(a0, a1, i, c2, w))
+        vv[i] = forced ? sw_terms_update(vv[i], H, dg + sw_surface_dvel(a0, a1, i, c0, c1), -rot, rho)
                        : sw_terms_update(vv[i], H, dg, -rot, rho);
     }
 }
 
+static void d_u_row(const sw_view *v, size_t j) { d_u_plain(v, j, 0); }
+static void d_v_row(const sw_view *v, size_t j) { d_v_plain(v, j, 0); }
+static void d_u_forced(const sw_view *v, size_t j) { d_u_plain(v, j, 1); }
+static void d_v_forced(const sw_view *v, size_t j) { d_v_plain(v, j, 1); }
 static void d_u_linear(const sw_view *v, size_t j) { d_u_terms(v, j, 0, 0); }
 static void d_v_linear(const sw_view *v, size_t j) { d_v_terms(v, j, 0, 0); }
 static void d_u_drag(const sw_view *v, size_t j) { d_u_terms(v, j, 1, 0); }
 static void d_v_drag(const sw_view *v, size_t j) { d_v_terms(v, j, 1, 0); }
-static void d_u_forced(const sw_view *v, size_t j) { d_u_terms(v, j, 0, 1); }
-static void d_v_forced(const sw_view *v, size_t j) { d_v_terms(v, j, 0, 1); }
+static void d_u_forced_linear(const sw_view *v, size_t j) { d_u_terms(v, j, 0, 1); }
+static void d_v_forced_linear(const sw_view *v, size_t j) { d_v_terms(v, j, 0, 1); }
 static void d_u_forced_drag(const sw_view *v, size_t j) { d_u_terms(v, j, 1, 1); }
 static void d_v_forced_drag(const sw_view *v, size_t j) { d_v_terms(v, j, 1, 1); }
 
@@ -427,12 +439,14 @@ const sw_layout_kernels SW_NAME(sw_layout_d_kernels) = {
     .momentum = {
         [SW_TERMS_PLAIN] = {{d_u_row, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_NO_ROWS, SW_NO_ROWS}, 1},
                             {d_v_row, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_NO_ROWS, SW_NO_ROWS}, 0}},
+        [SW_TERMS_FORCED] = {{d_u_forced, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_NO_ROWS, SW_NO_ROWS}, 1},
+                            {d_v_forced, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_NO_ROWS, SW_NO_ROWS}, 0}},
         [SW_TERMS_LINEAR] = {{d_u_linear, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 1)}, 1},
                              {d_v_linear, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_ROWS(-1, 0), SW_ROWS(0, 0)}, 0}},
         [SW_TERMS_DRAG] = {{d_u_drag, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 1)}, 1},
                            {d_v_drag, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_ROWS(-1, 0), SW_ROWS(0, 0)}, 0}},
-        [SW_TERMS_FORCED] = {{d_u_forced, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 1)}, 1},
-                           {d_v_forced, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_ROWS(-1, 0), SW_ROWS(0, 0)}, 0}},
+        [SW_TERMS_FORCED_LINEAR] = {{d_u_forced_linear, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 1)}, 1},
+                           {d_v_forced_linear, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_ROWS(-1, 0), SW_ROWS(0, 0)}, 0}},
         [SW_TERMS_FORCED_DRAG] = {{d_u_forced_drag, SW_WRITES(SW_FIELD_U), {SW_ROWS(0, 1), SW_ROWS(0, 0), SW_ROWS(0, 1)}, 1},
                            {d_v_forced_drag, SW_WRITES(SW_FIELD_V), {SW_ROWS(-1, 1), SW_ROWS(-1, 0), SW_ROWS(0, 0)}, 0}},
     },

@@ -158,10 +158,11 @@ static void e_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, f
 
 /* Momentum on padded row j, plain and with the terms: the co-located stencil (colocated.h);
  * eta cells have hx = hy = 0 and stay at rest. */
-static void e_momentum(const sw_view *v, size_t j) { sw_colocated_momentum(v, j); }
+static void e_momentum(const sw_view *v, size_t j) { sw_colocated_momentum(v, j, 0); }
+static void e_momentum_forced(const sw_view *v, size_t j) { sw_colocated_momentum(v, j, 1); }
 static void e_momentum_linear(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0, 0); }
 static void e_momentum_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1, 0); }
-static void e_momentum_forced(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0, 1); }
+static void e_momentum_forced_linear(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 0, 1); }
 static void e_momentum_forced_drag(const sw_view *v, size_t j) { sw_colocated_momentum_terms(v, j, 1, 1); }
 
 /* Ghost normal velocities beside eta cells: the outgoing wave's (open); on the mirror line, stepped like
@@ -256,11 +257,13 @@ const sw_layout_kernels SW_NAME(sw_layout_e_kernels) = {
     .momentum = {
         [SW_TERMS_PLAIN] = {{e_momentum, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                              {SW_ROWS(-1, 1), SW_NO_ROWS, SW_NO_ROWS}, 0}},
+        [SW_TERMS_FORCED] = {{e_momentum_forced, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+                             {SW_ROWS(-1, 1), SW_NO_ROWS, SW_NO_ROWS}, 0}},
         [SW_TERMS_LINEAR] = {{e_momentum_linear, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                               {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
         [SW_TERMS_DRAG] = {{e_momentum_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
-        [SW_TERMS_FORCED] = {{e_momentum_forced, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
+        [SW_TERMS_FORCED_LINEAR] = {{e_momentum_forced_linear, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},
         [SW_TERMS_FORCED_DRAG] = {{e_momentum_forced_drag, SW_WRITES(SW_FIELD_U) | SW_WRITES(SW_FIELD_V),
                             {SW_ROWS(-1, 1), SW_ROWS(0, 0), SW_ROWS(0, 0)}, 0}},

@@ -137,10 +137,10 @@ sw_precision sw_model_precision(const sw_model *m);    /* of the state arrays */
  *
  * The forcing is held in two slabs, at two forcing times around the step, and is linear in time between
  * them: each step's momentum takes slab0 + w (slab1 - slab0) with the weight w set for the step's
- * time (sw_model_surface_weight). A slab holds, at every velocity point, the depth the point carries
- * times its acceleration, tau / rho_w - H g grad(p_b): the air pressure enters as a head of water p_b
- * whose gradient is the layout's own gradient of eta (so a still sea under steady pressure settles to
- * eta = -p_b exactly, the inverse barometer), the wind stress at the point's own position. */
+ * time (sw_model_surface_weight). A slab holds, at every velocity point, its acceleration
+ * tau / (rho_w H) - g grad(p_b), H the depth the point carries: the air pressure enters as a head of
+ * water p_b whose gradient is the layout's own gradient of eta (so a still sea under steady pressure
+ * settles to eta = -p_b exactly, the inverse barometer), the wind stress at the point's own position. */
 
 /* What a forcing source gives the model, along one row: the n values at x = x0_m + i dx_m, y = y_m, into
  * out: SW_SURFACE_HEAD: the air pressure as a head of water, (p - p_ref) / (rho_w g), m, at cell centres

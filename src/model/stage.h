@@ -255,21 +255,13 @@ SW_INLINE sw_real sw_terms_update(sw_real vel, sw_real H, sw_real dvel_gravity, 
     return H > 0 ? (vel * (2 * H - rho) + 2 * H * dvel_gravity + rot) / (2 * H + rho) : 0;
 }
 
-/* The same with surface forcing: push = 2 dt A (m2/s), A the point's surface forcing at the step's time
- * (sw_terms.surface_x: H times the acceleration, so that push / (2H) is its velocity increment), enters
- * beside the rotation term and is damped by friction like the other increments:
- *     vel' = (vel (2H - rho) + 2H dvel_gravity + rot + push) / (2H + rho). */
-SW_INLINE sw_real sw_terms_update_forced(sw_real vel, sw_real H, sw_real dvel_gravity, sw_real rot, sw_real rho,
-                                         sw_real push)
+/* The velocity increment of surface forcing at point i over a step: dt (a0 + w (a1 - a0)) with the
+ * slabs' accelerations a0, a1 (sw_terms.surface_x or _y, m s-2), c0 = dt (1 - w) and c1 = dt w (s). A
+ * kernel adds it to its pressure-gradient increment (sw_terms_update's dvel_gravity), so friction damps
+ * it like the other increments. */
+SW_INLINE sw_real sw_surface_dvel(const float *restrict a0, const float *restrict a1, size_t i, sw_real c0, sw_real c1)
 {
-    return H > 0 ? (vel * (2 * H - rho) + 2 * H * dvel_gravity + (rot + push)) / (2 * H + rho) : 0;
-}
-
-/* The surface forcing push = 2 dt (A0 + w (A1 - A0)) of point i, from slabs a0, a1 (sw_terms.surface_x
- * or _y), c2 = 2 dt and the weight w of the later slab. */
-SW_INLINE sw_real sw_surface_push(const float *restrict a0, const float *restrict a1, size_t i, sw_real c2, sw_real w)
-{
-    return c2 * ((sw_real)a0[i] + w * ((sw_real)a1[i] - (sw_real)a0[i]));
+    return c0 * (sw_real)a0[i] + c1 * (sw_real)a1[i];
 }
 
 /* Continuity alone on the row starting at padded index k0, with the same per-cell formula. */

@@ -2,15 +2,16 @@
  * sw_model_surface_build).
  *
  * Compiled once per precision (SW_REAL_BITS), beside the stepper: it runs the layout's own plain
- * momentum stages on a scratch view. A slab holds, at each velocity point that flows,
- *     A = tau / rho_w - H g grad(p_b),
- * the depth the point carries (H = hx, hy) times the point's acceleration: the wind stress at the point's
- * own position, and the gradient of the air pressure head p_b (m) at the cell centres taken by the plain
- * momentum stage with eta = p_b (0 on land, like eta, and the air's own value in the ghost cells of open
- * and level edges), velocities 0 and dt = 1 s, which returns -g grad(p_b) with the layout's
- * gradient, walls and edges, in the form the layout stores velocities (B, D: times the water fraction,
- * which is why the product is with H = h / f). The forced momentum stages then add 2 dt A (stage.h,
- * sw_terms_update_forced); at the points of walls and land (H = 0) A is 0.
+ * momentum stages on a scratch view. A slab holds, at each velocity point that flows, the point's
+ * acceleration in the form the layout stores velocities,
+ *     a = tau / (rho_w H) - g grad(p_b),
+ * H the depth the point carries (hx, hy): the wind stress at the point's own position, and the gradient
+ * of the air pressure head p_b (m) at the cell centres taken by the plain momentum stage with
+ * eta = p_b (0 on land, like eta, and the air's own value in the ghost cells of open and level edges),
+ * velocities 0 and dt = 1 s, which returns -g grad(p_b) with the layout's gradient, walls and edges (B, D:
+ * in their stored, transport-weighted form, whose stress term is tau / (rho_w H) with H = h / f as well).
+ * The forced momentum stages add dt a to the pressure-gradient increment (stage.h, sw_surface_dvel); at
+ * the points of walls and land (H = 0) a is 0.
  *
  * Invariant: every row is built by one thread from values no other thread writes in the same phase, so
  * the slab does not depend on the thread count.
@@ -57,7 +58,7 @@ void SW_NAME(sw_surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void
         }
     }
 
-    /* 2: -g grad(p_b) by the plain momentum stages, then A at the u and v points of each row */
+    /* 2: -g grad(p_b) by the plain momentum stages, then a at the u and v points of each row */
     sw_view sv = m->view;
     const sw_terms none = {.f_centre = m->terms.f_centre, .f_face = m->terms.f_face};
     sv.eta = pb;
@@ -79,8 +80,8 @@ void SW_NAME(sw_surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void
         fn(ctx, SW_SURFACE_STRESS_Y, (ptrdiff_t)jp - 1, yc + m->layout->v_at[1] * g->dy_m,
            x_centre0 + m->layout->v_at[0] * g->dx_m, g->dx_m, np, ay + jp * s);
         for (size_t k = jp * s; k < jp * s + np; k++) {
-            ax[k] = hx[k] > 0 ? (float)((sw_real)ax[k] + hx[k] * gu[k]) : 0.0f;
-            ay[k] = hy[k] > 0 ? (float)((sw_real)ay[k] + hy[k] * gv[k]) : 0.0f;
+            ax[k] = hx[k] > 0 ? (float)((sw_real)ax[k] / hx[k] + gu[k]) : 0.0f;
+            ay[k] = hy[k] > 0 ? (float)((sw_real)ay[k] / hy[k] + gv[k]) : 0.0f;
         }
     }
 }

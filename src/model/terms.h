@@ -48,25 +48,24 @@ typedef struct {
 
 /* Which kernels a configuration needs: none (bit-identical to a model without terms), rotation
  * and/or linear friction, or also quadratic friction (which reads per-point drag arrays); each of the
- * last two also with surface forcing (which reads the forcing slabs). */
+ * three also with surface forcing (which reads the forcing slabs). */
 typedef enum {
     SW_TERMS_PLAIN = 0,
     SW_TERMS_LINEAR = 1,
     SW_TERMS_DRAG = 2,
-    SW_TERMS_FORCED = 3,        /* LINEAR with surface forcing */
-    SW_TERMS_FORCED_DRAG = 4    /* DRAG with surface forcing */
+    SW_TERMS_FORCED = 3,        /* PLAIN with surface forcing */
+    SW_TERMS_FORCED_LINEAR = 4, /* LINEAR with surface forcing */
+    SW_TERMS_FORCED_DRAG = 5    /* DRAG with surface forcing */
 } sw_terms_variant;
-#define SW_TERMS_VARIANTS 5
+#define SW_TERMS_VARIANTS 6
 
 static inline sw_terms_variant sw_terms_variant_of(const sw_terms_config *c)
 {
     const int drag = c->friction == SW_FRICTION_QUADRATIC || c->friction == SW_FRICTION_MANNING;
+    const int linear = c->rotation != SW_ROTATION_NONE || c->friction == SW_FRICTION_LINEAR;
     if (c->surface)
-        return drag ? SW_TERMS_FORCED_DRAG : SW_TERMS_FORCED;
-    if (drag)
-        return SW_TERMS_DRAG;
-    return c->rotation != SW_ROTATION_NONE || c->friction == SW_FRICTION_LINEAR ? SW_TERMS_LINEAR
-                                                                                : SW_TERMS_PLAIN;
+        return drag ? SW_TERMS_FORCED_DRAG : linear ? SW_TERMS_FORCED_LINEAR : SW_TERMS_FORCED;
+    return drag ? SW_TERMS_DRAG : linear ? SW_TERMS_LINEAR : SW_TERMS_PLAIN;
 }
 
 /* 1 when a variant reads the quadratic drag arrays (sw_terms.drag_x, drag_y). */
@@ -90,10 +89,11 @@ typedef struct sw_terms {
                                * there cost a quarter of the step's memory traffic */
     const uint8_t *share_y;   /* [n_pad] the same at v points */
     const float *surface_x[2];/* [n_pad] surface forcing at each u point (same padded index as u) at the two
-                               * forcing times around the step, earlier then later: the depth the point
-                               * carries times the acceleration, tau_x / rho_w - H g d(p_b)/dx, m2 s-2
-                               * (p_b the air pressure as a head of water, tau_x the wind stress; built by
-                               * sw_model_surface_build); NULL unless the variant is FORCED or FORCED_DRAG */
+                               * forcing times around the step, earlier then later: the acceleration
+                               * tau_x / (rho_w H) - g d(p_b)/dx, m s-2, in the form the layout stores
+                               * velocities (p_b the air pressure as a head of water, tau_x the wind stress,
+                               * H the depth the point carries; built by sw_model_surface_build; 0 where
+                               * H = 0); NULL unless the variant is one of the FORCED ones */
     const float *surface_y[2];/* [n_pad] the same at v points */
     double surface_w;         /* weight of the later slab at the time the step's momentum is centred on
                                * (its new elevation's), 0 .. 1: the forcing is linear in time between slabs */
