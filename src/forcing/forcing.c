@@ -28,9 +28,7 @@ struct sw_forcing {
     /* the atmosphere: one of storm, weather, or neither */
     sw_storm *storm;
     sw_storm_options storm_opt;
-    double speed_factor, dp_factor, rmax_factor;   /* [storm] changes to the track */
-    double shift_x_m, shift_y_m;                   /* [storm] shift, turned onto the axes */
-    double t_track0_s;                             /* the track's first time: speed_factor scales about it */
+    sw_storm_changes changes;                      /* [storm] changes to the track */
     double update_s;                               /* a storm's slab interval, s */
     sw_storm_frame frame[2];                       /* per slot */
     double reach_m, dr_m;                          /* frames cover reach_m at spacing dr_m */
@@ -68,33 +66,27 @@ struct sw_forcing {
 
 static void storm_state(const sw_forcing *f, double t_s, sw_storm_state *st)
 {
-    sw_storm_state_at(f->storm, f->t_track0_s + (t_s - f->t_track0_s) * f->speed_factor, st);
-    st->t_s = t_s;
-    st->vt_x_ms *= f->speed_factor;
-    st->vt_y_ms *= f->speed_factor;
-    st->x_m += f->shift_x_m;
-    st->y_m += f->shift_y_m;
-    st->dp_pa *= f->dp_factor;
-    st->pc_pa = st->ambient_pa - st->dp_pa;
-    st->rmax_m *= f->rmax_factor;
+    sw_storm_state_changed(f->storm, &f->changes, t_s, st);
 }
 
-/* The mean heading (first to last track point, unit vector) turned into the shift along and across. */
-static void storm_shift(sw_forcing *f, const sw_forcing_spec *fs)
+void sw_forcing_storm_settings(const sw_scenario *sc, const sw_grid *g, sw_storm_options *opt, sw_storm_changes *changes)
 {
-    sw_storm_state a, b;
-    sw_storm_state_at(f->storm, sw_storm_t_first(f->storm), &a);
-    sw_storm_state_at(f->storm, sw_storm_t_last(f->storm), &b);
-    double hx = b.x_m - a.x_m, hy = b.y_m - a.y_m, len = hypot(hx, hy);
-    if (len > 0) {
-        hx /= len;
-        hy /= len;
-    } else {
-        hx = 1;
-        hy = 0;
-    }
-    f->shift_x_m = fs->shift_along_m * hx - fs->shift_across_m * hy;   /* across: to the left of the heading */
-    f->shift_y_m = fs->shift_along_m * hy + fs->shift_across_m * hx;
+    const sw_forcing_spec *fs = &sc->forcing;
+    *opt = sw_storm_options_default();
+    opt->ambient_pa = fs->ambient_hpa * 100;
+    opt->air_density_kgm3 = fs->air_density_kgm3;
+    opt->reduction = fs->reduction;
+    opt->inflow_deg = fs->inflow_deg;
+    opt->translation_fraction = fs->translation_fraction;
+    /* the gradient wind's f: the model's at the domain's middle with rotation; else its sign only */
+    const sw_terms_config *t = &sc->terms;
+    const double f_mid = t->rotation == SW_ROTATION_NONE ? 0
+                       : t->f0_s + (t->rotation == SW_ROTATION_BETA_PLANE
+                                        ? t->beta_ms * (g->y0_m + 0.5 * (double)g->ny * g->dy_m - t->y_ref_m) : 0);
+    opt->coriolis_s = f_mid != 0 ? f_mid : fs->south ? -1e-12 : 0;
+    *changes = (sw_storm_changes){.speed_factor = fs->speed_factor, .dp_factor = fs->dp_factor,
+                                  .rmax_factor = fs->rmax_factor, .shift_along_m = fs->shift_along_m,
+                                  .shift_across_m = fs->shift_across_m};
 }
 
 /* ---- building a slot ------------------------------------------------------------------------------------ */
@@ -363,31 +355,16 @@ sw_status sw_forcing_create(const sw_scenario *sc, const sw_model *m, double dur
     char path[SW_PATH_MAX];
     sw_status rc = SW_OK;
     if (fs->storm) {
-        f->storm_opt = sw_storm_options_default();
-        f->storm_opt.ambient_pa = fs->ambient_hpa * 100;
-        f->storm_opt.air_density_kgm3 = fs->air_density_kgm3;
-        f->storm_opt.reduction = fs->reduction;
-        f->storm_opt.inflow_deg = fs->inflow_deg;
-        f->storm_opt.translation_fraction = fs->translation_fraction;
-        /* the gradient wind's f: the model's at the domain's middle with rotation; else its sign only */
-        const double f_mid = sc->terms.rotation == SW_ROTATION_NONE ? 0
-                           : sc->terms.f0_s + (sc->terms.rotation == SW_ROTATION_BETA_PLANE
-                                                   ? sc->terms.beta_ms * (g->y0_m + 0.5 * (double)g->ny * g->dy_m - sc->terms.y_ref_m) : 0);
-        f->storm_opt.coriolis_s = f_mid != 0 ? f_mid : fs->south ? -1e-12 : 0;
-        f->speed_factor = fs->speed_factor;
-        f->dp_factor = fs->dp_factor;
-        f->rmax_factor = fs->rmax_factor;
+        sw_forcing_storm_settings(sc, g, &f->storm_opt, &f->changes);
         f->update_s = fs->update_s;
         rc = sw_scenario_resolve(sc, fs->track, path, sizeof path, err);
         if (rc == SW_OK)
             rc = sw_storm_load(path, &f->storm_opt, &f->storm, err);
         if (rc == SW_OK) {
-            f->t_track0_s = sw_storm_t_first(f->storm);
-            storm_shift(f, fs);
             /* the track's times the run reads: the slabs' around 0 .. duration, at the changed speed */
-            const double t_end = ceil(duration_s / f->update_s) * f->update_s;
-            rc = sw_storm_covers(f->storm, f->t_track0_s + (0 - f->t_track0_s) * f->speed_factor,
-                                 f->t_track0_s + (t_end - f->t_track0_s) * f->speed_factor, err);
+            double a, b;
+            sw_storm_changed_span(f->storm, &f->changes, 0, ceil(duration_s / f->update_s) * f->update_s, &a, &b);
+            rc = sw_storm_covers(f->storm, a, b, err);
         }
         if (rc == SW_OK) {
             sw_storm_state st;

@@ -23,6 +23,7 @@
 
 #include "base/status.h"
 #include "inputs/scenario.h"
+#include "forcing/storm.h"
 #include "model/model.h"
 
 typedef struct sw_forcing sw_forcing;
@@ -68,6 +69,11 @@ void sw_forcing_maps(const sw_forcing *f, const unsigned char *wet, double *wind
  * central pressure (Pa). */
 void sw_forcing_track(const sw_forcing *f, size_t *n, const double **t_s, const double **x_m, const double **y_m,
                       const double **pc_pa);
+
+/* The storm options and track changes a scenario asks for ([storm], [wind], and the gradient wind's
+ * Coriolis parameter from [run] rotation at the middle of grid g), for sw_storm_load and
+ * sw_storm_state_changed: the one place that reads them, for runs and for plans. */
+void sw_forcing_storm_settings(const sw_scenario *sc, const sw_grid *g, sw_storm_options *opt, sw_storm_changes *changes);
 
 /* One line for plans and file attributes, e.g. "storm track.txt (Holland 1980), drag large-pond, slabs
  * every 300 s" or "weather file.nc (48 slabs)"; "level series tide.txt" is added when there is one. */

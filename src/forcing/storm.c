@@ -490,3 +490,40 @@ void sw_storm_row(const sw_storm_frame *fr, double y_m, double x0_m, double dx_m
         v10_ms[i] = (float)(wt * vty + spin * (c * dx - sdy));
     }
 }
+
+/* ---- a scenario's changes of the track ------------------------------------------------------------------ */
+
+sw_storm_changes sw_storm_changes_none(void)
+{
+    return (sw_storm_changes){.speed_factor = 1, .dp_factor = 1, .rmax_factor = 1};
+}
+
+void sw_storm_changed_span(const sw_storm *s, const sw_storm_changes *c, double t0_s, double t1_s, double *a_s,
+                           double *b_s)
+{
+    const double first = sw_storm_t_first(s);
+    *a_s = first + (t0_s - first) * c->speed_factor;
+    *b_s = first + (t1_s - first) * c->speed_factor;
+}
+
+void sw_storm_state_changed(const sw_storm *s, const sw_storm_changes *c, double t_s, sw_storm_state *st)
+{
+    /* the mean heading, first to last point (a storm that stays put heads east) */
+    sw_storm_state a, b;
+    sw_storm_state_at(s, sw_storm_t_first(s), &a);
+    sw_storm_state_at(s, sw_storm_t_last(s), &b);
+    double hx = b.x_m - a.x_m, hy = b.y_m - a.y_m, len = hypot(hx, hy);
+    hx = len > 0 ? hx / len : 1;
+    hy = len > 0 ? hy / len : 0;
+    double tt, unused;
+    sw_storm_changed_span(s, c, t_s, t_s, &tt, &unused);
+    sw_storm_state_at(s, tt, st);
+    st->t_s = t_s;
+    st->vt_x_ms *= c->speed_factor;
+    st->vt_y_ms *= c->speed_factor;
+    st->x_m += c->shift_along_m * hx - c->shift_across_m * hy;   /* across: to the left of the heading */
+    st->y_m += c->shift_along_m * hy + c->shift_across_m * hx;
+    st->dp_pa *= c->dp_factor;
+    st->pc_pa = st->ambient_pa - st->dp_pa;
+    st->rmax_m *= c->rmax_factor;
+}

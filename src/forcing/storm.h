@@ -115,6 +115,28 @@ sw_status sw_storm_covers(const sw_storm *s, double t0_s, double t1_s, sw_error 
  * last the last, each with its end segment's translation velocity) into *st. */
 void sw_storm_state_at(const sw_storm *s, double t_s, sw_storm_state *st);
 
+/* What a scenario changes of a track ([storm] keys, docs/storm-surge.md): the zero value changes
+ * nothing but is not valid; use sw_storm_changes_none. */
+typedef struct {
+    double speed_factor;        /* forward speed times this: run time t reads the track at
+                                 * t_first + (t - t_first) speed_factor (> 0) */
+    double dp_factor;           /* every pressure drop times this (> 0) */
+    double rmax_factor;         /* every radius of maximum wind times this (> 0) */
+    double shift_along_m;       /* every centre moved along the mean heading (first to last point), m */
+    double shift_across_m;      /* ... and to the left of it, m */
+} sw_storm_changes;
+
+/* No change: factors 1, shifts 0. */
+sw_storm_changes sw_storm_changes_none(void);
+
+/* The changed storm at run time t_s into *st (central pressure = ambient - the changed drop; st->t_s is
+ * t_s). */
+void sw_storm_state_changed(const sw_storm *s, const sw_storm_changes *c, double t_s, sw_storm_state *st);
+
+/* The track times that run times t0_s .. t1_s read under c, into *a_s, *b_s (for sw_storm_covers). */
+void sw_storm_changed_span(const sw_storm *s, const sw_storm_changes *c, double t0_s, double t1_s, double *a_s,
+                           double *b_s);
+
 /* Holland (1980) at distance r_m from the centre, for drop dp_pa, rmax_m, B, air density rho_air (kg m-3)
  * and Coriolis parameter f_s (s-1; only |f| matters): p - pc (Pa) into *p_minus_pc_pa and the gradient
  * wind speed (m/s, >= 0) into *vg_ms. r_m <= 0 gives 0 and 0. Either output may be NULL. */

@@ -5,6 +5,8 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "forcing/forcing.h"
+#include "forcing/storm.h"
 #include "model/model.h"
 #include "inputs/seabed.h"
 #include "inputs/source.h"
@@ -85,6 +87,8 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
         return rc;
     }
     rc = sw_setup_derive(sc, s, NULL, err);
+    if (rc == SW_OK)
+        rc = sw_setup_storm_pass(sc, &s->grid, (double)s->n_steps * s->dt_s, &s->storm, err);
     if (rc != SW_OK)
         sw_setup_free(s);
     return rc;
@@ -141,8 +145,30 @@ sw_status sw_setup_derive(const sw_scenario *sc, sw_setup *s, const char *change
     s->n_samples = (size_t)floor(run_end / sc->gauge_interval_s) + 2;
     s->n_snapshots = sc->snapshot_interval_s > 0 ? (size_t)floor(run_end / sc->snapshot_interval_s) + 1 : 0;
     s->model_bytes = sw_model_bytes_for(g, sc->precision, s->layout, &sc->terms);
+    s->forcing_bytes = sw_setup_forcing_bytes(sc, s);
     s->total_bytes = sw_setup_total_bytes(sc, s);
     return SW_OK;
+}
+
+/* The forcing's memory outside the model: running maps (2 float), written maps (2 double), and the
+ * gauges' pressure and wind (3 double a sample); 0 without an atmosphere. */
+static size_t forcing_outside_model(const sw_scenario *sc, const sw_setup *s)
+{
+    if (!sc->terms.surface)
+        return 0;
+    const size_t n = sw_grid_cells(&s->grid);
+    return n * (2 * sizeof(float) + 2 * sizeof(double)) + sc->n_gauges * s->n_samples * 3 * sizeof(double);
+}
+
+size_t sw_setup_forcing_bytes(const sw_scenario *sc, const sw_setup *s)
+{
+    if (!sc->terms.surface)
+        return 0;
+    sw_terms_config still = sc->terms;
+    still.surface = 0;
+    const size_t with = sw_model_bytes_for(&s->grid, sc->precision, s->layout, &sc->terms);
+    const size_t without = sw_model_bytes_for(&s->grid, sc->precision, s->layout, &still);
+    return (with > without ? with - without : 0) + forcing_outside_model(sc, s);
 }
 
 size_t sw_setup_total_bytes(const sw_scenario *sc, const sw_setup *s)
@@ -153,5 +179,70 @@ size_t sw_setup_total_bytes(const sw_scenario *sc, const sw_setup *s)
          + n * sw_tracker_bytes_per_cell()                          /* running maps during the run */
          + n * 5 * sizeof(double)                                   /* the five result maps written */
          + (s->n_snapshots ? n * sizeof(double) : 0)                /* one snapshot frame */
-         + sc->n_gauges * s->n_samples * 3 * sizeof(double);       /* gauge series */
+         + sc->n_gauges * s->n_samples * 3 * sizeof(double)        /* gauge series */
+         + forcing_outside_model(sc, s);                            /* wind and pressure maps and series */
+}
+
+/* ---- the storm's pass over the domain ---------------------------------------------------------------- */
+
+#define PASS_STEPS 4000   /* even time steps over the run at which the centre is checked */
+
+/* Distance (m) from (x, y) to the rectangle [x0, x1] x [y0, y1]; 0 inside or on it. */
+static double rect_distance(double x, double y, double x0, double x1, double y0, double y1)
+{
+    const double dx = fmax(fmax(x0 - x, x - x1), 0), dy = fmax(fmax(y0 - y, y - y1), 0);
+    return hypot(dx, dy);
+}
+
+sw_status sw_setup_storm_pass(const sw_scenario *sc, const sw_grid *g, double run_end_s, sw_storm_pass *out,
+                              sw_error *err)
+{
+    memset(out, 0, sizeof *out);
+    const sw_forcing_spec *fs = &sc->forcing;
+    if (!fs->storm)
+        return SW_OK;
+    char path[SW_PATH_MAX];
+    sw_storm_options opt;
+    sw_storm_changes changes;
+    sw_forcing_storm_settings(sc, g, &opt, &changes);   /* what the run will use (forcing.c) */
+    sw_storm *storm = NULL;
+    sw_status rc = sw_scenario_resolve(sc, fs->track, path, sizeof path, err);
+    if (rc == SW_OK)
+        rc = sw_storm_load(path, &opt, &storm, err);
+    if (rc != SW_OK)
+        return rc;
+    /* the span the run reads: the slabs up to the first at or after the end (forcing.c) */
+    const double t_end = fs->update_s > 0 ? ceil(run_end_s / fs->update_s) * fs->update_s : run_end_s;
+    double span0, span1;
+    sw_storm_changed_span(storm, &changes, 0, t_end, &span0, &span1);
+    rc = sw_storm_covers(storm, span0, span1, err);
+    if (rc == SW_OK) {
+        const double x0 = g->x0_m, x1 = g->x0_m + (double)g->nx * g->dx_m;
+        const double y0 = g->y0_m, y1 = g->y0_m + (double)g->ny * g->dy_m;
+        out->present = 1;
+        out->closest_m = INFINITY;
+        /* the centre moves piecewise linearly: between two of these times it can enter the domain
+         * unnoticed only for less than a 4000th of the run, too short to matter */
+        for (size_t k = 0; k <= PASS_STEPS; k++) {
+            const double t = run_end_s * (double)k / PASS_STEPS;
+            sw_storm_state st;
+            sw_storm_state_changed(storm, &changes, t, &st);
+            if (!(st.pc_pa > 0)) {
+                rc = sw_fail(err, SW_ERR_RANGE, "%s: at t = %g s the storm's pressure drop %g hPa (times "
+                             "pressure_drop_factor %g) leaves no central pressure (ambient %g hPa); lower [storm] "
+                             "pressure_drop_factor", fs->track, t, st.dp_pa / 100, fs->dp_factor, st.ambient_pa / 100);
+                break;
+            }
+            const double d = rect_distance(st.x_m, st.y_m, x0, x1, y0, y1);
+            if (d < out->closest_m) {   /* strictly: the first time inside is kept */
+                out->closest_m = d;
+                out->closest_time_s = t;
+            }
+        }
+        out->outside = out->closest_m > 0;
+    }
+    sw_storm_free(storm);
+    if (rc != SW_OK)
+        memset(out, 0, sizeof *out);
+    return rc;
 }

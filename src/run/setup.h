@@ -13,6 +13,16 @@
 #include "inputs/scenario.h"
 #include "base/status.h"
 
+/* Where a [storm]'s centre goes relative to the domain during the run: the plan warns when it never
+ * enters, since the water then feels only the storm's outer winds. */
+typedef struct {
+    int present;              /* 1 when the scenario has a [storm]; the fields below are then set */
+    int outside;              /* 1 when the centre stays outside the domain rectangle for the whole run */
+    double closest_m;         /* the centre's least distance from the domain rectangle over the run, m
+                               * (0 when it enters) */
+    double closest_time_s;    /* when it is closest (the first time inside when it enters), s since the origin */
+} sw_storm_pass;
+
 typedef struct {
     sw_grid grid;             /* the model grid (from [grid] or the seabed file) */
     const sw_layout *layout;  /* the chosen layout */
@@ -28,13 +38,21 @@ typedef struct {
     long long n_steps;        /* steps to cover the duration */
     size_t n_samples;         /* gauge samples the run will record, at most */
     size_t n_snapshots;       /* eta snapshots the run will write */
-    size_t model_bytes;       /* memory of the model state, bytes */
+    size_t model_bytes;       /* memory of the model state, bytes (with a storm or weather file its two
+                               * forcing slabs and their scratch included: sw_model_bytes_for) */
+    size_t forcing_bytes;     /* what the forcing adds to a run's memory, bytes: the model's slabs and
+                               * scratch, the wind and pressure maps, the gauges' air series
+                               * (sw_setup_forcing_bytes); 0 without an atmosphere */
     size_t total_bytes;       /* a run's peak memory, bytes (sw_setup_total_bytes) */
+    sw_storm_pass storm;      /* the storm's centre against the domain (sw_setup_storm_pass); zero
+                               * without a [storm] */
 } sw_setup;
 
 /* Builds the setup for sc: grid (taken from the seabed file when sc has no [grid]; sc->grid is
- * then filled in), depth, initial elevation, layout, time step and sizes. On failure returns the
- * status, err names the scenario file and line where one applies, and s owns nothing.
+ * then filled in), depth, initial elevation, layout, time step and sizes, and with a [storm] its
+ * pass over the domain (sw_setup_storm_pass: the track is read and checked to cover the run here, so
+ * `check` reports a bad track as `run` would). On failure returns the status, err names the scenario
+ * file and line (or the track file and line) where one applies, and s owns nothing.
  * Free with sw_setup_free. */
 sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err);
 
@@ -53,7 +71,27 @@ void sw_setup_free(sw_setup *s);
 
 /* The memory a run of sc on setup s holds at its peak, bytes: the model (s->model_bytes), the input
  * depth and elevation, the tracker's running maps, the five result maps, a snapshot frame when
- * snapshots are on, and the gauge series. Uses s->grid, s->model_bytes, s->n_samples, s->n_snapshots. */
+ * snapshots are on, the gauge series, and with an atmosphere what the forcing holds beside the model
+ * (sw_setup_forcing_bytes less the model's share). Uses s->grid, s->layout, s->model_bytes,
+ * s->n_samples, s->n_snapshots. */
 size_t sw_setup_total_bytes(const sw_scenario *sc, const sw_setup *s);
+
+/* What a storm or weather file adds to a run's memory, bytes (0 without one): in the model its two
+ * slabs and their scratch (sw_model_bytes_for with and without sc->terms.surface), beside it the
+ * running highest-wind and lowest-pressure maps (float), the two maps written (double) and the air
+ * pressure and wind at every gauge sample (double). Not counted: a storm's radial tables (a few
+ * thousand values) and a weather file's two slabs on its own grid (its size is known only once the
+ * file is open). Uses s->grid, s->layout, s->n_samples. */
+size_t sw_setup_forcing_bytes(const sw_scenario *sc, const sw_setup *s);
+
+/* Reads sc's [storm] track (relative to sc->dir, with the scenario's [storm] and [wind] settings),
+ * checks that it covers a run ending at run_end_s as the run reads it (forcing slabs every [storm]
+ * update up to the first at or after the end, at the changed speed), and follows the centre as the run
+ * moves it ([storm] shift_along, shift_across and speed_factor, applied as forcing/forcing.c does) from
+ * 0 to run_end_s, at 4000 even steps, against the rectangle of grid g. Fills *out (zeroed without a [storm]). Returns SW_OK, or the track's failure (SW_ERR_IO,
+ * SW_ERR_PARSE, SW_ERR_RANGE, SW_ERR_NOMEM) with err naming the track file and line or the span the
+ * run needs; *out is then zeroed. */
+sw_status sw_setup_storm_pass(const sw_scenario *sc, const sw_grid *g, double run_end_s, sw_storm_pass *out,
+                              sw_error *err);
 
 #endif
