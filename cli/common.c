@@ -136,7 +136,7 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
     int tty = isatty(STDERR_FILENO) && !a->quiet;
     if (!a->json && !a->quiet) {
         sw_report_plan(stdout, sc, &setup, NULL);
-        printf("\n%s\n\n", sw_caution());
+        printf("\n%s\n\n", sw_caution_for(sc));
         fflush(stdout);
     }
     cli_catch_signals();
@@ -161,7 +161,7 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
         if (js)
             puts(js);
         free(js);
-        fprintf(stderr, "%s\n", sw_caution());
+        fprintf(stderr, "%s\n", sw_caution_for(sc));
     } else {
         sw_report_run(stdout, sc, &setup, res);
     }

@@ -355,8 +355,10 @@ static sw_status ncw_check_grid(const char *path, const sw_grid *g, sw_error *er
 /* Writes the gauge file as a CF timeSeries collection (CF 1.11 chapter 9 and appendix H.2,
  * "orthogonal multidimensional array representation": eta(station, time) with one time axis
  * shared by all stations).
- * Needs: every array of gt non-NULL, n_stations >= 1 and n_times >= 1 (a zero length would make
- * NetCDF treat the dimension as unlimited), names at most 64 characters.
+ * Needs: every array of gt non-NULL except the air series, n_stations >= 1 and n_times >= 1 (a zero
+ * length would make NetCDF treat the dimension as unlimited), names at most 64 characters. The air
+ * series (air_pressure_pa, wind_u_ms, wind_v_ms) are all three given or all three NULL; given, they are
+ * written as air_pressure, wind_east and wind_north (station, time).
  * Returns SW_OK, or SW_ERR_USAGE / SW_ERR_NOMEM / SW_ERR_IO / SW_ERR_NETCDF with a message naming
  * the path; then no file is left at <path>.part and an existing <path> is untouched. */
 sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gauge_table *gt, sw_error *err)
@@ -367,6 +369,10 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
     if (!gt || !gt->names || !gt->x_m || !gt->y_m || !gt->depth_m || !gt->time_s || !gt->eta_m ||
         !gt->u_ms || !gt->v_ms)
         return sw_fail(err, SW_ERR_USAGE, "%s: gauge table missing or incomplete", path);
+    const int with_air = gt->air_pressure_pa != NULL;
+    if (with_air != (gt->wind_u_ms != NULL) || with_air != (gt->wind_v_ms != NULL))
+        return sw_fail(err, SW_ERR_USAGE, "%s: gauge table has part of the air pressure and wind (accepted: all "
+                       "three series or none)", path);
     if (gt->n_stations == 0 || gt->n_times == 0)
         return sw_fail(err, SW_ERR_USAGE, "%s: gauge table has %zu stations and %zu times (need >= 1 each)",
                        path, gt->n_stations, gt->n_times);
@@ -428,17 +434,25 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
 
     int v_time = ncw_time_var(&f, meta, d_time);
 
+    /* the water's series, then (a run with an atmosphere) the forcing at the gauges */
     static const struct {
         const char *name, *standard_name, *units, *long_name;
-    } series[3] = {
+    } series[6] = {
         {"eta", "sea_surface_height_above_mean_sea_level", "m", "sea surface elevation at gauge"},
         {"u", "sea_water_x_velocity", "m s-1", "x velocity at gauge"},
         {"v", "sea_water_y_velocity", "m s-1", "y velocity at gauge"},
+        {"air_pressure", "air_pressure_at_mean_sea_level", "Pa",
+         "air pressure at mean sea level at gauge (the forcing at the gauge, linear in time between forcing slabs)"},
+        {"wind_east", "eastward_wind", "m s-1",
+         "10 m wind towards the east (x) at gauge (the forcing at the gauge, linear in time between forcing slabs)"},
+        {"wind_north", "northward_wind", "m s-1",
+         "10 m wind towards the north (y) at gauge (the forcing at the gauge, linear in time between forcing slabs)"},
     };
-    const double *series_data[3] = {gt->eta_m, gt->u_ms, gt->v_ms};
-    int v_series[3];
+    const double *series_data[6] = {gt->eta_m, gt->u_ms, gt->v_ms, gt->air_pressure_pa, gt->wind_u_ms, gt->wind_v_ms};
+    const int n_series = with_air ? 6 : 3;
+    int v_series[6];
     int series_dims[2] = {d_station, d_time};
-    for (int k = 0; k < 3; k++) {
+    for (int k = 0; k < n_series; k++) {
         v_series[k] = ncw_var(&f, series[k].name, NC_DOUBLE, 2, series_dims);
         ncw_fill(&f, v_series[k], NC_DOUBLE);
         ncw_text(&f, v_series[k], "standard_name", series[k].standard_name);
@@ -456,7 +470,7 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
     ncw_put_doubles(&f, v_depth, "depth", gt->depth_m, gt->n_stations, scratch);
     if (f.rc == SW_OK)
         ncw_ok(&f, nc_put_var_double(f.ncid, v_time, gt->time_s), "writing variable", "time");
-    for (int k = 0; k < 3; k++)
+    for (int k = 0; k < n_series; k++)
         ncw_put_doubles(&f, v_series[k], series[k].name, series_data[k], n_values, scratch);
 
     free(scratch);
@@ -466,9 +480,54 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
 
 /* ---- map file --------------------------------------------------------------------------- */
 
-/* Writes the map file: x, y, depth, wet and the five maps of the run, all on cell centres.
- * Needs every array of maps non-NULL and a non-empty grid. Returns SW_OK or a failure as for
- * sw_ncw_gauges (no .part left, an existing <path> untouched). */
+/* What arrival means, for a tsunami and for a surge (one definition, both uses). */
+#define NCW_ARRIVAL_LONG_NAME \
+    "first time |eta| reaches arrival_threshold (for a tsunami: the first wave's arrival; for a surge: " \
+    "the first time the water departs from mean level by the threshold)"
+
+/* Ids of the storm's track variables in the map file. */
+typedef struct {
+    int time, x, y, p;   /* storm_time, storm_x, storm_y, storm_central_pressure */
+} ncw_track_ids;
+
+/* Defines the dimension `track` (n points) and the storm's centre along it: storm_time (seconds since
+ * the origin), storm_x, storm_y (m) and storm_central_pressure (Pa), each with storm_time as its
+ * coordinate. Ids into *ids (-1 after a failure). */
+static void ncw_def_track(ncw_file *f, const sw_run_meta *m, size_t n, ncw_track_ids *ids)
+{
+    int dim;
+    char units[128];
+    snprintf(units, sizeof units, "seconds since %s", m->time_origin);
+    ncw_dim(f, "track", n, &dim);
+    ids->time = ncw_var(f, "storm_time", NC_DOUBLE, 1, &dim);
+    ncw_text(f, ids->time, "standard_name", "time");
+    ncw_text(f, ids->time, "long_name", "time of the storm's centre position");
+    ncw_text(f, ids->time, "units", units);
+    ncw_text(f, ids->time, "calendar", "standard");
+    ncw_text(f, ids->time, "comment", "every forcing slab's time from the start to the end of the run");
+    ids->x = ncw_var(f, "storm_x", NC_DOUBLE, 1, &dim);
+    ncw_text(f, ids->x, "long_name", "x of the storm's centre (east), as the run moved it ([storm] shifts and "
+             "factors applied)");
+    ncw_text(f, ids->x, "units", "m");
+    ncw_text(f, ids->x, "coordinates", "storm_time");
+    ids->y = ncw_var(f, "storm_y", NC_DOUBLE, 1, &dim);
+    ncw_text(f, ids->y, "long_name", "y of the storm's centre (north), as the run moved it ([storm] shifts and "
+             "factors applied)");
+    ncw_text(f, ids->y, "units", "m");
+    ncw_text(f, ids->y, "coordinates", "storm_time");
+    ids->p = ncw_var(f, "storm_central_pressure", NC_DOUBLE, 1, &dim);
+    ncw_text(f, ids->p, "standard_name", "air_pressure_at_mean_sea_level");
+    ncw_text(f, ids->p, "long_name", "the storm's central pressure");
+    ncw_text(f, ids->p, "units", "Pa");
+    ncw_text(f, ids->p, "coordinates", "storm_time");
+}
+
+/* Writes the map file: x, y, depth, wet and the five maps of the run, all on cell centres; with an
+ * atmosphere (maps->wind_max_ms not NULL) also wind_speed_max and air_pressure_min, and with a storm
+ * (maps->n_track > 0) the dimension `track` and storm_time, storm_x, storm_y, storm_central_pressure.
+ * Needs every array of the five maps non-NULL, a non-empty grid, wind_max_ms and air_pressure_min_pa
+ * both given or both NULL, and the four track arrays given when n_track > 0. Returns SW_OK or a failure
+ * as for sw_ncw_gauges (no .part left, an existing <path> untouched). */
 sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_set *maps, sw_error *err)
 {
     sw_status st = ncw_check_meta(path, meta, err);
@@ -477,14 +536,26 @@ sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_se
     if (!maps || !maps->depth_m || !maps->wet || !maps->eta_max_m || !maps->eta_min_m ||
         !maps->arrival_s || !maps->eta_max_time_s || !maps->speed_max_ms)
         return sw_fail(err, SW_ERR_USAGE, "%s: map set missing or incomplete", path);
+    const int with_air = maps->wind_max_ms != NULL;
+    if (with_air != (maps->air_pressure_min_pa != NULL))
+        return sw_fail(err, SW_ERR_USAGE, "%s: map set has one of the wind and pressure maps (accepted: both or "
+                       "none)", path);
+    const size_t n_track = maps->n_track;
+    if (n_track > 0 && (!maps->track_time_s || !maps->track_x_m || !maps->track_y_m || !maps->track_p_pa))
+        return sw_fail(err, SW_ERR_USAGE, "%s: map set has %zu track points but not their times, positions and "
+                       "pressures", path, n_track);
     const sw_grid *g = maps->grid;
     if ((st = ncw_check_grid(path, g, err)) != SW_OK)
         return st;
+    if (n_track > SIZE_MAX / sizeof(double))
+        return sw_fail(err, SW_ERR_USAGE, "%s: %zu track points are too many", path, n_track);
 
     size_t n = sw_grid_cells(g);
     size_t n_scratch = n > g->nx ? n : g->nx;
     if (g->ny > n_scratch)
         n_scratch = g->ny;
+    if (n_track > n_scratch)
+        n_scratch = n_track;
     double *scratch = malloc(n_scratch * sizeof *scratch);
     if (!scratch)
         return sw_fail(err, SW_ERR_NOMEM, "%s: out of memory for %zu x %zu maps", path, g->nx, g->ny);
@@ -506,15 +577,26 @@ sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_se
                                 "highest sea surface elevation reached", "time: maximum");
     int v_eta_min = ncw_map_var(&f, &ids, g, "eta_min", "sea_surface_height_above_mean_sea_level", "m",
                                 "lowest sea surface elevation reached", "time: minimum");
-    int v_arrival = ncw_map_var(&f, &ids, g, "arrival_time", NULL, "s",
-                                "time of first arrival: first time |eta| >= arrival_threshold_m, "
-                                "seconds after the time origin", NULL);
+    int v_arrival = ncw_map_var(&f, &ids, g, "arrival_time", NULL, "s", NCW_ARRIVAL_LONG_NAME, NULL);
     ncw_text(&f, v_arrival, "comment", origin_note);
     int v_max_time = ncw_map_var(&f, &ids, g, "eta_max_time", NULL, "s",
                                  "time at which eta_max was reached", NULL);
     ncw_text(&f, v_max_time, "comment", origin_note);
     int v_speed = ncw_map_var(&f, &ids, g, "speed_max", "sea_water_speed", "m s-1",
                               "highest current speed reached", "time: maximum");
+    int v_wind = -1, v_pmin = -1;
+    if (with_air) {
+        v_wind = ncw_map_var(&f, &ids, g, "wind_speed_max", "wind_speed", "m s-1",
+                             "highest 10 m wind speed the water felt", "time: maximum");
+        ncw_text(&f, v_wind, "comment", "the forcing at the cell centre, over the forcing slabs within the run "
+                 "(linear in time between them, so these are the extremes the water felt)");
+        v_pmin = ncw_map_var(&f, &ids, g, "air_pressure_min", "air_pressure_at_mean_sea_level", "Pa",
+                             "lowest air pressure at mean sea level the water felt", "time: minimum");
+        ncw_text(&f, v_pmin, "comment", "the forcing at the cell centre, over the forcing slabs within the run");
+    }
+    ncw_track_ids trk = {-1, -1, -1, -1};
+    if (n_track > 0)
+        ncw_def_track(&f, meta, n_track, &trk);
     if (f.rc == SW_OK)
         ncw_ok(&f, nc_enddef(f.ncid), "ending definitions", NULL);
 
@@ -524,6 +606,16 @@ sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_se
     ncw_put_doubles(&f, v_arrival, "arrival_time", maps->arrival_s, n, scratch);
     ncw_put_doubles(&f, v_max_time, "eta_max_time", maps->eta_max_time_s, n, scratch);
     ncw_put_doubles(&f, v_speed, "speed_max", maps->speed_max_ms, n, scratch);
+    if (with_air) {
+        ncw_put_doubles(&f, v_wind, "wind_speed_max", maps->wind_max_ms, n, scratch);
+        ncw_put_doubles(&f, v_pmin, "air_pressure_min", maps->air_pressure_min_pa, n, scratch);
+    }
+    if (n_track > 0) {
+        ncw_put_doubles(&f, trk.time, "storm_time", maps->track_time_s, n_track, scratch);
+        ncw_put_doubles(&f, trk.x, "storm_x", maps->track_x_m, n_track, scratch);
+        ncw_put_doubles(&f, trk.y, "storm_y", maps->track_y_m, n_track, scratch);
+        ncw_put_doubles(&f, trk.p, "storm_central_pressure", maps->track_p_pa, n_track, scratch);
+    }
 
     free(scratch);
     return ncw_finish(&f);

@@ -34,10 +34,13 @@ typedef struct {
     const char *forcing;        /* a line naming the storm, weather file or level series (NULL: none) */
 } sw_run_meta;
 
-/* Writes the gauge file (CF discrete sampling geometry, featureType timeSeries). */
+/* Writes the gauge file (CF discrete sampling geometry, featureType timeSeries): eta, u, v at each
+ * gauge, and with an atmosphere (gt's air series not NULL) air_pressure, wind_east, wind_north. */
 sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gauge_table *gt, sw_error *err);
 
-/* Writes the map file. */
+/* Writes the map file: depth, wet, eta_max, eta_min, arrival_time, eta_max_time, speed_max; with an
+ * atmosphere also wind_speed_max and air_pressure_min, and with a storm its track (storm_time,
+ * storm_x, storm_y, storm_central_pressure along the dimension `track`). */
 sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_set *maps, sw_error *err);
 
 /* Snapshots of eta written as the run goes (unlimited time dimension). */

@@ -3,9 +3,11 @@
 
 #include <cjson/cJSON.h>
 #include <math.h>
+#include <stdarg.h>
 #include <stdlib.h>
 #include <string.h>
 
+#include "forcing/drag.h"
 #include "observers/gauges.h"
 
 void sw_format_duration(double s, char *buf, size_t n)
@@ -65,6 +67,121 @@ static void print_terms(FILE *f, const sw_scenario *sc, const sw_setup *s)
                 "min_depth avoids it\n", n, stiff, sc->terms.friction == SW_FRICTION_LINEAR ? "" : " (for a 1 m/s current)");
 }
 
+/* ---- the forcing: what the plan, the summary and their JSON say about it ---------------------------- */
+
+/* The [storm], [weather], [wind] and [edges] level_series defaults, to name only what a scenario changes
+ * (scenario_keys.c holds the same values as the keys' defaults). */
+#define DFLT_AMBIENT_HPA 1013.0
+#define DFLT_REDUCTION 0.8
+#define DFLT_INFLOW_DEG 20.0
+#define DFLT_TRANSLATION 0.5
+#define DFLT_AIR_DENSITY 1.15
+#define DFLT_WATER_DENSITY 1025.0
+
+/* Appends printf-style text to the NUL-terminated buf of size n (truncating). */
+static void append(char *buf, size_t n, const char *fmt, ...) __attribute__((format(printf, 3, 4)));
+static void append(char *buf, size_t n, const char *fmt, ...)
+{
+    size_t used = strlen(buf);
+    if (used + 1 >= n)
+        return;
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(buf + used, n - used, fmt, ap);
+    va_end(ap);
+}
+
+static int has_forcing(const sw_scenario *sc)
+{
+    const sw_forcing_spec *fs = &sc->forcing;
+    return fs->storm || fs->weather || fs->level_file[0];
+}
+
+/* One line naming the scenario's forcing, e.g. "storm track.txt (Holland 1980), slabs every 300 s,
+ * shifted 20 km across; drag large-pond capped at 0.0025; level series tide.txt": the track or weather
+ * file, the storm's update interval, every [storm] and [wind] setting that differs from its default,
+ * and the level series. "none" without forcing. */
+static void forcing_line(const sw_scenario *sc, char *buf, size_t n)
+{
+    const sw_forcing_spec *fs = &sc->forcing;
+    buf[0] = '\0';
+    if (!has_forcing(sc)) {
+        append(buf, n, "none");
+        return;
+    }
+    if (fs->storm) {
+        append(buf, n, "storm %s (Holland 1980), slabs every %g s", fs->track, fs->update_s);
+        if (fs->shift_across_m != 0 || fs->shift_along_m != 0) {
+            append(buf, n, ", shifted");
+            if (fs->shift_across_m != 0)
+                append(buf, n, " %g km across", fs->shift_across_m / 1000);
+            if (fs->shift_across_m != 0 && fs->shift_along_m != 0)
+                append(buf, n, " and");
+            if (fs->shift_along_m != 0)
+                append(buf, n, " %g km along", fs->shift_along_m / 1000);
+        }
+        if (fs->dp_factor != 1)
+            append(buf, n, ", pressure drop x %g", fs->dp_factor);
+        if (fs->rmax_factor != 1)
+            append(buf, n, ", rmax x %g", fs->rmax_factor);
+        if (fs->speed_factor != 1)
+            append(buf, n, ", speed x %g", fs->speed_factor);
+        if (fs->ambient_hpa != DFLT_AMBIENT_HPA)
+            append(buf, n, ", ambient %g hPa", fs->ambient_hpa);
+        if (fs->reduction != DFLT_REDUCTION)
+            append(buf, n, ", reduction %g", fs->reduction);
+        if (fs->inflow_deg != DFLT_INFLOW_DEG)
+            append(buf, n, ", inflow %g deg", fs->inflow_deg);
+        if (fs->translation_fraction != DFLT_TRANSLATION)
+            append(buf, n, ", translation fraction %g", fs->translation_fraction);
+        if (fs->south)
+            append(buf, n, ", southern hemisphere");
+    } else if (fs->weather) {
+        append(buf, n, "weather %s", fs->weather_file);
+    }
+    if (fs->storm || fs->weather) {
+        const char *law = sw_drag_law_name((sw_drag_law)fs->drag_law);
+        append(buf, n, "; drag %s", law ? law : "?");
+        if (fs->drag_cap > 0)
+            append(buf, n, " capped at %g", fs->drag_cap);
+        if (fs->air_density_kgm3 != DFLT_AIR_DENSITY)
+            append(buf, n, ", air %g kg/m3", fs->air_density_kgm3);
+        if (fs->water_density_kgm3 != DFLT_WATER_DENSITY)
+            append(buf, n, ", water %g kg/m3", fs->water_density_kgm3);
+    }
+    if (fs->level_file[0]) {
+        append(buf, n, "%slevel series %s", fs->storm || fs->weather ? "; " : "", fs->level_file);
+        if (fs->level_variable[0])
+            append(buf, n, " (%s)", fs->level_variable);
+    }
+}
+
+/* The plan's warning about a storm that never enters the domain into buf ("" when none). */
+static void storm_warning(const sw_setup *s, char *buf, size_t n)
+{
+    buf[0] = '\0';
+    const sw_storm_pass *p = &s->storm;
+    if (!p->present || !p->outside)
+        return;
+    const double km = p->closest_m / 1000;
+    snprintf(buf, n, "[storm] the track stays outside the domain for the whole run (closest approach %.*f km at "
+             "%g h): the water will feel only the storm's outer winds", km < 10 ? 1 : 0, km,
+             round(p->closest_time_s / 360) / 10);
+}
+
+/* The plan's Forcing line and its warning; nothing without forcing. */
+static void print_forcing(FILE *f, const sw_scenario *sc, const sw_setup *s)
+{
+    if (!has_forcing(sc))
+        return;
+    char line[3 * SW_PATH_MAX + 512], warn[512];
+    forcing_line(sc, line, sizeof line);
+    fprintf(f, "Forcing    %s\n", line);
+    storm_warning(s, warn, sizeof warn);
+    if (warn[0])
+        fprintf(f, "           warning: %s\n", warn);
+}
+
 void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
 {
     const sw_grid *g = &s->grid;
@@ -82,10 +199,15 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
     fprintf(f, "Time step  dt = %.4g s: Courant number %.4g, %s-layout %dD limit %.4g (%.0f %% of it)\n", s->dt_s,
             s->courant, s->layout->name, s->dims, s->courant_limit, 100 * s->courant / s->courant_limit);
     print_terms(f, sc, s);
+    print_forcing(f, sc, s);
     sw_format_duration(sc->duration_s, buf, sizeof buf);
     fprintf(f, "Run        %s simulated in %lld steps; %zu gauge samples each; %zu snapshots\n", buf, s->n_steps,
             s->n_samples, s->n_snapshots);
-    fprintf(f, "Memory     %.1f MB (model state %.1f MB)\n", bytes_mb(s->total_bytes), bytes_mb(s->model_bytes));
+    if (s->forcing_bytes)
+        fprintf(f, "Memory     %.1f MB (model state %.1f MB; of the total, the forcing takes %.1f MB)\n",
+                bytes_mb(s->total_bytes), bytes_mb(s->model_bytes), bytes_mb(s->forcing_bytes));
+    else
+        fprintf(f, "Memory     %.1f MB (model state %.1f MB)\n", bytes_mb(s->total_bytes), bytes_mb(s->model_bytes));
     if (rate && rate->cells_per_s > 0) {
         char how[64];
         sw_format_duration((double)s->n_steps * (double)sw_grid_cells(g) / rate->cells_per_s, buf, sizeof buf);
@@ -149,6 +271,63 @@ static void add_terms(cJSON *o, const sw_scenario *sc, const sw_setup *s)
     cJSON_AddNumberToObject(e, "stiff_friction_cells", stiff > 0 ? (double)cells_shallower(sc, s, stiff) : 0);
 }
 
+/* "forcing": null without forcing, else what drives the water (the plan's line, the storm's settings and
+ * its pass over the domain, the weather file, the drag, the level series) and the plan's warnings. */
+static void add_forcing(cJSON *o, const sw_scenario *sc, const sw_setup *s)
+{
+    if (!has_forcing(sc)) {
+        cJSON_AddNullToObject(o, "forcing");
+        return;
+    }
+    const sw_forcing_spec *fs = &sc->forcing;
+    char line[3 * SW_PATH_MAX + 512], warn[512];
+    forcing_line(sc, line, sizeof line);
+    cJSON *e = cJSON_AddObjectToObject(o, "forcing");
+    cJSON_AddStringToObject(e, "description", line);
+    if (fs->storm) {
+        const sw_storm_pass *p = &s->storm;
+        cJSON *st = cJSON_AddObjectToObject(e, "storm");
+        cJSON_AddStringToObject(st, "track", fs->track);
+        cJSON_AddNumberToObject(st, "update_s", fs->update_s);
+        cJSON_AddNumberToObject(st, "shift_across_m", fs->shift_across_m);
+        cJSON_AddNumberToObject(st, "shift_along_m", fs->shift_along_m);
+        cJSON_AddNumberToObject(st, "pressure_drop_factor", fs->dp_factor);
+        cJSON_AddNumberToObject(st, "rmax_factor", fs->rmax_factor);
+        cJSON_AddNumberToObject(st, "speed_factor", fs->speed_factor);
+        cJSON_AddNumberToObject(st, "ambient_pressure_hpa", fs->ambient_hpa);
+        cJSON_AddNumberToObject(st, "reduction", fs->reduction);
+        cJSON_AddNumberToObject(st, "inflow_angle_deg", fs->inflow_deg);
+        cJSON_AddNumberToObject(st, "translation_fraction", fs->translation_fraction);
+        cJSON_AddStringToObject(st, "hemisphere", fs->south ? "south" : "north");
+        if (p->present) {
+            cJSON_AddBoolToObject(st, "outside_domain", p->outside);
+            cJSON_AddNumberToObject(st, "closest_approach_m", p->closest_m);
+            cJSON_AddNumberToObject(st, "closest_approach_s", p->closest_time_s);
+        }
+    } else
+        cJSON_AddNullToObject(e, "storm");
+    if (fs->weather)
+        cJSON_AddStringToObject(e, "weather_file", fs->weather_file);
+    else
+        cJSON_AddNullToObject(e, "weather_file");
+    if (fs->storm || fs->weather) {
+        const char *law = sw_drag_law_name((sw_drag_law)fs->drag_law);
+        cJSON_AddStringToObject(e, "drag_law", law ? law : "?");
+        cJSON_AddNumberToObject(e, "drag_cap", fs->drag_cap);
+        cJSON_AddNumberToObject(e, "air_density_kgm3", fs->air_density_kgm3);
+        cJSON_AddNumberToObject(e, "water_density_kgm3", fs->water_density_kgm3);
+    }
+    if (fs->level_file[0])
+        cJSON_AddStringToObject(e, "level_series", fs->level_file);
+    else
+        cJSON_AddNullToObject(e, "level_series");
+    cJSON_AddNumberToObject(e, "memory_bytes", (double)s->forcing_bytes);
+    cJSON *ws = cJSON_AddArrayToObject(e, "warnings");
+    storm_warning(s, warn, sizeof warn);
+    if (warn[0])
+        cJSON_AddItemToArray(ws, cJSON_CreateString(warn));
+}
+
 static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
 {
     cJSON *o = cJSON_CreateObject();
@@ -169,6 +348,7 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
     cJSON_AddStringToObject(o, "precision", sw_precision_name(sc->precision));
     cJSON_AddNumberToObject(o, "depth_max_m", s->h_max_m);
     add_terms(o, sc, s);
+    add_forcing(o, sc, s);
     cJSON_AddNumberToObject(o, "dt_s", s->dt_s);
     cJSON_AddNumberToObject(o, "courant", s->courant);
     cJSON_AddNumberToObject(o, "courant_limit", s->courant_limit);
@@ -225,6 +405,11 @@ void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_r
             r->cell_updates_per_s);
     if (strcmp(terms, "none"))
         fprintf(f, "Terms: %s\n", terms);
+    if (r->forcing[0])
+        fprintf(f, "Forcing: %s\n", r->forcing);
+    if (isfinite(r->wind_max_ms) || isfinite(r->air_pressure_min_pa))
+        fprintf(f, "Air over the water: highest 10 m wind %.1f m/s, lowest air pressure %.1f hPa\n", r->wind_max_ms,
+                r->air_pressure_min_pa / 100);
     if (r->n_gauges) {
         fprintf(f, "\n%-24s %9s %16s %10s %16s %10s\n", "Gauge", "depth m", "first arrival", "peak m",
                 "peak at", "trough m");
@@ -239,7 +424,11 @@ void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_r
             fprintf(f, "%-24s %9.1f %16s %10.3f %16s %10.3f\n", g->name, g->depth_m,
                     isnan(g->arrival_s) ? "not reached" : a, g->peak_m, pt, g->trough_m);
         }
-        fprintf(f, "(arrival: first time |eta| >= %g m; times after the source)\n", sc->arrival_threshold_m);
+        if (has_forcing(sc))
+            fprintf(f, "(arrival: first time |eta| >= %g m, the water departing from mean level by that much; "
+                    "times after the start)\n", sc->arrival_threshold_m);
+        else
+            fprintf(f, "(arrival: first time |eta| >= %g m; times after the source)\n", sc->arrival_threshold_m);
     }
     fprintf(f, "\nWritten:\n");
     if (r->gauges_path[0])
@@ -247,7 +436,7 @@ void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_r
     fprintf(f, "  %s\n", r->maps_path);
     if (r->snapshots_path[0])
         fprintf(f, "  %s\n", r->snapshots_path);
-    fprintf(f, "\n%s\n", sw_caution());
+    fprintf(f, "\n%s\n", sw_caution_for(sc));
 }
 
 char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_result *r)
@@ -265,6 +454,13 @@ char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_
     cJSON_AddNumberToObject(run, "volume_start_m3", r->volume_start_m3);
     cJSON_AddNumberToObject(run, "volume_end_m3", r->volume_end_m3);
     cJSON_AddNumberToObject(run, "arrival_threshold_m", sc->arrival_threshold_m);
+    if (r->forcing[0])
+        cJSON_AddStringToObject(run, "forcing", r->forcing);
+    else
+        cJSON_AddNullToObject(run, "forcing");
+    add_number_or_null(run, "wind_max_ms", r->wind_max_ms);
+    add_number_or_null(run, "air_pressure_min_pa", r->air_pressure_min_pa);
+    add_number_or_null(run, "air_pressure_min_hpa", r->air_pressure_min_pa / 100);
     cJSON *gs = cJSON_AddArrayToObject(o, "gauges");
     for (size_t q = 0; q < r->n_gauges; q++) {
         const sw_gauge_result *g = &r->gauge[q];
@@ -287,7 +483,7 @@ char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_
     cJSON_AddStringToObject(files, "maps", r->maps_path);
     if (r->snapshots_path[0])
         cJSON_AddStringToObject(files, "snapshots", r->snapshots_path);
-    cJSON_AddStringToObject(o, "caution", sw_caution());
+    cJSON_AddStringToObject(o, "caution", sw_caution_for(sc));
     char *txt = cJSON_Print(o);
     cJSON_Delete(o);
     return txt;

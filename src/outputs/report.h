@@ -13,21 +13,30 @@
 /* Formats a duration in seconds as "1 h 02 min 03 s", "12 min 30 s" or "42.5 s"; "-" for NaN. */
 void sw_format_duration(double s, char *buf, size_t n);
 
-/* Prints the plan of a run (grid, layout, dt and Courant number against the limit, steps, memory,
- * gauges with their depth and warnings). With a rate (NULL or cells_per_s <= 0 = unknown: no
+/* Prints the plan of a run (grid, layout, dt and Courant number against the limit, the terms, with
+ * forcing a `Forcing` line naming the storm, weather file or level series (and the storm's warning when
+ * its centre never enters the domain, from s->storm), steps, memory (the forcing's share named), gauges
+ * with their depth and warnings). With a rate (NULL or cells_per_s <= 0 = unknown: no
  * estimate), one line gives the estimated time, cells x steps / rate, with the rate and where it
  * came from (cache and its age, or measured now and whether the cache was written). */
 void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate);
 
-/* The plan as a JSON object (string owned by the caller, free()). NULL when out of memory. With a
- * rate it has "estimated_seconds", "rate_cells_per_s", "rate_source" ("cache" or "measured"),
+/* The plan as a JSON object (string owned by the caller, free()). NULL when out of memory. It has
+ * "forcing": null without forcing, else an object with "description" (the plan's line), "storm" (its
+ * settings, "outside_domain", "closest_approach_m", "closest_approach_s"; null without a storm),
+ * "weather_file", "level_series" (null when absent), the drag and densities, "memory_bytes" and
+ * "warnings" (strings). With a rate it has "estimated_seconds", "rate_cells_per_s", "rate_source" ("cache" or "measured"),
  * "rate_age_days", "rate_threads", "rate_cache_file" (null when none) and "rate_note" (null when none). */
 char *sw_report_plan_json(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate);
 
-/* Prints the end-of-run summary: a table per gauge, the files written and the caution. */
+/* Prints the end-of-run summary: the forcing and the highest wind and lowest air pressure over the
+ * water when there was an atmosphere, a table per gauge, the files written and the caution
+ * (sw_caution_for: the surge caution when the scenario has forcing). */
 void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_run_result *r);
 
-/* The summary as a JSON object (string owned by the caller, free()). NULL when out of memory. */
+/* The summary as a JSON object (string owned by the caller, free()). NULL when out of memory. Its
+ * "run" has "forcing" (the run's line or null), "wind_max_ms", "air_pressure_min_pa" and
+ * "air_pressure_min_hpa" (null without an atmosphere); "caution" is sw_caution_for(sc). */
 char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_result *r);
 
 #endif

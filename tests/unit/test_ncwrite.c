@@ -8,6 +8,8 @@
  *    standard names from the CF standard name table.
  *  - NetCDF Users Guide, "Fill Values": the default fill of double is 9.9692099683868690e+36 and of
  *    float 9.96921e+36f; written here as literals, not through the library's macro.
+ *  - CF standard name table: air_pressure_at_mean_sea_level (Pa), eastward_wind, northward_wind,
+ *    wind_speed (m s-1) for the forcing written by a storm-surge run [memory].
  */
 #include <stdarg.h>
 #include <stddef.h>
@@ -150,6 +152,21 @@ static void get_doubles(int ncid, const char *var, double *out)
     assert_int_equal(nc_get_var_double(ncid, varid, out), NC_NOERR);
 }
 
+static void assert_no_var(int ncid, const char *var)
+{
+    int varid;
+    if (nc_inq_varid(ncid, var, &varid) != NC_ENOTVAR)
+        fail_msg("variable %s is present, expected absent", var);
+}
+
+static void assert_no_att(int ncid, const char *att)
+{
+    nc_type t;
+    size_t len;
+    if (nc_inq_att(ncid, NC_GLOBAL, att, &t, &len) != NC_ENOTATT)
+        fail_msg("global attribute %s is present, expected absent", att);
+}
+
 /* The global attributes every file must carry. */
 static void assert_globals(int ncid, const char *title)
 {
@@ -256,6 +273,10 @@ static void test_gauges_roundtrip(void **state)
     assert_text(ncid, "v", "units", "m s-1");
     for (int k = 0; k < 3; k++)
         assert_text(ncid, (const char *[]){"eta", "u", "v"}[k], "coordinates", "time x y station_name");
+    assert_no_var(ncid, "air_pressure");   /* no atmosphere: no air series */
+    assert_no_var(ncid, "wind_east");
+    assert_no_var(ncid, "wind_north");
+    assert_no_att(ncid, "forcing");        /* meta.forcing NULL: no attribute */
 
     char names[NS][64];
     int vid;
@@ -291,6 +312,68 @@ static void test_gauges_roundtrip(void **state)
     }
     assert_int_equal(nc_close(ncid), NC_NOERR);
     remove(path);
+}
+
+/* A run with an atmosphere: the air pressure and the 10 m wind at the gauges, with CF names, and the
+ * forcing and the caution the run gives as global attributes. */
+static void test_gauges_air(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "ncw_gauges_air.nc");
+    double eta[NS * NT], u[NS * NT], v[NS * NT], p[NS * NT], we[NS * NT], wn[NS * NT];
+    sw_gauge_table gt = gauge_table(eta, u, v);
+    for (size_t k = 0; k < NS * NT; k++) {
+        p[k] = 101300.0 - 250.0 * (double)k;
+        we[k] = -3.0 + 0.5 * (double)k;
+        wn[k] = 12.25 - (double)k;
+    }
+    p[2 * NT + 1] = NAN;   /* a missing value becomes the fill */
+    gt.air_pressure_pa = p;
+    gt.wind_u_ms = we;
+    gt.wind_v_ms = wn;
+    sw_run_meta meta = test_meta("Test bay");
+    meta.forcing = "storm track.txt (Holland 1980), drag large-pond, slabs every 300 s";
+    meta.caution = "CAUTION: surge sandbox, no flooding of land.";
+    sw_error err = {0};
+    assert_int_equal(sw_ncw_gauges(path, &meta, &gt, &err), SW_OK);
+    assert_done(path);
+
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_text(ncid, NULL, "forcing", meta.forcing);
+    assert_text(ncid, NULL, "caution", meta.caution);
+    static const struct {
+        const char *var, *standard_name, *units;
+    } want[3] = {
+        {"air_pressure", "air_pressure_at_mean_sea_level", "Pa"},   /* CF standard name table */
+        {"wind_east", "eastward_wind", "m s-1"},
+        {"wind_north", "northward_wind", "m s-1"},
+    };
+    const double *sent[3] = {p, we, wn};
+    for (int k = 0; k < 3; k++) {
+        assert_var_dims(ncid, want[k].var, NC_DOUBLE, "station,time");
+        assert_text(ncid, want[k].var, "standard_name", want[k].standard_name);
+        assert_text(ncid, want[k].var, "units", want[k].units);
+        assert_text(ncid, want[k].var, "coordinates", "time x y station_name");
+        char *ln = get_text(ncid, want[k].var, "long_name");
+        assert_non_null(strstr(ln, "(the forcing at the gauge, linear in time between forcing slabs)"));
+        assert_true(k == 0 || strstr(ln, "10 m wind") != NULL);
+        free(ln);
+        assert_true(get_double_att(ncid, want[k].var, "_FillValue") == FILL_DOUBLE_NUG);
+        double buf[NS * NT];
+        get_doubles(ncid, want[k].var, buf);
+        for (size_t i = 0; i < NS * NT; i++)
+            assert_true(isnan(sent[k][i]) ? buf[i] == FILL_DOUBLE_NUG : buf[i] == sent[k][i]);
+    }
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+    remove(path);
+
+    /* part of the air series: refused, nothing written */
+    gt.wind_v_ms = NULL;
+    assert_int_equal(sw_ncw_gauges(path, &meta, &gt, &err), SW_ERR_USAGE);
+    assert_non_null(strstr(err.msg, "air pressure and wind"));
+    assert_false(exists(path));
 }
 
 static void test_gauges_refuse_bad_tables(void **state)
@@ -453,8 +536,106 @@ static void test_maps_roundtrip(void **state)
     for (size_t k = 0; k < MN; k++)
         assert_int_equal(wet[k], d.wet[k]);
 
+    /* the arrival's meaning, for a tsunami and for a surge */
+    char *ln = get_text(ncid, "arrival_time", "long_name");
+    assert_non_null(strstr(ln, "first time |eta| reaches arrival_threshold"));
+    assert_non_null(strstr(ln, "for a tsunami: the first wave's arrival"));
+    assert_non_null(strstr(ln, "for a surge: the first time the water departs from mean level by the threshold"));
+    free(ln);
+
+    /* no atmosphere, no storm: none of their variables, no track dimension */
+    assert_no_var(ncid, "wind_speed_max");
+    assert_no_var(ncid, "air_pressure_min");
+    assert_no_var(ncid, "storm_time");
+    assert_no_var(ncid, "storm_x");
+    int dim;
+    assert_int_equal(nc_inq_dimid(ncid, "track", &dim), NC_EBADDIM);
+
     assert_int_equal(nc_close(ncid), NC_NOERR);
     remove(path);
+}
+
+/* A run with a storm: the highest wind and lowest pressure maps (NaN on land as the fill) and the
+ * storm's track along its own dimension. */
+static void test_maps_air_and_track(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "ncw_maps_air.nc");
+    map_data d;
+    sw_map_set maps = map_set(&d);
+    double wind[MN], pmin[MN];
+    for (size_t k = 0; k < MN; k++) {
+        const int water = k % MNX > 0;
+        wind[k] = water ? 20.0 + 0.5 * (double)k : NAN;
+        pmin[k] = water ? 99000.0 - 10.0 * (double)k : NAN;
+    }
+    enum { NTR = 4 };
+    const double tt[NTR] = {0, 300, 600, 700}, tx[NTR] = {-5000, 0, 5000, 6500}, ty[NTR] = {1e4, 1.2e4, 1.4e4, 1.5e4},
+                 tp[NTR] = {97000, 96800, 96500, 96400};
+    maps.wind_max_ms = wind;
+    maps.air_pressure_min_pa = pmin;
+    maps.n_track = NTR;
+    maps.track_time_s = tt;
+    maps.track_x_m = tx;
+    maps.track_y_m = ty;
+    maps.track_p_pa = tp;
+    sw_run_meta meta = test_meta("Test bay");
+    sw_error err = {0};
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_OK);
+    assert_done(path);
+
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_text(ncid, "wind_speed_max", "standard_name", "wind_speed");   /* CF standard name table */
+    assert_text(ncid, "wind_speed_max", "units", "m s-1");
+    assert_text(ncid, "wind_speed_max", "cell_methods", "time: maximum");   /* CF 7.3 */
+    assert_text(ncid, "wind_speed_max", "long_name", "highest 10 m wind speed the water felt");
+    assert_map_values(ncid, "wind_speed_max", wind);
+    assert_text(ncid, "air_pressure_min", "standard_name", "air_pressure_at_mean_sea_level");
+    assert_text(ncid, "air_pressure_min", "units", "Pa");
+    assert_text(ncid, "air_pressure_min", "cell_methods", "time: minimum");
+    assert_map_values(ncid, "air_pressure_min", pmin);
+
+    assert_int_equal(dim_len(ncid, "track"), NTR);
+    static const char *const tv[4] = {"storm_time", "storm_x", "storm_y", "storm_central_pressure"};
+    const double *tsent[4] = {tt, tx, ty, tp};
+    for (int k = 0; k < 4; k++) {
+        double got[NTR];
+        assert_var_dims(ncid, tv[k], NC_DOUBLE, "track");
+        get_doubles(ncid, tv[k], got);
+        assert_memory_equal(got, tsent[k], sizeof got);
+        if (k > 0)
+            assert_text(ncid, tv[k], "coordinates", "storm_time");
+    }
+    assert_text(ncid, "storm_time", "standard_name", "time");   /* CF 4.4 */
+    assert_text(ncid, "storm_time", "units", "seconds since 2000-01-01 00:00:00");
+    assert_text(ncid, "storm_x", "units", "m");
+    assert_text(ncid, "storm_y", "units", "m");
+    assert_text(ncid, "storm_central_pressure", "units", "Pa");
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+    remove(path);
+
+    /* the maps without a track (a weather file): no track dimension */
+    maps.n_track = 0;
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_OK);
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_map_values(ncid, "wind_speed_max", wind);
+    int dim;
+    assert_int_equal(nc_inq_dimid(ncid, "track", &dim), NC_EBADDIM);
+    assert_no_var(ncid, "storm_x");
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+    remove(path);
+
+    /* refused: one map of the two; track points without their arrays */
+    maps.air_pressure_min_pa = NULL;
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_ERR_USAGE);
+    maps.air_pressure_min_pa = pmin;
+    maps.n_track = NTR;
+    maps.track_y_m = NULL;
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_ERR_USAGE);
+    assert_non_null(strstr(err.msg, "track"));
+    assert_false(exists(path));
 }
 
 /* The writer must leave the caller's arrays alone (NaN is replaced in a copy). */
@@ -729,8 +910,10 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_gauges_roundtrip),
+        cmocka_unit_test(test_gauges_air),
         cmocka_unit_test(test_gauges_refuse_bad_tables),
         cmocka_unit_test(test_maps_roundtrip),
+        cmocka_unit_test(test_maps_air_and_track),
         cmocka_unit_test(test_maps_keep_input),
         cmocka_unit_test(test_second_write_replaces),
         cmocka_unit_test(test_missing_folder),
