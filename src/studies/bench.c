@@ -16,6 +16,9 @@
 #include "observers/tracker.h"
 #include "base/fpmode.h"
 #include "studies/bench_reference.h"
+#include "forcing/forcing.h"
+#include "forcing/gridded.h"
+#include "inputs/scenario.h"
 
 #define MAX_ROUNDS 32
 #define MEASURE_S 0.4   /* aim for measurements of about this long */
@@ -224,6 +227,9 @@ static void say(const sw_bench_options *opt, const char *what)
         opt->progress(what, opt->user);
 }
 
+static void bench_forcing(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, sw_model *big,
+                          sw_bench_layout *out);
+
 /* All figures of one layout, interleaved with triad. */
 static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res,
                               sw_bench_layout *out, sw_error *err)
@@ -332,8 +338,190 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
     sw_tracker_free(tr);
     sw_model_free(big_terms);
     sw_model_free(small);
+    bench_forcing(opt, lay, res, big, out);   /* after big_terms is freed: the forced model takes its room */
     sw_model_free(big);
     return SW_OK;
+}
+
+/* ---- surface forcing ------------------------------------------------------------------------------------ */
+
+/* The forcing figures' storm: an invented track across the bench basin over FORCING_SPAN_S; model time is
+ * taken modulo the span, so a long measurement keeps rebuilding slabs at the run's own cadence. */
+#define FORCING_SPAN_S (2 * 86400.0)
+
+typedef struct {
+    char dir[64];              /* a scratch folder for the track and the weather file ("" when none) */
+    sw_scenario storm, weather;/* scenarios that name them (only their forcing is used) */
+    int have_storm, have_weather;
+} forcing_files;
+
+static sw_status bench_weather_fill(void *ctx, size_t k, double time_s, const sw_grid *g, float *p, float *u,
+                                    float *v, sw_error *err)
+{
+    (void)ctx, (void)k, (void)err;
+    const double w = 2 * 3.14159265358979323846 * time_s / FORCING_SPAN_S;
+    for (size_t j = 0; j < g->ny; j++)
+        for (size_t i = 0; i < g->nx; i++) {
+            const double a = (double)i / (double)g->nx, b = (double)j / (double)g->ny;
+            p[j * g->nx + i] = (float)(101325 - 2000 * sin(3 * a + w) * cos(2 * b));
+            u[j * g->nx + i] = (float)(12 * cos(2 * b + w));
+            v[j * g->nx + i] = (float)(8 * sin(3 * a - w));
+        }
+    return SW_OK;
+}
+
+/* Writes the storm's track and a weather file over an n x n basin of 1 km cells into a scratch folder,
+ * and parses a scenario for each. What fails leaves that figure out (have_* = 0). */
+static void forcing_files_make(forcing_files *ff, size_t n)
+{
+    memset(ff, 0, sizeof *ff);
+    const char *tmp = getenv("TMPDIR");
+    snprintf(ff->dir, sizeof ff->dir, "%.40s/shoreward-bench-XXXXXX", tmp && *tmp ? tmp : "/tmp");
+    if (!mkdtemp(ff->dir)) {
+        ff->dir[0] = '\0';
+        return;
+    }
+    const double L = (double)n;   /* km */
+    char path[128], text[1024];
+    snprintf(path, sizeof path, "%s/track.txt", ff->dir);
+    FILE *f = fopen(path, "w");
+    if (f) {
+        fprintf(f, "# an invented storm crossing the benchmark basin\ntime[h] x[km] y[km] pressure_drop[hPa] rmax[km] B\n"
+                   "0 %.1f %.1f 50 80 1.3\n48 %.1f %.1f 50 80 1.3\n", 0.2 * L, 0.3 * L, 0.8 * L, 0.7 * L);
+        const int bad = fclose(f) != 0;
+        snprintf(text, sizeof text, "[run]\nduration = 2 d\n[grid]\nnx = 2\nny = 2\ndx = 1 km\n[seabed]\ndeep = 1 km\n"
+                                    "[storm]\ntrack = track.txt\n");
+        ff->have_storm = !bad && sw_scenario_parse(text, "<bench storm>", ff->dir, &ff->storm, NULL) == SW_OK;
+    }
+    const sw_grid fg = {.nx = 101, .ny = 101, .dx_m = (L + 4) * 1000 / 100, .dy_m = (L + 4) * 1000 / 100,
+                        .x0_m = -2000 - 0.5 * (L + 4) * 1000 / 100, .y0_m = -2000 - 0.5 * (L + 4) * 1000 / 100};
+    double times[49];
+    for (int q = 0; q < 49; q++)
+        times[q] = 3600.0 * q;
+    snprintf(path, sizeof path, "%s/weather.nc", ff->dir);
+    if (sw_weather_write(path, &fg, times, 49, "2000-01-01 00:00:00", "benchmark weather (invented)", NULL,
+                         bench_weather_fill, NULL, NULL) == SW_OK) {
+        snprintf(text, sizeof text, "[run]\nduration = 2 d\n[grid]\nnx = 2\nny = 2\ndx = 1 km\n[seabed]\ndeep = 1 km\n"
+                                    "[weather]\nfile = weather.nc\n");
+        ff->have_weather = sw_scenario_parse(text, "<bench weather>", ff->dir, &ff->weather, NULL) == SW_OK;
+    }
+}
+
+static void forcing_files_free(forcing_files *ff)
+{
+    char path[128];
+    if (ff->have_storm)
+        sw_scenario_free(&ff->storm);
+    if (ff->have_weather)
+        sw_scenario_free(&ff->weather);
+    if (ff->dir[0]) {
+        snprintf(path, sizeof path, "%s/track.txt", ff->dir);
+        remove(path);
+        snprintf(path, sizeof path, "%s/weather.nc", ff->dir);
+        remove(path);
+        rmdir(ff->dir);
+    }
+}
+
+/* Seconds for `steps` forced steps as a run takes them (the forcing's advance, the step, the tick); f NULL:
+ * the slabs as they are. Each forcing keeps its own clock (*clock_s, s), which its slices alone advance:
+ * the storm and the weather file take turns on one model, and each must see its own time run on
+ * smoothly, rebuilding its slabs at its own cadence (the model's slabs hold whichever built last: the
+ * step's cost does not depend on their values). */
+static double time_forced_steps(sw_model *m, sw_forcing *f, double *clock_s, int threads, int steps)
+{
+    omp_set_num_threads(threads);
+    const double dt = sw_model_dt(m);
+    double t0 = omp_get_wtime();
+    SW_OMP(parallel)
+    for (int k = 0; k < steps; k++) {
+        if (f)
+            sw_forcing_advance(f, m, fmod(*clock_s + (double)(k + 1) * dt, FORCING_SPAN_S));
+        sw_model_step(m);
+        SW_OMP(single)
+        sw_model_tick(m);
+    }
+    const double wall = omp_get_wtime() - t0;
+    if (clock_s)
+        *clock_s += (double)steps * dt;
+    return wall;
+}
+
+/* One storm slab built on m, s: an advance two updates on from the storm's clock rebuilds both slabs
+ * (timed, halved); the clock then stands there, so the storm's next slice goes on without a rebuild. */
+static double time_storm_build(sw_model *m, sw_forcing *f, double *clock_s, double update_s, int threads)
+{
+    omp_set_num_threads(threads);
+    *clock_s = (floor(*clock_s / update_s) + 2) * update_s;
+    const double t = fmod(*clock_s, FORCING_SPAN_S);
+    double t0 = omp_get_wtime();
+    SW_OMP(parallel)
+    sw_forcing_advance(f, m, t);
+    return 0.5 * (omp_get_wtime() - t0);
+}
+
+/* The forcing figures of one layout: plain, storm, weather and held slabs in PAIRS slices per round. */
+static void bench_forcing(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, sw_model *big,
+                          sw_bench_layout *out)
+{
+    const int top = res->threads[res->n_threads - 1];
+    const double cells = (double)res->n_large * (double)res->n_large;
+    forcing_files ff;
+    forcing_files_make(&ff, res->n_large);
+    const sw_terms_config surface = {.surface = 1};
+    sw_model *forced = ff.have_storm && ff.have_weather ? make_model(lay, res->n_large, opt->precision, &surface, NULL)
+                                                        : NULL;
+    sw_forcing *storm = NULL, *weather = NULL;
+    if (forced) {
+        const double span = FORCING_SPAN_S;
+        if (sw_forcing_create(&ff.storm, forced, span, NULL, NULL, 0, &storm, NULL) != SW_OK
+            || sw_forcing_create(&ff.weather, forced, span, NULL, NULL, 0, &weather, NULL) != SW_OK)
+            storm = weather = NULL;
+    }
+    if (storm && weather) {
+        char what[128];
+        const int slice = steps_for(big, top);
+        samples st = {0}, we = {0}, fo = {0}, rs = {0}, rw = {0}, rf = {0}, bu = {0};
+        double clock_storm = 0, clock_weather = 0;
+        for (int r = 0; r < opt->rounds; r++) {
+            snprintf(what, sizeof what, "layout %s: forcing round %d of %d", lay->name, r + 1, opt->rounds);
+            say(opt, what);
+            double t_plain = 0, t_storm = 0, t_weather = 0, t_held = 0;
+            for (int q = 0; q < PAIRS; q++) {
+                const int later = (r + q) % 2;
+                if (later) {
+                    t_storm += time_forced_steps(forced, storm, &clock_storm, top, slice);
+                    t_weather += time_forced_steps(forced, weather, &clock_weather, top, slice);
+                }
+                t_plain += time_steps(big, NULL, top, slice);
+                t_held += time_forced_steps(forced, NULL, NULL, top, slice);
+                if (!later) {
+                    t_storm += time_forced_steps(forced, storm, &clock_storm, top, slice);
+                    t_weather += time_forced_steps(forced, weather, &clock_weather, top, slice);
+                }
+            }
+            const double n = cells * slice * PAIRS, plain = n / t_plain;
+            push(&st, n / t_storm);
+            push(&we, n / t_weather);
+            push(&fo, n / t_held);
+            push(&rs, n / t_storm / plain);
+            push(&rw, n / t_weather / plain);
+            push(&rf, n / t_held / plain);
+            push(&bu, time_storm_build(forced, storm, &clock_storm, ff.storm.forcing.update_s, top));
+        }
+        out->large_storm = summarise(&st);
+        out->large_weather = summarise(&we);
+        out->large_forced = summarise(&fo);
+        out->storm_ratio = summarise(&rs).median;
+        out->weather_ratio = summarise(&rw).median;
+        out->forced_ratio = summarise(&rf).median;
+        out->storm_build_s = summarise(&bu).median;
+        out->storm_steps_per_build = ff.storm.forcing.update_s / sw_model_dt(forced);
+    }
+    sw_forcing_free(storm);
+    sw_forcing_free(weather);
+    sw_model_free(forced);
+    forcing_files_free(&ff);
 }
 
 /* 1 when the layout letters in `letters` (any case, as in sw_bench_options.layouts) name lay. */
@@ -431,6 +619,17 @@ void sw_bench_print(FILE *f, const sw_bench_result *res)
         if (l->reference.n)
             fprintf(f, "  the stepper: %.3f x the pre-stepper C step (median of the rounds' ratios); the two leave %s\n",
                     l->reference_ratio, l->reference_identical ? "the same bits" : "DIFFERENT bits");
+        if (l->large_storm.n) {
+            print_stat(f, "step + moving storm, large", l->large_storm, 1e6, "M cell-updates/s");
+            print_stat(f, "step + weather file, large", l->large_weather, 1e6, "M cell-updates/s");
+            print_stat(f, "forced step, slabs held, large", l->large_forced, 1e6, "M cell-updates/s");
+            fprintf(f, "  surface forcing: moving storm %.3f x the plain step, weather file %.3f x, the forced step alone "
+                       "%.3f x (medians of the rounds' ratios); a storm slab takes %.3g s (%.3g ns a cell), built every "
+                       "%.0f steps\n",
+                    l->storm_ratio, l->weather_ratio, l->forced_ratio, l->storm_build_s,
+                    1e9 * l->storm_build_s / ((double)res->n_large * (double)res->n_large), l->storm_steps_per_build);
+        } else
+            fprintf(f, "  surface forcing: not measured (no memory for the forced model, or no scratch folder)\n");
     }
     if (res->numpy.n > 0)
         fprintf(f, "\nNumPy C-layout step: %.3g M cell-updates/s; shoreward C in the same rounds %.3g M: %.1f x\n",
@@ -482,6 +681,14 @@ char *sw_bench_json(const sw_bench_result *res)
         cJSON_AddNumberToObject(e, "parallel_efficiency", l->efficiency_2);
         cJSON_AddItemToObject(e, "large_terms", stat_json(l->large_terms));
         cJSON_AddNumberToObject(e, "terms_ratio", l->terms_ratio);
+        cJSON_AddItemToObject(e, "large_storm", stat_json(l->large_storm));
+        cJSON_AddItemToObject(e, "large_weather", stat_json(l->large_weather));
+        cJSON_AddItemToObject(e, "large_forced", stat_json(l->large_forced));
+        cJSON_AddNumberToObject(e, "storm_ratio", l->storm_ratio);
+        cJSON_AddNumberToObject(e, "weather_ratio", l->weather_ratio);
+        cJSON_AddNumberToObject(e, "forced_ratio", l->forced_ratio);
+        cJSON_AddNumberToObject(e, "storm_build_s", l->storm_build_s);
+        cJSON_AddNumberToObject(e, "storm_steps_per_build", l->storm_steps_per_build);
         if (l->reference.n) {
             cJSON_AddItemToObject(e, "reference", stat_json(l->reference));
             cJSON_AddNumberToObject(e, "reference_ratio", l->reference_ratio);

@@ -59,6 +59,15 @@ typedef struct {
     double reference_ratio;     /* C only: median over rounds of (stepper / pre-stepper step), same round */
     int reference_identical;    /* C only: 1 when the pre-stepper step and the stepper left the same bits
                                  * after 50 steps on the cache-resident grid (checked once), else 0 */
+    /* Surface forcing on the large grid (a second set of rounds, the plain step measured again beside it;
+     * n = 0 when the forced model did not fit in memory): */
+    sw_bench_stat large_storm;  /* step with a moving parametric storm (slabs rebuilt every [storm] update,
+                                 * 300 s of model time), the forcing's advance included */
+    sw_bench_stat large_weather;/* step with a weather file (101 x 101 points, hourly slabs) */
+    sw_bench_stat large_forced; /* the forced step alone, its slabs held (no rebuild) */
+    double storm_ratio, weather_ratio, forced_ratio; /* medians of the rounds' ratios to the plain step */
+    double storm_build_s;       /* one storm slab built on the large grid, s (median) */
+    double storm_steps_per_build; /* steps between storm slab builds (update / dt) */
 } sw_bench_layout;
 
 typedef struct {
