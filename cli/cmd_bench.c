@@ -17,7 +17,7 @@ static const char *const usage_bench =
     "    cache-resident grid, with and without arrival/extreme tracking, and over thread counts;\n"
     "  - the same C-layout scheme written in plain vectorised NumPy (tools/bench_numpy.py);\n"
     "  - each layout's step with surface forcing beside the plain step: a moving storm (its slabs rebuilt\n"
-    "    every 300 s of model time), a weather file (hourly slabs), and the forced step with its slabs held.\n"
+    "    every 600 s of model time), a weather file (hourly slabs), and the forced step with its slabs held.\n"
     "Reports medians with the spread, the effective bandwidth (cells x steps x bytes per cell update per\n"
     "the layout's bytes model / time) as a ratio to triad, the cost of tracking, the parallel efficiency\n"
     "and the speed-up over NumPy. Nothing passes or fails. Needs about 6 GB of memory at the default size\n"

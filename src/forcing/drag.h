@@ -27,6 +27,17 @@ typedef enum {
  * cap > 0 (cap <= 0: no limit). */
 double sw_drag_cd(sw_drag_law law, double w10_ms, double cap);
 
+/* Every law above in one branch-free form, for loops over many points:
+ *     10^3 C_D = min(max(lo, a + b U10), 10^3 cap)
+ * (Large & Pond: lo = 1.14, a = 0.49, b = 0.065, the max choosing the branch; Wu and Garratt: lo = 0). */
+typedef struct {
+    double lo, a, b;   /* 10^3 C_D: floor, intercept, slope per m/s */
+    double cap;        /* 10^3 C_D's largest value (HUGE_VAL: none) */
+} sw_drag_form;
+
+/* The form of `law` with the cap (cap <= 0: none). */
+sw_drag_form sw_drag_form_of(sw_drag_law law, double cap);
+
 /* The short name a scenario writes: "large-pond", "wu", "garratt"; NULL for a law out of range. */
 const char *sw_drag_law_name(sw_drag_law law);
 

@@ -76,7 +76,7 @@ void sw_forcing_track(const sw_forcing *f, size_t *n, const double **t_s, const 
 void sw_forcing_storm_settings(const sw_scenario *sc, const sw_grid *g, sw_storm_options *opt, sw_storm_changes *changes);
 
 /* One line for plans and file attributes, e.g. "storm track.txt (Holland 1980), drag large-pond, slabs
- * every 300 s" or "weather file.nc (48 slabs)"; "level series tide.txt" is added when there is one. */
+ * every 600 s" or "weather file.nc (48 slabs)"; "level series tide.txt" is added when there is one. */
 void sw_forcing_describe(const sw_forcing *f, char *buf, size_t n);
 
 #endif

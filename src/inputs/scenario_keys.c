@@ -113,7 +113,7 @@ static const key_def STORM_KEYS[] = {
       .accepted = "0 <= translation_fraction <= 1" },
     { .name = "hemisphere", .kind = K_CHOICE, SC(forcing.south), .words = HEMISPHERE_WORDS, .dflt = "north",
       .accepted = "north (counter-clockwise), south (clockwise); with [run] rotation the sign of f decides" },
-    { .name = "update", .kind = K_TIME, SC(forcing.update_s), ABOVE(0, DAY), .dflt = "300 s",
+    { .name = "update", .kind = K_TIME, SC(forcing.update_s), ABOVE(0, DAY), .dflt = "600 s",
       .accepted = "0 < update <= 1 d" },
     { .name = "shift_across", .kind = K_LENGTH, SC(forcing.shift_across_m), RANGE(-1e4 * KM, 1e4 * KM), .dflt = "0",
       .accepted = "|shift_across| <= 10000 km, to the left of the mean heading" },

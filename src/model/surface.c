@@ -32,7 +32,8 @@ void SW_NAME(sw_surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void
     const int periodic_x = m->edges[SW_WEST] == SW_EDGE_PERIODIC, periodic_y = m->edges[SW_SOUTH] == SW_EDGE_PERIODIC;
     const double x_centre0 = g->x0_m - 0.5 * g->dx_m;   /* x of padded column 0's centre */
 
-    /* 1: the head at every centre, halo included (the halo of a periodic edge: the opposite side's) */
+    /* 1: the head at every centre, halo included (the halo of a periodic edge: the opposite side's). The
+     * gradients gu, gv are 0 here: zeroed when the model was made, and again by every build once read */
     SW_OMP(for schedule(static))
     for (size_t jp = 0; jp < ny + 2; jp++) {
         float *tmp = ax + jp * s;   /* the slab's row serves as the row buffer until phase 2 */
@@ -45,8 +46,6 @@ void SW_NAME(sw_surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void
             row[0] = row[nx];
             row[nx + 1] = row[1];
         }
-        memset(gu + jp * s, 0, s * sizeof *gu);
-        memset(gv + jp * s, 0, s * sizeof *gv);
     }
     SW_OMP(single)
     {
@@ -79,9 +78,11 @@ void SW_NAME(sw_surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void
            x_centre0 + m->layout->u_at[0] * g->dx_m, g->dx_m, np, ax + jp * s);
         fn(ctx, SW_SURFACE_STRESS_Y, (ptrdiff_t)jp - 1, yc + m->layout->v_at[1] * g->dy_m,
            x_centre0 + m->layout->v_at[0] * g->dx_m, g->dx_m, np, ay + jp * s);
+        SW_OMP(simd)
         for (size_t k = jp * s; k < jp * s + np; k++) {
             ax[k] = hx[k] > 0 ? (float)((sw_real)ax[k] / hx[k] + gu[k]) : 0.0f;
             ay[k] = hy[k] > 0 ? (float)((sw_real)ay[k] / hy[k] + gv[k]) : 0.0f;
+            gu[k] = gv[k] = 0;   /* ready for the next build: the stages step them from 0 */
         }
     }
 }

@@ -62,7 +62,7 @@ typedef struct {
     /* Surface forcing on the large grid (a second set of rounds, the plain step measured again beside it;
      * n = 0 when the forced model did not fit in memory): */
     sw_bench_stat large_storm;  /* step with a moving parametric storm (slabs rebuilt every [storm] update,
-                                 * 300 s of model time), the forcing's advance included */
+                                 * 600 s of model time), the forcing's advance included */
     sw_bench_stat large_weather;/* step with a weather file (101 x 101 points, hourly slabs) */
     sw_bench_stat large_forced; /* the forced step alone, its slabs held (no rebuild) */
     double storm_ratio, weather_ratio, forced_ratio; /* medians of the rounds' ratios to the plain step */

@@ -60,7 +60,7 @@ REDUCTION = 0.8            # [storm] reduction default (common practice)
 TRANSLATION = 0.5          # [storm] translation_fraction default (common practice)
 G = 9.81
 OMEGA = 7.2921159e-5       # Earth's rotation rate, s-1 [memory; docs/references.md]
-UPDATE_S = 300.0           # [storm] update default
+UPDATE_S = 600.0           # [storm] update default
 
 SCENARIO = """# Fictional: storm Orla crosses the Calder Shelf (invented names, not a real place or storm).
 [run]
@@ -251,14 +251,14 @@ def check_storm_run():
     check(p.returncode == 0 and air is not None and abs(float(air.group(1)) - top) <= 0.05
           and abs(float(air.group(2)) - np.nanmin(pmin) / 100) <= 0.05,
           f"the run summary gives the highest wind and lowest pressure: {air.group(0) if air else p.stdout[-300:]!r}")
-    check(re.search(r"(?m)^Forcing +storm orla-track\.txt \(Holland 1980\), slabs every 300 s; drag large-pond$",
+    check(re.search(r"(?m)^Forcing +storm orla-track\.txt \(Holland 1980\), slabs every 600 s; drag large-pond$",
                     p.stdout) is not None, "the run's plan prints the Forcing line")
     cautions = re.findall(r"(?m)^CAUTION:.*$", p.stdout)
     check(len(cautions) >= 1 and all(c == caution for c in cautions),
           f"every caution `run` prints is the surge caution ({len(cautions)} printed)")
     p = run("check", scn)
     check(p.returncode == 0 and re.search(r"(?m)^Forcing +storm orla-track\.txt \(Holland 1980\), slabs every "
-                                          r"300 s; drag large-pond$", p.stdout) is not None
+                                          r"600 s; drag large-pond$", p.stdout) is not None
           and "warning: [storm]" not in p.stdout, "check prints the Forcing line and no storm warning")
     check(re.search(r"(?m)^Memory .*the forcing takes [0-9.]+ MB", p.stdout) is not None,
           "check's memory line counts the forcing")
@@ -275,7 +275,7 @@ def check_storm_changes():
     """[storm] shift_across and pressure_drop_factor: named in the plan, applied to the track written."""
     scn = scenario("orla-shift.scn", storm_section(extra="shift_across = 40 km\npressure_drop_factor = 1.5\n"))
     p = run("check", scn)
-    check(p.returncode == 0 and re.search(r"(?m)^Forcing +storm orla-track\.txt \(Holland 1980\), slabs every 300 s, "
+    check(p.returncode == 0 and re.search(r"(?m)^Forcing +storm orla-track\.txt \(Holland 1980\), slabs every 600 s, "
                                           r"shifted 40 km across, pressure drop x 1\.5; drag large-pond$", p.stdout),
           "the plan names the shift and the factor")
     out = out_dir("orla-shift")

@@ -833,7 +833,7 @@ static void test_forcing_keys(void **state)
     assert_true(f->air_density_kgm3 == 1.15);
     assert_true(f->water_density_kgm3 == 1025);
     assert_true(f->ambient_hpa == 1013);
-    assert_true(f->update_s == 300);
+    assert_true(f->update_s == 600);
     assert_int_equal(sc->terms.surface, 1);
     del_sc(sc);
     sc = parse_ok(BASE);
