@@ -29,6 +29,10 @@ Checks (each names its source where there is one):
     (200 km, from the geometry of the track [derived]);
   - a weather file of uniform wind and pressure gives exactly those maps (bilinear interpolation of equal
     values, docs/weather-file.md) and no track;
+  - a `level` edge following a level series (a text file; docs/storm.md): a channel closed at its far end
+    and driven at its mouth by a tide A sin(w t), slowly ramped up, holds the standing wave whose closed
+    end rises to A / cos(k L), k = w / sqrt(g h) [derived from the linear equations with no flow at the
+    closed end]; the mouth cell follows the series;
   - bad inputs fail with exit status 1, one line naming the file and line (or the file and the span),
     and leave no output file: a bad track line, a track shorter than the run, times not increasing, a
     negative rmax, a weather pressure without units, a weather slab with a missing value (found during
@@ -408,12 +412,70 @@ def check_refusals(end_s):
         check(no_files_left(out), f"{what}: no output file left ({sorted(os.listdir(out)) if os.path.exists(out) else []})")
 
 
+# ---- a level series on a level edge -----------------------------------------------------------------
+
+LEVEL_SCENARIO = """# Fictional: the Narrow Inlet, a channel closed at its east end, driven by an invented tide.
+[run]
+title = Narrow Inlet tide (fictional)
+duration = 6 d
+gauge_interval = 10 min
+[grid]
+nx = 60
+ny = 3
+dx = 1 km
+[seabed]
+deep = 10 m
+[edges]
+west = level
+level_series = inlet-tide.txt
+[gauges]
+Inlet Head = 59.5 km, 1.5 km
+Inlet Mouth = 0.5 km, 1.5 km
+"""
+
+
+def check_level_series():
+    amp, period_h, ramp_h = 0.4, 12.42, 48.0
+    w = 2 * math.pi / (period_h * 3600)
+    lines = ["# an invented tide for the fictional Narrow Inlet, ramped up over two days", "time[h] elevation[m]"]
+    for q in range(0, 6 * 24 * 4 + 9):   # every 15 min, a little past the 6 days
+        t_h = q / 4
+        lines.append(f"{t_h:.2f} {amp * (1 - math.exp(-t_h / ramp_h)) * math.sin(w * t_h * 3600):.6f}")
+    write("inlet-tide.txt", "\n".join(lines) + "\n")
+    path = write("inlet.scn", LEVEL_SCENARIO)
+    out = out_dir("inlet-out")
+    p = run("run", path, "--out", out, "--quiet")
+    check(p.returncode == 0, f"level series run: {p.stderr.strip()[-300:]}")
+    if p.returncode != 0:
+        return
+    with Dataset(os.path.join(out, "gauges.nc")) as ds:
+        t = np.asarray(ds["time"][:], dtype=float)
+        eta = np.asarray(ds["eta"][:], dtype=float)
+        mcaution = ds.getncattr("caution")
+    last = t >= t[-1] - 2 * period_h * 3600   # the last two tidal periods, long after most of the ramp
+    level = amp * (1 - np.exp(-t[last] / 3600 / ramp_h)) * np.sin(w * t[last])   # the series at the samples
+    c = math.sqrt(9.81 * 10)
+    L = 60e3                                  # the node line (the edge) to the closed end
+    kl = w / c * L
+    # the response as a multiple of the mouth's level, by least squares over the window (the slow ramp
+    # makes the amplitude drift; the ratio does not)
+    for name, series, x in (("closed end", eta[0, last], 59.5e3), ("mouth cell", eta[1, last], 0.5e3)):
+        ratio = float(np.dot(series, level) / np.dot(level, level))
+        want = math.cos(kl * (1 - x / L)) / math.cos(kl)
+        rms = float(np.sqrt(np.mean((series - ratio * level) ** 2)))
+        check(abs(ratio / want - 1) < 0.01,
+              f"level series: the {name} follows {ratio:.4f} x the mouth's level, cos(k (L - x)) / cos(kL) = "
+              f"{want:.4f} (kL = {kl:.3f}) [derived]; misfit rms {rms:.4f} m")
+    check("no flooding of land" in mcaution, "level series: the surge caution in gauges.nc")
+
+
 def main():
     os.makedirs(WORK, exist_ok=True)
     res = check_storm_run()
     check_storm_changes()
     check_outside_warning()
     check_weather()
+    check_level_series()
     check_refusals(res["run"]["end_time_s"] if res else 21601.41)
 
     if FAILURES:
