@@ -130,7 +130,7 @@ static void test_file_matches_storm(void **state)
     tu_tmp_path(file, sizeof file, "forcing_weather.nc");
     assert_int_equal(tu_write_file(track, TRACK), 0);
 
-    /* the file: the storm at its slab times (every 300 s, [storm] update's default) on a grid of the
+    /* the file: the storm at its slab times (every 600 s, [storm] update's default) on a grid of the
      * model's cell centres widened by two cells, so that the halo lies inside it too */
     sw_storm_options o = sw_storm_options_default();
     o.coriolis_s = 2 * 7.2921159e-5 * sin(20 * 3.14159265358979323846 / 180);   /* the run's f at 20 deg */
@@ -140,7 +140,7 @@ static void test_file_matches_storm(void **state)
     const sw_grid fg = {.nx = 54, .ny = 44, .dx_m = 4000, .dy_m = 4000, .x0_m = -8000, .y0_m = -8000};
     double times[64];
     size_t nt = 0;
-    for (double t = 0; t <= 5 * 3600 + 300; t += 300)
+    for (double t = 0; t <= 5 * 3600 + 600; t += 600)
         times[nt++] = t;
     sw_status rc = sw_weather_write(file, &fg, times, nt, "2000-01-01 00:00:00", "fictional storm", "test only",
                                     fill_storm, storm, &err);
@@ -174,11 +174,11 @@ static void test_file_matches_storm(void **state)
 
     /* the gauges' pressure: the storm's own at the gauge at the slab times around the sample, linear
      * between them (sample 15: the first step at or after 2.5 h) */
-    const double ts = a.time[15], t0 = floor(ts / 300) * 300, w = (ts - t0) / 300;
+    const double ts = a.time[15], t0 = floor(ts / 600) * 600, w = (ts - t0) / 600;
     double p_slab[2];
     for (int q = 0; q < 2; q++) {
         sw_storm_state st;
-        sw_storm_state_at(storm, t0 + 300 * q, &st);
+        sw_storm_state_at(storm, t0 + 600 * q, &st);
         sw_storm_point(storm, &st, 100e3, 60e3, &p_slab[q], NULL, NULL);
     }
     const double p_want = p_slab[0] + w * (p_slab[1] - p_slab[0]), p_got = a.gauge_p[1 * a.n_times + 15];
