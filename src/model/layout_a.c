@@ -98,7 +98,7 @@ static void a_edge_velocities(const sw_view *v, const sw_edge_cell *cells, size_
     for (size_t q = q0; q < q1; q++) {
         const sw_edge_cell *oc = &cells[q];
         sw_real *vel = oc->normal_x ? u : vv;
-        vel[oc->ghost] = (sw_real)oc->vel * eta[oc->ghost] + (sw_real)oc->mirror * vel[oc->inner];
+        vel[oc->ghost] = (sw_real)oc->vel * (eta[oc->ghost] + sw_edge_head(v, q)) + (sw_real)oc->mirror * vel[oc->inner];
     }
 }
 

@@ -350,10 +350,11 @@ static void d_edge_velocities(const sw_view *v, const sw_edge_cell *oc, size_t q
         /* open: the outgoing wave's velocity for the inner cells' elevation, on the face at +t their
          * mean with the next inner cell along the edge when that is water (its flux h u = c eta leaves
          * the inner cells, never enters them); level: the inner face's volume flux, mirrored */
-        const sw_real half = h[n + t] > 0 ? (sw_real)0.5 : 0, inv_h = 1 / h[n];
-        vel[g] = (sw_real)oc[q].vel * ((1 - half) * eta[n] + half * eta[n + t]) + (sw_real)oc[q].mirror * hn[n] * vel[n] * inv_h;
+        const sw_real half = h[n + t] > 0 ? (sw_real)0.5 : 0, inv_h = 1 / h[n], hd = sw_edge_head(v, q);
+        vel[g] = (sw_real)oc[q].vel * ((1 - half) * (eta[n] + hd) + half * (eta[n + t] + hd))
+               + (sw_real)oc[q].mirror * hn[n] * vel[n] * inv_h;
         if (!(h[n - t] > 0))
-            vel[g - t] = (sw_real)oc[q].vel * eta[n] + (sw_real)oc[q].mirror * hn[n - t] * vel[n - t] * inv_h;
+            vel[g - t] = (sw_real)oc[q].vel * (eta[n] + hd) + (sw_real)oc[q].mirror * hn[n - t] * vel[n - t] * inv_h;
         if (oc[q].vel != 0) {
             /* open: the ghost eta, read by the normal velocities one cell in (n and n - t), moves by an
              * implicit upwind step over the distance dx towards their outgoing-wave elevation,
@@ -362,7 +363,7 @@ static void d_edge_velocities(const sw_view *v, const sw_edge_cell *oc, size_t q
             const sw_real w = (hn[n] > 0) + (hn[n - t] > 0);
             const sw_real target = w > 0 ? (f0 + f1) / (w * h[n] * (sw_real)oc[q].vel) : 0;
             const sw_real r = (sw_real)fabs(oc[q].vel) * h[n] * (oc[q].normal_x ? rx : ry);
-            eta[g] = (eta[g] + r * target) / (1 + r);
+            eta[g] = (eta[g] + hd + r * target) / (1 + r) - hd;   /* of eta + head, the departure */
         }
     }
 }

@@ -182,12 +182,13 @@ static void e_edge_velocities(const sw_view *v, const sw_edge_cell *oc, size_t q
             if (oc[q].mirror != 0)
                 vel[g] -= (oc[q].normal_x ? gx : gy) * (g > n ? eta[g] - eta[n] : eta[n] - eta[g]);
             else
-                vel[g] = (sw_real)oc[q].vel * eta[g];
+                vel[g] = (sw_real)oc[q].vel * (eta[g] + sw_edge_head(v, q));
         } else if (oc[q].vel != 0) {
             /* an open eta ghost: implicit upwind over dx towards the inner velocity's outgoing-wave
              * elevation, u / (sign sqrt(g/h)); read by that velocity's next step */
             const sw_real r = (sw_real)fabs(oc[q].vel) * h[n] * (oc[q].normal_x ? rx : ry);
-            eta[g] = (eta[g] + r * vel[n] / (sw_real)oc[q].vel) / (1 + r);
+            const sw_real hd = sw_edge_head(v, q);   /* of eta + head, the departure (stage.h) */
+            eta[g] = (eta[g] + hd + r * vel[n] / (sw_real)oc[q].vel) / (1 + r) - hd;
         }
     }
 }

@@ -352,6 +352,11 @@ static sw_status build_terms(sw_model *m, sw_error *err)
                            (m->n_pad * (4 * sizeof(float) + 3 * sw_precision_bytes(m->precision))) >> 20);
         for (int q = 0; q < 4; q++)
             m->slab[q / 2][q % 2] = m->surface + (size_t)q * m->n_pad;
+        m->edge_heads = calloc(2 * (m->n_edge ? m->n_edge : 1), sizeof *m->edge_heads);
+        if (!m->edge_heads)
+            return sw_fail(err, SW_ERR_NOMEM, "out of memory for the surface forcing's edge heads");
+        m->edge_slab[0] = m->edge_heads;
+        m->edge_slab[1] = m->edge_heads + (m->n_edge ? m->n_edge : 1);
         sw_model_surface_shift(m);   /* only sets the views */
         sw_model_surface_shift(m);
         m->surface_build = m->precision == SW_SINGLE ? sw_surface_build_f32 : sw_surface_build_f64;
@@ -520,6 +525,7 @@ void sw_model_free(sw_model *m)
     free(m->share);
     free(m->surface);
     free(m->surface_scratch);
+    free(m->edge_heads);
     free(m->edge);
     free(m->edge_row);
     free(m->obs_buf);
@@ -641,6 +647,11 @@ void sw_model_surface_shift(sw_model *m)
         m->slab[0][q] = m->slab[1][q];
         m->slab[1][q] = t;
     }
+    float *t = m->edge_slab[0];
+    m->edge_slab[0] = m->edge_slab[1];
+    m->edge_slab[1] = t;
+    m->terms.edge_head[0] = m->edge_slab[0];
+    m->terms.edge_head[1] = m->edge_slab[1];
     m->terms.surface_x[0] = m->slab[0][0];
     m->terms.surface_x[1] = m->slab[1][0];
     m->terms.surface_y[0] = m->slab[0][1];

@@ -49,6 +49,8 @@ struct sw_model {
     float *surface;              /* [4 n_pad] owned with surface forcing: the slabs terms.surface_x[0, 1],
                                   * surface_y[0, 1] point into it (in some order), or NULL */
     float *slab[2][2];           /* [slot][x = 0, y = 1]: writable views of terms.surface_x/_y */
+    float *edge_heads;           /* [2 n_edge] owned with surface forcing: terms.edge_head[0, 1] point into it */
+    float *edge_slab[2];         /* [slot]: writable views of terms.edge_head */
     void *surface_scratch;       /* [3 n_pad] sw_real owned with surface forcing: the head and its gradient
                                   * at u and v points while a slab is built, or NULL */
     void (*surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void *ctx);   /* of this precision */

@@ -95,8 +95,24 @@ typedef struct {
 } sw_edge_cell;
 
 /* Velocities (and, for layouts that radiate them, elevations) of ghost cells q0 .. q1-1, after every
- * momentum stage of the step has finished. */
+ * momentum stage of the step has finished. Under surface forcing an open edge radiates the departure
+ * from the inverse barometer, eta + head (sw_edge_head): the air pressure head is taken as the inner
+ * cell's on both sides of the edge face (surface.c), so a steady pressure field holds the water still
+ * instead of driving it across the edge. */
 typedef void (*sw_edge_fn)(const sw_view *v, const sw_edge_cell *cells, size_t q0, size_t q1);
+
+#ifdef SW_REAL_BITS
+/* The air pressure head (m) at the inner cell of edge cell q at the step's time (linear between the
+ * slabs); 0 without surface forcing. */
+static inline sw_real sw_edge_head(const sw_view *v, size_t q)
+{
+    const float *const *h = v->terms->edge_head;
+    if (!h[0])
+        return 0;
+    const double w = v->terms->surface_w;
+    return (sw_real)((1 - w) * (double)h[0][q] + w * (double)h[1][q]);
+}
+#endif
 
 /* What a layout's prepare sees: the fields (h, and eta as the initial state, are set; hx and hy are 0),
  * the edges, and the ghost list the model built for open and level edges, which prepare may adjust. */

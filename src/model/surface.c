@@ -49,8 +49,14 @@ void SW_NAME(sw_surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void
     }
     SW_OMP(single)
     {
-        for (size_t q = 0; q < m->n_edge; q++)   /* the ghosts of open and level edges: the air beyond the edge */
-            pb[m->edge[q].ghost] = (sw_real)ax[m->edge[q].ghost];
+        /* the ghosts: beyond a level edge the air's own head; beyond an open edge the inner cell's, so that
+         * no pressure gradient acts across the edge face and the edge radiates the departure from the
+         * inverse barometer (stage.h, sw_edge_head), whose heads are kept per slab */
+        for (size_t q = 0; q < m->n_edge; q++) {
+            const sw_edge_cell *oc = &m->edge[q];
+            pb[oc->ghost] = oc->kind == SW_EDGE_OPEN ? pb[oc->inner] : (sw_real)ax[oc->ghost];
+            m->edge_slab[slot][q] = oc->kind == SW_EDGE_OPEN ? (float)pb[oc->inner] : 0.0f;
+        }
         if (periodic_y) {
             memcpy(pb, pb + ny * s, s * sizeof *pb);
             memcpy(pb + (ny + 1) * s, pb + s, s * sizeof *pb);

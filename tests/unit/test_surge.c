@@ -297,6 +297,57 @@ static void test_level_series(void **state)
     assert_int_equal(bad, 0);
 }
 
+/* ---- open edges under a pressure gradient (inverse barometer, Pugh 1987 [memory]) ----------------------- */
+
+/* A channel open at both ends under a steady air pressure that falls along it (a head slope s): the
+ * water settles to the inverse barometer, eta = -head + const, and then stays still. Were the open edges
+ * to radiate eta itself instead of its departure from the inverse barometer, the pressure gradient
+ * across them would keep driving water through them and the level would drift without end [derived]. */
+typedef struct {
+    double slope;   /* head per m along x */
+} ramp;
+
+static void ramp_row(void *ctx, sw_surface_kind kind, ptrdiff_t j, double y, double x0, double dx, size_t n, float *out)
+{
+    (void)j, (void)y;
+    const ramp *r = ctx;
+    for (size_t i = 0; i < n; i++)
+        out[i] = kind == SW_SURFACE_HEAD ? (float)(r->slope * (x0 + (double)i * dx - 100e3)) : 0.0f;
+}
+
+static void test_open_edges_still(void **state)
+{
+    (void)state;
+    static const sw_edge_kind ch[4] = {SW_EDGE_OPEN, SW_EDGE_OPEN, SW_EDGE_WALL, SW_EDGE_WALL};
+    const double h = 50, d = 2000, slope = 0.1 / 200e3;   /* 10 hPa over the channel's 200 km */
+    int bad = 0;
+    for (int q = 0; q < 5; q++) {
+        sw_terms_config t = {.surface = 1, .friction = SW_FRICTION_LINEAR, .friction_rate_ms = 0.01};
+        sw_model *m = make(LAYOUTS[q], 100, 6, d, h, ch, t, 0.9, NULL);
+        ramp r = {.slope = slope};
+        sw_model_surface_build(m, 0, ramp_row, &r);
+        sw_model_surface_build(m, 1, ramp_row, &r);
+        sw_model_surface_weight(m, 0);
+        const long per = (long)(2 * h / 0.01 / sw_model_dt(m));   /* one e-folding time of the friction */
+        advance(m, 20 * per);
+        double e1[100], drift = 0, misfit = 0;
+        for (size_t i = 0; i < 100; i++)
+            e1[i] = sw_model_eta_centre(m, i, 3);
+        advance(m, 20 * per);
+        const double mid = sw_model_eta_centre(m, 50, 3) + slope * (50.5 * d - 100e3);   /* the constant */
+        for (size_t i = 5; i < 95; i++) {
+            const double e2 = sw_model_eta_centre(m, i, 3);
+            drift = fmax(drift, fabs(e2 - e1[i]));
+            misfit = fmax(misfit, fabs(e2 - (mid - slope * (((double)i + 0.5) * d - 100e3))));
+        }
+        print_message("%s open channel under a pressure slope (rise 0.1 m): drift %.2e m over 20 e-folding times, "
+                      "misfit from the inverse barometer %.2e m\n", LAYOUTS[q], drift, misfit);
+        bad += !(drift < 1e-4 && misfit < 2e-3);
+        sw_model_free(m);
+    }
+    assert_int_equal(bad, 0);
+}
+
 /* ---- bits: forcing does not depend on the thread count ------------------------------------------------ */
 
 static void test_threads(void **state)
@@ -337,6 +388,7 @@ int main(void)
         cmocka_unit_test(test_inverse_barometer),
         cmocka_unit_test(test_proudman),
         cmocka_unit_test(test_level_series),
+        cmocka_unit_test(test_open_edges_still),
         cmocka_unit_test(test_threads),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
