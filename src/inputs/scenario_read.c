@@ -632,6 +632,10 @@ static int finish_forcing(parse_state *ps)
     if ((storm && !check_keys(ps, storm, 1, "")) || (weather && !check_keys(ps, weather, 1, ""))
         || (wind && !check_keys(ps, wind, 1, "")))
         return 0;
+    const int hemi = storm ? key_line(storm, "hemisphere") : 0;
+    if (hemi && ps->sc->terms.rotation != SW_ROTATION_NONE)
+        return scn_fail_at(ps, SW_ERR_PARSE, hemi, "[storm] hemisphere: not used with [run] rotation (accepted: "
+                           "leave it out; the sign of the Coriolis parameter sets the storm's turning)");
     if (storm && weather)
         return scn_fail_at(ps, SW_ERR_PARSE, storm->line > weather->line ? storm->line : weather->line,
                            "[storm] (line %d) and [weather] (line %d) are both given (accepted: one of them)",

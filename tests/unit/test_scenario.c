@@ -384,6 +384,9 @@ static void test_messages_name_file_line_key(void **state)
           "t.scn:12: [wind] drag_law = smith: unknown value", "large-pond, wu, garratt" },
         { BASE "[storm]\ntrack = a.txt\nrmax_factor = 0\n", SW_ERR_RANGE,
           "t.scn:11: [storm] rmax_factor = 0: out of range (accepted: 0 < rmax_factor <= 10)", NULL },
+        { "[run]\nduration = 1 h\nrotation = f-plane\nlatitude = 20\n[grid]\nnx = 10\nny = 20\ndx = 1 km\n[seabed]\n"
+          "deep = 100 m\n[storm]\ntrack = a.txt\nhemisphere = south\n", SW_ERR_PARSE,
+          "t.scn:13: [storm] hemisphere: not used with [run] rotation", NULL },
         { BASE "[edges]\nlevel_series = tide.txt\n", SW_ERR_PARSE,
           "t.scn:10: [edges] level_series: no edge is `level` (accepted: with at least one edge = level)", NULL },
         { BASE "[edges]\nwest = level\nlevel_variable = z\n", SW_ERR_PARSE,
