@@ -104,8 +104,8 @@ static void source_row(const sw_forcing *f, int q, double y_m, double x0_m, doub
 
 /* The model's row function (model.h sw_surface_row_fn): heads at centres (and the maps), stresses at
  * velocity points. */
-static void surface_row(void *ctx, sw_surface_kind kind, ptrdiff_t j, double y_m, double x0_m, double dx_m, size_t n,
-                        float *out)
+static void surface_row(void *ctx, sw_surface_kind kind, ptrdiff_t j, size_t i0, double y_m, double x0_m, double dx_m,
+                        size_t n, float *out)
 {
     sw_forcing *f = ctx;
     const int t = omp_get_thread_num();
@@ -124,14 +124,15 @@ static void surface_row(void *ctx, sw_surface_kind kind, ptrdiff_t j, double y_m
         for (size_t i = 0; i < n; i++)
             out[i] = (p[i] - ref) * k;
         const size_t nx = f->grid->nx;
-        if (j >= 0 && (size_t)j < f->grid->ny && f->t_slot[q] <= f->duration_s * (1 + 1e-12) && n >= nx + 2)
-        {
-            float *restrict wm = f->wind_max + (size_t)j * nx, *restrict pm = f->p_min + (size_t)j * nx;
+        if (j >= 0 && (size_t)j < f->grid->ny && f->t_slot[q] <= f->duration_s * (1 + 1e-12)) {
+            /* the piece's points in grid columns 0 .. nx-1: point p is padded column i0 + p, cell i0 + p - 1 */
+            const size_t p0 = i0 == 0 ? 1 : 0, p1 = i0 + n > nx + 1 ? nx + 1 - i0 : n;
+            float *restrict wm = f->wind_max + (size_t)j * nx + (i0 + p0 - 1), *restrict pm = f->p_min + (size_t)j * nx + (i0 + p0 - 1);
             SW_OMP(simd)
-            for (size_t i = 0; i < nx; i++) {   /* point i + 1 is cell i */
-                const float w = sqrtf(u[i + 1] * u[i + 1] + v[i + 1] * v[i + 1]);
+            for (size_t i = 0; i < (p1 > p0 ? p1 - p0 : 0); i++) {
+                const float w = sqrtf(u[p0 + i] * u[p0 + i] + v[p0 + i] * v[p0 + i]);
                 wm[i] = w > wm[i] ? w : wm[i];   /* not fmaxf: a call per value without -ffast-math */
-                pm[i] = p[i + 1] < pm[i] ? p[i + 1] : pm[i];
+                pm[i] = p[p0 + i] < pm[i] ? p[p0 + i] : pm[i];
             }
         }
         return;
@@ -430,7 +431,7 @@ sw_status sw_forcing_create(const sw_scenario *sc, const sw_model *m, double dur
     if (rc == SW_OK && (f->storm || f->weather)) {
         const size_t n = sw_grid_cells(g);
         f->threads = omp_get_max_threads();
-        f->row_cap = g->nx + 2;
+        f->row_cap = SW_SURFACE_PIECE;
         f->scratch = malloc((size_t)f->threads * 3 * f->row_cap * sizeof *f->scratch);
         f->wind_max = malloc(n * sizeof *f->wind_max);
         f->p_min = malloc(n * sizeof *f->p_min);

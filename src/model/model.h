@@ -142,14 +142,16 @@ sw_precision sw_model_precision(const sw_model *m);    /* of the state arrays */
  * water p_b whose gradient is the layout's own gradient of eta (so a still sea under steady pressure
  * settles to eta = -p_b exactly, the inverse barometer), the wind stress at the point's own position. */
 
-/* What a forcing source gives the model, along one row: the n values at x = x0_m + i dx_m, y = y_m, into
- * out: SW_SURFACE_HEAD: the air pressure as a head of water, (p - p_ref) / (rho_w g), m, at cell centres
- * (j is the grid row, -1 .. ny, the halo rows included; the row starts at column -1); SW_SURFACE_STRESS_X
- * (_Y): the kinematic wind stress along x (y), tau / rho_w, m2 s-2, at the layout's u (v) points of padded
- * row j + 1. Called by several threads at once, for different rows. */
+/* What a forcing source gives the model, along a piece of one row: the n values at x = x0_m + i dx_m,
+ * y = y_m, into out: SW_SURFACE_HEAD: the air pressure as a head of water, (p - p_ref) / (rho_w g), m, at
+ * cell centres; SW_SURFACE_STRESS_X (_Y): the kinematic wind stress along x (y), tau / rho_w, m2 s-2, at
+ * the layout's u (v) points. j is the grid row (-1 .. ny, the halo rows included) and i0 the padded column
+ * of the first point (0 = the west halo; grid column i0 - 1). A row comes in pieces of at most
+ * SW_SURFACE_PIECE points. Called by several threads at once, for different rows. */
 typedef enum { SW_SURFACE_HEAD = 0, SW_SURFACE_STRESS_X = 1, SW_SURFACE_STRESS_Y = 2 } sw_surface_kind;
-typedef void (*sw_surface_row_fn)(void *ctx, sw_surface_kind kind, ptrdiff_t j, double y_m, double x0_m, double dx_m,
-                                  size_t n, float *out);
+typedef void (*sw_surface_row_fn)(void *ctx, sw_surface_kind kind, ptrdiff_t j, size_t i0, double y_m, double x0_m,
+                                  double dx_m, size_t n, float *out);
+#define SW_SURFACE_PIECE 512
 
 /* Builds slab `slot` (0 or 1) from a source: the head at every cell centre and its gradient by the
  * layout's own momentum kernel, the stresses at every velocity point. For a model made with

@@ -47,7 +47,9 @@ struct sw_model {
     uint8_t *share;              /* [2 n_pad] owned: terms.share_x, then share_y (bytes; transport-weighted
                                   * layouts with terms), or NULL */
     float *surface;              /* [4 n_pad] owned with surface forcing: the slabs terms.surface_x[0, 1],
-                                  * surface_y[0, 1] point into it (in some order), or NULL */
+                                  * surface_y[0, 1] point into it (in some order), or NULL. (Stored as pairs
+                                  * of the two slabs instead, one stream per component, the C forced step
+                                  * ran at 0.31 x the plain step instead of 0.49: strided loads) */
     float *slab[2][2];           /* [slot][x = 0, y = 1]: writable views of terms.surface_x/_y */
     float *edge_heads;           /* [2 n_edge] owned with surface forcing: terms.edge_head[0, 1] point into it */
     float *edge_slab[2];         /* [slot]: writable views of terms.edge_head */

@@ -31,17 +31,21 @@ void SW_NAME(sw_surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void
     const sw_real *restrict h = SW_V(&m->view, h), *restrict hx = SW_V(&m->view, hx), *restrict hy = SW_V(&m->view, hy);
     const int periodic_x = m->edges[SW_WEST] == SW_EDGE_PERIODIC, periodic_y = m->edges[SW_SOUTH] == SW_EDGE_PERIODIC;
     const double x_centre0 = g->x0_m - 0.5 * g->dx_m;   /* x of padded column 0's centre */
+    float tmp[SW_SURFACE_PIECE];                         /* one piece of a row */
 
     /* 1: the head at every centre, halo included (the halo of a periodic edge: the opposite side's). The
      * gradients gu, gv are 0 here: zeroed when the model was made, and again by every build once read */
     SW_OMP(for schedule(static))
     for (size_t jp = 0; jp < ny + 2; jp++) {
-        float *tmp = ax + jp * s;   /* the slab's row serves as the row buffer until phase 2 */
-        fn(ctx, SW_SURFACE_HEAD, (ptrdiff_t)jp - 1, g->y0_m + ((double)jp - 0.5) * g->dy_m, x_centre0, g->dx_m, np, tmp);
         sw_real *restrict row = pb + jp * s;
         const sw_real *restrict hr = h + jp * s;
-        for (size_t i = 0; i < np; i++)   /* 0 on land, as eta is there: no gradient from the land's air */
-            row[i] = hr[i] > 0 ? (sw_real)tmp[i] : 0;
+        const double y = g->y0_m + ((double)jp - 0.5) * g->dy_m;
+        for (size_t c = 0; c < np; c += SW_SURFACE_PIECE) {
+            const size_t n = np - c < SW_SURFACE_PIECE ? np - c : SW_SURFACE_PIECE;
+            fn(ctx, SW_SURFACE_HEAD, (ptrdiff_t)jp - 1, c, y, x_centre0 + (double)c * g->dx_m, g->dx_m, n, tmp);
+            for (size_t i = 0; i < n; i++)   /* 0 on land, as eta is there: no gradient from the land's air */
+                row[c + i] = hr[c + i] > 0 ? (sw_real)tmp[i] : 0;
+        }
         if (periodic_x) {
             row[0] = row[nx];
             row[nx + 1] = row[1];
@@ -54,7 +58,14 @@ void SW_NAME(sw_surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void
          * inverse barometer (stage.h, sw_edge_head), whose heads are kept per slab */
         for (size_t q = 0; q < m->n_edge; q++) {
             const sw_edge_cell *oc = &m->edge[q];
-            pb[oc->ghost] = oc->kind == SW_EDGE_OPEN ? pb[oc->inner] : (sw_real)ax[oc->ghost];
+            if (oc->kind == SW_EDGE_OPEN)
+                pb[oc->ghost] = pb[oc->inner];
+            else {
+                const size_t jp = oc->ghost / s, ip = oc->ghost % s;
+                fn(ctx, SW_SURFACE_HEAD, (ptrdiff_t)jp - 1, ip, g->y0_m + ((double)jp - 0.5) * g->dy_m,
+                   x_centre0 + (double)ip * g->dx_m, g->dx_m, 1, tmp);
+                pb[oc->ghost] = (sw_real)tmp[0];
+            }
             m->edge_slab[slot][q] = oc->kind == SW_EDGE_OPEN ? (float)pb[oc->inner] : 0.0f;
         }
         if (periodic_y) {
@@ -80,15 +91,22 @@ void SW_NAME(sw_surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void
                 plain[q].run(&sv, jp);
         }
         const double yc = g->y0_m + ((double)jp - 0.5) * g->dy_m;
-        fn(ctx, SW_SURFACE_STRESS_X, (ptrdiff_t)jp - 1, yc + m->layout->u_at[1] * g->dy_m,
-           x_centre0 + m->layout->u_at[0] * g->dx_m, g->dx_m, np, ax + jp * s);
-        fn(ctx, SW_SURFACE_STRESS_Y, (ptrdiff_t)jp - 1, yc + m->layout->v_at[1] * g->dy_m,
-           x_centre0 + m->layout->v_at[0] * g->dx_m, g->dx_m, np, ay + jp * s);
-        SW_OMP(simd)
-        for (size_t k = jp * s; k < jp * s + np; k++) {
-            ax[k] = hx[k] > 0 ? (float)((sw_real)ax[k] / hx[k] + gu[k]) : 0.0f;
-            ay[k] = hy[k] > 0 ? (float)((sw_real)ay[k] / hy[k] + gv[k]) : 0.0f;
-            gu[k] = gv[k] = 0;   /* ready for the next build: the stages step them from 0 */
+        for (int c = 0; c < 2; c++) {
+            const double *at = c ? m->layout->v_at : m->layout->u_at;
+            const sw_real *restrict hc = c ? hy : hx;
+            sw_real *restrict gc = c ? gv : gu;
+            float *restrict a = c ? ay : ax;
+            for (size_t i0 = 0; i0 < np; i0 += SW_SURFACE_PIECE) {
+                const size_t n = np - i0 < SW_SURFACE_PIECE ? np - i0 : SW_SURFACE_PIECE, k0 = jp * s + i0;
+                fn(ctx, c ? SW_SURFACE_STRESS_Y : SW_SURFACE_STRESS_X, (ptrdiff_t)jp - 1, i0, yc + at[1] * g->dy_m,
+                   x_centre0 + ((double)i0 + at[0]) * g->dx_m, g->dx_m, n, tmp);
+                SW_OMP(simd)
+                for (size_t i = 0; i < n; i++) {
+                    const size_t k = k0 + i;
+                    a[k] = hc[k] > 0 ? (float)((sw_real)tmp[i] / hc[k] + gc[k]) : 0.0f;
+                    gc[k] = 0;   /* ready for the next build: the stages step it from 0 */
+                }
+            }
         }
     }
 }

@@ -82,9 +82,10 @@ static double field_head(const field *f, double x, double y)
     return f->dp_pa * exp(-(dx * dx + dy * dy) / (f->r_m * f->r_m)) / (RHO_W * G);
 }
 
-static void field_row(void *ctx, sw_surface_kind kind, ptrdiff_t j, double y, double x0, double dx, size_t n, float *out)
+static void field_row(void *ctx, sw_surface_kind kind, ptrdiff_t j, size_t i0, double y, double x0, double dx, size_t n,
+                      float *out)
 {
-    (void)j;
+    (void)j, (void)i0;
     const field *f = ctx;
     for (size_t i = 0; i < n; i++)
         out[i] = kind == SW_SURFACE_HEAD ? (float)field_head(f, x0 + (double)i * dx, y)
@@ -307,9 +308,10 @@ typedef struct {
     double slope;   /* head per m along x */
 } ramp;
 
-static void ramp_row(void *ctx, sw_surface_kind kind, ptrdiff_t j, double y, double x0, double dx, size_t n, float *out)
+static void ramp_row(void *ctx, sw_surface_kind kind, ptrdiff_t j, size_t i0, double y, double x0, double dx, size_t n,
+                     float *out)
 {
-    (void)j, (void)y;
+    (void)j, (void)i0, (void)y;
     const ramp *r = ctx;
     for (size_t i = 0; i < n; i++)
         out[i] = kind == SW_SURFACE_HEAD ? (float)(r->slope * (x0 + (double)i * dx - 100e3)) : 0.0f;
