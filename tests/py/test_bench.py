@@ -31,6 +31,11 @@ for lay in doc["layouts"]:
           "layout %s: every figure measured and positive" % lay["layout"])
     check(lay["large_terms"]["n"] == 3 and lay["large_terms"]["median"] > 0 and lay["terms_ratio"] > 0,
           "layout %s: the step with rotation and friction measured beside the plain one" % lay["layout"])
+    check(all(lay[k]["n"] == 3 and lay[k]["median"] > 0 for k in ("large_storm", "large_weather", "large_forced"))
+          and all(lay[k] > 0 for k in ("storm_ratio", "weather_ratio", "forced_ratio", "storm_build_s",
+                                       "storm_steps_per_build")),
+          "layout %s: the steps with a storm, a weather file and held slabs measured beside the plain one"
+          % lay["layout"])
     if lay["layout"] == "C":
         # the pre-stepper C step kept in bench_reference.c must compute what the stepper computes
         check(lay["reference"]["median"] > 0 and lay["reference_ratio"] > 0 and lay["reference_identical"] is True,
