@@ -26,7 +26,9 @@
 #include <string.h>
 
 #include "base/atomic_file.h"
+#include "base/civil_time.h"
 #include "base/omp_compat.h"
+#include "inputs/ncattr.h"
 
 #define WX_EVEN_TOL 1e-6      /* relative spread of the steps under which an axis counts as evenly spaced */
 #define WX_COVER_TOL 1e-6     /* how far (in model cells) a model centre may lie outside the file's extent */
@@ -76,187 +78,7 @@ struct sw_weather {
     char time_name[NC_MAX_NAME + 1]; /* the time coordinate variable */
 };
 
-/* ---- dates ---------------------------------------------------------------------------------- */
-
-/* Days from 1970-01-01 to the civil date y-m-d, proleptic Gregorian calendar ("days_from_civil",
- * H. Hinnant, "chrono-Compatible Low-Level Date Algorithms"). Valid for every year used here. */
-static long long wx_days_from_civil(long long y, int m, int d)
-{
-    y -= m <= 2;
-    long long era = (y >= 0 ? y : y - 399) / 400;
-    long long yoe = y - era * 400;                                    /* [0, 399] */
-    long long doy = (153 * (m + (m > 2 ? -3 : 9)) + 2) / 5 + d - 1;  /* [0, 365] */
-    long long doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;            /* [0, 146096] */
-    return era * 146097 + doe - 719468;
-}
-
-/* The civil date of day z since 1970-01-01 (the inverse, same source). */
-static void wx_civil_from_days(long long z, long long *y, int *m, int *d)
-{
-    z += 719468;
-    long long era = (z >= 0 ? z : z - 146096) / 146097;
-    long long doe = z - era * 146097;
-    long long yoe = (doe - doe / 1460 + doe / 36524 - doe / 146096) / 365;
-    long long doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
-    long long mp = (5 * doy + 2) / 153;
-    *d = (int)(doy - (153 * mp + 2) / 5 + 1);
-    *m = (int)(mp < 10 ? mp + 3 : mp - 9);
-    *y = yoe + era * 400 + (*m <= 2);
-}
-
-static int wx_is_leap(long long y) { return (y % 4 == 0 && y % 100 != 0) || y % 400 == 0; }
-
-/* Reads 1 to max_digits decimal digits at *s into *v and advances *s. Returns 0 when there is none. */
-static int wx_digits(const char **s, int max_digits, long long *v)
-{
-    int n = 0;
-    *v = 0;
-    while (n < max_digits && isdigit((unsigned char)**s)) {
-        *v = *v * 10 + (**s - '0');
-        (*s)++;
-        n++;
-    }
-    return n > 0;
-}
-
-/* Parses a date and time "YYYY-MM-DD[( |T)HH:MM[:SS[.fff]]][ ][Z|UTC|+HH[:MM]|-HH[:MM]]" (the date
- * parts may have fewer digits) into seconds since 1970-01-01 00:00:00 UTC, proleptic Gregorian.
- * Trailing blanks are allowed, nothing else. *ymd receives the date as y * 10000 + m * 100 + d, for
- * the calendar check. Returns 0 on success, -1 when the text is not such a date (or no such day). */
-static int wx_parse_datetime(const char *s, double *epoch_s, long long *ymd)
-{
-    long long y, mo, d, h = 0, mi = 0, sec = 0;
-    double frac = 0.0;
-    while (isspace((unsigned char)*s))
-        s++;
-    if (!wx_digits(&s, 4, &y) || *s++ != '-' || !wx_digits(&s, 2, &mo) || *s++ != '-' || !wx_digits(&s, 2, &d))
-        return -1;
-    static const int days[12] = {31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
-    if (y < 1 || mo < 1 || mo > 12 || d < 1 || d > days[mo - 1] + (mo == 2 && wx_is_leap(y)))
-        return -1;
-    const char *p = s;
-    if (*p == 'T' || *p == ' ') {
-        while (*p == ' ')
-            p++;
-        if (*p == 'T')
-            p++;
-        if (isdigit((unsigned char)*p)) {
-            if (!wx_digits(&p, 2, &h) || *p++ != ':' || !wx_digits(&p, 2, &mi))
-                return -1;
-            if (*p == ':') {
-                p++;
-                if (!wx_digits(&p, 2, &sec))
-                    return -1;
-                if (*p == '.') {
-                    double scale = 0.1;
-                    for (p++; isdigit((unsigned char)*p); p++, scale *= 0.1)
-                        frac += (*p - '0') * scale;
-                }
-            }
-            if (h > 23 || mi > 59 || sec > 60)
-                return -1;
-            s = p;
-        }
-    }
-    /* time zone: Z, UTC, +HH[:MM], -HH[:MM] (the offset of local time from UTC) */
-    double zone_s = 0.0;
-    while (*s == ' ')
-        s++;
-    if (*s == 'Z') {
-        s++;
-    } else if (strncmp(s, "UTC", 3) == 0) {
-        s += 3;
-    } else if (*s == '+' || *s == '-') {
-        int sign = *s++ == '-' ? -1 : 1;
-        long long zh, zm = 0;
-        if (!wx_digits(&s, 2, &zh))
-            return -1;
-        if (*s == ':')
-            s++;
-        if (isdigit((unsigned char)*s) && !wx_digits(&s, 2, &zm))
-            return -1;
-        if (zh > 14 || zm > 59)
-            return -1;
-        zone_s = sign * (double)(zh * 3600 + zm * 60);
-    }
-    while (isspace((unsigned char)*s))
-        s++;
-    if (*s)
-        return -1;
-    *epoch_s = (double)(wx_days_from_civil(y, (int)mo, (int)d) * 86400 + h * 3600 + mi * 60 + sec) + frac - zone_s;
-    *ymd = y * 10000 + mo * 100 + d;
-    return 0;
-}
-
-/* Writes the date and time `epoch_s` (s since 1970-01-01, rounded down to a second) as
- * "YYYY-MM-DD HH:MM:SS" into buf (size n). */
-static void wx_format_datetime(double epoch_s, char *buf, size_t n)
-{
-    if (!isfinite(epoch_s) || epoch_s < -62135596800.0 || epoch_s > 253402300799.0) {   /* years 1 .. 9999 */
-        snprintf(buf, n, "(no date)");
-        return;
-    }
-    long long t = (long long)floor(epoch_s);
-    long long days = t >= 0 ? t / 86400 : -((-t + 86399) / 86400);
-    long long rest = t - days * 86400;
-    long long y;
-    int m, d;
-    wx_civil_from_days(days, &y, &m, &d);
-    int hh = (int)(rest / 3600), mm = (int)(rest % 3600 / 60), ss = (int)(rest % 60);
-    snprintf(buf, n, "%04lld-%02d-%02d %02d:%02d:%02d", y, m, d, hh, mm, ss);
-}
-
-/* ---- attributes and units ------------------------------------------------------------------- */
-
-/* Copies a text attribute (NC_CHAR, or the first NC_STRING) of varid into buf (size n, truncated),
- * blanks trimmed. *found = 0 when absent; another type gives *found = 1 and buf "(not text)".
- * Returns a NetCDF status. */
-static int wx_text_att(int ncid, int varid, const char *name, char *buf, size_t n, int *found)
-{
-    nc_type type;
-    size_t len;
-    *found = 0;
-    buf[0] = '\0';
-    int rc = nc_inq_att(ncid, varid, name, &type, &len);
-    if (rc == NC_ENOTATT)
-        return NC_NOERR;
-    if (rc != NC_NOERR)
-        return rc;
-    *found = 1;
-    if (type == NC_CHAR) {
-        char *tmp = malloc(len + 1);
-        if (!tmp)
-            return NC_ENOMEM;
-        rc = nc_get_att_text(ncid, varid, name, tmp);
-        if (rc == NC_NOERR) {
-            tmp[len] = '\0';
-            snprintf(buf, n, "%s", tmp);
-        }
-        free(tmp);
-    } else if (type == NC_STRING && len >= 1) {
-        char **strs = calloc(len, sizeof *strs);
-        if (!strs)
-            return NC_ENOMEM;
-        rc = nc_get_att_string(ncid, varid, name, strs);
-        if (rc == NC_NOERR) {
-            snprintf(buf, n, "%s", strs[0] ? strs[0] : "");
-            nc_free_string(len, strs);
-        }
-        free(strs);
-    } else {
-        snprintf(buf, n, "(not text)");
-    }
-    if (rc != NC_NOERR)
-        return rc;
-    size_t end = strlen(buf);
-    while (end > 0 && isspace((unsigned char)buf[end - 1]))
-        buf[--end] = '\0';
-    size_t start = 0;
-    while (buf[start] && isspace((unsigned char)buf[start]))
-        start++;
-    memmove(buf, buf + start, end - start + 1);
-    return NC_NOERR;
-}
+/* ---- units -------------------------------------------------------------------------------- */
 
 /* Case-insensitive equality of a and b, where any run of blanks in a equals one blank in b. */
 static int wx_same_unit(const char *a, const char *b)
@@ -308,12 +130,6 @@ static const wx_unit wx_length_units[] = {
     {"m", 1.0}, {"meter", 1.0}, {"meters", 1.0}, {"metre", 1.0}, {"metres", 1.0},
     {"km", 1000.0}, {"kilometer", 1000.0}, {"kilometers", 1000.0}, {"kilometre", 1000.0}, {"kilometres", 1000.0},
 };
-static const wx_unit wx_time_units[] = {
-    {"seconds", 1.0}, {"second", 1.0}, {"secs", 1.0}, {"sec", 1.0}, {"s", 1.0},
-    {"minutes", 60.0}, {"minute", 60.0}, {"mins", 60.0}, {"min", 60.0},
-    {"hours", 3600.0}, {"hour", 3600.0}, {"hrs", 3600.0}, {"hr", 3600.0}, {"h", 3600.0},
-    {"days", 86400.0}, {"day", 86400.0}, {"d", 86400.0},
-};
 #define WX_COUNT(a) (sizeof(a) / sizeof((a)[0]))
 
 /* ---- opening: failures --------------------------------------------------------------------- */
@@ -330,27 +146,6 @@ static const char *wx_var_label(const sw_weather *w, int q, char *buf, size_t n)
 {
     snprintf(buf, n, "variable '%s' (%s)", w->var[q].name, wx_standard_names[q]);
     return buf;
-}
-
-/* Writes the names of the file's variables, comma-separated, into buf (size n, cut to fit). */
-static void wx_list_vars(int ncid, char *buf, size_t n)
-{
-    buf[0] = '\0';
-    int nvars = 0;
-    if (nc_inq_nvars(ncid, &nvars) != NC_NOERR)
-        return;
-    size_t used = 0;
-    for (int v = 0; v < nvars; v++) {
-        char name[NC_MAX_NAME + 1];
-        if (nc_inq_varname(ncid, v, name) != NC_NOERR)
-            continue;
-        int wr = snprintf(buf + used, n - used, "%s%s", used ? ", " : "", name);
-        if (wr < 0 || (size_t)wr >= n - used) {
-            buf[used] = '\0';
-            break;
-        }
-        used += (size_t)wr;
-    }
 }
 
 /* Writes "(a, b, c)", the names of dimensions dims[0..nd-1], into buf (size n). */
@@ -384,7 +179,7 @@ static sw_status wx_find_var(sw_weather *w, int q, sw_error *err)
     for (int v = 0; v < nvars; v++) {
         char sn[WX_TEXT_MAX];
         int has;
-        rc = wx_text_att(w->ncid, v, "standard_name", sn, sizeof sn, &has);
+        rc = sw_nc_text_att(w->ncid, v, "standard_name", sn, sizeof sn, &has);
         if (rc != NC_NOERR)
             return wx_lib_fail(w->path, rc, "reading the standard_name attributes", err);
         if (!has || strcmp(sn, wx_standard_names[q]) != 0)
@@ -400,7 +195,7 @@ static sw_status wx_find_var(sw_weather *w, int q, sw_error *err)
     }
     if (found < 0) {
         char have[512];
-        wx_list_vars(w->ncid, have, sizeof have);
+        sw_nc_list_vars(w->ncid, -1, have, sizeof have);
         return sw_fail(err, SW_ERR_INPUT, "%s: no variable has standard_name '%s' (a weather file needs one "
                        "variable with each of the standard_name attributes %s, %s and %s; variables in the "
                        "file: %s)", w->path, wx_standard_names[q], wx_standard_names[WX_U],
@@ -411,21 +206,6 @@ static sw_status wx_find_var(sw_weather *w, int q, sw_error *err)
     if (rc != NC_NOERR)
         return wx_lib_fail(w->path, rc, "reading a variable name", err);
     return SW_OK;
-}
-
-/* Reads a numeric scalar attribute into *out; leaves *out unchanged when absent. */
-static int wx_num_att(int ncid, int varid, const char *name, double *out)
-{
-    nc_type t;
-    size_t len;
-    int rc = nc_inq_att(ncid, varid, name, &t, &len);
-    if (rc == NC_ENOTATT)
-        return NC_NOERR;
-    if (rc != NC_NOERR)
-        return rc;
-    if (len != 1 || t == NC_CHAR || t == NC_STRING)
-        return NC_EBADTYPE;
-    return nc_get_att_double(ncid, varid, name, out);
 }
 
 /* Checks data variable q (numeric, units) and reads its packing and missing-value attributes. */
@@ -443,7 +223,7 @@ static sw_status wx_check_var(sw_weather *w, int q, sw_error *err)
 
     char units[WX_TEXT_MAX];
     int has;
-    rc = wx_text_att(w->ncid, v->id, "units", units, sizeof units, &has);
+    rc = sw_nc_text_att(w->ncid, v->id, "units", units, sizeof units, &has);
     if (rc != NC_NOERR)
         return wx_lib_fail(w->path, rc, "reading a units attribute", err);
     const char *accepted = q == WX_P ? WX_PRESSURE_ACCEPTED : WX_WIND_ACCEPTED;
@@ -456,9 +236,9 @@ static sw_status wx_check_var(sw_weather *w, int q, sw_error *err)
 
     v->scale = 1.0;
     v->offset = 0.0;
-    rc = wx_num_att(w->ncid, v->id, "scale_factor", &v->scale);
+    rc = sw_nc_num_att(w->ncid, v->id, "scale_factor", &v->scale);
     if (rc == NC_NOERR)
-        rc = wx_num_att(w->ncid, v->id, "add_offset", &v->offset);
+        rc = sw_nc_num_att(w->ncid, v->id, "add_offset", &v->offset);
     if (rc != NC_NOERR)
         return sw_fail(err, SW_ERR_INPUT, "%s: %s: its scale_factor or add_offset is not one number (%s)",
                        w->path, label, nc_strerror(rc));
@@ -467,58 +247,22 @@ static sw_status wx_check_var(sw_weather *w, int q, sw_error *err)
                        "scale non-zero", w->path, label, v->scale, v->offset);
 
     /* missing points: _FillValue, or without one the library's default fill (never-written points;
-     * bytes have none), and every missing_value */
+     * bytes have none), and the first WX_MAX_MISSING missing_value entries */
+    sw_nc_missing m;
+    rc = sw_nc_missing_read(w->ncid, v->id, &m);
+    if (rc == NC_ENOMEM)
+        return sw_fail(err, SW_ERR_NOMEM, "%s: out of memory", w->path);
+    if (rc != NC_NOERR)
+        return wx_lib_fail(w->path, rc, strcmp(m.failed, "_FillValue") == 0 ? "reading a _FillValue"
+                                                                           : "reading a missing_value", err);
     v->nmiss = 0;
-    size_t len;
-    nc_type at;
-    rc = nc_inq_att(w->ncid, v->id, "_FillValue", &at, &len);
-    if (rc == NC_NOERR && len == 1 && at != NC_CHAR && at != NC_STRING) {
-        double fv;
-        rc = nc_get_att_double(w->ncid, v->id, "_FillValue", &fv);
-        if (rc != NC_NOERR)
-            return wx_lib_fail(w->path, rc, "reading a _FillValue", err);
-        v->miss_kind[v->nmiss] = "_FillValue";
-        v->miss[v->nmiss++] = (float)fv;
-    } else if (rc == NC_ENOTATT) {
-        double fv = 0.0;
-        int known = 1;
-        switch (type) {
-        case NC_SHORT: fv = NC_FILL_SHORT; break;
-        case NC_USHORT: fv = NC_FILL_USHORT; break;
-        case NC_INT: fv = NC_FILL_INT; break;
-        case NC_UINT: fv = NC_FILL_UINT; break;
-        case NC_INT64: fv = (double)NC_FILL_INT64; break;
-        case NC_UINT64: fv = (double)NC_FILL_UINT64; break;
-        case NC_FLOAT: fv = NC_FILL_FLOAT; break;
-        case NC_DOUBLE: fv = NC_FILL_DOUBLE; break;
-        default: known = 0; break;
-        }
-        if (known) {
-            v->miss_kind[v->nmiss] = "_FillValue (the NetCDF default)";
-            v->miss[v->nmiss++] = (float)fv;
-        }
-    } else if (rc != NC_NOERR) {
-        return wx_lib_fail(w->path, rc, "reading a _FillValue", err);
+    for (size_t k = 0; k < m.count && k < (m.fill ? 1u : 0u) + WX_MAX_MISSING; k++) {
+        v->miss_kind[v->nmiss] = k > 0 || !m.fill ? "missing_value"
+                                 : m.fill == 1    ? "_FillValue"
+                                                  : "_FillValue (the NetCDF default)";
+        v->miss[v->nmiss++] = (float)m.value[k];
     }
-    rc = nc_inq_att(w->ncid, v->id, "missing_value", &at, &len);
-    if (rc == NC_NOERR && len >= 1 && at != NC_CHAR && at != NC_STRING) {
-        double mv[WX_MAX_MISSING];
-        double *all = malloc(len * sizeof *all);
-        if (!all)
-            return sw_fail(err, SW_ERR_NOMEM, "%s: out of memory", w->path);
-        rc = nc_get_att_double(w->ncid, v->id, "missing_value", all);
-        size_t m = len < WX_MAX_MISSING ? len : WX_MAX_MISSING;
-        memcpy(mv, all, m * sizeof *mv);
-        free(all);
-        if (rc != NC_NOERR)
-            return wx_lib_fail(w->path, rc, "reading a missing_value", err);
-        for (size_t k = 0; k < m; k++) {
-            v->miss_kind[v->nmiss] = "missing_value";
-            v->miss[v->nmiss++] = (float)mv[k];
-        }
-    } else if (rc != NC_NOERR && rc != NC_ENOTATT) {
-        return wx_lib_fail(w->path, rc, "reading a missing_value", err);
-    }
+    sw_nc_missing_free(&m);
     return SW_OK;
 }
 
@@ -585,7 +329,7 @@ static int wx_coord_var(int ncid, int dimid, const char *axis, int *cid)
             continue;
         char a[WX_TEXT_MAX];
         int has;
-        rc = wx_text_att(ncid, v, "axis", a, sizeof a, &has);
+        rc = sw_nc_text_att(ncid, v, "axis", a, sizeof a, &has);
         if (rc == NC_NOERR && has && strcmp(a, axis) == 0) {
             *cid = v;
             return NC_NOERR;
@@ -644,7 +388,7 @@ static sw_status wx_space_axis(sw_weather *w, int dimid, const char *which, cons
 
     char text[WX_TEXT_MAX];
     int has;
-    rc = wx_text_att(w->ncid, cid, "axis", text, sizeof text, &has);
+    rc = sw_nc_text_att(w->ncid, cid, "axis", text, sizeof text, &has);
     if (rc != NC_NOERR)
         return wx_lib_fail(w->path, rc, "reading an axis attribute", err);
     if (has && strcmp(text, which) != 0)
@@ -655,7 +399,7 @@ static sw_status wx_space_axis(sw_weather *w, int dimid, const char *which, cons
         return sw_fail(err, SW_ERR_INPUT, "%s: coordinate '%s' has %zu point(s); at least 2 are needed", w->path,
                        ax->name, ax->n);
 
-    rc = wx_text_att(w->ncid, cid, "units", text, sizeof text, &has);
+    rc = sw_nc_text_att(w->ncid, cid, "units", text, sizeof text, &has);
     if (rc != NC_NOERR)
         return wx_lib_fail(w->path, rc, "reading a units attribute", err);
     if (!has)
@@ -699,32 +443,6 @@ static sw_status wx_space_axis(sw_weather *w, int dimid, const char *which, cons
     return SW_OK;
 }
 
-/* Parses the time units "UNIT since DATE" into seconds per unit and the reference date (s since
- * 1970-01-01). Returns 0, or -1 when the text has another form. */
-static int wx_parse_time_units(const char *units, double *unit_s, double *ref_s, long long *ymd)
-{
-    const char *since = NULL;
-    for (const char *p = units; (p = strstr(p, "since")) != NULL; p++)
-        if (p > units && isspace((unsigned char)p[-1]) && (p[5] == '\0' || isspace((unsigned char)p[5]))) {
-            since = p;
-            break;
-        }
-    if (!since)
-        return -1;
-    char unit[64];
-    size_t len = (size_t)(since - units);
-    while (len > 0 && isspace((unsigned char)units[len - 1]))
-        len--;
-    if (len == 0 || len >= sizeof unit)
-        return -1;
-    memcpy(unit, units, len);
-    unit[len] = '\0';
-    *unit_s = wx_unit_lookup(unit, wx_time_units, WX_COUNT(wx_time_units));
-    if (*unit_s == 0.0)
-        return -1;
-    return wx_parse_datetime(since + 5, ref_s, ymd);
-}
-
 /* Checks the time axis on dimension dimid and fills w->nt, w->time_s (s since the origin). */
 static sw_status wx_time_axis(sw_weather *w, int dimid, double origin_s, sw_error *err)
 {
@@ -749,31 +467,33 @@ static sw_status wx_time_axis(sw_weather *w, int dimid, double origin_s, sw_erro
 
     char units[WX_TEXT_MAX], cal[WX_TEXT_MAX];
     int has_units, has_cal;
-    rc = wx_text_att(w->ncid, cid, "units", units, sizeof units, &has_units);
+    rc = sw_nc_text_att(w->ncid, cid, "units", units, sizeof units, &has_units);
     if (rc == NC_NOERR)
-        rc = wx_text_att(w->ncid, cid, "calendar", cal, sizeof cal, &has_cal);
+        rc = sw_nc_text_att(w->ncid, cid, "calendar", cal, sizeof cal, &has_cal);
     if (rc != NC_NOERR)
         return wx_lib_fail(w->path, rc, "reading the time axis' attributes", err);
     double unit_s, ref_s;
-    long long ymd;
+    sw_civil_time ref;
     if (!has_units)
         return sw_fail(err, SW_ERR_INPUT, "%s: time axis '%s' has no units attribute (accepted: " WX_TIME_FORM ")",
                        w->path, tn);
-    if (wx_parse_time_units(units, &unit_s, &ref_s, &ymd) != 0)
+    if (sw_time_units_parse(units, &unit_s, &ref_s, &ref, NULL, 0) != 0)
         return sw_fail(err, SW_ERR_INPUT, "%s: time axis '%s' (the first of the variables' dimensions (time, y, x)) "
                        "has units '%s' (accepted: " WX_TIME_FORM ", e.g. 'hours since 2000-01-01 00:00:00')",
                        w->path, tn, units);
+    /* the mixed Julian/Gregorian calendar agrees with the proleptic one from 1582-10-15 on */
+    int before_1582 = sw_days_from_civil(ref.year, ref.month, ref.day) < sw_days_from_civil(1582, 10, 15);
     if (has_cal) {
         int proleptic = wx_same_unit(cal, "proleptic_gregorian");
         int mixed = wx_same_unit(cal, "standard") || wx_same_unit(cal, "gregorian");
         if (!proleptic && !mixed)
             return sw_fail(err, SW_ERR_INPUT, "%s: time axis '%s' has calendar '%s' (accepted: standard, "
                            "gregorian, proleptic_gregorian)", w->path, tn, cal);
-        if (mixed && ymd < 15821015)
+        if (mixed && before_1582)
             return sw_fail(err, SW_ERR_INPUT, "%s: time axis '%s': a reference date before 1582-10-15 in the "
                            "mixed Julian/Gregorian calendar '%s' is not supported (accepted: a later date, or "
                            "calendar = proleptic_gregorian)", w->path, tn, cal);
-    } else if (ymd < 15821015) {
+    } else if (before_1582) {
         return sw_fail(err, SW_ERR_INPUT, "%s: time axis '%s': a reference date before 1582-10-15 in the "
                        "default (mixed Julian/Gregorian) calendar is not supported (accepted: a later date, or "
                        "calendar = proleptic_gregorian)", w->path, tn);
@@ -878,8 +598,7 @@ sw_status sw_weather_open(const char *path, const char *origin, const sw_grid *m
         !isfinite(model_grid->x0_m) || !isfinite(model_grid->y0_m))
         return sw_fail(err, SW_ERR_USAGE, "%s: sw_weather_open: the model grid is empty or has no positive spacing", p);
     double origin_s;
-    long long ymd;
-    if (wx_parse_datetime(origin, &origin_s, &ymd) != 0)
+    if (sw_datetime_parse(origin, &origin_s, NULL, 0) != 0)
         return sw_fail(err, SW_ERR_USAGE, "%s: time origin '%s' is not a date and time (accepted: YYYY-MM-DD "
                        "HH:MM:SS, e.g. 2000-01-01 00:00:00)", p, origin);
 
@@ -972,10 +691,10 @@ sw_status sw_weather_covers(const sw_weather *w, double t0_s, double t1_s, sw_er
     if (t0_s >= a && t1_s <= b)
         return SW_OK;
     char da[48], db[48], dc[48], dd[48];
-    wx_format_datetime(w->origin_s + a, da, sizeof da);
-    wx_format_datetime(w->origin_s + b, db, sizeof db);
-    wx_format_datetime(w->origin_s + t0_s, dc, sizeof dc);
-    wx_format_datetime(w->origin_s + t1_s, dd, sizeof dd);
+    sw_datetime_format(w->origin_s + a, da, sizeof da);
+    sw_datetime_format(w->origin_s + b, db, sizeof db);
+    sw_datetime_format(w->origin_s + t0_s, dc, sizeof dc);
+    sw_datetime_format(w->origin_s + t1_s, dd, sizeof dd);
     return sw_fail(err, SW_ERR_INPUT, "%s: the file covers %.10g .. %.10g s (%s .. %s) but the run needs %.10g .. "
                    "%.10g s (%s .. %s); times are seconds since the scenario's origin", w->path, a, b, da, db,
                    t0_s, t1_s, dc, dd);
@@ -1313,8 +1032,7 @@ static sw_status wx_write_args(const char *path, const sw_grid *g, const double 
             return sw_fail(err, SW_ERR_USAGE, "%s: times must be finite and strictly increasing (times_s[%zu] = %g%s)",
                            p, k, times_s[k], k > 0 ? " is not after the one before" : "");
     double o;
-    long long ymd;
-    if (wx_parse_datetime(origin, &o, &ymd) != 0)
+    if (sw_datetime_parse(origin, &o, NULL, 0) != 0)
         return sw_fail(err, SW_ERR_USAGE, "%s: time origin '%s' is not a date and time (accepted: YYYY-MM-DD "
                        "HH:MM:SS)", p, origin);
     return SW_OK;

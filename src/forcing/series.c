@@ -12,11 +12,12 @@
 #include <errno.h>
 #include <math.h>
 #include <netcdf.h>
-#include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
+#include "base/civil_time.h"
+#include "inputs/ncattr.h"
 #include "inputs/table_text.h"
 
 struct sw_series {
@@ -26,51 +27,6 @@ struct sw_series {
     double *eta_m;    /* n sea levels, m */
 };
 
-/* ---- calendar -------------------------------------------------------------------------------- */
-
-int64_t sw_days_from_civil(int64_t y, int m, int d)
-{
-    /* Hinnant's days_from_civil: years start on 1 March, so the leap day ends a year; eras are the
-     * 400-year Gregorian cycles of 146097 days. */
-    y -= m <= 2;
-    const int64_t era = (y >= 0 ? y : y - 399) / 400;
-    const int64_t yoe = y - era * 400;                                    /* [0, 399] */
-    const int64_t doy = (153 * (m > 2 ? m - 3 : m + 9) + 2) / 5 + d - 1;  /* [0, 365] */
-    const int64_t doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;            /* [0, 146096] */
-    return era * 146097 + doe - 719468;
-}
-
-static int ser_leap(int64_t y) { return (y % 4 == 0 && y % 100 != 0) || y % 400 == 0; }
-
-/* Reads 1 to max_digits digits at *p into *v and advances *p. Returns 0, or -1 when there is no digit. */
-static int ser_digits(const char **p, int max_digits, int *v)
-{
-    int k = 0, x = 0;
-    while (k < max_digits && isdigit((unsigned char)(*p)[k])) {
-        x = 10 * x + ((*p)[k] - '0');
-        k++;
-    }
-    if (k == 0)
-        return -1;
-    *p += k;
-    *v = x;
-    return 0;
-}
-
-static int ser_refuse(char *why, size_t n, const char *fmt, ...) __attribute__((format(printf, 3, 4)));
-
-/* printf-style into why (if any); always returns -1 so callers write `return ser_refuse(...)`. */
-static int ser_refuse(char *why, size_t n, const char *fmt, ...)
-{
-    if (why && n > 0) {
-        va_list ap;
-        va_start(ap, fmt);
-        vsnprintf(why, n, fmt, ap);
-        va_end(ap);
-    }
-    return -1;
-}
-
 /* Case-insensitive equality of two ASCII strings. */
 static int ser_same_word(const char *a, const char *b)
 {
@@ -78,105 +34,6 @@ static int ser_same_word(const char *a, const char *b)
         if (tolower((unsigned char)*a) != tolower((unsigned char)*b))
             return 0;
     return *a == *b;
-}
-
-#define SER_DATE_FORM "YYYY-MM-DD[ HH:MM[:SS]]"
-
-int sw_datetime_parse(const char *text, double *s_since_1970, char *why, size_t n)
-{
-    if (!text)
-        return ser_refuse(why, n, "no date");
-    const char *p = text;
-    while (isspace((unsigned char)*p))
-        p++;
-    int y, mo, d, h = 0, mi = 0, se = 0;
-    double frac = 0.0;
-    if (ser_digits(&p, 4, &y) || *p++ != '-' || ser_digits(&p, 2, &mo) || *p++ != '-' || ser_digits(&p, 2, &d))
-        return ser_refuse(why, n, "'%.40s' is not a date (accepted: " SER_DATE_FORM ")", text);
-    if ((*p == ' ' || *p == 'T') && isdigit((unsigned char)p[1])) {
-        p++;
-        if (ser_digits(&p, 2, &h) || *p++ != ':' || ser_digits(&p, 2, &mi))
-            return ser_refuse(why, n, "'%.40s' is not a date and time (accepted: " SER_DATE_FORM ")", text);
-        if (*p == ':') {
-            p++;
-            if (ser_digits(&p, 2, &se))
-                return ser_refuse(why, n, "'%.40s' is not a date and time (accepted: " SER_DATE_FORM ")", text);
-            if (*p == '.') {
-                const char *q = ++p;
-                double scale = 0.1;
-                while (isdigit((unsigned char)*p)) {
-                    frac += scale * (*p - '0');
-                    scale *= 0.1;
-                    p++;
-                }
-                if (p == q)
-                    return ser_refuse(why, n, "'%.40s' is not a date and time (accepted: " SER_DATE_FORM ")", text);
-            }
-        }
-    }
-    while (*p == ' ')
-        p++;
-    if (*p == 'Z')
-        p++;
-    else if (strncmp(p, "UTC", 3) == 0)
-        p += 3;
-    while (isspace((unsigned char)*p))
-        p++;
-    if (*p) {
-        if (*p == '+' || *p == '-')
-            return ser_refuse(why, n, "'%.40s': time zone offsets are not supported (write the time in UTC)", text);
-        return ser_refuse(why, n, "'%.40s' is not a date and time (accepted: " SER_DATE_FORM ")", text);
-    }
-    static const int mdays[12] = {31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
-    int dim = mo >= 1 && mo <= 12 ? mdays[mo - 1] + (mo == 2 && ser_leap(y)) : 0;
-    if (mo < 1 || mo > 12 || d < 1 || d > dim)
-        return ser_refuse(why, n, "no such date (%04d-%02d-%02d)", y, mo, d);
-    if (h > 23 || mi > 59 || se > 59)
-        return ser_refuse(why, n, "no such time of day (%02d:%02d:%02d; accepted: 00:00:00 .. 23:59:59)", h, mi, se);
-    *s_since_1970 = (double)sw_days_from_civil(y, mo, d) * 86400.0 + h * 3600.0 + mi * 60.0 + se + frac;
-    return 0;
-}
-
-int sw_time_units_parse(const char *units, double *unit_s, double *origin_s_since_1970, char *why, size_t n)
-{
-    static const struct {
-        const char *name;
-        double s;
-    } words[] = {{"seconds", 1}, {"second", 1}, {"s", 1}, {"minutes", 60}, {"minute", 60}, {"min", 60},
-                 {"hours", 3600}, {"hour", 3600}, {"h", 3600}, {"days", 86400}, {"day", 86400}, {"d", 86400}};
-    if (!units)
-        return ser_refuse(why, n, "no time units");
-    const char *p = units;
-    while (isspace((unsigned char)*p))
-        p++;
-    const char *w = p;
-    while (isalpha((unsigned char)*p))
-        p++;
-    char word[16];
-    size_t len = (size_t)(p - w);
-    const char *form = "UNIT since " SER_DATE_FORM ", UNIT seconds, minutes, hours or days";
-    if (len == 0 || len >= sizeof word)
-        return ser_refuse(why, n, "time units '%.60s' are not 'UNIT since DATE' (accepted: %s)", units, form);
-    memcpy(word, w, len);
-    word[len] = '\0';
-    size_t k = 0;
-    while (k < sizeof words / sizeof words[0] && !ser_same_word(word, words[k].name))
-        k++;
-    if (k == sizeof words / sizeof words[0])
-        return ser_refuse(why, n, "unknown time unit '%s' in '%.60s' (accepted: %s)", word, units, form);
-    while (isspace((unsigned char)*p))
-        p++;
-    int since = isspace((unsigned char)p[5]) != 0;
-    for (int c = 0; c < 5 && since; c++)
-        since = tolower((unsigned char)p[c]) == "since"[c];
-    if (!since)
-        return ser_refuse(why, n, "time units '%.60s' are not 'UNIT since DATE' (accepted: %s)", units, form);
-    p += 5;
-    char date_why[160];
-    if (sw_datetime_parse(p, origin_s_since_1970, date_why, sizeof date_why) != 0)
-        return ser_refuse(why, n, "time units '%.60s': %s", units, date_why);
-    *unit_s = words[k].s;
-    return 0;
 }
 
 /* ---- the series ------------------------------------------------------------------------------- */
@@ -262,75 +119,6 @@ static sw_status ser_nc_fail(const char *path, int rc, const char *what, sw_erro
     return sw_fail(err, rc > 0 ? SW_ERR_IO : SW_ERR_NETCDF, "%s: %s: %s", path, what, nc_strerror(rc));
 }
 
-/* Copies the text attribute `name` of varid (NC_CHAR or NC_STRING) into buf (size n), blanks trimmed.
- * *found = 0 when absent; "(not text)" when of another type. Returns a NetCDF status. */
-static int ser_text_att(int ncid, int varid, const char *name, char *buf, size_t n, int *found)
-{
-    nc_type type;
-    size_t len;
-    *found = 0;
-    buf[0] = '\0';
-    int rc = nc_inq_att(ncid, varid, name, &type, &len);
-    if (rc == NC_ENOTATT)
-        return NC_NOERR;
-    if (rc != NC_NOERR)
-        return rc;
-    *found = 1;
-    if (type == NC_CHAR) {
-        char *tmp = malloc(len + 1);
-        if (!tmp)
-            return NC_ENOMEM;
-        rc = nc_get_att_text(ncid, varid, name, tmp);
-        if (rc == NC_NOERR) {
-            tmp[len] = '\0';
-            snprintf(buf, n, "%s", tmp);
-        }
-        free(tmp);
-    } else if (type == NC_STRING && len >= 1) {
-        char **strs = calloc(len, sizeof *strs);
-        if (!strs)
-            return NC_ENOMEM;
-        rc = nc_get_att_string(ncid, varid, name, strs);
-        if (rc == NC_NOERR) {
-            snprintf(buf, n, "%s", strs[0] ? strs[0] : "");
-            nc_free_string(len, strs);
-        }
-        free(strs);
-    } else {
-        snprintf(buf, n, "(not text)");
-    }
-    if (rc != NC_NOERR)
-        return rc;
-    size_t end = strlen(buf), start = 0;
-    while (end > 0 && isspace((unsigned char)buf[end - 1]))
-        buf[--end] = '\0';
-    while (buf[start] && isspace((unsigned char)buf[start]))
-        start++;
-    memmove(buf, buf + start, end - start + 1);
-    return NC_NOERR;
-}
-
-/* The names of the file's 1D variables, comma-separated, into buf (size n, cut at the last that fits). */
-static void ser_list_1d(int ncid, char *buf, size_t n)
-{
-    buf[0] = '\0';
-    int nvars = 0;
-    if (nc_inq_nvars(ncid, &nvars) != NC_NOERR)
-        return;
-    size_t used = 0;
-    for (int v = 0; v < nvars; v++) {
-        int nd;
-        char name[NC_MAX_NAME + 1];
-        if (nc_inq_varndims(ncid, v, &nd) != NC_NOERR || nd != 1 || nc_inq_varname(ncid, v, name) != NC_NOERR)
-            continue;
-        int w = snprintf(buf + used, n - used, "%s%s", used ? ", " : "", name);
-        if (w < 0 || (size_t)w >= n - used)
-            break;
-        used += (size_t)w;
-    }
-    buf[used] = '\0';
-}
-
 /* Finds the variable: by name, or the one with the sea-level standard_name. Returns SW_OK and *varid. */
 static sw_status ser_find_var(const char *path, int ncid, const char *name, int *varid, char *found_name,
                               sw_error *err)
@@ -339,7 +127,7 @@ static sw_status ser_find_var(const char *path, int ncid, const char *name, int 
     if (name && *name) {
         int rc = nc_inq_varid(ncid, name, varid);
         if (rc == NC_ENOTVAR) {
-            ser_list_1d(ncid, have, sizeof have);
+            sw_nc_list_vars(ncid, 1, have, sizeof have);
             return sw_fail(err, SW_ERR_INPUT, "%s: variable '%s' not found in the file (1D variables: %s)", path,
                            name, have[0] ? have : "none");
         }
@@ -358,7 +146,7 @@ static sw_status ser_find_var(const char *path, int ncid, const char *name, int 
     for (int v = 0; v < nvars; v++) {
         char sn[128];
         int found;
-        rc = ser_text_att(ncid, v, "standard_name", sn, sizeof sn, &found);
+        rc = sw_nc_text_att(ncid, v, "standard_name", sn, sizeof sn, &found);
         if (rc != NC_NOERR)
             return ser_nc_fail(path, rc, "reading a standard_name attribute", err);
         if (!found || strcmp(sn, SW_SEA_LEVEL_STANDARD_NAME) != 0)
@@ -378,7 +166,7 @@ static sw_status ser_find_var(const char *path, int ncid, const char *name, int 
     if (count == 1)
         return SW_OK;
     if (count == 0) {
-        ser_list_1d(ncid, have, sizeof have);
+        sw_nc_list_vars(ncid, 1, have, sizeof have);
         return sw_fail(err, SW_ERR_INPUT, "%s: no variable has standard_name %s: name the variable (1D variables: %s)",
                        path, SW_SEA_LEVEL_STANDARD_NAME, have[0] ? have : "none");
     }
@@ -405,62 +193,36 @@ static sw_status ser_read_values(const char *path, int ncid, int varid, const ch
         return ser_nc_fail(path, rc, what, err);
 
     /* the values that mark a missing point */
-    double miss[9];
-    size_t nmiss = 0, len;
-    nc_type at;
-    rc = nc_inq_att(ncid, varid, "_FillValue", &at, &len);
-    if (rc == NC_NOERR && len == 1) {
-        rc = nc_get_att_double(ncid, varid, "_FillValue", &miss[nmiss]);
-        if (rc != NC_NOERR)
-            return ser_nc_fail(path, rc, what, err);
-        nmiss++;
-    } else if (rc == NC_ENOTATT || rc == NC_NOERR) {
-        switch (type) {   /* the library's default fill, for never-written points */
-        case NC_SHORT: miss[nmiss++] = NC_FILL_SHORT; break;
-        case NC_USHORT: miss[nmiss++] = NC_FILL_USHORT; break;
-        case NC_INT: miss[nmiss++] = NC_FILL_INT; break;
-        case NC_UINT: miss[nmiss++] = NC_FILL_UINT; break;
-        case NC_INT64: miss[nmiss++] = (double)NC_FILL_INT64; break;
-        case NC_UINT64: miss[nmiss++] = (double)NC_FILL_UINT64; break;
-        case NC_FLOAT: miss[nmiss++] = NC_FILL_FLOAT; break;
-        case NC_DOUBLE: miss[nmiss++] = NC_FILL_DOUBLE; break;
-        default: break;
-        }
-    } else {
-        return ser_nc_fail(path, rc, what, err);
-    }
-    rc = nc_inq_att(ncid, varid, "missing_value", &at, &len);
-    if (rc == NC_NOERR && at != NC_CHAR && at != NC_STRING && len > 8)
-        return sw_fail(err, SW_ERR_INPUT, "%s: variable '%s' has %zu missing_value values (accepted: at most 8)",
-                       path, name, len);
-    if (rc == NC_NOERR && at != NC_CHAR && at != NC_STRING && len >= 1) {
-        rc = nc_get_att_double(ncid, varid, "missing_value", &miss[nmiss]);
-        if (rc != NC_NOERR)
-            return ser_nc_fail(path, rc, what, err);
-        nmiss += len;
-    } else if (rc != NC_NOERR && rc != NC_ENOTATT) {
-        return ser_nc_fail(path, rc, what, err);
-    }
-    double scale = 1.0, offset = 0.0;
-    rc = nc_get_att_double(ncid, varid, "scale_factor", &scale);
-    if (rc == NC_ENOTATT)
-        rc = NC_NOERR;
-    if (rc == NC_NOERR) {
-        rc = nc_get_att_double(ncid, varid, "add_offset", &offset);
-        if (rc == NC_ENOTATT)
-            rc = NC_NOERR;
-    }
+    sw_nc_missing miss;
+    rc = sw_nc_missing_read(ncid, varid, &miss);
     if (rc != NC_NOERR)
         return ser_nc_fail(path, rc, what, err);
+    size_t n_missing_value = miss.count - (miss.fill ? 1 : 0);
+    if (n_missing_value > 8) {
+        sw_nc_missing_free(&miss);
+        return sw_fail(err, SW_ERR_INPUT, "%s: variable '%s' has %zu missing_value values (accepted: at most 8)",
+                       path, name, n_missing_value);
+    }
+    double scale = 1.0, offset = 0.0;
+    rc = sw_nc_num_att(ncid, varid, "scale_factor", &scale);
+    if (rc == NC_NOERR)
+        rc = sw_nc_num_att(ncid, varid, "add_offset", &offset);
+    if (rc != NC_NOERR) {
+        sw_nc_missing_free(&miss);
+        return ser_nc_fail(path, rc, what, err);
+    }
     for (size_t k = 0; k < n; k++) {
         int bad = !isfinite(v[k]);
-        for (size_t m = 0; m < nmiss && !bad; m++)
-            bad = v[k] == miss[m];
+        for (size_t m = 0; m < miss.count && !bad; m++)
+            bad = v[k] == miss.value[m];
         v[k] = v[k] * scale + offset;
-        if (bad || !isfinite(v[k]))
+        if (bad || !isfinite(v[k])) {
+            sw_nc_missing_free(&miss);
             return sw_fail(err, SW_ERR_INPUT, "%s: variable '%s' has a missing or non-finite value at %s[%zu]", path,
                            name, name, k);
+        }
     }
+    sw_nc_missing_free(&miss);
     return SW_OK;
 }
 
@@ -507,7 +269,7 @@ static sw_status ser_nc_read(const char *path, int ncid, const char *variable, d
     /* units of the elevation */
     char units[128];
     int found;
-    rc = ser_text_att(ncid, varid, "units", units, sizeof units, &found);
+    rc = sw_nc_text_att(ncid, varid, "units", units, sizeof units, &found);
     if (rc != NC_NOERR)
         return ser_nc_fail(path, rc, "reading the variable's units", err);
     if (!found)
@@ -533,18 +295,19 @@ static sw_status ser_nc_read(const char *path, int ncid, const char *variable, d
     if (tnd != 1 || tdim != dimid)
         return sw_fail(err, SW_ERR_INPUT, "%s: coordinate variable '%s' must be 1D along dimension '%s'", path, dim,
                        dim);
-    rc = ser_text_att(ncid, tid, "units", units, sizeof units, &found);
+    rc = sw_nc_text_att(ncid, tid, "units", units, sizeof units, &found);
     if (rc != NC_NOERR)
         return ser_nc_fail(path, rc, "reading the time units", err);
     if (!found)
         return sw_fail(err, SW_ERR_INPUT, "%s: time coordinate '%s' has no units attribute (accepted: 'UNIT since "
                        "DATE', e.g. 'hours since 2000-01-01 00:00:00')", path, dim);
     double unit_s, file_origin_s;
+    sw_civil_time file_origin;
     char why[256];
-    if (sw_time_units_parse(units, &unit_s, &file_origin_s, why, sizeof why) != 0)
+    if (sw_time_units_parse(units, &unit_s, &file_origin_s, &file_origin, why, sizeof why) != 0)
         return sw_fail(err, SW_ERR_INPUT, "%s: time coordinate '%s': %s", path, dim, why);
     char cal[64];
-    rc = ser_text_att(ncid, tid, "calendar", cal, sizeof cal, &found);
+    rc = sw_nc_text_att(ncid, tid, "calendar", cal, sizeof cal, &found);
     if (rc != NC_NOERR)
         return ser_nc_fail(path, rc, "reading the calendar", err);
     if (found) {
@@ -553,7 +316,8 @@ static sw_status ser_nc_read(const char *path, int ncid, const char *variable, d
             return sw_fail(err, SW_ERR_INPUT, "%s: time coordinate '%s' has calendar '%s' (accepted: standard, "
                            "gregorian, proleptic_gregorian)", path, dim, cal);
         /* the mixed Julian/Gregorian calendar agrees with ours from 1582-10-15 on */
-        if (!proleptic && file_origin_s < (double)sw_days_from_civil(1582, 10, 15) * 86400.0)
+        if (!proleptic && sw_days_from_civil(file_origin.year, file_origin.month, file_origin.day) <
+                              sw_days_from_civil(1582, 10, 15))
             return sw_fail(err, SW_ERR_INPUT, "%s: time coordinate '%s': an origin before 1582-10-15 in the '%s' "
                            "calendar is not supported (use proleptic_gregorian)", path, dim, cal);
     }

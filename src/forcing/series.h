@@ -1,5 +1,5 @@
 /* series.h - a time series of sea level (a tide or a remote surge) for an edge, read from a text table
- * or a NetCDF file and interpolated linearly in time; with the small calendar helpers it needs.
+ * or a NetCDF file and interpolated linearly in time.
  *
  * Text files (read with inputs/table_text.h; times count from the scenario's time origin):
  *
@@ -16,10 +16,12 @@
  * sea_surface_height_above_mean_sea_level; units m or cm (metre(s), meter(s), centimetre(s) and
  * centimeter(s) too); _FillValue / missing_value / scale_factor / add_offset honoured. Its dimension
  * must have a 1D coordinate variable of the same name with CF units "UNIT since DATE":
- *   UNIT  seconds, minutes, hours, days (also second, minute, hour, day, s, min, h, d)
- *   DATE  YYYY-MM-DD[ HH:MM[:SS[.fff]]] (or a 'T' between date and time; an optional "Z" or "UTC"),
- *         proleptic Gregorian; a calendar attribute, if any, must be standard, gregorian or
- *         proleptic_gregorian (for the first two, the origin must not precede 1582-10-15).
+ *   UNIT  seconds, minutes, hours, days (also second, minute, hour, day, s, min, h, d and the others
+ *         of base/civil_time.h)
+ *   DATE  YYYY-MM-DD[ HH:MM[:SS[.fff]]] (or a 'T' between date and time; an optional "Z", "UTC" or
+ *         offset +HH[:MM] / -HH[:MM] from UTC), proleptic Gregorian (base/civil_time.h); a calendar
+ *         attribute, if any, must be standard, gregorian or proleptic_gregorian (for the first two,
+ *         the origin must not precede 1582-10-15).
  * Times are converted to seconds since the scenario's time origin ("YYYY-MM-DD HH:MM:SS").
  *
  * In both forms times must increase strictly, at least 2 values are needed, and a missing value (fill,
@@ -29,7 +31,6 @@
 #define SW_SERIES_H
 
 #include <stddef.h>
-#include <stdint.h>
 
 #include "base/status.h"
 
@@ -64,20 +65,5 @@ sw_status sw_series_covers(const sw_series *s, double t0_s, double t1_s, sw_erro
 /* Sea level (m) at t_s, linear between values; the first or last value outside the span. Reads s only:
  * safe from several threads at once. */
 double sw_series_at(const sw_series *s, double t_s);
-
-/* ---- calendar helpers (proleptic Gregorian) ---------------------------------------------------- */
-
-/* Days from 1970-01-01 to year y, month m (1 .. 12), day d (1 .. 31), negative before it. Exact for any
- * year representable here (the algorithm of H. Hinnant, "chrono-Compatible Low-Level Date Algorithms"). */
-int64_t sw_days_from_civil(int64_t y, int m, int d);
-
-/* Parses "YYYY-MM-DD[( |T)HH:MM[:SS[.fff]]][ ][Z|UTC]" (year 0 .. 9999; 1 or 2 digits for the other
- * fields) into seconds since 1970-01-01 00:00:00. Returns 0 on success, -1 with a cause in why (size n)
- * such as "no such date (2001-02-29)". */
-int sw_datetime_parse(const char *text, double *s_since_1970, char *why, size_t n);
-
-/* Parses CF time units "UNIT since DATE" (as above) into the seconds per unit and the date's seconds
- * since 1970. Returns 0 on success, -1 with a cause in why (size n). */
-int sw_time_units_parse(const char *units, double *unit_s, double *origin_s_since_1970, char *why, size_t n);
 
 #endif

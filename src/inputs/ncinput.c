@@ -17,6 +17,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "inputs/ncattr.h"
 #include "inputs/scenario.h"   /* sw_positive */
 
 #define NCIN_EVEN_TOL 1e-6    /* relative tolerance of the "evenly spaced" check */
@@ -50,61 +51,6 @@ static void ncin_close(ncin_file *f)
     if (f->ncid >= 0)
         nc_close(f->ncid);
     f->ncid = -1;
-}
-
-/* Copies a text attribute (NC_CHAR or NC_STRING) of varid into buf (size n, NUL-terminated,
- * truncated to fit) with surrounding blanks removed. *found = 0 when the attribute is absent;
- * an attribute of another type is reported as found with buf holding "(not text)".
- * Returns a NetCDF status (NC_NOERR on success or absence). */
-static int ncin_text_att(int ncid, int varid, const char *name, char *buf, size_t n, int *found)
-{
-    nc_type type;
-    size_t len;
-    *found = 0;
-    buf[0] = '\0';
-    int rc = nc_inq_att(ncid, varid, name, &type, &len);
-    if (rc == NC_ENOTATT)
-        return NC_NOERR;
-    if (rc != NC_NOERR)
-        return rc;
-    *found = 1;
-    if (type == NC_CHAR) {
-        char *tmp = malloc(len + 1);
-        if (!tmp)
-            return NC_ENOMEM;
-        rc = nc_get_att_text(ncid, varid, name, tmp);
-        if (rc == NC_NOERR) {
-            tmp[len] = '\0';
-            strncpy(buf, tmp, n - 1);
-            buf[n - 1] = '\0';
-        }
-        free(tmp);
-    } else if (type == NC_STRING && len >= 1) {
-        char **strs = calloc(len, sizeof *strs);
-        if (!strs)
-            return NC_ENOMEM;
-        rc = nc_get_att_string(ncid, varid, name, strs);
-        if (rc == NC_NOERR) {
-            strncpy(buf, strs[0] ? strs[0] : "", n - 1);
-            buf[n - 1] = '\0';
-            nc_free_string(len, strs);
-        }
-        free(strs);
-    } else {
-        strncpy(buf, "(not text)", n - 1);
-        buf[n - 1] = '\0';
-    }
-    if (rc != NC_NOERR)
-        return rc;
-    /* trim blanks (and trailing NULs some writers include in the length) */
-    size_t end = strlen(buf);
-    while (end > 0 && isspace((unsigned char)buf[end - 1]))
-        buf[--end] = '\0';
-    size_t start = 0;
-    while (buf[start] && isspace((unsigned char)buf[start]))
-        start++;
-    memmove(buf, buf + start, end - start + 1);
-    return NC_NOERR;
 }
 
 /* Case-insensitive equality of two ASCII strings (strcasecmp is not in C17). */
@@ -172,7 +118,7 @@ static sw_status ncin_axis(ncin_file *f, int k, int dimid, sw_error *err)
 
     char units[128];
     int found;
-    rc = ncin_text_att(f->ncid, cid, "units", units, sizeof units, &found);
+    rc = sw_nc_text_att(f->ncid, cid, "units", units, sizeof units, &found);
     if (rc != NC_NOERR)
         return ncin_lib_fail(f, rc, "reading the units of its coordinates", err);
     double scale = found ? ncin_unit_scale(units) : 1.0;   /* no units: metres */
@@ -221,27 +167,6 @@ static sw_status ncin_axis(ncin_file *f, int k, int dimid, sw_error *err)
     return st;
 }
 
-/* Writes the names of the file's 2D variables, comma-separated, into buf (size n, truncated). */
-static void ncin_list_2d(int ncid, char *buf, size_t n)
-{
-    buf[0] = '\0';
-    int nvars = 0;
-    if (nc_inq_nvars(ncid, &nvars) != NC_NOERR)
-        return;
-    size_t used = 0;
-    for (int v = 0; v < nvars; v++) {
-        int nd;
-        char name[NC_MAX_NAME + 1];
-        if (nc_inq_varndims(ncid, v, &nd) != NC_NOERR || nd != 2 || nc_inq_varname(ncid, v, name) != NC_NOERR)
-            continue;
-        int w = snprintf(buf + used, n - used, "%s%s", used ? ", " : "", name);
-        if (w < 0 || (size_t)w >= n - used)
-            break;   /* the list is cut at the last name that fits */
-        used += (size_t)w;
-    }
-    buf[used] = '\0';
-}
-
 /* Opens path and checks variable var: numeric, 2D (y, x), each dimension with an evenly spaced,
  * increasing coordinate variable in metres. On success f describes it and the file is open (close
  * with ncin_close). On failure the file is closed and err names the file and variable. */
@@ -264,7 +189,7 @@ static sw_status ncin_open(const char *path, const char *var, ncin_file *f, sw_e
     rc = nc_inq_varid(f->ncid, var, &f->varid);
     if (rc == NC_ENOTVAR) {
         char have[512];
-        ncin_list_2d(f->ncid, have, sizeof have);
+        sw_nc_list_vars(f->ncid, 2, have, sizeof have);
         st = sw_fail(err, SW_ERR_INPUT, "%s: variable '%s' not found in the file (2D variables: %s)",
                      path, var, have[0] ? have : "none");
         goto fail;
@@ -319,87 +244,6 @@ sw_status sw_ncin_grid(const char *path, const char *var, sw_grid *out, sw_error
     return SW_OK;
 }
 
-/* The values that mark a missing point in the variable: _FillValue (or, without it, the
- * NetCDF default fill of the type; bytes have none) and every missing_value. On success *vals
- * (caller frees) holds *count values. Returns a NetCDF status. */
-static int ncin_missing_values(const ncin_file *f, double **vals, size_t *count)
-{
-    *vals = NULL;
-    *count = 0;
-    nc_type t;
-    size_t nmiss = 0;
-    int rc = nc_inq_att(f->ncid, f->varid, "missing_value", &t, &nmiss);
-    if (rc == NC_ENOTATT || (rc == NC_NOERR && (t == NC_CHAR || t == NC_STRING)))
-        nmiss = 0;
-    else if (rc != NC_NOERR)
-        return rc;
-    double *v = malloc((nmiss + 1) * sizeof *v);
-    if (!v)
-        return NC_ENOMEM;
-    size_t n = 0;
-
-    size_t len;
-    rc = nc_inq_att(f->ncid, f->varid, "_FillValue", &t, &len);
-    if (rc == NC_NOERR && len == 1) {
-        rc = nc_get_att_double(f->ncid, f->varid, "_FillValue", &v[n]);
-        if (rc != NC_NOERR) {
-            free(v);
-            return rc;
-        }
-        n++;
-    } else if (rc == NC_ENOTATT || rc == NC_NOERR) {
-        switch (f->type) {   /* the library's default fill, used for never-written points */
-        case NC_SHORT: v[n++] = NC_FILL_SHORT; break;
-        case NC_USHORT: v[n++] = NC_FILL_USHORT; break;
-        case NC_INT: v[n++] = NC_FILL_INT; break;
-        case NC_UINT: v[n++] = NC_FILL_UINT; break;
-        case NC_INT64: v[n++] = (double)NC_FILL_INT64; break;
-        case NC_UINT64: v[n++] = (double)NC_FILL_UINT64; break;
-        case NC_FLOAT: v[n++] = NC_FILL_FLOAT; break;
-        case NC_DOUBLE: v[n++] = NC_FILL_DOUBLE; break;
-        default: break;
-        }
-    } else {
-        free(v);
-        return rc;
-    }
-    if (nmiss > 0) {
-        double *mv = malloc(nmiss * sizeof *mv);
-        if (!mv) {
-            free(v);
-            return NC_ENOMEM;
-        }
-        rc = nc_get_att_double(f->ncid, f->varid, "missing_value", mv);
-        if (rc != NC_NOERR) {
-            free(mv);
-            free(v);
-            return rc;
-        }
-        /* v has room for nmiss + 1 values; a fill value takes at most one */
-        memcpy(v + n, mv, nmiss * sizeof *mv);
-        n += nmiss;
-        free(mv);
-    }
-    *vals = v;
-    *count = n;
-    return NC_NOERR;
-}
-
-/* Reads a numeric scalar attribute into *out; leaves *out unchanged when absent. */
-static int ncin_num_att(int ncid, int varid, const char *name, double *out)
-{
-    nc_type t;
-    size_t len;
-    int rc = nc_inq_att(ncid, varid, name, &t, &len);
-    if (rc == NC_ENOTATT)
-        return NC_NOERR;
-    if (rc != NC_NOERR)
-        return rc;
-    if (len != 1 || t == NC_CHAR || t == NC_STRING)
-        return NC_EBADTYPE;
-    return nc_get_att_double(ncid, varid, name, out);
-}
-
 /* Reads the whole variable as double into *data (caller frees): missing, NaN and Inf values
  * are an error naming the first bad index in storage order; packed values (scale_factor,
  * add_offset) are unpacked. */
@@ -420,33 +264,32 @@ static sw_status ncin_values(const ncin_file *f, double **data, sw_error *err)
         free(v);
         return ncin_lib_fail(f, rc, "reading its values", err);
     }
-    double *miss = NULL;
-    size_t nmiss = 0;
+    sw_nc_missing miss;
     double scale = 1.0, offset = 0.0;
-    rc = ncin_missing_values(f, &miss, &nmiss);
+    rc = sw_nc_missing_read(f->ncid, f->varid, &miss);
     if (rc == NC_NOERR)
-        rc = ncin_num_att(f->ncid, f->varid, "scale_factor", &scale);
+        rc = sw_nc_num_att(f->ncid, f->varid, "scale_factor", &scale);
     if (rc == NC_NOERR)
-        rc = ncin_num_att(f->ncid, f->varid, "add_offset", &offset);
+        rc = sw_nc_num_att(f->ncid, f->varid, "add_offset", &offset);
     if (rc != NC_NOERR) {
-        free(miss);
+        sw_nc_missing_free(&miss);
         free(v);
         return ncin_lib_fail(f, rc, "reading its _FillValue, missing_value, scale_factor or "
                              "add_offset attribute", err);
     }
     for (size_t k = 0; k < total; k++) {
         int bad = !isfinite(v[k]);
-        for (size_t m = 0; m < nmiss && !bad; m++)
-            bad = v[k] == miss[m];
+        for (size_t m = 0; m < miss.count && !bad; m++)
+            bad = v[k] == miss.value[m];
         if (bad) {
-            free(miss);
+            sw_nc_missing_free(&miss);
             free(v);
             return sw_fail(err, SW_ERR_INPUT, "%s: variable '%s' has a missing or non-finite value "
                            "at %s[%zu][%zu]", f->path, f->var, f->var, k / cols, k % cols);
         }
         v[k] = v[k] * scale + offset;
     }
-    free(miss);
+    sw_nc_missing_free(&miss);
     *data = v;
     return SW_OK;
 }
@@ -549,7 +392,7 @@ sw_status sw_ncin_read(const char *path, const char *var, const sw_grid *g, sw_n
     if (positive_attr) {
         char text[64];
         int found;
-        int rc = ncin_text_att(f.ncid, f.varid, "positive", text, sizeof text, &found);
+        int rc = sw_nc_text_att(f.ncid, f.varid, "positive", text, sizeof text, &found);
         if (rc != NC_NOERR) {
             st = ncin_lib_fail(&f, rc, "reading its 'positive' attribute", err);
             ncin_close(&f);

@@ -14,6 +14,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "base/civil_time.h"
 #include "model/layout.h"
 
 static const char *const EDGE_WORDS[] = { "wall", "open", "level", "periodic", NULL };       /* sw_edge_kind */
@@ -335,8 +336,6 @@ sw_unit_kind scn_unit_kind(key_kind k)
     }
 }
 
-static int is_leap(int y) { return (y % 4 == 0 && y % 100 != 0) || y % 400 == 0; }
-
 /* Checks "YYYY-MM-DD HH:MM:SS" with a real calendar date (proleptic Gregorian). */
 static sw_status check_origin(const char *v, char *why, size_t n)
 {
@@ -350,8 +349,7 @@ static sw_status check_origin(const char *v, char *why, size_t n)
         return SW_ERR_PARSE;
     }
     int y = atoi(v), mo = atoi(v + 5), d = atoi(v + 8), h = atoi(v + 11), mi = atoi(v + 14), s = atoi(v + 17);
-    static const int days[12] = { 31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31 };
-    int dim = mo >= 1 && mo <= 12 ? days[mo - 1] + (mo == 2 && is_leap(y)) : 0;
+    int dim = sw_days_in_month(y, mo);
     if (y < 1 || mo < 1 || mo > 12 || d < 1 || d > dim || h > 23 || mi > 59 || s > 59) {
         snprintf(why, n, "no such date or time (accepted: year 0001..9999, month 01..12, a day of that month, "
                          "HH 00..23, MM and SS 00..59)");

@@ -1,9 +1,9 @@
 /* test_series.c - sea-level series for an edge (forcing/series.h): text and NetCDF files (written here
- * with the NetCDF-C API), linear interpolation, the CF time origin, units, the calendar helpers, and the
- * bad inputs with their messages.
+ * with the NetCDF-C API), linear interpolation, the CF time origin, units, and the bad inputs with their
+ * messages. The calendar itself is tested in test_civil_time.c.
  *
  * Sources: the proleptic Gregorian calendar (a year is a leap year when divisible by 4, except centuries
- * not divisible by 400), from which every day count below is [derived] by hand in its comment; CF
+ * not divisible by 400), from which every time offset below is [derived] by hand in its comment; CF
  * Conventions, section 4.4 "Time Coordinate" (units "UNIT since DATE", the calendar attribute) [memory].
  * The series are fictional.
  */
@@ -33,103 +33,6 @@ static void near_check(double got, double want, double tol, const char *file, in
         print_error("%.17g != %.17g (tolerance %g)\n", got, want, tol);
         _fail(file, line);
     }
-}
-
-/* Day counts from the Gregorian rules, each [derived] by hand. */
-static void test_days_from_civil(void **state)
-{
-    (void)state;
-    assert_int_equal(sw_days_from_civil(1970, 1, 1), 0);             /* the epoch */
-    assert_int_equal(sw_days_from_civil(1969, 12, 31), -1);
-    assert_int_equal(sw_days_from_civil(1970, 3, 1), 31 + 28);
-    assert_int_equal(sw_days_from_civil(2000, 1, 1), 30 * 365 + 7);  /* leap years 1972 .. 1996: 7 */
-    /* 0001-01-01: 1969 years of 365 days + 477 leap days (492 - 19 + 4) before 1970 */
-    assert_int_equal(sw_days_from_civil(1, 1, 1), -(1969 * 365 + 477));
-    /* a 400-year cycle has 400 * 365 + 97 days */
-    assert_int_equal(sw_days_from_civil(2400, 1, 1) - sw_days_from_civil(2000, 1, 1), 146097);
-    assert_int_equal(sw_days_from_civil(1600, 1, 1) - sw_days_from_civil(1200, 1, 1), 146097);
-    /* leap days: 2000 and 2024 have one, 1900 and 2100 none */
-    assert_int_equal(sw_days_from_civil(2000, 3, 1) - sw_days_from_civil(2000, 2, 28), 2);
-    assert_int_equal(sw_days_from_civil(2024, 3, 1) - sw_days_from_civil(2024, 2, 28), 2);
-    assert_int_equal(sw_days_from_civil(1900, 3, 1) - sw_days_from_civil(1900, 2, 28), 1);
-    assert_int_equal(sw_days_from_civil(2100, 3, 1) - sw_days_from_civil(2100, 2, 28), 1);
-    assert_int_equal(sw_days_from_civil(2001, 1, 1) - sw_days_from_civil(2000, 1, 1), 366);
-    assert_int_equal(sw_days_from_civil(1901, 1, 1) - sw_days_from_civil(1900, 1, 1), 365);
-    /* every day of 1999 .. 2001 follows the previous one */
-    static const int mdays[12] = {31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
-    int64_t prev = sw_days_from_civil(1998, 12, 31);
-    for (int y = 1999; y <= 2001; y++)
-        for (int m = 1; m <= 12; m++)
-            for (int d = 1; d <= mdays[m - 1] + (m == 2 && y == 2000); d++) {
-                int64_t k = sw_days_from_civil(y, m, d);
-                assert_int_equal(k, prev + 1);
-                prev = k;
-            }
-}
-
-static void test_datetime_parse(void **state)
-{
-    (void)state;
-    double s;
-    char why[200];
-    const double d2000 = (30 * 365 + 7) * DAY;   /* 2000-01-01 [derived above] */
-    assert_int_equal(sw_datetime_parse("2000-01-01 00:00:00", &s, why, sizeof why), 0);
-    assert_near(s, d2000, 0);
-    assert_int_equal(sw_datetime_parse("2000-01-01", &s, why, sizeof why), 0);
-    assert_near(s, d2000, 0);
-    assert_int_equal(sw_datetime_parse("2000-01-01 06:00", &s, why, sizeof why), 0);
-    assert_near(s, d2000 + 21600, 0);
-    assert_int_equal(sw_datetime_parse("2000-1-1T6:30:15.5Z", &s, why, sizeof why), 0);
-    assert_near(s, d2000 + 6 * 3600 + 30 * 60 + 15.5, 1e-6);
-    assert_int_equal(sw_datetime_parse("2000-01-01 00:00:00 UTC", &s, why, sizeof why), 0);
-    assert_near(s, d2000, 0);
-    assert_int_equal(sw_datetime_parse("2000-02-29 00:00:00", &s, why, sizeof why), 0);   /* 2000 is a leap year */
-    assert_near(s, d2000 + 59 * DAY, 0);
-
-    assert_int_equal(sw_datetime_parse("2001-02-29 00:00:00", &s, why, sizeof why), -1);
-    assert_string_equal(why, "no such date (2001-02-29)");
-    assert_int_equal(sw_datetime_parse("1900-02-29", &s, why, sizeof why), -1);
-    assert_string_equal(why, "no such date (1900-02-29)");
-    assert_int_equal(sw_datetime_parse("2000-13-01", &s, why, sizeof why), -1);
-    assert_string_equal(why, "no such date (2000-13-01)");
-    assert_int_equal(sw_datetime_parse("2000-01-01 24:00:00", &s, why, sizeof why), -1);
-    assert_string_equal(why, "no such time of day (24:00:00; accepted: 00:00:00 .. 23:59:59)");
-    assert_int_equal(sw_datetime_parse("2000-01-01 00:00:00 +01:00", &s, why, sizeof why), -1);
-    assert_string_equal(why, "'2000-01-01 00:00:00 +01:00': time zone offsets are not supported (write the time in UTC)");
-    assert_int_equal(sw_datetime_parse("01/01/2000", &s, why, sizeof why), -1);
-    assert_string_equal(why, "'01/01/2000' is not a date (accepted: YYYY-MM-DD[ HH:MM[:SS]])");
-    assert_int_equal(sw_datetime_parse("2000-01-01 00", &s, why, sizeof why), -1);
-    assert_string_equal(why, "'2000-01-01 00' is not a date and time (accepted: YYYY-MM-DD[ HH:MM[:SS]])");
-}
-
-/* CF time units "UNIT since DATE" (CF Conventions 4.4 [memory]). */
-static void test_time_units_parse(void **state)
-{
-    (void)state;
-    double u, o;
-    char why[300];
-    const double d2000 = (30 * 365 + 7) * DAY;
-    assert_int_equal(sw_time_units_parse("hours since 2000-01-01 06:00", &u, &o, why, sizeof why), 0);
-    assert_near(u, 3600, 0);
-    assert_near(o, d2000 + 21600, 0);
-    assert_int_equal(sw_time_units_parse("seconds since 1970-01-01T00:00:00Z", &u, &o, why, sizeof why), 0);
-    assert_near(u, 1, 0);
-    assert_near(o, 0, 0);
-    assert_int_equal(sw_time_units_parse(" Days since 1900-03-01", &u, &o, why, sizeof why), 0);
-    assert_near(u, DAY, 0);
-    /* 1900-03-01: 70 years back minus 17 leap days (1904 .. 1968) and Jan, Feb 1900 (31 + 28) */
-    assert_near(o, -(70.0 * 365 + 17 - 59) * DAY, 0);
-    assert_int_equal(sw_time_units_parse("minutes since 2000-01-01", &u, &o, why, sizeof why), 0);
-    assert_near(u, 60, 0);
-
-    assert_int_equal(sw_time_units_parse("fortnights since 2000-01-01", &u, &o, why, sizeof why), -1);
-    assert_string_equal(why, "unknown time unit 'fortnights' in 'fortnights since 2000-01-01' (accepted: UNIT since "
-                             "YYYY-MM-DD[ HH:MM[:SS]], UNIT seconds, minutes, hours or days)");
-    assert_int_equal(sw_time_units_parse("hours after 2000-01-01", &u, &o, why, sizeof why), -1);
-    assert_string_equal(why, "time units 'hours after 2000-01-01' are not 'UNIT since DATE' (accepted: UNIT since "
-                             "YYYY-MM-DD[ HH:MM[:SS]], UNIT seconds, minutes, hours or days)");
-    assert_int_equal(sw_time_units_parse("hours since 2000-02-30", &u, &o, why, sizeof why), -1);
-    assert_string_equal(why, "time units 'hours since 2000-02-30': no such date (2000-02-30)");
 }
 
 static void scratch(char *path, size_t n, const char *name, const char *text)
@@ -472,9 +375,6 @@ static void test_bad_files(void **state)
 int main(void)
 {
     const struct CMUnitTest tests[] = {
-        cmocka_unit_test(test_days_from_civil),
-        cmocka_unit_test(test_datetime_parse),
-        cmocka_unit_test(test_time_units_parse),
         cmocka_unit_test(test_text_series),
         cmocka_unit_test(test_netcdf_series),
         cmocka_unit_test(test_bad_inputs),
