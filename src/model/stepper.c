@@ -213,6 +213,21 @@ static void after_continuity(sw_model *m, ptrdiff_t j)
 
 static int in(ptrdiff_t r, ptrdiff_t lo, ptrdiff_t hi) { return r >= lo && r <= hi; }
 
+/* Asks for padded row r of the surface forcing's four slabs ahead of the momentum stages that read them:
+ * without it each forced stage waits on its two slab streams (the plain stages read rows the continuity
+ * pass has just brought in). */
+static void prefetch_surface(const sw_model *m, ptrdiff_t r)
+{
+    const sw_terms *t = &m->terms;
+    if (!t->surface_x[0] || r < 0 || (size_t)r > m->grid.ny + 1)
+        return;
+    const size_t k0 = (size_t)r * m->stride, k1 = k0 + m->grid.nx + 2;
+    const float *a[4] = {t->surface_x[0], t->surface_x[1], t->surface_y[0], t->surface_y[1]};
+    for (int q = 0; q < 4; q++)
+        for (size_t k = k0; k < k1; k += 16)   /* a 64-byte line holds 16 floats */
+            __builtin_prefetch(a[q] + k, 0, 3);
+}
+
 /* Observes the rows of the block outside lo .. hi (those not seen in the sweep). */
 static void observe_rest(const sw_model *m, const block *b)
 {
@@ -271,6 +286,7 @@ void SW_NAME(sw_stepper_step)(sw_model *m)
                     m->plan.stage[0]->run(&m->view, (size_t)j);
                     after_continuity(m, j);
                 }
+                prefetch_surface(m, j + 1);
             }
             for (int st = 1; st < pl->n_stages; st++) {
                 const ptrdiff_t r = j - pl->lag[st];
