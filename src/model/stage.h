@@ -75,7 +75,8 @@ typedef void (*sw_continuity_observed_fn)(const sw_view *v, size_t row, size_t o
  *        (unconditionally stable; r = c dt / spacing, c = sqrt(g h)), so the ghost follows the
  *        outgoing wave;
  * level: keep = 0, take = -1: eta is antisymmetric about the edge line, a node of mean level there
- *        (with a tide or surge series L(t): eta - L antisymmetric, eta_g = -eta_in + 2 L; level_gain).
+ *        (with a tide or surge series L(t): eta - L antisymmetric, eta_g = -eta_in + 2 L; level_gain;
+ *        under air pressure L less the head beyond the edge, sw_edge_head).
  * Layouts that keep a velocity in the ghost (A, D, E) set it in their edge_velocities kernel from
  * vel * eta_g + mirror * (inner velocity): open: vel = sign sqrt(g/h), mirror = 0 (the outgoing wave's
  * velocity); level: vel = 0, mirror = 1. vel = 0 also switches off the radiation of ghosts that a layout

@@ -198,8 +198,10 @@ static void after_continuity(sw_model *m, ptrdiff_t j)
     sw_real *restrict eta = SW_V(&m->view, eta);
     for (size_t q = m->edge_row[j]; q < m->edge_row[j + 1]; q++) {
         const sw_edge_cell *oc = &m->edge[q];
+        /* a level edge holds L less the air's head there: the sea beyond it at its inverse barometer */
+        const double level = m->edge_level - (double)sw_edge_head(&m->view, q);
         eta[oc->ghost] = (sw_real)oc->keep * eta[oc->ghost] + (sw_real)oc->take * eta[oc->inner]
-                       + (sw_real)(oc->level_gain * m->edge_level);
+                       + (sw_real)(oc->level_gain * level);
     }
     if (m->plan.periodic_x || m->plan.periodic_y)
         periodic_row(m, eta, j);

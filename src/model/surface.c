@@ -66,7 +66,9 @@ void SW_NAME(sw_surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void
                    x_centre0 + (double)ip * g->dx_m, g->dx_m, 1, tmp);
                 pb[oc->ghost] = (sw_real)tmp[0];
             }
-            m->edge_slab[slot][q] = oc->kind == SW_EDGE_OPEN ? (float)pb[oc->inner] : 0.0f;
+            /* open: the inner cell's head (its ghost rules radiate eta + head); level: the air's head beyond
+             * the edge, which the edge's level is lowered by (stepper.c, after_continuity) */
+            m->edge_slab[slot][q] = (float)pb[oc->kind == SW_EDGE_OPEN ? oc->inner : oc->ghost];
         }
         if (periodic_y) {
             memcpy(pb, pb + ny * s, s * sizeof *pb);

@@ -95,10 +95,11 @@ typedef struct sw_terms {
                                * H the depth the point carries; built by sw_model_surface_build; 0 where
                                * H = 0); NULL unless the variant is one of the FORCED ones */
     const float *surface_y[2];/* [n_pad] the same at v points */
-    const float *edge_head[2];/* [n_edge] the air pressure head (m) at the inner cell of each ghost of the
-                               * edge list, for the two slabs: open edges radiate the departure from the
-                               * inverse barometer, eta + head (stage.h, sw_edge_head); NULL without
-                               * surface forcing */
+    const float *edge_head[2];/* [n_edge] the air pressure head (m) for each ghost of the edge list, for the
+                               * two slabs: on an open edge the inner cell's (the edge radiates the
+                               * departure from the inverse barometer, eta + head), on a level edge the
+                               * ghost's own (the edge holds L - head, the sea beyond at its inverse
+                               * barometer); stage.h sw_edge_head; NULL without surface forcing */
     double surface_w;         /* weight of the later slab at the time the step's momentum is centred on
                                * (its new elevation's), 0 .. 1: the forcing is linear in time between slabs */
 } sw_terms;

@@ -350,6 +350,61 @@ static void test_open_edges_still(void **state)
     assert_int_equal(bad, 0);
 }
 
+/* ---- a uniform, slowly varying pressure anomaly (Pugh 1987 [memory]) -------------------------------------- */
+
+/* A basin whose sea edges are `level` under an air pressure that falls uniformly by 10 hPa over a day: a
+ * level edge holds the sea beyond it at its inverse barometer (L less the head there), so the water
+ * inside follows -dp / (rho_w g), about 1 cm per hPa, everywhere [derived: with no gradient of eta + head
+ * left, the steady state has no flow]. */
+typedef struct {
+    double head;    /* the uniform head now, m */
+} uniform;
+
+static void uniform_row(void *ctx, sw_surface_kind kind, ptrdiff_t j, size_t i0, double y, double x0, double dx,
+                        size_t n, float *out)
+{
+    (void)j, (void)i0, (void)y, (void)x0, (void)dx;
+    const uniform *u = ctx;
+    for (size_t i = 0; i < n; i++)
+        out[i] = kind == SW_SURFACE_HEAD ? (float)u->head : 0.0f;
+}
+
+static void test_uniform_barometer(void **state)
+{
+    (void)state;
+    static const sw_edge_kind sea[4] = {SW_EDGE_LEVEL, SW_EDGE_WALL, SW_EDGE_LEVEL, SW_EDGE_LEVEL};
+    const double h = 30, d = 3000, dp = -1000, ramp_s = 86400;   /* a 10 hPa fall over a day */
+    int bad = 0;
+    for (int q = 0; q < 5; q++) {
+        sw_terms_config t = {.surface = 1, .friction = SW_FRICTION_LINEAR, .friction_rate_ms = 0.005};
+        sw_model *m = make(LAYOUTS[q], 40, 30, d, h, sea, t, 0.9, NULL);
+        const double dt = sw_model_dt(m);
+        const long steps = (long)(1.5 * ramp_s / dt);
+        uniform u = {0};
+        for (long n = 0; n < steps; n++) {   /* the forcing at the step's end, one slab a step */
+            const double tt = (double)(n + 1) * dt;
+            u.head = dp * fmin(tt / ramp_s, 1) / (RHO_W * G);
+            sw_model_surface_build(m, 1, uniform_row, &u);
+            sw_model_surface_weight(m, 1);
+            advance(m, 1);
+        }
+        const double want = -dp / (RHO_W * G);   /* +0.0995 m for a 10 hPa fall */
+        double worst = 0;
+        for (size_t j = 2; j < 28; j++)
+            for (size_t i = 2; i < 38; i++) {
+                if (sw_layout_find(LAYOUTS[q])->checkerboard && (i + j) % 2)
+                    continue;
+                worst = fmax(worst, fabs(sw_model_eta_centre(m, i, j) - want));
+            }
+        print_message("%s uniform 10 hPa fall behind level edges: the sea rose %.5f m in the middle, "
+                      "-dp / (rho_w g) = %.5f m; worst misfit %.1e m\n", LAYOUTS[q], sw_model_eta_centre(m, 20, 14),
+                      want, worst);
+        bad += !(worst < 0.01 * want);
+        sw_model_free(m);
+    }
+    assert_int_equal(bad, 0);
+}
+
 /* ---- bits: forcing does not depend on the thread count ------------------------------------------------ */
 
 static void test_threads(void **state)
@@ -391,6 +446,7 @@ int main(void)
         cmocka_unit_test(test_proudman),
         cmocka_unit_test(test_level_series),
         cmocka_unit_test(test_open_edges_still),
+        cmocka_unit_test(test_uniform_barometer),
         cmocka_unit_test(test_threads),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
