@@ -499,6 +499,7 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
         rc = build_terms(m, err);
     if (rc == SW_OK)
         rc = sw_step_plan_build(m->kernels, sw_terms_variant_of(&m->terms_cfg), m->edges, &m->plan, err);
+    m->prefetch_rows = m->terms.share_x != NULL || m->surface != NULL;
     if (rc == SW_OK)
         rc = start_at_rest(m, err);
     if (rc != SW_OK) {

@@ -57,6 +57,8 @@ struct sw_model {
                                   * at u and v points while a slab is built, or NULL */
     void (*surface_build)(sw_model *m, int slot, sw_surface_row_fn fn, void *ctx);   /* of this precision */
     double edge_level;           /* m: the level `level` edges hold (sw_model_set_edge_level) */
+    int prefetch_rows;           /* 1 when the step has arrays only its momentum stages read (slabs, water
+                                  * fractions): the stepper asks for their next row ahead (stepper.c) */
 
     size_t n_edge;       /* ghost cells of open and level edges */
     sw_edge_cell *edge;  /* [n_edge], sorted by the padded row of their inner cell */

@@ -215,22 +215,29 @@ static void after_continuity(sw_model *m, ptrdiff_t j)
 
 static int in(ptrdiff_t r, ptrdiff_t lo, ptrdiff_t hi) { return r >= lo && r <= hi; }
 
-/* Asks for padded row r of the surface forcing's four slabs ahead of the momentum stages that read them:
- * without it each forced stage waits on its two slab streams (the plain stages read rows the continuity
- * pass has just brought in). */
-static void prefetch_surface(const sw_model *m, ptrdiff_t r)
+/* Asks for padded row r of the arrays only the momentum stages read, ahead of them: the surface forcing's
+ * four slabs and, on transport-weighted layouts, the water-fraction bytes. The plain stages read rows the
+ * continuity pass has just brought into cache; these nobody has touched, and without the request each
+ * stage that reads them waits on their streams. */
+static void prefetch_momentum_rows(const sw_model *m, ptrdiff_t r)
 {
     const sw_terms *t = &m->terms;
-    if (!t->surface_x[0] || r < 0 || (size_t)r > m->grid.ny + 1)
+    if (r < 0 || (size_t)r > m->grid.ny + 1)
         return;
     const size_t k0 = (size_t)r * m->stride, k1 = k0 + m->grid.nx + 2;
-    const float *a[4] = {t->surface_x[0], t->surface_x[1], t->surface_y[0], t->surface_y[1]};
-    for (int q = 0; q < 4; q++)
-        for (size_t k = k0; k < k1; k += 16)   /* a 64-byte line holds 16 floats */
-            __builtin_prefetch(a[q] + k, 0, 3);
+    if (t->surface_x[0]) {
+        const float *a[4] = {t->surface_x[0], t->surface_x[1], t->surface_y[0], t->surface_y[1]};
+        for (int q = 0; q < 4; q++)
+            for (size_t k = k0; k < k1; k += 16)   /* a 64-byte line holds 16 floats */
+                __builtin_prefetch(a[q] + k, 0, 3);
+    }
+    if (t->share_x)
+        for (size_t k = k0; k < k1; k += 64) {     /* 64 bytes */
+            __builtin_prefetch(t->share_x + k, 0, 3);
+            __builtin_prefetch(t->share_y + k, 0, 3);
+        }
 }
 
-/* Observes the rows of the block outside lo .. hi (those not seen in the sweep). */
 static void observe_rest(const sw_model *m, const block *b)
 {
     for (ptrdiff_t f = b->j0; f <= b->j1; f++)
@@ -288,7 +295,8 @@ void SW_NAME(sw_stepper_step)(sw_model *m)
                     m->plan.stage[0]->run(&m->view, (size_t)j);
                     after_continuity(m, j);
                 }
-                prefetch_surface(m, j + 1);
+                if (m->prefetch_rows)
+                    prefetch_momentum_rows(m, j + 1);
             }
             for (int st = 1; st < pl->n_stages; st++) {
                 const ptrdiff_t r = j - pl->lag[st];
