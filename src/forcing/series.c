@@ -401,19 +401,7 @@ double sw_series_t_last(const sw_series *s) { return s->t_s[s->n - 1]; }
 
 sw_status sw_series_covers(const sw_series *s, double t0_s, double t1_s, sw_error *err)
 {
-    double a = sw_series_t_first(s), b = sw_series_t_last(s);
-    int early = !(a <= t0_s), late = !(b >= t1_s);
-    if (!early && !late)
-        return SW_OK;
-    char need[160];
-    if (early && late)
-        snprintf(need, sizeof need, "add values from %.10g s or earlier and up to at least %.10g s", t0_s, t1_s);
-    else if (early)
-        snprintf(need, sizeof need, "add values from %.10g s or earlier", t0_s);
-    else
-        snprintf(need, sizeof need, "add values up to at least %.10g s", t1_s);
-    return sw_fail(err, SW_ERR_RANGE, "%s: the series covers %.10g .. %.10g s but the run needs %.10g .. %.10g s (%s)",
-                   s->path, a, b, t0_s, t1_s, need);
+    return sw_table_covers(s->path, "series", "values", sw_series_t_first(s), sw_series_t_last(s), t0_s, t1_s, err);
 }
 
 double sw_series_at(const sw_series *s, double t_s)

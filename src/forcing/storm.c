@@ -271,19 +271,7 @@ size_t sw_storm_points(const sw_storm *s) { return s->n; }
 
 sw_status sw_storm_covers(const sw_storm *s, double t0_s, double t1_s, sw_error *err)
 {
-    double a = sw_storm_t_first(s), b = sw_storm_t_last(s);
-    int early = !(a <= t0_s), late = !(b >= t1_s);
-    if (!early && !late)
-        return SW_OK;
-    char need[160];
-    if (early && late)
-        snprintf(need, sizeof need, "add track points from %.10g s or earlier and up to at least %.10g s", t0_s, t1_s);
-    else if (early)
-        snprintf(need, sizeof need, "add track points from %.10g s or earlier", t0_s);
-    else
-        snprintf(need, sizeof need, "add track points up to at least %.10g s", t1_s);
-    return sw_fail(err, SW_ERR_RANGE, "%s: the track covers %.10g .. %.10g s but the run needs %.10g .. %.10g s (%s)",
-                   s->path, a, b, t0_s, t1_s, need);
+    return sw_table_covers(s->path, "track", "track points", sw_storm_t_first(s), sw_storm_t_last(s), t0_s, t1_s, err);
 }
 
 void sw_storm_state_at(const sw_storm *s, double t_s, sw_storm_state *st)

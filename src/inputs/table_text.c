@@ -429,3 +429,20 @@ done:
         sw_table_free(out);
     return st;
 }
+
+sw_status sw_table_covers(const char *path, const char *what, const char *items, double a_s, double b_s, double t0_s,
+                          double t1_s, sw_error *err)
+{
+    const int early = !(a_s <= t0_s), late = !(b_s >= t1_s);
+    if (!early && !late)
+        return SW_OK;
+    char need[200];
+    if (early && late)
+        snprintf(need, sizeof need, "add %s from %.10g s or earlier and up to at least %.10g s", items, t0_s, t1_s);
+    else if (early)
+        snprintf(need, sizeof need, "add %s from %.10g s or earlier", items, t0_s);
+    else
+        snprintf(need, sizeof need, "add %s up to at least %.10g s", items, t1_s);
+    return sw_fail(err, SW_ERR_RANGE, "%s: the %s covers %.10g .. %.10g s but the run needs %.10g .. %.10g s (%s)", path,
+                   what, a_s, b_s, t0_s, t1_s, need);
+}

@@ -91,4 +91,11 @@ static inline double sw_table_at(const sw_table *t, size_t r, size_t c)
 /* Frees what sw_table_read allocated and empties *t. t may be NULL or already empty. */
 void sw_table_free(sw_table *t);
 
+/* Whether data over times a_s .. b_s (s) covers a run's t0_s .. t1_s: SW_OK, or SW_ERR_RANGE with
+ * "PATH: the WHAT covers A .. B s but the run needs T0 .. T1 s (add ITEMS from T0 s or earlier and up to
+ * at least T1 s)", naming only the missing end(s). what: "track", "series"; items: "track points",
+ * "values". For the storm's track and the level series, whose messages must read alike. */
+sw_status sw_table_covers(const char *path, const char *what, const char *items, double a_s, double b_s, double t0_s,
+                          double t1_s, sw_error *err);
+
 #endif
