@@ -145,7 +145,7 @@ SW_INLINE void b_centre_cell(const sw_cells *c, size_t k, size_t i, size_t j, fl
 static sw_cells b_cells(const sw_view *v)
 {
     return (sw_cells){SW_V(v, eta), SW_V(v, u), SW_V(v, v), SW_V(v, h), SW_V(v, hx), SW_V(v, hy), v->stride,
-                      (sw_real)(0.5 * v->dt_s / v->dx_m), (sw_real)(0.5 * v->dt_s / v->dy_m)};
+                      (sw_real)(0.5 * v->dt_s / v->dx_m), (sw_real)(0.5 * v->dt_s / v->dy_m), 1, 1};
 }
 
 static void b_continuity(const sw_view *v, size_t j)

@@ -80,7 +80,7 @@ SW_INLINE sw_real c_eta_cell(const sw_cells *c, size_t k)
 {
     const size_t s = c->s;
     return c->eta[k] - (c->cx * (c->hx[k] * c->u[k] - c->hx[k - 1] * c->u[k - 1])
-                        + c->cy * (c->hy[k] * c->v[k] - c->hy[k - s] * c->v[k - s]));
+                        + c->cy * (c->wn * (c->hy[k] * c->v[k]) - c->ws * (c->hy[k - s] * c->v[k - s])));
 }
 
 /* The centre values of cell k, rounded to float: each is (float) of c_centre_row's. In single precision
@@ -96,21 +96,25 @@ SW_INLINE void c_centre_cell(const sw_cells *c, size_t k, size_t i, size_t j, fl
     *vc = (float)((sw_real)0.5 * (c->v[k - c->s] + c->v[k]));
 }
 
-static sw_cells c_cells(const sw_view *v)
+/* The arrays and coefficients of continuity on padded row j: dt / dx and dt / dy over the row's metric,
+ * the metric of its north and south face lines (all 1 on a projected grid, exactly: the same bits). */
+static sw_cells c_cells(const sw_view *v, size_t j)
 {
+    const double m = v->cos_c[j];
     return (sw_cells){SW_V(v, eta), SW_V(v, u), SW_V(v, v), SW_V(v, h), SW_V(v, hx), SW_V(v, hy), v->stride,
-                      (sw_real)(v->dt_s / v->dx_m), (sw_real)(v->dt_s / v->dy_m)};
+                      (sw_real)(v->dt_s / (v->dx_m * m)), (sw_real)(v->dt_s / (v->dy_m * m)),
+                      (sw_real)v->cos_f[j], (sw_real)v->cos_f[j - 1]};
 }
 
 static void c_continuity(const sw_view *v, size_t j)
 {
-    const sw_cells c = c_cells(v);
+    const sw_cells c = c_cells(v, j);
     sw_continuity_loop(&c, j * v->stride + 1, v->nx, c_eta_cell);
 }
 
 static void c_continuity_observed(const sw_view *v, size_t j, size_t f, float *buf)
 {
-    const sw_cells c = c_cells(v);
+    const sw_cells c = c_cells(v, j);
     sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, c_eta_cell, c_centre_cell);
 }
 
@@ -119,7 +123,7 @@ SW_INLINE void c_u_plain(const sw_view *v, size_t j, const int forced)
 {
     sw_real *restrict u = SW_V(v, u);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx);
-    const sw_real gx = (sw_real)(v->g * v->dt_s / v->dx_m);
+    const sw_real gx = (sw_real)(v->g * v->dt_s / (v->dx_m * v->cos_c[j]));
     const size_t k0 = j * v->stride + 1;
     const float *restrict a0 = forced ? v->terms->surface_x[0] : NULL, *restrict a1 = forced ? v->terms->surface_x[1] : NULL;
     const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
@@ -152,14 +156,18 @@ SW_INLINE void c_v_plain(const sw_view *v, size_t j, const int forced)
  * neighbouring faces (rows j and j+1, all on the line of v's own faces), plainly averaged: with the same
  * K divided by v's own depth hy, rot = (F / 2) hy (u0 + u1 + u2 + u3), and the opposite sign; so rotation
  * does no work on any depth (one weight matrix, K and its transpose). With `drag` the friction rho adds
- * Cd |U| dt, |U| from the point's velocity and the other component's plain average. */
+ * Cd |U| dt, |U| from the point's velocity and the other component's plain average. On a geographic grid
+ * the pair weights carry the areas the points stand for (sw_view.cos_c, cos_f): the u equation takes each
+ * line's term times cos_f / cos_c, so that K stays symmetric under the area-weighted sum. */
 SW_INLINE void c_u_terms(const sw_view *v, size_t j, const int drag, const int forced)
 {
     sw_real *restrict u = SW_V(v, u);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
     const sw_real *restrict vv = SW_V(v, v), *restrict cd = drag ? (const sw_real *)v->terms->drag_x : NULL;
-    const sw_real gx = (sw_real)(v->g * v->dt_s / v->dx_m);
-    const sw_real qn = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j - 1]);
+    const sw_real gx = (sw_real)(v->g * v->dt_s / (v->dx_m * v->cos_c[j]));
+    /* each line's v stand for areas cos_f of it against u's cos_c: weighted so, rotation does no work */
+    const sw_real qn = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j] * (v->cos_f[j] / v->cos_c[j]));
+    const sw_real qs = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j - 1] * (v->cos_f[j - 1] / v->cos_c[j]));
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms), dtc = (sw_real)v->dt_s;
     const float *restrict a0 = forced ? v->terms->surface_x[0] : NULL, *restrict a1 = forced ? v->terms->surface_x[1] : NULL;
     const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
@@ -233,7 +241,7 @@ static void c_centre_row(const sw_view *v, size_t j, double *eta, double *u, dou
 
 static void c_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, float *vel)
 {
-    const sw_cells c = c_cells(v);
+    const sw_cells c = c_cells(v, j + 1);
     sw_centre_loop(&c, j, v->nx, eta, u, vel, c_centre_cell);
 }
 
@@ -248,35 +256,37 @@ static void c_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 #endif
 
 /* E* (layout.h). Velocity points are counted once: a periodic edge's halo copy is left out. The
- * rotation share (dt/2) u.K v sums each u point's four v neighbours with K = (f / 4) hy. */
+ * rotation share (dt/2) u.K v sums each u point's four v neighbours with K = (f / 4) hy. Every sum
+ * weights by the area of its points (cos_c of centre rows, cos_f of face lines). */
 static double c_energy(const sw_view *v)
 {
     const size_t nx = v->nx, ny = v->ny, s = v->stride, c0 = sw_first_col(v), r0 = sw_first_row(v);
     const double dx = v->dx_m, dy = v->dy_m, dt = v->dt_s;
     const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
-    const double *ff = v->terms->f_face;
+    const double *ff = v->terms->f_face, *cc = v->cos_c, *cf = v->cos_f;   /* areas: cos_c, cos_f */
     double pot = 0, kin = 0, cross = 0, rot = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
+            /* the divergence times the cell's area (cos_c) */
             double div = ((double)hx[i] * u[i] - (double)hx[i - 1] * u[i - 1]) / dx
-                       + ((double)hy[i] * vv[i] - (double)hy[i - s] * vv[i - s]) / dy;
-            pot += (double)eta[i] * eta[i];
+                       + (cf[j] * hy[i] * vv[i] - cf[j - 1] * hy[i - s] * vv[i - s]) / dy;
+            pot += (double)eta[i] * eta[i] * cc[j];
             cross += eta[i] * div;
         }
     for (size_t j = 1; j <= ny; j++)   /* u: columns 0 (the west edge's faces) .. nx */
         for (size_t i = j * s + c0; i <= j * s + nx; i++) {
-            kin += (double)hx[i] * u[i] * u[i];
+            kin += (double)hx[i] * u[i] * u[i] * cc[j];
             double pair = 0;
             for (int q = 0; q < 2; q++) {
                 const size_t a = q ? i : i - s;   /* v on the line above, then below */
-                const double f = q ? ff[j] : ff[j - 1];
+                const double f = q ? ff[j] * cf[j] : ff[j - 1] * cf[j - 1];
                 pair += f * ((double)hy[a] * vv[a] + (double)hy[a + 1] * vv[a + 1]);
             }
             rot += u[i] * pair;
         }
     for (size_t j = r0; j <= ny; j++)   /* v: rows 0 (the south edge's faces) .. ny */
         for (size_t i = j * s + 1; i <= j * s + nx; i++)
-            kin += (double)hy[i] * vv[i] * vv[i];
+            kin += (double)hy[i] * vv[i] * vv[i] * cf[j];
     return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + dt / 8 * rot) * dx * dy;
 }
 

@@ -46,7 +46,7 @@ size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision, const sw_lay
     const size_t share_bytes = v != SW_TERMS_PLAIN && layout && layout->transport_weighted ? 2 * n_pad : 0;
     const size_t surface_bytes = terms && terms->surface ? 4 * n_pad * sizeof(float) : 0;
     return arrays * n_pad * size + share_bytes + surface_bytes + g->nx * g->ny + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell)
-         + 2 * (g->ny + 2) * sizeof(double);
+         + 4 * (g->ny + 2) * sizeof(double);   /* Coriolis rows and metric rows */
 }
 
 /* 64-byte aligned array of `rows` rows of `stride` values of `size` bytes, zeroed by the threads
@@ -98,18 +98,57 @@ static double deepest(const sw_grid *g, const double *depth_m, double min_depth_
     return h_max;
 }
 
+/* The smallest cos(latitude) a point of grid row j (-1 .. ny) reaches: over its centres and its south and
+ * north face lines (the layouts put velocities on all three); 1 on a projected grid. */
+static double row_cos_min(const sw_grid *g, ptrdiff_t j)
+{
+    const double ys = g->y0_m + (double)j * g->dy_m;
+    return fmin(sw_grid_cos_lat(g, ys + 0.5 * g->dy_m), fmin(sw_grid_cos_lat(g, ys), sw_grid_cos_lat(g, ys + g->dy_m)));
+}
+
+double sw_model_dt_limit_row(const sw_layout *layout, const sw_grid *g, const double *depth_m, double min_depth_m,
+                             double gravity_ms2, int dims, size_t *row)
+{
+    if (row)
+        *row = 0;
+    if (!sw_grid_geographic(g)) {
+        double h_max = deepest(g, depth_m, min_depth_m);
+        return h_max > 0.0 ? 2.0 / max_frequency_for(layout, g, gravity_ms2 * h_max, dims) : 0.0;
+    }
+    /* on the sphere each row has its own cell width: the limit is the least over rows of the limit for
+     * the row's deepest water on its narrowest width */
+    double best = 0.0;
+    for (size_t j = 0; j < g->ny; j++) {
+        double h = 0.0;
+        for (size_t i = 0; i < g->nx; i++) {
+            const double d = depth_m[j * g->nx + i];
+            if (d >= min_depth_m && d > h)
+                h = d;
+        }
+        if (h <= 0.0)
+            continue;
+        sw_grid narrow = *g;
+        narrow.dx_m = g->dx_m * row_cos_min(g, (ptrdiff_t)j);
+        const double dt = 2.0 / max_frequency_for(layout, &narrow, gravity_ms2 * h, dims);
+        if (best == 0.0 || dt < best) {
+            best = dt;
+            if (row)
+                *row = j;
+        }
+    }
+    return best;
+}
+
 double sw_model_dt_limit(const sw_layout *layout, const sw_grid *g, const double *depth_m,
                          double min_depth_m, double gravity_ms2, int dims)
 {
-    double h_max = deepest(g, depth_m, min_depth_m);
-    if (h_max <= 0.0)
-        return 0.0;
-    return 2.0 / max_frequency_for(layout, g, gravity_ms2 * h_max, dims);
+    return sw_model_dt_limit_row(layout, g, depth_m, min_depth_m, gravity_ms2, dims, NULL);
 }
 
 double sw_model_courant(const sw_grid *g, double h_max_m, double gravity_ms2, double dt_s)
 {
-    double d = g->dx_m < g->dy_m ? g->dx_m : g->dy_m;
+    const double dx = g->dx_m * sw_grid_cos_min(g);
+    double d = dx < g->dy_m ? dx : g->dy_m;
     return sqrt(gravity_ms2 * h_max_m) * dt_s / d;
 }
 
@@ -250,13 +289,26 @@ static sw_status check_config(const sw_model_config *cfg, sw_error *err)
     if (!cfg->layout || g->nx == 0 || g->ny == 0 || !(g->dx_m > 0) || !(g->dy_m > 0) || !(cfg->dt_s > 0)
         || !(cfg->gravity_ms2 > 0) || !(cfg->min_depth_m > 0))
         return sw_fail(err, SW_ERR_USAGE, "model: invalid configuration (layout, grid, dt, g or min_depth)");
+    if (sw_grid_geographic(g)) {
+        const double lim = SW_GRID_POLE_LIMIT_DEG * 3.14159265358979323846 / 180.0;
+        if (!(g->radius_m > 0) || !isfinite(g->radius_m))
+            return sw_fail(err, SW_ERR_USAGE, "model: a geographic grid needs a positive sphere radius");
+        if (!(fabs(g->y0_m - g->dy_m) / g->radius_m <= lim && fabs(g->y0_m + (double)(g->ny + 1) * g->dy_m) / g->radius_m <= lim))
+            return sw_fail(err, SW_ERR_RANGE, "model: the geographic grid reaches within %g degrees of a pole "
+                           "(its halo rows must stay within +-%g degrees: cos(latitude) goes to 0 there)",
+                           90.0 - SW_GRID_POLE_LIMIT_DEG, SW_GRID_POLE_LIMIT_DEG);
+    } else if (g->kind != SW_GRID_PROJECTED)
+        return sw_fail(err, SW_ERR_USAGE, "model: grid kind %d is not 0 (projected) or 1 (geographic)", (int)g->kind);
     if ((unsigned)cfg->precision >= SW_PRECISIONS || !cfg->layout->kernels[cfg->precision])
         return sw_fail(err, SW_ERR_USAGE, "model: precision %d is not one of 0 (double), 1 (single)",
                        (int)cfg->precision);
     const sw_terms_config *t = &cfg->terms;
-    if ((unsigned)t->rotation > SW_ROTATION_BETA_PLANE || (unsigned)t->friction > SW_FRICTION_MANNING)
+    if ((unsigned)t->rotation > SW_ROTATION_SPHERE || (unsigned)t->friction > SW_FRICTION_MANNING)
         return sw_fail(err, SW_ERR_USAGE, "model: unknown rotation (%d) or friction (%d) kind", (int)t->rotation,
                        (int)t->friction);
+    if ((t->rotation == SW_ROTATION_SPHERE) != sw_grid_geographic(g) && t->rotation != SW_ROTATION_NONE)
+        return sw_fail(err, SW_ERR_USAGE, "model: rotation on the sphere goes with a geographic grid, and only there "
+                       "(f-plane and beta-plane: projected grids)");
     if (t->rotation != SW_ROTATION_NONE && !(isfinite(t->f0_s) && isfinite(t->beta_ms) && isfinite(t->y_ref_m)))
         return sw_fail(err, SW_ERR_USAGE, "model: the Coriolis parameter, beta and y_ref must be finite");
     if ((t->friction == SW_FRICTION_LINEAR && !(t->friction_rate_ms > 0 && isfinite(t->friction_rate_ms)))
@@ -307,7 +359,7 @@ static sw_status build_edges(sw_model *m, sw_error *err)
                          : e == SW_SOUTH ? inner - m->stride : inner + m->stride;
             double h = sw_model_get(m, m->view.h, inner);
             double c = sqrt(m->g * h);
-            double r = c * m->dt / (along_x ? m->grid.dy_m : m->grid.dx_m);
+            double r = c * m->dt / (along_x ? m->grid.dy_m : m->grid.dx_m * m->view.cos_c[j + 1]);
             double sign = (e == SW_EAST || e == SW_NORTH) ? 1 : -1;
             int open = m->edges[e] == SW_EDGE_OPEN;
             sw_edge_cell *oc = &m->edge[m->n_edge++];
@@ -333,15 +385,8 @@ static sw_status build_terms(sw_model *m, sw_error *err)
     const sw_grid *g = &m->grid;
     for (size_t j = 0; j < g->ny + 2; j++) {
         const double yc = g->y0_m + ((double)j - 0.5) * g->dy_m, yf = g->y0_m + (double)j * g->dy_m;
-        double fc = 0, ff = 0;
-        if (c->rotation == SW_ROTATION_F_PLANE)
-            fc = ff = c->f0_s;
-        else if (c->rotation == SW_ROTATION_BETA_PLANE) {
-            fc = c->f0_s + c->beta_ms * (yc - c->y_ref_m);
-            ff = c->f0_s + c->beta_ms * (yf - c->y_ref_m);
-        }
-        m->f_rows[j] = fc;
-        m->f_rows[g->ny + 2 + j] = ff;
+        m->f_rows[j] = sw_terms_f_at(c, yc, g->radius_m);
+        m->f_rows[g->ny + 2 + j] = sw_terms_f_at(c, yf, g->radius_m);
     }
     m->terms.friction_rate_ms = c->friction == SW_FRICTION_LINEAR ? c->friction_rate_ms : 0;
     if (c->surface) {
@@ -396,7 +441,7 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     if (h_max <= 0.0)
         return sw_fail(err, SW_ERR_RANGE, "the domain has no water: every cell is shallower than min_depth = %g m",
                        cfg->min_depth_m);
-    const double f_max = sw_terms_f_max(&cfg->terms, g->y0_m, g->y0_m + (double)g->ny * g->dy_m);
+    const double f_max = sw_terms_f_max(&cfg->terms, g->y0_m, g->y0_m + (double)g->ny * g->dy_m, g->radius_m);
     double dt_max = sw_terms_dt_limit(sw_model_dt_limit(cfg->layout, g, cfg->depth_m, cfg->min_depth_m,
                                                         cfg->gravity_ms2, 2), f_max);
     if (cfg->dt_s > dt_max * (1.0 + 1e-12) && !cfg->allow_unstable) {
@@ -440,13 +485,20 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     v->hy = alloc_field(g->ny + 2, m->stride, size);
     m->wet = calloc(sw_grid_cells(g), 1);
     m->f_rows = calloc(2 * (g->ny + 2), sizeof *m->f_rows);
-    if (!v->eta || !v->u || !v->v || !v->h || !v->hx || !v->hy || !m->wet || !m->f_rows) {
+    m->metric = calloc(2 * (g->ny + 2), sizeof *m->metric);
+    if (!v->eta || !v->u || !v->v || !v->h || !v->hx || !v->hy || !m->wet || !m->f_rows || !m->metric) {
         sw_model_free(m);
         return sw_fail(err, SW_ERR_NOMEM, "out of memory: the model needs %zu MB for a %zu x %zu grid in %s precision",
                        sw_model_bytes_for(g, cfg->precision, cfg->layout, &cfg->terms) >> 20, g->nx, g->ny, sw_precision_name(cfg->precision));
     }
     m->terms.f_centre = m->f_rows;
     m->terms.f_face = m->f_rows + g->ny + 2;
+    for (size_t j = 0; j < g->ny + 2; j++) {   /* padded row j holds grid row j - 1 */
+        m->metric[j] = sw_grid_cos_lat(g, g->y0_m + ((double)j - 0.5) * g->dy_m);
+        m->metric[g->ny + 2 + j] = sw_grid_cos_lat(g, g->y0_m + (double)j * g->dy_m);
+    }
+    v->cos_c = m->metric;
+    v->cos_f = m->metric + g->ny + 2;
 
     for (size_t j = 0; j < g->ny; j++)
         for (size_t i = 0; i < g->nx; i++) {
@@ -522,6 +574,7 @@ void sw_model_free(sw_model *m)
     free(m->view.hy);
     free(m->wet);
     free(m->f_rows);
+    free(m->metric);
     free(m->drag);
     free(m->share);
     free(m->surface);
@@ -615,7 +668,7 @@ double sw_model_volume(const sw_model *m)
     double sum = 0.0, comp = 0.0;
     for (size_t j = 0; j < m->grid.ny; j++)
         for (size_t i = 0; i < m->grid.nx; i++) {
-            double x = sw_model_get(m, m->view.eta, sw_pidx(m, i, j));
+            double x = sw_model_get(m, m->view.eta, sw_pidx(m, i, j)) * m->view.cos_c[j + 1];   /* area */
             double t = sum + x;
             comp += fabs(sum) >= fabs(x) ? (sum - t) + x : (x - t) + sum;
             sum = t;

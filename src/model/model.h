@@ -2,6 +2,9 @@
  *
  * Solves the linear shallow-water equations on a Cartesian grid,
  *     d(eta)/dt + d(h u)/dx + d(h v)/dy = 0,      du/dt = -g d(eta)/dx,      dv/dt = -g d(eta)/dy,
+ * or on a geographic grid (grid.h: x = R lambda, y = R phi) the same on the sphere,
+ *     d(eta)/dt + [d(h u)/dx + d(h v cos(phi))/dy] / cos(phi) = 0,   du/dt = -g d(eta)/dx / cos(phi),
+ * with cos(phi) carried row by row (sw_view.cos_c, cos_f: no per-cell arrays),
  * with forward-backward stepping: eta is advanced first from the old velocities, then the
  * velocities from the new eta. Cells shallower than the minimum depth are land (walls: no flow
  * across their faces); each domain edge is a wall, open (a radiation condition), level (mean sea
@@ -61,11 +64,20 @@ typedef struct {
 } sw_model_config;
 
 /* The largest stable time step (s) for `layout` on the given depth field: 2 / max_frequency at the
- * deepest water cell. Returns 0 when there is no water cell. */
+ * deepest water cell (on a geographic grid the least over rows, sw_model_dt_limit_row). Returns 0 when
+ * there is no water cell. */
 double sw_model_dt_limit(const sw_layout *layout, const sw_grid *g, const double *depth_m,
                          double min_depth_m, double gravity_ms2, int dims);
 
-/* The Courant number of a time step: sqrt(g h_max) dt / min(dx, dy). */
+/* sw_model_dt_limit, and in *row (NULL: not wanted) the grid row where the limit is reached: on a
+ * geographic grid the row whose deepest water on its narrowest cells (dx cos(latitude)) allows the least
+ * step, often near the edge farthest from the equator; 0 on a projected grid (the limit is the deepest
+ * water's, wherever it is). */
+double sw_model_dt_limit_row(const sw_layout *layout, const sw_grid *g, const double *depth_m, double min_depth_m,
+                             double gravity_ms2, int dims, size_t *row);
+
+/* The Courant number of a time step: sqrt(g h_max) dt / min(dx, dy), dx the narrowest true cell width
+ * (sw_grid_cos_min on a geographic grid). */
 double sw_model_courant(const sw_grid *g, double h_max_m, double gravity_ms2, double dt_s);
 
 /* Creates a model whose initial state at t = 0 has elevation cfg->eta0_m and velocities cfg->u0_ms,

@@ -43,6 +43,7 @@ struct sw_model {
     sw_terms_config terms_cfg;   /* what was asked for */
     sw_terms terms;              /* what the kernels read (view.terms points here) */
     double *f_rows;              /* [2 (ny + 2)] owned: terms.f_centre, then terms.f_face */
+    double *metric;              /* [2 (ny + 2)] owned: view.cos_c, then view.cos_f (all 1 on a projected grid) */
     void *drag;                  /* [2 n_pad] owned: terms.drag_x, then drag_y (quadratic friction), or NULL */
     uint8_t *share;              /* [2 n_pad] owned: terms.share_x, then share_y (bytes; transport-weighted
                                   * layouts with terms), or NULL */

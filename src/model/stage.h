@@ -41,7 +41,15 @@ typedef struct sw_view {
     void *hx, *hy;        /* depth carried by each u and v point, m; 0 = no flow there */
     size_t nx, ny;        /* grid cells */
     size_t stride;        /* values between rows */
-    double dx_m, dy_m;    /* cell size, m */
+    double dx_m, dy_m;    /* cell size, m (geographic grids: on the equator and meridian, grid.h) */
+    const double *cos_c;  /* [ny + 2] the metric of padded row j's cell centres: cos(latitude) on a
+                           * geographic grid, 1 on a projected one. An x-derivative at a point of that
+                           * row divides by it, a y-flux through a face line is multiplied by the line's
+                           * (cos_f) and the divergence divided by the row's, and sums over cells weight
+                           * by it (areas): so volume is conserved to round-off on the sphere. Every
+                           * factor is exactly 1 on a projected grid, which keeps those steps' bits */
+    const double *cos_f;  /* [ny + 2] the same on the line between padded rows j and j + 1 (the north
+                           * faces and corners of row j) */
     double g;             /* gravity, m s-2 */
     double dt_s;          /* the step being taken, s (dt, or dt/2 for the start at rest) */
     const sw_terms *terms;/* rotation and friction; never NULL (all zero without terms) */
@@ -216,7 +224,10 @@ typedef struct {
     sw_real *eta;
     const sw_real *u, *v, *h, *hx, *hy;
     size_t s;             /* stride */
-    sw_real cx, cy;       /* the layout's continuity coefficients (dt / dx times its stencil weight) */
+    sw_real cx, cy;       /* the layout's continuity coefficients (dt / dx times its stencil weight), for
+                           * the row at hand: divided by its metric (sw_view.cos_c) */
+    sw_real wn, ws;       /* the metric of the row's north and south face lines (sw_view.cos_f), which
+                           * multiply the y-fluxes through them; 1 on a projected grid */
 } sw_cells;
 
 /* A layout's per-cell formulas, for sw_continuity_observed_loop: the new elevation of padded cell k, and

@@ -6,7 +6,8 @@
 
 const char *sw_rotation_name(sw_rotation_kind k)
 {
-    return k == SW_ROTATION_F_PLANE ? "f-plane" : k == SW_ROTATION_BETA_PLANE ? "beta-plane" : "none";
+    return k == SW_ROTATION_F_PLANE ? "f-plane" : k == SW_ROTATION_BETA_PLANE ? "beta-plane"
+         : k == SW_ROTATION_SPHERE ? "sphere" : "none";
 }
 
 const char *sw_friction_name(sw_friction_kind k)
@@ -23,6 +24,8 @@ void sw_terms_describe(const sw_terms_config *c, char *buf, size_t n)
     else if (c->rotation == SW_ROTATION_BETA_PLANE)
         snprintf(rot, sizeof rot, "rotation beta-plane (f = %.6g s-1 + %.6g m-1 s-1 (y - %.6g m))", c->f0_s,
                  c->beta_ms, c->y_ref_m);
+    else if (c->rotation == SW_ROTATION_SPHERE)
+        snprintf(rot, sizeof rot, "rotation sphere (f = 2 Omega sin(latitude))");
     if (c->friction == SW_FRICTION_LINEAR)
         snprintf(fric, sizeof fric, "friction linear (r = %.6g m/s)", c->friction_rate_ms);
     else if (c->friction == SW_FRICTION_QUADRATIC)
@@ -48,13 +51,23 @@ double sw_terms_stiff_depth(const sw_terms_config *c, double dt_s, double gravit
     return 0;
 }
 
-double sw_terms_f_max(const sw_terms_config *c, double y0_m, double y1_m)
+double sw_terms_f_at(const sw_terms_config *c, double y_m, double radius_m)
+{
+    switch (c->rotation) {
+    case SW_ROTATION_F_PLANE: return c->f0_s;
+    case SW_ROTATION_BETA_PLANE: return c->f0_s + c->beta_ms * (y_m - c->y_ref_m);
+    case SW_ROTATION_SPHERE: return radius_m > 0 ? 2 * SW_EARTH_OMEGA * sin(y_m / radius_m) : 0;
+    case SW_ROTATION_NONE: break;
+    }
+    return 0;
+}
+
+double sw_terms_f_max(const sw_terms_config *c, double y0_m, double y1_m, double radius_m)
 {
     if (c->rotation == SW_ROTATION_F_PLANE)
         return fabs(c->f0_s);
-    if (c->rotation != SW_ROTATION_BETA_PLANE)
-        return 0;
-    return fmax(fabs(c->f0_s + c->beta_ms * (y0_m - c->y_ref_m)), fabs(c->f0_s + c->beta_ms * (y1_m - c->y_ref_m)));
+    /* f is monotonic in y on the beta-plane and on the sphere within +-90 degrees: its ends bound it */
+    return fmax(fabs(sw_terms_f_at(c, y0_m, radius_m)), fabs(sw_terms_f_at(c, y1_m, radius_m)));
 }
 
 /* The bound comes from the rotating step's Q = P + F^2 w^2 - F w c^2 sx sy <= 4 (docs/stability.md) with

@@ -21,7 +21,8 @@
 typedef enum {
     SW_ROTATION_NONE = 0,   /* f = 0 */
     SW_ROTATION_F_PLANE,    /* f = f0 everywhere */
-    SW_ROTATION_BETA_PLANE  /* f = f0 + beta (y - y_ref) */
+    SW_ROTATION_BETA_PLANE, /* f = f0 + beta (y - y_ref) */
+    SW_ROTATION_SPHERE      /* f = 2 Omega sin(latitude), row by row: geographic grids only (grid.h) */
 } sw_rotation_kind;
 
 typedef enum {
@@ -121,9 +122,16 @@ const char *sw_friction_name(sw_friction_kind k);
  * (r = 0.002 m/s)" or "none", into buf (size n). For plans, JSON and the NetCDF globals. */
 void sw_terms_describe(const sw_terms_config *c, char *buf, size_t n);
 
+/* The Earth's rotation rate Omega, rad/s (sidereal day; docs/references.md). */
+#define SW_EARTH_OMEGA 7.2921159e-5
+
+/* The Coriolis parameter (s-1) at model y (m): f0, f0 + beta (y - y_ref), or on the sphere 2 Omega
+ * sin(y / radius_m) (radius_m: the geographic grid's; unused otherwise); 0 without rotation. */
+double sw_terms_f_at(const sw_terms_config *c, double y_m, double radius_m);
+
 /* The largest |f| (s-1) over a domain whose rows span y0_m .. y1_m (m): |f0| on the f-plane, the larger
- * end of the beta-plane; 0 without rotation. */
-double sw_terms_f_max(const sw_terms_config *c, double y0_m, double y1_m);
+ * end of the beta-plane or of the sphere (radius_m as for sw_terms_f_at); 0 without rotation. */
+double sw_terms_f_max(const sw_terms_config *c, double y0_m, double y1_m, double radius_m);
 
 /* The largest stable time step (s) with rotation, from the one without, dt0_s, and the largest |f|:
  * dt0 sqrt((1 - F^2 / 4) / (1 + |F| / 2)), F = f_max dt, solved for dt. The factor bounds the Courant

@@ -117,7 +117,7 @@ sw_status sw_setup_derive(const sw_scenario *sc, sw_setup *s, const char *change
     s->dims = (g->nx == 1 || g->ny == 1) ? 1 : 2;
     s->dt_limit_s = sw_model_dt_limit(s->layout, g, s->depth_m, sc->min_depth_m, sc->gravity_ms2, s->dims);
     /* rotation lowers the limit a little (docs/terms.md): f dt = 1e-3 takes 0.03 % off */
-    const double f_max = sw_terms_f_max(&sc->terms, g->y0_m, g->y0_m + (double)g->ny * g->dy_m);
+    const double f_max = sw_terms_f_max(&sc->terms, g->y0_m, g->y0_m + (double)g->ny * g->dy_m, g->radius_m);
     s->dt_limit_s = sw_terms_dt_limit(s->dt_limit_s, f_max);
     s->courant_limit = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_limit_s);
     if (sc->dt_s > 0) {

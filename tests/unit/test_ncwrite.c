@@ -415,7 +415,7 @@ static void test_gauges_refuse_bad_tables(void **state)
 /* ---- maps ------------------------------------------------------------------------------- */
 
 enum { MNX = 5, MNY = 3, MN = MNX * MNY };
-static const sw_grid M_GRID = {MNX, MNY, 1000.0, 2000.0, -500.0, 10000.0};
+static const sw_grid M_GRID = {.nx = MNX, .ny = MNY, .dx_m = 1000.0, .dy_m = 2000.0, .x0_m = -500.0, .y0_m = 10000.0};
 
 typedef struct {
     double depth[MN], eta_max[MN], eta_min[MN], arrival[MN], max_time[MN], speed[MN];

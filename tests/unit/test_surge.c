@@ -53,7 +53,7 @@ static sw_model *make(const char *layout, size_t nx, size_t ny, double d, double
     sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta0, .min_depth_m = 1,
                            .gravity_ms2 = G, .terms = terms, .edge_level_m = start_level};
     memcpy(cfg.edges, edges, sizeof cfg.edges);
-    const double f = sw_terms_f_max(&terms, 0, (double)ny * d);
+    const double f = sw_terms_f_max(&terms, 0, (double)ny * d, 0);
     cfg.dt_s = courant * sw_terms_dt_limit(sw_model_dt_limit(lay, &g, depth, 1, G, 2), f);
     sw_model *m = NULL;
     sw_error err = {0};
