@@ -193,6 +193,10 @@ typedef struct {
     char bed_variable[SW_NAME_MAX]; /* default "depth" */
     sw_positive bed_positive; /* UNSET = read the variable's `positive` attribute */
     int bed_line;             /* line of `file` (or of the section) */
+    int bed_missing_land;     /* [seabed] missing: 1 = land: a missing value (_FillValue, missing_value, NaN) in
+                               * the file is land; 0 = an error naming it (default) */
+    char bed_land_mask[SW_NAME_MAX]; /* [seabed] land_mask: a variable of the seabed file on its axes whose
+                               * nonzero cells are land; "" = none */
     double deep_m;            /* recipe: offshore depth, m (> 0); required without a file */
     sw_coast_side coast;      /* recipe: side the land is on; default none (flat floor) */
     double shoreline_m;       /* recipe: x (coast west/east) or y (south/north) of the mean shoreline, m */

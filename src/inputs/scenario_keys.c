@@ -22,6 +22,7 @@ static const char *const ROTATION_WORDS[] = { "none", "f-plane", "beta-plane", N
 static const char *const FRICTION_WORDS[] = { "none", "linear", "quadratic", "manning", NULL }; /* sw_friction_kind */
 const char *const scn_coast_words[] = { "none", "west", "east", "south", "north", NULL };    /* sw_coast_side */
 static const char *const POSITIVE_WORDS[] = { "down", "up", NULL };                        /* from SW_POSITIVE_DOWN */
+static const char *const MISSING_WORDS[] = { "error", "land", NULL };                      /* bed_missing_land 0, 1 */
 const char *const scn_shape_words[] = { "hump", "ellipse", "pair", "file", NULL };          /* sw_source_shape */
 static const char *const PRECISION_WORDS[] = { "double", "single", NULL };                 /* sw_precision */
 static const char *const DRAG_WORDS[] = { "large-pond", "wu", "garratt", NULL };           /* sw_drag_law */
@@ -152,6 +153,10 @@ static const key_def SEABED_KEYS[] = {
     { .name = "variable", TEXT_SC(bed_variable), .dflt = "depth", .only = BED_FILE, .accepted = "a variable name" },
     { .name = "positive", .kind = K_CHOICE, SC(bed_positive), .words = POSITIVE_WORDS, .first = SW_POSITIVE_DOWN,
       .only = BED_FILE, .accepted = "down (depth), up (elevation)" },
+    { .name = "missing", .kind = K_CHOICE, SC(bed_missing_land), .words = MISSING_WORDS, .dflt = "error",
+      .only = BED_FILE, .accepted = "error (a missing or NaN value stops the run), land (it marks land)" },
+    { .name = "land_mask", TEXT_SC(bed_land_mask), .only = BED_FILE,
+      .accepted = "a variable of the seabed file on the same axes, nonzero (or 1 with flag_values) = land" },
     { .name = "deep", .kind = K_LENGTH, SC(deep_m), ABOVE(0, 12 * KM), .required = 1, .only = BED_RECIPE,
       .accepted = "0 < deep <= 12 km" },
     { .name = "coast", .kind = K_CHOICE, SC(coast), .words = scn_coast_words, .dflt = "none", .only = BED_RECIPE,
