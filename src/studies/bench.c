@@ -103,11 +103,14 @@ static const sw_terms_config BENCH_TERMS = {.rotation = SW_ROTATION_F_PLANE, .f0
                                             .friction = SW_FRICTION_LINEAR, .friction_rate_ms = 1e-3};
 
 /* A square basin of n x n cells, 1000 m deep, with a hump, at 90 % of the layout's limit, with the given
- * terms (NULL: none). */
-static sw_model *make_model(const sw_layout *lay, size_t n, sw_precision precision, const sw_terms_config *terms,
-                            sw_error *err)
+ * terms (NULL: none); on a geographic grid (1000 m of arc a cell, from 10 N) when `geographic`. */
+static sw_model *make_model_on(const sw_layout *lay, size_t n, sw_precision precision, const sw_terms_config *terms,
+                               int geographic, sw_error *err)
 {
     sw_grid g = {.nx = n, .ny = n, .dx_m = 1000, .dy_m = 1000};
+    if (geographic)   /* the same cells in arc metres (grid.h), from 10 N poleward */
+        g = (sw_grid){.nx = n, .ny = n, .dx_m = 1000, .dy_m = 1000, .y0_m = SW_EARTH_RADIUS_M * 10 * 3.14159265358979 / 180,
+                      .kind = SW_GRID_GEOGRAPHIC, .radius_m = SW_EARTH_RADIUS_M};
     double *depth = malloc(n * n * sizeof(double));
     double *eta = malloc(n * n * sizeof(double));
     sw_model *m = NULL;
@@ -131,6 +134,12 @@ static sw_model *make_model(const sw_layout *lay, size_t n, sw_precision precisi
     free(depth);
     free(eta);
     return m;
+}
+
+static sw_model *make_model(const sw_layout *lay, size_t n, sw_precision precision, const sw_terms_config *terms,
+                            sw_error *err)
+{
+    return make_model_on(lay, n, precision, terms, 0, err);
 }
 
 /* Seconds for `steps` steps as a run takes them (step, then the clock's tick), with arrival and
@@ -231,6 +240,9 @@ static void bench_forcing(const sw_bench_options *opt, const sw_layout *lay, sw_
                           sw_bench_layout *out);
 
 /* All figures of one layout, interleaved with triad. */
+static void bench_geographic(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, sw_model *big,
+                             sw_bench_layout *out);
+
 static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res,
                               sw_bench_layout *out, sw_error *err)
 {
@@ -339,6 +351,7 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
     sw_model_free(big_terms);
     sw_model_free(small);
     bench_forcing(opt, lay, res, big, out);   /* after big_terms is freed: the forced model takes its room */
+    bench_geographic(opt, lay, res, big, out);
     sw_model_free(big);
     return SW_OK;
 }
@@ -524,6 +537,39 @@ static void bench_forcing(const sw_bench_options *opt, const sw_layout *lay, sw_
     forcing_files_free(&ff);
 }
 
+/* The geographic figure of one layout: a geographic model of the large grid's size, stepped in PAIRS
+ * slices per round taken turn about with the plain (projected) model. */
+static void bench_geographic(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, sw_model *big,
+                             sw_bench_layout *out)
+{
+    const int top = res->threads[res->n_threads - 1];
+    const double cells = (double)res->n_large * (double)res->n_large;
+    sw_model *geo = make_model_on(lay, res->n_large, opt->precision, NULL, 1, NULL);
+    if (!geo)
+        return;
+    char what[128];
+    const int slice = steps_for(big, top);
+    samples ge = {0}, rg = {0};
+    for (int r = 0; r < opt->rounds; r++) {
+        snprintf(what, sizeof what, "layout %s: geographic round %d of %d", lay->name, r + 1, opt->rounds);
+        say(opt, what);
+        double t_plain = 0, t_geo = 0;
+        for (int q = 0; q < PAIRS; q++) {
+            const int later = (r + q) % 2;
+            if (later)
+                t_geo += time_steps(geo, NULL, top, slice);
+            t_plain += time_steps(big, NULL, top, slice);
+            if (!later)
+                t_geo += time_steps(geo, NULL, top, slice);
+        }
+        push(&ge, cells * slice * PAIRS / t_geo);
+        push(&rg, t_plain / t_geo);
+    }
+    out->large_geographic = summarise(&ge);
+    out->geographic_ratio = summarise(&rg).median;
+    sw_model_free(geo);
+}
+
 /* 1 when the layout letters in `letters` (any case, as in sw_bench_options.layouts) name lay. */
 static int selected(const char *letters, const sw_layout *lay)
 {
@@ -630,6 +676,12 @@ void sw_bench_print(FILE *f, const sw_bench_result *res)
                     1e9 * l->storm_build_s / ((double)res->n_large * (double)res->n_large), l->storm_steps_per_build);
         } else
             fprintf(f, "  surface forcing: not measured (no memory for the forced model, or no scratch folder)\n");
+        if (l->large_geographic.n) {
+            print_stat(f, "step, geographic grid, large", l->large_geographic, 1e6, "M cell-updates/s");
+            fprintf(f, "  geographic grid: its step costs %.3f x the projected step's (median of the rounds' ratios)\n",
+                    l->geographic_ratio > 0 ? 1 / l->geographic_ratio : 0);
+        } else
+            fprintf(f, "  geographic grid: not measured (no memory for the geographic model)\n");
     }
     if (res->numpy.n > 0)
         fprintf(f, "\nNumPy C-layout step: %.3g M cell-updates/s; shoreward C in the same rounds %.3g M: %.1f x\n",
@@ -685,6 +737,8 @@ char *sw_bench_json(const sw_bench_result *res)
         cJSON_AddItemToObject(e, "large_weather", stat_json(l->large_weather));
         cJSON_AddItemToObject(e, "large_forced", stat_json(l->large_forced));
         cJSON_AddNumberToObject(e, "storm_ratio", l->storm_ratio);
+        cJSON_AddItemToObject(e, "large_geographic", stat_json(l->large_geographic));
+        cJSON_AddNumberToObject(e, "geographic_cost_ratio", l->geographic_ratio > 0 ? 1 / l->geographic_ratio : 0);
         cJSON_AddNumberToObject(e, "weather_ratio", l->weather_ratio);
         cJSON_AddNumberToObject(e, "forced_ratio", l->forced_ratio);
         cJSON_AddNumberToObject(e, "storm_build_s", l->storm_build_s);

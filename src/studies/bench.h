@@ -68,6 +68,11 @@ typedef struct {
     double storm_ratio, weather_ratio, forced_ratio; /* medians of the rounds' ratios to the plain step */
     double storm_build_s;       /* one storm slab built on the large grid, s (median) */
     double storm_steps_per_build; /* steps between storm slab builds (update / dt) */
+    /* A geographic grid of the same size (10 .. about 50 N, rotation on the sphere off), in rounds of its
+     * own with the plain step measured again beside it; n = 0 when it did not fit in memory: */
+    sw_bench_stat large_geographic; /* the geographic step, large grid */
+    double geographic_ratio;    /* median over rounds of (projected step time / geographic step time): the
+                                 * geographic step's cost is 1 / this of the projected one's */
 } sw_bench_layout;
 
 typedef struct {

@@ -36,6 +36,9 @@ for lay in doc["layouts"]:
                                        "storm_steps_per_build")),
           "layout %s: the steps with a storm, a weather file and held slabs measured beside the plain one"
           % lay["layout"])
+    check(lay["large_geographic"]["n"] == 3 and lay["large_geographic"]["median"] > 0
+          and lay["geographic_cost_ratio"] > 0,
+          "layout %s: the step on a geographic grid measured beside the projected one" % lay["layout"])
     if lay["layout"] == "C":
         # the pre-stepper C step kept in bench_reference.c must compute what the stepper computes
         check(lay["reference"]["median"] > 0 and lay["reference_ratio"] > 0 and lay["reference_identical"] is True,
