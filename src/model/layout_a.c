@@ -64,21 +64,15 @@ SW_INLINE void a_centre_cell(const sw_cells *c, size_t k, size_t i, size_t j, fl
     *vc = (float)c->v[k];
 }
 
-static sw_cells a_cells(const sw_view *v)
-{
-    return (sw_cells){SW_V(v, eta), SW_V(v, u), SW_V(v, v), SW_V(v, h), SW_V(v, hx), SW_V(v, hy), v->stride,
-                      (sw_real)(0.5 * v->dt_s / v->dx_m), (sw_real)(0.5 * v->dt_s / v->dy_m), 1, 1};
-}
-
 static void a_continuity(const sw_view *v, size_t j)
 {
-    const sw_cells c = a_cells(v);
+    const sw_cells c = sw_colocated_cells(v, j);
     sw_continuity_loop(&c, j * v->stride + 1, v->nx, sw_colocated_eta_cell);
 }
 
 static void a_continuity_observed(const sw_view *v, size_t j, size_t f, float *buf)
 {
-    const sw_cells c = a_cells(v);
+    const sw_cells c = sw_colocated_cells(v, j);
     sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, sw_colocated_eta_cell, a_centre_cell);
 }
 
@@ -114,7 +108,7 @@ static void a_centre_row(const sw_view *v, size_t j, double *eta, double *u, dou
 
 static void a_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, float *vel)
 {
-    const sw_cells c = a_cells(v);
+    const sw_cells c = sw_colocated_cells(v, j + 1);
     sw_centre_loop(&c, j, v->nx, eta, u, vel, a_centre_cell);
 }
 
@@ -125,7 +119,8 @@ static void a_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 }
 #endif
 
-/* E* (layout.h), each point standing for dx dy, with the rotation share (colocated.h). */
+/* E* (layout.h), each point standing for dx dy (cos_c dx dy on the sphere), with the rotation share
+ * (colocated.h). */
 static double a_energy(const sw_view *v)
 {
     return sw_colocated_energy_sum(v) * v->dx_m * v->dy_m;

@@ -36,6 +36,14 @@
  * Dry cells: a wall corner's flux also reaches the dry cells of its stencil; the continuity step
  * keeps every dry cell at eta = 0 (it reads h), so volume counts water cells only.
  *
+ * On a geographic grid (x = R lambda, y = R phi; sw_view.cos_c, cos_f the cos(latitude) of a padded row's
+ * centres and of the corner line north of it) the areas are cos dx dy: a centre's of its row, a
+ * corner's of its line. Continuity is the flux form over the cell, x-fluxes through faces dy long and
+ * y-fluxes through faces dx cos_f long, divided by the cell's area; the corner's x-gradient divides by
+ * its line's cos_f, its y-gradient needs none: so G = -D^T still holds under the area-weighted sums and
+ * volume and E* stay exact. u and v share the corner and its area, so the rotation pair f H needs no
+ * area ratio. Every factor is exactly 1 on a projected grid (the same bits as without them).
+ *
  * Semi-discrete frequency (a = k dx/2, b = l dy/2):
  *   omega^2 = 4 g h (sin^2 a cos^2 b / dx^2 + cos^2 a sin^2 b / dy^2),
  * bilinear in sin^2 a and sin^2 b, so its maximum is at a corner of the square: the 2-cell wave along
@@ -122,8 +130,11 @@ SW_INLINE sw_real b_eta_cell(const sw_cells *c, size_t k)
 {
     const size_t s = c->s;
     const sw_real *hx = c->hx, *hy = c->hy, *u = c->u, *v = c->v;
+    /* the y-fluxes times their corner line's metric, summed in the order of the projected formula
+     * (((n0 + n1) - s0) - s1), so that with wn = ws = 1 the bits are those without the metric */
     return c->h[k] > 0 ? c->eta[k] - c->cx * (hx[k] * u[k] + hx[k - s] * u[k - s] - hx[k - 1] * u[k - 1] - hx[k - s - 1] * u[k - s - 1])
-                                   - c->cy * (hy[k] * v[k] + hy[k - 1] * v[k - 1] - hy[k - s] * v[k - s] - hy[k - s - 1] * v[k - s - 1])
+                                   - c->cy * (c->wn * (hy[k] * v[k] + hy[k - 1] * v[k - 1]) - c->ws * (hy[k - s] * v[k - s])
+                                              - c->ws * (hy[k - s - 1] * v[k - s - 1]))
                        : 0;
 }
 
@@ -142,36 +153,43 @@ SW_INLINE void b_centre_cell(const sw_cells *c, size_t k, size_t i, size_t j, fl
     *vc = (float)((hy[k] * v[k] + hy[k - 1] * v[k - 1] + hy[k - s] * v[k - s] + hy[k - s - 1] * v[k - s - 1]) * w);
 }
 
-static sw_cells b_cells(const sw_view *v)
+/* The arrays and coefficients of continuity on padded row j: dt / (2 dx) and dt / (2 dy) over the row's
+ * metric, and the metric of the corner lines north (j) and south (j - 1) of it, which multiply the
+ * y-fluxes (all 1 on a projected grid, exactly: the same bits). */
+static sw_cells b_cells(const sw_view *v, size_t j)
 {
+    const double m = v->cos_c[j];
     return (sw_cells){SW_V(v, eta), SW_V(v, u), SW_V(v, v), SW_V(v, h), SW_V(v, hx), SW_V(v, hy), v->stride,
-                      (sw_real)(0.5 * v->dt_s / v->dx_m), (sw_real)(0.5 * v->dt_s / v->dy_m), 1, 1};
+                      (sw_real)(0.5 * v->dt_s / (v->dx_m * m)), (sw_real)(0.5 * v->dt_s / (v->dy_m * m)),
+                      (sw_real)v->cos_f[j], (sw_real)v->cos_f[j - 1]};
 }
 
 static void b_continuity(const sw_view *v, size_t j)
 {
-    const sw_cells c = b_cells(v);
+    const sw_cells c = b_cells(v, j);
     sw_continuity_loop(&c, j * v->stride + 1, v->nx, b_eta_cell);
 }
 
 static void b_continuity_observed(const sw_view *v, size_t j, size_t f, float *buf)
 {
-    const sw_cells c = b_cells(v);
+    const sw_cells c = b_cells(v, j);
     sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, b_eta_cell, b_centre_cell);
 }
 
 static void b_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, float *vel)
 {
-    const sw_cells c = b_cells(v);
+    const sw_cells c = b_cells(v, j + 1);   /* grid row j; the centre values use no coefficient */
     sw_centre_loop(&c, j, v->nx, eta, u, vel, b_centre_cell);
 }
 
-/* Momentum (backward) on corner row j (columns 0..nx): from the new eta of cell rows j and j+1. */
+/* Momentum (backward) on corner row j (columns 0..nx): from the new eta of cell rows j and j+1. The
+ * x-gradient divides by the corner line's metric cos_f[j] (1 on a projected grid). */
 SW_INLINE void b_momentum_plain(const sw_view *v, size_t j, const int forced)
 {
     sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
-    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
+    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / (v->dx_m * v->cos_f[j]));
+    const sw_real gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
     const size_t s = v->stride, r = j * s;
     const float *restrict ax0 = forced ? v->terms->surface_x[0] : NULL, *restrict ax1 = forced ? v->terms->surface_x[1] : NULL;
     const float *restrict ay0 = forced ? v->terms->surface_y[0] : NULL, *restrict ay1 = forced ? v->terms->surface_y[1] : NULL;
@@ -190,7 +208,9 @@ SW_INLINE void b_momentum_plain(const sw_view *v, size_t j, const int forced)
  * stored pair is the rotation of the velocity). The corners store f * velocity with hx = h / f, so the friction rate
  * r / h of the velocity is that of the stored value when rho carries 1 / f (share): rho = dt r / f, and
  * for quadratic friction, |velocity| = |stored| / f, rho = dt Cd |stored| / f^2. u and v of a corner
- * have one f, read from share_x (the byte 3 / f: the thirds are folded into rho0 and dtc). */
+ * have one f, read from share_x (the byte 3 / f: the thirds are folded into rho0 and dtc). On a
+ * geographic grid the x-gradient divides by cos_f[j] as in the plain kernel; u and v stand for the same
+ * area (the corner's), so the rotation pair needs no area ratio and still does no work. */
 SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag, const int forced)
 {
     sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
@@ -198,7 +218,8 @@ SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag, cons
     const sw_real *restrict cdx = drag ? (const sw_real *)v->terms->drag_x : NULL;
     const sw_real *restrict cdy = drag ? (const sw_real *)v->terms->drag_y : NULL;
     const uint8_t *restrict sh = v->terms->share_x;   /* 3 / f of the corner, for u and v alike */
-    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
+    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / (v->dx_m * v->cos_f[j]));
+    const sw_real gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
     const sw_real F = (sw_real)(v->dt_s * v->terms->f_face[j]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
     const float *restrict ax0 = forced ? v->terms->surface_x[0] : NULL, *restrict ax1 = forced ? v->terms->surface_x[1] : NULL;
@@ -264,26 +285,30 @@ static void b_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 #endif
 
 /* E* (layout.h), corners counted once (a periodic edge's halo copy left out), with the rotation share
- * (dt/2) f hx u v at each corner. */
+ * (dt/2) f hx u v at each corner. Every sum weights by the area of its points (cos_c of centre rows,
+ * cos_f of corner lines; 1 on a projected grid, exactly). */
 static double b_energy(const sw_view *v)
 {
     const size_t nx = v->nx, ny = v->ny, s = v->stride, c0 = sw_first_col(v), r0 = sw_first_row(v);
     const double dx = v->dx_m, dy = v->dy_m, dt = v->dt_s;
     const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
+    const double *cc = v->cos_c, *cf = v->cos_f;   /* areas: cos_c, cos_f */
     double pot = 0, kin = 0, cross = 0, rot = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
+            /* the divergence times the cell's area (cos_c): the y-fluxes times their line's cos_f */
             double div = ((double)hx[i] * u[i] + (double)hx[i - s] * u[i - s] - (double)hx[i - 1] * u[i - 1]
                           - (double)hx[i - s - 1] * u[i - s - 1]) / (2 * dx)
-                       + ((double)hy[i] * vv[i] + (double)hy[i - 1] * vv[i - 1] - (double)hy[i - s] * vv[i - s]
-                          - (double)hy[i - s - 1] * vv[i - s - 1]) / (2 * dy);
-            pot += (double)eta[i] * eta[i];
+                       + (cf[j] * ((double)hy[i] * vv[i] + (double)hy[i - 1] * vv[i - 1])
+                          - cf[j - 1] * ((double)hy[i - s] * vv[i - s]) - cf[j - 1] * ((double)hy[i - s - 1] * vv[i - s - 1]))
+                         / (2 * dy);
+            pot += (double)eta[i] * eta[i] * cc[j];
             cross += eta[i] * div;
         }
     for (size_t j = r0; j <= ny; j++)
         for (size_t i = j * s + c0; i <= j * s + nx; i++) {
-            kin += (double)hx[i] * u[i] * u[i] + (double)hy[i] * vv[i] * vv[i];
-            rot += v->terms->f_face[j] * hx[i] * u[i] * vv[i];
+            kin += ((double)hx[i] * u[i] * u[i] + (double)hy[i] * vv[i] * vv[i]) * cf[j];
+            rot += v->terms->f_face[j] * hx[i] * u[i] * vv[i] * cf[j];
         }
     return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + 0.5 * dt * rot) * dx * dy;
 }

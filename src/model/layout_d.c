@@ -52,6 +52,13 @@
  * sqrt(32/27) sqrt(g h) / dx at sin^2 a = sin^2 b = 1/3, Courant limit sqrt(27/8) = 1.8371 in 2D;
  * in a channel omega_max = sqrt(g h) / dx (the 4-cell wave), limit 2.
  * Spurious modes: every 2-cell wave along x (a = pi/2, any b) or along y has omega = 0.
+ *
+ * Geographic grids (sw_view.cos_c, cos_f; x = R lambda, y = R phi): eta and v lie on centre rows (area
+ * cos_c[j] dx dy), u on face lines (area cos_f[j] dx dy). G(eta)_x at u on line j divides by cos_f[j];
+ * the continuity of row j divides by cos_c[j] and multiplies each y-flux H by the cos_c of the row
+ * it lies on (j - 1 or j + 1), so D is still -G^T in the area-weighted sums: volume and E* exact. The
+ * u equation's rotation scales each v row's transport by cos_c / cos_f (areas), v's is unchanged.
+ * On a projected grid every factor is 1.0 and the arithmetic is bit for bit the plane's.
  */
 #include <math.h>
 #include <stddef.h>
@@ -176,15 +183,17 @@ static void d_initial_velocity(sw_prep *p, const double *uc, const double *vc)
 }
 
 /* The new elevation of cell k: continuity from the old velocities; a wall velocity also feeds the dry
- * cells of its stencil, which must stay at 0 (the one formula of both kernels). */
+ * cells of its stencil, which must stay at 0 (the one formula of both kernels). The y-fluxes of the rows
+ * north and south are weighted by those rows' metric (wn, ws), grouped so that with factors of 1.0 the
+ * sum is the plane's, operation for operation. */
 SW_INLINE sw_real d_eta_cell(const sw_cells *c, size_t k)
 {
     const size_t s = c->s;
     const sw_real *hx = c->hx, *hy = c->hy, *u = c->u, *v = c->v;
     return c->h[k] > 0 ? c->eta[k] - c->cx * (hx[k + 1] * u[k + 1] + hx[k + 1 - s] * u[k + 1 - s] - hx[k - 1] * u[k - 1]
                                               - hx[k - 1 - s] * u[k - 1 - s])
-                                   - c->cy * (hy[k + s] * v[k + s] + hy[k + s - 1] * v[k + s - 1] - hy[k - s] * v[k - s]
-                                              - hy[k - s - 1] * v[k - s - 1])
+                                   - c->cy * (c->wn * (hy[k + s] * v[k + s] + hy[k + s - 1] * v[k + s - 1])
+                                              - c->ws * (hy[k - s] * v[k - s]) - c->ws * (hy[k - s - 1] * v[k - s - 1]))
                        : 0;
 }
 
@@ -203,36 +212,42 @@ SW_INLINE void d_centre_cell(const sw_cells *c, size_t k, size_t i, size_t j, fl
     *vc = (float)((hy[k] * v[k] + hy[k - 1] * v[k - 1]) * w);
 }
 
-static sw_cells d_cells(const sw_view *v)
+/* The arrays and coefficients of continuity on padded row j: dt / (4 dx) and dt / (4 dy) over the row's
+ * metric, and the metric of the rows north and south, where the y-fluxes it reads lie (v is on centre
+ * rows on this layout, so wn, ws are cos_c[j + 1], cos_c[j - 1]). All 1 on a projected grid. */
+static sw_cells d_cells(const sw_view *v, size_t j)
 {
+    const double m = v->cos_c[j];
     return (sw_cells){SW_V(v, eta), SW_V(v, u), SW_V(v, v), SW_V(v, h), SW_V(v, hx), SW_V(v, hy), v->stride,
-                      (sw_real)(0.25 * v->dt_s / v->dx_m), (sw_real)(0.25 * v->dt_s / v->dy_m), 1, 1};
+                      (sw_real)(0.25 * v->dt_s / (v->dx_m * m)), (sw_real)(0.25 * v->dt_s / (v->dy_m * m)),
+                      (sw_real)v->cos_c[j + 1], (sw_real)v->cos_c[j - 1]};
 }
 
 static void d_continuity(const sw_view *v, size_t j)
 {
-    const sw_cells c = d_cells(v);
+    const sw_cells c = d_cells(v, j);
     sw_continuity_loop(&c, j * v->stride + 1, v->nx, d_eta_cell);
 }
 
 static void d_continuity_observed(const sw_view *v, size_t j, size_t f, float *buf)
 {
-    const sw_cells c = d_cells(v);
+    const sw_cells c = d_cells(v, j);
     sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, d_eta_cell, d_centre_cell);
 }
 
 static void d_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, float *vel)
 {
-    const sw_cells c = d_cells(v);
+    const sw_cells c = d_cells(v, j + 1);
     sw_centre_loop(&c, j, v->nx, eta, u, vel, d_centre_cell);
 }
 
-/* u on the north faces of padded row j (row 0: the south edge's), from the new eta of rows j and j+1. */
+/* u on the north faces of padded row j (row 0: the south edge's), from the new eta of rows j and j+1;
+ * the x-derivative on the face line j divides by its metric cos_f[j]. */
 SW_INLINE void d_u_plain(const sw_view *v, size_t j, const int forced)
 {
     sw_real *restrict u = SW_V(v, u);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx);
-    const sw_real gx = (sw_real)(0.25 * v->g * v->dt_s / v->dx_m);
+    const sw_real gx = (sw_real)(0.25 * v->g * v->dt_s / (v->dx_m * v->cos_f[j]));
     const size_t s = v->stride, r = j * s;
     const float *restrict a0 = forced ? v->terms->surface_x[0] : NULL, *restrict a1 = forced ? v->terms->surface_x[1] : NULL;
     const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
@@ -265,15 +280,20 @@ SW_INLINE void d_v_plain(const sw_view *v, size_t j, const int forced)
  * row j (east faces) from the plain average of the new u on the two north faces of row j (line j) and the
  * two of row j-1 (line j-1), rot = (F / 2) hy sum u, F on each line. One weight matrix K = (f / 4) hy
  * and its transpose: rotation does no work on any depth. Friction carries 1 / f (share) as on the B layout
- * (layout_b.c), since the faces store f * velocity with hx = h / f. */
+ * (layout_b.c), since the faces store f * velocity with hx = h / f. On a geographic grid the pair weights
+ * carry the areas the points stand for: the u equation takes row j's v transport times cos_c[j] / cos_f[j]
+ * and row j+1's times cos_c[j+1] / cos_f[j] (written as q times qr, the ratio of the rows, 1.0 on a plane, so
+ * the plane's sum is unchanged), so that K stays symmetric under the area-weighted sum. */
 SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag, const int forced)
 {
     sw_real *restrict u = SW_V(v, u);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
     const sw_real *restrict vv = SW_V(v, v), *restrict cd = drag ? (const sw_real *)v->terms->drag_x : NULL;
     const uint8_t *restrict sh = v->terms->share_x;   /* 3 / f */
-    const sw_real gx = (sw_real)(0.25 * v->g * v->dt_s / v->dx_m);
-    const sw_real q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]);
+    const sw_real gx = (sw_real)(0.25 * v->g * v->dt_s / (v->dx_m * v->cos_f[j]));
+    /* v of row j and row j+1 stand for areas cos_c of those rows against u's cos_f of line j */
+    const sw_real q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j] * (v->cos_c[j] / v->cos_f[j]));
+    const sw_real qr = (sw_real)(v->cos_c[j + 1] / v->cos_c[j]);
     const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
     const float *restrict a0 = forced ? v->terms->surface_x[0] : NULL, *restrict a1 = forced ? v->terms->surface_x[1] : NULL;
     const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
@@ -281,7 +301,7 @@ SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag, const int f
     SW_OMP(simd)
     for (size_t i = r + 1; i <= r + v->nx; i++) {
         const sw_real w0 = vv[i - 1], w1 = vv[i], n0 = vv[i + s - 1], n1 = vv[i + s];
-        const sw_real rot = q * (hy[i - 1] * w0 + hy[i] * w1 + hy[i + s - 1] * n0 + hy[i + s] * n1);
+        const sw_real rot = q * (hy[i - 1] * w0 + hy[i] * w1 + qr * (hy[i + s - 1] * n0) + qr * (hy[i + s] * n1));
         const sw_real c = (sw_real)sh[i];
         sw_real rho = rho0 * c;
         if (drag) {
@@ -336,12 +356,12 @@ static void d_u_forced_drag(const sw_view *v, size_t j) { d_u_terms(v, j, 1, 1);
 static void d_v_forced_drag(const sw_view *v, size_t j) { d_v_terms(v, j, 1, 1); }
 
 /* Ghost normal velocities on the faces of the ghost cells (see d_prepare), and the radiated elevation of
- * open ghosts. */
+ * open ghosts (over the ghost's true width: dx times its row's metric on a west or east edge). */
 static void d_edge_velocities(const sw_view *v, const sw_edge_cell *oc, size_t q0, size_t q1)
 {
     sw_real *u = SW_V(v, u), *vv = SW_V(v, v), *eta = SW_V(v, eta);
     const sw_real *hx = SW_V(v, hx), *hy = SW_V(v, hy), *h = SW_V(v, h);
-    const sw_real rx = (sw_real)(v->dt_s / v->dx_m), ry = (sw_real)(v->dt_s / v->dy_m);
+    const sw_real ry = (sw_real)(v->dt_s / v->dy_m);
     const size_t s = v->stride;
     for (size_t q = q0; q < q1; q++) {
         sw_real *vel = oc[q].normal_x ? u : vv;
@@ -362,7 +382,8 @@ static void d_edge_velocities(const sw_view *v, const sw_edge_cell *oc, size_t q
             const sw_real f0 = hn[n] * vel[n], f1 = hn[n - t] * vel[n - t];
             const sw_real w = (hn[n] > 0) + (hn[n - t] > 0);
             const sw_real target = w > 0 ? (f0 + f1) / (w * h[n] * (sw_real)oc[q].vel) : 0;
-            const sw_real r = (sw_real)fabs(oc[q].vel) * h[n] * (oc[q].normal_x ? rx : ry);
+            const sw_real rx = oc[q].normal_x ? (sw_real)(v->dt_s / (v->dx_m * v->cos_c[g / s])) : ry;
+            const sw_real r = (sw_real)fabs(oc[q].vel) * h[n] * rx;
             eta[g] = (eta[g] + hd + r * target) / (1 + r) - hd;   /* of eta + head, the departure */
         }
     }
@@ -399,33 +420,37 @@ static void d_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 #endif
 
 /* E* (layout.h), velocity points counted once (a periodic edge's halo copy left out), with the
- * rotation share (dt/2) u.K v: each u point's four v neighbours, K = (f / 4) hy. */
+ * rotation share (dt/2) u.K v: each u point's four v neighbours, K = (f / 4) hy. Every sum weights by
+ * the area of its points: cos_c of centre rows (eta, v), cos_f of face lines (u). */
 static double d_energy(const sw_view *v)
 {
     const size_t nx = v->nx, ny = v->ny, s = v->stride, c0 = sw_first_col(v), r0 = sw_first_row(v);
     const double dx = v->dx_m, dy = v->dy_m, dt = v->dt_s;
     const sw_real *eta = SW_V(v, eta), *u = SW_V(v, u), *vv = SW_V(v, v), *hx = SW_V(v, hx), *hy = SW_V(v, hy);
+    const double *cc = v->cos_c, *cf = v->cos_f;   /* areas */
     double pot = 0, kin = 0, cross = 0, rot = 0;
     for (size_t j = 1; j <= ny; j++)
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
+            /* the divergence times the cell's area (cos_c[j]): y-fluxes times their rows' */
             double div = ((double)hx[i + 1] * u[i + 1] + (double)hx[i + 1 - s] * u[i + 1 - s]
                           - (double)hx[i - 1] * u[i - 1] - (double)hx[i - 1 - s] * u[i - 1 - s]) / (4 * dx)
-                       + ((double)hy[i + s] * vv[i + s] + (double)hy[i + s - 1] * vv[i + s - 1]
-                          - (double)hy[i - s] * vv[i - s] - (double)hy[i - s - 1] * vv[i - s - 1]) / (4 * dy);
-            pot += (double)eta[i] * eta[i];
+                       + (cc[j + 1] * ((double)hy[i + s] * vv[i + s] + (double)hy[i + s - 1] * vv[i + s - 1])
+                          - cc[j - 1] * ((double)hy[i - s] * vv[i - s])
+                          - cc[j - 1] * ((double)hy[i - s - 1] * vv[i - s - 1])) / (4 * dy);
+            pot += (double)eta[i] * eta[i] * cc[j];
             cross += eta[i] * div;
         }
     for (size_t j = r0; j <= ny; j++)   /* u: rows 0 (the south edge's faces) .. ny, columns 1 .. nx */
         for (size_t i = j * s + 1; i <= j * s + nx; i++) {
-            kin += (double)hx[i] * u[i] * u[i];
+            kin += (double)hx[i] * u[i] * u[i] * cf[j];
             double pair = 0;
-            for (size_t a = i; a <= i + s; a += s)   /* v of rows j and j+1, west and east */
-                pair += (double)hy[a - 1] * vv[a - 1] + (double)hy[a] * vv[a];
+            for (size_t a = i, r = j; a <= i + s; a += s, r++)   /* v of rows j and j+1, west and east */
+                pair += cc[r] * ((double)hy[a - 1] * vv[a - 1] + (double)hy[a] * vv[a]);
             rot += v->terms->f_face[j] * u[i] * pair;
         }
     for (size_t j = 1; j <= ny; j++)     /* v: rows 1 .. ny, columns 0 (the west edge's faces) .. nx */
         for (size_t i = j * s + c0; i <= j * s + nx; i++)
-            kin += (double)hy[i] * vv[i] * vv[i];
+            kin += (double)hy[i] * vv[i] * vv[i] * cc[j];
     return (0.5 * v->g * pot + 0.5 * kin - 0.5 * v->g * dt * cross + dt / 8 * rot) * dx * dy;
 }
 

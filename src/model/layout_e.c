@@ -28,6 +28,8 @@
  * u,v cells), so the step runs A-layout loops over every cell: the zero flux depths of the other
  * kind make the extra updates exact no-ops. sw_model_volume therefore sums the eta cells only, with
  * the model's dx dy per cell; the water actually displaced is twice that (see docs/layouts.md).
+ * On a geographic grid each point's area is cos(latitude) of its row times the plane's, the metric the
+ * shared kernels carry (colocated.h), and the ghosts of west and east edges use the true cell width.
  * centre_row reports at a u,v cell the mean eta of its water neighbours, and at an eta cell the
  * mean u and v of its water neighbours.
  * Open and level edges use the shared ghost list, in two kinds: beside an eta cell the ghost is a
@@ -130,29 +132,23 @@ SW_INLINE void e_centre_cell(const sw_cells *c, size_t k, size_t i, size_t j, fl
     *v = (float)(wet * (own ? va : vv[k]));
 }
 
-static sw_cells e_cells(const sw_view *v)
-{
-    return (sw_cells){SW_V(v, eta), SW_V(v, u), SW_V(v, v), SW_V(v, h), SW_V(v, hx), SW_V(v, hy), v->stride,
-                      (sw_real)(0.5 * v->dt_s / v->dx_m), (sw_real)(0.5 * v->dt_s / v->dy_m), 1, 1};
-}
-
 /* Continuity with A's cell formula (colocated.h): a no-op on u,v cells, whose neighbours carry no flux;
  * initial velocities likewise (eta cells have hx = hy = 0 and keep none). */
 static void e_continuity(const sw_view *v, size_t j)
 {
-    const sw_cells c = e_cells(v);
+    const sw_cells c = sw_colocated_cells(v, j);
     sw_continuity_loop(&c, j * v->stride + 1, v->nx, sw_colocated_eta_cell);
 }
 
 static void e_continuity_observed(const sw_view *v, size_t j, size_t f, float *buf)
 {
-    const sw_cells c = e_cells(v);
+    const sw_cells c = sw_colocated_cells(v, j);
     sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, sw_colocated_eta_cell, e_centre_cell);
 }
 
 static void e_centre_row_f32(const sw_view *v, size_t j, float *eta, float *u, float *vel)
 {
-    const sw_cells c = e_cells(v);
+    const sw_cells c = sw_colocated_cells(v, j + 1);
     sw_centre_loop(&c, j, v->nx, eta, u, vel, e_centre_cell);
 }
 
@@ -167,26 +163,29 @@ static void e_momentum_forced_drag(const sw_view *v, size_t j) { sw_colocated_mo
 
 /* Ghost normal velocities beside eta cells: the outgoing wave's (open); on the mirror line, stepped like
  * any velocity with the ghost's eta (the inner eta mirrored) as the far neighbour (level). Open eta
- * ghosts beside u,v cells: radiated. */
+ * ghosts beside u,v cells: radiated. Along x the spacing is the ghost row's true width, dx cos_c (a west
+ * or east ghost is on its inner cell's row). */
 static void e_edge_velocities(const sw_view *v, const sw_edge_cell *oc, size_t q0, size_t q1)
 {
     sw_real *u = SW_V(v, u), *vv = SW_V(v, v), *eta = SW_V(v, eta);
     const sw_real *hx = SW_V(v, hx), *hy = SW_V(v, hy), *h = SW_V(v, h);
-    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / v->dx_m), gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
-    const sw_real rx = (sw_real)(v->dt_s / v->dx_m), ry = (sw_real)(v->dt_s / v->dy_m);
+    const sw_real gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m), ry = (sw_real)(v->dt_s / v->dy_m);
     for (size_t q = q0; q < q1; q++) {
         sw_real *vel = oc[q].normal_x ? u : vv;
         const sw_real *hn = oc[q].normal_x ? hx : hy;
         const size_t g = oc[q].ghost, n = oc[q].inner;
+        const double dx_true = v->dx_m * v->cos_c[g / v->stride];   /* the ghost row's cell width, m */
         if (hn[g] > 0) {   /* a velocity ghost */
+            const sw_real gn = oc[q].normal_x ? (sw_real)(0.5 * v->g * v->dt_s / dx_true) : gy;
             if (oc[q].mirror != 0)
-                vel[g] -= (oc[q].normal_x ? gx : gy) * (g > n ? eta[g] - eta[n] : eta[n] - eta[g]);
+                vel[g] -= gn * (g > n ? eta[g] - eta[n] : eta[n] - eta[g]);
             else
                 vel[g] = (sw_real)oc[q].vel * (eta[g] + sw_edge_head(v, q));
         } else if (oc[q].vel != 0) {
-            /* an open eta ghost: implicit upwind over dx towards the inner velocity's outgoing-wave
-             * elevation, u / (sign sqrt(g/h)); read by that velocity's next step */
-            const sw_real r = (sw_real)fabs(oc[q].vel) * h[n] * (oc[q].normal_x ? rx : ry);
+            /* an open eta ghost: implicit upwind over the cell width towards the inner velocity's
+             * outgoing-wave elevation, u / (sign sqrt(g/h)); read by that velocity's next step */
+            const sw_real rn = oc[q].normal_x ? (sw_real)(v->dt_s / dx_true) : ry;
+            const sw_real r = (sw_real)fabs(oc[q].vel) * h[n] * rn;
             const sw_real hd = sw_edge_head(v, q);   /* of eta + head, the departure (stage.h) */
             eta[g] = (eta[g] + hd + r * vel[n] / (sw_real)oc[q].vel) / (1 + r) - hd;
         }
@@ -241,7 +240,8 @@ static void e_symbols(double k, double l, double dx, double dy, sw_symbols *o)
 }
 #endif
 
-/* E* with each eta point and each velocity point standing for 2 dx dy; the rotation share as A's. */
+/* E* with each eta point and each velocity point standing for 2 dx dy (times its row's cos_c on the
+ * sphere); the rotation share as A's. */
 static double e_energy(const sw_view *v)
 {
     return sw_colocated_energy_sum(v) * 2 * v->dx_m * v->dy_m;
