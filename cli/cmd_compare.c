@@ -146,6 +146,8 @@ int cmd_compare(int argc, char **argv, const char *history)
         sw_compare_print(stdout, &cmp);
         printf("\nWritten: %s, %s\n\n%s\n", md, csv, sw_caution());
     }
+    if (code == 0 && sw_compare_outcome(&cmp, &err) != SW_OK)   /* a failed run fails the comparison */
+        code = cli_fail("compare", &err);
     sw_compare_free(&cmp);
     sw_scenario_free(&sc);
     return code;

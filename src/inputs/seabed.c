@@ -9,11 +9,20 @@
  * Shoreline: along-coast coordinate a (y for a west/east coast, x for south/north), mean shoreline
  * position S, wiggle W and wavelength L give the shoreline at S + W sin(2 pi a / L), with a
  * measured from the coordinate origin. s, the distance seaward, is positive away from the land side.
+ *
+ * On a geographic grid (grid.h: x = R lambda, y = R phi) every length of the recipe is a true distance:
+ * an x extent is multiplied by cos(latitude), of the point itself for the coast (the distance along its
+ * parallel) and of the mean latitude of the point and the centre for a feature's east offset (the
+ * equirectangular approximation of the local distance, with a relative error of the order of the
+ * square of the offset over the radius); y extents are true lengths already. The shoreline S and
+ * feature centres are positions (arc metres), W, L, the widths and radii lengths. Projected grids
+ * take none of these branches, so their depths keep their bits.
  */
 #include "inputs/seabed.h"
 
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "inputs/ncinput.h"
@@ -49,7 +58,7 @@ sw_status sw_seabed_grid(sw_scenario *sc, sw_error *err)
     if (st != SW_OK)
         return st;
     sw_grid g;
-    st = sw_ncin_grid(path, bed_variable(sc), &g, err);
+    st = sw_ncin_grid(path, bed_variable(sc), sc->grid.radius_m, &g, err);
     if (st != SW_OK) {
         sw_error_prefix(err, "%s:%d: [seabed] file: ", sc->path, sc->bed_line);
         return st;
@@ -63,37 +72,70 @@ sw_status sw_seabed_grid(sw_scenario *sc, sw_error *err)
         return sw_fail(err, SW_ERR_RANGE, "%s:%d: [seabed] file: %s: variable '%s' has spacing "
                        "dx = %g m, dy = %g m (accepted: 1 m .. 1000 km)", sc->path, sc->bed_line,
                        path, bed_variable(sc), g.dx_m, g.dy_m);
+    if (sc->grid_kind_line && g.kind != sc->grid.kind)
+        return sw_fail(err, SW_ERR_INPUT, "%s:%d: [grid] kind = %s, but the seabed file %s has variable '%s' on %s "
+                       "(accepted: kind = %s for this file, or a file on %s)", sc->path, sc->grid_kind_line,
+                       sc->grid.kind == SW_GRID_GEOGRAPHIC ? "geographic" : "projected", path, bed_variable(sc),
+                       g.kind == SW_GRID_GEOGRAPHIC ? "longitude/latitude axes in degrees" : "x/y axes in metres",
+                       g.kind == SW_GRID_GEOGRAPHIC ? "geographic" : "projected",
+                       sc->grid.kind == SW_GRID_GEOGRAPHIC ? "longitude/latitude axes (degrees_east, degrees_north)"
+                                                           : "x/y axes in m or km");
     sc->grid = g;
     sc->has_grid = 1;
     return SW_OK;
 }
 
 /* Depth from the file: values converted from the file's sign convention (the scenario's
- * `positive` wins over the variable's attribute). */
-static sw_status seabed_from_file(const sw_scenario *sc, double *depth_m, sw_error *err)
+ * `positive` wins over the variable's attribute); land from missing values or the mask at depth 0. */
+static sw_status seabed_from_file(const sw_scenario *sc, double *depth_m, sw_seabed_info *info, sw_error *err)
 {
     char path[SW_PATH_MAX];
     sw_status st = resolve_path(sc, sc->bed_file, path, sizeof path, err);
     if (st != SW_OK)
         return st;
+    const size_t n = sw_grid_cells(&sc->grid);
+    const int want_land = sc->bed_missing_land || sc->bed_land_mask[0];
+    unsigned char *land = want_land ? malloc(n) : NULL;
+    if (want_land && !land)
+        return sw_fail(err, SW_ERR_NOMEM, "%s:%d: [seabed] file: out of memory for %zu cells", sc->path,
+                       sc->bed_line, n);
     int attr = SW_POSITIVE_UNSET;
-    st = sw_ncin_read(path, bed_variable(sc), &sc->grid, SW_NCIN_OUTSIDE_ERROR, depth_m, &attr, err);
+    const sw_ncin_options opt = {
+        .outside = SW_NCIN_OUTSIDE_ERROR,
+        .missing_land = sc->bed_missing_land,
+        .land_mask = sc->bed_land_mask,
+        .land = land,
+        .missing_hint = "accepted: finite values; or `missing = land` in [seabed] when they mark land",
+        .positive_attr = &attr,
+    };
+    st = sw_ncin_read_with(path, bed_variable(sc), &sc->grid, &opt, depth_m, err);
     if (st != SW_OK) {
+        free(land);
         sw_error_prefix(err, "%s:%d: [seabed] file: ", sc->path, sc->bed_line);
         return st;
     }
     sw_positive pos = sc->bed_positive != SW_POSITIVE_UNSET ? sc->bed_positive : (sw_positive)attr;
-    if (pos == SW_POSITIVE_UNSET)
+    if (pos == SW_POSITIVE_UNSET) {
+        free(land);
         return sw_fail(err, SW_ERR_INPUT,
                        "%s:%d: [seabed] file: %s: variable '%s' has no 'positive' attribute (up or "
                        "down), so its sign is unknown: add `positive = down` (values are depths) or "
                        "`positive = up` (elevations) to [seabed]", sc->path, sc->bed_line, path,
                        bed_variable(sc));
-    if (pos == SW_POSITIVE_UP) {
-        size_t n = sw_grid_cells(&sc->grid);
+    }
+    if (pos == SW_POSITIVE_UP)
         for (size_t k = 0; k < n; k++)
             depth_m[k] = -depth_m[k];
+    for (size_t k = 0; land && k < n; k++) {
+        if (!land[k])
+            continue;
+        depth_m[k] = 0.0;   /* land for every min_depth (> 0) */
+        if (land[k] & SW_NCIN_LAND_MASK)
+            info->land_mask++;
+        else
+            info->land_missing++;
     }
+    free(land);
     return SW_OK;
 }
 
@@ -103,6 +145,8 @@ typedef struct {
     sw_coast_side coast;
     double deep_m, shelf_m, shelf_w_m, slope_w_m, land_m;
     double shore_m, wiggle_m, wavelength_m;
+    int geo;            /* 1 on a geographic grid: x extents are scaled to true lengths */
+    double radius_m;    /* geographic: the sphere's radius, m */
 } seabed_recipe;
 
 /* Base profile at (x, y): flat `deep`, or the shelf / cosine slope / deep profile across the coast. */
@@ -114,9 +158,21 @@ static double seabed_base(const seabed_recipe *r, double x, double y)
     double a = along_y ? y : x;          /* along the coast */
     double c = along_y ? x : y;          /* across the coast */
     double shore = r->shore_m;
-    if (r->wiggle_m != 0.0)
-        shore += r->wiggle_m * sin(2.0 * SEABED_PI * a / r->wavelength_m);
-    double s = (r->coast == SW_COAST_WEST || r->coast == SW_COAST_SOUTH) ? c - shore : shore - c;
+    double s;
+    if (!r->geo) {
+        if (r->wiggle_m != 0.0)
+            shore += r->wiggle_m * sin(2.0 * SEABED_PI * a / r->wavelength_m);
+        s = (r->coast == SW_COAST_WEST || r->coast == SW_COAST_SOUTH) ? c - shore : shore - c;
+    } else {
+        /* true lengths: an x extent times cos(latitude) of the point (the parallel through it) */
+        const double cl = cos(y / r->radius_m);
+        const double sign = (r->coast == SW_COAST_WEST || r->coast == SW_COAST_SOUTH) ? 1.0 : -1.0;
+        if (!along_y)
+            a *= cl;
+        s = sign * (c - shore) * (along_y ? cl : 1.0);
+        if (r->wiggle_m != 0.0)
+            s -= sign * r->wiggle_m * sin(2.0 * SEABED_PI * a / r->wavelength_m);
+    }
     if (s <= r->shelf_w_m) {
         double d = r->shelf_m * s / r->shelf_w_m;
         return d < -r->land_m ? -r->land_m : d;
@@ -129,9 +185,12 @@ static double seabed_base(const seabed_recipe *r, double x, double y)
 }
 
 /* Applies feature f, with precomputed bump amplitude amp_m (island/shoal), to depth d at (x, y). */
-static double seabed_feature(const sw_feature *f, double amp_m, double x, double y, double d)
+static double seabed_feature(const seabed_recipe *r, const sw_feature *f, double amp_m, double x, double y,
+                             double d)
 {
     double ex = x - f->x_m, ey = y - f->y_m;
+    if (r->geo)   /* the local east offset: cos of the mean latitude of the point and the centre */
+        ex *= cos(0.5 * (y + f->y_m) / r->radius_m);
     if (f->kind == SW_FEATURE_BAY) {
         double u = ex / f->radius_x_m, v = ey / f->radius_y_m;
         double r2 = u * u + v * v;
@@ -152,7 +211,7 @@ static double seabed_point(const seabed_recipe *r, const sw_scenario *sc, const 
 {
     double d = seabed_base(r, x, y);
     for (size_t k = 0; k < nf; k++)
-        d = seabed_feature(&sc->features[k], amp[k], x, y, d);
+        d = seabed_feature(r, &sc->features[k], amp[k], x, y, d);
     return d;
 }
 
@@ -174,6 +233,8 @@ static sw_status seabed_recipe_init(const sw_scenario *sc, seabed_recipe *r, sw_
     r->shore_m = sc->shoreline_m;
     r->wiggle_m = sc->coast_wiggle_m;
     r->wavelength_m = sc->coast_wavelength_m;
+    r->geo = sw_grid_geographic(&sc->grid);
+    r->radius_m = sc->grid.radius_m > 0.0 ? sc->grid.radius_m : SW_EARTH_RADIUS_M;
     if (!(r->deep_m > 0.0))
         return sw_fail(err, SW_ERR_RANGE, "%s: [seabed] deep = %g m: needs a value > 0 without a file",
                        sc->path, r->deep_m);
@@ -204,13 +265,22 @@ static sw_status seabed_recipe_init(const sw_scenario *sc, seabed_recipe *r, sw_
 
 sw_status sw_seabed_build(const sw_scenario *sc, double *depth_m, sw_error *err)
 {
+    return sw_seabed_build_info(sc, depth_m, NULL, err);
+}
+
+sw_status sw_seabed_build_info(const sw_scenario *sc, double *depth_m, sw_seabed_info *info, sw_error *err)
+{
+    sw_seabed_info none;
+    if (!info)
+        info = &none;
+    memset(info, 0, sizeof *info);
     if (!sc || !depth_m)
         return sw_fail(err, SW_ERR_USAGE, "sw_seabed_build: no scenario or output");
     if (!sc->has_grid)
         return sw_fail(err, SW_ERR_USAGE, "%s: sw_seabed_build: the grid is not set (call "
                        "sw_seabed_grid first)", sc->path);
     if (sc->bed_file[0])
-        return seabed_from_file(sc, depth_m, err);
+        return seabed_from_file(sc, depth_m, info, err);
 
     seabed_recipe r;
     sw_status st = seabed_recipe_init(sc, &r, err);

@@ -149,6 +149,21 @@ sw_status sw_compare_run(const sw_scenario *sc, const char *const *layouts, size
     return SW_OK;
 }
 
+sw_status sw_compare_outcome(const sw_compare *cmp, sw_error *err)
+{
+    size_t failed = 0, first = 0;
+    for (size_t q = cmp->n_rows; q-- > 0;)
+        if (cmp->rows[q].status != SW_OK) {
+            failed++;
+            first = q;
+        }
+    if (!failed)
+        return SW_OK;
+    const sw_compare_row *r = &cmp->rows[first];
+    return sw_fail(err, r->status, "%zu of %zu runs failed; the first, layout %s x%d: %s", failed, cmp->n_rows,
+                   r->layout, r->refine, r->error);
+}
+
 /* Formats v with fmt, or "-" when v is NaN. */
 static const char *num(char *buf, size_t n, const char *fmt, double v)
 {

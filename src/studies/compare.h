@@ -1,7 +1,8 @@
 /* compare.h - one scenario run on several grid layouts and resolutions, side by side.
  *
  * Each run is the scenario with its layout replaced and its grid refined by an integer factor
- * (dx / r, nx * r; the seabed recipe or file is evaluated on the finer grid). The reference is the
+ * (dx / r, nx * r over the same area; the seabed recipe or file is evaluated on the finer grid: a file's
+ * outer cells are read up to their edges, ncinput.h). The reference is the
  * finest C-layout run when C is among the layouts, else the finest run of the first layout; every
  * run's gauge arrivals and peaks are given as differences from it.
  */
@@ -51,11 +52,19 @@ typedef void (*sw_compare_fn)(const sw_compare_row *row, size_t i, size_t n, voi
 
 /* Runs sc on every layout x refinement and fills *out (free with sw_compare_free). Output files of
  * each run go to <opt->out_dir>/<layout>-x<r>/. A failing run is recorded in its row and the others
- * go on; the call fails only for bad arguments (SW_ERR_USAGE/RANGE: unknown layout, refine < 1, more
- * than SW_COMPARE_MAX_RUNS runs), out of memory, or an interruption (SW_ERR_INTERRUPTED). */
+ * go on (sw_compare_outcome then says the comparison failed); the call itself fails only for bad
+ * arguments (SW_ERR_USAGE/RANGE: unknown layout, refine < 1, more than SW_COMPARE_MAX_RUNS runs), out of
+ * memory, or an interruption (SW_ERR_INTERRUPTED), and then *out owns nothing. */
 sw_status sw_compare_run(const sw_scenario *sc, const char *const *layouts, size_t n_layouts, const int *refine,
                          size_t n_refine, const sw_run_options *opt, sw_compare_fn done, void *user,
                          sw_compare *out, sw_error *err);
+
+/* What the comparison as a whole says: SW_OK when every run succeeded; otherwise the status of the first
+ * failed run, with a one-line message in err naming how many runs failed and the first one's layout,
+ * refinement and cause ("2 of 6 runs failed; the first, layout C x2: ..."), so that a caller (the CLI)
+ * can report the tables and files of the runs that worked and still fail. Needs cmp filled by
+ * sw_compare_run. */
+sw_status sw_compare_outcome(const sw_compare *cmp, sw_error *err);
 
 /* Releases what cmp owns and zeroes it. cmp may be NULL. */
 void sw_compare_free(sw_compare *cmp);
