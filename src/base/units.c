@@ -18,18 +18,28 @@
 typedef struct {
     const char *name;   /* as written after the number */
     double factor;      /* base units per one of this unit */
+    sw_unit_kind kind;  /* the kind it measures (a position's table holds two kinds) */
 } unit_def;
 
 /* Factors from the SI Brochure (BIPM, 9th ed., 2019): km = 1e3 m; Table 8: min = 60 s, h = 3600 s,
  * d = 86400 s. Angles stay in degrees. */
-static const unit_def LENGTH_UNITS[] = { { "m", 1.0 }, { "km", 1e3 }, { NULL, 0.0 } };
-static const unit_def TIME_UNITS[] = { { "s", 1.0 }, { "min", 60.0 }, { "h", 3600.0 }, { "d", 86400.0 },
-                                       { NULL, 0.0 } };
-static const unit_def ANGLE_UNITS[] = { { "deg", 1.0 }, { NULL, 0.0 } };
+#define L SW_UNIT_LENGTH
+static const unit_def LENGTH_UNITS[] = { { "m", 1.0, L }, { "km", 1e3, L }, { NULL, 0.0, L } };
+static const unit_def TIME_UNITS[] = { { "s", 1.0, SW_UNIT_TIME }, { "min", 60.0, SW_UNIT_TIME },
+                                       { "h", 3600.0, SW_UNIT_TIME }, { "d", 86400.0, SW_UNIT_TIME },
+                                       { NULL, 0.0, SW_UNIT_TIME } };
+static const unit_def ANGLE_UNITS[] = { { "deg", 1.0, SW_UNIT_ANGLE }, { NULL, 0.0, SW_UNIT_ANGLE } };
 /* Rates (a Coriolis parameter) and speeds (a friction rate): compound units of the same factors. */
-static const unit_def RATE_UNITS[] = { { "s-1", 1.0 }, { "/s", 1.0 }, { "h-1", 1.0 / 3600 }, { "/h", 1.0 / 3600 },
-                                       { NULL, 0.0 } };
-static const unit_def SPEED_UNITS[] = { { "m/s", 1.0 }, { "cm/s", 1e-2 }, { "mm/s", 1e-3 }, { NULL, 0.0 } };
+static const unit_def RATE_UNITS[] = { { "s-1", 1.0, SW_UNIT_RATE }, { "/s", 1.0, SW_UNIT_RATE },
+                                       { "h-1", 1.0 / 3600, SW_UNIT_RATE }, { "/h", 1.0 / 3600, SW_UNIT_RATE },
+                                       { NULL, 0.0, SW_UNIT_RATE } };
+static const unit_def SPEED_UNITS[] = { { "m/s", 1.0, SW_UNIT_SPEED }, { "cm/s", 1e-2, SW_UNIT_SPEED },
+                                        { "mm/s", 1e-3, SW_UNIT_SPEED }, { NULL, 0.0, SW_UNIT_SPEED } };
+/* A position: a length on a projected grid, an angle (longitude, latitude) on a geographic one. */
+static const unit_def POSITION_UNITS[] = { { "m", 1.0, L }, { "km", 1e3, L }, { "deg", 1.0, SW_UNIT_ANGLE },
+                                           { NULL, 0.0, SW_UNIT_NONE } };
+#undef L
+#define POSITION_ACCEPTED "m, km, deg"
 
 static const unit_def *units_of(sw_unit_kind kind)
 {
@@ -113,9 +123,14 @@ static int refuse(char *why, unsigned why_size, const char *fmt, ...)
     return -1;
 }
 
-int sw_units_parse(const char *text, sw_unit_kind kind, double *out, char *why, unsigned why_size)
+/* Parses text as a number with an optional unit of the table `units` (NULL: no unit allowed), listed
+ * as `accepted` in messages; `compound` allows '/', '-' and digits in the unit word. On success stores
+ * the value times the unit's factor in *out, the unit in *unit (NULL for a bare number) and returns 0;
+ * on failure returns -1 with the cause in why. */
+static int parse_value(const char *text, const unit_def *units, const char *accepted, int compound, double *out,
+                       const unit_def **unit, char *why, unsigned why_size)
 {
-    const char *accepted = sw_units_accepted(kind);
+    const int no_unit = units == NULL;
     if (!text)
         return refuse(why, why_size, "no value");
     while (isspace((unsigned char)*text))
@@ -125,7 +140,7 @@ int sw_units_parse(const char *text, sw_unit_kind kind, double *out, char *why, 
         end--;
     if (end == 0)
         return refuse(why, why_size, "no value (accepted: a number%s%s)",
-                      kind == SW_UNIT_NONE ? "" : " with an optional unit: ", kind == SW_UNIT_NONE ? "" : accepted);
+                      no_unit ? "" : " with an optional unit: ", no_unit ? "" : accepted);
 
     size_t n = scan_decimal(text);
     if (n == 0) {
@@ -134,7 +149,7 @@ int sw_units_parse(const char *text, sw_unit_kind kind, double *out, char *why, 
             return refuse(why, why_size, "'%.*s' is not a finite number", (int)end, text);
         if (isalpha((unsigned char)*t))
             return refuse(why, why_size, "no number before '%.*s' (accepted: a number, then %s%s)", (int)end,
-                          text, kind == SW_UNIT_NONE ? "" : "one of ", accepted);
+                          text, no_unit ? "" : "one of ", accepted);
         return refuse(why, why_size, "'%.*s' is not a number", (int)end, text);
     }
     char num[128];
@@ -151,7 +166,6 @@ int sw_units_parse(const char *text, sw_unit_kind kind, double *out, char *why, 
         rest++;
     const char *word = rest;
     /* compound units (rates, speeds) may hold '/', '-' and digits after their first character */
-    const int compound = kind == SW_UNIT_RATE || kind == SW_UNIT_SPEED;
     while (rest < rest_end && (isalpha((unsigned char)*rest) || (compound && (*rest == '/' || (rest > word
            && (*rest == '-' || isdigit((unsigned char)*rest)))))))
         rest++;
@@ -172,8 +186,9 @@ int sw_units_parse(const char *text, sw_unit_kind kind, double *out, char *why, 
     }
 
     double factor = 1.0;
+    const unit_def *found = NULL;
     if (word_len > 0) {
-        const unit_def *u = units_of(kind);
+        const unit_def *u = units;
         if (!u)
             return refuse(why, why_size, "unexpected '%.*s' after the number (accepted: a plain number, no unit)",
                           word_len, word);
@@ -183,11 +198,33 @@ int sw_units_parse(const char *text, sw_unit_kind kind, double *out, char *why, 
         if (!u->name)
             return refuse(why, why_size, "unknown unit '%.*s' (accepted: %s)", word_len, word, accepted);
         factor = u->factor;
+        found = u;
     }
     v *= factor;
     if (!isfinite(v))
         return refuse(why, why_size, "'%.*s' is too large to represent", (int)end, text);
     if (out)
         *out = v + 0.0;   /* + 0.0 turns -0 into +0 */
+    if (unit)
+        *unit = found;
+    return 0;
+}
+
+int sw_units_parse(const char *text, sw_unit_kind kind, double *out, char *why, unsigned why_size)
+{
+    return parse_value(text, units_of(kind), sw_units_accepted(kind), kind == SW_UNIT_RATE || kind == SW_UNIT_SPEED,
+                       out, NULL, why, why_size);
+}
+
+int sw_units_parse_position(const char *text, double *out, sw_unit_kind *written, char *why, unsigned why_size)
+{
+    const unit_def *u = NULL;
+    double v;
+    if (parse_value(text, POSITION_UNITS, POSITION_ACCEPTED, 0, &v, &u, why, why_size) != 0)
+        return -1;
+    if (out)
+        *out = v;
+    if (written)
+        *written = u ? u->kind : SW_UNIT_NONE;
     return 0;
 }

@@ -6,6 +6,13 @@
  * layouts: the seabed, the source and the model are built from this struct later, and checks that
  * need them (the time step against the layout's limit, gauges on land) happen there, quoting the
  * line numbers recorded below.
+ *
+ * Positions (the x, y of gauges, sources and features, [seabed] shoreline) are model metres once
+ * placed: on a projected grid as written (m, km); on a geographic grid written in degrees and turned
+ * into arc lengths x = R lambda, y = R phi (grid.h), a longitude first moved by 360 degrees when that
+ * brings it onto the grid. Until the grid is known (it comes from the seabed file: positions_placed
+ * == 0) they hold the number as written, with the unit it was written in; sw_scenario_place converts
+ * them once the file has given the grid and its kind.
  */
 #ifndef SW_SCENARIO_H
 #define SW_SCENARIO_H
@@ -15,6 +22,7 @@
 #include "base/grid.h"
 #include "base/real.h"
 #include "base/status.h"
+#include "base/units.h"
 #include "model/edges.h"
 #include "model/terms.h"
 
@@ -35,7 +43,9 @@ typedef struct {
     sw_feature_kind kind;
     char name[SW_NAME_MAX];   /* from the section header, e.g. [island Gull Rock] -> "Gull Rock" */
     int line;                 /* line of the section header */
-    double x_m, y_m;          /* centre, m */
+    double x_m, y_m;          /* centre, m (a position: see the top of this file) */
+    sw_unit_kind x_unit, y_unit; /* how x and y were written: SW_UNIT_LENGTH (m, km), SW_UNIT_ANGLE (deg) or
+                               * SW_UNIT_NONE (a bare number) */
     double radius_x_m;        /* bay: semi-axis along x, m; island/shoal: e-folding radius, m */
     double radius_y_m;        /* bay: semi-axis along y, m; island/shoal: unused (= radius_x_m) */
     double depth_m;           /* bay: floor depth at the centre, m (> 0) */
@@ -50,7 +60,8 @@ typedef struct {
     sw_source_shape shape;
     char name[SW_NAME_MAX];   /* from the section header, e.g. [source main] -> "main" */
     int line;                 /* line of the section header */
-    double x_m, y_m;          /* centre, m */
+    double x_m, y_m;          /* centre, m (a position: see the top of this file) */
+    sw_unit_kind x_unit, y_unit; /* how x and y were written, as in sw_feature */
     double amplitude_m;       /* hump/ellipse: peak (may be negative); pair: uplift crest (> 0), m */
     double trough_m;          /* pair: subsidence depth (> 0), m; default = amplitude_m */
     double radius_m;          /* hump: e-folding radius, m */
@@ -65,7 +76,8 @@ typedef struct {
 typedef struct {
     char name[SW_NAME_MAX];   /* the key, e.g. "Port Harrow" */
     int line;
-    double x_m, y_m;
+    double x_m, y_m;          /* m (a position: see the top of this file) */
+    sw_unit_kind x_unit, y_unit; /* how x and y were written, as in sw_feature */
 } sw_gauge_spec;
 
 /* ---- [sweep]: what a sensitivity sweep varies (see docs/sweep.md; run by studies/sweep_*.c) */
@@ -84,8 +96,8 @@ typedef enum {
 typedef enum {
     SW_SWEEP_KEY = 0,            /* a scenario key `section.key` (also `layout`, `courant`, `arrival_threshold`) */
     SW_SWEEP_AMPLITUDE_FACTOR,   /* dimensionless; multiplies every source's amplitude (and a pair's trough) */
-    SW_SWEEP_SOURCE_X_OFFSET,    /* m; added to every source's x */
-    SW_SWEEP_SOURCE_Y_OFFSET,    /* m; added to every source's y */
+    SW_SWEEP_SOURCE_X_OFFSET,    /* m (deg on a geographic grid); added to every source's x */
+    SW_SWEEP_SOURCE_Y_OFFSET,    /* m (deg on a geographic grid); added to every source's y */
     SW_SWEEP_DEPTH_FACTOR,       /* dimensionless; multiplies the built depth field (land included) */
     SW_SWEEP_RESOLUTION_FACTOR   /* dimensionless; cells per unit length relative to [grid] (2 = half dx) */
 } sw_sweep_kind;
@@ -96,7 +108,9 @@ typedef struct {
     char name[SW_TARGET_MAX];    /* as written in [sweep], e.g. "depth_factor", "source main.amplitude" */
     sw_sweep_kind kind;
     char target[SW_TARGET_MAX];  /* SW_SWEEP_KEY: canonical "section.key" ("run.courant", "source main.x") */
-    int unit;                    /* sw_unit_kind (units.h) of the values */
+    int unit;                    /* sw_unit_kind (units.h) of the values; a coordinate of a geographic grid
+                                  * (a position, [grid] x0, y0, dx, dy, source_x_offset, source_y_offset)
+                                  * is SW_UNIT_ANGLE: its values are degrees, as the file writes them */
     int integer;                 /* 1: whole numbers (e.g. grid.nx) */
     int layout;                  /* 1: values are layouts */
     const char *const *words;    /* a key of named choices (e.g. wind.drag_law): its words, NULL-terminated;
@@ -178,11 +192,18 @@ typedef struct {
                                * derived from latitude when it is given; zero: none */
     double latitude_deg;      /* rotation's reference latitude, deg (when given) */
     int rotation_line;        /* line of `rotation` (or of [run] when defaulted) */
+    int rotation_written;     /* 1 when [run] rotation is written; else it defaults to none on a projected
+                               * grid and to sphere on a geographic one */
     int friction_line;        /* line of `friction` (or of [run]) */
 
-    /* [grid]; has_grid == 0 when the section is absent and the grid comes from the seabed file */
+    /* [grid]; has_grid == 0 when the section gives no size and the grid comes from the seabed file.
+     * grid.kind and grid.radius_m are always set (projected and SW_EARTH_RADIUS_M by default); when
+     * the grid comes from the file without [grid] kind, the file's axes decide the kind (sw_seabed_grid) */
     int has_grid;
     sw_grid grid;
+    int grid_kind_line;       /* line of [grid] kind; 0 when not written */
+    int positions_placed;     /* 1 when every position holds model metres for `grid` (see the top of this
+                               * file); 0 until sw_scenario_place when the grid comes from the seabed file */
 
     /* [edges] */
     sw_edge_kind edges[4];    /* indexed by SW_WEST.. SW_NORTH; default wall */
@@ -199,7 +220,10 @@ typedef struct {
                                * nonzero cells are land; "" = none */
     double deep_m;            /* recipe: offshore depth, m (> 0); required without a file */
     sw_coast_side coast;      /* recipe: side the land is on; default none (flat floor) */
-    double shoreline_m;       /* recipe: x (coast west/east) or y (south/north) of the mean shoreline, m */
+    double shoreline_m;       /* recipe: x (coast west/east) or y (south/north) of the mean shoreline, m
+                               * (a position: see the top of this file) */
+    sw_unit_kind shoreline_unit; /* how shoreline was written, as in sw_feature */
+    int shoreline_line;       /* line of shoreline (0: not given) */
     double coast_wiggle_m;    /* recipe: amplitude of a sinusoidal shoreline, m; default 0 */
     double coast_wavelength_m;/* recipe: its wavelength along the coast, m; default 50 km */
     double shelf_depth_m;     /* recipe: depth at the shelf break, m; default = deep_m */
@@ -234,6 +258,18 @@ sw_status sw_scenario_load(const char *path, sw_scenario *sc, sw_error *err);
 sw_status sw_scenario_parse(const char *text, const char *name, const char *dir,
                             sw_scenario *sc, sw_error *err);
 
+/* Places sc's positions on sc->grid once the grid and its kind are known (after sw_seabed_grid, which
+ * sw_setup_build calls first): does nothing when sc->positions_placed. Otherwise, with sc->grid from the
+ * seabed file, it applies the rules the parser applies when [grid] gives the kind: a position in degrees
+ * on a projected grid, or in m or km on a geographic one, is an error; latitudes beyond +-90 deg and
+ * longitudes outside -180 .. 360 deg are errors; [run] rotation defaults to sphere on a geographic grid,
+ * and sphere on a projected grid, f-plane or beta-plane on a geographic one, [storm] or [weather] on a
+ * geographic one are errors. Then converts every position to model metres (a longitude moved by +-360
+ * deg onto the grid where that brings it nearer) and sets positions_placed. Returns SW_OK, or
+ * SW_ERR_PARSE / SW_ERR_RANGE with err naming the scenario file, line and key and the accepted form;
+ * positions are then left as they were. */
+sw_status sw_scenario_place(sw_scenario *sc, sw_error *err);
+
 /* Releases what sc owns (sc->text) and zeroes it. sc may be NULL; safe to call twice. */
 void sw_scenario_free(sw_scenario *sc);
 
@@ -267,7 +303,8 @@ sw_status sw_scenario_override(const sw_scenario *sc, const sw_override *ov, siz
                                sw_error *err);
 
 /* Reads the current value of a numeric or layout key `target` ("section.key", as for overrides)
- * of a parsed scenario into *out, in base units (a layout as its registry index, sw_layout_at).
+ * of a parsed scenario into *out, in base units (a layout as its registry index, sw_layout_at; a
+ * coordinate of a geographic grid, a position or [grid] x0, y0, dx, dy, in degrees as a file writes it).
  * Returns SW_OK, or SW_ERR_RANGE when the section or key does not exist or is not numeric. */
 sw_status sw_scenario_value(const sw_scenario *sc, const char *target, double *out, sw_error *err);
 

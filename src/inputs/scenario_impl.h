@@ -38,7 +38,9 @@ typedef enum {
     K_TEXT,      /* char[size], not empty */
     K_CHOICE,    /* int (an enum): index in `words` plus `first` */
     K_LAYOUT,    /* char[size]: a name of the layout registry (layout.h, any case), stored as it spells it */
-    K_ORIGIN     /* char[32]: "YYYY-MM-DD HH:MM:SS" */
+    K_ORIGIN,    /* char[32]: "YYYY-MM-DD HH:MM:SS" */
+    K_COORD      /* double: a position or a [grid] coordinate: m on a projected grid, deg on a geographic one
+                  * (see "coordinates" below) */
 } key_kind;
 
 typedef enum {
@@ -68,10 +70,23 @@ typedef struct {
     const char *dflt;          /* default as written in a file; NULL: none, or derived in finish */
     int required;              /* must be given (when its `only` group applies) */
     unsigned only;             /* 0: always applies; else BED_* or SHAPE() bits */
-    const char *accepted;      /* for messages */
+    const char *accepted;      /* for messages (K_COORD: on a projected grid) */
+    /* K_COORD only: */
+    int axis;                  /* SCN_AXIS_X (east; a longitude), SCN_AXIS_Y (north; a latitude), or
+                                * SCN_AXIS_EITHER ([seabed] shoreline: the coast decides) */
+    int grid_key;              /* 1: [grid] x0, y0, dx, dy (converted with the grid; never moved by 360 deg) */
+    size_t unit_off;           /* a position (grid_key 0): where the sw_unit_kind it was written in is
+                                * stored, in the same home */
+    double deg_lo, deg_hi;     /* its range on a geographic grid, deg (gt: lo excluded) */
+    const char *deg_accepted;  /* the accepted values there, for messages */
 } key_def;
 
+enum { SCN_AXIS_X = 0, SCN_AXIS_Y = 1, SCN_AXIS_EITHER = 2 };
+
 #define SC(f) .home = IN_SCENARIO, .off = offsetof(sw_scenario, f)
+#define SC_UNIT(f) .unit_off = offsetof(sw_scenario, f)
+#define FE_UNIT(f) .unit_off = offsetof(sw_feature, f)
+#define SO_UNIT(f) .unit_off = offsetof(sw_source_spec, f)
 #define FE(f) .home = IN_ITEM, .off = offsetof(sw_feature, f)
 #define SO(f) .home = IN_ITEM, .off = offsetof(sw_source_spec, f)
 #define TEXT_SC(f) .kind = K_TEXT, SC(f), .size = FIELD_SIZE(sw_scenario, f)
@@ -109,9 +124,43 @@ int scn_layout_index(const char *name, double *index);
  * SW_ERR_PARSE / SW_ERR_RANGE with the cause in why (size n). */
 sw_status scn_parse_number(const key_def *k, const char *value, double *v, char *why, size_t n);
 
-/* Parses `value` as key k and stores it at k->off in home. Returns SW_OK, or SW_ERR_PARSE /
- * SW_ERR_RANGE with the cause in why (size n); nothing is stored on failure. */
-sw_status scn_store_value(const key_def *k, void *home, const char *value, char *why, size_t n);
+/* Parses `value` as key k and stores it at k->off in home; `kind` is the grid's kind as far as it is
+ * known (SW_GRID_PROJECTED, SW_GRID_GEOGRAPHIC or SCN_KIND_PENDING), which K_COORD keys need
+ * (scn_parse_coord). Returns SW_OK, or SW_ERR_PARSE / SW_ERR_RANGE with the cause in why (size n);
+ * nothing is stored on failure. */
+sw_status scn_store_value(const key_def *k, void *home, const char *value, int kind, char *why, size_t n);
+
+/* ---- coordinates (scenario_keys.c) ---------------------------------------------------------- *
+ * A K_COORD value is read knowing the grid's kind when the file says it ([grid] kind, or a [grid] with a
+ * size and no kind: projected; the reader looks for both before it reads any key): on a projected grid
+ * a length (m, km; a bare number is m), checked against the key's range, stored in m; on a geographic
+ * grid an angle (deg; a bare number is deg), checked against deg_lo .. deg_hi, stored in deg until the
+ * grid is known (the reader places positions once the whole file is read, scenario_read.c). With the
+ * kind pending (the grid and its kind come from the seabed file) the number is stored as written with
+ * its unit, and checked and placed by sw_scenario_place once the file has given the grid. */
+
+enum { SCN_KIND_PENDING = -1 };   /* the grid's kind is known only once the seabed file is read */
+
+/* Parses `value` as a K_COORD of key k on a grid of kind `kind` into *v (m on a projected grid, deg on
+ * a geographic one, as written when pending) and *unit (the sw_unit_kind written). Returns SW_OK, or
+ * SW_ERR_PARSE (no number, a wrong unit: "give degrees on a geographic grid") / SW_ERR_RANGE with the
+ * cause and the accepted form in why (size n). */
+sw_status scn_parse_coord(const key_def *k, const char *value, int kind, double *v, sw_unit_kind *unit, char *why,
+                          size_t n);
+
+/* Checks a coordinate written with `unit` (value v as written: m for lengths, deg for angles, bare as
+ * written) against a grid of known kind `kind` for key k (NULL: a gauge, axis `axis`; points accept
+ * -180 .. 360 deg of longitude and -90 .. 90 deg of latitude). Returns SW_OK, or as scn_parse_coord. */
+sw_status scn_check_coord(const key_def *k, int axis, double v, sw_unit_kind unit, int kind, char *why, size_t n);
+
+/* A point's coordinate v (deg) along `axis` as model metres on geographic grid g: a longitude is first
+ * moved by -360, 0 or +360 deg to the value nearest to the grid's longitudes (inside them when one is;
+ * 0 on a tie). */
+double scn_coord_to_m(const sw_grid *g, int axis, double v_deg);
+
+/* The K_COORD definition of a point's x (SCN_AXIS_X) or y (SCN_AXIS_Y) that is not a table key (a
+ * gauge's), with the ranges every point has. */
+const key_def *scn_point_key(int axis);
 
 /* Suggestions for a mistyped word: scn_suggest_try each candidate, then scn_suggest_text gives
  * " (did you mean 'x'?)" or "" in out (size n) and returns out. */
@@ -175,6 +224,9 @@ struct parse_state {
     size_t n_sections;
     section_ctx *cur;        /* section the following keys belong to; NULL before the first header */
     int edges_all;           /* [edges] all: -1 unset, else sw_edge_kind */
+    int grid_kind;           /* the grid's kind as the file gives it before any key is read (see
+                              * "coordinates" above): SW_GRID_PROJECTED, SW_GRID_GEOGRAPHIC or
+                              * SCN_KIND_PENDING */
     int failed;              /* a problem was recorded in err */
     int fail_line;           /* its line (INT_MAX when it has none) */
     sw_error err;

@@ -9,6 +9,7 @@
 
 #include <ctype.h>
 #include <math.h>
+#include <stdarg.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -18,7 +19,8 @@
 #include "model/layout.h"
 
 static const char *const EDGE_WORDS[] = { "wall", "open", "level", "periodic", NULL };       /* sw_edge_kind */
-static const char *const ROTATION_WORDS[] = { "none", "f-plane", "beta-plane", NULL };      /* sw_rotation_kind */
+static const char *const ROTATION_WORDS[] = { "none", "f-plane", "beta-plane", "sphere", NULL }; /* sw_rotation_kind */
+static const char *const GRID_KIND_WORDS[] = { "projected", "geographic", NULL };           /* sw_grid_kind */
 static const char *const FRICTION_WORDS[] = { "none", "linear", "quadratic", "manning", NULL }; /* sw_friction_kind */
 const char *const scn_coast_words[] = { "none", "west", "east", "south", "north", NULL };    /* sw_coast_side */
 static const char *const POSITIVE_WORDS[] = { "down", "up", NULL };                        /* from SW_POSITIVE_DOWN */
@@ -51,7 +53,8 @@ static const key_def RUN_KEYS[] = {
       .accepted = "YYYY-MM-DD HH:MM:SS" },
     /* rotation and friction (docs/terms.md); which keys go with which kind is checked in finish_run */
     { .name = "rotation", .kind = K_CHOICE, SC(terms.rotation), .words = ROTATION_WORDS, .dflt = "none",
-      .accepted = "none, f-plane, beta-plane" },
+      .accepted = "none, f-plane, beta-plane on a projected grid; sphere (the default there), none on a geographic "
+                  "grid" },
     { .name = "coriolis", .kind = K_RATE, SC(terms.f0_s), RANGE(-1e-3, 1e-3),
       .accepted = "-1e-3 <= coriolis <= 1e-3 s-1 (on Earth |f| <= 2 Omega = 1.458e-4 s-1)" },
     { .name = "latitude", .kind = K_ANGLE, SC(latitude_deg), RANGE(-89, 89),
@@ -70,18 +73,41 @@ static const key_def RUN_KEYS[] = {
       .accepted = "0 < manning <= 0.2, in s m-1/3 (Manning's n)" },
 };
 
+/* [grid]: nx, ny and dx are required once the section gives a size (finish_grid); a [grid] of only
+ * `kind` and `radius` leaves the size to the seabed file. */
 static const key_def GRID_KEYS[] = {
-    { .name = "nx", .kind = K_INTEGER, SC(grid.nx), RANGE(1, 100000), .required = 1,
+    { .name = "kind", .kind = K_CHOICE, SC(grid.kind), .words = GRID_KIND_WORDS, .dflt = "projected",
+      .accepted = "projected (x, y in m or km), geographic (longitude, latitude in degrees)" },
+    { .name = "radius", .kind = K_LENGTH, SC(grid.radius_m), RANGE(6000 * KM, 7000 * KM),
+      .accepted = "6000 km <= radius <= 7000 km, the sphere's radius (geographic grids only; default 6371 km)" },
+    { .name = "nx", .kind = K_INTEGER, SC(grid.nx), RANGE(1, 100000),
       .accepted = "a whole number, 1 <= nx <= 100000, nx * ny <= 400000000" },
-    { .name = "ny", .kind = K_INTEGER, SC(grid.ny), RANGE(1, 100000), .required = 1,
+    { .name = "ny", .kind = K_INTEGER, SC(grid.ny), RANGE(1, 100000),
       .accepted = "a whole number, 1 <= ny <= 100000, nx * ny <= 400000000" },
-    { .name = "dx", .kind = K_LENGTH, SC(grid.dx_m), RANGE(1, 1000 * KM), .required = 1,
-      .accepted = "1 m <= dx <= 1000 km" },
-    { .name = "dy", .kind = K_LENGTH, SC(grid.dy_m), RANGE(1, 1000 * KM), .accepted = "1 m <= dy <= 1000 km" },
-    { .name = "x0", .kind = K_LENGTH, SC(grid.x0_m), RANGE(-1e5 * KM, 1e5 * KM), .dflt = "0",
-      .accepted = "|x0| <= 100000 km" },
-    { .name = "y0", .kind = K_LENGTH, SC(grid.y0_m), RANGE(-1e5 * KM, 1e5 * KM), .dflt = "0",
-      .accepted = "|y0| <= 100000 km" },
+    { .name = "dx", .kind = K_COORD, SC(grid.dx_m), RANGE(1, 1000 * KM), .grid_key = 1, .axis = SCN_AXIS_X,
+      .accepted = "1 m <= dx <= 1000 km", .deg_lo = 1e-5, .deg_hi = 10,
+      .deg_accepted = "1e-05 deg <= dx <= 10 deg on a geographic grid" },
+    { .name = "dy", .kind = K_COORD, SC(grid.dy_m), RANGE(1, 1000 * KM), .grid_key = 1, .axis = SCN_AXIS_Y,
+      .accepted = "1 m <= dy <= 1000 km", .deg_lo = 1e-5, .deg_hi = 10,
+      .deg_accepted = "1e-05 deg <= dy <= 10 deg on a geographic grid" },
+    { .name = "x0", .kind = K_COORD, SC(grid.x0_m), RANGE(-1e5 * KM, 1e5 * KM), .dflt = "0", .grid_key = 1,
+      .axis = SCN_AXIS_X, .accepted = "|x0| <= 100000 km", .deg_lo = -360, .deg_hi = 360,
+      .deg_accepted = "the west edge's longitude, -360 <= x0 <= 360 deg" },
+    { .name = "y0", .kind = K_COORD, SC(grid.y0_m), RANGE(-1e5 * KM, 1e5 * KM), .dflt = "0", .grid_key = 1,
+      .axis = SCN_AXIS_Y, .accepted = "|y0| <= 100000 km", .deg_lo = -90, .deg_hi = 90,
+      .deg_accepted = "the south edge's latitude, -90 <= y0 <= 90 deg" },
+};
+
+/* A point's x and y: a length anywhere on a projected grid; a longitude or latitude on a geographic one. */
+#define POINT_X(what, unit) .kind = K_COORD, .axis = SCN_AXIS_X, unit, .accepted = "x of the " what ", in m or km", \
+    .deg_lo = -180, .deg_hi = 360, .deg_accepted = "the " what "'s longitude, -180 <= x <= 360 deg"
+#define POINT_Y(what, unit) .kind = K_COORD, .axis = SCN_AXIS_Y, unit, .accepted = "y of the " what ", in m or km", \
+    .deg_lo = -90, .deg_hi = 90, .deg_accepted = "the " what "'s latitude, -90 <= y <= 90 deg"
+static const key_def POINT_KEYS[] = {   /* for positions that are not table keys ([gauges]) */
+    { .name = "x", .kind = K_COORD, .axis = SCN_AXIS_X, .accepted = "x in m or km", .deg_lo = -180, .deg_hi = 360,
+      .deg_accepted = "a longitude, -180 .. 360 deg" },
+    { .name = "y", .kind = K_COORD, .axis = SCN_AXIS_Y, .accepted = "y in m or km", .deg_lo = -90, .deg_hi = 90,
+      .deg_accepted = "a latitude, -90 .. 90 deg" },
 };
 
 static const key_def EDGES_KEYS[] = {
@@ -161,8 +187,10 @@ static const key_def SEABED_KEYS[] = {
       .accepted = "0 < deep <= 12 km" },
     { .name = "coast", .kind = K_CHOICE, SC(coast), .words = scn_coast_words, .dflt = "none", .only = BED_RECIPE,
       .accepted = "none, west, east, south, north" },
-    { .name = "shoreline", .kind = K_LENGTH, SC(shoreline_m), .only = BED_RECIPE,
-      .accepted = "x (coast west/east) or y (coast south/north) of the mean shoreline" },
+    { .name = "shoreline", .kind = K_COORD, SC(shoreline_m), .only = BED_RECIPE, .axis = SCN_AXIS_EITHER,
+      SC_UNIT(shoreline_unit), .accepted = "x (coast west/east) or y (coast south/north) of the mean shoreline",
+      .deg_lo = -180, .deg_hi = 360, .deg_accepted = "the shoreline's longitude (coast west/east, -180 .. 360 deg) "
+      "or latitude (coast south/north, -90 .. 90 deg)" },
     { .name = "coast_wiggle", .kind = K_LENGTH, SC(coast_wiggle_m), RANGE(-1000 * KM, 1000 * KM), .dflt = "0",
       .only = BED_RECIPE, .accepted = "|coast_wiggle| <= 1000 km" },
     { .name = "coast_wavelength", .kind = K_LENGTH, SC(coast_wavelength_m), ABOVE(0, HUGE_VAL), .dflt = "50 km",
@@ -178,8 +206,8 @@ static const key_def SEABED_KEYS[] = {
 };
 
 static const key_def BAY_KEYS[] = {
-    { .name = "x", .kind = K_LENGTH, FE(x_m), .required = 1, .accepted = "x of the centre" },
-    { .name = "y", .kind = K_LENGTH, FE(y_m), .required = 1, .accepted = "y of the centre" },
+    { .name = "x", FE(x_m), .required = 1, POINT_X("centre", FE_UNIT(x_unit)) },
+    { .name = "y", FE(y_m), .required = 1, POINT_Y("centre", FE_UNIT(y_unit)) },
     { .name = "radius_x", .kind = K_LENGTH, FE(radius_x_m), ABOVE(0, HUGE_VAL),
       .required = 1, .accepted = "radius_x > 0" },
     { .name = "radius_y", .kind = K_LENGTH, FE(radius_y_m), ABOVE(0, HUGE_VAL),
@@ -189,8 +217,8 @@ static const key_def BAY_KEYS[] = {
 };
 
 static const key_def ISLAND_KEYS[] = {
-    { .name = "x", .kind = K_LENGTH, FE(x_m), .required = 1, .accepted = "x of the centre" },
-    { .name = "y", .kind = K_LENGTH, FE(y_m), .required = 1, .accepted = "y of the centre" },
+    { .name = "x", FE(x_m), .required = 1, POINT_X("centre", FE_UNIT(x_unit)) },
+    { .name = "y", FE(y_m), .required = 1, POINT_Y("centre", FE_UNIT(y_unit)) },
     { .name = "radius", .kind = K_LENGTH, FE(radius_x_m), ABOVE(0, HUGE_VAL), .required = 1,
       .accepted = "radius > 0, the e-folding radius" },
     { .name = "height", .kind = K_LENGTH, FE(height_m), ABOVE(0, HUGE_VAL), .required = 1,
@@ -198,8 +226,8 @@ static const key_def ISLAND_KEYS[] = {
 };
 
 static const key_def SHOAL_KEYS[] = {
-    { .name = "x", .kind = K_LENGTH, FE(x_m), .required = 1, .accepted = "x of the centre" },
-    { .name = "y", .kind = K_LENGTH, FE(y_m), .required = 1, .accepted = "y of the centre" },
+    { .name = "x", FE(x_m), .required = 1, POINT_X("centre", FE_UNIT(x_unit)) },
+    { .name = "y", FE(y_m), .required = 1, POINT_Y("centre", FE_UNIT(y_unit)) },
     { .name = "radius", .kind = K_LENGTH, FE(radius_x_m), ABOVE(0, HUGE_VAL), .required = 1,
       .accepted = "radius > 0, the e-folding radius" },
     { .name = "crest", .kind = K_LENGTH, FE(crest_m), ABOVE(0, HUGE_VAL), .required = 1,
@@ -209,8 +237,8 @@ static const key_def SHOAL_KEYS[] = {
 static const key_def SOURCE_KEYS[] = {
     { .name = "shape", .kind = K_CHOICE, SO(shape), .words = scn_shape_words, .required = 1,
       .accepted = "hump, ellipse, pair, file" },
-    { .name = "x", .kind = K_LENGTH, SO(x_m), .required = 1, .only = SHAPES_XY, .accepted = "x of the centre" },
-    { .name = "y", .kind = K_LENGTH, SO(y_m), .required = 1, .only = SHAPES_XY, .accepted = "y of the centre" },
+    { .name = "x", SO(x_m), .required = 1, .only = SHAPES_XY, POINT_X("centre", SO_UNIT(x_unit)) },
+    { .name = "y", SO(y_m), .required = 1, .only = SHAPES_XY, POINT_Y("centre", SO_UNIT(y_unit)) },
     { .name = "amplitude", .kind = K_LENGTH, SO(amplitude_m), RANGE(-100, 100), .required = 1, .only = SHAPES_XY,
       .accepted = "|amplitude| <= 100 m; > 0 for a pair" },
     { .name = "trough", .kind = K_LENGTH, SO(trough_m), ABOVE(0, 100), .only = SHAPE(SW_SOURCE_PAIR),
@@ -249,7 +277,7 @@ _Static_assert(sizeof SOURCE_KEYS / sizeof SOURCE_KEYS[0] <= KEYS_MAX, "raise KE
 _Static_assert(sizeof(sw_edge_kind) == sizeof(int) && sizeof(sw_coast_side) == sizeof(int)
                && sizeof(sw_rotation_kind) == sizeof(int) && sizeof(sw_friction_kind) == sizeof(int)
                && sizeof(sw_positive) == sizeof(int) && sizeof(sw_source_shape) == sizeof(int)
-               && sizeof(sw_precision) == sizeof(int),
+               && sizeof(sw_precision) == sizeof(int) && sizeof(sw_grid_kind) == sizeof(int),
                "K_CHOICE stores an int");
 
 const section_def *scn_find_section_def(const char *name, suggestion *s)
@@ -366,7 +394,7 @@ static sw_status check_origin(const char *v, char *why, size_t n)
 int scn_is_numeric(key_kind k)
 {
     return k == K_NUMBER || k == K_INTEGER || k == K_LENGTH || k == K_TIME || k == K_ANGLE || k == K_RATE
-        || k == K_SPEED;
+        || k == K_SPEED || k == K_COORD;
 }
 
 /* The registry position (sw_layout_at) of the layout called `name` (any case) into *index, as a sweep
@@ -401,7 +429,7 @@ sw_status scn_parse_number(const key_def *k, const char *value, double *v, char 
 
 /* Parses `value` as key k and stores it into home. Returns SW_OK, or SW_ERR_PARSE / SW_ERR_RANGE
  * with the cause in why. Nothing is stored on failure. */
-sw_status scn_store_value(const key_def *k, void *home, const char *value, char *why, size_t n)
+sw_status scn_store_value(const key_def *k, void *home, const char *value, int kind, char *why, size_t n)
 {
     char *at = (char *)home + k->off;
     switch (k->kind) {
@@ -471,9 +499,103 @@ sw_status scn_store_value(const key_def *k, void *home, const char *value, char 
             memcpy(at, value, strlen(value) + 1);   /* 19 characters into char[32] */
         return st;
     }
+    case K_COORD: {
+        double v;
+        sw_unit_kind unit;
+        sw_status st = scn_parse_coord(k, value, kind, &v, &unit, why, n);
+        if (st != SW_OK)
+            return st;
+        memcpy(at, &v, sizeof v);
+        if (!k->grid_key)
+            memcpy((char *)home + k->unit_off, &unit, sizeof unit);
+        return SW_OK;
+    }
     }
     snprintf(why, n, "internal: unknown key kind");
     return SW_ERR_PARSE;
+}
+
+/* ---- coordinates ----------------------------------------------------------------------------- */
+
+/* Writes the cause into why and returns code. */
+static sw_status coord_refuse(sw_status code, char *why, size_t n, const char *fmt, ...)
+    __attribute__((format(printf, 4, 5)));
+static sw_status coord_refuse(sw_status code, char *why, size_t n, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(why, n, fmt, ap);
+    va_end(ap);
+    return code;
+}
+
+sw_status scn_check_coord(const key_def *k, int axis, double v, sw_unit_kind unit, int kind, char *why, size_t n)
+{
+    if (!k)
+        k = scn_point_key(axis);
+    if (kind == SW_GRID_GEOGRAPHIC) {
+        if (unit == SW_UNIT_LENGTH)
+            return coord_refuse(SW_ERR_PARSE, why, n, "a length: give degrees on a geographic grid (accepted: %s)",
+                                k->deg_accepted);
+        if (!(v >= k->deg_lo && v <= k->deg_hi))
+            return coord_refuse(SW_ERR_RANGE, why, n, "out of range (accepted: %s)", k->deg_accepted);
+        return SW_OK;
+    }
+    if (unit == SW_UNIT_ANGLE)
+        return coord_refuse(SW_ERR_PARSE, why, n, "degrees on a projected grid (accepted: %s; degrees need [grid] "
+                            "kind = geographic)", k->accepted);
+    if (k->ranged && ((k->gt ? !(v > k->lo) : !(v >= k->lo)) || !(v <= k->hi)))
+        return coord_refuse(SW_ERR_RANGE, why, n, "out of range (accepted: %s)", k->accepted);
+    return SW_OK;
+}
+
+sw_status scn_parse_coord(const key_def *k, const char *value, int kind, double *v, sw_unit_kind *unit, char *why,
+                          size_t n)
+{
+    double x;
+    sw_unit_kind written;
+    if (sw_units_parse_position(value, &x, &written, why, (unsigned)n) != 0)
+        return SW_ERR_PARSE;
+    /* pending: what the unit written says can be checked now, the rest once the grid is known */
+    int as = kind;
+    if (kind == SCN_KIND_PENDING)
+        as = written == SW_UNIT_ANGLE ? SW_GRID_GEOGRAPHIC : written == SW_UNIT_LENGTH ? SW_GRID_PROJECTED
+             : SCN_KIND_PENDING;
+    if (as != SCN_KIND_PENDING) {
+        sw_status st = scn_check_coord(k, k->axis, x, written, as, why, n);
+        if (st != SW_OK)
+            return st;
+    }
+    *v = x;
+    *unit = written;
+    return SW_OK;
+}
+
+const key_def *scn_point_key(int axis)
+{
+    return &POINT_KEYS[axis == SCN_AXIS_Y];
+}
+
+/* How far longitude v (deg) lies outside [lo, hi]; 0 inside. */
+static double outside_by(double v, double lo, double hi)
+{
+    return v < lo ? lo - v : v > hi ? v - hi : 0.0;
+}
+
+double scn_coord_to_m(const sw_grid *g, int axis, double v_deg)
+{
+    if (axis != SCN_AXIS_X)
+        return sw_grid_deg(g, v_deg);
+    const double lo = sw_grid_to_deg(g, g->x0_m), hi = lo + sw_grid_to_deg(g, (double)g->nx * g->dx_m);
+    double best = v_deg, off = outside_by(v_deg, lo, hi);
+    for (int s = -1; s <= 1; s += 2) {
+        const double w = v_deg + 360.0 * s, o = outside_by(w, lo, hi);
+        if (o < off) {
+            best = w;
+            off = o;
+        }
+    }
+    return sw_grid_deg(g, best);
 }
 
 /* ---- targets: "section name.key" ----------------------------------------------------------- */

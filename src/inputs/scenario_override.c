@@ -306,6 +306,9 @@ sw_status sw_scenario_value(const sw_scenario *sc, const char *target, double *o
         *out = (double)v;
     } else {
         memcpy(out, at, sizeof *out);
+        /* a coordinate of a geographic grid in degrees, as a file writes it (held in metres once placed) */
+        if (k->kind == K_COORD && sw_grid_geographic(&sc->grid) && (k->grid_key || sc->positions_placed))
+            *out = sw_grid_to_deg(&sc->grid, *out);
     }
     return SW_OK;
 }

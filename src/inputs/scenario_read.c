@@ -70,7 +70,7 @@ static void apply_defaults(parse_state *ps, const section_ctx *sec, const sectio
     for (size_t i = 0; i < def->n_keys; i++) {
         const key_def *k = &def->keys[i];
         if (k->dflt && k->home == which)
-            (void)scn_store_value(k, home_of(ps, sec, k), k->dflt, why, sizeof why);
+            (void)scn_store_value(k, home_of(ps, sec, k), k->dflt, ps->grid_kind, why, sizeof why);
     }
 }
 
@@ -348,26 +348,30 @@ static int add_gauge(parse_state *ps, const char *name, const char *value)
         return scn_fail_at(ps, SW_ERR_RANGE, ps->line, "%s too many gauges at '%s' (accepted: at most %d)", label, name,
                            SW_MAX_GAUGES);
     const char *comma = strchr(value, ',');
+    const char *example = ps->grid_kind == SW_GRID_GEOGRAPHIC ? "172.5 deg, -41.25 deg" : "42 km, 18.5 km";
     if (!comma || strchr(comma + 1, ','))
-        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s %s = %s: expected two lengths 'x, y' (e.g. 42 km, 18.5 km)",
-                           label, name, value);
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s %s = %s: expected two %s 'x, y' (e.g. %s)", label, name,
+                           value, ps->grid_kind == SW_GRID_GEOGRAPHIC ? "angles" : "lengths", example);
     char xs[LINE_MAX_CHARS + 1];
     size_t xn = (size_t)(comma - value);
     memcpy(xs, value, xn);
     xs[xn] = '\0';
     double xy[2];
+    sw_unit_kind unit[2];
     const char *part[2] = { xs, comma + 1 };
     for (int i = 0; i < 2; i++) {
-        char why[256];
-        if (sw_units_parse(part[i], SW_UNIT_LENGTH, &xy[i], why, sizeof why) != 0)
-            return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s %s = %s: %s: %s", label, name, value, i ? "y" : "x",
-                               why);
+        char why[512];
+        sw_status st = scn_parse_coord(scn_point_key(i), part[i], ps->grid_kind, &xy[i], &unit[i], why, sizeof why);
+        if (st != SW_OK)
+            return scn_fail_at(ps, st, ps->line, "%s %s = %s: %s: %s", label, name, value, i ? "y" : "x", why);
     }
     sw_gauge_spec *g = &sc->gauges[sc->n_gauges++];
     memcpy(g->name, name, nl + 1);
     g->line = ps->line;
     g->x_m = xy[0];
     g->y_m = xy[1];
+    g->x_unit = unit[0];
+    g->y_unit = unit[1];
     return 1;
 }
 
@@ -407,7 +411,7 @@ static int on_key(void *user, const char *section, const char *name, const char 
     sec->key_line[ki] = ps->line;
 
     char why[512];
-    sw_status st = scn_store_value(k, home_of(ps, sec, k), value, why, sizeof why);
+    sw_status st = scn_store_value(k, home_of(ps, sec, k), value, ps->grid_kind, why, sizeof why);
     if (st != SW_OK)
         return scn_fail_at(ps, st, ps->line, "%s %s = %s: %s", sec->label, name, value, why);
     return 1;
@@ -446,6 +450,29 @@ static int finish_rotation(parse_state *ps, const section_ctx *run)
     const int beta = key_line(run, "beta"), yref = key_line(run, "reference_y");
     const char *name = sw_rotation_name(t->rotation);
     sc->rotation_line = kind ? kind : run->line;
+    sc->rotation_written = kind != 0;
+    const int geo = ps->grid_kind == SW_GRID_GEOGRAPHIC;
+    if (geo || t->rotation == SW_ROTATION_SPHERE) {
+        if (ps->grid_kind == SW_GRID_PROJECTED)
+            return scn_fail_at(ps, SW_ERR_PARSE, kind, "[run] rotation = sphere: only on a geographic grid (accepted: "
+                               "none, f-plane, beta-plane on a projected grid; sphere with [grid] kind = geographic)");
+        if (t->rotation == SW_ROTATION_F_PLANE || t->rotation == SW_ROTATION_BETA_PLANE)
+            return scn_fail_at(ps, SW_ERR_PARSE, kind, "[run] rotation = %s: on a geographic grid the sphere gives f "
+                               "(accepted: sphere, the default there, or none)", name);
+        const int given[4] = {f, lat, beta, yref};
+        static const char *const keys[4] = {"coriolis", "latitude", "beta", "reference_y"};
+        int first = 0;
+        for (int q = 1; q < 4; q++)
+            if (given[q] && (!given[first] || given[q] < given[first]))
+                first = q;
+        if (given[first])
+            return scn_fail_at(ps, SW_ERR_PARSE, given[first], "[run] %s: not used %s: the sphere gives f = 2 Omega "
+                               "sin(latitude) row by row (accepted: leave it out)", keys[first],
+                               geo ? "on a geographic grid" : "with rotation = sphere");
+        if (geo && !kind)
+            t->rotation = SW_ROTATION_SPHERE;
+        return 1;
+    }
     if (t->rotation == SW_ROTATION_NONE) {
         const int given[4] = {f, lat, beta, yref};
         static const char *const keys[4] = {"coriolis", "latitude", "beta", "reference_y"};
@@ -525,19 +552,74 @@ static int finish_run(parse_state *ps, const section_ctx *run)
     return finish_rotation(ps, run) && finish_friction(ps, run);
 }
 
+/* The [grid] keys that give the grid's size and place (the others, kind and radius, may stand alone). */
+static const char *const GRID_SIZE_KEYS[] = { "nx", "ny", "dx", "dy", "x0", "y0" };
+
+/* A geographic grid: its degrees (as read) into arc metres (grid.h), at most once around, and its halo
+ * rows within SW_GRID_POLE_LIMIT_DEG of the equator, tested as the model tests them (model.c). */
+static int place_geographic_grid(parse_state *ps, const section_ctx *grid)
+{
+    sw_grid *g = &ps->sc->grid;
+    const double x0 = g->x0_m, y0 = g->y0_m, dx = g->dx_m, dy = g->dy_m;   /* deg */
+    const double around = (double)g->nx * dx;
+    if (around > 360.0 * (1 + 1e-12)) {
+        int line = key_line(grid, "nx") > key_line(grid, "dx") ? key_line(grid, "nx") : key_line(grid, "dx");
+        return scn_fail_at(ps, SW_ERR_RANGE, line, "[grid] nx * dx = %zu * %g deg = %g deg: more than once around the "
+                           "sphere (accepted: nx * dx <= 360 deg)", g->nx, dx, around);
+    }
+    g->x0_m = sw_grid_deg(g, x0);
+    g->y0_m = sw_grid_deg(g, y0);
+    g->dx_m = sw_grid_deg(g, dx);
+    g->dy_m = sw_grid_deg(g, dy);
+    const double lim = SW_GRID_POLE_LIMIT_DEG * 3.14159265358979323846 / 180.0;
+    if (!(fabs(g->y0_m - g->dy_m) / g->radius_m <= lim
+          && fabs(g->y0_m + (double)(g->ny + 1) * g->dy_m) / g->radius_m <= lim)) {
+        int line = key_line(grid, "y0") ? key_line(grid, "y0") : key_line(grid, "ny");
+        const double south = y0 - dy, north = y0 + (double)(g->ny + 1) * dy;
+        return scn_fail_at(ps, SW_ERR_RANGE, line, "[grid] y0 = %g deg, ny = %zu, dy = %g deg: the halo rows reach "
+                           "latitude %g deg, beyond +-%g deg (accepted: y0 - dy >= -%g deg and y0 + (ny + 1) dy <= %g "
+                           "deg: towards a pole cos(latitude) goes to 0, cells collapse to slivers and the time step "
+                           "with them)", y0, g->ny, dy, fabs(south) > fabs(north) ? south : north,
+                           SW_GRID_POLE_LIMIT_DEG, SW_GRID_POLE_LIMIT_DEG, SW_GRID_POLE_LIMIT_DEG);
+    }
+    return 1;
+}
+
 static int finish_grid(parse_state *ps, const section_ctx *grid)
 {
     sw_scenario *sc = ps->sc;
-    if (!grid) {
-        if (!sc->bed_file[0])
-            return scn_fail_at(ps, SW_ERR_PARSE, 0, "missing section [grid] with nx, ny and dx (it may be left out "
-                               "only when [seabed] file gives the grid)");
+    sc->grid_kind_line = key_line(grid, "kind");
+    const int radius = key_line(grid, "radius");
+    if (!radius)
+        sc->grid.radius_m = SW_EARTH_RADIUS_M;
+    else if (sc->grid.kind != SW_GRID_GEOGRAPHIC)
+        return scn_fail_at(ps, SW_ERR_PARSE, radius, "[grid] radius: only on a geographic grid (accepted: kind = "
+                           "geographic with it, or leave it out)");
+    int sized = 0;
+    for (size_t q = 0; q < sizeof GRID_SIZE_KEYS / sizeof GRID_SIZE_KEYS[0]; q++)
+        sized |= key_line(grid, GRID_SIZE_KEYS[q]) != 0;
+    if (!sized) {
+        if (!sc->bed_file[0]) {
+            if (!grid)
+                return scn_fail_at(ps, SW_ERR_PARSE, 0, "missing section [grid] with nx, ny and dx (it may be left out "
+                                   "only when [seabed] file gives the grid)");
+            const key_def *k = scn_find_key(grid->def, "nx", NULL);
+            return scn_fail_at(ps, SW_ERR_PARSE, grid->line, "[grid] missing key 'nx' (accepted: %s; only [seabed] "
+                               "file can give the grid's size)", k->accepted);
+        }
+        const sw_grid_kind kind = sc->grid.kind;   /* the seabed file gives the rest (and the kind when not written) */
+        const double r = sc->grid.radius_m;
         memset(&sc->grid, 0, sizeof sc->grid);
+        sc->grid.kind = kind;
+        sc->grid.radius_m = r;
         sc->has_grid = 0;
         return 1;
     }
-    if (!check_keys(ps, grid, 1, ""))
-        return 0;
+    static const char *const needed[] = { "nx", "ny", "dx" };
+    for (size_t q = 0; q < 3; q++)
+        if (!key_line(grid, needed[q]))
+            return scn_fail_at(ps, SW_ERR_PARSE, grid->line, "[grid] missing key '%s' (accepted: %s)", needed[q],
+                               scn_find_key(grid->def, needed[q], NULL)->accepted);
     sc->has_grid = 1;
     if (!key_line(grid, "dy"))
         sc->grid.dy_m = sc->grid.dx_m;
@@ -547,7 +629,7 @@ static int finish_grid(parse_state *ps, const section_ctx *grid)
         return scn_fail_at(ps, SW_ERR_RANGE, line, "[grid] nx * ny = %zu * %zu = %.0f cells: out of range (accepted: "
                            "nx * ny <= 400000000)", sc->grid.nx, sc->grid.ny, cells);
     }
-    return 1;
+    return sc->grid.kind != SW_GRID_GEOGRAPHIC || place_geographic_grid(ps, grid);
 }
 
 /* `all`, then periodic edges in pairs. */
@@ -589,6 +671,12 @@ static int finish_seabed(parse_state *ps, const section_ctx *bed)
                 return scn_fail_at(ps, SW_ERR_PARSE, bed->line, "[seabed] missing key '%s' (needed with coast = %s)",
                                    needed[i], scn_coast_words[sc->coast]);
     }
+    sc->shoreline_line = key_line(bed, "shoreline");
+    if (sc->shoreline_line && ps->grid_kind == SW_GRID_GEOGRAPHIC && (sc->coast == SW_COAST_SOUTH
+        || sc->coast == SW_COAST_NORTH) && !(fabs(sc->shoreline_m) <= 90))
+        return scn_fail_at(ps, SW_ERR_RANGE, sc->shoreline_line, "[seabed] shoreline = %g deg: out of range (accepted: "
+                           "with coast = %s the shoreline's latitude, -90 <= shoreline <= 90 deg)", sc->shoreline_m,
+                           scn_coast_words[sc->coast]);
     int shelf = key_line(bed, "shelf_depth");
     if (!shelf)
         sc->shelf_depth_m = sc->deep_m;
@@ -629,6 +717,9 @@ static int finish_forcing(parse_state *ps)
     f->weather = weather != NULL;
     f->storm_line = storm ? storm->line : 0;
     f->weather_line = weather ? weather->line : 0;
+    if (ps->grid_kind == SW_GRID_GEOGRAPHIC && (storm || weather))
+        return scn_fail_at(ps, SW_ERR_PARSE, (storm ? storm : weather)->line, "%s: not yet available on geographic "
+                           "grids; use a projected grid", storm ? "[storm]" : "[weather]");
     if ((storm && !check_keys(ps, storm, 1, "")) || (weather && !check_keys(ps, weather, 1, ""))
         || (wind && !check_keys(ps, wind, 1, "")))
         return 0;
@@ -660,6 +751,170 @@ static int finish_forcing(parse_state *ps)
     return 1;
 }
 
+/* ---- positions: from the numbers as written to model metres (scenario.h) -------------------- */
+
+/* A problem found while placing positions: the reader reports it through scn_fail_at, sw_scenario_place
+ * through sw_fail, both with its line. */
+typedef struct {
+    sw_status code;
+    int line;
+    char msg[SW_ERROR_MSG_MAX];
+} place_problem;
+
+static int place_fail(place_problem *p, sw_status code, int line, const char *fmt, ...)
+    __attribute__((format(printf, 4, 5)));
+static int place_fail(place_problem *p, sw_status code, int line, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(p->msg, sizeof p->msg, fmt, ap);
+    va_end(ap);
+    p->code = code;
+    p->line = line;
+    return 0;
+}
+
+/* A coordinate as it was written: "12 km", "170.5 deg", "3". */
+static void format_coord(char *out, size_t n, double v, sw_unit_kind unit)
+{
+    if (unit == SW_UNIT_LENGTH)
+        format_length(out, n, v);
+    else
+        snprintf(out, n, unit == SW_UNIT_ANGLE ? "%g deg" : "%g", v);
+}
+
+/* One coordinate *v written with `unit` along `axis`, of key k (NULL: a point's, scn_point_key): checked
+ * against the grid's kind, and with commit set turned into model metres. `what` names it in a message
+ * ("[source main] x"). */
+static int place_coord(const sw_grid *g, const key_def *k, int axis, double *v, sw_unit_kind unit, const char *what,
+                       int line, int commit, place_problem *p)
+{
+    char why[512], txt[64];
+    sw_status st = scn_check_coord(k, axis, *v, unit, (int)g->kind, why, sizeof why);
+    if (st != SW_OK) {
+        format_coord(txt, sizeof txt, *v, unit);
+        return place_fail(p, st, line, "%s = %s: %s", what, txt, why);
+    }
+    if (commit && sw_grid_geographic(g))
+        *v = scn_coord_to_m(g, axis, *v);
+    return 1;
+}
+
+/* Every position of sc: checked against sc->grid's kind (commit 0), or converted (commit 1). */
+static int place_positions(sw_scenario *sc, int commit, place_problem *p)
+{
+    const sw_grid *g = &sc->grid;
+    char what[LABEL_MAX + 96];
+    const section_def *src = scn_find_section_def("source", NULL);
+    for (size_t i = 0; i < sc->n_sources; i++) {
+        sw_source_spec *s = &sc->sources[i];
+        if (s->shape == SW_SOURCE_FILE)
+            continue;
+        snprintf(what, sizeof what, "[source %s] x", s->name);
+        if (!place_coord(g, scn_find_key(src, "x", NULL), SCN_AXIS_X, &s->x_m, s->x_unit, what, s->line, commit, p))
+            return 0;
+        snprintf(what, sizeof what, "[source %s] y", s->name);
+        if (!place_coord(g, scn_find_key(src, "y", NULL), SCN_AXIS_Y, &s->y_m, s->y_unit, what, s->line, commit, p))
+            return 0;
+    }
+    static const char *const feature_kind[] = { "bay", "island", "shoal" };   /* by sw_feature_kind */
+    for (size_t i = 0; i < sc->n_features; i++) {
+        sw_feature *f = &sc->features[i];
+        const section_def *def = scn_find_section_def(feature_kind[f->kind], NULL);
+        snprintf(what, sizeof what, "[%s %s] x", feature_kind[f->kind], f->name);
+        if (!place_coord(g, scn_find_key(def, "x", NULL), SCN_AXIS_X, &f->x_m, f->x_unit, what, f->line, commit, p))
+            return 0;
+        snprintf(what, sizeof what, "[%s %s] y", feature_kind[f->kind], f->name);
+        if (!place_coord(g, scn_find_key(def, "y", NULL), SCN_AXIS_Y, &f->y_m, f->y_unit, what, f->line, commit, p))
+            return 0;
+    }
+    if (!sc->bed_file[0] && sc->coast != SW_COAST_NONE && sc->shoreline_line) {
+        const int axis = sc->coast == SW_COAST_WEST || sc->coast == SW_COAST_EAST ? SCN_AXIS_X : SCN_AXIS_Y;
+        if (!place_coord(g, axis == SCN_AXIS_X ? scn_find_key(scn_find_section_def("seabed", NULL), "shoreline", NULL)
+                         : scn_point_key(SCN_AXIS_Y), axis, &sc->shoreline_m, sc->shoreline_unit, "[seabed] shoreline",
+                         sc->shoreline_line, commit, p))
+            return 0;
+    }
+    for (size_t i = 0; i < sc->n_gauges; i++) {
+        sw_gauge_spec *gs = &sc->gauges[i];
+        char tx[64], ty[64];
+        format_coord(tx, sizeof tx, gs->x_m, gs->x_unit);
+        format_coord(ty, sizeof ty, gs->y_m, gs->y_unit);
+        for (int a = 0; a < 2; a++) {
+            char why[512];
+            double *v = a ? &gs->y_m : &gs->x_m;
+            sw_unit_kind u = a ? gs->y_unit : gs->x_unit;
+            sw_status st = scn_check_coord(NULL, a, *v, u, (int)g->kind, why, sizeof why);
+            if (st != SW_OK)
+                return place_fail(p, st, gs->line, "[gauges] %s = %s, %s: %s: %s", gs->name, tx, ty, a ? "y" : "x", why);
+        }
+        if (commit && sw_grid_geographic(g)) {
+            gs->x_m = scn_coord_to_m(g, SCN_AXIS_X, gs->x_m);
+            gs->y_m = scn_coord_to_m(g, SCN_AXIS_Y, gs->y_m);
+        }
+    }
+    return 1;
+}
+
+/* The rules the reader applies when [grid] gives the kind, for a kind that came from the seabed file:
+ * rotation and the atmosphere. Changes nothing (the rotation's default is set by the caller). */
+static int place_rules(const sw_scenario *sc, place_problem *p)
+{
+    const int geo = sw_grid_geographic(&sc->grid);
+    const sw_rotation_kind r = sc->terms.rotation;
+    if (geo && (r == SW_ROTATION_F_PLANE || r == SW_ROTATION_BETA_PLANE))
+        return place_fail(p, SW_ERR_PARSE, sc->rotation_line, "[run] rotation = %s: the grid is geographic (from "
+                          "[seabed] file), where the sphere gives f (accepted: sphere, the default there, or none)",
+                          sw_rotation_name(r));
+    if (!geo && r == SW_ROTATION_SPHERE)
+        return place_fail(p, SW_ERR_PARSE, sc->rotation_line, "[run] rotation = sphere: only on a geographic grid, and "
+                          "the grid is projected (accepted: none, f-plane, beta-plane)");
+    if (geo && (sc->forcing.storm || sc->forcing.weather))
+        return place_fail(p, SW_ERR_PARSE, sc->forcing.storm ? sc->forcing.storm_line : sc->forcing.weather_line,
+                          "%s: not yet available on geographic grids (the grid from [seabed] file is one); use a "
+                          "projected grid", sc->forcing.storm ? "[storm]" : "[weather]");
+    return 1;
+}
+
+/* Whether (x, y) (m) lies on grid g, its edges included; on a geographic grid within a micrometre, for
+ * the round-off of degrees turned into metres. */
+static int on_grid(const sw_grid *g, double x, double y)
+{
+    const double eps = sw_grid_geographic(g) ? 1e-6 : 0.0;
+    const double x1 = g->x0_m + (double)g->nx * g->dx_m, y1 = g->y0_m + (double)g->ny * g->dy_m;
+    return x >= g->x0_m - eps && x <= x1 + eps && y >= g->y0_m - eps && y <= y1 + eps;
+}
+
+sw_status sw_scenario_place(sw_scenario *sc, sw_error *err)
+{
+    if (!sc)
+        return sw_fail(err, SW_ERR_USAGE, "sw_scenario_place: no scenario");
+    if (sc->positions_placed)
+        return SW_OK;
+    place_problem p = { 0 };
+    if (!place_rules(sc, &p) || !place_positions(sc, 0, &p))
+        return sw_fail(err, p.code, "%s:%d: %s", sc->path, p.line, p.msg);
+    (void)place_positions(sc, 1, &p);   /* checked above: converts */
+    if (sw_grid_geographic(&sc->grid) && !sc->rotation_written && sc->terms.rotation == SW_ROTATION_NONE)
+        sc->terms.rotation = SW_ROTATION_SPHERE;
+    sc->positions_placed = 1;
+    return SW_OK;
+}
+
+/* With the grid known (from [grid]), the positions in model metres. */
+static int finish_positions(parse_state *ps)
+{
+    sw_scenario *sc = ps->sc;
+    if (!sc->has_grid)
+        return 1;   /* the grid comes from the seabed file: sw_scenario_place, once it is read */
+    place_problem p = { 0 };
+    if (!place_positions(sc, 0, &p))
+        return scn_fail_at(ps, p.code, p.line, "%s", p.msg);
+    (void)place_positions(sc, 1, &p);
+    sc->positions_placed = 1;
+    return 1;
+}
+
 static int finish_gauges(parse_state *ps)
 {
     const sw_scenario *sc = ps->sc;
@@ -669,17 +924,22 @@ static int finish_gauges(parse_state *ps)
     double x1 = g->x0_m + (double)g->nx * g->dx_m, y1 = g->y0_m + (double)g->ny * g->dy_m;
     for (size_t i = 0; i < sc->n_gauges; i++) {
         const sw_gauge_spec *gs = &sc->gauges[i];
-        if (gs->x_m < g->x0_m || gs->x_m > x1 || gs->y_m < g->y0_m || gs->y_m > y1) {
-            char a[4][32], px[32], py[32];
-            format_length(a[0], sizeof a[0], g->x0_m);
-            format_length(a[1], sizeof a[1], x1);
-            format_length(a[2], sizeof a[2], g->y0_m);
-            format_length(a[3], sizeof a[3], y1);
-            format_length(px, sizeof px, gs->x_m);
-            format_length(py, sizeof py, gs->y_m);
-            return scn_fail_at(ps, SW_ERR_RANGE, gs->line, "[gauges] %s = %s, %s: outside the domain (accepted: %s <= "
-                               "x <= %s, %s <= y <= %s)", gs->name, px, py, a[0], a[1], a[2], a[3]);
-        }
+        if (on_grid(g, gs->x_m, gs->y_m))
+            continue;
+        if (sw_grid_geographic(g))
+            return scn_fail_at(ps, SW_ERR_RANGE, gs->line, "[gauges] %s = %.10g deg, %.10g deg: outside the domain "
+                               "(accepted: %.10g <= longitude <= %.10g deg, %.10g <= latitude <= %.10g deg)", gs->name,
+                               sw_grid_to_deg(g, gs->x_m), sw_grid_to_deg(g, gs->y_m), sw_grid_to_deg(g, g->x0_m),
+                               sw_grid_to_deg(g, x1), sw_grid_to_deg(g, g->y0_m), sw_grid_to_deg(g, y1));
+        char a[4][32], px[32], py[32];
+        format_length(a[0], sizeof a[0], g->x0_m);
+        format_length(a[1], sizeof a[1], x1);
+        format_length(a[2], sizeof a[2], g->y0_m);
+        format_length(a[3], sizeof a[3], y1);
+        format_length(px, sizeof px, gs->x_m);
+        format_length(py, sizeof py, gs->y_m);
+        return scn_fail_at(ps, SW_ERR_RANGE, gs->line, "[gauges] %s = %s, %s: outside the domain (accepted: %s <= "
+                           "x <= %s, %s <= y <= %s)", gs->name, px, py, a[0], a[1], a[2], a[3]);
     }
     return 1;
 }
@@ -713,7 +973,56 @@ static int finish(parse_state *ps)
             break;
         }
     }
-    return finish_forcing(ps) && finish_gauges(ps) && scn_finish_sweep(ps);
+    return finish_forcing(ps) && finish_positions(ps) && finish_gauges(ps) && scn_finish_sweep(ps);
+}
+
+/* ---- the grid's kind, before any key ------------------------------------------------------- */
+
+/* Sets ps->grid_kind before any key is read, so that every coordinate is read knowing what it means
+ * (scenario_impl.h, "coordinates"): the [grid] kind written; else projected when [grid] gives a size
+ * (nx, ny, dx, dy, x0 or y0); else pending (the seabed file decides). A kind word the reader will refuse
+ * counts as pending, so the refusal is the first problem reported. Only the first [grid] counts (the
+ * reader refuses a second). Lines the reader refuses are skipped here. */
+static void prescan_grid_kind(parse_state *ps)
+{
+    int in_grid = 0, seen = 0, kind = SCN_KIND_PENDING, bad_kind = 0, sized = 0;
+    const char *s = ps->text, *end = ps->text + ps->len;
+    for (int line = 1; s < end; line++) {
+        const char *nl = memchr(s, '\n', (size_t)(end - s));
+        const size_t n = nl ? (size_t)(nl - s) : (size_t)(end - s);
+        const char *raw = s;
+        s = nl ? nl + 1 : end;
+        if (n > LINE_MAX_CHARS)
+            continue;
+        char clean[LINE_MAX_CHARS + 1], key[LINE_MAX_CHARS + 1], name[LINE_MAX_CHARS + 1];
+        scn_clean_line(raw, n, line == 1, clean);
+        if (clean[0] == '[') {
+            char *close = strchr(clean, ']');
+            if (close)
+                *close = '\0';
+            scn_split_section(clean + 1, key, name);
+            in_grid = close && !seen && !strcmp(key, "grid") && !name[0];
+            seen |= in_grid;
+            continue;
+        }
+        const char *sep = strpbrk(clean, "=:");
+        if (!in_grid || !sep)
+            continue;
+        memcpy(key, clean, (size_t)(sep - clean));
+        key[sep - clean] = '\0';
+        scn_trim(key);
+        snprintf(name, sizeof name, "%s", sep + 1);
+        scn_trim(name);
+        if (!strcmp(key, "kind")) {
+            kind = !strcmp(name, "projected") ? SW_GRID_PROJECTED : !strcmp(name, "geographic") ? SW_GRID_GEOGRAPHIC
+                 : SCN_KIND_PENDING;
+            bad_kind = kind == SCN_KIND_PENDING;
+        }
+        for (size_t q = 0; q < sizeof GRID_SIZE_KEYS / sizeof GRID_SIZE_KEYS[0]; q++)
+            sized |= !strcmp(key, GRID_SIZE_KEYS[q]);
+    }
+    ps->grid_kind = bad_kind ? SCN_KIND_PENDING : kind != SCN_KIND_PENDING ? kind
+                  : sized ? SW_GRID_PROJECTED : SCN_KIND_PENDING;
 }
 
 /* ---- entry points -------------------------------------------------------------------------- */
@@ -731,6 +1040,7 @@ sw_status scn_parse_text(sw_scenario *sc, sw_error *err, int *fail_line, char *b
     ps->text = sc->text;
     ps->len = strlen(sc->text);
     ps->edges_all = -1;
+    prescan_grid_kind(ps);
     for (size_t i = 0; i < scn_n_sections; i++)
         apply_defaults(ps, NULL, &scn_sections[i], IN_SCENARIO);
 

@@ -34,10 +34,13 @@ static const key_def SWEEP_DESIGN_KEYS[] = {
 static const key_def SWEEP_BUILTIN_KEYS[] = {
     { .name = "amplitude_factor", .kind = K_NUMBER, ABOVE(0, 1000), .first = SW_SWEEP_AMPLITUDE_FACTOR,
       .accepted = "0 < amplitude_factor <= 1000" },
-    { .name = "source_x_offset", .kind = K_LENGTH, RANGE(-1e5 * KM, 1e5 * KM), .first = SW_SWEEP_SOURCE_X_OFFSET,
-      .accepted = "|source_x_offset| <= 100000 km" },
-    { .name = "source_y_offset", .kind = K_LENGTH, RANGE(-1e5 * KM, 1e5 * KM), .first = SW_SWEEP_SOURCE_Y_OFFSET,
-      .accepted = "|source_y_offset| <= 100000 km" },
+    /* offsets are coordinates: lengths on a projected grid, degrees on a geographic one */
+    { .name = "source_x_offset", .kind = K_COORD, RANGE(-1e5 * KM, 1e5 * KM), .first = SW_SWEEP_SOURCE_X_OFFSET,
+      .accepted = "|source_x_offset| <= 100000 km", .grid_key = 1, .axis = SCN_AXIS_X, .deg_lo = -360, .deg_hi = 360,
+      .deg_accepted = "|source_x_offset| <= 360 deg on a geographic grid" },
+    { .name = "source_y_offset", .kind = K_COORD, RANGE(-1e5 * KM, 1e5 * KM), .first = SW_SWEEP_SOURCE_Y_OFFSET,
+      .accepted = "|source_y_offset| <= 100000 km", .grid_key = 1, .axis = SCN_AXIS_Y, .deg_lo = -180, .deg_hi = 180,
+      .deg_accepted = "|source_y_offset| <= 180 deg on a geographic grid" },
     { .name = "depth_factor", .kind = K_NUMBER, ABOVE(0, 100), .first = SW_SWEEP_DEPTH_FACTOR,
       .accepted = "0 < depth_factor <= 100" },
     { .name = "resolution_factor", .kind = K_NUMBER, ABOVE(0, 64), .first = SW_SWEEP_RESOLUTION_FACTOR,
@@ -68,9 +71,14 @@ int scn_add_sweep_entry(parse_state *ps, const char *name, const char *value)
     return 1;
 }
 
-/* Reads one value of parameter p (key k) into *v; layouts as their registry index. */
-static sw_status sweep_value(const key_def *k, const char *text, double *v, char *why, size_t n)
+/* Reads one value of parameter p (key k) into *v; layouts as their registry index; a coordinate on a grid
+ * of kind `kind` (never pending here: sweep_param refuses that) in m or deg, as the file writes it. */
+static sw_status sweep_value(const key_def *k, const char *text, int kind, double *v, char *why, size_t n)
 {
+    if (k->kind == K_COORD) {
+        sw_unit_kind unit;
+        return scn_parse_coord(k, text, kind, v, &unit, why, n);
+    }
     if (k->kind == K_CHOICE) {   /* a named choice: its index among the words */
         char word[LINE_MAX_CHARS + 1];
         snprintf(word, sizeof word, "%s", text);
@@ -125,7 +133,7 @@ static int sweep_values(parse_state *ps, const sweep_entry *e, const key_def *k,
         const char *part[2] = { lo, hi };
         double *into[2] = { &p->lo, &p->hi };
         for (int q = 0; q < 2; q++)
-            if ((st = sweep_value(k, part[q], into[q], why, sizeof why)) != SW_OK)
+            if ((st = sweep_value(k, part[q], ps->grid_kind, into[q], why, sizeof why)) != SW_OK)
                 return scn_fail_at(ps, st, e->line, "[sweep] %s = %s: %s '%s': %s", e->name, e->value, q ? "HI" : "LO",
                                    part[q], why);
         if (!(p->lo < p->hi))
@@ -168,7 +176,7 @@ static int sweep_values(parse_state *ps, const sweep_entry *e, const key_def *k,
             return scn_fail_at(ps, SW_ERR_RANGE, e->line, "[sweep] %s: too many values (accepted: at most %d)", e->name,
                                SW_MAX_SWEEP_LEVELS);
         double v;
-        if ((st = sweep_value(k, item, &v, why, sizeof why)) != SW_OK)
+        if ((st = sweep_value(k, item, ps->grid_kind, &v, why, sizeof why)) != SW_OK)
             return scn_fail_at(ps, st, e->line, "[sweep] %s = %s: value '%s': %s", e->name, e->value, item, why);
         for (size_t i = 0; i < p->n_levels; i++)
             if (p->level[i] == v)
@@ -221,6 +229,9 @@ static int sweep_key_target(parse_state *ps, const sweep_entry *e, const char *t
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s has no key '%s'%s", e->name, sec->label, key,
                            scn_suggest_text(&s, hint, sizeof hint));
     }
+    if (def->type == S_GRID && !ps->sc->has_grid && strcmp(key, "radius"))
+        return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: the grid comes from the seabed file (accepted: a "
+                           "[grid] section that gives nx, ny and dx)", e->name);
     /* numbers, the layout, and named choices of the storm surge ([wind] drag_law) */
     const int choice = k->kind == K_CHOICE && def->type == S_WIND;
     if (!scn_is_numeric(k->kind) && k->kind != K_LAYOUT && !choice)
@@ -277,7 +288,7 @@ static int sweep_param(parse_state *ps, const sweep_entry *e)
         if ((p->kind == SW_SWEEP_AMPLITUDE_FACTOR || p->kind == SW_SWEEP_SOURCE_X_OFFSET
              || p->kind == SW_SWEEP_SOURCE_Y_OFFSET) && !sweep_needs_sources(ps, e))
             return 0;
-        if (p->kind == SW_SWEEP_RESOLUTION_FACTOR && !scn_find_section(ps, S_GRID))
+        if (p->kind == SW_SWEEP_RESOLUTION_FACTOR && !ps->sc->has_grid)
             return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] resolution_factor: the grid comes from the seabed "
                                "file (accepted: a scenario with a [grid] section)");
     } else if (strchr(e->name, '.')) {
@@ -310,7 +321,13 @@ static int sweep_param(parse_state *ps, const sweep_entry *e)
         if (p->kind == SW_SWEEP_KEY && sw->param[i].kind == SW_SWEEP_KEY && strcmp(sw->param[i].target, p->target) == 0)
             return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: varies %s, as '%s' on line %d already does",
                                e->name, p->target, sw->param[i].name, sw->param[i].line);
-    p->unit = (int)scn_unit_kind(k->kind);
+    if (k->kind == K_COORD && ps->grid_kind == SCN_KIND_PENDING)
+        return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: a coordinate, and the grid's kind comes from the "
+                           "seabed file (accepted: with [grid] kind = projected or geographic written)", e->name);
+    if (k->kind == K_COORD)
+        p->unit = ps->grid_kind == SW_GRID_GEOGRAPHIC ? SW_UNIT_ANGLE : SW_UNIT_LENGTH;
+    else
+        p->unit = (int)scn_unit_kind(k->kind);
     p->integer = k->kind == K_INTEGER;
     p->layout = k->kind == K_LAYOUT;
     p->words = k->kind == K_CHOICE ? k->words : NULL;
@@ -350,7 +367,7 @@ int scn_finish_sweep(parse_state *ps)
                 sw->seed = (unsigned long long)v;
             seed_line = e->line;
         } else {
-            st = scn_store_value(k, ps->sc, e->value, why, sizeof why);
+            st = scn_store_value(k, ps->sc, e->value, ps->grid_kind, why, sizeof why);
             *(k->kind == K_CHOICE ? &design_line : &members_line) = e->line;
         }
         if (st != SW_OK)

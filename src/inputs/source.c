@@ -10,6 +10,17 @@
  *   pair:    the ellipse with +A centred separation/2 to the left of the axis, minus the ellipse
  *            with T (trough) centred separation/2 to the right.
  *   file:    interpolated bilinearly; 0 outside the file's extent.
+ *
+ * On a geographic grid (grid.h: x = R lambda, y = R phi) the offset (ex, ey) is a point's place in the
+ * azimuthal equidistant plane about the source's centre: ex = d sin(b), ey = d cos(b), with d the
+ * great-circle distance from the centre (the haversine formula, well conditioned for short distances:
+ * R. W. Sinnott, "Virtues of the haversine", Sky and Telescope 68(2), 1984, p. 159 [memory]) and b the
+ * initial bearing from the centre, clockwise from north (the forward azimuth of spherical trigonometry,
+ * tan b = sin(dlambda) cos(phi) / (cos(phi_c) sin(phi) - sin(phi_c) cos(phi) cos(dlambda))). So every
+ * length of a shape is a true distance on the sphere and every direction a true bearing: a hump of radius
+ * 50 km is round on the ground at any latitude, and d is exact along every ray from the centre. A pair's
+ * two centres are placed separation/2 to either side of the axis in that plane. Projected grids keep
+ * the plane formulas above, and their bits.
  */
 #include "inputs/source.h"
 
@@ -43,6 +54,64 @@ static void source_add_ellipse(const sw_grid *g, double xc, double yc, double am
             double v = (-ex * sa + ey * ca) / W;
             eta[j * g->nx + i] += amp * exp(-(u * u) - (v * v));
         }
+    }
+}
+
+/* The centre of a source on a geographic grid, with the sines and cosines the plane about it needs. */
+typedef struct {
+    double lambda, phi;       /* the centre's longitude and latitude, rad */
+    double sin_phi, cos_phi;
+} sphere_centre;
+
+/* Adds amp * exp(-(u/L)^2 - (v/W)^2) to eta on geographic grid g, with (ex, ey) the azimuthal equidistant
+ * coordinates of each cell centre about c (see the top of this file) less (sx, sy), the offset of this
+ * ellipse's own centre in that plane (a pair's halves), axis at angle (ca, sa). */
+static void source_add_ellipse_sphere(const sw_grid *g, const sphere_centre *c, double sx, double sy, double amp,
+                                      double L, double W, double ca, double sa, double *eta)
+{
+    const double R = g->radius_m;
+    for (size_t j = 0; j < g->ny; j++) {
+        const double phi = sw_grid_yc(g, j) / R;
+        const double sp = sin(phi), cp = cos(phi), sh = sin(0.5 * (phi - c->phi));
+        for (size_t i = 0; i < g->nx; i++) {
+            const double dl = sw_grid_xc(g, i) / R - c->lambda;
+            const double sl = sin(0.5 * dl);
+            /* haversine: a = sin^2(dphi / 2) + cos(phi_c) cos(phi) sin^2(dlambda / 2), d = 2 R asin(sqrt(a)) */
+            const double a = fmin(1.0, sh * sh + c->cos_phi * cp * sl * sl);
+            const double d = 2.0 * R * asin(sqrt(a));
+            /* the bearing's east and north parts, unnormalised */
+            const double e = sin(dl) * cp, n = c->cos_phi * sp - c->sin_phi * cp * cos(dl);
+            const double h = hypot(e, n);
+            const double ex = (h > 0 ? d * e / h : 0.0) - sx, ey = (h > 0 ? d * n / h : 0.0) - sy;
+            const double u = (ex * ca + ey * sa) / L;
+            const double v = (-ex * sa + ey * ca) / W;
+            eta[j * g->nx + i] += amp * exp(-(u * u) - (v * v));
+        }
+    }
+}
+
+/* Adds the analytic source s (hump, ellipse or pair) to eta on geographic grid g. */
+static void source_add_sphere(const sw_grid *g, const sw_source_spec *s, double ca, double sa, double *eta)
+{
+    sphere_centre c = { .lambda = s->x_m / g->radius_m, .phi = s->y_m / g->radius_m };
+    c.sin_phi = sin(c.phi);
+    c.cos_phi = cos(c.phi);
+    switch (s->shape) {
+    case SW_SOURCE_HUMP:
+        source_add_ellipse_sphere(g, &c, 0, 0, s->amplitude_m, s->radius_m, s->radius_m, 1.0, 0.0, eta);
+        break;
+    case SW_SOURCE_ELLIPSE:
+        source_add_ellipse_sphere(g, &c, 0, 0, s->amplitude_m, s->length_m, s->width_m, ca, sa, eta);
+        break;
+    case SW_SOURCE_PAIR: {
+        const double h = 0.5 * s->separation_m;
+        const double trough = s->trough_m != 0.0 ? s->trough_m : s->amplitude_m;  /* 0 = unset */
+        source_add_ellipse_sphere(g, &c, -h * sa, h * ca, s->amplitude_m, s->length_m, s->width_m, ca, sa, eta);
+        source_add_ellipse_sphere(g, &c, h * sa, -h * ca, -trough, s->length_m, s->width_m, ca, sa, eta);
+        break;
+    }
+    case SW_SOURCE_FILE:
+        break;
     }
 }
 
@@ -106,6 +175,13 @@ sw_status sw_source_build(const sw_scenario *sc, double *eta0_m, sw_error *err)
             return st;
         double a = s->angle_deg * SOURCE_PI / 180.0;
         double ca = cos(a), sa = sin(a);
+        if (sw_grid_geographic(g) && s->shape != SW_SOURCE_FILE) {
+            if (!(g->radius_m > 0))
+                return sw_fail(err, SW_ERR_USAGE, "%s:%d: [source %s]: the geographic grid has no sphere radius",
+                               sc->path, s->line, s->name);
+            source_add_sphere(g, s, ca, sa, eta0_m);
+            continue;
+        }
         switch (s->shape) {
         case SW_SOURCE_HUMP:
             source_add_ellipse(g, s->x_m, s->y_m, s->amplitude_m, s->radius_m, s->radius_m, 1.0, 0.0,

@@ -182,14 +182,47 @@ static void print_forcing(FILE *f, const sw_scenario *sc, const sw_setup *s)
         fprintf(f, "           warning: %s\n", warn);
 }
 
+/* The plan's Grid line: the kind, the cells and their size, the extent (in degrees on a geographic grid)
+ * and the water. */
+static void print_grid(FILE *f, const sw_setup *s)
+{
+    const sw_grid *g = &s->grid;
+    const double water = 100.0 * (double)s->wet_cells / (double)sw_grid_cells(g);
+    if (!sw_grid_geographic(g)) {
+        fprintf(f, "Grid       projected, %zu x %zu cells of %g m x %g m, %.1f km x %.1f km, %zu water cells (%.0f %%)\n",
+                g->nx, g->ny, g->dx_m, g->dy_m, (double)g->nx * g->dx_m / 1000, (double)g->ny * g->dy_m / 1000,
+                s->wet_cells, water);
+        return;
+    }
+    const double x1 = g->x0_m + (double)g->nx * g->dx_m, y1 = g->y0_m + (double)g->ny * g->dy_m;
+    fprintf(f, "Grid       geographic (sphere of radius %g km), %zu x %zu cells of %.6g deg x %.6g deg, longitude "
+            "%.6g to %.6g deg, latitude %.6g to %.6g deg, %zu water cells (%.0f %%)\n", g->radius_m / 1000, g->nx,
+            g->ny, sw_grid_to_deg(g, g->dx_m), sw_grid_to_deg(g, g->dy_m), sw_grid_to_deg(g, g->x0_m),
+            sw_grid_to_deg(g, x1), sw_grid_to_deg(g, g->y0_m), sw_grid_to_deg(g, y1), s->wet_cells, water);
+}
+
+/* The plan's line on the land the seabed file marked by missing values or a mask; nothing when the
+ * scenario asks for neither. */
+static void print_land(FILE *f, const sw_scenario *sc, const sw_setup *s)
+{
+    if (!sc->bed_file[0] || (!sc->bed_missing_land && !sc->bed_land_mask[0]))
+        return;
+    fprintf(f, "Land       from %s:", sc->bed_file);
+    if (sc->bed_missing_land)
+        fprintf(f, " %zu cells by missing values%s", s->land_missing, sc->bed_land_mask[0] ? "," : "");
+    if (sc->bed_land_mask[0])
+        fprintf(f, " %zu cells by the land mask '%s'", s->land_mask, sc->bed_land_mask);
+    fprintf(f, "\n");
+}
+
 void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
 {
     const sw_grid *g = &s->grid;
+    const int geo = sw_grid_geographic(g);
     char buf[64];
     fprintf(f, "Scenario   %s  (%s)\n", sc->title, sc->path);
-    fprintf(f, "Grid       %zu x %zu cells of %g m x %g m, %.1f km x %.1f km, %zu water cells (%.0f %%)\n",
-            g->nx, g->ny, g->dx_m, g->dy_m, g->nx * g->dx_m / 1000, g->ny * g->dy_m / 1000, s->wet_cells,
-            100.0 * (double)s->wet_cells / (double)sw_grid_cells(g));
+    print_grid(f, s);
+    print_land(f, sc, s);
     fprintf(f, "Edges      west %s, east %s, south %s, north %s\n", sw_edge_name(sc->edges[SW_WEST]),
             sw_edge_name(sc->edges[SW_EAST]), sw_edge_name(sc->edges[SW_SOUTH]), sw_edge_name(sc->edges[SW_NORTH]));
     fprintf(f, "Layout     %s (%s)\n", s->layout->name, s->layout->summary);
@@ -198,6 +231,9 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
     fprintf(f, "Depth      deepest water %g m (wave speed %.1f m/s)\n", s->h_max_m, sqrt(sc->gravity_ms2 * s->h_max_m));
     fprintf(f, "Time step  dt = %.4g s: Courant number %.4g, %s-layout %dD limit %.4g (%.0f %% of it)\n", s->dt_s,
             s->courant, s->layout->name, s->dims, s->courant_limit, 100 * s->courant / s->courant_limit);
+    if (geo)
+        fprintf(f, "           the limit is reached on row %zu, latitude %.4g deg, where the narrowest cell is %.4g km "
+                "wide (dx cos(latitude))\n", s->dt_row, s->dt_row_lat_deg, s->dt_row_width_m / 1000);
     print_terms(f, sc, s);
     print_forcing(f, sc, s);
     sw_format_duration(sc->duration_s, buf, sizeof buf);
@@ -227,11 +263,14 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
         }
     }
     if (sc->n_gauges) {
-        fprintf(f, "\n%-24s %12s %12s %10s\n", "Gauge", "x (km)", "y (km)", "depth (m)");
+        fprintf(f, "\n%-24s %12s %12s %10s\n", "Gauge", geo ? "lon (deg)" : "x (km)", geo ? "lat (deg)" : "y (km)",
+                "depth (m)");
         for (size_t q = 0; q < sc->n_gauges; q++) {
             const sw_gauge_spec *gp = &sc->gauges[q];
             double d = sw_gauges_depth_at(g, s->depth_m, gp->x_m, gp->y_m);
-            fprintf(f, "%-24s %12.3f %12.3f %10.1f%s\n", gp->name, gp->x_m / 1000, gp->y_m / 1000, d,
+            fprintf(f, "%-24s %12.*f %12.*f %10.1f%s\n", gp->name, geo ? 5 : 3,
+                    geo ? sw_grid_to_deg(g, gp->x_m) : gp->x_m / 1000, geo ? 5 : 3,
+                    geo ? sw_grid_to_deg(g, gp->y_m) : gp->y_m / 1000, d,
                     d < sc->min_depth_m ? "   warning: on land or shallower than min_depth" : "");
         }
     }
@@ -254,7 +293,7 @@ static void add_terms(cJSON *o, const sw_scenario *sc, const sw_setup *s)
     cJSON *e = cJSON_AddObjectToObject(o, "terms");
     cJSON_AddStringToObject(e, "description", line);
     cJSON_AddStringToObject(e, "rotation", sw_rotation_name(t->rotation));
-    if (t->rotation != SW_ROTATION_NONE)
+    if (t->rotation == SW_ROTATION_F_PLANE || t->rotation == SW_ROTATION_BETA_PLANE)   /* the sphere's f is per row */
         cJSON_AddNumberToObject(e, "coriolis_f0_per_s", t->f0_s);
     if (t->rotation == SW_ROTATION_BETA_PLANE) {
         cJSON_AddNumberToObject(e, "coriolis_beta_per_m_s", t->beta_ms);
@@ -344,6 +383,24 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
     cJSON_AddNumberToObject(grid, "x0_m", g->x0_m);
     cJSON_AddNumberToObject(grid, "y0_m", g->y0_m);
     cJSON_AddNumberToObject(grid, "water_cells", (double)s->wet_cells);
+    const int geo = sw_grid_geographic(g);
+    cJSON_AddStringToObject(grid, "kind", geo ? "geographic" : "projected");
+    if (geo) {
+        cJSON_AddNumberToObject(grid, "radius_m", g->radius_m);
+        cJSON_AddNumberToObject(grid, "dx_deg", sw_grid_to_deg(g, g->dx_m));
+        cJSON_AddNumberToObject(grid, "dy_deg", sw_grid_to_deg(g, g->dy_m));
+        cJSON_AddNumberToObject(grid, "lon_west_deg", sw_grid_to_deg(g, g->x0_m));
+        cJSON_AddNumberToObject(grid, "lon_east_deg", sw_grid_to_deg(g, g->x0_m + (double)g->nx * g->dx_m));
+        cJSON_AddNumberToObject(grid, "lat_south_deg", sw_grid_to_deg(g, g->y0_m));
+        cJSON_AddNumberToObject(grid, "lat_north_deg", sw_grid_to_deg(g, g->y0_m + (double)g->ny * g->dy_m));
+    }
+    if (sc->bed_file[0] && (sc->bed_missing_land || sc->bed_land_mask[0])) {
+        cJSON *land = cJSON_AddObjectToObject(o, "land_from_file");
+        cJSON_AddNumberToObject(land, "missing_cells", (double)s->land_missing);
+        cJSON_AddNumberToObject(land, "mask_cells", (double)s->land_mask);
+    } else {
+        cJSON_AddNullToObject(o, "land_from_file");
+    }
     cJSON_AddStringToObject(o, "layout", s->layout->name);
     cJSON_AddStringToObject(o, "precision", sw_precision_name(sc->precision));
     cJSON_AddNumberToObject(o, "depth_max_m", s->h_max_m);
@@ -352,6 +409,14 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
     cJSON_AddNumberToObject(o, "dt_s", s->dt_s);
     cJSON_AddNumberToObject(o, "courant", s->courant);
     cJSON_AddNumberToObject(o, "courant_limit", s->courant_limit);
+    cJSON *lim = cJSON_AddObjectToObject(o, "dt_limit");
+    cJSON_AddNumberToObject(lim, "dt_s", s->dt_limit_s);
+    cJSON_AddNumberToObject(lim, "row", (double)s->dt_row);
+    if (geo)
+        cJSON_AddNumberToObject(lim, "latitude_deg", s->dt_row_lat_deg);
+    else
+        cJSON_AddNullToObject(lim, "latitude_deg");
+    cJSON_AddNumberToObject(lim, "cell_width_m", s->dt_row_width_m);
     cJSON_AddNumberToObject(o, "dims", s->dims);
     cJSON_AddNumberToObject(o, "steps", (double)s->n_steps);
     cJSON_AddNumberToObject(o, "duration_s", sc->duration_s);
@@ -379,6 +444,10 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
         cJSON_AddStringToObject(e, "name", sc->gauges[q].name);
         cJSON_AddNumberToObject(e, "x_m", sc->gauges[q].x_m);
         cJSON_AddNumberToObject(e, "y_m", sc->gauges[q].y_m);
+        if (geo) {
+            cJSON_AddNumberToObject(e, "lon_deg", sw_grid_to_deg(g, sc->gauges[q].x_m));
+            cJSON_AddNumberToObject(e, "lat_deg", sw_grid_to_deg(g, sc->gauges[q].y_m));
+        }
         cJSON_AddNumberToObject(e, "depth_m", d);
         cJSON_AddBoolToObject(e, "on_land", d < sc->min_depth_m);
         cJSON_AddItemToArray(gs, e);

@@ -13,7 +13,10 @@
 /* Formats a duration in seconds as "1 h 02 min 03 s", "12 min 30 s" or "42.5 s"; "-" for NaN. */
 void sw_format_duration(double s, char *buf, size_t n);
 
-/* Prints the plan of a run (grid, layout, dt and Courant number against the limit, the terms, with
+/* Prints the plan of a run (grid: its kind, and on a geographic grid its extent in degrees; the land the
+ * seabed file marked by missing values or a mask when the scenario reads them; layout, dt and Courant
+ * number against the limit, and on a geographic grid the row, latitude and narrowest cell width where the
+ * limit is reached; the terms, with
  * forcing a `Forcing` line naming the storm, weather file or level series (and the storm's warning when
  * its centre never enters the domain, from s->storm), steps, memory (the forcing's share named), gauges
  * with their depth and warnings). With a rate (NULL or cells_per_s <= 0 = unknown: no
@@ -21,7 +24,11 @@ void sw_format_duration(double s, char *buf, size_t n);
  * came from (cache and its age, or measured now and whether the cache was written). */
 void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate);
 
-/* The plan as a JSON object (string owned by the caller, free()). NULL when out of memory. It has
+/* The plan as a JSON object (string owned by the caller, free()). NULL when out of memory. Its "grid" has
+ * "kind" ("projected" or "geographic"; geographic grids add "radius_m", "dx_deg", "dy_deg", "lon_west_deg",
+ * "lon_east_deg", "lat_south_deg", "lat_north_deg"); "land_from_file" is null or has "missing_cells" and
+ * "mask_cells"; "dt_limit" has "dt_s", "row", "latitude_deg" (null on a projected grid) and "cell_width_m";
+ * a gauge on a geographic grid adds "lon_deg" and "lat_deg". It has
  * "forcing": null without forcing, else an object with "description" (the plan's line), "storm" (its
  * settings, "outside_domain", "closest_approach_m", "closest_approach_s"; null without a storm),
  * "weather_file", "level_series" (null when absent), the drag and densities, "memory_bytes" and

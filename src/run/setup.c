@@ -2,6 +2,7 @@
 #include "run/setup.h"
 
 #include <math.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -45,18 +46,65 @@ static sw_status periodic_fits(const sw_scenario *sc, const sw_layout *lay, cons
 }
 
 /* Every gauge must lie in the domain. The parser checks this when [grid] is given; a grid taken
- * from the seabed file is only known here. */
+ * from the seabed file is only known here. On a geographic grid the edges are given a micrometre for
+ * the round-off of degrees turned into metres, and the message is in degrees. */
 static sw_status gauges_inside(const sw_scenario *sc, const sw_grid *g, sw_error *err)
 {
+    const int geo = sw_grid_geographic(g);
+    const double eps = geo ? 1e-6 : 0.0;
     double x1 = g->x0_m + (double)g->nx * g->dx_m, y1 = g->y0_m + (double)g->ny * g->dy_m;
     for (size_t q = 0; q < sc->n_gauges; q++) {
         const sw_gauge_spec *gp = &sc->gauges[q];
-        if (gp->x_m < g->x0_m || gp->x_m > x1 || gp->y_m < g->y0_m || gp->y_m > y1)
-            return sw_fail(err, SW_ERR_RANGE, "%s:%d: [gauges] %s = %g m, %g m: outside the domain "
-                           "(accepted: x from %g to %g m, y from %g to %g m)", sc->path, gp->line, gp->name,
-                           gp->x_m, gp->y_m, g->x0_m, x1, g->y0_m, y1);
+        if (!(gp->x_m < g->x0_m - eps || gp->x_m > x1 + eps || gp->y_m < g->y0_m - eps || gp->y_m > y1 + eps))
+            continue;
+        if (geo)
+            return sw_fail(err, SW_ERR_RANGE, "%s:%d: [gauges] %s = %.10g deg, %.10g deg: outside the domain "
+                           "(accepted: longitude from %.10g to %.10g deg, latitude from %.10g to %.10g deg)", sc->path,
+                           gp->line, gp->name, sw_grid_to_deg(g, gp->x_m), sw_grid_to_deg(g, gp->y_m),
+                           sw_grid_to_deg(g, g->x0_m), sw_grid_to_deg(g, x1), sw_grid_to_deg(g, g->y0_m),
+                           sw_grid_to_deg(g, y1));
+        return sw_fail(err, SW_ERR_RANGE, "%s:%d: [gauges] %s = %g m, %g m: outside the domain "
+                       "(accepted: x from %g to %g m, y from %g to %g m)", sc->path, gp->line, gp->name,
+                       gp->x_m, gp->y_m, g->x0_m, x1, g->y0_m, y1);
     }
     return SW_OK;
+}
+
+/* A geographic grid taken from the seabed file must keep the limits [grid] has (the parser checks them
+ * there): at most once around the sphere, and its halo rows within SW_GRID_POLE_LIMIT_DEG of the
+ * equator, tested as the model tests them (model.c). */
+static sw_status sphere_fits(const sw_scenario *sc, const sw_grid *g, sw_error *err)
+{
+    if (!sw_grid_geographic(g))
+        return SW_OK;
+    const double around = sw_grid_to_deg(g, (double)g->nx * g->dx_m);
+    if (around > 360.0 * (1 + 1e-9))
+        return sw_fail(err, SW_ERR_RANGE, "%s:%d: [seabed] file: its %zu columns of %.10g deg span %.10g deg of "
+                       "longitude, more than once around the sphere (accepted: at most 360 deg)", sc->path,
+                       sc->bed_line, g->nx, sw_grid_to_deg(g, g->dx_m), around);
+    const double lim = SW_GRID_POLE_LIMIT_DEG * 3.14159265358979323846 / 180.0;
+    const double south = g->y0_m - g->dy_m, north = g->y0_m + (double)(g->ny + 1) * g->dy_m;
+    if (!(fabs(south) / g->radius_m <= lim && fabs(north) / g->radius_m <= lim))
+        return sw_fail(err, SW_ERR_RANGE, "%s:%d: [seabed] file: its rows and their halo rows span latitude %.10g to "
+                       "%.10g deg, beyond +-%g deg (accepted: a grid whose outer rows, one row beyond the file's, stay "
+                       "within +-%g deg: towards a pole cos(latitude) goes to 0, cells collapse to slivers and the time "
+                       "step with them)", sc->path, sc->bed_line, sw_grid_to_deg(g, south), sw_grid_to_deg(g, north),
+                       SW_GRID_POLE_LIMIT_DEG, SW_GRID_POLE_LIMIT_DEG);
+    return SW_OK;
+}
+
+/* The grid: from [grid], or read from the seabed file, whose axes then give the kind (sw_seabed_grid
+ * refuses a file that contradicts a kind [grid] writes). Then sc's positions are placed on it
+ * (sw_scenario_place), and a grid from the file must keep [grid]'s limits on a sphere. */
+static sw_status take_grid(sw_scenario *sc, sw_error *err)
+{
+    const int from_file = !sc->has_grid;
+    sw_status rc = sw_seabed_grid(sc, err);
+    if (rc == SW_OK)
+        rc = sw_scenario_place(sc, err);
+    if (rc == SW_OK && from_file)
+        rc = sphere_fits(sc, &sc->grid, err);
+    return rc;
 }
 
 sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
@@ -64,7 +112,7 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
     memset(s, 0, sizeof *s);
     sw_status rc = choose_layout(sc, s, err);
     if (rc == SW_OK)
-        rc = sw_seabed_grid(sc, err);
+        rc = take_grid(sc, err);
     if (rc == SW_OK)
         rc = gauges_inside(sc, &sc->grid, err);
     if (rc == SW_OK)
@@ -79,7 +127,10 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
         sw_setup_free(s);
         return sw_fail(err, SW_ERR_NOMEM, "out of memory for the %zu x %zu input fields", s->grid.nx, s->grid.ny);
     }
-    rc = sw_seabed_build(sc, s->depth_m, err);
+    sw_seabed_info info = { 0 };
+    rc = sw_seabed_build_info(sc, s->depth_m, &info, err);
+    s->land_missing = info.land_missing;
+    s->land_mask = info.land_mask;
     if (rc == SW_OK)
         rc = sw_source_build(sc, s->eta0_m, err);
     if (rc != SW_OK) {
@@ -92,6 +143,22 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
     if (rc != SW_OK)
         sw_setup_free(s);
     return rc;
+}
+
+/* Where the time-step limit is reached (s->dt_row, from sw_model_dt_limit_row): the latitude of the row's
+ * centres and its narrowest true cell width, the least cos(latitude) over its centres and face lines as
+ * the model takes it (model.c). */
+static void where_limit(const sw_grid *g, sw_setup *s)
+{
+    if (!sw_grid_geographic(g)) {
+        s->dt_row_lat_deg = 0;
+        s->dt_row_width_m = g->dx_m;
+        return;
+    }
+    const double ys = g->y0_m + (double)s->dt_row * g->dy_m;
+    s->dt_row_lat_deg = sw_grid_to_deg(g, ys + 0.5 * g->dy_m);
+    s->dt_row_width_m = g->dx_m * fmin(sw_grid_cos_lat(g, ys + 0.5 * g->dy_m),
+                                       fmin(sw_grid_cos_lat(g, ys), sw_grid_cos_lat(g, ys + g->dy_m)));
 }
 
 sw_status sw_setup_derive(const sw_scenario *sc, sw_setup *s, const char *change, sw_error *err)
@@ -115,21 +182,29 @@ sw_status sw_setup_derive(const sw_scenario *sc, sw_setup *s, const char *change
 
     /* dt from the Courant fraction, or the explicit dt checked against the limit */
     s->dims = (g->nx == 1 || g->ny == 1) ? 1 : 2;
-    s->dt_limit_s = sw_model_dt_limit(s->layout, g, s->depth_m, sc->min_depth_m, sc->gravity_ms2, s->dims);
+    s->dt_limit_s = sw_model_dt_limit_row(s->layout, g, s->depth_m, sc->min_depth_m, sc->gravity_ms2, s->dims,
+                                          &s->dt_row);
+    where_limit(g, s);
     /* rotation lowers the limit a little (docs/terms.md): f dt = 1e-3 takes 0.03 % off */
     const double f_max = sw_terms_f_max(&sc->terms, g->y0_m, g->y0_m + (double)g->ny * g->dy_m, g->radius_m);
     s->dt_limit_s = sw_terms_dt_limit(s->dt_limit_s, f_max);
     s->courant_limit = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_limit_s);
     if (sc->dt_s > 0) {
+        char where[160];
+        if (sw_grid_geographic(g))
+            snprintf(where, sizeof where, "on row %zu at latitude %.4g deg, where cells are %.4g km wide", s->dt_row,
+                     s->dt_row_lat_deg, s->dt_row_width_m / 1000);
+        else
+            snprintf(where, sizeof where, "at the deepest water, %g m", s->h_max_m);
         s->dt_s = sc->dt_s;
         s->courant = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_s);
         if (s->dt_s > s->dt_limit_s * (1 + 1e-12))
             return sw_fail(err, SW_ERR_UNSTABLE,
                            "%s:%d: [run] dt = %g s%s%s: Courant number %.4g exceeds the %s-layout limit %.4g%s "
-                           "(largest stable dt = %.4g s at the deepest water, %g m)",
+                           "(largest stable dt = %.4g s %s)",
                            sc->path, sc->dt_line, sc->dt_s, change ? " with " : "", change ? change : "",
                            s->courant, s->layout->name, s->courant_limit, f_max > 0 ? " with rotation" : "",
-                           s->dt_limit_s, s->h_max_m);
+                           s->dt_limit_s, where);
     } else {
         s->dt_s = sc->courant_fraction * s->dt_limit_s;
         s->courant = sw_model_courant(g, s->h_max_m, sc->gravity_ms2, s->dt_s);

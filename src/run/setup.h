@@ -34,6 +34,15 @@ typedef struct {
     double dt_limit_s;        /* largest stable time step, s */
     double courant;           /* sqrt(g h_max) dt / min(dx, dy) */
     double courant_limit;     /* the same number at dt_limit_s: the layout's limit */
+    size_t dt_row;            /* the grid row where the limit is reached (sw_model_dt_limit_row): on a
+                               * geographic grid the row whose deepest water on its narrowest cells allows
+                               * the least step; 0 on a projected grid (the limit is the deepest water's) */
+    double dt_row_lat_deg;    /* geographic: the latitude of that row's centres, deg; 0 on a projected grid */
+    double dt_row_width_m;    /* the narrowest true cell width on that row, m: dx_m times the least
+                               * cos(latitude) over its centres and face lines (dx_m on a projected grid) */
+    size_t land_missing;      /* cells the seabed file made land by a missing value ([seabed] missing = land) */
+    size_t land_mask;         /* cells the seabed file's land mask made land ([seabed] land_mask); a cell both
+                               * masked and missing counts here (sw_seabed_info) */
     int dims;                 /* 1 for a one-cell-wide channel, else 2 */
     long long n_steps;        /* steps to cover the duration */
     size_t n_samples;         /* gauge samples the run will record, at most */
@@ -49,7 +58,8 @@ typedef struct {
 } sw_setup;
 
 /* Builds the setup for sc: grid (taken from the seabed file when sc has no [grid]; sc->grid is
- * then filled in), depth, initial elevation, layout, time step and sizes, and with a [storm] its
+ * then filled in, and sc's positions placed on it: sw_scenario_place), depth (with the counts of land
+ * the file marked), initial elevation, layout, time step and sizes, and with a [storm] its
  * pass over the domain (sw_setup_storm_pass: the track is read and checked to cover the run here, so
  * `check` reports a bad track as `run` would). On failure returns the status, err names the scenario
  * file and line (or the track file and line) where one applies, and s owns nothing.
@@ -57,7 +67,8 @@ typedef struct {
 sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err);
 
 /* Derives from the depth field s->depth_m (on s->grid, for s->layout) everything that depends on it:
- * wet_cells, h_max_m, dims, dt_limit_s, courant_limit, the time step dt_s (sc's Courant fraction of the
+ * wet_cells, h_max_m, dims, dt_limit_s (and where it is reached: dt_row, dt_row_lat_deg, dt_row_width_m),
+ * courant_limit, the time step dt_s (sc's Courant fraction of the
  * limit, or sc's explicit dt, refused beyond the limit) and courant, then n_steps, n_samples, n_snapshots,
  * model_bytes and total_bytes. sw_setup_build calls it once the depth is built; a caller that changes the
  * depth afterwards (a sweep's depth_factor) calls it again, so both derive dt and sizes the same way.

@@ -115,17 +115,21 @@ static void member_overrides(const sw_sweep_plan *plan, size_t k, ov_list *l)
         ov_set(l, p->target, text, plan->member[k].value[q]);
     }
     double r = member_builtin(plan, k, SW_SWEEP_RESOLUTION_FACTOR, 1.0);
-    if (r != 1.0) {   /* the same extent in round(n r) cells */
+    if (r != 1.0) {   /* the same extent in round(n r) cells (a seabed file is read up to its outer cells' edges) */
+        /* spacings in the unit the file writes them in: m, or deg on a geographic grid (scenario.h) */
+        const int geo = sw_grid_geographic(&sc->grid);
+        const double gdx = geo ? sw_grid_to_deg(&sc->grid, sc->grid.dx_m) : sc->grid.dx_m;
+        const double gdy = geo ? sw_grid_to_deg(&sc->grid, sc->grid.dy_m) : sc->grid.dy_m;
         double nx = ov_get(l, "grid.nx", (double)sc->grid.nx), ny = ov_get(l, "grid.ny", (double)sc->grid.ny);
-        double dx = ov_get(l, "grid.dx", sc->grid.dx_m);
-        double dy = ov_get(l, "grid.dy", sc->grid.dy_m == sc->grid.dx_m ? dx : sc->grid.dy_m);
+        double dx = ov_get(l, "grid.dx", gdx);
+        double dy = ov_get(l, "grid.dy", sc->grid.dy_m == sc->grid.dx_m ? dx : gdy);
         double nx2 = fmax(1.0, (double)llround(nx * r)), ny2 = fmax(1.0, (double)llround(ny * r));
         snprintf(text, sizeof text, "%.0f", nx2);
         ov_set(l, "grid.nx", text, nx2);
         snprintf(text, sizeof text, "%.0f", ny2);
         ov_set(l, "grid.ny", text, ny2);
-        ov_set_number(l, "grid.dx", nx * dx / nx2, "m");
-        ov_set_number(l, "grid.dy", ny * dy / ny2, "m");
+        ov_set_number(l, "grid.dx", nx * dx / nx2, geo ? "deg" : "m");
+        ov_set_number(l, "grid.dy", ny * dy / ny2, geo ? "deg" : "m");
     }
     double f = member_builtin(plan, k, SW_SWEEP_AMPLITUDE_FACTOR, 1.0);
     double ox = member_builtin(plan, k, SW_SWEEP_SOURCE_X_OFFSET, 0.0);
@@ -145,12 +149,15 @@ static void member_overrides(const sw_sweep_plan *plan, size_t k, ov_list *l)
             }
             ov_set_number(l, target, f * amp, "m");
         }
+        /* positions and their offsets in the unit the file writes them in: m, or deg on a geographic grid */
+        const int geo = sw_grid_geographic(&sc->grid);
         const double off[2] = { ox, oy };
-        const double base[2] = { s->x_m, s->y_m };
+        const double base[2] = { geo ? sw_grid_to_deg(&sc->grid, s->x_m) : s->x_m,
+                                 geo ? sw_grid_to_deg(&sc->grid, s->y_m) : s->y_m };
         for (int a = 0; a < 2; a++)
             if (off[a] != 0.0) {
                 snprintf(target, sizeof target, "source %s.%s", s->name, a ? "y" : "x");
-                ov_set_number(l, target, ov_get(l, target, base[a]) + off[a], "m");
+                ov_set_number(l, target, ov_get(l, target, base[a]) + off[a], geo ? "deg" : "m");
             }
     }
     /* file paths made absolute, so the member's scenario file runs from its own folder */

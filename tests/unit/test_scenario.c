@@ -958,7 +958,7 @@ static void test_terms_keys(void **state)
         { TERMS_BASE "rotation = beta-plane\ncoriolis = 1e-4\nreference_y = 0\n", SW_ERR_PARSE,
           "t.scn:9: [run] rotation = beta-plane needs beta (m-1 s-1), or latitude", NULL },
         { TERMS_BASE "rotation = spherical\n", SW_ERR_PARSE, "[run] rotation = spherical: unknown value (accepted: "
-          "none, f-plane, beta-plane)", NULL },
+          "none, f-plane, beta-plane on a projected grid; sphere", NULL },
         { TERMS_BASE "drag = 0.0025\n", SW_ERR_PARSE, "t.scn:9: [run] drag: not used without friction (accepted: "
           "friction = quadratic with it)", NULL },
         { TERMS_BASE "friction = linear\ndrag = 0.0025\n", SW_ERR_PARSE, "t.scn:10: [run] drag: not used with "

@@ -250,6 +250,110 @@ static void test_sum_and_file_source(void **state)
     free(sc);
 }
 
+/* ---- geographic grids ------------------------------------------------------------------------ */
+
+#define R_EARTH 6371000.0   /* the mean Earth radius (IUGG) [memory], the default sphere */
+
+/* A geographic grid of nx x ny cells, dlambda_deg wide and dy_m high, whose cell (ic, jc) has its centre at
+ * longitude lon_deg, latitude lat_deg. */
+static sw_scenario *new_sphere(size_t nx, size_t ny, double dlambda_deg, double dy_m, size_t ic, size_t jc,
+                               double lon_deg, double lat_deg)
+{
+    sw_scenario *sc = calloc(1, sizeof *sc);
+    assert_non_null(sc);
+    strcpy(sc->path, "geo.scn");
+    strcpy(sc->dir, ".");
+    sc->has_grid = 1;
+    const double dx = R_EARTH * (dlambda_deg * PI / 180);
+    sc->grid = (sw_grid){.nx = nx, .ny = ny, .dx_m = dx, .dy_m = dy_m, .kind = SW_GRID_GEOGRAPHIC,
+                         .radius_m = R_EARTH, .x0_m = R_EARTH * (lon_deg * PI / 180) - ((double)ic + 0.5) * dx,
+                         .y0_m = R_EARTH * (lat_deg * PI / 180) - ((double)jc + 0.5) * dy_m};
+    return sc;
+}
+
+/* A hump at 60 N is round in true metres: the cell 4 columns east of its centre and the cell one row north
+ * lie at the same great-circle distance d (the row height is chosen so), and get the same elevation,
+ * A exp(-d^2 / r^2), as do the cells west and south. d east along the parallel from the haversine formula
+ * with dphi = 0, d = 2 R asin(cos(phi) sin(dlambda / 2)) (Sinnott 1984 [memory]); d north = R dphi, the
+ * row height [derived]. A plane metric (dx cos(phi)) would differ by about dlambda^2 / 24, some 1e-8 here. */
+static void test_hump_round_on_the_sphere(void **state)
+{
+    (void)state;
+    const double phi = 60 * PI / 180, dl = 0.1 * PI / 180;
+    const double d = 2 * R_EARTH * asin(cos(phi) * sin(4 * dl / 2));
+    sw_scenario *sc = new_sphere(21, 11, 0.1, d, 10, 5, 175.0, 60.0);
+    sc->n_sources = 1;
+    sc->sources[0] = hump(sw_grid_xc(&sc->grid, 10), sw_grid_yc(&sc->grid, 5), 1.5, 50000.0);
+    double *eta = build(sc);
+    const size_t nx = sc->grid.nx;
+    const double centre = eta[5 * nx + 10], east = eta[5 * nx + 14], west = eta[5 * nx + 6];
+    const double north = eta[6 * nx + 10], south = eta[4 * nx + 10];
+    assert_near(centre, 1.5, 1e-15);
+    const double want = 1.5 * exp(-(d * d) / (50000.0 * 50000.0));
+    assert_near(east / want, 1.0, 1e-12);
+    assert_near(north / east, 1.0, 1e-12);
+    assert_near(west / east, 1.0, 1e-12);
+    assert_near(south / north, 1.0, 1e-12);
+    /* and not what the plane along the parallel would give (R dlambda cos(phi) is longer than d) */
+    const double plane = R_EARTH * 4 * dl * cos(phi);
+    assert_true(fabs(1.5 * exp(-(plane * plane) / (50000.0 * 50000.0)) / east - 1) > 1e-9);
+    free(eta);
+    free(sc);
+}
+
+/* Shapes on the sphere against the azimuthal equidistant plane computed independently: for each cell the
+ * great-circle distance from Vincenty's form for a sphere, d = R atan2(sqrt((cos p2 sin dl)^2 + (cos p1 sin
+ * p2 - sin p1 cos p2 cos dl)^2), sin p1 sin p2 + cos p1 cos p2 cos dl) [memory], and the bearing b = atan2(cos p2
+ * sin dl, cos p1 sin p2 - sin p1 cos p2 cos dl) from north [memory]; the ellipse and pair formulas of
+ * docs/scenario.md in (d sin b, d cos b). Also the ellipse's e-folding point straight along its axis when
+ * the axis points north: at true distance L on the meridian (angle 90). */
+static void test_shapes_on_the_sphere(void **state)
+{
+    (void)state;
+    sw_scenario *sc = new_sphere(61, 41, 0.05, 2000.0, 30, 20, -170.0, -42.0);
+    const double xc = sw_grid_xc(&sc->grid, 30), yc = sw_grid_yc(&sc->grid, 20);
+    sc->n_sources = 2;
+    sc->sources[0] = ellipse(xc, yc, 0.8, 30000.0, 12000.0, 30.0);
+    sc->sources[1] = pair(xc + 3000, yc - 5000, 1.0, 0.6, 15000.0, 6000.0, 120.0, 9000.0);
+    double *eta = build(sc);
+    const sw_grid *g = &sc->grid;
+    for (size_t j = 0; j < g->ny; j++)
+        for (size_t i = 0; i < g->nx; i++) {
+            double want = 0;
+            for (size_t q = 0; q < 2; q++) {
+                const sw_source_spec *s = &sc->sources[q];
+                const double p1 = s->y_m / R_EARTH, p2 = sw_grid_yc(g, j) / R_EARTH;
+                const double dl = (sw_grid_xc(g, i) - s->x_m) / R_EARTH;
+                const double e = cos(p2) * sin(dl), n = cos(p1) * sin(p2) - sin(p1) * cos(p2) * cos(dl);
+                const double dist = R_EARTH * atan2(hypot(e, n), sin(p1) * sin(p2) + cos(p1) * cos(p2) * cos(dl));
+                const double b = atan2(e, n), ex = dist * sin(b), ey = dist * cos(b);
+                const double a = s->angle_deg * PI / 180, ca = cos(a), sa = sin(a);
+                if (s->shape == SW_SOURCE_ELLIPSE) {
+                    const double u = (ex * ca + ey * sa) / s->length_m, v = (-ex * sa + ey * ca) / s->width_m;
+                    want += s->amplitude_m * exp(-u * u - v * v);
+                } else {   /* uplift centred separation/2 to the left of the axis, (-sin a, cos a), trough right */
+                    const double h = s->separation_m / 2;
+                    for (int left = -1; left <= 1; left += 2) {
+                        const double px = ex + left * h * sa, py = ey - left * h * ca;
+                        const double u = (px * ca + py * sa) / s->length_m, v = (-px * sa + py * ca) / s->width_m;
+                        want += (left > 0 ? s->amplitude_m : -s->trough_m) * exp(-u * u - v * v);
+                    }
+                }
+            }
+            assert_near(eta[j * g->nx + i], want, 1e-11);
+        }
+    free(eta);
+
+    /* the axis pointing north: e-folding at true distance L along the meridian */
+    sc->n_sources = 1;
+    sc->sources[0] = ellipse(xc, yc, 1.0, 4 * 2000.0, 500.0, 90.0);
+    eta = build(sc);
+    assert_near(eta[24 * g->nx + 30], exp(-1.0), 1e-12);
+    assert_near(eta[16 * g->nx + 30], exp(-1.0), 1e-12);
+    free(eta);
+    free(sc);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -257,6 +361,8 @@ int main(void)
         cmocka_unit_test(test_ellipse_rotation),
         cmocka_unit_test(test_pair_integral_and_sides),
         cmocka_unit_test(test_sum_and_file_source),
+        cmocka_unit_test(test_hump_round_on_the_sphere),
+        cmocka_unit_test(test_shapes_on_the_sphere),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

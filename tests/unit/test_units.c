@@ -144,6 +144,57 @@ static void test_accepted_and_small_buffers(void **state)
     bad(longnum, SW_UNIT_NONE, "the number has 299 characters");
 }
 
+/* Positions: a length (m, km; SI Brochure k = 1e3), an angle (deg, kept as degrees) or a bare number, with
+ * the kind written reported; anything else refused naming the three units. */
+static void test_positions(void **state)
+{
+    (void)state;
+    static const struct {
+        const char *text;
+        double value;
+        sw_unit_kind written;
+    } ok_cases[] = {
+        { "12.5 km", 12500.0, SW_UNIT_LENGTH }, { "-300 m", -300.0, SW_UNIT_LENGTH }, { "1e3m", 1000.0, SW_UNIT_LENGTH },
+        { "172.5 deg", 172.5, SW_UNIT_ANGLE },  { " -41.25deg ", -41.25, SW_UNIT_ANGLE }, { "359.75", 359.75, SW_UNIT_NONE },
+        { "-0", 0.0, SW_UNIT_NONE },
+    };
+    for (size_t i = 0; i < sizeof ok_cases / sizeof ok_cases[0]; i++) {
+        double v = NAN;
+        sw_unit_kind w = SW_UNIT_TIME;
+        char why[256] = "";
+        if (sw_units_parse_position(ok_cases[i].text, &v, &w, why, sizeof why) != 0)
+            fail_msg("'%s' refused: %s", ok_cases[i].text, why);
+        assert_true(v == ok_cases[i].value);
+        assert_int_equal(w, ok_cases[i].written);
+        if (v == 0)
+            assert_false(signbit(v));   /* -0 is +0, as for every value */
+    }
+    static const struct {
+        const char *text, *want;
+    } bad_cases[] = {
+        { "5 kn", "unknown unit 'kn' (accepted: m, km, deg)" },
+        { "5 degrees", "unknown unit 'degrees' (accepted: m, km, deg)" },
+        { "deg", "no number before 'deg' (accepted: a number, then one of m, km, deg)" },
+        { "1 deg 2", "unexpected '2' after the unit" },
+        { "", "no value (accepted: a number with an optional unit: m, km, deg)" },
+        { "nan deg", "is not a finite number" },
+    };
+    for (size_t i = 0; i < sizeof bad_cases / sizeof bad_cases[0]; i++) {
+        double v = 7.0;
+        sw_unit_kind w = SW_UNIT_TIME;
+        char why[256] = "";
+        assert_int_equal(sw_units_parse_position(bad_cases[i].text, &v, &w, why, sizeof why), -1);
+        assert_true(v == 7.0 && w == SW_UNIT_TIME);   /* untouched */
+        if (!strstr(why, bad_cases[i].want))
+            fail_msg("'%s': cause '%s' lacks '%s'", bad_cases[i].text, why, bad_cases[i].want);
+    }
+    double v;
+    assert_int_equal(sw_units_parse_position("3 km", &v, NULL, NULL, 0), 0);   /* written and why optional */
+    assert_true(v == 3000.0);
+    /* the plain parser still refuses deg for a length */
+    assert_int_equal(sw_units_parse("3 deg", SW_UNIT_LENGTH, &v, NULL, 0), -1);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -152,6 +203,7 @@ int main(void)
         cmocka_unit_test(test_bad_units_list_the_accepted),
         cmocka_unit_test(test_bad_forms),
         cmocka_unit_test(test_accepted_and_small_buffers),
+        cmocka_unit_test(test_positions),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
