@@ -8,6 +8,10 @@
  * NaN means "no value" in the caller's arrays (land, never reached). NetCDF readers expect the
  * _FillValue instead, so NaN is replaced in a scratch copy before each write; the caller's arrays
  * are never modified.
+ *
+ * A projected file without a coordinate reference keeps exactly the variables and attributes it
+ * always had (tests/py/test_golden.py pins their values); the crs variable, grid_mapping and the
+ * lon/lat coordinates appear only with a CRS or on a geographic grid.
  */
 #include "outputs/ncwrite.h"
 
@@ -24,6 +28,7 @@
 #define NCW_DEFLATE_LEVEL 1                /* zlib level of compressed variables */
 #define NCW_MAP_CHUNK_EDGE 256             /* map chunks are at most 256 x 256 cells */
 #define NCW_SNAP_CHUNK_CELLS ((size_t)1 << 22) /* snapshot chunk cap: 4 Mi cells = 16 MiB of float */
+#define NCW_CRS_VAR "crs"                  /* the grid mapping variable every gridded variable names */
 
 static const char NCW_COMMENT[] = "Linear shallow-water model run; see the caution attribute.";
 
@@ -136,6 +141,47 @@ static void ncw_double(ncw_file *f, int varid, const char *att, double value)
         ncw_att_check(f, nc_put_att_double(f->ncid, varid, att, NC_DOUBLE, 1, &value), varid, att);
 }
 
+/* Writes n doubles as one attribute. */
+static void ncw_doubles(ncw_file *f, int varid, const char *att, const double *values, size_t n)
+{
+    if (f->rc == SW_OK)
+        ncw_att_check(f, nc_put_att_double(f->ncid, varid, att, NC_DOUBLE, n, values), varid, att);
+}
+
+/* The coordinate reference a file gets on grid g (NULL: projected): 1 when it has one, i.e. on a
+ * geographic grid or with a CRS given for a projected one. */
+static int ncw_has_crs(const sw_grid *g, const sw_crs *crs)
+{
+    return (g && sw_grid_geographic(g)) || sw_crs_present(crs);
+}
+
+/* Defines the scalar grid mapping variable `crs` (CF 1.11 section 5.6) when the file has a coordinate
+ * reference (ncw_has_crs): on a geographic grid latitude_longitude on the model's sphere (appendix F:
+ * semi_major_axis, inverse_flattening 0 for a sphere), otherwise a copy of every attribute of the
+ * input's grid mapping. Returns 1 when it was defined, 0 when the file has none (or after a failure). */
+static int ncw_def_crs(ncw_file *f, const sw_grid *g, const sw_crs *crs)
+{
+    if (!ncw_has_crs(g, crs))
+        return 0;
+    int id = ncw_var(f, NCW_CRS_VAR, NC_INT, 0, NULL);
+    if (g && sw_grid_geographic(g)) {
+        ncw_text(f, id, "grid_mapping_name", "latitude_longitude");
+        ncw_double(f, id, "semi_major_axis", g->radius_m);
+        ncw_double(f, id, "inverse_flattening", 0.0);
+        ncw_double(f, id, "longitude_of_prime_meridian", 0.0);
+        ncw_text(f, id, "long_name", "longitude and latitude on the model's sphere (radius semi_major_axis, m)");
+    } else {
+        for (size_t k = 0; k < crs->n_atts; k++) {
+            const sw_crs_att *a = &crs->atts[k];
+            if (a->type == SW_CRS_TEXT)
+                ncw_text(f, id, a->name, a->text);
+            else
+                ncw_doubles(f, id, a->name, a->values, a->count);
+        }
+    }
+    return f->rc == SW_OK;
+}
+
 /* Sets the _FillValue of a double or float variable (NC_FILL_DOUBLE / NC_FILL_FLOAT). */
 static void ncw_fill(ncw_file *f, int varid, nc_type type)
 {
@@ -224,10 +270,11 @@ static int ncw_time_var(ncw_file *f, const sw_run_meta *m, int dim)
 
 /* Ids of the grid variables shared by the map and snapshot files. */
 typedef struct {
-    int dim_y, dim_x;  /* dimensions y (ny) and x (nx) */
-    int x, y;          /* cell-centre coordinates */
+    int dim_y, dim_x;  /* dimensions y (ny) and x (nx); lat and lon on a geographic grid */
+    int x, y;          /* cell-centre coordinates (lon, lat on a geographic grid) */
     int depth;         /* still-water depth */
     int wet;           /* water mask, -1 when not written */
+    int has_crs;       /* 1: the variable `crs` exists and gridded variables name it in grid_mapping */
 } ncw_grid_ids;
 
 /* Chunk edges of a 2D map variable. */
@@ -255,12 +302,31 @@ static int ncw_map_var(ncw_file *f, const ncw_grid_ids *ids, const sw_grid *g, c
     ncw_text(f, id, "units", units);
     if (cell_methods)
         ncw_text(f, id, "cell_methods", cell_methods);
+    if (ids->has_crs)
+        ncw_text(f, id, "grid_mapping", NCW_CRS_VAR);
     return id;
 }
 
-/* Defines dimensions y, x, the coordinates x(x), y(y), depth(y, x) and, when with_wet, wet(y, x). */
-static void ncw_def_grid(ncw_file *f, const sw_grid *g, int with_wet, ncw_grid_ids *ids)
+/* Defines the horizontal coordinates: on a projected grid dimensions y, x and the coordinates x(x),
+ * y(y) in m; on a geographic grid dimensions lat, lon and the coordinates lon(lon), lat(lat) in
+ * degrees (CF 1.11 sections 4.1, 4.2). */
+static void ncw_def_coords(ncw_file *f, const sw_grid *g, ncw_grid_ids *ids)
 {
+    if (sw_grid_geographic(g)) {
+        ncw_dim(f, "lat", g->ny, &ids->dim_y);
+        ncw_dim(f, "lon", g->nx, &ids->dim_x);
+        ids->x = ncw_var(f, "lon", NC_DOUBLE, 1, &ids->dim_x);
+        ncw_text(f, ids->x, "standard_name", "longitude");
+        ncw_text(f, ids->x, "long_name", "longitude of the cell centre");
+        ncw_text(f, ids->x, "units", "degrees_east");
+        ncw_text(f, ids->x, "axis", "X");
+        ids->y = ncw_var(f, "lat", NC_DOUBLE, 1, &ids->dim_y);
+        ncw_text(f, ids->y, "standard_name", "latitude");
+        ncw_text(f, ids->y, "long_name", "latitude of the cell centre");
+        ncw_text(f, ids->y, "units", "degrees_north");
+        ncw_text(f, ids->y, "axis", "Y");
+        return;
+    }
     ncw_dim(f, "y", g->ny, &ids->dim_y);
     ncw_dim(f, "x", g->nx, &ids->dim_x);
 
@@ -274,6 +340,14 @@ static void ncw_def_grid(ncw_file *f, const sw_grid *g, int with_wet, ncw_grid_i
     ncw_text(f, ids->y, "long_name", "y of the cell centre (north)");
     ncw_text(f, ids->y, "units", "m");
     ncw_text(f, ids->y, "axis", "Y");
+}
+
+/* Defines the coordinates (ncw_def_coords), the grid mapping variable crs when the file has a
+ * coordinate reference (ncw_def_crs), depth(y, x) and, when with_wet, wet(y, x). */
+static void ncw_def_grid(ncw_file *f, const sw_grid *g, const sw_crs *crs, int with_wet, ncw_grid_ids *ids)
+{
+    ncw_def_coords(f, g, ids);
+    ids->has_crs = ncw_def_crs(f, g, crs);
 
     ids->depth = ncw_map_var(f, ids, g, "depth", "sea_floor_depth_below_mean_sea_level", "m",
                              "still-water depth", NULL);
@@ -293,6 +367,8 @@ static void ncw_def_grid(ncw_file *f, const sw_grid *g, int with_wet, ncw_grid_i
             ncw_att_check(f, nc_put_att_schar(f->ncid, ids->wet, "flag_values", NC_BYTE, 2, flags),
                           ids->wet, "flag_values");
         ncw_text(f, ids->wet, "flag_meanings", "land water");
+        if (ids->has_crs)
+            ncw_text(f, ids->wet, "grid_mapping", NCW_CRS_VAR);
     }
 }
 
@@ -309,19 +385,27 @@ static void ncw_put_doubles(ncw_file *f, int varid, const char *name, const doub
     ncw_ok(f, nc_put_var_double(f->ncid, varid, scratch), "writing variable", name);
 }
 
-/* Writes x(x) and y(y), depth and (when defined) wet. scratch holds nx * ny doubles. */
+/* A model coordinate (m) as written: degrees on a geographic grid, metres as given otherwise. */
+static double ncw_coord(const sw_grid *g, double m)
+{
+    return sw_grid_geographic(g) ? sw_grid_to_deg(g, m) : m;
+}
+
+/* Writes the coordinates x(x) and y(y) (lon, lat in degrees on a geographic grid), depth and (when
+ * defined) wet. scratch holds nx * ny doubles. */
 static void ncw_put_grid(ncw_file *f, const ncw_grid_ids *ids, const sw_grid *g, const double *depth_m,
                          const unsigned char *wet, double *scratch)
 {
     if (f->rc != SW_OK)
         return;
+    const int geo = sw_grid_geographic(g);
     for (size_t i = 0; i < g->nx; i++)
-        scratch[i] = sw_grid_xc(g, i);
-    if (!ncw_ok(f, nc_put_var_double(f->ncid, ids->x, scratch), "writing variable", "x"))
+        scratch[i] = ncw_coord(g, sw_grid_xc(g, i));
+    if (!ncw_ok(f, nc_put_var_double(f->ncid, ids->x, scratch), "writing variable", geo ? "lon" : "x"))
         return;
     for (size_t j = 0; j < g->ny; j++)
-        scratch[j] = sw_grid_yc(g, j);
-    if (!ncw_ok(f, nc_put_var_double(f->ncid, ids->y, scratch), "writing variable", "y"))
+        scratch[j] = ncw_coord(g, sw_grid_yc(g, j));
+    if (!ncw_ok(f, nc_put_var_double(f->ncid, ids->y, scratch), "writing variable", geo ? "lat" : "y"))
         return;
     ncw_put_doubles(f, ids->depth, "depth", depth_m, sw_grid_cells(g), scratch);
     if (ids->wet >= 0 && f->rc == SW_OK)
@@ -347,6 +431,8 @@ static sw_status ncw_check_grid(const char *path, const sw_grid *g, sw_error *er
         return sw_fail(err, SW_ERR_USAGE, "%s: empty or missing grid", path);
     if (g->nx > SIZE_MAX / sizeof(double) / g->ny)
         return sw_fail(err, SW_ERR_USAGE, "%s: grid %zu x %zu is too large", path, g->nx, g->ny);
+    if (sw_grid_geographic(g) && !(isfinite(g->radius_m) && g->radius_m > 0))
+        return sw_fail(err, SW_ERR_USAGE, "%s: geographic grid with radius %g m (accepted: > 0)", path, g->radius_m);
     return SW_OK;
 }
 
@@ -358,7 +444,9 @@ static sw_status ncw_check_grid(const char *path, const sw_grid *g, sw_error *er
  * Needs: every array of gt non-NULL except the air series, n_stations >= 1 and n_times >= 1 (a zero
  * length would make NetCDF treat the dimension as unlimited), names at most 64 characters. The air
  * series (air_pressure_pa, wind_u_ms, wind_v_ms) are all three given or all three NULL; given, they are
- * written as air_pressure, wind_east and wind_north (station, time).
+ * written as air_pressure, wind_east and wind_north (station, time). The positions are x, y (m), or on
+ * a geographic meta->grid lon, lat (degrees, and u, v then have the eastward / northward standard
+ * names); with a coordinate reference (ncwrite.h) the series name the variable crs in grid_mapping.
  * Returns SW_OK, or SW_ERR_USAGE / SW_ERR_NOMEM / SW_ERR_IO / SW_ERR_NETCDF with a message naming
  * the path; then no file is left at <path>.part and an existing <path> is untouched. */
 sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gauge_table *gt, sw_error *err)
@@ -373,6 +461,9 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
     if (with_air != (gt->wind_u_ms != NULL) || with_air != (gt->wind_v_ms != NULL))
         return sw_fail(err, SW_ERR_USAGE, "%s: gauge table has part of the air pressure and wind (accepted: all "
                        "three series or none)", path);
+    if (meta->grid && sw_grid_geographic(meta->grid) && !(isfinite(meta->grid->radius_m) && meta->grid->radius_m > 0))
+        return sw_fail(err, SW_ERR_USAGE, "%s: geographic grid with radius %g m (accepted: > 0)", path,
+                       meta->grid->radius_m);
     if (gt->n_stations == 0 || gt->n_times == 0)
         return sw_fail(err, SW_ERR_USAGE, "%s: gauge table has %zu stations and %zu times (need >= 1 each)",
                        path, gt->n_stations, gt->n_times);
@@ -417,14 +508,29 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
     ncw_text(&f, v_name, "cf_role", "timeseries_id");
     ncw_text(&f, v_name, "long_name", "gauge name");
 
-    int v_x = ncw_var(&f, "x", NC_DOUBLE, 1, &d_station);
-    ncw_text(&f, v_x, "standard_name", "projection_x_coordinate");
-    ncw_text(&f, v_x, "long_name", "gauge x position");
-    ncw_text(&f, v_x, "units", "m");
-    int v_y = ncw_var(&f, "y", NC_DOUBLE, 1, &d_station);
-    ncw_text(&f, v_y, "standard_name", "projection_y_coordinate");
-    ncw_text(&f, v_y, "long_name", "gauge y position");
-    ncw_text(&f, v_y, "units", "m");
+    const sw_grid *pg = meta->grid;
+    const int geo = pg && sw_grid_geographic(pg);
+    int v_x, v_y;
+    if (geo) {
+        v_x = ncw_var(&f, "lon", NC_DOUBLE, 1, &d_station);
+        ncw_text(&f, v_x, "standard_name", "longitude");
+        ncw_text(&f, v_x, "long_name", "gauge longitude");
+        ncw_text(&f, v_x, "units", "degrees_east");
+        v_y = ncw_var(&f, "lat", NC_DOUBLE, 1, &d_station);
+        ncw_text(&f, v_y, "standard_name", "latitude");
+        ncw_text(&f, v_y, "long_name", "gauge latitude");
+        ncw_text(&f, v_y, "units", "degrees_north");
+    } else {
+        v_x = ncw_var(&f, "x", NC_DOUBLE, 1, &d_station);
+        ncw_text(&f, v_x, "standard_name", "projection_x_coordinate");
+        ncw_text(&f, v_x, "long_name", "gauge x position");
+        ncw_text(&f, v_x, "units", "m");
+        v_y = ncw_var(&f, "y", NC_DOUBLE, 1, &d_station);
+        ncw_text(&f, v_y, "standard_name", "projection_y_coordinate");
+        ncw_text(&f, v_y, "long_name", "gauge y position");
+        ncw_text(&f, v_y, "units", "m");
+    }
+    const int has_crs = ncw_def_crs(&f, pg, meta->crs);
     int v_depth = ncw_var(&f, "depth", NC_DOUBLE, 1, &d_station);
     ncw_text(&f, v_depth, "standard_name", "sea_floor_depth_below_mean_sea_level");
     ncw_text(&f, v_depth, "long_name", "still-water depth at the gauge");
@@ -453,20 +559,40 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
     int v_series[6];
     int series_dims[2] = {d_station, d_time};
     for (int k = 0; k < n_series; k++) {
+        /* on a sphere x is east and y north everywhere: CF's eastward / northward velocity names */
+        const char *standard_name = !geo || k == 0 || k > 2 ? series[k].standard_name
+                                  : k == 1 ? "eastward_sea_water_velocity" : "northward_sea_water_velocity";
         v_series[k] = ncw_var(&f, series[k].name, NC_DOUBLE, 2, series_dims);
         ncw_fill(&f, v_series[k], NC_DOUBLE);
-        ncw_text(&f, v_series[k], "standard_name", series[k].standard_name);
+        ncw_text(&f, v_series[k], "standard_name", standard_name);
         ncw_text(&f, v_series[k], "long_name", series[k].long_name);
         ncw_text(&f, v_series[k], "units", series[k].units);
-        ncw_text(&f, v_series[k], "coordinates", "time x y station_name");
+        ncw_text(&f, v_series[k], "coordinates", geo ? "time lat lon station_name" : "time x y station_name");
+        if (has_crs)
+            ncw_text(&f, v_series[k], "grid_mapping", NCW_CRS_VAR);
     }
     if (f.rc == SW_OK)
         ncw_ok(&f, nc_enddef(f.ncid), "ending definitions", NULL);
 
     if (f.rc == SW_OK)
         ncw_ok(&f, nc_put_var_text(f.ncid, v_name, names), "writing variable", "station_name");
-    ncw_put_doubles(&f, v_x, "x", gt->x_m, gt->n_stations, scratch);
-    ncw_put_doubles(&f, v_y, "y", gt->y_m, gt->n_stations, scratch);
+    if (geo) {   /* positions in degrees, converted in a copy */
+        double *deg = malloc(2 * gt->n_stations * sizeof *deg);
+        if (!deg)
+            ncw_fail(&f, SW_ERR_NOMEM, "out of memory for the gauge positions");
+        else {
+            for (size_t s = 0; s < gt->n_stations; s++) {
+                deg[s] = isnan(gt->x_m[s]) ? NAN : sw_grid_to_deg(pg, gt->x_m[s]);
+                deg[gt->n_stations + s] = isnan(gt->y_m[s]) ? NAN : sw_grid_to_deg(pg, gt->y_m[s]);
+            }
+            ncw_put_doubles(&f, v_x, "lon", deg, gt->n_stations, scratch);
+            ncw_put_doubles(&f, v_y, "lat", deg + gt->n_stations, gt->n_stations, scratch);
+            free(deg);
+        }
+    } else {
+        ncw_put_doubles(&f, v_x, "x", gt->x_m, gt->n_stations, scratch);
+        ncw_put_doubles(&f, v_y, "y", gt->y_m, gt->n_stations, scratch);
+    }
     ncw_put_doubles(&f, v_depth, "depth", gt->depth_m, gt->n_stations, scratch);
     if (f.rc == SW_OK)
         ncw_ok(&f, nc_put_var_double(f.ncid, v_time, gt->time_s), "writing variable", "time");
@@ -491,9 +617,10 @@ typedef struct {
 } ncw_track_ids;
 
 /* Defines the dimension `track` (n points) and the storm's centre along it: storm_time (seconds since
- * the origin), storm_x, storm_y (m) and storm_central_pressure (Pa), each with storm_time as its
- * coordinate. Ids into *ids (-1 after a failure). */
-static void ncw_def_track(ncw_file *f, const sw_run_meta *m, size_t n, ncw_track_ids *ids)
+ * the origin), storm_x, storm_y (m; storm_lon, storm_lat in degrees when geo) and
+ * storm_central_pressure (Pa), each with storm_time as its coordinate. Ids into *ids (-1 after a
+ * failure). */
+static void ncw_def_track(ncw_file *f, const sw_run_meta *m, size_t n, int geo, ncw_track_ids *ids)
 {
     int dim;
     char units[128];
@@ -505,15 +632,28 @@ static void ncw_def_track(ncw_file *f, const sw_run_meta *m, size_t n, ncw_track
     ncw_text(f, ids->time, "units", units);
     ncw_text(f, ids->time, "calendar", "standard");
     ncw_text(f, ids->time, "comment", "every forcing slab's time from the start to the end of the run");
-    ids->x = ncw_var(f, "storm_x", NC_DOUBLE, 1, &dim);
-    ncw_text(f, ids->x, "long_name", "x of the storm's centre (east), as the run moved it ([storm] shifts and "
-             "factors applied)");
-    ncw_text(f, ids->x, "units", "m");
+    if (geo) {
+        ids->x = ncw_var(f, "storm_lon", NC_DOUBLE, 1, &dim);
+        ncw_text(f, ids->x, "standard_name", "longitude");
+        ncw_text(f, ids->x, "long_name", "longitude of the storm's centre, as the run moved it ([storm] shifts and "
+                 "factors applied)");
+        ncw_text(f, ids->x, "units", "degrees_east");
+        ids->y = ncw_var(f, "storm_lat", NC_DOUBLE, 1, &dim);
+        ncw_text(f, ids->y, "standard_name", "latitude");
+        ncw_text(f, ids->y, "long_name", "latitude of the storm's centre, as the run moved it ([storm] shifts and "
+                 "factors applied)");
+        ncw_text(f, ids->y, "units", "degrees_north");
+    } else {
+        ids->x = ncw_var(f, "storm_x", NC_DOUBLE, 1, &dim);
+        ncw_text(f, ids->x, "long_name", "x of the storm's centre (east), as the run moved it ([storm] shifts and "
+                 "factors applied)");
+        ncw_text(f, ids->x, "units", "m");
+        ids->y = ncw_var(f, "storm_y", NC_DOUBLE, 1, &dim);
+        ncw_text(f, ids->y, "long_name", "y of the storm's centre (north), as the run moved it ([storm] shifts and "
+                 "factors applied)");
+        ncw_text(f, ids->y, "units", "m");
+    }
     ncw_text(f, ids->x, "coordinates", "storm_time");
-    ids->y = ncw_var(f, "storm_y", NC_DOUBLE, 1, &dim);
-    ncw_text(f, ids->y, "long_name", "y of the storm's centre (north), as the run moved it ([storm] shifts and "
-             "factors applied)");
-    ncw_text(f, ids->y, "units", "m");
     ncw_text(f, ids->y, "coordinates", "storm_time");
     ids->p = ncw_var(f, "storm_central_pressure", NC_DOUBLE, 1, &dim);
     ncw_text(f, ids->p, "standard_name", "air_pressure_at_mean_sea_level");
@@ -524,7 +664,8 @@ static void ncw_def_track(ncw_file *f, const sw_run_meta *m, size_t n, ncw_track
 
 /* Writes the map file: x, y, depth, wet and the five maps of the run, all on cell centres; with an
  * atmosphere (maps->wind_max_ms not NULL) also wind_speed_max and air_pressure_min, and with a storm
- * (maps->n_track > 0) the dimension `track` and storm_time, storm_x, storm_y, storm_central_pressure.
+ * (maps->n_track > 0) the dimension `track` and storm_time, storm_x, storm_y (storm_lon, storm_lat on a
+ * geographic grid), storm_central_pressure. Coordinates and crs as ncwrite.h says.
  * Needs every array of the five maps non-NULL, a non-empty grid, wind_max_ms and air_pressure_min_pa
  * both given or both NULL, and the four track arrays given when n_track > 0. Returns SW_OK or a failure
  * as for sw_ncw_gauges (no .part left, an existing <path> untouched). */
@@ -568,7 +709,7 @@ sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_se
     ncw_globals(&f, meta);
 
     ncw_grid_ids ids;
-    ncw_def_grid(&f, g, 1, &ids);
+    ncw_def_grid(&f, g, meta->crs, 1, &ids);
 
     char origin_note[160];
     snprintf(origin_note, sizeof origin_note, "seconds after the time origin %s", meta->time_origin);
@@ -596,7 +737,7 @@ sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_se
     }
     ncw_track_ids trk = {-1, -1, -1, -1};
     if (n_track > 0)
-        ncw_def_track(&f, meta, n_track, &trk);
+        ncw_def_track(&f, meta, n_track, sw_grid_geographic(g), &trk);
     if (f.rc == SW_OK)
         ncw_ok(&f, nc_enddef(f.ncid), "ending definitions", NULL);
 
@@ -612,8 +753,23 @@ sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_se
     }
     if (n_track > 0) {
         ncw_put_doubles(&f, trk.time, "storm_time", maps->track_time_s, n_track, scratch);
-        ncw_put_doubles(&f, trk.x, "storm_x", maps->track_x_m, n_track, scratch);
-        ncw_put_doubles(&f, trk.y, "storm_y", maps->track_y_m, n_track, scratch);
+        const int geo = sw_grid_geographic(g);
+        double *pos[2] = {NULL, NULL};   /* the positions in degrees on a geographic grid */
+        if (geo && f.rc == SW_OK) {
+            pos[0] = malloc(2 * n_track * sizeof *pos[0]);
+            if (!pos[0])
+                ncw_fail(&f, SW_ERR_NOMEM, "out of memory for the storm's track");
+            else {
+                pos[1] = pos[0] + n_track;
+                for (size_t k = 0; k < n_track; k++) {
+                    pos[0][k] = ncw_coord(g, maps->track_x_m[k]);
+                    pos[1][k] = ncw_coord(g, maps->track_y_m[k]);
+                }
+            }
+        }
+        ncw_put_doubles(&f, trk.x, geo ? "storm_lon" : "storm_x", geo ? pos[0] : maps->track_x_m, n_track, scratch);
+        ncw_put_doubles(&f, trk.y, geo ? "storm_lat" : "storm_y", geo ? pos[1] : maps->track_y_m, n_track, scratch);
+        free(pos[0]);
         ncw_put_doubles(&f, trk.p, "storm_central_pressure", maps->track_p_pa, n_track, scratch);
     }
 
@@ -681,7 +837,7 @@ sw_status sw_ncw_snapshots_open(const char *path, const sw_run_meta *meta, const
     int d_time;
     ncw_dim(f, "time", NC_UNLIMITED, &d_time);
     ncw_grid_ids ids;
-    ncw_def_grid(f, g, wet != NULL, &ids);
+    ncw_def_grid(f, g, meta->crs, wet != NULL, &ids);
     s->v_time = ncw_time_var(f, meta, d_time);
 
     /* one snapshot per chunk; a very large grid is split along y so a chunk stays <= 16 MiB */
@@ -699,6 +855,8 @@ sw_status sw_ncw_snapshots_open(const char *path, const sw_run_meta *meta, const
     ncw_text(f, s->v_eta, "standard_name", "sea_surface_height_above_mean_sea_level");
     ncw_text(f, s->v_eta, "long_name", "sea surface elevation");
     ncw_text(f, s->v_eta, "units", "m");
+    if (ids.has_crs)
+        ncw_text(f, s->v_eta, "grid_mapping", NCW_CRS_VAR);
     if (f->rc == SW_OK)
         ncw_ok(f, nc_enddef(f->ncid), "ending definitions", NULL);
     ncw_put_grid(f, &ids, g, depth_m, wet, scratch);

@@ -4,6 +4,17 @@
  * so a failed or interrupted run never leaves a file that looks finished (and an existing file at
  * <path> is replaced only on success). All files are NetCDF-4, declare Conventions = "CF-1.11"
  * and carry the run's metadata and the caution as global attributes.
+ *
+ * Coordinates (CF 1.11 sections 4 and 5.6), so that GIS tools (GDAL, QGIS) place the maps:
+ *  - projected grid: dimensions and coordinates x, y (projection_x/y_coordinate, m); with a
+ *    coordinate reference (sw_run_meta.crs, e.g. the seabed file's) a scalar variable `crs` holding
+ *    every attribute of the input's grid mapping, and grid_mapping = "crs" on every gridded variable
+ *    (and the gauge series); without one the files are as they always were;
+ *  - geographic grid (sw_grid.kind): dimensions and coordinates lon, lat (longitude / latitude,
+ *    degrees_east / degrees_north, the cell centres; longitudes increase eastward and may pass 180),
+ *    a `crs` variable with grid_mapping_name = latitude_longitude on the model's sphere
+ *    (semi_major_axis = radius_m, inverse_flattening = 0) and grid_mapping = "crs" on every gridded
+ *    variable; gauge positions are lon, lat in degrees. A given sw_run_meta.crs is not used there.
  */
 #ifndef SW_NCWRITE_H
 #define SW_NCWRITE_H
@@ -12,6 +23,7 @@
 
 #include "base/grid.h"
 #include "base/status.h"
+#include "inputs/crs.h"
 #include "model/terms.h"
 #include "observers/observed.h"   /* sw_gauge_table, sw_map_set */
 
@@ -32,6 +44,12 @@ typedef struct {
     double gravity_ms2;         /* g, m s-2 */
     const sw_terms_config *terms; /* rotation and friction in force (NULL: none) */
     const char *forcing;        /* a line naming the storm, weather file or level series (NULL: none) */
+    const sw_crs *crs;          /* the coordinate reference of a projected grid (the seabed file's grid
+                                 * mapping), copied onto every file; NULL or empty: none. Unused on a
+                                 * geographic grid, which writes its own */
+    const sw_grid *grid;        /* the run's grid, for the gauge file: on a geographic grid the gauge
+                                 * positions are written as lon, lat (degrees); NULL: projected. Maps and
+                                 * snapshots use the grid they are given */
 } sw_run_meta;
 
 /* Writes the gauge file (CF discrete sampling geometry, featureType timeSeries): eta, u, v at each
@@ -40,7 +58,8 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
 
 /* Writes the map file: depth, wet, eta_max, eta_min, arrival_time, eta_max_time, speed_max; with an
  * atmosphere also wind_speed_max and air_pressure_min, and with a storm its track (storm_time,
- * storm_x, storm_y, storm_central_pressure along the dimension `track`). */
+ * storm_x, storm_y, storm_central_pressure along the dimension `track`; storm_lon, storm_lat in degrees
+ * on a geographic grid). */
 sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_set *maps, sw_error *err);
 
 /* Snapshots of eta written as the run goes (unlimited time dimension). */

@@ -15,6 +15,7 @@
 #include <string.h>
 #include <sys/stat.h>
 
+#include "inputs/crs.h"
 #include "observers/gauges.h"
 #include "model/model.h"
 #include "outputs/ncwrite.h"
@@ -189,6 +190,29 @@ static void file_path(char *out, const sw_run_options *opt, const char *name)
     snprintf(out, SW_PATH_MAX, "%s/%s%s", opt->out_dir, opt->file_prefix ? opt->file_prefix : "", name);
 }
 
+/* The coordinate reference the files of a run on a projected grid carry: the grid mapping of the
+ * seabed file's variable (crs.h), *crs empty without a seabed file or on a geographic grid (whose
+ * files describe their own sphere). A mapping in longitude and latitude cannot describe the projected
+ * grid's metres: SW_ERR_INPUT. Returns SW_OK or the failure (then *crs owns nothing). */
+static sw_status run_crs(const sw_scenario *sc, const sw_grid *g, sw_crs *crs, sw_error *err)
+{
+    memset(crs, 0, sizeof *crs);
+    if (sw_grid_geographic(g) || !sc->bed_file[0])
+        return SW_OK;
+    char path[SW_PATH_MAX];
+    sw_status rc = sw_scenario_resolve(sc, sc->bed_file, path, sizeof path, err);
+    if (rc == SW_OK)
+        rc = sw_crs_read(path, sc->bed_variable, crs, err);
+    if (rc == SW_OK && (strcmp(crs->mapping_name, "latitude_longitude") == 0 ||
+                        strcmp(crs->mapping_name, "rotated_latitude_longitude") == 0)) {
+        rc = sw_fail(err, SW_ERR_INPUT, "%s: variable '%s' (the grid_mapping of '%s') is %s, in degrees, but the "
+                     "grid is projected, in metres (accepted: a projected grid mapping, or [grid] kind = "
+                     "geographic)", path, crs->variable, sc->bed_variable, crs->mapping_name);
+        sw_crs_free(crs);
+    }
+    return rc;
+}
+
 static void fill_results(const run_ctx *c, sw_run_result *res)
 {
     res->n_gauges = c->sc->n_gauges;
@@ -235,9 +259,15 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         .arrival_threshold_m = sc->arrival_threshold_m, .gravity_ms2 = sc->gravity_ms2, .terms = &sc->terms,
     };
     meta.caution = sw_caution_for(sc);
-    if (!opt->sink) {   /* with a sink the paths stay "" */
+    sw_crs crs = {0};
+    if (!opt->sink) {   /* with a sink the paths stay "" (and no NetCDF call is made: sinks run in threads) */
         file_path(res->gauges_path, opt, "gauges.nc");
         file_path(res->maps_path, opt, "maps.nc");
+        rc = run_crs(sc, &setup->grid, &crs, err);
+        if (rc != SW_OK)
+            return rc;
+        meta.crs = &crs;
+        meta.grid = &setup->grid;
     }
 
     rc = sw_model_create(&cfg, &c.model, err);
@@ -352,5 +382,6 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
     sw_gauges_free(c.gauges);
     sw_tracker_free(c.tracker);
     sw_model_free(c.model);
+    sw_crs_free(&crs);
     return rc;
 }

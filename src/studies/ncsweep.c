@@ -156,22 +156,35 @@ static void ncs_common_globals(ncs_file *f, const char *caution)
     ncs_text(f, NC_GLOBAL, "caution", caution ? caution : "");
 }
 
-/* The x and y coordinates of grid g (dimensions dim_x, dim_y); returns their ids in id[0], id[1]. */
-static void ncs_def_xy(ncs_file *f, int dim_y, int dim_x, int id[2])
+/* The cell-centre coordinates of the grid on dimensions dim_x, dim_y; their ids into id[0], id[1]:
+ * x, y in m, or with geo lon, lat in degrees (CF 1.11 sections 4.1, 4.2). */
+static void ncs_def_xy(ncs_file *f, int dim_y, int dim_x, int geo, int id[2])
 {
     static const char *const axis[2] = { "X", "Y" };
-    static const char *const name[2] = { "x", "y" };
+    static const char *const name[2][2] = { { "x", "y" }, { "lon", "lat" } };
+    static const char *const standard_name[2][2] = { { "projection_x_coordinate", "projection_y_coordinate" },
+                                                     { "longitude", "latitude" } };
+    static const char *const long_name[2][2] = { { "x of the cell centre", "y of the cell centre" },
+                                                 { "longitude of the cell centre", "latitude of the cell centre" } };
+    static const char *const units[2][2] = { { "m", "m" }, { "degrees_east", "degrees_north" } };
     int dims[2] = { dim_x, dim_y };
     for (int q = 0; q < 2; q++) {
-        id[q] = ncs_var(f, name[q], NC_DOUBLE, 1, &dims[q]);
-        ncs_text(f, id[q], "standard_name", q ? "projection_y_coordinate" : "projection_x_coordinate");
-        ncs_text(f, id[q], "long_name", q ? "y of the cell centre" : "x of the cell centre");
-        ncs_text(f, id[q], "units", "m");
+        id[q] = ncs_var(f, name[geo][q], NC_DOUBLE, 1, &dims[q]);
+        ncs_text(f, id[q], "standard_name", standard_name[geo][q]);
+        ncs_text(f, id[q], "long_name", long_name[geo][q]);
+        ncs_text(f, id[q], "units", units[geo][q]);
         ncs_text(f, id[q], "axis", axis[q]);
     }
 }
 
-static void ncs_put_xy(ncs_file *f, const int id[2], const sw_grid *g)
+/* A model coordinate (m) as written: degrees with geo, metres otherwise. */
+static double ncs_coord(const sw_grid *g, int geo, double m)
+{
+    return geo ? sw_grid_to_deg(g, m) : m;
+}
+
+/* Writes the coordinates ncs_def_xy defined (the same geo). */
+static void ncs_put_xy(ncs_file *f, const int id[2], const sw_grid *g, int geo)
 {
     size_t n = g->nx > g->ny ? g->nx : g->ny;
     double *c = malloc(n * sizeof *c);
@@ -181,12 +194,40 @@ static void ncs_put_xy(ncs_file *f, const int id[2], const sw_grid *g)
         return;
     }
     for (size_t i = 0; i < g->nx; i++)
-        c[i] = sw_grid_xc(g, i);
-    ncs_put(f, id[0], "x", c, g->nx);
+        c[i] = ncs_coord(g, geo, sw_grid_xc(g, i));
+    ncs_put(f, id[0], geo ? "lon" : "x", c, g->nx);
     for (size_t j = 0; j < g->ny; j++)
-        c[j] = sw_grid_yc(g, j);
-    ncs_put(f, id[1], "y", c, g->ny);
+        c[j] = ncs_coord(g, geo, sw_grid_yc(g, j));
+    ncs_put(f, id[1], geo ? "lat" : "y", c, g->ny);
     free(c);
+}
+
+/* Defines the scalar grid mapping variable `crs` (CF 1.11 section 5.6) as outputs/ncwrite.c does: on a
+ * geographic grid latitude_longitude on the model's sphere, on a projected one with a CRS a copy of its
+ * attributes. Returns 1 when defined, 0 when the file has no coordinate reference (or after a failure). */
+static int ncs_def_crs(ncs_file *f, const sw_grid *g, const sw_crs *crs)
+{
+    const int geo = sw_grid_geographic(g);
+    if (!geo && !sw_crs_present(crs))
+        return 0;
+    int id = ncs_var(f, "crs", NC_INT, 0, NULL);
+    if (geo) {
+        ncs_text(f, id, "grid_mapping_name", "latitude_longitude");
+        ncs_double(f, id, "semi_major_axis", g->radius_m);
+        ncs_double(f, id, "inverse_flattening", 0.0);
+        ncs_double(f, id, "longitude_of_prime_meridian", 0.0);
+        ncs_text(f, id, "long_name", "longitude and latitude on the model's sphere (radius semi_major_axis, m)");
+    } else {
+        for (size_t k = 0; k < crs->n_atts; k++) {
+            const sw_crs_att *a = &crs->atts[k];
+            if (a->type == SW_CRS_TEXT)
+                ncs_text(f, id, a->name, a->text);
+            else if (f->rc == SW_OK && id >= 0)
+                ncs_ok(f, nc_put_att_double(f->ncid, id, a->name, NC_DOUBLE, a->count, a->values),
+                       "writing attribute", a->name);
+        }
+    }
+    return f->rc == SW_OK;
 }
 
 void sw_ncs_quiet_thread(void)
@@ -237,7 +278,7 @@ sw_status sw_ncs_member_write(const char *path, const sw_sweep_member_result *r,
             v_eta = ncs_var(&f, "gauge_eta", NC_DOUBLE, 2, dims);
         }
         v_time = ncs_var(&f, "gauge_time", NC_DOUBLE, 1, &d_t);
-        ncs_def_xy(&f, d_y, d_x, v_xy);
+        ncs_def_xy(&f, d_y, d_x, 0, v_xy);
         int dims[2] = { d_y, d_x };
         size_t shape[2] = { g->ny, g->nx };
         static const char *const map_name[3] = { "arrival_map", "eta_max_map", "wet" };
@@ -255,7 +296,7 @@ sw_status sw_ncs_member_write(const char *path, const sw_sweep_member_result *r,
             ncs_put(&f, v_stat[q], stat_name[q], stat[q], r->n_gauges);
         ncs_put(&f, v_time, "gauge_time", r->time_s, r->n_times);
         ncs_put(&f, v_eta, "gauge_eta", r->eta_m, r->n_gauges * r->n_times);
-        ncs_put_xy(&f, v_xy, g);
+        ncs_put_xy(&f, v_xy, g, 0);
         ncs_put(&f, v_map[0], "arrival_map", r->arrival_map_s, r->n_cells);
         ncs_put(&f, v_map[1], "eta_max_map", r->eta_max_map_m, r->n_cells);
         if (f.rc == SW_OK)
@@ -389,8 +430,9 @@ sw_status sw_ncs_member_read_rows(const char *path, const sw_grid *g, size_t j0,
 
 /* ---- the sweep file ---------------------------------------------------------------------- */
 
-/* A map variable (y, x) with its attributes; cell_methods skipped when NULL. */
-static int ncs_map(ncs_file *f, const int dims[2], const sw_grid *g, nc_type type, const char *name,
+/* A map variable (y, x) with its attributes; cell_methods skipped when NULL; grid_mapping "crs" when
+ * the file has a crs variable (has_crs). */
+static int ncs_map(ncs_file *f, const int dims[2], const sw_grid *g, int has_crs, nc_type type, const char *name,
                    const char *standard_name, const char *units, const char *long_name, const char *cell_methods)
 {
     size_t shape[2] = { g->ny, g->nx };
@@ -403,7 +445,9 @@ static int ncs_map(ncs_file *f, const int dims[2], const sw_grid *g, nc_type typ
         ncs_text(f, id, "units", units);
     if (cell_methods)
         ncs_text(f, id, "cell_methods", cell_methods);
-    ncs_text(f, id, "coordinates", "y x");
+    ncs_text(f, id, "coordinates", sw_grid_geographic(g) ? "lat lon" : "y x");
+    if (has_crs)
+        ncs_text(f, id, "grid_mapping", "crs");
     return id;
 }
 
@@ -412,6 +456,9 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
     if (!d || !d->grid || d->n_members == 0 || d->n_params == 0 || d->n_times == 0)
         return sw_fail(err, SW_ERR_USAGE, "%s: sweep data missing or empty", path);
     const sw_grid *g = d->grid;
+    const int geo = sw_grid_geographic(g);
+    if (geo && !(isfinite(g->radius_m) && g->radius_m > 0))
+        return sw_fail(err, SW_ERR_USAGE, "%s: geographic grid with radius %g m (accepted: > 0)", path, g->radius_m);
     size_t M = d->n_members, P = d->n_params, G = d->n_gauges, T = d->n_times, n = sw_grid_cells(g);
     ncs_file f;
     if (ncs_create(&f, path, err) != SW_OK)
@@ -432,7 +479,7 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
     int d_m = ncs_dim(&f, "member", M), d_p = ncs_dim(&f, "parameter", P);
     int d_s = G ? ncs_dim(&f, "station", G) : -1;
     int d_t = ncs_dim(&f, "time", T);
-    int d_y = ncs_dim(&f, "y", g->ny), d_x = ncs_dim(&f, "x", g->nx);
+    int d_y = ncs_dim(&f, geo ? "lat" : "y", g->ny), d_x = ncs_dim(&f, geo ? "lon" : "x", g->nx);
     int d_str = ncs_dim(&f, "name_strlen", NCS_NAME_STRLEN), d_err = ncs_dim(&f, "error_strlen", NCS_ERROR_STRLEN);
 
     int v_member = ncs_var(&f, "member", NC_INT, 1, &d_m);
@@ -468,14 +515,14 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
         v_sname = ncs_var(&f, "station_name", NC_CHAR, 2, dims_s);
         ncs_text(&f, v_sname, "cf_role", "timeseries_id");
         ncs_text(&f, v_sname, "long_name", "gauge name");
-        v_sx = ncs_var(&f, "station_x", NC_DOUBLE, 1, &d_s);
-        ncs_text(&f, v_sx, "standard_name", "projection_x_coordinate");
-        ncs_text(&f, v_sx, "long_name", "gauge x position");
-        ncs_text(&f, v_sx, "units", "m");
-        v_sy = ncs_var(&f, "station_y", NC_DOUBLE, 1, &d_s);
-        ncs_text(&f, v_sy, "standard_name", "projection_y_coordinate");
-        ncs_text(&f, v_sy, "long_name", "gauge y position");
-        ncs_text(&f, v_sy, "units", "m");
+        v_sx = ncs_var(&f, geo ? "station_lon" : "station_x", NC_DOUBLE, 1, &d_s);
+        ncs_text(&f, v_sx, "standard_name", geo ? "longitude" : "projection_x_coordinate");
+        ncs_text(&f, v_sx, "long_name", geo ? "gauge longitude" : "gauge x position");
+        ncs_text(&f, v_sx, "units", geo ? "degrees_east" : "m");
+        v_sy = ncs_var(&f, geo ? "station_lat" : "station_y", NC_DOUBLE, 1, &d_s);
+        ncs_text(&f, v_sy, "standard_name", geo ? "latitude" : "projection_y_coordinate");
+        ncs_text(&f, v_sy, "long_name", geo ? "gauge latitude" : "gauge y position");
+        ncs_text(&f, v_sy, "units", geo ? "degrees_north" : "m");
         int dims_ms[2] = { d_m, d_s };
         static const char *const stat_long[4] = {
             "first arrival at the gauge: first time |eta| reached the member's arrival threshold "
@@ -517,9 +564,10 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
     }
 
     int v_xy[2];
-    ncs_def_xy(&f, d_y, d_x, v_xy);
+    ncs_def_xy(&f, d_y, d_x, geo, v_xy);
+    const int has_crs = ncs_def_crs(&f, g, d->crs);
     int dims_yx[2] = { d_y, d_x };
-    int v_depth = ncs_map(&f, dims_yx, g, NC_DOUBLE, "depth", "sea_floor_depth_below_mean_sea_level", "m",
+    int v_depth = ncs_map(&f, dims_yx, g, has_crs, NC_DOUBLE, "depth", "sea_floor_depth_below_mean_sea_level", "m",
                           "still-water depth of the base scenario, positive down (land negative)", NULL);
     ncs_text(&f, v_depth, "positive", "down");
     static const struct {
@@ -543,15 +591,15 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
                                   d->arrival_spread_s, d->eta_max_p50_m, d->eta_max_p90_m, d->eta_max_highest_m };
     int v_map[7];
     for (int q = 0; q < 7; q++) {
-        v_map[q] = ncs_map(&f, dims_yx, g, NC_DOUBLE, maps[q].name, maps[q].standard_name, maps[q].units,
+        v_map[q] = ncs_map(&f, dims_yx, g, has_crs, NC_DOUBLE, maps[q].name, maps[q].standard_name, maps[q].units,
                            maps[q].long_name, maps[q].cell_methods);
         if (q < 3)
             ncs_text(&f, v_map[q], "comment", "seconds after the time origin; arrival is the first time |eta| "
                                               ">= the member's arrival threshold");
     }
-    int v_wet = ncs_map(&f, dims_yx, g, NC_INT, "members_wet", NULL, NULL,
+    int v_wet = ncs_map(&f, dims_yx, g, has_crs, NC_INT, "members_wet", NULL, NULL,
                         "number of members that ran and have water in this cell", NULL);
-    int v_reached = ncs_map(&f, dims_yx, g, NC_INT, "members_reached", NULL, NULL,
+    int v_reached = ncs_map(&f, dims_yx, g, has_crs, NC_INT, "members_reached", NULL, NULL,
                             "number of members whose wave reached this cell", NULL);
     if (f.rc == SW_OK)
         ncs_ok(&f, nc_enddef(f.ncid), "ending definitions", NULL);
@@ -573,8 +621,23 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
     ncs_put_strings(&f, v_error, "member_error", d->error, M, NCS_ERROR_STRLEN);
     if (G) {
         ncs_put_strings(&f, v_sname, "station_name", d->gauge_name, G, NCS_NAME_STRLEN);
-        ncs_put(&f, v_sx, "station_x", d->gauge_x, G);
-        ncs_put(&f, v_sy, "station_y", d->gauge_y, G);
+        if (geo) {
+            double *deg = malloc(2 * G * sizeof *deg);
+            if (!deg && f.rc == SW_OK)
+                f.rc = sw_fail(err, SW_ERR_NOMEM, "%s: out of memory", path);
+            for (size_t k = 0; deg && k < G; k++) {
+                deg[k] = ncs_coord(g, 1, d->gauge_x[k]);
+                deg[G + k] = ncs_coord(g, 1, d->gauge_y[k]);
+            }
+            if (deg) {
+                ncs_put(&f, v_sx, "station_lon", deg, G);
+                ncs_put(&f, v_sy, "station_lat", deg + G, G);
+            }
+            free(deg);
+        } else {
+            ncs_put(&f, v_sx, "station_x", d->gauge_x, G);
+            ncs_put(&f, v_sy, "station_y", d->gauge_y, G);
+        }
         const double *stat[4] = { d->arrival_s, d->peak_m, d->peak_time_s, d->trough_m };
         for (int q = 0; q < 4; q++)
             ncs_put(&f, v_stat[q], stat_name[q], stat[q], M * G);
@@ -583,7 +646,7 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
         ncs_put(&f, v_sens[0], "arrival_sensitivity", d->arrival_sens, G * P);
         ncs_put(&f, v_sens[1], "peak_sensitivity", d->peak_sens, G * P);
     }
-    ncs_put_xy(&f, v_xy, g);
+    ncs_put_xy(&f, v_xy, g, geo);
     ncs_put(&f, v_depth, "depth", d->depth_m, n);
     for (int q = 0; q < 7; q++)
         ncs_put(&f, v_map[q], maps[q].name, map_data[q], n);

@@ -14,6 +14,7 @@
 
 #include "base/grid.h"
 #include "base/status.h"
+#include "inputs/crs.h"
 #include "studies/sweep_member.h"
 
 /* Quiets HDF5's automatic error printing in the calling thread. A thread-safe HDF5 keeps that switch
@@ -64,7 +65,8 @@ typedef struct {
 
     size_t n_gauges;               /* 0: no station variables */
     const char *const *gauge_name; /* [n_gauges] */
-    const double *gauge_x, *gauge_y; /* [n_gauges] positions, m */
+    const double *gauge_x, *gauge_y; /* [n_gauges] positions, m (written as station_lon, station_lat in
+                                    * degrees on a geographic grid) */
     const double *arrival_s, *peak_m, *peak_time_s, *trough_m; /* [n_members * n_gauges] */
     size_t n_times;                /* longest gauge series of any member (>= 1) */
     const double *gauge_time_s;    /* [n_members * n_times] */
@@ -72,7 +74,9 @@ typedef struct {
     const double *arrival_sens, *peak_sens; /* [n_gauges * n_params] sensitivity (see measure) */
     const char *sens_units_arrival, *sens_units_peak; /* "s" / "m", or "1" for rank correlations */
 
-    const sw_grid *grid;           /* the base grid */
+    const sw_grid *grid;           /* the base grid; a geographic one gives the file lat, lon coordinates */
+    const sw_crs *crs;             /* a projected base grid's coordinate reference (the seabed file's grid
+                                    * mapping), copied into the variable crs; NULL or empty: none */
     const double *depth_m;         /* [ny * nx] base still-water depth, positive down */
     const double *arrival_earliest_s, *arrival_median_s, *arrival_latest_s, *arrival_spread_s; /* [ny * nx] */
     const double *eta_max_p50_m, *eta_max_p90_m, *eta_max_highest_m;  /* [ny * nx] */
@@ -80,8 +84,12 @@ typedef struct {
 } sw_ncs_sweep;
 
 /* Writes the sweep file (CF 1.11 attributes where they apply; the member dimension carries
- * standard_name "realization"). Returns SW_OK or SW_ERR_USAGE / SW_ERR_NOMEM / SW_ERR_IO /
- * SW_ERR_NETCDF; then no file is left and an existing <path> is untouched. */
+ * standard_name "realization"). Its maps have the coordinates of outputs/ncwrite.h: x, y (m) on a
+ * projected grid, with d->crs a variable crs (the input's grid mapping) named by every map's
+ * grid_mapping; on a geographic grid lon, lat (degrees), a latitude_longitude crs on the model's sphere
+ * and the gauges' station_lon, station_lat (degrees) in place of station_x, station_y. Member files
+ * keep x, y in m (they are read back only by the sweep). Returns SW_OK or SW_ERR_USAGE / SW_ERR_NOMEM
+ * / SW_ERR_IO / SW_ERR_NETCDF; then no file is left and an existing <path> is untouched. */
 sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *err);
 
 #endif

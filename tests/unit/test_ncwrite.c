@@ -10,6 +10,14 @@
  *    float 9.96921e+36f; written here as literals, not through the library's macro.
  *  - CF standard name table: air_pressure_at_mean_sea_level (Pa), eastward_wind, northward_wind,
  *    wind_speed (m s-1) for the forcing written by a storm-surge run [memory].
+ *  - CF 1.11 section 5.6 (grid_mapping names a grid mapping variable; extended form "crs: x y"),
+ *    appendix F (the grid_mapping_name values; latitude_longitude on a sphere: semi_major_axis and
+ *    inverse_flattening 0), section 4.1/4.2 (longitude: units degrees_east, standard_name longitude;
+ *    latitude: degrees_north, latitude) [memory]; eastward_sea_water_velocity and
+ *    northward_sea_water_velocity from the standard name table [memory].
+ *  - UTM zone 33N as a CF transverse_mercator: central meridian 15 deg E, scale 0.9996, false easting
+ *    500 000 m, on WGS 84 (a = 6 378 137 m, 1/f = 298.257223563) [memory]; the test only checks that
+ *    these values travel unchanged.
  */
 #include <stdarg.h>
 #include <stddef.h>
@@ -24,7 +32,9 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include "inputs/crs.h"
 #include "outputs/ncwrite.h"
+#include "studies/ncsweep.h"
 #include "testutil.h"
 
 /* NetCDF Users Guide, default fill values (literal values, independent of netcdf.h). */
@@ -157,6 +167,17 @@ static void assert_no_var(int ncid, const char *var)
     int varid;
     if (nc_inq_varid(ncid, var, &varid) != NC_ENOTVAR)
         fail_msg("variable %s is present, expected absent", var);
+}
+
+/* var has no attribute att. */
+static void assert_no_var_att(int ncid, const char *var, const char *att)
+{
+    int varid;
+    nc_type t;
+    size_t len;
+    assert_int_equal(nc_inq_varid(ncid, var, &varid), NC_NOERR);
+    if (nc_inq_att(ncid, varid, att, &t, &len) != NC_ENOTATT)
+        fail_msg("%s:%s is present, expected absent", var, att);
 }
 
 static void assert_no_att(int ncid, const char *att)
@@ -551,6 +572,15 @@ static void test_maps_roundtrip(void **state)
     int dim;
     assert_int_equal(nc_inq_dimid(ncid, "track", &dim), NC_EBADDIM);
 
+    /* a projected grid without a coordinate reference: as always, no crs and no grid_mapping */
+    assert_no_var(ncid, "crs");
+    assert_no_var(ncid, "lon");
+    assert_no_var(ncid, "lat");
+    static const char *const all_maps[7] = {"depth", "wet", "eta_max", "eta_min", "arrival_time", "eta_max_time",
+                                            "speed_max"};
+    for (int k = 0; k < 7; k++)
+        assert_no_var_att(ncid, all_maps[k], "grid_mapping");
+
     assert_int_equal(nc_close(ncid), NC_NOERR);
     remove(path);
 }
@@ -906,6 +936,600 @@ static void test_snapshots_failed_append_fails_commit(void **state)
     assert_false(exists(part));
 }
 
+/* ---- coordinate reference systems ------------------------------------------------------- */
+
+#define PI_NUG 3.14159265358979323846
+#define R_EARTH 6371000.0                      /* the default radius, grid.h (IUGG mean radius [memory]) */
+#define M_PER_DEG (R_EARTH * PI_NUG / 180.0)   /* metres of arc per degree on it [derived] */
+
+/* A WKT text standing in for an input's crs_wkt: only copied, never parsed here. */
+static const char UTM33_WKT[] =
+    "PROJCS[\"WGS 84 / UTM zone 33N\",GEOGCS[\"WGS 84\",DATUM[\"WGS_1984\",SPHEROID[\"WGS 84\",6378137,"
+    "298.257223563]],PRIMEM[\"Greenwich\",0],UNIT[\"degree\",0.0174532925199433]],PROJECTION["
+    "\"Transverse_Mercator\"],PARAMETER[\"latitude_of_origin\",0],PARAMETER[\"central_meridian\",15],"
+    "PARAMETER[\"scale_factor\",0.9996],PARAMETER[\"false_easting\",500000],PARAMETER[\"false_northing\",0],"
+    "UNIT[\"metre\",1],AUTHORITY[\"EPSG\",\"32633\"]]";
+
+/* How the seabed file of crs_input describes its grid mapping. */
+typedef enum {
+    CRS_IN_UTM,        /* grid_mapping "crs" -> transverse_mercator with parameters, crs_wkt, an EPSG code */
+    CRS_IN_EXTENDED,   /* grid_mapping "utm: x y" (CF extended form) -> the same variable named utm */
+    CRS_IN_NONE,       /* no grid_mapping attribute */
+    CRS_IN_MISSING,    /* grid_mapping "nosuch": no such variable */
+    CRS_IN_UNKNOWN,    /* grid_mapping_name "swiss_cheese_conformal" */
+    CRS_IN_WKT_ONLY,   /* no grid_mapping_name, a spatial_ref text */
+    CRS_IN_NOTHING,    /* neither a grid_mapping_name nor any well-known text */
+} crs_input_kind;
+
+/* Writes a small seabed file depth(y, x) whose grid mapping is described as `kind` says. */
+static void crs_input(const char *path, crs_input_kind kind)
+{
+    int ncid, dy, dx, v, m;
+    assert_int_equal(nc_create(path, NC_NETCDF4 | NC_CLOBBER, &ncid), NC_NOERR);
+    assert_int_equal(nc_def_dim(ncid, "y", 3, &dy), NC_NOERR);
+    assert_int_equal(nc_def_dim(ncid, "x", 4, &dx), NC_NOERR);
+    int dims[2] = {dy, dx};
+    assert_int_equal(nc_def_var(ncid, "depth", NC_DOUBLE, 2, dims, &v), NC_NOERR);
+    const char *mvar = kind == CRS_IN_EXTENDED ? "utm" : "crs";
+    const char *gm = kind == CRS_IN_EXTENDED ? "utm: x y" : kind == CRS_IN_MISSING ? "nosuch" : "crs";
+    if (kind != CRS_IN_NONE)
+        assert_int_equal(nc_put_att_text(ncid, v, "grid_mapping", strlen(gm), gm), NC_NOERR);
+    assert_int_equal(nc_def_var(ncid, mvar, NC_INT, 0, NULL, &m), NC_NOERR);
+    int fill = -1;
+    assert_int_equal(nc_def_var_fill(ncid, m, 0, &fill), NC_NOERR);   /* a _FillValue: not a CRS attribute */
+    const char *name = kind == CRS_IN_UNKNOWN ? "swiss_cheese_conformal" : "transverse_mercator";
+    if (kind != CRS_IN_WKT_ONLY && kind != CRS_IN_NOTHING)
+        assert_int_equal(nc_put_att_text(ncid, m, "grid_mapping_name", strlen(name), name), NC_NOERR);
+    double d;
+    float scale = 0.9996f;
+    int epsg = 32633;
+    d = 15.0;
+    assert_int_equal(nc_put_att_double(ncid, m, "longitude_of_central_meridian", NC_DOUBLE, 1, &d), NC_NOERR);
+    assert_int_equal(nc_put_att_float(ncid, m, "scale_factor_at_central_meridian", NC_FLOAT, 1, &scale), NC_NOERR);
+    d = 500000.0;
+    assert_int_equal(nc_put_att_double(ncid, m, "false_easting", NC_DOUBLE, 1, &d), NC_NOERR);
+    const double towgs[3] = {0.0, 0.0, 0.0};
+    assert_int_equal(nc_put_att_double(ncid, m, "towgs84", NC_DOUBLE, 3, towgs), NC_NOERR);
+    assert_int_equal(nc_put_att_int(ncid, m, "epsg_code", NC_INT, 1, &epsg), NC_NOERR);
+    if (kind == CRS_IN_WKT_ONLY)
+        assert_int_equal(nc_put_att_text(ncid, m, "spatial_ref", strlen(UTM33_WKT), UTM33_WKT), NC_NOERR);
+    else if (kind != CRS_IN_NOTHING)
+        assert_int_equal(nc_put_att_text(ncid, m, "crs_wkt", strlen(UTM33_WKT), UTM33_WKT), NC_NOERR);
+    const char *units_text = "m";
+    assert_int_equal(nc_put_att_string(ncid, m, "units_note", 1, &units_text), NC_NOERR);   /* NC_STRING */
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+}
+
+/* The CF 1.11 appendix F grid mapping names [memory], typed here rather than taken from crs.c. */
+static const char *const CF_MAPPINGS[16] = {
+    "albers_conical_equal_area", "azimuthal_equidistant", "geostationary", "lambert_azimuthal_equal_area",
+    "lambert_conformal_conic", "lambert_cylindrical_equal_area", "latitude_longitude", "mercator",
+    "oblique_mercator", "orthographic", "polar_stereographic", "rotated_latitude_longitude", "sinusoidal",
+    "stereographic", "transverse_mercator", "vertical_perspective",
+};
+
+/* Every attribute of the UTM mapping, as the file holds it (the _FillValue left out). */
+static void assert_utm_atts(const sw_crs *c, int with_name)
+{
+    const sw_crs_att *a = sw_crs_find(c, "grid_mapping_name");
+    if (with_name) {
+        assert_non_null(a);
+        assert_int_equal(a->type, SW_CRS_TEXT);
+        assert_string_equal(a->text, "transverse_mercator");
+        assert_string_equal(c->mapping_name, "transverse_mercator");
+    } else {
+        assert_null(a);
+        assert_string_equal(c->mapping_name, "");
+    }
+    a = sw_crs_find(c, "longitude_of_central_meridian");
+    assert_non_null(a);
+    assert_int_equal(a->type, SW_CRS_NUMBERS);
+    assert_int_equal(a->count, 1);
+    assert_true(a->values[0] == 15.0);
+    a = sw_crs_find(c, "scale_factor_at_central_meridian");   /* a float, its value exactly */
+    assert_non_null(a);
+    assert_true(a->values[0] == (double)0.9996f);
+    a = sw_crs_find(c, "towgs84");
+    assert_non_null(a);
+    assert_int_equal(a->count, 3);
+    a = sw_crs_find(c, "epsg_code");   /* an int, as a double */
+    assert_non_null(a);
+    assert_int_equal(a->type, SW_CRS_NUMBERS);
+    assert_true(a->values[0] == 32633.0);
+    a = sw_crs_find(c, with_name ? "crs_wkt" : "spatial_ref");
+    assert_non_null(a);
+    assert_int_equal(a->type, SW_CRS_TEXT);
+    assert_int_equal(a->count, strlen(UTM33_WKT));
+    assert_string_equal(a->text, UTM33_WKT);
+    a = sw_crs_find(c, "units_note");   /* NC_STRING: its first string */
+    assert_non_null(a);
+    assert_int_equal(a->type, SW_CRS_TEXT);
+    assert_string_equal(a->text, "m");
+    assert_null(sw_crs_find(c, "_FillValue"));
+    assert_int_equal(c->n_atts, with_name ? 8 : 7);
+}
+
+static void test_crs_read(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "crs_input.nc");
+    sw_crs c;
+    sw_error err = {0};
+
+    crs_input(path, CRS_IN_UTM);
+    assert_int_equal(sw_crs_read(path, "depth", &c, &err), SW_OK);
+    assert_true(sw_crs_present(&c));
+    assert_string_equal(c.variable, "crs");
+    assert_utm_atts(&c, 1);
+    sw_crs_free(&c);
+    assert_false(sw_crs_present(&c));
+    sw_crs_free(&c);   /* twice is fine */
+    sw_crs_free(NULL);
+
+    crs_input(path, CRS_IN_EXTENDED);   /* CF 5.6 extended form: the first mapping's name */
+    assert_int_equal(sw_crs_read(path, "depth", &c, &err), SW_OK);
+    assert_string_equal(c.variable, "utm");
+    assert_utm_atts(&c, 1);
+    sw_crs_free(&c);
+
+    crs_input(path, CRS_IN_WKT_ONLY);   /* well-known text alone is a coordinate reference */
+    assert_int_equal(sw_crs_read(path, "depth", &c, &err), SW_OK);
+    assert_string_equal(c.variable, "crs");
+    assert_utm_atts(&c, 0);
+    sw_crs_free(&c);
+
+    crs_input(path, CRS_IN_NONE);       /* no grid_mapping: no CRS, and fine */
+    memset(&c, 0x5a, sizeof c);
+    assert_int_equal(sw_crs_read(path, "depth", &c, &err), SW_OK);
+    assert_false(sw_crs_present(&c));
+    assert_int_equal(c.n_atts, 0);
+    assert_null(c.atts);
+    sw_crs_free(&c);
+    remove(path);
+}
+
+/* Each refusal: one line naming the file and the variable, with the accepted form. */
+static void test_crs_refused(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "crs_bad.nc");
+    sw_crs c;
+    sw_error err = {0};
+
+    crs_input(path, CRS_IN_MISSING);
+    assert_int_equal(sw_crs_read(path, "depth", &c, &err), SW_ERR_INPUT);
+    assert_false(sw_crs_present(&c));
+    assert_null(c.atts);
+    assert_non_null(strstr(err.msg, path));
+    assert_non_null(strstr(err.msg, "variable 'depth'"));
+    assert_non_null(strstr(err.msg, "grid_mapping 'nosuch' names no variable"));
+    assert_non_null(strstr(err.msg, "crs"));   /* the scalar variables the file does have */
+    assert_null(strchr(err.msg, '\n'));
+
+    crs_input(path, CRS_IN_UNKNOWN);
+    sw_error_clear(&err);
+    assert_int_equal(sw_crs_read(path, "depth", &c, &err), SW_ERR_INPUT);
+    assert_null(c.atts);
+    assert_non_null(strstr(err.msg, path));
+    assert_non_null(strstr(err.msg, "variable 'crs' (the grid_mapping of 'depth')"));
+    assert_non_null(strstr(err.msg, "'swiss_cheese_conformal' is not a CF grid mapping"));
+    for (int k = 0; k < 16; k++)
+        assert_non_null(strstr(err.msg, CF_MAPPINGS[k]));
+    assert_null(strchr(err.msg, '\n'));
+
+    crs_input(path, CRS_IN_NOTHING);
+    sw_error_clear(&err);
+    assert_int_equal(sw_crs_read(path, "depth", &c, &err), SW_ERR_INPUT);
+    assert_non_null(strstr(err.msg, "has no grid_mapping_name"));
+    assert_non_null(strstr(err.msg, "crs_wkt or spatial_ref"));
+
+    sw_error_clear(&err);
+    assert_int_equal(sw_crs_read(path, "elevation", &c, &err), SW_ERR_INPUT);
+    assert_non_null(strstr(err.msg, "variable 'elevation' not found"));
+    assert_non_null(strstr(err.msg, "depth"));
+    remove(path);
+
+    sw_error_clear(&err);
+    assert_int_equal(sw_crs_read(path, "depth", &c, &err), SW_ERR_IO);   /* the file is gone */
+    assert_non_null(strstr(err.msg, path));
+    assert_int_equal(sw_crs_read(NULL, "depth", &c, &err), SW_ERR_USAGE);
+}
+
+static void test_crs_cf_names(void **state)
+{
+    (void)state;
+    for (int k = 0; k < 16; k++) {
+        assert_true(sw_crs_is_cf_mapping(CF_MAPPINGS[k]));
+        assert_non_null(strstr(sw_crs_cf_names(), CF_MAPPINGS[k]));
+    }
+    assert_false(sw_crs_is_cf_mapping("Transverse_Mercator"));   /* CF names are lower case */
+    assert_false(sw_crs_is_cf_mapping("utm"));
+    assert_false(sw_crs_is_cf_mapping(""));
+    assert_false(sw_crs_is_cf_mapping(NULL));
+    /* exactly those 16: the list has 15 separators */
+    size_t commas = 0;
+    for (const char *p = sw_crs_cf_names(); *p; p++)
+        commas += *p == ',';
+    assert_int_equal(commas, 15);
+}
+
+/* Every attribute of c on the variable crs of ncid, with the same values. */
+static void assert_crs_copied(int ncid, const sw_crs *c)
+{
+    int vid, natts, ndims;
+    nc_type type;
+    assert_int_equal(nc_inq_varid(ncid, "crs", &vid), NC_NOERR);
+    assert_int_equal(nc_inq_var(ncid, vid, NULL, &type, &ndims, NULL, &natts), NC_NOERR);
+    assert_int_equal(ndims, 0);   /* a scalar: CF 5.6 */
+    assert_int_equal(natts, (int)c->n_atts);
+    for (size_t k = 0; k < c->n_atts; k++) {
+        const sw_crs_att *a = &c->atts[k];
+        if (a->type == SW_CRS_TEXT) {
+            assert_text(ncid, "crs", a->name, a->text);
+            continue;
+        }
+        size_t len;
+        assert_int_equal(nc_inq_att(ncid, vid, a->name, &type, &len), NC_NOERR);
+        assert_int_equal(type, NC_DOUBLE);
+        assert_int_equal(len, a->count);
+        double got[8];
+        assert_true(len <= 8);
+        assert_int_equal(nc_get_att_double(ncid, vid, a->name, got), NC_NOERR);
+        assert_memory_equal(got, a->values, len * sizeof *got);
+    }
+}
+
+/* A projected run whose seabed file has a UTM grid mapping: maps, snapshots and gauges carry it. */
+static void test_projected_crs_copied(void **state)
+{
+    (void)state;
+    char in[1024], path[1024], snap[1024], gpath[1024];
+    scratch_path(in, sizeof in, "crs_utm_in.nc");
+    scratch_path(path, sizeof path, "ncw_maps_utm.nc");
+    scratch_path(snap, sizeof snap, "ncw_snap_utm.nc");
+    scratch_path(gpath, sizeof gpath, "ncw_gauges_utm.nc");
+    crs_input(in, CRS_IN_UTM);
+    sw_crs c;
+    sw_error err = {0};
+    assert_int_equal(sw_crs_read(in, "depth", &c, &err), SW_OK);
+
+    map_data d;
+    sw_map_set maps = map_set(&d);
+    sw_run_meta meta = test_meta("Test bay");
+    meta.crs = &c;
+    meta.grid = &M_GRID;
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_OK);
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_crs_copied(ncid, &c);
+    assert_text(ncid, "x", "standard_name", "projection_x_coordinate");   /* still projected metres */
+    assert_text(ncid, "y", "units", "m");
+    assert_no_var(ncid, "lon");
+    static const char *const all_maps[7] = {"depth", "wet", "eta_max", "eta_min", "arrival_time", "eta_max_time",
+                                            "speed_max"};
+    for (int k = 0; k < 7; k++)
+        assert_text(ncid, all_maps[k], "grid_mapping", "crs");
+    assert_no_var_att(ncid, "x", "grid_mapping");
+    assert_map_values(ncid, "eta_max", d.eta_max);
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+
+    sw_ncw_snapshots *s = NULL;
+    double eta[MN];
+    fill_snapshot(eta, 0.0);
+    assert_int_equal(sw_ncw_snapshots_open(snap, &meta, &M_GRID, d.depth, d.wet, &s, &err), SW_OK);
+    assert_int_equal(sw_ncw_snapshots_append(s, 0.0, eta, &err), SW_OK);
+    assert_int_equal(sw_ncw_snapshots_commit(s, &err), SW_OK);
+    assert_int_equal(nc_open(snap, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_crs_copied(ncid, &c);
+    assert_text(ncid, "eta", "grid_mapping", "crs");
+    assert_text(ncid, "depth", "grid_mapping", "crs");
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+
+    double ge[NS * NT], gu[NS * NT], gv[NS * NT];
+    sw_gauge_table gt = gauge_table(ge, gu, gv);
+    assert_int_equal(sw_ncw_gauges(gpath, &meta, &gt, &err), SW_OK);
+    assert_int_equal(nc_open(gpath, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_crs_copied(ncid, &c);
+    assert_text(ncid, "eta", "grid_mapping", "crs");
+    assert_text(ncid, "eta", "coordinates", "time x y station_name");
+    assert_text(ncid, "u", "standard_name", "sea_water_x_velocity");
+    double buf[NS];
+    get_doubles(ncid, "x", buf);
+    assert_memory_equal(buf, G_X, sizeof G_X);
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+
+    sw_crs_free(&c);
+    remove(in);
+    remove(path);
+    remove(snap);
+    remove(gpath);
+}
+
+/* A geographic grid: 5 x 3 cells of 0.5 x 0.25 degrees from 179 deg E, 40 deg S, across the 180th
+ * meridian. */
+static sw_grid geo_grid(void)
+{
+    sw_grid g = {.nx = MNX, .ny = MNY, .dx_m = 0.5 * M_PER_DEG, .dy_m = 0.25 * M_PER_DEG,
+                 .x0_m = 179.0 * M_PER_DEG, .y0_m = -40.0 * M_PER_DEG, .kind = SW_GRID_GEOGRAPHIC,
+                 .radius_m = R_EARTH};
+    return g;
+}
+
+/* The cell centres in degrees [derived: west edge + (i + 1/2) spacing]. */
+static const double GEO_LON[MNX] = {179.25, 179.75, 180.25, 180.75, 181.25};
+static const double GEO_LAT[MNY] = {-39.875, -39.625, -39.375};
+
+/* lon(lon), lat(lat) in degrees, the latitude_longitude crs on the sphere, no x or y. */
+static void assert_geo_coords(int ncid)
+{
+    assert_int_equal(dim_len(ncid, "lon"), MNX);
+    assert_int_equal(dim_len(ncid, "lat"), MNY);
+    assert_var_dims(ncid, "lon", NC_DOUBLE, "lon");
+    assert_var_dims(ncid, "lat", NC_DOUBLE, "lat");
+    assert_text(ncid, "lon", "standard_name", "longitude");
+    assert_text(ncid, "lon", "units", "degrees_east");
+    assert_text(ncid, "lon", "axis", "X");
+    assert_text(ncid, "lat", "standard_name", "latitude");
+    assert_text(ncid, "lat", "units", "degrees_north");
+    assert_text(ncid, "lat", "axis", "Y");
+    double lon[MNX], lat[MNY];
+    get_doubles(ncid, "lon", lon);
+    get_doubles(ncid, "lat", lat);
+    for (size_t i = 0; i < MNX; i++)
+        assert_true(fabs(lon[i] - GEO_LON[i]) < 1e-9);
+    for (size_t j = 0; j < MNY; j++)
+        assert_true(fabs(lat[j] - GEO_LAT[j]) < 1e-9);
+    assert_no_var(ncid, "x");
+    assert_no_var(ncid, "y");
+    assert_var_dims(ncid, "crs", NC_INT, "");
+    assert_text(ncid, "crs", "grid_mapping_name", "latitude_longitude");
+    assert_true(get_double_att(ncid, "crs", "semi_major_axis") == R_EARTH);
+    assert_true(get_double_att(ncid, "crs", "inverse_flattening") == 0.0);
+}
+
+static void test_maps_geographic(void **state)
+{
+    (void)state;
+    char in[1024], path[1024];
+    scratch_path(in, sizeof in, "crs_geo_in.nc");
+    scratch_path(path, sizeof path, "ncw_maps_geo.nc");
+    crs_input(in, CRS_IN_UTM);
+    sw_crs c;
+    sw_error err = {0};
+    assert_int_equal(sw_crs_read(in, "depth", &c, &err), SW_OK);
+    const sw_grid g = geo_grid();
+    map_data d;
+    sw_map_set maps = map_set(&d);
+    maps.grid = &g;
+    enum { NTR = 2 };
+    const double tt[NTR] = {0, 600}, tx[NTR] = {179.5 * M_PER_DEG, 180.5 * M_PER_DEG},
+                 ty[NTR] = {-39.5 * M_PER_DEG, -39.25 * M_PER_DEG}, tp[NTR] = {97000, 96800};
+    maps.n_track = NTR;
+    maps.track_time_s = tt;
+    maps.track_x_m = tx;
+    maps.track_y_m = ty;
+    maps.track_p_pa = tp;
+    sw_run_meta meta = test_meta("Test bay");
+    meta.crs = &c;   /* a projected CRS is not used on a geographic grid */
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_OK);
+
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_geo_coords(ncid);
+    int vid, natts;
+    assert_int_equal(nc_inq_varid(ncid, "crs", &vid), NC_NOERR);
+    assert_int_equal(nc_inq_varnatts(ncid, vid, &natts), NC_NOERR);
+    nc_type t;
+    size_t len;
+    assert_int_equal(nc_inq_att(ncid, vid, "crs_wkt", &t, &len), NC_ENOTATT);
+    static const char *const all_maps[7] = {"depth", "wet", "eta_max", "eta_min", "arrival_time", "eta_max_time",
+                                            "speed_max"};
+    for (int k = 0; k < 7; k++) {
+        assert_var_dims(ncid, all_maps[k], k == 1 ? NC_BYTE : NC_DOUBLE, "lat,lon");
+        assert_text(ncid, all_maps[k], "grid_mapping", "crs");
+    }
+    double got[MN];
+    get_doubles(ncid, "eta_min", got);   /* the values themselves are as on any grid */
+    for (size_t k = 0; k < MN; k++)
+        assert_true(isnan(d.eta_min[k]) ? got[k] == FILL_DOUBLE_NUG : got[k] == d.eta_min[k]);
+    double lon[NTR], lat[NTR];
+    assert_no_var(ncid, "storm_x");
+    get_doubles(ncid, "storm_lon", lon);
+    get_doubles(ncid, "storm_lat", lat);
+    assert_text(ncid, "storm_lon", "units", "degrees_east");
+    assert_text(ncid, "storm_lat", "units", "degrees_north");
+    assert_true(fabs(lon[0] - 179.5) < 1e-9 && fabs(lon[1] - 180.5) < 1e-9);
+    assert_true(fabs(lat[0] + 39.5) < 1e-9 && fabs(lat[1] + 39.25) < 1e-9);
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+
+    /* another sphere's radius is the crs's */
+    sw_grid g2 = g;
+    g2.radius_m = 3389500.0;
+    g2.x0_m = 179.0 * g2.radius_m * PI_NUG / 180.0;
+    g2.dx_m = 0.5 * g2.radius_m * PI_NUG / 180.0;
+    g2.y0_m = -40.0 * g2.radius_m * PI_NUG / 180.0;
+    g2.dy_m = 0.25 * g2.radius_m * PI_NUG / 180.0;
+    maps.grid = &g2;
+    maps.n_track = 0;
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_OK);
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_true(get_double_att(ncid, "crs", "semi_major_axis") == 3389500.0);
+    double lon2[MNX];
+    get_doubles(ncid, "lon", lon2);
+    for (size_t i = 0; i < MNX; i++)
+        assert_true(fabs(lon2[i] - GEO_LON[i]) < 1e-9);
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+
+    /* a geographic grid without a radius is refused, nothing written */
+    remove(path);
+    g2.radius_m = 0.0;
+    assert_int_equal(sw_ncw_maps(path, &meta, &maps, &err), SW_ERR_USAGE);
+    assert_non_null(strstr(err.msg, "radius"));
+    assert_false(exists(path));
+    sw_crs_free(&c);
+    remove(in);
+}
+
+static void test_snapshots_geographic(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "ncw_snap_geo.nc");
+    const sw_grid g = geo_grid();
+    map_data d;
+    map_set(&d);
+    sw_run_meta meta = test_meta("Test bay");
+    sw_error err = {0};
+    sw_ncw_snapshots *s = NULL;
+    double eta[MN];
+    fill_snapshot(eta, 30.0);
+    assert_int_equal(sw_ncw_snapshots_open(path, &meta, &g, d.depth, d.wet, &s, &err), SW_OK);
+    assert_int_equal(sw_ncw_snapshots_append(s, 30.0, eta, &err), SW_OK);
+    assert_int_equal(sw_ncw_snapshots_commit(s, &err), SW_OK);
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_geo_coords(ncid);
+    assert_var_dims(ncid, "eta", NC_FLOAT, "time,lat,lon");
+    assert_text(ncid, "eta", "grid_mapping", "crs");
+    assert_text(ncid, "depth", "grid_mapping", "crs");
+    assert_text(ncid, "wet", "grid_mapping", "crs");
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+    remove(path);
+}
+
+/* Gauges of a geographic run: positions in degrees, eastward / northward velocities. */
+static void test_gauges_geographic(void **state)
+{
+    (void)state;
+    char path[1024];
+    scratch_path(path, sizeof path, "ncw_gauges_geo.nc");
+    const sw_grid g = geo_grid();
+    double eta[NS * NT], u[NS * NT], v[NS * NT];
+    sw_gauge_table gt = gauge_table(eta, u, v);
+    const double lon[NS] = {179.3, 180.0, 181.1}, lat[NS] = {-39.9, -39.5, -39.26};
+    double xm[NS], ym[NS];
+    for (size_t k = 0; k < NS; k++) {
+        xm[k] = lon[k] * M_PER_DEG;
+        ym[k] = lat[k] * M_PER_DEG;
+    }
+    gt.x_m = xm;
+    gt.y_m = ym;
+    sw_run_meta meta = test_meta("Test bay");
+    meta.grid = &g;
+    sw_error err = {0};
+    assert_int_equal(sw_ncw_gauges(path, &meta, &gt, &err), SW_OK);
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_no_var(ncid, "x");
+    assert_no_var(ncid, "y");
+    assert_var_dims(ncid, "lon", NC_DOUBLE, "station");
+    assert_var_dims(ncid, "lat", NC_DOUBLE, "station");
+    assert_text(ncid, "lon", "standard_name", "longitude");
+    assert_text(ncid, "lon", "units", "degrees_east");
+    assert_text(ncid, "lat", "standard_name", "latitude");
+    assert_text(ncid, "lat", "units", "degrees_north");
+    double got[NS];
+    get_doubles(ncid, "lon", got);
+    for (size_t k = 0; k < NS; k++)
+        assert_true(fabs(got[k] - lon[k]) < 1e-9);
+    get_doubles(ncid, "lat", got);
+    for (size_t k = 0; k < NS; k++)
+        assert_true(fabs(got[k] - lat[k]) < 1e-9);
+    assert_text(ncid, "u", "standard_name", "eastward_sea_water_velocity");
+    assert_text(ncid, "v", "standard_name", "northward_sea_water_velocity");
+    assert_text(ncid, "eta", "standard_name", "sea_surface_height_above_mean_sea_level");
+    for (int k = 0; k < 3; k++) {
+        const char *var = (const char *[]){"eta", "u", "v"}[k];
+        assert_text(ncid, var, "coordinates", "time lat lon station_name");
+        assert_text(ncid, var, "grid_mapping", "crs");
+    }
+    assert_text(ncid, "crs", "grid_mapping_name", "latitude_longitude");
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+    remove(path);
+}
+
+/* The sweep file: lat, lon and a crs on a geographic base grid; a given CRS copied on a projected one. */
+static void test_sweep_file_crs(void **state)
+{
+    (void)state;
+    char in[1024], path[1024];
+    scratch_path(in, sizeof in, "crs_sweep_in.nc");
+    scratch_path(path, sizeof path, "ncs_sweep_crs.nc");
+    crs_input(in, CRS_IN_UTM);
+    sw_crs c;
+    sw_error err = {0};
+    assert_int_equal(sw_crs_read(in, "depth", &c, &err), SW_OK);
+
+    map_data md;
+    map_set(&md);
+    const sw_grid g = geo_grid();
+    const char *pname[1] = {"amplitude"}, *punit[1] = {"m"}, *vtext[1] = {"1 m"}, *errs[1] = {""};
+    const char *gname[1] = {"Quay"};
+    const double value[1] = {1.0}, gx[1] = {180.0 * M_PER_DEG}, gy[1] = {-39.5 * M_PER_DEG};
+    const double one[1] = {1.0}, gtime[2] = {0.0, 60.0}, geta[2] = {0.0, 0.5};
+    const unsigned char failed[1] = {0};
+    int counts[MN];
+    for (size_t k = 0; k < MN; k++)
+        counts[k] = 1;
+    sw_ncs_sweep d = {
+        .title = "t", .history = "h", .scenario_text = "s", .version = "v", .caution = CAUTION,
+        .time_origin = "2000-01-01 00:00:00", .design = "one-at-a-time", .measure = "m", .map_method = "nearest",
+        .n_params = 1, .param_name = pname, .param_units = punit,
+        .n_members = 1, .value = value, .value_text = vtext, .failed = failed, .error = errs,
+        .n_gauges = 1, .gauge_name = gname, .gauge_x = gx, .gauge_y = gy,
+        .arrival_s = one, .peak_m = one, .peak_time_s = one, .trough_m = one,
+        .n_times = 2, .gauge_time_s = gtime, .gauge_eta_m = geta, .arrival_sens = one, .peak_sens = one,
+        .sens_units_arrival = "s", .sens_units_peak = "m",
+        .grid = &g, .crs = &c, .depth_m = md.depth,
+        .arrival_earliest_s = md.arrival, .arrival_median_s = md.arrival, .arrival_latest_s = md.arrival,
+        .arrival_spread_s = md.arrival, .eta_max_p50_m = md.eta_max, .eta_max_p90_m = md.eta_max,
+        .eta_max_highest_m = md.eta_max, .members_wet = counts, .members_reached = counts,
+    };
+    static const char *const sweep_maps[10] = {"depth", "arrival_earliest", "arrival_median", "arrival_latest",
+                                               "arrival_spread", "eta_max_p50", "eta_max_p90", "eta_max_highest",
+                                               "members_wet", "members_reached"};
+    assert_int_equal(sw_ncs_sweep_write(path, &d, &err), SW_OK);
+    int ncid;
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_geo_coords(ncid);
+    for (int k = 0; k < 10; k++) {
+        assert_text(ncid, sweep_maps[k], "grid_mapping", "crs");
+        assert_text(ncid, sweep_maps[k], "coordinates", "lat lon");
+    }
+    assert_no_var(ncid, "station_x");
+    double got[1];
+    get_doubles(ncid, "station_lon", got);
+    assert_true(fabs(got[0] - 180.0) < 1e-9);
+    get_doubles(ncid, "station_lat", got);
+    assert_true(fabs(got[0] + 39.5) < 1e-9);
+    assert_text(ncid, "station_lon", "units", "degrees_east");
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+
+    d.grid = &M_GRID;   /* projected with the UTM CRS */
+    assert_int_equal(sw_ncs_sweep_write(path, &d, &err), SW_OK);
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_crs_copied(ncid, &c);
+    assert_text(ncid, "x", "units", "m");
+    for (int k = 0; k < 10; k++)
+        assert_text(ncid, sweep_maps[k], "grid_mapping", "crs");
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+
+    d.crs = NULL;       /* projected without: no crs, no grid_mapping, as always */
+    assert_int_equal(sw_ncs_sweep_write(path, &d, &err), SW_OK);
+    assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
+    assert_no_var(ncid, "crs");
+    for (int k = 0; k < 10; k++)
+        assert_no_var_att(ncid, sweep_maps[k], "grid_mapping");
+    get_doubles(ncid, "station_x", got);
+    assert_true(got[0] == gx[0]);
+    assert_int_equal(nc_close(ncid), NC_NOERR);
+    sw_crs_free(&c);
+    remove(in);
+    remove(path);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -922,6 +1546,14 @@ int main(void)
         cmocka_unit_test(test_snapshots_commit),
         cmocka_unit_test(test_snapshots_abort),
         cmocka_unit_test(test_snapshots_failed_append_fails_commit),
+        cmocka_unit_test(test_crs_read),
+        cmocka_unit_test(test_crs_refused),
+        cmocka_unit_test(test_crs_cf_names),
+        cmocka_unit_test(test_projected_crs_copied),
+        cmocka_unit_test(test_maps_geographic),
+        cmocka_unit_test(test_snapshots_geographic),
+        cmocka_unit_test(test_gauges_geographic),
+        cmocka_unit_test(test_sweep_file_crs),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
