@@ -8,6 +8,7 @@
 #include "inputs/demo.h"
 #include "studies/estimate.h"
 #include "outputs/report.h"
+#include "run/run.h"
 #include "run/setup.h"
 #include "studies/sweep.h"
 
@@ -111,6 +112,13 @@ int cmd_check(int argc, char **argv, const char *history)
         sw_scenario_free(&sc);
         return cli_fail("check", &err);
     }
+    sw_crs crs;   /* a seabed file's grid mapping is read now, so that a bad one stops `check` as it would `run` */
+    if (sw_run_crs(&sc, &setup.grid, &crs, &err) != SW_OK) {
+        sw_setup_free(&setup);
+        sw_scenario_free(&sc);
+        return cli_fail("check", &err);
+    }
+    sw_crs_free(&crs);
     sw_rate_info rate = {0};              /* from the cache, or measured now (estimate.h) */
     sw_error rate_err = {0};
     if (sw_estimate_rate_cached(setup.layout, sc.precision, 0, a.recalibrate, SW_RATE_CALIBRATION_S, &rate,

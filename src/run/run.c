@@ -190,11 +190,7 @@ static void file_path(char *out, const sw_run_options *opt, const char *name)
     snprintf(out, SW_PATH_MAX, "%s/%s%s", opt->out_dir, opt->file_prefix ? opt->file_prefix : "", name);
 }
 
-/* The coordinate reference the files of a run on a projected grid carry: the grid mapping of the
- * seabed file's variable (crs.h), *crs empty without a seabed file or on a geographic grid (whose
- * files describe their own sphere). A mapping in longitude and latitude cannot describe the projected
- * grid's metres: SW_ERR_INPUT. Returns SW_OK or the failure (then *crs owns nothing). */
-static sw_status run_crs(const sw_scenario *sc, const sw_grid *g, sw_crs *crs, sw_error *err)
+sw_status sw_run_crs(const sw_scenario *sc, const sw_grid *g, sw_crs *crs, sw_error *err)
 {
     memset(crs, 0, sizeof *crs);
     if (sw_grid_geographic(g) || !sc->bed_file[0])
@@ -263,7 +259,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
     if (!opt->sink) {   /* with a sink the paths stay "" (and no NetCDF call is made: sinks run in threads) */
         file_path(res->gauges_path, opt, "gauges.nc");
         file_path(res->maps_path, opt, "maps.nc");
-        rc = run_crs(sc, &setup->grid, &crs, err);
+        rc = sw_run_crs(sc, &setup->grid, &crs, err);
         if (rc != SW_OK)
             return rc;
         meta.crs = &crs;

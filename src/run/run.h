@@ -10,6 +10,7 @@
 #include <stddef.h>
 
 #include "observers/observed.h"
+#include "inputs/crs.h"
 #include "inputs/scenario.h"
 #include "run/setup.h"
 #include "base/status.h"
@@ -91,6 +92,14 @@ const char *sw_caution_for(const sw_scenario *sc);
  * is left half-written, and files of an earlier run at the same paths are kept. */
 sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_options *opt,
                  sw_run_result *res, sw_error *err);
+
+/* The coordinate reference the files of a run on a projected grid carry: the grid mapping of the
+ * seabed file's variable (inputs/crs.h), *crs empty without a seabed file or on a geographic grid (whose
+ * files describe their own sphere). A mapping in longitude and latitude cannot describe the projected
+ * grid's metres: SW_ERR_INPUT. Returns SW_OK or the failure with err naming the file and variable (then
+ * *crs owns nothing); the caller frees *crs with sw_crs_free. Opens a NetCDF file: not from several
+ * threads at once. `check` calls it so that a bad mapping is reported before a run. */
+sw_status sw_run_crs(const sw_scenario *sc, const sw_grid *g, sw_crs *crs, sw_error *err);
 
 /* Creates folder `path` and its parents as needed (like mkdir -p). */
 sw_status sw_make_dirs(const char *path, sw_error *err);

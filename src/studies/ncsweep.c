@@ -550,7 +550,8 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
         ncs_text(&f, v_ge, "standard_name", "sea_surface_height_above_mean_sea_level");
         ncs_text(&f, v_ge, "long_name", "sea surface elevation at the gauge, each member");
         ncs_text(&f, v_ge, "units", "m");
-        ncs_text(&f, v_ge, "coordinates", "gauge_time member station_name");
+        ncs_text(&f, v_ge, "coordinates", geo ? "gauge_time member station_name station_lat station_lon"
+                                              : "gauge_time member station_name station_y station_x");
         int dims_sp[2] = { d_s, d_p };
         static const char *const sens_name[2] = { "arrival_sensitivity", "peak_sensitivity" };
         const char *sens_units[2] = { d->sens_units_arrival, d->sens_units_peak };
@@ -566,6 +567,8 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
     int v_xy[2];
     ncs_def_xy(&f, d_y, d_x, geo, v_xy);
     const int has_crs = ncs_def_crs(&f, g, d->crs);
+    if (has_crs && G > 0)   /* the gauge series lie on the grid's coordinates too */
+        ncs_text(&f, v_ge, "grid_mapping", "crs");
     int dims_yx[2] = { d_y, d_x };
     int v_depth = ncs_map(&f, dims_yx, g, has_crs, NC_DOUBLE, "depth", "sea_floor_depth_below_mean_sea_level", "m",
                           "still-water depth of the base scenario, positive down (land negative)", NULL);

@@ -264,7 +264,14 @@ sw_status swp_combine(sw_sweep_plan *plan, const sw_sweep_options *opt, sw_sweep
             punit[q] = swp_unit_text(&plan->param[q]);
         }
         int spearman = sc->sweep.design == SW_SWEEP_LATIN_HYPERCUBE;
+        sw_crs crs;   /* the seabed file's coordinate reference (projected grids), as a run's files carry it */
+        st = sw_run_crs(sc, g, &crs, err);
+        if (st != SW_OK) {
+            agg_free(&a, M);
+            return st;
+        }
         sw_ncs_sweep d = {
+            .crs = sw_crs_present(&crs) ? &crs : NULL,
             .title = sc->title, .history = opt->history ? opt->history : "", .scenario_text = sc->text,
             .version = SW_VERSION, .caution = sw_caution_for(sc), .time_origin = sc->origin,
             .design = swp_design_name(sc->sweep.design), .measure = swp_measure_sentence(sc->sweep.design),
@@ -287,6 +294,7 @@ sw_status swp_combine(sw_sweep_plan *plan, const sw_sweep_options *opt, sw_sweep
         snprintf(out->sweep_path, sizeof out->sweep_path, "%.1000s/sweep.nc", plan->out_dir);
         snprintf(out->markdown_path, sizeof out->markdown_path, "%.1000s/sweep.md", plan->out_dir);
         st = sw_ncs_sweep_write(out->sweep_path, &d, err);
+        sw_crs_free(&crs);
         if (st == SW_OK)
             st = sw_sweep_write_markdown(out->markdown_path, plan, out, err);
     }

@@ -227,7 +227,8 @@ def check_crs_copied(path, bed_path, what):
                     bad.append(k)
             ok = not bad and out.ndim == 0
         check(ok, f"{what}: crs holds every attribute of the seabed file's grid mapping ({bad or 'all equal'})")
-        names = [v for v in ds.variables if ds.variables[v].ndim >= 2 and v not in ("station_name",)]
+        names = [v for v in ds.variables if ds.variables[v].dimensions[-2:] in (("y", "x"), ("lat", "lon"))
+                 or {"station", "time"} <= set(ds.variables[v].dimensions)]   # maps, and gauge series
         missing = [v for v in names if getattr(ds.variables[v], "grid_mapping", "") != "crs"]
         check(names and not missing, f"{what}: every gridded variable has grid_mapping = crs ({missing or names})")
 
@@ -287,6 +288,17 @@ def test_projected_without_crs():
               "projected run without a seabed file: no crs, no grid_mapping (the files as before)")
 
 
+def test_sweep_carries_crs():
+    """sweep.nc of a projected sweep over a seabed file with a grid mapping carries it as a run's files do."""
+    bed = seabed_file("sweep-utm.nc")
+    scn = write("sweep-utm.scn", UTM_SCENARIO.format(bed=bed) + "\n[sweep]\namplitude_factor = 0.5, 2\n")
+    out = os.path.join(WORK, "sweep-utm-out")
+    r = run("sweep", scn, "--out", out, "--quiet")
+    check(r.returncode == 0, f"UTM sweep (exit {r.returncode}: {r.stderr.strip()[-300:]})")
+    if r.returncode == 0:
+        check_crs_copied(os.path.join(out, "sweep.nc"), bed, "UTM sweep.nc")
+
+
 def test_bad_mapping():
     cases = [
         ("whose grid_mapping names a missing variable", dict(grid_mapping="utm"),
@@ -309,6 +321,9 @@ def test_bad_mapping():
               f"... one line naming the file, the variable and the accepted form: {err}")
         left = [f for f in os.listdir(out)] if os.path.isdir(out) else []
         check(not any(f.endswith(".nc") or f.endswith(".part") for f in left), f"... and no output file ({left})")
+        r = run("check", scn)
+        check(r.returncode == 1 and all(w in r.stderr for w in words),
+              f"... and `check` stops on it too (exit {r.returncode}: {r.stderr.strip()[-200:]})")
 
 
 def test_geographic():
@@ -411,6 +426,7 @@ if __name__ == "__main__":
     test_projected("cf")
     test_projected_without_crs()
     test_bad_mapping()
+    test_sweep_carries_crs()
     test_geographic()
     print("%d failed" % len(FAILURES))
     sys.exit(1 if FAILURES else 0)
