@@ -255,3 +255,36 @@ sw_status sw_crs_read(const char *path, const char *variable, sw_crs *out, sw_er
         sw_crs_free(out);
     return st;
 }
+
+int sw_crs_define(int ncid, const char *name, const sw_grid *g, const sw_crs *crs, int *varid, const char **what)
+{
+    *varid = -1;
+    *what = "defining variable crs";
+    const int geo = g && sw_grid_geographic(g);
+    if (!geo && !sw_crs_present(crs))
+        return NC_NOERR;
+    int id, rc = nc_def_var(ncid, name, NC_INT, 0, NULL, &id);
+    if (rc != NC_NOERR)
+        return rc;
+    if (geo) {
+        static const char long_name[] = "longitude and latitude on the model's sphere (radius semi_major_axis, m)";
+        const double zero = 0.0;
+        if ((rc = nc_put_att_text(ncid, id, *what = "grid_mapping_name", 18, "latitude_longitude")) != NC_NOERR
+            || (rc = nc_put_att_double(ncid, id, *what = "semi_major_axis", NC_DOUBLE, 1, &g->radius_m)) != NC_NOERR
+            || (rc = nc_put_att_double(ncid, id, *what = "inverse_flattening", NC_DOUBLE, 1, &zero)) != NC_NOERR
+            || (rc = nc_put_att_double(ncid, id, *what = "longitude_of_prime_meridian", NC_DOUBLE, 1, &zero)) != NC_NOERR
+            || (rc = nc_put_att_text(ncid, id, *what = "long_name", sizeof long_name - 1, long_name)) != NC_NOERR)
+            return rc;
+    } else {
+        for (size_t k = 0; k < crs->n_atts; k++) {
+            const sw_crs_att *a = &crs->atts[k];
+            *what = a->name;
+            rc = a->type == SW_CRS_TEXT ? nc_put_att_text(ncid, id, a->name, strlen(a->text), a->text)
+                                        : nc_put_att_double(ncid, id, a->name, NC_DOUBLE, a->count, a->values);
+            if (rc != NC_NOERR)
+                return rc;
+        }
+    }
+    *varid = id;
+    return NC_NOERR;
+}

@@ -13,6 +13,7 @@
 
 #include <stddef.h>
 
+#include "base/grid.h"
 #include "base/status.h"
 
 #define SW_CRS_NAME_MAX 257   /* longest NetCDF name (NC_MAX_NAME, 256) and its NUL */
@@ -71,5 +72,14 @@ int sw_crs_is_cf_mapping(const char *name);
 
 /* The CF grid_mapping_name values, comma-separated, for messages (a static string). */
 const char *sw_crs_cf_names(void);
+
+/* Defines, in the open NetCDF file ncid (in define mode), the scalar grid-mapping variable `name` (CF 1.11
+ * section 5.6) of a file on grid g: on a geographic grid latitude_longitude on the model's sphere
+ * (appendix F: semi_major_axis = g->radius_m, inverse_flattening 0 for a sphere), else a copy of every
+ * attribute of crs. The writers of outputs/ncwrite.c and studies/ncsweep.c both call it, so their files
+ * describe one coordinate system the same way. *varid receives the variable (-1 when the file gets none:
+ * a projected grid without a crs, or a failure). Returns NC_NOERR, or the NetCDF status of the first
+ * failure with *what naming what it was doing ("defining variable crs", or the attribute's name). */
+int sw_crs_define(int ncid, const char *name, const sw_grid *g, const sw_crs *crs, int *varid, const char **what);
 
 #endif

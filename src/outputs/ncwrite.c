@@ -141,13 +141,6 @@ static void ncw_double(ncw_file *f, int varid, const char *att, double value)
         ncw_att_check(f, nc_put_att_double(f->ncid, varid, att, NC_DOUBLE, 1, &value), varid, att);
 }
 
-/* Writes n doubles as one attribute. */
-static void ncw_doubles(ncw_file *f, int varid, const char *att, const double *values, size_t n)
-{
-    if (f->rc == SW_OK)
-        ncw_att_check(f, nc_put_att_double(f->ncid, varid, att, NC_DOUBLE, n, values), varid, att);
-}
-
 /* The coordinate reference a file gets on grid g (NULL: projected): 1 when it has one, i.e. on a
  * geographic grid or with a CRS given for a projected one. */
 static int ncw_has_crs(const sw_grid *g, const sw_crs *crs)
@@ -161,25 +154,12 @@ static int ncw_has_crs(const sw_grid *g, const sw_crs *crs)
  * input's grid mapping. Returns 1 when it was defined, 0 when the file has none (or after a failure). */
 static int ncw_def_crs(ncw_file *f, const sw_grid *g, const sw_crs *crs)
 {
-    if (!ncw_has_crs(g, crs))
+    if (!ncw_has_crs(g, crs) || f->rc != SW_OK)
         return 0;
-    int id = ncw_var(f, NCW_CRS_VAR, NC_INT, 0, NULL);
-    if (g && sw_grid_geographic(g)) {
-        ncw_text(f, id, "grid_mapping_name", "latitude_longitude");
-        ncw_double(f, id, "semi_major_axis", g->radius_m);
-        ncw_double(f, id, "inverse_flattening", 0.0);
-        ncw_double(f, id, "longitude_of_prime_meridian", 0.0);
-        ncw_text(f, id, "long_name", "longitude and latitude on the model's sphere (radius semi_major_axis, m)");
-    } else {
-        for (size_t k = 0; k < crs->n_atts; k++) {
-            const sw_crs_att *a = &crs->atts[k];
-            if (a->type == SW_CRS_TEXT)
-                ncw_text(f, id, a->name, a->text);
-            else
-                ncw_doubles(f, id, a->name, a->values, a->count);
-        }
-    }
-    return f->rc == SW_OK;
+    int id;
+    const char *what;
+    const int rc = sw_crs_define(f->ncid, NCW_CRS_VAR, g, crs, &id, &what);
+    return ncw_ok(f, rc, "writing the grid mapping", what) && id >= 0;
 }
 
 /* Sets the _FillValue of a double or float variable (NC_FILL_DOUBLE / NC_FILL_FLOAT). */

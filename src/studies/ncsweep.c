@@ -207,27 +207,12 @@ static void ncs_put_xy(ncs_file *f, const int id[2], const sw_grid *g, int geo)
  * attributes. Returns 1 when defined, 0 when the file has no coordinate reference (or after a failure). */
 static int ncs_def_crs(ncs_file *f, const sw_grid *g, const sw_crs *crs)
 {
-    const int geo = sw_grid_geographic(g);
-    if (!geo && !sw_crs_present(crs))
+    if (f->rc != SW_OK)
         return 0;
-    int id = ncs_var(f, "crs", NC_INT, 0, NULL);
-    if (geo) {
-        ncs_text(f, id, "grid_mapping_name", "latitude_longitude");
-        ncs_double(f, id, "semi_major_axis", g->radius_m);
-        ncs_double(f, id, "inverse_flattening", 0.0);
-        ncs_double(f, id, "longitude_of_prime_meridian", 0.0);
-        ncs_text(f, id, "long_name", "longitude and latitude on the model's sphere (radius semi_major_axis, m)");
-    } else {
-        for (size_t k = 0; k < crs->n_atts; k++) {
-            const sw_crs_att *a = &crs->atts[k];
-            if (a->type == SW_CRS_TEXT)
-                ncs_text(f, id, a->name, a->text);
-            else if (f->rc == SW_OK && id >= 0)
-                ncs_ok(f, nc_put_att_double(f->ncid, id, a->name, NC_DOUBLE, a->count, a->values),
-                       "writing attribute", a->name);
-        }
-    }
-    return f->rc == SW_OK;
+    int id;
+    const char *what;
+    const int rc = sw_crs_define(f->ncid, "crs", g, crs, &id, &what);
+    return ncs_ok(f, rc, "writing the grid mapping", what) && id >= 0;
 }
 
 void sw_ncs_quiet_thread(void)
