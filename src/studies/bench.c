@@ -103,14 +103,17 @@ static const sw_terms_config BENCH_TERMS = {.rotation = SW_ROTATION_F_PLANE, .f0
                                             .friction = SW_FRICTION_LINEAR, .friction_rate_ms = 1e-3};
 
 /* A square basin of n x n cells, 1000 m deep, with a hump, at 90 % of the layout's limit, with the given
- * terms (NULL: none); on a geographic grid (1000 m of arc a cell, from 10 N) when `geographic`. */
+ * terms (NULL: none); on a geographic grid (cells of up to 1000 m of arc, from 10 N) when `geographic`. */
 static sw_model *make_model_on(const sw_layout *lay, size_t n, sw_precision precision, const sw_terms_config *terms,
                                int geographic, sw_error *err)
 {
     sw_grid g = {.nx = n, .ny = n, .dx_m = 1000, .dy_m = 1000};
-    if (geographic)   /* the same cells in arc metres (grid.h), from 10 N poleward */
-        g = (sw_grid){.nx = n, .ny = n, .dx_m = 1000, .dy_m = 1000, .y0_m = SW_EARTH_RADIUS_M * 10 * 3.14159265358979 / 180,
-                      .kind = SW_GRID_GEOGRAPHIC, .radius_m = SW_EARTH_RADIUS_M};
+    if (geographic) {   /* cells of 1000 m of arc (grid.h) from 10 N, fewer where 60 degrees of latitude
+                         * would not hold n of them (the grid must stay clear of the pole) */
+        const double deg = SW_EARTH_RADIUS_M * 3.14159265358979 / 180, d = fmin(1000, 60 * deg / (double)n);
+        g = (sw_grid){.nx = n, .ny = n, .dx_m = d, .dy_m = d, .y0_m = 10 * deg, .kind = SW_GRID_GEOGRAPHIC,
+                      .radius_m = SW_EARTH_RADIUS_M};
+    }
     double *depth = malloc(n * n * sizeof(double));
     double *eta = malloc(n * n * sizeof(double));
     sw_model *m = NULL;

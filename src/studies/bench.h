@@ -68,8 +68,9 @@ typedef struct {
     double storm_ratio, weather_ratio, forced_ratio; /* medians of the rounds' ratios to the plain step */
     double storm_build_s;       /* one storm slab built on the large grid, s (median) */
     double storm_steps_per_build; /* steps between storm slab builds (update / dt) */
-    /* A geographic grid of the same size (10 .. about 50 N, rotation on the sphere off), in rounds of its
-     * own with the plain step measured again beside it; n = 0 when it did not fit in memory: */
+    /* A geographic grid of the same size (from 10 N, at most 60 degrees of latitude; rotation on the sphere
+     * off), in rounds of its own with the plain step measured again beside it; n = 0 when it could not be
+     * made: */
     sw_bench_stat large_geographic; /* the geographic step, large grid */
     double geographic_ratio;    /* median over rounds of (projected step time / geographic step time): the
                                  * geographic step's cost is 1 / this of the projected one's */
