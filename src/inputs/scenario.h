@@ -7,7 +7,7 @@
  * need them (the time step against the layout's limit, gauges on land) happen there, quoting the
  * line numbers recorded below.
  *
- * Positions (the x, y of gauges, sources and features, [seabed] shoreline) are model metres once
+ * Positions (the x, y of gauges, sources, faults and features, [seabed] shoreline) are model metres once
  * placed: on a projected grid as written (m, km); on a geographic grid written in degrees and turned
  * into arc lengths x = R lambda, y = R phi (grid.h), a longitude first moved by 360 degrees when that
  * brings it onto the grid. Until the grid is known (it comes from the seabed file: positions_placed
@@ -30,6 +30,7 @@
 #define SW_PATH_MAX 1024      /* longest file path, including the NUL */
 #define SW_MAX_FEATURES 64    /* bays + islands + shoals */
 #define SW_MAX_SOURCES 32
+#define SW_MAX_FAULTS 32      /* [fault NAME] sections; each may read a table of many segments */
 #define SW_MAX_GAUGES 256
 
 typedef enum { SW_COAST_NONE = 0, SW_COAST_WEST, SW_COAST_EAST, SW_COAST_SOUTH, SW_COAST_NORTH } sw_coast_side;
@@ -71,7 +72,68 @@ typedef struct {
     double separation_m;      /* pair: distance between uplift and subsidence centres, m */
     char file[SW_PATH_MAX];   /* file: NetCDF path as written (relative to the scenario's folder) */
     char variable[SW_NAME_MAX]; /* file: variable name, default "eta" */
+    double scale;             /* file: multiplies the file's values (default 1; 0, which the parser refuses,
+                               * counts as 1 in a spec built by hand) */
+    double x_offset_m, y_offset_m; /* file: the field is moved by this much, m (deg as written on a geographic
+                               * grid until placed, like positions; default 0) */
+    sw_unit_kind x_offset_unit, y_offset_unit; /* how the offsets were written */
 } sw_source_spec;
+
+/* The limits of a fault's values, shared by the [fault] keys and the segment table's rows (faults.c). */
+#define SW_FAULT_DEPTH_MAX_M 1e5      /* depth of the top edge below the sea floor: 0 <= depth <= 100 km */
+#define SW_FAULT_SIZE_MAX_M 2e6       /* length and width: 0 < size <= 2000 km */
+#define SW_FAULT_SLIP_MAX_M 200.0     /* 0 <= slip <= 200 m; |opening| <= 200 m */
+#define SW_FAULT_START_MAX_S (30 * 86400.0) /* 0 <= start <= 30 d */
+#define SW_FAULT_RISE_MAX_S 86400.0   /* 0 <= rise <= 1 d */
+
+/* One [fault NAME] section: a rectangular fault in an elastic half-space (inputs/okada.h; docs/faults.md),
+ * or, with `segments`, a table of such rectangles (one a line). Geometry: the reference point (x, y) is
+ * the CENTRE OF THE TOP EDGE; strike clockwise from north with the fault dipping to its right; rake
+ * counter-clockwise from the strike direction in the fault plane. The section's slip_factor, offsets and
+ * rotation apply to its one fault or to every row of its table (sw_faults_collect). */
+typedef struct {
+    char name[SW_NAME_MAX];   /* from the section header, e.g. [fault north] -> "north" */
+    int line;                 /* line of the section header */
+    double x_m, y_m;          /* centre of the top edge, m (a position: see the top of this file); without
+                               * `segments` only */
+    sw_unit_kind x_unit, y_unit; /* how x and y were written, as in sw_feature */
+    double depth_m;           /* depth of the top edge below the sea floor, m (>= 0; 0 needs surface_rupture) */
+    double length_m;          /* along strike, m (> 0) */
+    double width_m;           /* down dip, m (> 0) */
+    double strike_deg;        /* clockwise from north, deg (-360 .. 360) */
+    double dip_deg;           /* 0 < dip <= 90 deg */
+    double rake_deg;          /* slip direction of the hanging wall, counter-clockwise from strike, deg (-360 .. 360) */
+    double slip_m;            /* along rake, m (0 .. 200) */
+    double opening_m;         /* tensile opening, m (default 0; also the default of a table without the column) */
+    double poisson;           /* Poisson's ratio nu (default 0.25: lambda = mu, common practice; from lambda and
+                               * rigidity when lambda is given: nu = lambda / (2 (lambda + mu))) */
+    double lambda_pa;         /* Lame's first parameter lambda, Pa, when given (0: not given) */
+    double rigidity_pa;       /* shear modulus mu, Pa (default 30 GPa, common practice), for the seismic moment */
+    int kajiura;              /* surface: 0 = floor (the sea surface takes the floor's uplift), 1 = kajiura */
+    int horizontal;           /* horizontal: 1 = add the horizontal motion over the sloping seabed (Tanioka &
+                               * Satake 1996); default 0 */
+    int surface_rupture;      /* 1 = accept a top edge at depth 0 (the fault breaks the sea floor); 0 = refuse
+                               * (default) */
+    double start_s;           /* when it starts to move, s after the run's start (default 0) */
+    double rise_s;            /* how long it moves, s (default 0: at once) */
+    double rupture_speed_ms;  /* > 0: start = distance from the hypocentre to each segment's centre / speed; 0 = none */
+    double hypo_x_m, hypo_y_m;/* the hypocentre's x and y (positions), with rupture_speed */
+    sw_unit_kind hypo_x_unit, hypo_y_unit;
+    double hypo_depth_m;      /* its depth below the sea floor, m; the distance is horizontal when not given */
+    int hypo_depth_given;     /* 1 when hypocentre_depth is written */
+    double cutoff;            /* okada.h sw_okada_field's cutoff (default 20; 0 = evaluate everywhere) */
+    char segments[SW_PATH_MAX]; /* the segment table as written (relative to the scenario's folder); "" = none */
+    int segments_line;        /* line of `segments` (0: not given) */
+    double slip_factor;       /* multiplies the slip and opening of every segment (default 1) */
+    double x_offset_m, y_offset_m; /* added to every reference point (and the hypocentre) after the rotation, m
+                               * (deg as written on a geographic grid until placed, like positions) */
+    sw_unit_kind x_offset_unit, y_offset_unit; /* how the offsets were written */
+    double rotation_deg;      /* turns every segment's strike and reference point (and the hypocentre) clockwise
+                               * about the centroid of the reference points of ALL the scenario's faults, deg */
+    int start_line, rise_line, opening_line, speed_line; /* lines of start, rise, opening, rupture_speed (0: not
+                               * written), for the table's rules */
+    int rupture_line;         /* line of surface_rupture (0: not written) */
+} sw_fault_spec;
 
 typedef struct {
     char name[SW_NAME_MAX];   /* the key, e.g. "Port Harrow" */
@@ -99,7 +161,11 @@ typedef enum {
     SW_SWEEP_SOURCE_X_OFFSET,    /* m (deg on a geographic grid); added to every source's x */
     SW_SWEEP_SOURCE_Y_OFFSET,    /* m (deg on a geographic grid); added to every source's y */
     SW_SWEEP_DEPTH_FACTOR,       /* dimensionless; multiplies the built depth field (land included) */
-    SW_SWEEP_RESOLUTION_FACTOR   /* dimensionless; cells per unit length relative to [grid] (2 = half dx) */
+    SW_SWEEP_RESOLUTION_FACTOR,  /* dimensionless; cells per unit length relative to [grid] (2 = half dx) */
+    SW_SWEEP_SLIP_FACTOR,        /* dimensionless; multiplies every fault's slip_factor (every segment's slip) */
+    SW_SWEEP_FAULT_X_OFFSET,     /* m (deg on a geographic grid); added to every fault's x_offset */
+    SW_SWEEP_FAULT_Y_OFFSET,     /* m (deg on a geographic grid); added to every fault's y_offset */
+    SW_SWEEP_FAULT_ROTATION      /* deg clockwise; added to every fault's rotation (about the faults' centroid) */
 } sw_sweep_kind;
 
 /* One varied parameter. Values are in base units (m, s, deg, or none); a layout is stored as its index
@@ -109,7 +175,7 @@ typedef struct {
     sw_sweep_kind kind;
     char target[SW_TARGET_MAX];  /* SW_SWEEP_KEY: canonical "section.key" ("run.courant", "source main.x") */
     int unit;                    /* sw_unit_kind (units.h) of the values; a coordinate of a geographic grid
-                                  * (a position, [grid] x0, y0, dx, dy, source_x_offset, source_y_offset)
+                                  * (a position, [grid] x0, y0, dx, dy, the source and fault offsets)
                                   * is SW_UNIT_ANGLE: its values are degrees, as the file writes them */
     int integer;                 /* 1: whole numbers (e.g. grid.nx) */
     int layout;                  /* 1: values are layouts */
@@ -237,6 +303,9 @@ typedef struct {
     size_t n_sources;
     sw_source_spec sources[SW_MAX_SOURCES];
 
+    size_t n_faults;
+    sw_fault_spec faults[SW_MAX_FAULTS];
+
     size_t n_gauges;
     sw_gauge_spec gauges[SW_MAX_GAUGES];
 
@@ -269,6 +338,11 @@ sw_status sw_scenario_parse(const char *text, const char *name, const char *dir,
  * SW_ERR_PARSE / SW_ERR_RANGE with err naming the scenario file, line and key and the accepted form;
  * positions are then left as they were. */
 sw_status sw_scenario_place(sw_scenario *sc, sw_error *err);
+
+/* A longitude lon_deg as model x (m) on geographic grid g, first moved by -360, 0 or +360 deg to the value
+ * nearest the grid's longitudes (inside them when one is), as sw_scenario_place places positions; for
+ * positions read outside the scenario (a fault's segment table). A latitude converts with sw_grid_deg. */
+double sw_scenario_lon_m(const sw_grid *g, double lon_deg);
 
 /* Releases what sc owns (sc->text) and zeroes it. sc may be NULL; safe to call twice. */
 void sw_scenario_free(sw_scenario *sc);
@@ -303,8 +377,9 @@ sw_status sw_scenario_override(const sw_scenario *sc, const sw_override *ov, siz
                                sw_error *err);
 
 /* Reads the current value of a numeric or layout key `target` ("section.key", as for overrides)
- * of a parsed scenario into *out, in base units (a layout as its registry index, sw_layout_at; a
- * coordinate of a geographic grid, a position or [grid] x0, y0, dx, dy, in degrees as a file writes it).
+ * of a parsed scenario into *out, in base units (a layout as its registry index, sw_layout_at; a named
+ * choice as the index of its word; a coordinate of a geographic grid, a position, a fault's offset or
+ * [grid] x0, y0, dx, dy, in degrees as a file writes it).
  * Returns SW_OK, or SW_ERR_RANGE when the section or key does not exist or is not numeric. */
 sw_status sw_scenario_value(const sw_scenario *sc, const char *target, double *out, sw_error *err);
 

@@ -16,9 +16,9 @@
 #include "inputs/scenario.h"
 
 #define LINE_MAX_CHARS 200              /* longest line accepted, without its line break */
-#define KEYS_MAX 24                     /* most keys in one section's table */
+#define KEYS_MAX 32                     /* most keys in one section's table */
 #define LABEL_MAX (SW_NAME_MAX + 16)    /* "[island <name>]" */
-#define SECTIONS_MAX (9 + SW_MAX_FEATURES + SW_MAX_SOURCES)
+#define SECTIONS_MAX (13 + SW_MAX_FEATURES + SW_MAX_SOURCES + SW_MAX_FAULTS)
 #define SWEEP_ENTRIES_MAX (SW_MAX_SWEEP_PARAMS + 3)   /* parameters + design, members, seed */
 
 #define KM 1e3                       /* m */
@@ -39,19 +39,22 @@ typedef enum {
     K_CHOICE,    /* int (an enum): index in `words` plus `first` */
     K_LAYOUT,    /* char[size]: a name of the layout registry (layout.h, any case), stored as it spells it */
     K_ORIGIN,    /* char[32]: "YYYY-MM-DD HH:MM:SS" */
-    K_COORD      /* double: a position or a [grid] coordinate: m on a projected grid, deg on a geographic one
+    K_COORD,     /* double: a position or a [grid] coordinate: m on a projected grid, deg on a geographic one
                   * (see "coordinates" below) */
+    K_PRESSURE   /* double, Pa: Pa, kPa, MPa, GPa (a bare number is Pa); elastic moduli of [fault] */
 } key_kind;
 
 typedef enum {
     IN_SCENARIO,  /* offset into sw_scenario */
-    IN_ITEM,      /* offset into the section's sw_feature or sw_source_spec */
+    IN_ITEM,      /* offset into the section's sw_feature, sw_source_spec or sw_fault_spec */
     IN_PARSER     /* offset into parse_state (values settled in `finish`) */
 } key_home;
 
 /* `only` groups: keys of [seabed] that belong to the file or to the recipe; keys of [source]
- * that belong to some shapes (bit 1 << sw_source_shape). */
+ * that belong to some shapes (bit 1 << sw_source_shape); keys of [fault] that belong to one fault given by
+ * its keys or to a segment table. */
 enum { BED_FILE = 1u, BED_RECIPE = 2u };
+enum { FAULT_ONE = 1u, FAULT_TABLE = 2u };
 #define SHAPE(s) (1u << (s))
 #define SHAPES_XY (SHAPE(SW_SOURCE_HUMP) | SHAPE(SW_SOURCE_ELLIPSE) | SHAPE(SW_SOURCE_PAIR))
 #define SHAPES_AXES (SHAPE(SW_SOURCE_ELLIPSE) | SHAPE(SW_SOURCE_PAIR))
@@ -89,13 +92,15 @@ enum { SCN_AXIS_X = 0, SCN_AXIS_Y = 1, SCN_AXIS_EITHER = 2 };
 #define SO_UNIT(f) .unit_off = offsetof(sw_source_spec, f)
 #define FE(f) .home = IN_ITEM, .off = offsetof(sw_feature, f)
 #define SO(f) .home = IN_ITEM, .off = offsetof(sw_source_spec, f)
+#define FA(f) .home = IN_ITEM, .off = offsetof(sw_fault_spec, f)
+#define FA_UNIT(f) .unit_off = offsetof(sw_fault_spec, f)
 #define TEXT_SC(f) .kind = K_TEXT, SC(f), .size = FIELD_SIZE(sw_scenario, f)
 #define TEXT_SO(f) .kind = K_TEXT, SO(f), .size = FIELD_SIZE(sw_source_spec, f)
 #define RANGE(l, h) .ranged = 1, .lo = (l), .hi = (h)          /* l <= v <= h */
 #define ABOVE(l, h) .ranged = 1, .gt = 1, .lo = (l), .hi = (h) /* l <  v <= h */
 
 typedef enum { S_RUN, S_GRID, S_EDGES, S_SEABED, S_GAUGES, S_BAY, S_ISLAND, S_SHOAL, S_SOURCE, S_SWEEP, S_STORM,
-               S_WEATHER, S_WIND } section_type;
+               S_WEATHER, S_WIND, S_FAULT } section_type;
 
 typedef struct {
     const char *name;       /* first word of the header */
@@ -109,6 +114,8 @@ extern const section_def scn_sections[];   /* every section kind, in the order m
 extern const size_t scn_n_sections;
 extern const char *const scn_coast_words[]; /* sw_coast_side names, NULL-terminated */
 extern const char *const scn_shape_words[]; /* sw_source_shape names, NULL-terminated */
+#define SCN_SECTION_LIST "run, grid, edges, seabed, gauges, bay NAME, island NAME, shoal NAME, source NAME, " \
+                         "fault NAME, storm, weather, wind, sweep"   /* every section kind, for messages */
 
 
 /* The unit kind of a numeric key kind (SW_UNIT_NONE for the others). */
@@ -210,7 +217,8 @@ typedef struct {
     char label[LABEL_MAX];   /* "[run]", "[island Gull Rock]": how messages name it */
     char name[SW_NAME_MAX];  /* named sections: the name */
     int line;                /* line of the header */
-    void *item;              /* S_BAY..S_SOURCE: the sw_feature / sw_source_spec being filled */
+    void *item;              /* S_BAY..S_SOURCE, S_FAULT: the sw_feature / sw_source_spec / sw_fault_spec being
+                              * filled */
     int key_line[KEYS_MAX];  /* line of each key of def->keys, 0 = not given */
 } section_ctx;
 

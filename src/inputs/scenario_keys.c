@@ -29,6 +29,9 @@ const char *const scn_shape_words[] = { "hump", "ellipse", "pair", "file", NULL 
 static const char *const PRECISION_WORDS[] = { "double", "single", NULL };                 /* sw_precision */
 static const char *const DRAG_WORDS[] = { "large-pond", "wu", "garratt", NULL };           /* sw_drag_law */
 static const char *const HEMISPHERE_WORDS[] = { "north", "south", NULL };
+static const char *const FAULT_SURFACE_WORDS[] = { "floor", "kajiura", NULL };            /* sw_fault_spec.kajiura */
+static const char *const OFF_ON_WORDS[] = { "off", "on", NULL };
+static const char *const RUPTURE_WORDS[] = { "refuse", "accept", NULL };                  /* surface_rupture */
 
 static const key_def RUN_KEYS[] = {
     { .name = "title", TEXT_SC(title), .dflt = "untitled scenario", .accepted = "up to 255 characters" },
@@ -257,6 +260,74 @@ static const key_def SOURCE_KEYS[] = {
       .accepted = "a NetCDF path, relative to the scenario's folder" },
     { .name = "variable", TEXT_SO(variable), .dflt = "eta", .only = SHAPE(SW_SOURCE_FILE),
       .accepted = "a variable name" },
+    /* a file source scaled and moved, so that sweeps can vary it */
+    { .name = "scale", .kind = K_NUMBER, SO(scale), RANGE(-1000, 1000), .dflt = "1", .only = SHAPE(SW_SOURCE_FILE),
+      .accepted = "0 < |scale| <= 1000, multiplying the file's values" },
+    { .name = "x_offset", .kind = K_COORD, SO(x_offset_m), RANGE(-1e4 * KM, 1e4 * KM), .dflt = "0", .axis = SCN_AXIS_X,
+      SO_UNIT(x_offset_unit), .only = SHAPE(SW_SOURCE_FILE), .accepted = "|x_offset| <= 10000 km, moving the field",
+      .deg_lo = -360, .deg_hi = 360, .deg_accepted = "|x_offset| <= 360 deg on a geographic grid" },
+    { .name = "y_offset", .kind = K_COORD, SO(y_offset_m), RANGE(-1e4 * KM, 1e4 * KM), .dflt = "0", .axis = SCN_AXIS_Y,
+      SO_UNIT(y_offset_unit), .only = SHAPE(SW_SOURCE_FILE), .accepted = "|y_offset| <= 10000 km, moving the field",
+      .deg_lo = -180, .deg_hi = 180, .deg_accepted = "|y_offset| <= 180 deg on a geographic grid" },
+};
+
+/* [fault NAME]: one rectangular fault from its keys, or a segment table (`segments`; faults.c reads it once
+ * the grid is known). The limits are scenario.h's SW_FAULT_*, which the table's rows meet too. */
+static const key_def FAULT_KEYS[] = {
+    { .name = "x", FA(x_m), .required = 1, .only = FAULT_ONE, POINT_X("top-edge centre", FA_UNIT(x_unit)) },
+    { .name = "y", FA(y_m), .required = 1, .only = FAULT_ONE, POINT_Y("top-edge centre", FA_UNIT(y_unit)) },
+    { .name = "depth", .kind = K_LENGTH, FA(depth_m), RANGE(0, SW_FAULT_DEPTH_MAX_M), .required = 1, .only = FAULT_ONE,
+      .accepted = "0 <= depth <= 100 km, the top edge below the sea floor (0 needs surface_rupture = accept)" },
+    { .name = "length", .kind = K_LENGTH, FA(length_m), ABOVE(0, SW_FAULT_SIZE_MAX_M), .required = 1,
+      .only = FAULT_ONE, .accepted = "0 < length <= 2000 km, along strike" },
+    { .name = "width", .kind = K_LENGTH, FA(width_m), ABOVE(0, SW_FAULT_SIZE_MAX_M), .required = 1,
+      .only = FAULT_ONE, .accepted = "0 < width <= 2000 km, down dip" },
+    { .name = "strike", .kind = K_ANGLE, FA(strike_deg), RANGE(-360, 360), .required = 1, .only = FAULT_ONE,
+      .accepted = "-360 <= strike <= 360 deg, clockwise from north (the fault dips to its right)" },
+    { .name = "dip", .kind = K_ANGLE, FA(dip_deg), ABOVE(0, 90), .required = 1, .only = FAULT_ONE,
+      .accepted = "0 < dip <= 90 deg" },
+    { .name = "rake", .kind = K_ANGLE, FA(rake_deg), RANGE(-360, 360), .required = 1, .only = FAULT_ONE,
+      .accepted = "-360 <= rake <= 360 deg, counter-clockwise from the strike (90 = thrust)" },
+    { .name = "slip", .kind = K_LENGTH, FA(slip_m), RANGE(0, SW_FAULT_SLIP_MAX_M), .required = 1, .only = FAULT_ONE,
+      .accepted = "0 <= slip <= 200 m" },
+    { .name = "opening", .kind = K_LENGTH, FA(opening_m), RANGE(-SW_FAULT_SLIP_MAX_M, SW_FAULT_SLIP_MAX_M), .dflt = "0",
+      .accepted = "|opening| <= 200 m, the tensile opening (0 for an earthquake)" },
+    { .name = "poisson", .kind = K_NUMBER, FA(poisson), ABOVE(0, 0.5), .dflt = "0.25",
+      .accepted = "0 < poisson < 0.5 (0.25 gives lambda = mu: common practice)" },
+    { .name = "lambda", .kind = K_PRESSURE, FA(lambda_pa), ABOVE(0, 1e12),
+      .accepted = "0 < lambda <= 1000 GPa, Lame's first parameter, instead of poisson" },
+    { .name = "rigidity", .kind = K_PRESSURE, FA(rigidity_pa), RANGE(1e9, 2e11), .dflt = "30 GPa",
+      .accepted = "1 GPa <= rigidity <= 200 GPa, the shear modulus mu (30 GPa: common practice)" },
+    { .name = "surface", .kind = K_CHOICE, FA(kajiura), .words = FAULT_SURFACE_WORDS, .dflt = "floor",
+      .accepted = "floor (the sea surface takes the floor's uplift), kajiura (filtered by 1 / cosh(k h))" },
+    { .name = "horizontal", .kind = K_CHOICE, FA(horizontal), .words = OFF_ON_WORDS, .dflt = "off",
+      .accepted = "off, on (the horizontal motion over the sloping seabed, Tanioka & Satake 1996)" },
+    { .name = "surface_rupture", .kind = K_CHOICE, FA(surface_rupture), .words = RUPTURE_WORDS, .dflt = "refuse",
+      .accepted = "refuse, accept (a top edge at depth 0, breaking the sea floor)" },
+    { .name = "start", .kind = K_TIME, FA(start_s), RANGE(0, SW_FAULT_START_MAX_S), .dflt = "0",
+      .accepted = "0 <= start <= 30 d after the run's start, not together with rupture_speed" },
+    { .name = "rise", .kind = K_TIME, FA(rise_s), RANGE(0, SW_FAULT_RISE_MAX_S), .dflt = "0",
+      .accepted = "0 <= rise <= 1 d; 0 moves at once" },
+    { .name = "rupture_speed", .kind = K_SPEED, FA(rupture_speed_ms), ABOVE(0, 1e4),
+      .accepted = "0 < rupture_speed <= 10000 m/s, with hypocentre_x and hypocentre_y" },
+    { .name = "hypocentre_x", FA(hypo_x_m), POINT_X("hypocentre", FA_UNIT(hypo_x_unit)) },
+    { .name = "hypocentre_y", FA(hypo_y_m), POINT_Y("hypocentre", FA_UNIT(hypo_y_unit)) },
+    { .name = "hypocentre_depth", .kind = K_LENGTH, FA(hypo_depth_m), RANGE(0, 1e6),
+      .accepted = "0 <= hypocentre_depth <= 1000 km below the sea floor" },
+    { .name = "cutoff", .kind = K_NUMBER, FA(cutoff), RANGE(0, 1e4), .dflt = "20",
+      .accepted = "0 <= cutoff <= 10000, in (length + width + depth) of each segment; 0 evaluates everywhere" },
+    { .name = "segments", .kind = K_TEXT, FA(segments), .size = FIELD_SIZE(sw_fault_spec, segments),
+      .accepted = "a segment table file, relative to the scenario's folder (docs/faults.md)" },
+    { .name = "slip_factor", .kind = K_NUMBER, FA(slip_factor), RANGE(0, 1000), .dflt = "1",
+      .accepted = "0 <= slip_factor <= 1000, multiplying every segment's slip and opening" },
+    { .name = "x_offset", .kind = K_COORD, FA(x_offset_m), RANGE(-1e4 * KM, 1e4 * KM), .dflt = "0", .axis = SCN_AXIS_X,
+      FA_UNIT(x_offset_unit), .accepted = "|x_offset| <= 10000 km", .deg_lo = -360, .deg_hi = 360,
+      .deg_accepted = "|x_offset| <= 360 deg on a geographic grid" },
+    { .name = "y_offset", .kind = K_COORD, FA(y_offset_m), RANGE(-1e4 * KM, 1e4 * KM), .dflt = "0", .axis = SCN_AXIS_Y,
+      FA_UNIT(y_offset_unit), .accepted = "|y_offset| <= 10000 km", .deg_lo = -180, .deg_hi = 180,
+      .deg_accepted = "|y_offset| <= 180 deg on a geographic grid" },
+    { .name = "rotation", .kind = K_ANGLE, FA(rotation_deg), RANGE(-360, 360), .dflt = "0",
+      .accepted = "-360 <= rotation <= 360 deg, clockwise about the centroid of all faults' reference points" },
 };
 
 #define TABLE(t) t, sizeof t / sizeof t[0]
@@ -267,13 +338,14 @@ const section_def scn_sections[] = {
     { "island", S_ISLAND, 1, TABLE(ISLAND_KEYS) }, { "shoal", S_SHOAL, 1, TABLE(SHOAL_KEYS) },
     { "source", S_SOURCE, 1, TABLE(SOURCE_KEYS) }, { "sweep", S_SWEEP, 0, NULL, 0 },
     { "storm", S_STORM, 0, TABLE(STORM_KEYS) },    { "weather", S_WEATHER, 0, TABLE(WEATHER_KEYS) },
-    { "wind", S_WIND, 0, TABLE(WIND_KEYS) },
+    { "wind", S_WIND, 0, TABLE(WIND_KEYS) },      { "fault", S_FAULT, 1, TABLE(FAULT_KEYS) },
 };
 const size_t scn_n_sections = sizeof scn_sections / sizeof scn_sections[0];
 
 _Static_assert(sizeof RUN_KEYS / sizeof RUN_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX");
 _Static_assert(sizeof SEABED_KEYS / sizeof SEABED_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX");
 _Static_assert(sizeof SOURCE_KEYS / sizeof SOURCE_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX");
+_Static_assert(sizeof FAULT_KEYS / sizeof FAULT_KEYS[0] <= KEYS_MAX, "raise KEYS_MAX");
 _Static_assert(sizeof(sw_edge_kind) == sizeof(int) && sizeof(sw_coast_side) == sizeof(int)
                && sizeof(sw_rotation_kind) == sizeof(int) && sizeof(sw_friction_kind) == sizeof(int)
                && sizeof(sw_positive) == sizeof(int) && sizeof(sw_source_shape) == sizeof(int)
@@ -394,7 +466,45 @@ static sw_status check_origin(const char *v, char *why, size_t n)
 int scn_is_numeric(key_kind k)
 {
     return k == K_NUMBER || k == K_INTEGER || k == K_LENGTH || k == K_TIME || k == K_ANGLE || k == K_RATE
-        || k == K_SPEED || k == K_COORD;
+        || k == K_SPEED || k == K_COORD || k == K_PRESSURE;
+}
+
+/* Parses a pressure "30 GPa", "3e10 Pa", "3e10" (a bare number is Pa) into *v in Pa. Returns 0, or -1 with
+ * the cause in why. */
+static int parse_pressure(const char *text, double *v, char *why, size_t n)
+{
+    static const struct { const char *name; double factor; } UNITS[] = {
+        { "Pa", 1.0 }, { "kPa", 1e3 }, { "MPa", 1e6 }, { "GPa", 1e9 },
+    };
+    char *end;
+    while (isspace((unsigned char)*text))
+        text++;
+    double x = strtod(text, &end);
+    if (end == text || !isfinite(x)) {
+        snprintf(why, n, "not a number (accepted: a pressure such as 30 GPa; units Pa, kPa, MPa, GPa)");
+        return -1;
+    }
+    while (isspace((unsigned char)*end))
+        end++;
+    char unit[16];
+    size_t len = strlen(end);
+    while (len > 0 && isspace((unsigned char)end[len - 1]))
+        len--;
+    if (len == 0) {
+        *v = x;
+        return 0;
+    }
+    if (len < sizeof unit) {
+        memcpy(unit, end, len);
+        unit[len] = '\0';
+        for (size_t q = 0; q < sizeof UNITS / sizeof UNITS[0]; q++)
+            if (!strcmp(unit, UNITS[q].name)) {
+                *v = x * UNITS[q].factor;
+                return 0;
+            }
+    }
+    snprintf(why, n, "unknown unit '%.*s' (accepted: Pa, kPa, MPa, GPa)", (int)(len < 24 ? len : 24), end);
+    return -1;
 }
 
 /* The registry position (sw_layout_at) of the layout called `name` (any case) into *index, as a sweep
@@ -414,7 +524,8 @@ int scn_layout_index(const char *name, double *index)
  * or SW_ERR_PARSE / SW_ERR_RANGE with the cause in why. */
 sw_status scn_parse_number(const key_def *k, const char *value, double *v, char *why, size_t n)
 {
-    if (sw_units_parse(value, scn_unit_kind(k->kind), v, why, (unsigned)n) != 0)
+    if (k->kind == K_PRESSURE ? parse_pressure(value, v, why, n) != 0
+                              : sw_units_parse(value, scn_unit_kind(k->kind), v, why, (unsigned)n) != 0)
         return SW_ERR_PARSE;
     if (k->kind == K_INTEGER && *v != floor(*v)) {
         snprintf(why, n, "not a whole number (accepted: %s)", k->accepted);
@@ -439,7 +550,8 @@ sw_status scn_store_value(const key_def *k, void *home, const char *value, int k
     case K_TIME:
     case K_ANGLE:
     case K_RATE:
-    case K_SPEED: {
+    case K_SPEED:
+    case K_PRESSURE: {
         double v;
         sw_status st = scn_parse_number(k, value, &v, why, n);
         if (st != SW_OK)
@@ -569,6 +681,11 @@ sw_status scn_parse_coord(const key_def *k, const char *value, int kind, double 
     *v = x;
     *unit = written;
     return SW_OK;
+}
+
+double sw_scenario_lon_m(const sw_grid *g, double lon_deg)
+{
+    return scn_coord_to_m(g, SCN_AXIS_X, lon_deg);
 }
 
 const key_def *scn_point_key(int axis)

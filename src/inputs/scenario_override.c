@@ -266,12 +266,19 @@ static const void *home_for(const sw_scenario *sc, const section_def *def, const
 {
     if (k->home == IN_SCENARIO)
         return sc;
-    if (k->home != IN_ITEM)
+    if (k->home != IN_ITEM || (def->type != S_SOURCE && def->type != S_FAULT && def->type != S_BAY
+                               && def->type != S_ISLAND && def->type != S_SHOAL))
         return NULL;
     if (def->type == S_SOURCE) {
         for (size_t i = 0; i < sc->n_sources; i++)
             if (!strcmp(sc->sources[i].name, name))
                 return &sc->sources[i];
+        return NULL;
+    }
+    if (def->type == S_FAULT) {
+        for (size_t i = 0; i < sc->n_faults; i++)
+            if (!strcmp(sc->faults[i].name, name))
+                return &sc->faults[i];
         return NULL;
     }
     sw_feature_kind fk = def->type == S_BAY ? SW_FEATURE_BAY : def->type == S_ISLAND ? SW_FEATURE_ISLAND : SW_FEATURE_SHOAL;

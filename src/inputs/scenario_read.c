@@ -85,9 +85,7 @@ static int begin_section(parse_state *ps, const char *inner, size_t n)
     while (n > 0 && isspace((unsigned char)inner[n - 1]))
         n--;
     if (n == 0)
-        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "empty section header [] (accepted: run, grid, edges, "
-                                                       "seabed, gauges, bay NAME, island NAME, shoal NAME, source "
-                                                       "NAME, sweep)");
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "empty section header [] (accepted: " SCN_SECTION_LIST ")");
     char kind[LINE_MAX_CHARS + 1];
     size_t kn = 0;
     while (kn < n && !isspace((unsigned char)inner[kn]))
@@ -108,12 +106,12 @@ static int begin_section(parse_state *ps, const char *inner, size_t n)
         if (near.best)
             return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "unknown section [%.*s]%s", (int)n, inner,
                                scn_suggest_text(&near, hint, sizeof hint));
-        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "unknown section [%.*s] (accepted: run, grid, edges, seabed, "
-                           "gauges, bay NAME, island NAME, shoal NAME, source NAME, sweep)", (int)n, inner);
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "unknown section [%.*s] (accepted: " SCN_SECTION_LIST ")",
+                           (int)n, inner);
     }
     if (def->named && nn == 0)
         return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "section [%s] needs a name, e.g. [%s %s]", kind, kind,
-                           def->type == S_SOURCE ? "main" : "Gull Rock");
+                           def->type == S_SOURCE || def->type == S_FAULT ? "main" : "Gull Rock");
     if (!def->named && nn > 0)
         return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "section [%s] takes no name, found [%.*s] (accepted: [%s])",
                            kind, (int)n, inner, kind);
@@ -149,6 +147,15 @@ static int begin_section(parse_state *ps, const char *inner, size_t n)
         s->name[nn] = '\0';
         s->line = ps->line;
         item = s;
+    } else if (def->type == S_FAULT) {
+        if (sc->n_faults >= SW_MAX_FAULTS)
+            return scn_fail_at(ps, SW_ERR_RANGE, ps->line, "too many faults at [%.*s] (accepted: at most %d [fault] "
+                               "sections; a segment table holds many segments)", (int)n, inner, SW_MAX_FAULTS);
+        sw_fault_spec *f = &sc->faults[sc->n_faults++];
+        memcpy(f->name, name, nn);
+        f->name[nn] = '\0';
+        f->line = ps->line;
+        item = f;
     }
 
     section_ctx *sec = &ps->sections[ps->n_sections++];   /* SECTIONS_MAX covers every kind's limit */
@@ -703,6 +710,59 @@ static int finish_source(parse_state *ps, const section_ctx *sec)
         if (!key_line(sec, "trough"))
             s->trough_m = s->amplitude_m;
     }
+    if (s->shape == SW_SOURCE_FILE && s->scale == 0)
+        return scn_fail_at(ps, SW_ERR_RANGE, key_line(sec, "scale"), "%s scale = 0: out of range (accepted: 0 < "
+                           "|scale| <= 1000; leave the source out to switch it off)", sec->label);
+    return 1;
+}
+
+/* [fault NAME]: one fault from its keys or a segment table; the elastic constants; a top edge at the sea floor;
+ * the rupture's timing (start, or rupture_speed from a hypocentre). The table itself is read once the grid is
+ * known (faults.c). */
+static int finish_fault(parse_state *ps, const section_ctx *sec)
+{
+    sw_fault_spec *f = sec->item;
+    const int table = key_line(sec, "segments");
+    f->segments_line = table;
+    if (!check_keys(ps, sec, table ? FAULT_TABLE : FAULT_ONE, table ? "with 'segments' (the table gives each "
+                    "segment's value)" : "without 'segments'"))
+        return 0;
+    const int poisson = key_line(sec, "poisson"), lambda = key_line(sec, "lambda");
+    if (poisson && lambda)
+        return scn_fail_at(ps, SW_ERR_PARSE, poisson > lambda ? poisson : lambda, "%s poisson (line %d) and "
+                           "lambda (line %d) are both given (accepted: one of them; with lambda, poisson = lambda / (2 "
+                           "(lambda + rigidity)))", sec->label, poisson, lambda);
+    if (lambda)
+        f->poisson = f->lambda_pa / (2.0 * (f->lambda_pa + f->rigidity_pa));
+    else if (!(f->poisson < 0.5))
+        return scn_fail_at(ps, SW_ERR_RANGE, poisson, "%s poisson = %g: out of range (accepted: 0 < poisson < 0.5; "
+                           "0.5 is an incompressible solid)", sec->label, f->poisson);
+    f->rupture_line = key_line(sec, "surface_rupture");
+    if (!table && f->depth_m == 0 && !f->surface_rupture)
+        return scn_fail_at(ps, SW_ERR_RANGE, key_line(sec, "depth"), "%s depth = 0 m: the fault's top edge breaks the "
+                           "sea floor (accepted: depth > 0, or surface_rupture = accept for a rupture that reaches the "
+                           "sea floor)", sec->label);
+    f->start_line = key_line(sec, "start");
+    f->rise_line = key_line(sec, "rise");
+    f->opening_line = key_line(sec, "opening");
+    f->speed_line = key_line(sec, "rupture_speed");
+    const int hx = key_line(sec, "hypocentre_x"), hy = key_line(sec, "hypocentre_y");
+    const int hz = key_line(sec, "hypocentre_depth");
+    f->hypo_depth_given = hz != 0;
+    if (f->speed_line && f->start_line)
+        return scn_fail_at(ps, SW_ERR_PARSE, f->speed_line > f->start_line ? f->speed_line : f->start_line, "%s start "
+                           "(line %d) and rupture_speed (line %d) are both given (accepted: one of them; rupture_speed "
+                           "starts each segment when the rupture front reaches it)", sec->label, f->start_line,
+                           f->speed_line);
+    if (f->speed_line && (!hx || !hy))
+        return scn_fail_at(ps, SW_ERR_PARSE, f->speed_line, "%s rupture_speed needs hypocentre_x and hypocentre_y "
+                           "(accepted: the point the rupture starts from; hypocentre_depth optional)", sec->label);
+    static const char *const hypo[3] = { "hypocentre_x", "hypocentre_y", "hypocentre_depth" };
+    const int given[3] = { hx, hy, hz };
+    for (int q = 0; q < 3 && !f->speed_line; q++)
+        if (given[q])
+            return scn_fail_at(ps, SW_ERR_PARSE, given[q], "%s %s: not used without rupture_speed (accepted: "
+                               "rupture_speed with it)", sec->label, hypo[q]);
     return 1;
 }
 
@@ -800,6 +860,22 @@ static int place_coord(const sw_grid *g, const key_def *k, int axis, double *v, 
     return 1;
 }
 
+/* An offset *v (a file source's, a fault's) as place_coord places a position, but converted to model metres
+ * without the longitude's move by 360 deg. */
+static int place_offset(const sw_grid *g, const key_def *k, int axis, double *v, sw_unit_kind unit, const char *what,
+                        int line, int commit, place_problem *p)
+{
+    char why[512], txt[64];
+    sw_status st = scn_check_coord(k, axis, *v, unit, (int)g->kind, why, sizeof why);
+    if (st != SW_OK) {
+        format_coord(txt, sizeof txt, *v, unit);
+        return place_fail(p, st, line, "%s = %s: %s", what, txt, why);
+    }
+    if (commit && sw_grid_geographic(g))
+        *v = sw_grid_deg(g, *v);
+    return 1;
+}
+
 /* Every position of sc: checked against sc->grid's kind (commit 0), or converted (commit 1). */
 static int place_positions(sw_scenario *sc, int commit, place_problem *p)
 {
@@ -808,14 +884,44 @@ static int place_positions(sw_scenario *sc, int commit, place_problem *p)
     const section_def *src = scn_find_section_def("source", NULL);
     for (size_t i = 0; i < sc->n_sources; i++) {
         sw_source_spec *s = &sc->sources[i];
-        if (s->shape == SW_SOURCE_FILE)
+        if (s->shape == SW_SOURCE_FILE) {   /* its offsets, converted without the longitude's move by 360 deg */
+            snprintf(what, sizeof what, "[source %s] x_offset", s->name);
+            if (!place_offset(g, scn_find_key(src, "x_offset", NULL), SCN_AXIS_X, &s->x_offset_m, s->x_offset_unit,
+                              what, s->line, commit, p))
+                return 0;
+            snprintf(what, sizeof what, "[source %s] y_offset", s->name);
+            if (!place_offset(g, scn_find_key(src, "y_offset", NULL), SCN_AXIS_Y, &s->y_offset_m, s->y_offset_unit,
+                              what, s->line, commit, p))
+                return 0;
             continue;
+        }
         snprintf(what, sizeof what, "[source %s] x", s->name);
         if (!place_coord(g, scn_find_key(src, "x", NULL), SCN_AXIS_X, &s->x_m, s->x_unit, what, s->line, commit, p))
             return 0;
         snprintf(what, sizeof what, "[source %s] y", s->name);
         if (!place_coord(g, scn_find_key(src, "y", NULL), SCN_AXIS_Y, &s->y_m, s->y_unit, what, s->line, commit, p))
             return 0;
+    }
+    const section_def *fdef = scn_find_section_def("fault", NULL);
+    for (size_t i = 0; i < sc->n_faults; i++) {
+        sw_fault_spec *f = &sc->faults[i];
+        struct { const char *key; double *v; sw_unit_kind unit; int axis, use, offset; } c[6] = {
+            { "x", &f->x_m, f->x_unit, SCN_AXIS_X, !f->segments[0], 0 },
+            { "y", &f->y_m, f->y_unit, SCN_AXIS_Y, !f->segments[0], 0 },
+            { "hypocentre_x", &f->hypo_x_m, f->hypo_x_unit, SCN_AXIS_X, f->rupture_speed_ms > 0, 0 },
+            { "hypocentre_y", &f->hypo_y_m, f->hypo_y_unit, SCN_AXIS_Y, f->rupture_speed_ms > 0, 0 },
+            { "x_offset", &f->x_offset_m, f->x_offset_unit, SCN_AXIS_X, 1, 1 },
+            { "y_offset", &f->y_offset_m, f->y_offset_unit, SCN_AXIS_Y, 1, 1 },
+        };
+        for (int q = 0; q < 6; q++) {
+            if (!c[q].use)
+                continue;
+            snprintf(what, sizeof what, "[fault %s] %s", f->name, c[q].key);
+            const key_def *k = scn_find_key(fdef, c[q].key, NULL);
+            if (!(c[q].offset ? place_offset : place_coord)(g, k, c[q].axis, c[q].v, c[q].unit, what, f->line, commit,
+                                                             p))
+                return 0;
+        }
     }
     static const char *const feature_kind[] = { "bay", "island", "shoal" };   /* by sw_feature_kind */
     for (size_t i = 0; i < sc->n_features; i++) {
@@ -967,6 +1073,10 @@ static int finish(parse_state *ps)
         }
         case S_SOURCE:
             if (!finish_source(ps, sec))
+                return 0;
+            break;
+        case S_FAULT:
+            if (!finish_fault(ps, sec))
                 return 0;
             break;
         default:

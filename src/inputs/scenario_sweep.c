@@ -45,14 +45,25 @@ static const key_def SWEEP_BUILTIN_KEYS[] = {
       .accepted = "0 < depth_factor <= 100" },
     { .name = "resolution_factor", .kind = K_NUMBER, ABOVE(0, 64), .first = SW_SWEEP_RESOLUTION_FACTOR,
       .accepted = "0 < resolution_factor <= 64" },
+    /* every [fault]: its slip_factor, offsets and rotation (which apply to a segment table too) */
+    { .name = "slip_factor", .kind = K_NUMBER, ABOVE(0, 1000), .first = SW_SWEEP_SLIP_FACTOR,
+      .accepted = "0 < slip_factor <= 1000" },
+    { .name = "fault_x_offset", .kind = K_COORD, RANGE(-1e4 * KM, 1e4 * KM), .first = SW_SWEEP_FAULT_X_OFFSET,
+      .accepted = "|fault_x_offset| <= 10000 km", .grid_key = 1, .axis = SCN_AXIS_X, .deg_lo = -360, .deg_hi = 360,
+      .deg_accepted = "|fault_x_offset| <= 360 deg on a geographic grid" },
+    { .name = "fault_y_offset", .kind = K_COORD, RANGE(-1e4 * KM, 1e4 * KM), .first = SW_SWEEP_FAULT_Y_OFFSET,
+      .accepted = "|fault_y_offset| <= 10000 km", .grid_key = 1, .axis = SCN_AXIS_Y, .deg_lo = -180, .deg_hi = 180,
+      .deg_accepted = "|fault_y_offset| <= 180 deg on a geographic grid" },
+    { .name = "fault_rotation", .kind = K_ANGLE, RANGE(-360, 360), .first = SW_SWEEP_FAULT_ROTATION,
+      .accepted = "-360 <= fault_rotation <= 360 deg, clockwise" },
 };
 
 /* Short names for [run] keys: `courant = ...` in [sweep] means `run.courant = ...`. */
 static const char *const SWEEP_ALIASES[] = { "layout", "courant", "arrival_threshold", NULL };
 
 #define SWEEP_HINT "(accepted: design, members, seed, amplitude_factor, source_x_offset, source_y_offset, " \
-                   "depth_factor, resolution_factor, layout, courant, arrival_threshold, or SECTION.KEY such as " \
-                   "grid.dx or source main.amplitude)"
+                   "depth_factor, resolution_factor, slip_factor, fault_x_offset, fault_y_offset, fault_rotation, " \
+                   "layout, courant, arrival_threshold, or SECTION.KEY such as grid.dx or source main.amplitude)"
 
 /* [sweep] name = value: kept as text; scn_finish_sweep reads it once every section is known. */
 int scn_add_sweep_entry(parse_state *ps, const char *name, const char *value)
@@ -217,7 +228,7 @@ static int sweep_key_target(parse_state *ps, const sweep_entry *e, const char *t
     }
     if (def->type == S_GAUGES || def->type == S_SWEEP)
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: [%s] entries cannot be varied (accepted: keys of "
-                           "[run], [grid], [seabed], [storm], [wind], features and sources)", e->name, kind);
+                           "[run], [grid], [seabed], [storm], [wind], features, sources and faults)", e->name, kind);
     const section_ctx *sec = find_named_section(ps, def, name);
     if (!sec)
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: the file has no section [%s%s%s] to vary",
@@ -232,19 +243,26 @@ static int sweep_key_target(parse_state *ps, const sweep_entry *e, const char *t
     if (def->type == S_GRID && !ps->sc->has_grid && strcmp(key, "radius"))
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: the grid comes from the seabed file (accepted: a "
                            "[grid] section that gives nx, ny and dx)", e->name);
-    /* numbers, the layout, and named choices of the storm surge ([wind] drag_law) */
-    const int choice = k->kind == K_CHOICE && def->type == S_WIND;
+    /* numbers, the layout, and named choices of the storm surge ([wind] drag_law) and of faults (surface,
+     * horizontal) */
+    const int choice = k->kind == K_CHOICE && (def->type == S_WIND || (def->type == S_FAULT
+                                                                       && strcmp(key, "surface_rupture")));
     if (!scn_is_numeric(k->kind) && k->kind != K_LAYOUT && !choice)
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s %s is not a number (accepted: numeric keys, "
-                           "run.layout and wind.drag_law)", e->name, sec->label, key);
+                           "run.layout, wind.drag_law, and a fault's surface and horizontal)", e->name, sec->label,
+                           key);
     unsigned active = 1;
     if (def->type == S_SEABED)
         active = ps->sc->bed_file[0] ? BED_FILE : BED_RECIPE;
     else if (def->type == S_SOURCE)
         active = SHAPE(((const sw_source_spec *)sec->item)->shape);
+    else if (def->type == S_FAULT)
+        active = ((const sw_fault_spec *)sec->item)->segments[0] ? FAULT_TABLE : FAULT_ONE;
     if (k->only && !(k->only & active))
-        return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s %s is not used by this %s",
-                           e->name, sec->label, key, def->type == S_SOURCE ? "source's shape" : "seabed");
+        return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s %s is not used by this %s", e->name, sec->label,
+                           key, def->type == S_SOURCE ? "source's shape" : def->type == S_FAULT
+                           ? "fault: its segment table gives it (accepted: slip_factor, x_offset, y_offset, rotation "
+                             "and the other keys of the section)" : "seabed");
     scn_join_target(p->target, sizeof p->target, kind, name, key);
     p->kind = SW_SWEEP_KEY;
     *kout = k;
@@ -260,8 +278,17 @@ static int sweep_needs_sources(parse_state *ps, const sweep_entry *e)
     for (size_t i = 0; i < sc->n_sources; i++)
         if (sc->sources[i].shape == SW_SOURCE_FILE)
             return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: [source %s] (line %d) is read from a file "
-                               "(accepted: hump, ellipse and pair sources; vary a file source with its own keys)",
-                               e->name, sc->sources[i].name, sc->sources[i].line);
+                               "(accepted: hump, ellipse and pair sources; vary a file source with its own keys, e.g. "
+                               "source %s.scale, source %s.x_offset)", e->name, sc->sources[i].name,
+                               sc->sources[i].line, sc->sources[i].name, sc->sources[i].name);
+    return 1;
+}
+
+/* A built-in parameter that scales, moves or turns faults needs a [fault]. */
+static int sweep_needs_faults(parse_state *ps, const sweep_entry *e)
+{
+    if (ps->sc->n_faults == 0)
+        return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: the scenario has no [fault] to change", e->name);
     return 1;
 }
 
@@ -287,6 +314,9 @@ static int sweep_param(parse_state *ps, const sweep_entry *e)
         p->kind = (sw_sweep_kind)k->first;
         if ((p->kind == SW_SWEEP_AMPLITUDE_FACTOR || p->kind == SW_SWEEP_SOURCE_X_OFFSET
              || p->kind == SW_SWEEP_SOURCE_Y_OFFSET) && !sweep_needs_sources(ps, e))
+            return 0;
+        if ((p->kind == SW_SWEEP_SLIP_FACTOR || p->kind == SW_SWEEP_FAULT_X_OFFSET
+             || p->kind == SW_SWEEP_FAULT_Y_OFFSET || p->kind == SW_SWEEP_FAULT_ROTATION) && !sweep_needs_faults(ps, e))
             return 0;
         if (p->kind == SW_SWEEP_RESOLUTION_FACTOR && !ps->sc->has_grid)
             return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] resolution_factor: the grid comes from the seabed "

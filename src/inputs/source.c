@@ -9,7 +9,8 @@
  *   ellipse: A exp(-(u / L)^2 - (v / W)^2)
  *   pair:    the ellipse with +A centred separation/2 to the left of the axis, minus the ellipse
  *            with T (trough) centred separation/2 to the right.
- *   file:    interpolated bilinearly; 0 outside the file's extent.
+ *   file:    interpolated bilinearly; 0 outside the file's extent; times its scale, moved by its offsets.
+ *   faults:  the sea surface of the fault segments that move at t = 0 (faults.c), added last.
  *
  * On a geographic grid (grid.h: x = R lambda, y = R phi) the offset (ex, ey) is a point's place in the
  * azimuthal equidistant plane about the source's centre: ex = d sin(b), ey = d cos(b), with d the
@@ -27,6 +28,7 @@
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <string.h>
 
 #include "inputs/ncinput.h"
 
@@ -115,7 +117,9 @@ static void source_add_sphere(const sw_grid *g, const sw_source_spec *s, double 
     }
 }
 
-/* Adds the file source s to eta (interpolated; 0 outside the file). */
+/* Adds the file source s to eta (interpolated; 0 outside the file), times its scale and moved by its offsets:
+ * the file is read onto the grid moved back by the offsets, so that each cell takes the file's value that
+ * far behind it. */
 static sw_status source_add_file(const sw_scenario *sc, const sw_source_spec *s, double *eta,
                                  sw_error *err)
 {
@@ -128,11 +132,14 @@ static sw_status source_add_file(const sw_scenario *sc, const sw_source_spec *s,
     if (!tmp)
         return sw_fail(err, SW_ERR_NOMEM, "%s:%d: [source %s]: out of memory for %zu cells", sc->path,
                        s->line, s->name, n);
-    st = sw_ncin_read(path, s->variable[0] ? s->variable : "eta", &sc->grid, SW_NCIN_OUTSIDE_ZERO, tmp,
-                      NULL, err);
+    sw_grid g = sc->grid;
+    g.x0_m -= s->x_offset_m;
+    g.y0_m -= s->y_offset_m;
+    st = sw_ncin_read(path, s->variable[0] ? s->variable : "eta", &g, SW_NCIN_OUTSIDE_ZERO, tmp, NULL, err);
     if (st == SW_OK) {
+        const double scale = s->scale != 0.0 ? s->scale : 1.0;   /* 0 = unset, in a spec built by hand */
         for (size_t k = 0; k < n; k++)
-            eta[k] += tmp[k];
+            eta[k] += scale * tmp[k];
     } else {
         sw_error_prefix(err, "%s:%d: [source %s] file: ", sc->path, s->line, s->name);
     }
@@ -156,7 +163,36 @@ static sw_status source_check(const sw_scenario *sc, const sw_source_spec *s, sw
     return SW_OK;
 }
 
-sw_status sw_source_build(const sw_scenario *sc, double *eta0_m, sw_error *err)
+/* Adds the instant faults' sea surface to eta0 (and puts it alone into faults_eta when not NULL). */
+static sw_status source_add_faults(const sw_scenario *sc, const sw_fault_set *faults, const double *depth_m,
+                                   double min_depth_m, double *eta0_m, double *faults_eta_m, sw_error *err)
+{
+    const size_t n = sw_grid_cells(&sc->grid);
+    if (faults_eta_m)
+        memset(faults_eta_m, 0, n * sizeof *faults_eta_m);
+    if (sc->n_faults == 0 && (!faults || faults->n == 0))
+        return SW_OK;
+    sw_fault_set own = { 0 };
+    sw_status st = SW_OK;
+    if (!faults) {
+        st = sw_faults_collect(sc, &own, err);
+        faults = &own;
+    }
+    double *f = faults_eta_m ? faults_eta_m : calloc(n, sizeof *f);
+    if (st == SW_OK && !f)
+        st = sw_fail(err, SW_ERR_NOMEM, "%s: out of memory for the faults' sea surface on %zu cells", sc->path, n);
+    if (st == SW_OK)
+        st = sw_faults_surface(faults, SW_FAULTS_INSTANT, &sc->grid, depth_m, min_depth_m, f, err);
+    for (size_t k = 0; st == SW_OK && k < n; k++)
+        eta0_m[k] += f[k];
+    if (f != faults_eta_m)
+        free(f);
+    sw_faults_free(&own);
+    return st;
+}
+
+sw_status sw_source_build(const sw_scenario *sc, const sw_fault_set *faults, const double *depth_m,
+                          double min_depth_m, double *eta0_m, double *faults_eta_m, sw_error *err)
 {
     if (!sc || !eta0_m)
         return sw_fail(err, SW_ERR_USAGE, "sw_source_build: no scenario or output");
@@ -210,5 +246,5 @@ sw_status sw_source_build(const sw_scenario *sc, double *eta0_m, sw_error *err)
                            s->name, (int)s->shape);
         }
     }
-    return SW_OK;
+    return source_add_faults(sc, faults, depth_m, min_depth_m, eta0_m, faults_eta_m, err);
 }

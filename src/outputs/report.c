@@ -182,6 +182,60 @@ static void print_forcing(FILE *f, const sw_scenario *sc, const sw_setup *s)
         fprintf(f, "           warning: %s\n", warn);
 }
 
+/* ---- the faults: what the plan and its JSON say about them ------------------------------------------ */
+
+/* The plan's Faults lines; nothing without [fault]. */
+static void print_faults(FILE *f, const sw_setup *s)
+{
+    const sw_fault_summary *fs = &s->fault;
+    if (!fs->sections)
+        return;
+    fprintf(f, "Faults     %zu section%s, %zu segment%s", fs->sections, fs->sections == 1 ? "" : "s", fs->segments,
+            fs->segments == 1 ? "" : "s");
+    if (fs->kajiura || fs->horizontal) {
+        fprintf(f, " (");
+        if (fs->kajiura)
+            fprintf(f, "%zu with the Kajiura filter", fs->kajiura);
+        if (fs->kajiura && fs->horizontal)
+            fprintf(f, ", ");
+        if (fs->horizontal)
+            fprintf(f, "%zu with the horizontal term", fs->horizontal);
+        fprintf(f, ")");
+    }
+    fprintf(f, ": M0 = %.3g N m, Mw %.2f (Hanks & Kanamori 1979)\n", fs->moment_nm, fs->magnitude);
+    if (fs->whole_rupture) {
+        char end[48];
+        sw_format_duration(fs->end_s, end, sizeof end);
+        fprintf(f, "           rupture in time: the last segment stops moving at %s; the whole rupture's sea surface "
+                "over water: uplift up to %.3g m, subsidence down to %.3g m\n", end, fs->uplift_m, fs->subsidence_m);
+    } else {
+        fprintf(f, "           every segment moves at once at t = 0; the initial sea surface over water: uplift up "
+                "to %.3g m, subsidence down to %.3g m\n", fs->uplift_m, fs->subsidence_m);
+    }
+}
+
+/* "faults": null without [fault], else the plan's figures. */
+static void add_faults(cJSON *o, const sw_setup *s)
+{
+    const sw_fault_summary *fs = &s->fault;
+    if (!fs->sections) {
+        cJSON_AddNullToObject(o, "faults");
+        return;
+    }
+    cJSON *e = cJSON_AddObjectToObject(o, "faults");
+    cJSON_AddNumberToObject(e, "sections", (double)fs->sections);
+    cJSON_AddNumberToObject(e, "segments", (double)fs->segments);
+    cJSON_AddNumberToObject(e, "kajiura_segments", (double)fs->kajiura);
+    cJSON_AddNumberToObject(e, "horizontal_segments", (double)fs->horizontal);
+    cJSON_AddNumberToObject(e, "moment_nm", fs->moment_nm);
+    cJSON_AddNumberToObject(e, "magnitude_mw", fs->magnitude);
+    cJSON_AddNumberToObject(e, "rupture_end_s", fs->end_s);
+    cJSON_AddStringToObject(e, "peaks_of", fs->whole_rupture ? "whole rupture" : "initial surface");
+    cJSON_AddNumberToObject(e, "uplift_max_m", fs->uplift_m);
+    cJSON_AddNumberToObject(e, "subsidence_max_m", fs->subsidence_m);
+    cJSON_AddNumberToObject(e, "memory_bytes", (double)fs->run_bytes);
+}
+
 /* The plan's Grid line: the kind, the cells and their size, the extent (in degrees on a geographic grid)
  * and the water. */
 static void print_grid(FILE *f, const sw_setup *s)
@@ -236,12 +290,16 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
                 "wide (dx cos(latitude))\n", s->dt_row, s->dt_row_lat_deg, s->dt_row_width_m / 1000);
     print_terms(f, sc, s);
     print_forcing(f, sc, s);
+    print_faults(f, s);
     sw_format_duration(sc->duration_s, buf, sizeof buf);
     fprintf(f, "Run        %s simulated in %lld steps; %zu gauge samples each; %zu snapshots\n", buf, s->n_steps,
             s->n_samples, s->n_snapshots);
     if (s->forcing_bytes)
         fprintf(f, "Memory     %.1f MB (model state %.1f MB; of the total, the forcing takes %.1f MB)\n",
                 bytes_mb(s->total_bytes), bytes_mb(s->model_bytes), bytes_mb(s->forcing_bytes));
+    else if (s->fault.run_bytes)
+        fprintf(f, "Memory     %.1f MB (model state %.1f MB; of the total, the rupture in time takes %.1f MB)\n",
+                bytes_mb(s->total_bytes), bytes_mb(s->model_bytes), bytes_mb(s->fault.run_bytes));
     else
         fprintf(f, "Memory     %.1f MB (model state %.1f MB)\n", bytes_mb(s->total_bytes), bytes_mb(s->model_bytes));
     if (rate && rate->cells_per_s > 0) {
@@ -406,6 +464,7 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
     cJSON_AddNumberToObject(o, "depth_max_m", s->h_max_m);
     add_terms(o, sc, s);
     add_forcing(o, sc, s);
+    add_faults(o, s);
     cJSON_AddNumberToObject(o, "dt_s", s->dt_s);
     cJSON_AddNumberToObject(o, "courant", s->courant);
     cJSON_AddNumberToObject(o, "courant_limit", s->courant_limit);

@@ -18,7 +18,10 @@ void sw_format_duration(double s, char *buf, size_t n);
  * number against the limit, and on a geographic grid the row, latitude and narrowest cell width where the
  * limit is reached; the terms, with
  * forcing a `Forcing` line naming the storm, weather file or level series (and the storm's warning when
- * its centre never enters the domain, from s->storm), steps, memory (the forcing's share named), gauges
+ * its centre never enters the domain, from s->storm), with [fault] sections a `Faults` line (sections,
+ * segments, the total seismic moment and Mw, and on a second line when the rupture ends and the faults' peak
+ * uplift and subsidence over water, of the initial surface or of the whole rupture: s->fault), steps, memory
+ * (the forcing's or the rupture in time's share named), gauges
  * with their depth and warnings). With a rate (NULL or cells_per_s <= 0 = unknown: no
  * estimate), one line gives the estimated time, cells x steps / rate, with the rate and where it
  * came from (cache and its age, or measured now and whether the cache was written). */
@@ -32,7 +35,10 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
  * "forcing": null without forcing, else an object with "description" (the plan's line), "storm" (its
  * settings, "outside_domain", "closest_approach_m", "closest_approach_s"; null without a storm),
  * "weather_file", "level_series" (null when absent), the drag and densities, "memory_bytes" and
- * "warnings" (strings). With a rate it has "estimated_seconds", "rate_cells_per_s", "rate_source" ("cache" or "measured"),
+ * "warnings" (strings). It has "faults": null without [fault], else "sections", "segments", "kajiura_segments",
+ * "horizontal_segments", "moment_nm", "magnitude_mw", "rupture_end_s", "peaks_of" ("initial surface" or
+ * "whole rupture"), "uplift_max_m", "subsidence_max_m" (<= 0) and "memory_bytes" (a rupture in time's
+ * share of the run's memory). With a rate it has "estimated_seconds", "rate_cells_per_s", "rate_source" ("cache" or "measured"),
  * "rate_age_days", "rate_threads", "rate_cache_file" (null when none) and "rate_note" (null when none). */
 char *sw_report_plan_json(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate);
 

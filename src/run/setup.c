@@ -19,6 +19,7 @@ void sw_setup_free(sw_setup *s)
         return;
     free(s->depth_m);
     free(s->eta0_m);
+    sw_faults_free(&s->faults);
     memset(s, 0, sizeof *s);
 }
 
@@ -132,7 +133,9 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
     s->land_missing = info.land_missing;
     s->land_mask = info.land_mask;
     if (rc == SW_OK)
-        rc = sw_source_build(sc, s->eta0_m, err);
+        rc = sw_faults_collect(sc, &s->faults, err);
+    if (rc == SW_OK)
+        rc = sw_setup_sources(sc, s, err);
     if (rc != SW_OK) {
         sw_setup_free(s);
         return rc;
@@ -142,6 +145,73 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
         rc = sw_setup_storm_pass(sc, &s->grid, (double)s->n_steps * s->dt_s, &s->storm, err);
     if (rc != SW_OK)
         sw_setup_free(s);
+    return rc;
+}
+
+int sw_setup_faults_use_depth(const sw_setup *s)
+{
+    for (size_t k = 0; k < s->faults.n; k++)
+        if (s->faults.seg[k].kajiura || s->faults.seg[k].horizontal)
+            return 1;
+    return 0;
+}
+
+/* The faults' count, moment, timing and run memory into s->fault (the peaks are set by the caller). */
+static void fault_counts(const sw_scenario *sc, sw_setup *s)
+{
+    sw_fault_summary *f = &s->fault;
+    memset(f, 0, sizeof *f);
+    f->sections = sc->n_faults;
+    f->segments = s->faults.n;
+    int moving_horizontal = 0;
+    for (size_t k = 0; k < s->faults.n; k++) {
+        const sw_fault_segment *g = &s->faults.seg[k];
+        f->kajiura += g->kajiura != 0;
+        f->horizontal += g->horizontal != 0;
+        moving_horizontal |= g->horizontal && !(g->start_s == 0 && g->rise_s == 0);
+    }
+    f->moment_nm = sw_faults_moment(&s->faults);
+    f->magnitude = f->moment_nm > 0 ? sw_moment_magnitude(f->moment_nm) : 0.0;
+    f->end_s = sw_faults_end(&s->faults);
+    f->whole_rupture = f->end_s > 0;
+    /* a rupture in time: the run's increment field and sw_faults_increment's floor field (and the horizontal
+     * motion's two components when a moving segment has horizontal = on) */
+    f->run_bytes = f->end_s > 0 ? sw_grid_cells(&s->grid) * sizeof(double) * (2 + 2 * (size_t)moving_horizontal) : 0;
+}
+
+/* The highest and lowest of field v over the water cells of s into s->fault. */
+static void fault_peaks(const sw_scenario *sc, sw_setup *s, const double *v)
+{
+    double hi = 0, lo = 0;
+    for (size_t k = 0; k < sw_grid_cells(&s->grid); k++)
+        if (s->depth_m[k] >= sc->min_depth_m) {
+            hi = fmax(hi, v[k]);
+            lo = fmin(lo, v[k]);
+        }
+    s->fault.uplift_m = hi;
+    s->fault.subsidence_m = lo;
+}
+
+sw_status sw_setup_sources(const sw_scenario *sc, sw_setup *s, sw_error *err)
+{
+    if (sc->n_faults == 0)
+        return sw_source_build(sc, &s->faults, s->depth_m, sc->min_depth_m, s->eta0_m, NULL, err);
+    const size_t n = sw_grid_cells(&s->grid);
+    double *f = malloc(n * sizeof *f);
+    if (!f)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the faults' sea surface on %zu x %zu cells", s->grid.nx,
+                       s->grid.ny);
+    sw_status rc = sw_source_build(sc, &s->faults, s->depth_m, sc->min_depth_m, s->eta0_m, f, err);
+    if (rc == SW_OK) {
+        fault_counts(sc, s);
+        if (s->fault.whole_rupture) {   /* of the whole rupture: every segment at its full slip */
+            memset(f, 0, n * sizeof *f);
+            rc = sw_faults_surface(&s->faults, SW_FAULTS_ALL, &s->grid, s->depth_m, sc->min_depth_m, f, err);
+        }
+    }
+    if (rc == SW_OK)
+        fault_peaks(sc, s, f);
+    free(f);
     return rc;
 }
 
@@ -255,7 +325,8 @@ size_t sw_setup_total_bytes(const sw_scenario *sc, const sw_setup *s)
          + n * 5 * sizeof(double)                                   /* the five result maps written */
          + (s->n_snapshots ? n * sizeof(double) : 0)                /* one snapshot frame */
          + sc->n_gauges * s->n_samples * 3 * sizeof(double)        /* gauge series */
-         + forcing_outside_model(sc, s);                            /* wind and pressure maps and series */
+         + forcing_outside_model(sc, s)                             /* wind and pressure maps and series */
+         + s->fault.run_bytes;                                      /* a rupture in time's fields */
 }
 
 /* ---- the storm's pass over the domain ---------------------------------------------------------------- */

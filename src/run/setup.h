@@ -9,9 +9,10 @@
 #include <stddef.h>
 
 #include "base/grid.h"
-#include "model/layout.h"
-#include "inputs/scenario.h"
 #include "base/status.h"
+#include "inputs/faults.h"
+#include "inputs/scenario.h"
+#include "model/layout.h"
 
 /* Where a [storm]'s centre goes relative to the domain during the run: the plan warns when it never
  * enters, since the water then feels only the storm's outer winds. */
@@ -22,6 +23,23 @@ typedef struct {
                                * (0 when it enters) */
     double closest_time_s;    /* when it is closest (the first time inside when it enters), s since the origin */
 } sw_storm_pass;
+
+/* What `check` says about the scenario's faults (docs/faults.md). */
+typedef struct {
+    size_t sections;          /* [fault] sections (0: none; the fields below are then 0) */
+    size_t segments;          /* rectangular segments, over all sections and tables */
+    size_t kajiura;           /* of them, with surface = kajiura */
+    size_t horizontal;        /* of them, with horizontal = on */
+    double moment_nm;         /* the total seismic moment M0 = sum of mu L W slip, N m */
+    double magnitude;         /* the moment magnitude Mw = (2/3)(log10 M0 - 9.1) (Hanks & Kanamori 1979); 0 when
+                               * M0 = 0 */
+    double end_s;             /* when the last segment stops moving, s after the start (0: all at once) */
+    int whole_rupture;        /* 1: the peaks below are of the whole rupture (some segments move later);
+                               * 0: of the initial sea surface */
+    double uplift_m;          /* the faults' highest sea-surface displacement over water, m (>= 0) */
+    double subsidence_m;      /* their lowest, m (<= 0) */
+    size_t run_bytes;         /* what a rupture in time adds to a run's memory, bytes (0 when all at once) */
+} sw_fault_summary;
 
 typedef struct {
     sw_grid grid;             /* the model grid (from [grid] or the seabed file) */
@@ -55,16 +73,35 @@ typedef struct {
     size_t total_bytes;       /* a run's peak memory, bytes (sw_setup_total_bytes) */
     sw_storm_pass storm;      /* the storm's centre against the domain (sw_setup_storm_pass); zero
                                * without a [storm] */
+    sw_fault_set faults;      /* the scenario's fault segments (sw_faults_collect), owned; n = 0 without
+                               * [fault]. The instant ones are in eta0_m; a run adds the others' motion
+                               * with sw_faults_increment until sw_faults_end */
+    sw_fault_summary fault;   /* their moment, magnitude, timing and peaks (sw_setup_sources) */
 } sw_setup;
 
 /* Builds the setup for sc: grid (taken from the seabed file when sc has no [grid]; sc->grid is
  * then filled in, and sc's positions placed on it: sw_scenario_place), depth (with the counts of land
- * the file marked), initial elevation, layout, time step and sizes, and with a [storm] its
+ * the file marked), the fault segments (sw_faults_collect: segment tables are read here, so `check`
+ * reports a bad table line as `run` would), initial elevation (sw_setup_sources), layout, time step and
+ * sizes, and with a [storm] its
  * pass over the domain (sw_setup_storm_pass: the track is read and checked to cover the run here, so
  * `check` reports a bad track as `run` would). On failure returns the status, err names the scenario
  * file and line (or the track file and line) where one applies, and s owns nothing.
  * Free with sw_setup_free. */
 sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err);
+
+/* Builds s->eta0_m from sc's sources and the instant segments of s->faults (sw_source_build) over the depth
+ * s->depth_m, and fills s->fault: the count, moment, magnitude, end of the rupture, and the faults' peak
+ * uplift and subsidence over water (cells at least sc->min_depth_m deep) of the initial surface, or of the
+ * whole rupture (sw_faults_surface SW_FAULTS_ALL, one more evaluation) when some segments move later.
+ * sw_setup_build calls it once the depth and the faults are known; a caller that changes the depth
+ * afterwards (a sweep's depth_factor) calls it again when a fault uses the depth (Kajiura filter or the
+ * horizontal term: sw_setup_faults_use_depth). Returns SW_OK or the failure (a source file, memory) with err
+ * naming the file and line; s keeps its arrays either way. */
+sw_status sw_setup_sources(const sw_scenario *sc, sw_setup *s, sw_error *err);
+
+/* 1 when a fault segment of s uses the depth (surface = kajiura or horizontal = on). */
+int sw_setup_faults_use_depth(const sw_setup *s);
 
 /* Derives from the depth field s->depth_m (on s->grid, for s->layout) everything that depends on it:
  * wet_cells, h_max_m, dims, dt_limit_s (and where it is reached: dt_row, dt_row_lat_deg, dt_row_width_m),
@@ -82,9 +119,10 @@ void sw_setup_free(sw_setup *s);
 
 /* The memory a run of sc on setup s holds at its peak, bytes: the model (s->model_bytes), the input
  * depth and elevation, the tracker's running maps, the five result maps, a snapshot frame when
- * snapshots are on, the gauge series, and with an atmosphere what the forcing holds beside the model
- * (sw_setup_forcing_bytes less the model's share). Uses s->grid, s->layout, s->model_bytes,
- * s->n_samples, s->n_snapshots. */
+ * snapshots are on, the gauge series, with an atmosphere what the forcing holds beside the model
+ * (sw_setup_forcing_bytes less the model's share), and with a rupture in time its increment and scratch
+ * fields (s->fault.run_bytes). Uses s->grid, s->layout, s->model_bytes, s->n_samples, s->n_snapshots,
+ * s->fault. */
 size_t sw_setup_total_bytes(const sw_scenario *sc, const sw_setup *s);
 
 /* What a storm or weather file adds to a run's memory, bytes (0 without one): in the model its two

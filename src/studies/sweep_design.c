@@ -24,7 +24,8 @@ const char *swp_design_name(sw_sweep_design d) { return DESIGN_NAME[d]; }
 
 static int is_factor(sw_sweep_kind k)
 {
-    return k == SW_SWEEP_AMPLITUDE_FACTOR || k == SW_SWEEP_DEPTH_FACTOR || k == SW_SWEEP_RESOLUTION_FACTOR;
+    return k == SW_SWEEP_AMPLITUDE_FACTOR || k == SW_SWEEP_DEPTH_FACTOR || k == SW_SWEEP_RESOLUTION_FACTOR
+        || k == SW_SWEEP_SLIP_FACTOR;
 }
 
 /* ---- values as text ------------------------------------------------------------------------ */

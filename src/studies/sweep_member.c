@@ -4,10 +4,12 @@
  * How a member is made. Every parameter except depth_factor becomes one or more scenario overrides
  * ("section.key = value" text, sw_scenario_override), collected into one list and applied in one
  * re-parse: key parameters first, then resolution_factor (grid.nx/ny/dx/dy from the effective grid),
- * amplitude_factor (each source's amplitude, and a pair's trough) and the source offsets (each
- * source's x, y), each computed from the values already in the list. depth_factor multiplies the
- * depth field after the setup is built; dt, the step count and the sizes are then derived again by
- * the same function that sw_setup_build uses (sw_setup_derive).
+ * amplitude_factor (each source's amplitude, and a pair's trough), the source offsets (each
+ * source's x, y), and the fault parameters (each [fault]'s slip_factor, x_offset, y_offset and
+ * rotation, which apply to a segment table too), each computed from the values already in the list.
+ * depth_factor multiplies the depth field after the setup is built; dt, the step count and the sizes are
+ * then derived again by the same function that sw_setup_build uses (sw_setup_derive), and the initial
+ * elevation is built again when a fault uses the depth (Kajiura filter, horizontal term).
  *
  * Invariant: a member is a function of the plan and its number alone, so it gives the same results
  * whichever members ran before it, on however many threads, in whichever attempt.
@@ -42,7 +44,7 @@ typedef struct {
 
 typedef struct {
     size_t n;
-    ov_entry e[SW_MAX_SWEEP_PARAMS + 4 + 6 * SW_MAX_SOURCES];
+    ov_entry e[SW_MAX_SWEEP_PARAMS + 4 + 6 * SW_MAX_SOURCES + 5 * SW_MAX_FAULTS];
 } ov_list;
 
 /* Sets target to value (replacing an earlier entry for the same target). */
@@ -101,6 +103,42 @@ double sw_sweep_member_depth_factor(const sw_sweep_plan *plan, size_t k)
     return member_builtin(plan, k, SW_SWEEP_DEPTH_FACTOR, 1.0);
 }
 
+/* The fault parameters of member k: every [fault]'s slip_factor times slip_factor, its offsets plus
+ * fault_x_offset and fault_y_offset (m, or deg on a geographic grid, as the file writes them), its rotation
+ * plus fault_rotation (every section turns about the same centroid, faults.c, so the whole rupture turns
+ * rigidly). Each starts from the value already in the list (a SECTION.KEY parameter), else the base's. */
+static void fault_overrides(const sw_sweep_plan *plan, size_t k, ov_list *l)
+{
+    const sw_scenario *sc = plan->base;
+    const double f = member_builtin(plan, k, SW_SWEEP_SLIP_FACTOR, 1.0);
+    const double ox = member_builtin(plan, k, SW_SWEEP_FAULT_X_OFFSET, 0.0);
+    const double oy = member_builtin(plan, k, SW_SWEEP_FAULT_Y_OFFSET, 0.0);
+    const double rot = member_builtin(plan, k, SW_SWEEP_FAULT_ROTATION, 0.0);
+    const int geo = sw_grid_geographic(&sc->grid);
+    char target[SW_TARGET_MAX];
+    for (size_t i = 0; i < sc->n_faults; i++) {
+        const sw_fault_spec *fs = &sc->faults[i];
+        if (f != 1.0) {
+            snprintf(target, sizeof target, "fault %s.slip_factor", fs->name);
+            ov_set_number(l, target, f * ov_get(l, target, fs->slip_factor), "");
+        }
+        /* offsets in the unit the file writes them in: held in metres once placed (scenario.h) */
+        const int placed = sc->positions_placed;
+        const double base[2] = { geo && placed ? sw_grid_to_deg(&sc->grid, fs->x_offset_m) : fs->x_offset_m,
+                                 geo && placed ? sw_grid_to_deg(&sc->grid, fs->y_offset_m) : fs->y_offset_m };
+        const double off[2] = { ox, oy };
+        for (int a = 0; a < 2; a++)
+            if (off[a] != 0.0) {
+                snprintf(target, sizeof target, "fault %s.%s", fs->name, a ? "y_offset" : "x_offset");
+                ov_set_number(l, target, ov_get(l, target, base[a]) + off[a], geo ? "deg" : "m");
+            }
+        if (rot != 0.0) {
+            snprintf(target, sizeof target, "fault %s.rotation", fs->name);
+            ov_set_number(l, target, fmod(ov_get(l, target, fs->rotation_deg) + rot, 360.0), "deg");   /* a turn is 0 */
+        }
+    }
+}
+
 /* The overrides of member k. */
 static void member_overrides(const sw_sweep_plan *plan, size_t k, ov_list *l)
 {
@@ -152,14 +190,16 @@ static void member_overrides(const sw_sweep_plan *plan, size_t k, ov_list *l)
         /* positions and their offsets in the unit the file writes them in: m, or deg on a geographic grid */
         const int geo = sw_grid_geographic(&sc->grid);
         const double off[2] = { ox, oy };
-        const double base[2] = { geo ? sw_grid_to_deg(&sc->grid, s->x_m) : s->x_m,
-                                 geo ? sw_grid_to_deg(&sc->grid, s->y_m) : s->y_m };
+        const int placed = sc->positions_placed;   /* else as written: deg on a geographic grid */
+        const double base[2] = { geo && placed ? sw_grid_to_deg(&sc->grid, s->x_m) : s->x_m,
+                                 geo && placed ? sw_grid_to_deg(&sc->grid, s->y_m) : s->y_m };
         for (int a = 0; a < 2; a++)
             if (off[a] != 0.0) {
                 snprintf(target, sizeof target, "source %s.%s", s->name, a ? "y" : "x");
                 ov_set_number(l, target, ov_get(l, target, base[a]) + off[a], geo ? "deg" : "m");
             }
     }
+    fault_overrides(plan, k, l);
     /* file paths made absolute, so the member's scenario file runs from its own folder */
     char rel[SW_PATH_MAX], abs_path[PATH_MAX];
     if (sc->bed_file[0] && sw_scenario_resolve(sc, sc->bed_file, rel, sizeof rel, NULL) == SW_OK
@@ -171,6 +211,14 @@ static void member_overrides(const sw_sweep_plan *plan, size_t k, ov_list *l)
             || !realpath(rel, abs_path) || strlen(abs_path) >= 180)
             continue;
         snprintf(target, sizeof target, "source %s.file", s->name);
+        ov_set(l, target, abs_path, NAN);
+    }
+    for (size_t i = 0; i < sc->n_faults; i++) {
+        const sw_fault_spec *fs = &sc->faults[i];
+        if (!fs->segments[0] || sw_scenario_resolve(sc, fs->segments, rel, sizeof rel, NULL) != SW_OK
+            || !realpath(rel, abs_path) || strlen(abs_path) >= 180)
+            continue;
+        snprintf(target, sizeof target, "fault %s.segments", fs->name);
         ov_set(l, target, abs_path, NAN);
     }
 }
@@ -226,7 +274,12 @@ static sw_status rescale_depth(const sw_scenario *sc, sw_setup *s, double factor
         s->depth_m[k] *= factor;
     char change[64];
     snprintf(change, sizeof change, "depth_factor = %g", factor);
-    return sw_setup_derive(sc, s, change, err);
+    sw_status st = sw_setup_derive(sc, s, change, err);
+    if (st == SW_OK && sw_setup_faults_use_depth(s)) {   /* the Kajiura filter and the slope term see the new depth */
+        SW_OMP(critical(sw_netcdf))   /* a file source is read again */
+        st = sw_setup_sources(sc, s, err);
+    }
+    return st;
 }
 
 /* Member k's scenario and setup (depth_factor applied). On failure both own nothing. */

@@ -526,6 +526,15 @@ static void test_source_shapes(void **state)
           NULL },
         { BASE "[source s]\nshape = file\nfile = a.nc\nx = 1\n", SW_ERR_PARSE,
           "t.scn:12: [source s] x: not used by shape 'file'", NULL },
+        /* a file source's scale and offsets, for sweeps; not on analytic shapes */
+        { BASE "[source s]\nshape = file\nfile = a.nc\nscale = 0\n", SW_ERR_RANGE,
+          "t.scn:12: [source s] scale = 0: out of range (accepted: 0 < |scale| <= 1000", NULL },
+        { BASE "[source s]\nshape = file\nfile = a.nc\nscale = 2000\n", SW_ERR_RANGE,
+          "t.scn:12: [source s] scale = 2000: out of range", NULL },
+        { BASE "[source s]\nshape = file\nfile = a.nc\nx_offset = 3 deg\n", SW_ERR_PARSE,
+          "t.scn:12: [source s] x_offset = 3 deg: degrees on a projected grid", NULL },
+        { BASE "[source s]\nshape = hump\nx = 1\ny = 1\namplitude = 1\nradius = 1\nscale = 2\n", SW_ERR_PARSE,
+          "t.scn:15: [source s] scale: not used by shape 'hump'", NULL },
     };
     run_cases(cases, sizeof cases / sizeof cases[0]);
 
@@ -534,6 +543,18 @@ static void test_source_shapes(void **state)
                                     "shape = hump\n");
     assert_int_equal(sc->sources[0].shape, SW_SOURCE_HUMP);
     assert_true(sc->sources[0].radius_m == 2000.0);
+    del_sc(sc);
+
+    /* a file source: scale 1 and offsets 0 by default; given, in SI; a sweep varies them as keys */
+    sc = parse_ok(BASE "[source f]\nshape = file\nfile = a.nc\n[source g]\nshape = file\nfile = b.nc\n"
+                       "scale = -0.5\nx_offset = 2 km\ny_offset = -300 m\n"
+                       "[sweep]\nsource g.scale = 1, 2\nsource g.y_offset = 1 km, 2 km\n");
+    assert_true(sc->sources[0].scale == 1.0 && sc->sources[0].x_offset_m == 0.0 && sc->sources[0].y_offset_m == 0.0);
+    assert_true(sc->sources[1].scale == -0.5);
+    assert_true(sc->sources[1].x_offset_m == 2000.0 && sc->sources[1].y_offset_m == -300.0);
+    assert_int_equal(sc->sweep.n_params, 2);
+    assert_string_equal(sc->sweep.param[1].target, "source g.y_offset");
+    assert_true(sc->sweep.param[1].level[1] == 2000.0);
     del_sc(sc);
 }
 

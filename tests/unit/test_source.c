@@ -45,7 +45,7 @@ static double *build(const sw_scenario *sc)
     double *eta = malloc(sw_grid_cells(&sc->grid) * sizeof *eta);
     assert_non_null(eta);
     sw_error err = {0};
-    sw_status st = sw_source_build(sc, eta, &err);
+    sw_status st = sw_source_build(sc, NULL, NULL, 0.0, eta, NULL, &err);
     if (st != SW_OK)
         print_error("%s\n", err.msg);
     assert_int_equal(st, SW_OK);
@@ -217,6 +217,21 @@ static void test_sum_and_file_source(void **state)
             assert_near(ef[j * 21 + i], want, 1e-12);
         }
 
+    /* scale and offsets (for sweeps): the field times the scale, moved by the offsets (here 2 cells east and
+     * 1 cell south, on the file's own points, so the values are the file's exactly) */
+    sc->sources[0].scale = -2.0;
+    sc->sources[0].x_offset_m = 1000.0;
+    sc->sources[0].y_offset_m = -500.0;
+    double *em = build(sc);
+    for (size_t j = 0; j < 21; j++)
+        for (size_t i = 0; i < 21; i++) {
+            int in = i >= 6 && i <= 10 && j + 1 >= 2 && j + 1 <= 5;
+            double want = in ? -2.0 * (1.0 + (double)(i - 6) + 10.0 * (double)(j + 1 - 2)) : 0.0;
+            assert_near(em[j * 21 + i], want, 1e-12);
+        }
+    free(em);
+    sc->sources[0] = file;
+
     sc->sources[0] = hump(3000.0, 4000.0, 0.7, 2000.0);
     double *eh = build(sc);
     sc->sources[0] = pair(6000.0, 5000.0, 1.0, 0.4, 2500.0, 1000.0, 120.0, 2000.0);
@@ -237,7 +252,7 @@ static void test_sum_and_file_source(void **state)
     write_eta(path, 5, 4, 2000.0, 1000.0, 500.0, 2 * 5 + 1);
     double eta[21 * 21];
     sw_error err = {0};
-    assert_int_equal(sw_source_build(sc, eta, &err), SW_ERR_INPUT);
+    assert_int_equal(sw_source_build(sc, NULL, NULL, 0.0, eta, NULL, &err), SW_ERR_INPUT);
     assert_non_null(strstr(err.msg, "eta[2][1]"));
     assert_non_null(strstr(err.msg, "src.scn:12: [source scan]"));
     assert_non_null(strstr(err.msg, path));
@@ -245,7 +260,7 @@ static void test_sum_and_file_source(void **state)
     /* a missing file, relative to the scenario's folder */
     strcpy(sc->sources[1].file, "missing_eta.nc");
     strcpy(sc->dir, "/nonexistent");
-    assert_int_equal(sw_source_build(sc, eta, &err), SW_ERR_IO);
+    assert_int_equal(sw_source_build(sc, NULL, NULL, 0.0, eta, NULL, &err), SW_ERR_IO);
     assert_non_null(strstr(err.msg, "/nonexistent/missing_eta.nc"));
     free(sc);
 }
