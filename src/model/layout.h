@@ -100,8 +100,9 @@ typedef struct sw_layout {
                            * E: 2 (half the cells store eta) */
     double level_node_offset; /* where a `level` edge holds its node: cells beyond the edge line
                                * (0 = on it; E: 0.5, on the ghost centres, see layout_e.c) */
-    int checkerboard;     /* 1 when the variables alternate from cell to cell (E): a periodic pair of edges
-                           * then needs an even number of cells between them */
+    int checkerboard;     /* 1 when the variables alternate from cell to cell (E: eta on the cells with
+                           * i + j even, u and v on the others): a periodic pair of edges then needs an even
+                           * number of cells between them */
     int transport_weighted; /* 1 when velocity points store f * velocity with f their water fraction
                              * (B, D): friction then needs 1 / f per point (terms.h, share_x) */
     double u_at[2];       /* where u[k] lies relative to the centre of the cell k indexes, in cells along

@@ -662,6 +662,22 @@ void sw_model_set_eta(sw_model *m, size_t i, size_t j, double eta_m)
         sw_model_put(m, m->view.eta, sw_pidx(m, i, j), eta_m);
 }
 
+void sw_model_add_eta(sw_model *m, const double *inc_m)
+{
+    const size_t nx = m->grid.nx, ny = m->grid.ny;
+    const int checker = m->layout->checkerboard;
+    SW_OMP(parallel for schedule(static))
+    for (size_t j = 0; j < ny; j++)
+        for (size_t i = 0; i < nx; i++) {
+            const size_t k = j * nx + i;
+            if (!m->wet[k] || inc_m[k] == 0 || (checker && (i + j) % 2))
+                continue;
+            const size_t p = sw_pidx(m, i, j);
+            sw_model_put(m, m->view.eta, p, sw_model_get(m, m->view.eta, p) + inc_m[k]);
+        }
+    wrap_halo_bytes(m, m->view.eta, sw_precision_bytes(m->precision));   /* periodic edges' copies */
+}
+
 double sw_model_volume(const sw_model *m)
 {
     /* Kahan-Babuska summation so that the sum itself adds no drift worth measuring. */

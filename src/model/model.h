@@ -128,6 +128,14 @@ double sw_model_eta_centre(const sw_model *m, size_t i, size_t j);
  * (give the elevation as cfg->eta0_m for that). */
 void sw_model_set_eta(sw_model *m, size_t i, size_t j, double eta_m);
 
+/* Adds inc_m[j * nx + i] (m) to the elevation of every water cell that stores one (on a checkerboard
+ * layout, E, the cells with i + j even; layout.h): a sudden change of the sea surface between steps, as a
+ * sea floor moving under the water makes (a rupture in time: run.c). The velocities are left as they are.
+ * Threads over rows (its own parallel loop: call it outside a parallel region); cells of other kinds and
+ * land ignore their values. The halo is not refreshed: ghosts beyond open and level edges follow at the
+ * next step. */
+void sw_model_add_eta(sw_model *m, const double *inc_m);
+
 /* The layout's conserved discrete energy (see sw_layout.energy), m5 s-2. */
 double sw_model_energy(const sw_model *m);
 

@@ -3,7 +3,10 @@
  * One parallel region spans the whole time loop: each step's kernels and the tracker bind their
  * `omp for` loops to it; gauges, snapshots and progress run in a `single` between steps. No
  * result depends on the number of threads: every cell is computed the same way by whichever
- * thread owns its row, and no sum runs across cells in the loop.
+ * thread owns its row, and no sum runs across cells in the loop. While a rupture in time still moves
+ * the sea floor (faults.h), each step runs in a region of its own after the floor's motion over it is
+ * added to the elevation; once the last segment has stopped the loop above takes over, so a rupture
+ * costs the step nothing from then on.
  */
 #define _POSIX_C_SOURCE 200809L
 #include "run/run.h"
@@ -18,6 +21,7 @@
 #include "inputs/crs.h"
 #include "observers/gauges.h"
 #include "model/model.h"
+#include "inputs/faults.h"
 #include "outputs/ncwrite.h"
 #include "base/omp_compat.h"
 #include "observers/tracker.h"
@@ -75,6 +79,10 @@ typedef struct {
     sw_tracker *tracker;
     sw_gauges *gauges;
     sw_forcing *forcing;      /* storm, weather, level series; NULL when none */
+    const sw_fault_set *faults; /* the setup's faults when some move after t = 0 (a rupture in time), else NULL
+                               * (instant faults are in the initial elevation: setup.c) */
+    double fault_end_s;       /* when the last segment stops moving, s */
+    double *fault_inc;        /* [ny * nx] the sea surface's change over one step while the floor moves */
     double *air;              /* [3 n_gauges] the gauges' pressure and wind at a sample */
     sw_ncw_snapshots *snaps;
     double *frame;            /* [ny * nx] snapshot buffer, or NULL */
@@ -161,12 +169,49 @@ static void between_steps(run_ctx *c, int last)
     }
 }
 
+/* One step while the sea floor still moves: the surface's change over the step (the faults' motion in
+ * (t_n, t_n+1], evaluated with the threads of its own parallel loops) is added to the elevation, then the
+ * step as in time_loop, in a parallel region of its own. Returns 0 to go on, else stop. */
+static int rupture_step(run_ctx *c, long long n, long long n_steps)
+{
+    const double dt = sw_model_dt(c->model), t0 = (double)n * dt;
+    int moved = 0;
+    if (sw_faults_increment(c->faults, t0, t0 + dt, &c->setup->grid, c->setup->depth_m, c->sc->min_depth_m,
+                            c->fault_inc, &moved, &c->loop_err) != SW_OK) {
+        c->stop = 2;
+        return 1;
+    }
+    if (moved)
+        sw_model_add_eta(c->model, c->fault_inc);
+    SW_OMP(parallel)
+    {
+        if (c->forcing)
+            sw_forcing_advance(c->forcing, c->model, (double)(n + 1) * dt);
+        sw_model_step(c->model);
+        SW_OMP(single)
+        {
+            sw_model_tick(c->model);
+            if (sw_forcing_failed(c->forcing, &c->loop_err))
+                c->stop = 2;
+            else
+                between_steps(c, n + 1 == n_steps);
+        }
+    }
+    return c->stop;
+}
+
 static void time_loop(run_ctx *c)
 {
     const long long n_steps = c->setup->n_steps;
+    long long first = 0;
+    /* while a rupture goes on each step adds the sea floor's motion first (docs/faults.md); once the last
+     * segment has stopped, the steps run as without it, in one parallel region */
+    while (c->faults && first < n_steps && (double)first * sw_model_dt(c->model) < c->fault_end_s)
+        if (rupture_step(c, first++, n_steps))
+            return;
     SW_OMP(parallel)
     {
-        for (long long n = 0; n < n_steps; n++) {
+        for (long long n = first; n < n_steps; n++) {
             if (c->forcing)   /* the slabs and edge level at the time the step ends (forcing.h) */
                 sw_forcing_advance(c->forcing, c->model, (double)(n + 1) * sw_model_dt(c->model));
             sw_model_step(c->model);   /* also updates the tracker (attached in sw_run) */
@@ -294,6 +339,12 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
                 rc = err->code;
         }
     }
+    if (rc == SW_OK && (c.fault_end_s = sw_faults_end(&setup->faults)) > 0) {   /* a rupture in time */
+        c.faults = &setup->faults;
+        c.fault_inc = malloc(sw_grid_cells(&setup->grid) * sizeof(double));
+        if (!c.fault_inc)
+            rc = sw_fail(err, SW_ERR_NOMEM, "out of memory for the rupture's sea-floor motion");
+    }
     if (rc == SW_OK && sc->snapshot_interval_s > 0 && !opt->sink) {
         file_path(res->snapshots_path, opt, "snapshots.nc");
         c.frame = malloc(sw_grid_cells(&setup->grid) * sizeof(double));
@@ -373,6 +424,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
     sw_ncw_snapshots_abort(c.snaps);
     free(air_maps);
     free(c.air);
+    free(c.fault_inc);
     sw_forcing_free(c.forcing);
     free(c.frame);
     sw_gauges_free(c.gauges);
