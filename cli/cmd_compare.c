@@ -141,10 +141,11 @@ int cmd_compare(int argc, char **argv, const char *history)
         if (js)
             puts(js);
         free(js);
+        fprintf(stderr, "%s\n", sw_caution_for(&sc));
     } else {
         printf("\n");
         sw_compare_print(stdout, &cmp);
-        printf("\nWritten: %s, %s\n\n%s\n", md, csv, sw_caution());
+        printf("\nWritten: %s, %s\n\n%s\n", md, csv, sw_caution_for(&sc));
     }
     if (code == 0 && sw_compare_outcome(&cmp, &err) != SW_OK)   /* a failed run fails the comparison */
         code = cli_fail("compare", &err);

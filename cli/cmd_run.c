@@ -134,12 +134,14 @@ int cmd_check(int argc, char **argv, const char *history)
         if (js)
             puts(js);
         free(js);
+        fprintf(stderr, "%s\n", sc.sweep.present ? sw_caution_sweep_for(&sc) : sw_caution_for(&sc));
     } else {
         sw_report_plan(stdout, &sc, &setup, &rate);
         if (sc.sweep.present)
             swept = sw_sweep_check(&sc, rate.cells_per_s, stdout, NULL, &err);
         if (swept == SW_OK)
             printf("\nScenario is valid.\n");
+        printf("\n%s\n", sc.sweep.present ? sw_caution_sweep_for(&sc) : sw_caution_for(&sc));
     }
     sw_setup_free(&setup);
     sw_scenario_free(&sc);

@@ -123,7 +123,7 @@ int cmd_sweep(int argc, char **argv, const char *history)
     if (!a.json && !a.quiet) {
         printf("Scenario   %s  (%s)\n", sc->title, sc->path);
         sw_sweep_report_plan(stdout, &plan, a.threads, members_parallel, 0, 0);
-        printf("\n%s\n\n", sw_caution_for(sc));
+        printf("\n%s\n\n", sw_caution_sweep_for(sc));
         fflush(stdout);
     }
     cli_catch_signals();
@@ -144,7 +144,7 @@ int cmd_sweep(int argc, char **argv, const char *history)
             if (js)
                 puts(js);
             free(js);
-            fprintf(stderr, "%s\n", sw_caution_for(sc));
+            fprintf(stderr, "%s\n", sw_caution_sweep_for(sc));
         } else {
             sw_sweep_report(stdout, &plan, &summary);
             printf("\nPictures: tools/plot-sweep %s\n", out);

@@ -58,6 +58,41 @@ static const char *option_value(const char *name, int argc, char **argv, int *k,
     return "";
 }
 
+/* Prints text to f folded at spaces into lines of at most width characters (a longer word stays whole). */
+static void print_folded(FILE *f, const char *text, size_t width)
+{
+    while (*text) {
+        size_t n = strlen(text), cut = n;
+        if (n > width) {
+            cut = width;
+            while (cut > 0 && text[cut] != ' ')
+                cut--;
+            if (cut == 0)
+                cut = strcspn(text, " ");
+        }
+        fprintf(f, "%.*s\n", (int)cut, text);
+        text += cut;
+        while (*text == ' ')
+            text++;
+    }
+}
+
+/* The help text of cmd, and for a command whose output could be read as hazard information (run, check,
+ * demo, compare, sweep) the full caution after it; sweep adds the sweep sentence (run.h). */
+static void print_help(const char *cmd, const char *usage)
+{
+    static const char *const hazard[] = {"run", "check", "demo", "compare", "sweep"};
+    fputs(usage, stdout);
+    for (size_t q = 0; q < sizeof hazard / sizeof hazard[0]; q++)
+        if (!strcmp(cmd, hazard[q])) {
+            fputc('\n', stdout);
+            print_folded(stdout, sw_caution(), 100);
+            if (!strcmp(cmd, "sweep"))
+                print_folded(stdout, sw_caution_sweep(), 100);
+            fputs("A run with a storm, weather file or level series carries the longer surge caution.\n", stdout);
+        }
+}
+
 int cli_parse(const char *cmd, const char *usage, int argc, char **argv, int flags, cli_args *a)
 {
     memset(a, 0, sizeof *a);
@@ -65,7 +100,7 @@ int cli_parse(const char *cmd, const char *usage, int argc, char **argv, int fla
         const char *s = argv[k], *val;
         int missing = 0;
         if (!strcmp(s, "--help") || !strcmp(s, "-h")) {
-            fputs(usage, stdout);
+            print_help(cmd, usage);
             return 0;
         } else if (!strcmp(s, "--json")) {
             a->json = 1;

@@ -23,8 +23,7 @@ static const char *const usage_main =
     "  --help           this text; `shoreward COMMAND --help` explains a command\n"
     "  --version        print the version\n"
     "\n"
-    "The scenario file format is described in docs/scenario.md and the README.\n"
-    "Results come from a simplified linear model: they are not a hazard forecast or warning.\n";
+    "The scenario file format is described in docs/scenario.md and the README.\n";
 
 typedef struct {
     const char *name;
@@ -60,10 +59,12 @@ int main(int argc, char **argv)
 {
     if (argc < 2) {
         fputs(usage_main, stderr);
+        fprintf(stderr, "\n%s\n", sw_caution_short());
         return 2;
     }
     if (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h") || !strcmp(argv[1], "help")) {
         fputs(usage_main, stdout);
+        printf("\n%s\n", sw_caution_short());
         return 0;
     }
     if (!strcmp(argv[1], "--version")) {

@@ -517,6 +517,8 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
 char *sw_report_plan_json(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
 {
     cJSON *o = plan_object(sc, s, rate);
+    if (o)
+        cJSON_AddStringToObject(o, "caution", sw_caution_for(sc));
     char *txt = o ? cJSON_Print(o) : NULL;
     cJSON_Delete(o);
     return txt;

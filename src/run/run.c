@@ -27,25 +27,59 @@
 #include "observers/tracker.h"
 #include "forcing/forcing.h"
 
+/* The one definition of the caution texts (run.h). The full forms are built from the same sentences,
+ * so that the short form, the surge form and the sweep form can never drift apart. */
+#define CAUTION_NOT_FORECAST "They are not a hazard forecast or warning."
+#define CAUTION_EMERGENCY                                                                                    \
+    "In an emergency follow official warning agencies and local emergency management. Planning decisions " \
+    "need qualified professionals and local codes."
+#define CAUTION_FULL                                                                                         \
+    "CAUTION: results come from a simplified linear model for exploring scenarios. " CAUTION_NOT_FORECAST   \
+    " " CAUTION_EMERGENCY
+#define CAUTION_SURGE                                                                                        \
+    "CAUTION: results come from a simplified linear, depth-averaged model for exploring scenarios: no "     \
+    "waves, no tide-surge interaction beyond adding the two, no flooding of land. They are not a surge, "   \
+    "tide or hazard forecast or warning. " CAUTION_EMERGENCY
+#define CAUTION_SWEEP                                                                                        \
+    "A sweep multiplies a simplified linear model; it does not make it a forecast. The spread shows how "   \
+    "sensitive this model is to the settings you vary, not the uncertainty of a real event."
+
 const char *sw_caution(void)
 {
-    return "CAUTION: results come from a simplified linear model for exploring scenarios. They are not a "
-           "hazard forecast or warning. In an emergency follow official warning agencies and local "
-           "emergency management. Planning decisions need qualified professionals and local codes.";
+    return CAUTION_FULL;
 }
 
 const char *sw_caution_surge(void)
 {
-    return "CAUTION: results come from a simplified linear, depth-averaged model for exploring scenarios: no "
-           "waves, no tide-surge interaction beyond adding the two, no flooding of land. They are not a surge, "
-           "tide or hazard forecast or warning. In an emergency follow official warning agencies and local "
-           "emergency management. Planning decisions need qualified professionals and local codes.";
+    return CAUTION_SURGE;
+}
+
+const char *sw_caution_short(void)
+{
+    return "CAUTION: simplified linear model for exploring scenarios, not a hazard forecast or warning; in an "
+           "emergency follow official warning agencies and local emergency management.";
+}
+
+const char *sw_caution_sweep(void)
+{
+    return CAUTION_SWEEP;
+}
+
+/* Whether sc has forcing, which makes its caution the surge one. */
+static int has_forcing(const sw_scenario *sc)
+{
+    const sw_forcing_spec *f = &sc->forcing;
+    return f->storm || f->weather || f->level_file[0];
 }
 
 const char *sw_caution_for(const sw_scenario *sc)
 {
-    const sw_forcing_spec *f = &sc->forcing;
-    return f->storm || f->weather || f->level_file[0] ? sw_caution_surge() : sw_caution();
+    return has_forcing(sc) ? sw_caution_surge() : sw_caution();
+}
+
+const char *sw_caution_sweep_for(const sw_scenario *sc)
+{
+    return has_forcing(sc) ? CAUTION_SURGE " " CAUTION_SWEEP : CAUTION_FULL " " CAUTION_SWEEP;
 }
 
 sw_status sw_make_dirs(const char *path, sw_error *err)

@@ -76,15 +76,32 @@ typedef struct {
     double air_pressure_min_pa;       /* lowest air pressure over the water, Pa; NaN likewise */
 } sw_run_result;
 
-/* The caution every run, file and report carries: a simplified linear model, not a forecast. */
+/* The caution texts are defined once, in run.c; every command's output, help text and output file takes
+ * them from these functions. Each returns a static string (never NULL, nothing to free). */
+
+/* The full caution every run, file and report carries: a simplified linear model, not a hazard forecast
+ * or warning; follow official warning agencies and local emergency management; planning needs qualified
+ * professionals and local codes. */
 const char *sw_caution(void);
 
-/* The caution of a run with a storm, weather file or level series: sw_caution's, and what a linear,
+/* The full caution of a run with a storm, weather file or level series: sw_caution's, and what a linear,
  * depth-averaged surge sandbox leaves out (waves, tide-surge interaction, flooding of land). */
 const char *sw_caution_surge(void);
 
-/* The caution for scenario sc: sw_caution_surge when it has forcing, else sw_caution. */
+/* The short form, one line for places with little room (the top-level --help): not a hazard forecast or
+ * warning, follow official warning agencies and local emergency management. Where there is room (files,
+ * reports, pictures in small type) the full form is used. */
+const char *sw_caution_short(void);
+
+/* The sweep-specific sentences alone (docs/sweep.md): a sweep does not make the model a forecast; the
+ * spread is this model's sensitivity to the varied settings, not a real event's uncertainty. */
+const char *sw_caution_sweep(void);
+
+/* The full caution for scenario sc: sw_caution_surge when it has forcing, else sw_caution. */
 const char *sw_caution_for(const sw_scenario *sc);
+
+/* The caution of every sweep output of scenario sc: sw_caution_for(sc), a space, sw_caution_sweep(). */
+const char *sw_caution_sweep_for(const sw_scenario *sc);
 
 /* Runs the scenario with the setup built from it and writes <out_dir>/<prefix>gauges.nc (when there
  * are gauges), maps.nc and (with a snapshot interval) snapshots.nc, each only once complete. Fills *res. On failure (I/O,

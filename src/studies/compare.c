@@ -248,7 +248,7 @@ sw_status sw_compare_write_markdown(const char *path, const sw_scenario *sc, con
             }
     }
     fprintf(f, "\nThe noise index is the RMS of eta_max minus its 1-2-1 smoothed copy, relative to the RMS of "
-               "eta_max: energy near the 2-cell wavenumber.\n\n%s\n", sw_caution());
+               "eta_max: energy near the 2-cell wavenumber.\n\n> **%s**\n", sw_caution_for(sc));
     return sw_atomic_close(&af, err);
 }
 
@@ -259,6 +259,9 @@ sw_status sw_compare_write_csv(const char *path, const sw_compare *cmp, sw_error
     if (st != SW_OK)
         return st;
     FILE *f = af.f;
+    /* one comment line first (readers skip it with comment='#'); the general caution, as the CSV has no
+     * scenario to tell a surge run by: compare.md and the JSON carry the scenario's own */
+    fprintf(f, "# %s\n", sw_caution());
     fprintf(f, "layout,refine,status,nx,ny,dt_s,steps,wall_s,cell_updates_per_s,memory_bytes,courant,courant_limit,"
                "noise_index,gauge,arrival_s,d_arrival_s,peak_m,d_peak_m\n");
     for (size_t q = 0; q < cmp->n_rows; q++) {
@@ -327,7 +330,7 @@ char *sw_compare_json(const sw_scenario *sc, const sw_compare *cmp)
         }
         cJSON_AddItemToArray(runs, e);
     }
-    cJSON_AddStringToObject(o, "caution", sw_caution());
+    cJSON_AddStringToObject(o, "caution", sw_caution_for(sc));
     char *s = cJSON_Print(o);
     cJSON_Delete(o);
     return s;

@@ -72,7 +72,8 @@ void sw_compare_free(sw_compare *cmp);
 /* Writes the comparison as a terminal table (two tables: runs, then gauges). */
 void sw_compare_print(FILE *f, const sw_compare *cmp);
 
-/* Writes the comparison as Markdown (with the caution) and as CSV (one line per run and gauge).
+/* Writes the comparison as Markdown (with the caution) and as CSV (a "# CAUTION: ..." comment line, then
+ * one line per run and gauge).
  * Each file via "<path>.part" and rename. */
 sw_status sw_compare_write_markdown(const char *path, const sw_scenario *sc, const sw_compare *cmp, sw_error *err);
 sw_status sw_compare_write_csv(const char *path, const sw_compare *cmp, sw_error *err);

@@ -185,7 +185,8 @@ char *sw_sweep_plan_json(const sw_sweep_plan *plan, int threads, int members_par
  * sw_sweep_report_plan to f; otherwise adds the plan as "sweep" to the JSON object text *json
  * (replaced by a new malloc'ed string; *json NULL starts an empty object). rate_all is the base
  * layout's rate with all threads, cached or measured (0 = unknown); the one-thread rate comes from
- * the same cache (sw_estimate_rate_cached), measured when it holds none. */
+ * the same cache (sw_estimate_rate_cached), measured when it holds none. The JSON's "caution" is the
+ * sweep's (sw_caution_sweep_for, run.h). */
 sw_status sw_sweep_check(const sw_scenario *sc, double rate_all, FILE *f, char **json, sw_error *err);
 
 /* The summary table for the terminal (with the caution), as Markdown into a file (via .part and

@@ -273,7 +273,7 @@ sw_status swp_combine(sw_sweep_plan *plan, const sw_sweep_options *opt, sw_sweep
         sw_ncs_sweep d = {
             .crs = sw_crs_present(&crs) ? &crs : NULL,
             .title = sc->title, .history = opt->history ? opt->history : "", .scenario_text = sc->text,
-            .version = SW_VERSION, .caution = sw_caution_for(sc), .time_origin = sc->origin,
+            .version = SW_VERSION, .caution = sw_caution_sweep_for(sc), .time_origin = sc->origin,
             .design = swp_design_name(sc->sweep.design), .measure = swp_measure_sentence(sc->sweep.design),
             .map_method = "nearest: each base-grid cell takes the value of the member cell that contains its centre "
                           "(identical when a member is on the base grid); cells a member does not cover are left out",

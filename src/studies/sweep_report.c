@@ -183,7 +183,7 @@ void sw_sweep_report(FILE *f, const sw_sweep_plan *plan, const sw_sweep_summary 
     print_failed(f, plan, s, 0);
     fprintf(f, "\nWritten:\n  %s\n  %s\n  %s/ (one file per member; mNNNNN.scn repeats a member with "
                "`shoreward run`)\n", s->sweep_path, s->markdown_path, s->members_dir);
-    fprintf(f, "\n%s\n", sw_caution_for(plan->base));
+    fprintf(f, "\n%s\n", sw_caution_sweep_for(plan->base));
 }
 
 sw_status sw_sweep_write_markdown(const char *path, const sw_sweep_plan *plan, const sw_sweep_summary *s,
@@ -194,7 +194,7 @@ sw_status sw_sweep_write_markdown(const char *path, const sw_sweep_plan *plan, c
     if (st != SW_OK)
         return st;
     FILE *f = af.f;
-    fprintf(f, "# Sweep: %s\n\n> **%s**\n\n", plan->base->title, sw_caution_for(plan->base));
+    fprintf(f, "# Sweep: %s\n\n> **%s**\n\n", plan->base->title, sw_caution_sweep_for(plan->base));
     fprintf(f, "Scenario `%s`, %s design, %zu members: %zu ran, %zu failed.\n\n", plan->base->path,
             swp_design_name(plan->base->sweep.design), s->n_members, s->n_ok, s->n_failed);
     print_params(f, plan, 1);
@@ -313,7 +313,7 @@ char *sw_sweep_json(const sw_sweep_plan *plan, const sw_sweep_summary *s)
     cJSON_AddStringToObject(files, "sweep", s->sweep_path);
     cJSON_AddStringToObject(files, "markdown", s->markdown_path);
     cJSON_AddStringToObject(files, "members", s->members_dir);
-    cJSON_AddStringToObject(o, "caution", sw_caution_for(plan->base));
+    cJSON_AddStringToObject(o, "caution", sw_caution_sweep_for(plan->base));
     char *txt = cJSON_Print(o);
     cJSON_Delete(o);
     return txt;
@@ -443,6 +443,8 @@ sw_status sw_sweep_check(const sw_scenario *sc, double rate_all, FILE *f, char *
         char *txt = NULL;
         if (o && sweep) {
             cJSON_AddItemToObject(o, "sweep", sweep);
+            cJSON_DeleteItemFromObject(o, "caution");   /* a sweep's plan carries the sweep caution */
+            cJSON_AddStringToObject(o, "caution", sw_caution_sweep_for(sc));
             sweep = NULL;
             txt = cJSON_Print(o);
         }

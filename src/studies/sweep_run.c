@@ -118,6 +118,30 @@ static int first_difference(const char *a, const char *b, char *la, char *lb)
     }
 }
 
+/* Appends text to buf (room bytes) as "; " comment lines of at most 100 characters, folded at spaces, so
+ * that a scenario file stays within the reader's line length. */
+static void append_comment(char *buf, size_t room, const char *text)
+{
+    while (*text && room > 1) {
+        size_t len = strlen(text), cut = len;
+        if (len > 98) {
+            cut = 98;
+            while (cut > 0 && text[cut] != ' ')
+                cut--;
+            if (cut == 0)
+                cut = 98;
+        }
+        int w = snprintf(buf, room, "; %.*s\n", (int)cut, text);
+        if (w < 0 || (size_t)w >= room)
+            return;
+        buf += w;
+        room -= (size_t)w;
+        text += cut;
+        while (*text == ' ')
+            text++;
+    }
+}
+
 /* Writes the manifest, or checks an existing one against this sweep. */
 static sw_status manifest(const sw_sweep_plan *plan, const char *members_dir, sw_error *err)
 {
@@ -168,6 +192,7 @@ static sw_status manifest(const sw_sweep_plan *plan, const char *members_dir, sw
     cJSON_AddStringToObject(o, "scenario", plan->base->path);
     cJSON_AddStringToObject(o, "scenario_text", plan->base->text);
     cJSON_AddStringToObject(o, "design", design);
+    cJSON_AddStringToObject(o, "caution", sw_caution_sweep_for(plan->base));
     char *txt = cJSON_Print(o);
     cJSON_Delete(o);
     free(design);
@@ -246,7 +271,7 @@ static void run_one(sweep_ctx *c, size_t k, int threads, int side_by_side)
         char path[SW_PATH_MAX + 32];
         swp_member_file(plan, k, "nc", path, sizeof path);
         SW_OMP(critical(sw_netcdf))
-        st = sw_ncs_member_write(path, &r, plan->member[k].value, plan->n_params, &plan->base_grid, sw_caution_for(plan->base), &e);
+        st = sw_ncs_member_write(path, &r, plan->member[k].value, plan->n_params, &plan->base_grid, sw_caution_sweep_for(plan->base), &e);
         kept = st == SW_OK;
     }
     sw_sweep_member_result_free(&r);
@@ -281,17 +306,19 @@ static sw_status write_member_scenario(const sw_sweep_plan *plan, size_t k, sw_e
     }
     char label[2048];
     sw_sweep_member_label(plan, k, label, sizeof label);
-    size_t n = strlen(sc->text) + strlen(label) + 1024;
+    size_t n = strlen(sc->text) + strlen(label) + strlen(plan->base->path) + strlen(sw_caution_sweep_for(plan->base)) + 1024;
     char *text = malloc(n);
     sw_status st = SW_OK;
     if (!text)
         st = sw_fail(err, SW_ERR_NOMEM, "out of memory");
     else {
         double s = sw_sweep_member_depth_factor(plan, k);
-        snprintf(text, n, "%s%s\n; ---- shoreward sweep member %zu of %s\n; %s\n%s", sc->text,
+        int used = snprintf(text, n, "%s%s\n; ---- shoreward sweep member %zu of %s\n; %s\n%s", sc->text,
                  sc->text[0] && sc->text[strlen(sc->text) - 1] == '\n' ? "" : "\n", k, plan->base->path, label,
                  s != 1.0 ? "; depth_factor is applied to the built depth field by `shoreward sweep`; no scenario key "
                             "expresses it, so `shoreward run` of this file runs the member without it.\n" : "");
+        if (used > 0 && (size_t)used < n)
+            append_comment(text + used, n - (size_t)used, sw_caution_sweep_for(plan->base));
         char path[SW_PATH_MAX + 32];
         swp_member_file(plan, k, "scn", path, sizeof path);
         st = sw_atomic_write_text(path, text, err);
@@ -342,7 +369,7 @@ sw_status sw_sweep_run(sw_sweep_plan *plan, const sw_sweep_options *opt, sw_swee
         if (st == SW_OK && m->status != SW_OK) {   /* cannot run: kept as a failed member right away */
             sw_sweep_member_result r = { .index = k, .status = m->status };
             snprintf(r.error, sizeof r.error, "%s", m->error ? m->error : "");
-            st = sw_ncs_member_write(path, &r, m->value, plan->n_params, &plan->base_grid, sw_caution_for(plan->base), err);
+            st = sw_ncs_member_write(path, &r, m->value, plan->n_params, &plan->base_grid, sw_caution_sweep_for(plan->base), err);
             c.done++;
             continue;
         }
