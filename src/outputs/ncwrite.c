@@ -21,6 +21,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 
 #include "base/atomic_file.h"
 
@@ -210,6 +211,22 @@ static void ncw_terms(ncw_file *f, const sw_terms_config *t)
         ncw_double(f, NC_GLOBAL, "manning_n", t->manning_n);
 }
 
+char *sw_ncw_history(const char *command)
+{
+    if (!command)
+        command = "";
+    time_t now = time(NULL);
+    const struct tm *utc = now == (time_t)-1 ? NULL : gmtime(&now);
+    char stamp[32];
+    if (!utc || strftime(stamp, sizeof stamp, "%Y-%m-%dT%H:%M:%SZ", utc) == 0)
+        return NULL;
+    size_t n = strlen(stamp) + 2 + strlen(command) + 1;
+    char *out = malloc(n);
+    if (out)
+        snprintf(out, n, "%s: %s", stamp, command);
+    return out;
+}
+
 /* The global attributes shared by every file. */
 static void ncw_globals(ncw_file *f, const sw_run_meta *m)
 {
@@ -217,7 +234,11 @@ static void ncw_globals(ncw_file *f, const sw_run_meta *m)
     snprintf(source, sizeof source, "shoreward %s", m->version);
     ncw_text(f, NC_GLOBAL, "Conventions", "CF-1.11");
     ncw_text(f, NC_GLOBAL, "title", m->title);
-    ncw_text(f, NC_GLOBAL, "history", m->history);
+    char *history = sw_ncw_history(m->history);
+    if (!history && f->rc == SW_OK)
+        f->rc = sw_fail(f->err, SW_ERR_NOMEM, "%s: out of memory writing the history attribute", f->af.path);
+    ncw_text(f, NC_GLOBAL, "history", history);
+    free(history);
     ncw_text(f, NC_GLOBAL, "source", source);
     ncw_text(f, NC_GLOBAL, "layout", m->layout);
     ncw_text(f, NC_GLOBAL, "precision", m->precision);
@@ -487,6 +508,7 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
     int v_name = ncw_var(&f, "station_name", NC_CHAR, 2, name_dims);
     ncw_text(&f, v_name, "cf_role", "timeseries_id");
     ncw_text(&f, v_name, "long_name", "gauge name");
+    ncw_text(&f, v_name, "_Encoding", "utf-8");   /* readers (xarray) decode the names to strings */
 
     const sw_grid *pg = meta->grid;
     const int geo = pg && sw_grid_geographic(pg);
@@ -698,9 +720,11 @@ sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_se
                                 "highest sea surface elevation reached", "time: maximum");
     int v_eta_min = ncw_map_var(&f, &ids, g, "eta_min", "sea_surface_height_above_mean_sea_level", "m",
                                 "lowest sea surface elevation reached", "time: minimum");
-    int v_arrival = ncw_map_var(&f, &ids, g, "arrival_time", NULL, "s", NCW_ARRIVAL_LONG_NAME, NULL);
+    /* durations in "seconds" (not "s"): CF and UDUNITS take both, and xarray decodes only the spelled-out
+     * unit as a time difference (timedelta64) */
+    int v_arrival = ncw_map_var(&f, &ids, g, "arrival_time", NULL, "seconds", NCW_ARRIVAL_LONG_NAME, NULL);
     ncw_text(&f, v_arrival, "comment", origin_note);
-    int v_max_time = ncw_map_var(&f, &ids, g, "eta_max_time", NULL, "s",
+    int v_max_time = ncw_map_var(&f, &ids, g, "eta_max_time", NULL, "seconds",
                                  "time at which eta_max was reached", NULL);
     ncw_text(&f, v_max_time, "comment", origin_note);
     int v_speed = ncw_map_var(&f, &ids, g, "speed_max", "sea_water_speed", "m s-1",

@@ -30,7 +30,8 @@
 /* Metadata written as global attributes of every file. Strings must not be NULL. */
 typedef struct {
     const char *title;          /* scenario title */
-    const char *history;        /* the command line that produced the file */
+    const char *history;        /* the command line that produced the file; written as the history
+                                 * attribute after an ISO 8601 UTC timestamp (sw_ncw_history) */
     const char *scenario_text;  /* the whole scenario file, verbatim */
     const char *layout;         /* the layout's name (registry, model/layout.h) */
     const char *precision;      /* of the model state: "double" or "single" */
@@ -61,6 +62,12 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
  * storm_x, storm_y, storm_central_pressure along the dimension `track`; storm_lon, storm_lat in degrees
  * on a geographic grid). */
 sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_set *maps, sw_error *err);
+
+/* The CF history line (CF 1.11 section 2.6.2: "a list of the applications that have modified the
+ * original data", each conventionally preceded by a timestamp) for `command` run now:
+ * "YYYY-MM-DDTHH:MM:SSZ: <command>" in UTC (ISO 8601). Needs command (NULL is taken as "").
+ * Returns a new string the caller frees, or NULL when out of memory or the clock is unreadable. */
+char *sw_ncw_history(const char *command);
 
 /* Snapshots of eta written as the run goes (unlimited time dimension). */
 typedef struct sw_ncw_snapshots sw_ncw_snapshots;

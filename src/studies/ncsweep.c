@@ -17,6 +17,7 @@
 
 #include "base/atomic_file.h"
 #include "model/layout.h"
+#include "outputs/ncwrite.h"   /* sw_ncw_history */
 
 #define NCS_NAME_STRLEN 64      /* station, parameter and value text length */
 #define NCS_ERROR_STRLEN 512    /* member failure messages are cut to this */
@@ -78,13 +79,21 @@ static int ncs_dim(ncs_file *f, const char *name, size_t len)
     return id;
 }
 
-/* Defines a variable (doubles get the default _FillValue); returns its id or -1. */
-static int ncs_var(ncs_file *f, const char *name, nc_type type, int ndims, const int *dims)
+/* Defines a variable without a _FillValue attribute, for coordinates (CF 1.11 section 2.5.1: no missing
+ * data in coordinate variables) and the station positions, which are never missing; returns its id or -1. */
+static int ncs_coord_var(ncs_file *f, const char *name, nc_type type, int ndims, const int *dims)
 {
     int id = -1;
     if (f->rc != SW_OK || !ncs_ok(f, nc_def_var(f->ncid, name, type, ndims, dims, &id), "defining variable", name))
         return -1;
-    if (type == NC_DOUBLE) {
+    return id;
+}
+
+/* Defines a variable (doubles get the default _FillValue); returns its id or -1. */
+static int ncs_var(ncs_file *f, const char *name, nc_type type, int ndims, const int *dims)
+{
+    int id = ncs_coord_var(f, name, type, ndims, dims);
+    if (id >= 0 && type == NC_DOUBLE) {
         double fill = NC_FILL_DOUBLE;
         ncs_ok(f, nc_def_var_fill(f->ncid, id, 0, &fill), "setting _FillValue of", name);
     }
@@ -169,7 +178,7 @@ static void ncs_def_xy(ncs_file *f, int dim_y, int dim_x, int geo, int id[2])
     static const char *const units[2][2] = { { "m", "m" }, { "degrees_east", "degrees_north" } };
     int dims[2] = { dim_x, dim_y };
     for (int q = 0; q < 2; q++) {
-        id[q] = ncs_var(f, name[geo][q], NC_DOUBLE, 1, &dims[q]);
+        id[q] = ncs_coord_var(f, name[geo][q], NC_DOUBLE, 1, &dims[q]);
         ncs_text(f, id[q], "standard_name", standard_name[geo][q]);
         ncs_text(f, id[q], "long_name", long_name[geo][q]);
         ncs_text(f, id[q], "units", units[geo][q]);
@@ -450,7 +459,12 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
         return f.rc;
     ncs_common_globals(&f, d->caution);
     ncs_text(&f, NC_GLOBAL, "title", d->title);
-    ncs_text(&f, NC_GLOBAL, "history", d->history);
+    char *history = sw_ncw_history(d->history);
+    if (!history && f.rc == SW_OK)
+        f.rc = sw_fail(err, SW_ERR_NOMEM, "%s: out of memory writing the history attribute", path);
+    if (history)
+        ncs_text(&f, NC_GLOBAL, "history", history);
+    free(history);
     ncs_text(&f, NC_GLOBAL, "scenario", d->scenario_text);
     ncs_text(&f, NC_GLOBAL, "comment", "Sensitivity sweep of a linear shallow-water model; see the caution "
                                        "attribute. Member dimension: one run per member.");
@@ -500,11 +514,13 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
         v_sname = ncs_var(&f, "station_name", NC_CHAR, 2, dims_s);
         ncs_text(&f, v_sname, "cf_role", "timeseries_id");
         ncs_text(&f, v_sname, "long_name", "gauge name");
-        v_sx = ncs_var(&f, geo ? "station_lon" : "station_x", NC_DOUBLE, 1, &d_s);
+        ncs_text(&f, v_sname, "_Encoding", "utf-8");   /* readers (xarray) decode the names to strings */
+        ncs_text(&f, NC_GLOBAL, "featureType", "timeSeries");   /* CF 1.11 section 9.5: cf_role needs it */
+        v_sx = ncs_coord_var(&f, geo ? "station_lon" : "station_x", NC_DOUBLE, 1, &d_s);
         ncs_text(&f, v_sx, "standard_name", geo ? "longitude" : "projection_x_coordinate");
         ncs_text(&f, v_sx, "long_name", geo ? "gauge longitude" : "gauge x position");
         ncs_text(&f, v_sx, "units", geo ? "degrees_east" : "m");
-        v_sy = ncs_var(&f, geo ? "station_lat" : "station_y", NC_DOUBLE, 1, &d_s);
+        v_sy = ncs_coord_var(&f, geo ? "station_lat" : "station_y", NC_DOUBLE, 1, &d_s);
         ncs_text(&f, v_sy, "standard_name", geo ? "latitude" : "projection_y_coordinate");
         ncs_text(&f, v_sy, "long_name", geo ? "gauge latitude" : "gauge y position");
         ncs_text(&f, v_sy, "units", geo ? "degrees_north" : "m");
@@ -517,7 +533,7 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
         for (int q = 0; q < 4; q++) {
             v_stat[q] = ncs_var(&f, stat_name[q], NC_DOUBLE, 2, dims_ms);
             ncs_text(&f, v_stat[q], "long_name", stat_long[q]);
-            ncs_text(&f, v_stat[q], "units", q == 1 || q == 3 ? "m" : "s");
+            ncs_text(&f, v_stat[q], "units", q == 1 || q == 3 ? "m" : "seconds");   /* xarray: timedelta */
             if (q == 1 || q == 3) {
                 ncs_text(&f, v_stat[q], "standard_name", "sea_surface_height_above_mean_sea_level");
                 ncs_text(&f, v_stat[q], "cell_methods", q == 1 ? "time: maximum" : "time: minimum");
@@ -561,17 +577,19 @@ sw_status sw_ncs_sweep_write(const char *path, const sw_ncs_sweep *d, sw_error *
     static const struct {
         const char *name, *standard_name, *units, *long_name, *cell_methods;
     } maps[7] = {
-        { "arrival_earliest", NULL, "s", "earliest first arrival over the members with water here", "member: minimum" },
-        { "arrival_median", NULL, "s", "median first arrival over the members with water here (never reached "
-                                       "counts as latest)", "member: median" },
-        { "arrival_latest", NULL, "s", "latest first arrival over the members with water here; _FillValue when a "
-                                       "member never reached the cell", "member: maximum" },
-        { "arrival_spread", NULL, "s", "arrival_latest minus arrival_earliest", "member: range" },
+        { "arrival_earliest", NULL, "seconds", "earliest first arrival over the members with water here",
+          "member: minimum" },
+        { "arrival_median", NULL, "seconds", "median first arrival over the members with water here (never "
+                                             "reached counts as latest)", "member: median" },
+        { "arrival_latest", NULL, "seconds", "latest first arrival over the members with water here; _FillValue "
+                                             "when a member never reached the cell", "member: maximum" },
+        { "arrival_spread", NULL, "seconds", "arrival_latest minus arrival_earliest", "member: range" },
         { "eta_max_p50", "sea_surface_height_above_mean_sea_level", "m",
           "median over members of the highest elevation reached", "time: maximum member: median" },
         { "eta_max_p90", "sea_surface_height_above_mean_sea_level", "m",
           "90th percentile over members of the highest elevation reached (linear interpolation between order "
-          "statistics)", "time: maximum" },
+          "statistics)", "time: maximum member: point (comment: 90th percentile over the members; CF 1.11 "
+          "Appendix E has no percentile method)" },
         { "eta_max_highest", "sea_surface_height_above_mean_sea_level", "m",
           "highest elevation reached in any member", "time: maximum member: maximum" },
     };

@@ -60,6 +60,7 @@ def fingerprint(path):
     with Dataset(path) as ds:
         ds.set_auto_mask(False)
         ds.set_auto_scale(False)
+        ds.set_auto_chartostring(False)   # raw chars of station_name, which carries _Encoding
         for name, var in ds.variables.items():
             a = np.ascontiguousarray(var[:])
             if a.dtype.kind in "fiu":

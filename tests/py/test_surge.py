@@ -162,6 +162,7 @@ def check_storm_run():
     # gauges.nc: the air at the gauges
     gpath = os.path.join(out, "gauges.nc")
     with Dataset(gpath) as ds:
+        ds["station_name"].set_auto_chartostring(False)   # raw chars although it carries _Encoding
         names = ["".join(c.decode() for c in row if c) for row in ds["station_name"][:].filled(b"")]
         want = {"air_pressure": ("air_pressure_at_mean_sea_level", "Pa"),
                 "wind_east": ("eastward_wind", "m s-1"), "wind_north": ("northward_wind", "m s-1")}

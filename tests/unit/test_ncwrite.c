@@ -104,6 +104,21 @@ static char *get_text(int ncid, const char *var, const char *att)
     return s;
 }
 
+/* history is "YYYY-MM-DDTHH:MM:SSZ: <command>" (ISO 8601 UTC timestamp, CF 1.11 section 2.6.2). */
+static void assert_history(int ncid, const char *command)
+{
+    char *s = get_text(ncid, NULL, "history");
+    static const char pattern[] = "dddd-dd-ddTdd:dd:ddZ: ";
+    int ok = strlen(s) == strlen(pattern) + strlen(command) && strcmp(s + strlen(pattern), command) == 0;
+    for (size_t i = 0; ok && i < strlen(pattern); i++)
+        ok = pattern[i] == 'd' ? (s[i] >= '0' && s[i] <= '9') : s[i] == pattern[i];
+    char got[256];
+    snprintf(got, sizeof got, "%s", s);
+    free(s);
+    if (!ok)
+        fail_msg(":history is \"%s\", expected \"<ISO 8601 UTC>: %s\"", got, command);
+}
+
 static void assert_text(int ncid, const char *var, const char *att, const char *expected)
 {
     char *s = get_text(ncid, var, att);
@@ -193,7 +208,7 @@ static void assert_globals(int ncid, const char *title)
 {
     assert_text(ncid, NULL, "Conventions", "CF-1.11");
     assert_text(ncid, NULL, "title", title);
-    assert_text(ncid, NULL, "history", "shoreward run test.scn");
+    assert_history(ncid, "shoreward run test.scn");
     assert_text(ncid, NULL, "source", "shoreward 0.1.0-test");
     assert_text(ncid, NULL, "layout", "C");
     assert_text(ncid, NULL, "precision", "single");
@@ -530,9 +545,9 @@ static void test_maps_roundtrip(void **state)
     assert_text(ncid, "eta_min", "standard_name", "sea_surface_height_above_mean_sea_level");
     assert_text(ncid, "eta_min", "cell_methods", "time: minimum");
     assert_map_values(ncid, "eta_min", d.eta_min);
-    assert_text(ncid, "arrival_time", "units", "s");
+    assert_text(ncid, "arrival_time", "units", "seconds");
     assert_map_values(ncid, "arrival_time", d.arrival);
-    assert_text(ncid, "eta_max_time", "units", "s");
+    assert_text(ncid, "eta_max_time", "units", "seconds");
     assert_text(ncid, "eta_max_time", "long_name", "time at which eta_max was reached");
     assert_map_values(ncid, "eta_max_time", d.max_time);
     assert_text(ncid, "speed_max", "standard_name", "sea_water_speed");
@@ -798,7 +813,7 @@ static void test_long_and_empty_attributes(void **state)
     assert_memory_equal(got, text, n);
     free(got);
     assert_text(ncid, NULL, "title", "");
-    assert_text(ncid, NULL, "history", "");
+    assert_history(ncid, "");
     assert_int_equal(nc_close(ncid), NC_NOERR);
     free(text);
     remove(path);

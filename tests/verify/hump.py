@@ -169,7 +169,7 @@ def main():
     with Dataset(os.path.join(out, "gauges.nc")) as nc:
         t = np.array(nc["time"][:], dtype=float)
         eta = np.array(nc["eta"][:], dtype=float)
-        names = ["".join(c.decode() for c in row if c) for row in np.ma.getdata(nc["station_name"][:])]
+        names = [str(n).strip() for n in np.ma.getdata(nc["station_name"][:])]   # text: it carries _Encoding
     dt = float(np.median(np.diff(t)))
 
     peaks = []
