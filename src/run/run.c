@@ -203,9 +203,28 @@ static void between_steps(run_ctx *c, int last)
     }
 }
 
+/* Step n of n_steps, by every thread of the enclosing parallel region: the forcing's slabs and edge level
+ * at the time the step ends (forcing.h), the step (which also updates the tracker attached in sw_run),
+ * then by one thread the clock and the work between steps. The barrier at the end of `single` publishes
+ * c->stop to every thread. */
+static void step_in_region(run_ctx *c, long long n, long long n_steps)
+{
+    if (c->forcing)
+        sw_forcing_advance(c->forcing, c->model, (double)(n + 1) * sw_model_dt(c->model));
+    sw_model_step(c->model);
+    SW_OMP(single)
+    {
+        sw_model_tick(c->model);
+        if (sw_forcing_failed(c->forcing, &c->loop_err))
+            c->stop = 2;
+        else
+            between_steps(c, n + 1 == n_steps);
+    }
+}
+
 /* One step while the sea floor still moves: the surface's change over the step (the faults' motion in
  * (t_n, t_n+1], evaluated with the threads of its own parallel loops) is added to the elevation, then the
- * step as in time_loop, in a parallel region of its own. Returns 0 to go on, else stop. */
+ * step in a parallel region of its own. Returns 0 to go on, else stop. */
 static int rupture_step(run_ctx *c, long long n, long long n_steps)
 {
     const double dt = sw_model_dt(c->model), t0 = (double)n * dt;
@@ -218,19 +237,7 @@ static int rupture_step(run_ctx *c, long long n, long long n_steps)
     if (moved)
         sw_model_add_eta(c->model, c->fault_inc);
     SW_OMP(parallel)
-    {
-        if (c->forcing)
-            sw_forcing_advance(c->forcing, c->model, (double)(n + 1) * dt);
-        sw_model_step(c->model);
-        SW_OMP(single)
-        {
-            sw_model_tick(c->model);
-            if (sw_forcing_failed(c->forcing, &c->loop_err))
-                c->stop = 2;
-            else
-                between_steps(c, n + 1 == n_steps);
-        }
-    }
+    step_in_region(c, n, n_steps);
     return c->stop;
 }
 
@@ -246,18 +253,7 @@ static void time_loop(run_ctx *c)
     SW_OMP(parallel)
     {
         for (long long n = first; n < n_steps; n++) {
-            if (c->forcing)   /* the slabs and edge level at the time the step ends (forcing.h) */
-                sw_forcing_advance(c->forcing, c->model, (double)(n + 1) * sw_model_dt(c->model));
-            sw_model_step(c->model);   /* also updates the tracker (attached in sw_run) */
-            SW_OMP(single)
-            {
-                sw_model_tick(c->model);
-                if (sw_forcing_failed(c->forcing, &c->loop_err))
-                    c->stop = 2;
-                else
-                between_steps(c, n + 1 == n_steps);
-            }
-            /* the barrier at the end of `single` publishes c->stop to every thread */
+            step_in_region(c, n, n_steps);
             if (c->stop)
                 break;
         }
