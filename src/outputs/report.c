@@ -269,6 +269,23 @@ static void print_land(FILE *f, const sw_scenario *sc, const sw_setup *s)
     fprintf(f, "\n");
 }
 
+/* The plan's scenario-wide warnings into w[0 .. 1] ("" when none): nothing moves the water (no source,
+ * fault, storm, weather file or level series: the run would only show a still sea), and no gauges (the
+ * run writes maps only). Returns how many there are. */
+static int scenario_warnings(const sw_scenario *sc, const sw_setup *s, char w[2][160])
+{
+    int n = 0;
+    w[0][0] = w[1][0] = '\0';
+    const int moves = sc->n_sources > 0 || s->faults.n > 0 || sc->forcing.storm || sc->forcing.weather
+                      || sc->forcing.level_file[0];
+    if (!moves)
+        snprintf(w[n++], 160, "nothing moves the water: the scenario has no [source], [fault], [storm], [weather] "
+                 "or [edges] level_series, so the run shows a still sea");
+    if (sc->n_gauges == 0)
+        snprintf(w[n++], 160, "no [gauges]: the run writes maps only, no time series");
+    return n;
+}
+
 void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate)
 {
     const sw_grid *g = &s->grid;
@@ -332,6 +349,10 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
                     d < sc->min_depth_m ? "   warning: on land or shallower than min_depth" : "");
         }
     }
+    char w[2][160];
+    const int nw = scenario_warnings(sc, s, w);
+    for (int q = 0; q < nw; q++)
+        fprintf(f, "%swarning: %s\n", q ? "" : "\n", w[q]);
 }
 
 static void add_number_or_null(cJSON *o, const char *key, double v)
@@ -465,6 +486,11 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
     add_terms(o, sc, s);
     add_forcing(o, sc, s);
     add_faults(o, s);
+    cJSON *ws = cJSON_AddArrayToObject(o, "warnings");   /* the scenario-wide ones (scenario_warnings) */
+    char w[2][160];
+    const int nw = scenario_warnings(sc, s, w);
+    for (int q = 0; q < nw; q++)
+        cJSON_AddItemToArray(ws, cJSON_CreateString(w[q]));
     cJSON_AddNumberToObject(o, "dt_s", s->dt_s);
     cJSON_AddNumberToObject(o, "courant", s->courant);
     cJSON_AddNumberToObject(o, "courant_limit", s->courant_limit);

@@ -40,7 +40,8 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
  * "whole rupture"), "uplift_max_m", "subsidence_max_m" (<= 0) and "memory_bytes" (a rupture in time's
  * share of the run's memory). With a rate it has "estimated_seconds", "rate_cells_per_s", "rate_source" ("cache" or "measured"),
  * "rate_age_days", "rate_threads", "rate_cache_file" (null when none) and "rate_note" (null when none).
- * It always has "caution": the scenario's caution (sw_caution_for, run.h). */
+ * It always has "caution": the scenario's caution (sw_caution_for, run.h), and "warnings": strings for a
+ * scenario where nothing moves the water and for one without gauges (the text plan prints them too). */
 char *sw_report_plan_json(const sw_scenario *sc, const sw_setup *s, const sw_rate_info *rate);
 
 /* Prints the end-of-run summary: the forcing and the highest wind and lowest air pressure over the
