@@ -14,11 +14,16 @@ import subprocess
 import sys
 
 ROOT = os.path.abspath(os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", ".."))
+# The checkout's own top folder, unless it is one every system has (a clone under /tmp, /home, ...): a file
+# naming it names this machine. Derived at run time, so this file names no machine's path itself.
+SYSTEM_DIRS = {"tmp", "usr", "etc", "dev", "proc", "home", "opt", "var", "bin", "lib", "srv", "mnt", "root"}
+TOP = ROOT.strip(os.sep).split(os.sep)[0]
 PATTERNS = [
-    (re.compile(r"/work/"), "an absolute path of the development machine"),
     (re.compile(r"\.\./shared\b"), "a folder beside the checkout"),
     (re.compile(r"REFERENCES\.md"), "a references file outside the repository (ours is docs/references.md)"),
 ]
+if TOP and TOP not in SYSTEM_DIRS:
+    PATTERNS.append((re.compile(re.escape(os.sep + TOP + os.sep)), "an absolute path of this machine"))
 THIS = os.path.relpath(os.path.abspath(__file__), ROOT)
 
 
