@@ -66,6 +66,15 @@ void cli_default_out(const char *scenario, char *out, size_t n);
 int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const char *out_dir,
                      const char *history);
 
+/* How the user reaches the picture tool `name` ("plot", "plot-sweep", "plot-stability"): "shoreward-NAME"
+ * when this program runs installed (that file sits beside it in bin/), else "tools/NAME" (a checkout).
+ * Returns a static buffer, valid until the next call. */
+const char *cli_tool(const char *name);
+
+/* The NumPy bench script: PREFIX/share/shoreward/bench_numpy.py when this program runs installed in
+ * PREFIX/bin, else the checkout's tools/bench_numpy.py (the path compiled in). Static buffer. */
+const char *cli_bench_script(void);
+
 int cmd_run(int argc, char **argv, const char *history);
 int cmd_check(int argc, char **argv, const char *history);
 int cmd_demo(int argc, char **argv, const char *history);

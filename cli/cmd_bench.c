@@ -45,7 +45,7 @@ static void show(const char *what, void *user)
 int cmd_bench(int argc, char **argv, const char *history)
 {
     (void)history;
-    sw_bench_options opt = {.rounds = 5, .python = "/usr/bin/python3", .numpy_script = SW_SOURCE_DIR "/tools/bench_numpy.py",
+    sw_bench_options opt = {.rounds = 5, .python = "/usr/bin/python3", .numpy_script = cli_bench_script(),
                             .progress = show, .precision = SW_SINGLE};
     char layouts[16] = "";
     int json = 0;

@@ -62,8 +62,9 @@ static const char *const usage_check =
 static const char *const usage_demo =
     "Usage: shoreward demo [DIR] [--threads N] [--precision P] [--quiet] [--json]\n"
     "\n"
-    "Writes the built-in scenario of a fictional coastline (Merrow Bay) to DIR/demo.scn and runs it,\n"
-    "writing the outputs into DIR (default: shoreward-demo). Draw pictures with tools/plot DIR.\n"
+    "Writes the built-in scenario of a fictional coastline (Vashkel Bay) to DIR/demo.scn and runs it,\n"
+    "writing the outputs into DIR (default: shoreward-demo). Draw pictures with tools/plot DIR\n"
+    "(installed: shoreward-plot DIR).\n"
     "\n"
     CLI_PRECISION_HELP
     "\n"
@@ -174,6 +175,6 @@ int cmd_demo(int argc, char **argv, const char *history)
     code = cli_run_scenario("demo", &sc, &a, dir, history);
     sw_scenario_free(&sc);
     if (code == 0 && !a.json)
-        printf("\nPictures: tools/plot %s\n", dir);
+        printf("\nPictures: %s %s\n", cli_tool("plot"), dir);
     return code;
 }

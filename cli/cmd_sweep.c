@@ -34,7 +34,7 @@ static const char *const usage_sweep =
     "\n"
     "Example:\n"
     "  shoreward sweep scenarios/sweep-demo.scn --out sweep-out\n"
-    "  tools/plot-sweep sweep-out\n";
+    "  tools/plot-sweep sweep-out      (installed: shoreward-plot-sweep sweep-out)\n";
 
 static void show_progress(const sw_sweep_progress *p, void *user)
 {
@@ -147,7 +147,7 @@ int cmd_sweep(int argc, char **argv, const char *history)
             fprintf(stderr, "%s\n", sw_caution_sweep_for(sc));
         } else {
             sw_sweep_report(stdout, &plan, &summary);
-            printf("\nPictures: tools/plot-sweep %s\n", out);
+            printf("\nPictures: %s %s\n", cli_tool("plot-sweep"), out);
         }
         if (summary.n_ok == 0) {
             fprintf(stderr, "shoreward sweep: error: every member failed (causes above)\n");

@@ -11,6 +11,47 @@
 
 volatile sig_atomic_t cli_stop = 0;
 
+/* The folder holding this program's executable into dir (size n), without the final '/'; 0 if unknown. */
+static int exe_dir(char *dir, size_t n)
+{
+    ssize_t len = readlink("/proc/self/exe", dir, n - 1);
+    if (len <= 0 || (size_t)len >= n - 1)
+        return 0;
+    dir[len] = '\0';
+    char *slash = strrchr(dir, '/');
+    if (!slash)
+        return 0;
+    *slash = '\0';
+    return 1;
+}
+
+const char *cli_tool(const char *name)
+{
+    static char out[4200];
+    char dir[4096];
+    if (exe_dir(dir, sizeof dir)) {
+        snprintf(out, sizeof out, "%s/shoreward-%s", dir, name);
+        if (access(out, X_OK) == 0) {
+            snprintf(out, sizeof out, "shoreward-%s", name);
+            return out;
+        }
+    }
+    snprintf(out, sizeof out, "tools/%s", name);
+    return out;
+}
+
+const char *cli_bench_script(void)
+{
+    static char out[4200];
+    char dir[4096];
+    if (exe_dir(dir, sizeof dir)) {
+        snprintf(out, sizeof out, "%s/../share/shoreward/bench_numpy.py", dir);
+        if (access(out, R_OK) == 0)
+            return out;
+    }
+    return SW_SOURCE_DIR "/tools/bench_numpy.py";
+}
+
 static void on_signal(int sig)
 {
     (void)sig;
