@@ -2,10 +2,12 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "cli.h"
 #include "studies/compare.h"
 #include "model/layout.h"
+#include "outputs/report.h"
 
 static const char *const usage_compare =
     "Usage: shoreward compare SCENARIO [--layouts A,C,...] [--refine 1,2,4] [--out DIR] [--threads N]\n"
@@ -40,9 +42,42 @@ static int split(char *s, char **items, int max)
     return n;
 }
 
+/* What the live progress line and the per-run lines need: which run goes on, and whether a progress line
+ * is open on the terminal (it then needs its newline before anything else is printed). */
+typedef struct {
+    const char *const *layouts; /* the layouts, outer loop of the runs */
+    const int *refine;          /* the refinements, inner loop */
+    size_t n_refine, n_runs;
+    size_t current;             /* the run going on, 0-based */
+    int rows;                   /* 1: print a line per finished run */
+    int line_open;              /* 1: a progress line is on the terminal without its newline */
+} compare_view;
+
+/* The live progress line of the run going on (stderr, a terminal only: cmd_compare passes it only then),
+ * rewritten in place as `run` does (cli_show_progress), with the run's layout and refinement in front. */
+static void show_progress(const sw_progress *p, void *user)
+{
+    compare_view *cv = user;
+    char sim[48], rem[48];
+    sw_format_duration(p->sim_time_s, sim, sizeof sim);
+    sw_format_duration(p->remaining_s, rem, sizeof rem);
+    const size_t k = cv->current;
+    fprintf(stderr, "\r  [%zu/%zu] layout %s x%d: t = %-14s %5.1f %%   ETA %-14s   ", k + 1, cv->n_runs,
+            cv->layouts[k / cv->n_refine], cv->refine[k % cv->n_refine], sim,
+            100.0 * (double)p->step / (double)(p->n_steps ? p->n_steps : 1), rem);
+    fflush(stderr);
+    cv->line_open = 1;
+}
+
 static void show_row(const sw_compare_row *r, size_t i, size_t n, void *user)
 {
-    (void)user;
+    compare_view *cv = user;
+    if (cv->line_open)
+        fputc('\n', stderr);   /* the progress line ends here */
+    cv->line_open = 0;
+    cv->current = i + 1;
+    if (!cv->rows)
+        return;
     if (r->status == SW_OK)
         fprintf(stderr, "  [%zu/%zu] layout %s x%d: %lld steps in %.2f s\n", i + 1, n, r->layout, r->refine,
                 r->steps, r->wall_s);
@@ -120,13 +155,20 @@ int cmd_compare(int argc, char **argv, const char *history)
             snprintf(out + n - 4, sizeof out - (n - 4), "-compare");   /* "<name>-out" -> "<name>-compare" */
     }
     cli_catch_signals();
-    sw_run_options opt = {.out_dir = out, .history = history, .threads = a.threads, .stop = &cli_stop};
+    /* a live progress line only on a terminal (not with --quiet): logs and pipes stay clean */
+    compare_view cv = {.layouts = layouts, .refine = refine, .n_refine = (size_t)n_ref,
+                       .n_runs = (size_t)n_lay * (size_t)n_ref, .rows = !a.quiet && !a.json};
+    const int tty = isatty(STDERR_FILENO) && !a.quiet;
+    sw_run_options opt = {.out_dir = out, .history = history, .threads = a.threads, .stop = &cli_stop,
+                          .progress = tty ? show_progress : NULL, .progress_user = &cv};
     sw_compare cmp;
     if (!a.json && !a.quiet)
         fprintf(stderr, "Comparing %d layout(s) x %d resolution(s) of %s\n", n_lay, n_ref, a.scenario);
     if (sw_make_dirs(out, &err) != SW_OK
-        || sw_compare_run(&sc, layouts, (size_t)n_lay, refine, (size_t)n_ref, &opt, a.quiet || a.json ? NULL : show_row,
-                          NULL, &cmp, &err) != SW_OK) {
+        || sw_compare_run(&sc, layouts, (size_t)n_lay, refine, (size_t)n_ref, &opt, show_row, &cv, &cmp, &err)
+               != SW_OK) {
+        if (cv.line_open)
+            fputc('\n', stderr);
         sw_scenario_free(&sc);
         return cli_fail("compare", &err);
     }

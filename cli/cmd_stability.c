@@ -14,8 +14,8 @@
 #define STAB_CLI_PLANE_POINTS 129       /* points along each axis of the --out planes (step pi / 64) */
 
 static const char *const usage_stability =
-    "Usage: shoreward stability [--layout L | --all] [--courant C] [--f-dt X] [--dims 1|2]\n"
-    "                           [--json] [--out FILE]\n"
+    "Usage: shoreward stability [--layout L | --all] [--courant-number C | --courant-fraction F]\n"
+    "                           [--f-dt X] [--dims 1|2] [--json] [--out FILE]\n"
     "\n"
     "Von Neumann analysis of the model's forward-backward step on each grid layout: one Fourier\n"
     "wave at a time, the step multiplies the wave by factors lambda. |lambda| = 1 keeps the wave's\n"
@@ -29,8 +29,10 @@ static const char *const usage_stability =
     "\n"
     "  --layout L    one layout (the layouts of this build are listed at the end)\n"
     "  --all         every built layout (the default)\n"
-    "  --courant C   absolute Courant number of the table and planes (default: 0.9 of each\n"
-    "                layout's limit, 2D unless --dims 1); above the limit the table shows growth\n"
+    "  --courant-number C    the Courant number c of the table and planes, the same for\n"
+    "                every layout; above a layout's limit its table shows growth\n"
+    "  --courant-fraction F  c at this fraction of each layout's own limit, as the scenario's\n"
+    "                [run] courant_fraction (default 0.9; 2D limit unless --dims 1)\n"
     "  --f-dt X      Coriolis parameter times dt, rad (default 0): the step with rotation as the\n"
     "                model takes it (u from the old v, then v from the new u; docs/terms.md);\n"
     "                e.g. f = 1e-4 s-1 and dt = 30 s give 0.003\n"
@@ -38,10 +40,11 @@ static const char *const usage_stability =
     "  --json        print one JSON object on stdout instead of text\n"
     "  --out FILE    also write |lambda| and the speed ratio over the whole wavenumber plane\n"
     "                (k dx, l dy in [-pi, pi]) to FILE (NetCDF); draw it with tools/plot-stability\n"
+    "                (installed: shoreward-plot-stability)\n"
     "\n"
     "Examples:\n"
     "  shoreward stability\n"
-    "  shoreward stability --layout C --courant 0.5 --f-dt 0.01 --out stab.nc\n"
+    "  shoreward stability --layout C --courant-number 0.5 --f-dt 0.01 --out stab.nc\n"
     "  tools/plot-stability stab.nc --out stab.png\n"
     "\n"
     "The derivation and how to read the table: docs/stability.md.\n";
@@ -50,7 +53,8 @@ static const char *const usage_stability =
 typedef struct {
     const sw_layout *layouts[16];   /* the layouts to analyse */
     size_t n_layouts;
-    double courant;                 /* absolute Courant number, or 0 = a fraction of each limit */
+    double courant;                 /* the Courant number asked, or 0 = a fraction of each limit */
+    double fraction;                /* that fraction of each layout's limit (when courant is 0) */
     double f_dt;                    /* rad */
     int dims;                       /* 1, 2, or 0 = both */
     int json;
@@ -124,9 +128,18 @@ static int stab_parse(int argc, char **argv, stab_args *a)
             if (missing || !*val)
                 return cli_usage_error("stability", "--layout needs a name (accepted: %s)", sw_layout_names());
             layout = val;
-        } else if ((val = stab_option("--courant", argc, argv, &k, &missing))) {
+        } else if ((val = stab_option("--courant-number", argc, argv, &k, &missing))) {
             if (missing || !stab_number(val, &a->courant) || !(a->courant > 0) || a->courant > 1e6)
-                return cli_usage_error("stability", "--courant takes a number with 0 < C <= 1e6, not '%s'", val);
+                return cli_usage_error("stability", "--courant-number takes a number with 0 < C <= 1e6, not '%s'",
+                                       val);
+        } else if ((val = stab_option("--courant-fraction", argc, argv, &k, &missing))) {
+            if (missing || !stab_number(val, &a->fraction) || !(a->fraction > 0) || a->fraction > 1e6)
+                return cli_usage_error("stability", "--courant-fraction takes a number with 0 < F <= 1e6 (1 is the "
+                                       "limit), not '%s'", val);
+        } else if ((val = stab_option("--courant", argc, argv, &k, &missing))) {
+            return cli_usage_error("stability", "%s", "--courant is now --courant-number C (the same Courant number "
+                                   "for every layout) or --courant-fraction F (a fraction of each layout's limit, as "
+                                   "the scenario's courant_fraction)");
         } else if ((val = stab_option("--f-dt", argc, argv, &k, &missing))) {
             if (missing || !stab_number(val, &a->f_dt) || fabs(a->f_dt) > 1e6)
                 return cli_usage_error("stability", "--f-dt takes a number with |X| <= 1e6 (rad), not '%s'", val);
@@ -146,6 +159,10 @@ static int stab_parse(int argc, char **argv, stab_args *a)
     }
     if (layout && all)
         return cli_usage_error("stability", "%s", "give either --layout L or --all, not both");
+    if (a->courant > 0 && a->fraction > 0)
+        return cli_usage_error("stability", "%s", "give either --courant-number C or --courant-fraction F, not both");
+    if (!(a->courant > 0) && !(a->fraction > 0))
+        a->fraction = STAB_CLI_DEFAULT_FRACTION;
     if (layout) {
         const sw_layout *lay = sw_layout_find(layout);
         if (!lay)
@@ -178,8 +195,8 @@ static sw_status stab_analyse(const stab_args *a, const sw_layout *lay, stab_res
         r->courant = a->courant;
         r->fraction = a->courant / limit;
     } else {
-        r->courant = STAB_CLI_DEFAULT_FRACTION * limit;
-        r->fraction = STAB_CLI_DEFAULT_FRACTION;
+        r->courant = a->fraction * limit;
+        r->fraction = a->fraction;
     }
     sw_stab_table(lay, r->courant, a->f_dt, r->rows);
     return SW_OK;
@@ -252,10 +269,13 @@ static cJSON *stab_json(const stab_args *a, const stab_result *res, size_t n)
 {
     cJSON *root = cJSON_CreateObject();
     cJSON_AddNumberToObject(root, "f_dt", a->f_dt);
-    if (a->courant > 0)
-        cJSON_AddNumberToObject(root, "courant", a->courant);
-    else
-        cJSON_AddNullToObject(root, "courant");
+    if (a->courant > 0) {
+        cJSON_AddNumberToObject(root, "courant_number", a->courant);
+        cJSON_AddNullToObject(root, "courant_fraction");
+    } else {
+        cJSON_AddNullToObject(root, "courant_number");
+        cJSON_AddNumberToObject(root, "courant_fraction", a->fraction);
+    }
     cJSON_AddNumberToObject(root, "growth_tolerance", SW_STAB_GROWTH_TOL);
     if (a->out)
         cJSON_AddStringToObject(root, "out", a->out);
@@ -275,8 +295,8 @@ static cJSON *stab_json(const stab_args *a, const stab_result *res, size_t n)
             cJSON_AddNumberToObject(l, "critical_kdx", r->scan[d - 1].kdx);
             cJSON_AddNumberToObject(l, "critical_ldy", r->scan[d - 1].ldy);
         }
-        cJSON_AddNumberToObject(o, "courant", r->courant);
-        cJSON_AddNumberToObject(o, "courant_fraction_of_limit", r->fraction);
+        cJSON_AddNumberToObject(o, "courant_number", r->courant);
+        cJSON_AddNumberToObject(o, "courant_fraction", r->fraction);
         cJSON *tab = cJSON_AddArrayToObject(o, "table");
         for (size_t k = 0; k < SW_STAB_N_WAVELENGTHS; k++) {
             cJSON *row = cJSON_CreateObject();
@@ -333,7 +353,8 @@ int cmd_stability(int argc, char **argv, const char *history)
         putchar('\n');
     }
     if (a.out)
-        printf("Wrote the wavenumber planes to %s (draw them with tools/plot-stability %s)\n", a.out, a.out);
+        printf("Wrote the wavenumber planes to %s (draw them with %s %s)\n", a.out, cli_tool("plot-stability"),
+               a.out);
     else
         printf("See docs/stability.md for how to read this.\n");
     return 0;

@@ -493,13 +493,49 @@ static sw_status ncin_values(const ncin_file *f, int varid, const char *name, do
             land[k] = SW_NCIN_LAND_MISSING;
             v[k] = 0.0;
         } else {
-            v[k] = v[k] * scale + offset;
+            const double packed = v[k];
+            v[k] = packed * scale + offset;
+            if (!isfinite(v[k])) {   /* an unpacking overflow: the stored value was finite */
+                sw_nc_missing_free(&miss);
+                free(v);
+                return sw_fail(err, SW_ERR_INPUT, "%s: variable '%s': unpacking %s[%zu][%zu] = %g with scale_factor "
+                               "%g and add_offset %g overflows (accepted: packed values whose unpacked value is a "
+                               "finite double)", f->path, name, name, k / cols, k % cols, packed, scale, offset);
+            }
             if (land)
                 land[k] = 0;
         }
     }
     sw_nc_missing_free(&miss);
     *data = v;
+    return SW_OK;
+}
+
+/* The file's coordinate of stored index s along axis a (0 y, 1 x): m, or degrees as the file writes them. */
+static double ncin_stored_coord(const ncin_file *f, int a, size_t s)
+{
+    const size_t along = f->flip[a] ? f->n_stored[a] - 1 - s : s;
+    return f->c0[a] + (double)along * f->d[a];
+}
+
+/* opt's range (sw_ncin_options.range_accepted): the first unpacked value that is not land and lies outside
+ * [range_lo, range_hi], in storage order, is an error naming the file, the variable, its index and the
+ * coordinates there, and the accepted range. v and land (may be NULL) as ncin_values left them. */
+static sw_status ncin_range(const ncin_file *f, const double *v, const unsigned char *land, const sw_ncin_options *opt,
+                            sw_error *err)
+{
+    if (!opt->range_accepted)
+        return SW_OK;
+    const size_t rows = f->n_stored[0], cols = f->n_stored[1];
+    for (size_t k = 0; k < rows * cols; k++) {
+        if ((land && land[k]) || (v[k] >= opt->range_lo && v[k] <= opt->range_hi))
+            continue;
+        const size_t j = k / cols, i = k % cols;
+        return sw_fail(err, SW_ERR_RANGE, "%s: variable '%s': %s[%zu][%zu] = %g (at %s = %g %s, %s = %g %s) is "
+                       "outside %g .. %g (accepted: %s)", f->path, f->var, f->var, j, i, v[k], f->dim[0],
+                       ncin_stored_coord(f, 0, j), ncin_unit(f), f->dim[1], ncin_stored_coord(f, 1, i), ncin_unit(f),
+                       opt->range_lo, opt->range_hi, opt->range_accepted);
+    }
     return SW_OK;
 }
 
@@ -866,6 +902,8 @@ sw_status sw_ncin_read_with(const char *path, const char *var, const sw_grid *g,
         st = ncin_mask(&f, opt->land_mask, land, err);
     if (st == SW_OK && land && !opt->missing_land)
         st = ncin_unmasked_missing(&f, land, opt->missing_hint, err);
+    if (st == SW_OK)
+        st = ncin_range(&f, v, land, opt, err);
     ncin_close(&f);
     if (st == SW_OK)
         st = ncin_canonical(&f, &v, &land, err);

@@ -54,6 +54,11 @@ typedef struct {
     int *positive_attr;       /* out when not NULL: the variable's `positive` attribute, SW_POSITIVE_UP /
                                * _DOWN, or SW_POSITIVE_UNSET when absent or other text (an sw_positive,
                                * scenario.h) */
+    const char *range_accepted; /* NULL = no range check; else every file value that is not land must lie
+                               * in [range_lo, range_hi] after unpacking (in the variable's units), and
+                               * the first that does not, in storage order, is an SW_ERR_RANGE error
+                               * naming var[j][i], its coordinates and this text as the accepted values */
+    double range_lo, range_hi; /* the range, with range_accepted; in the unpacked variable's units */
 } sw_ncin_options;
 
 /* Reads the grid of `var` in `path`: cell-centre coordinates -> sw_grid with x0/y0 at the south-west
@@ -69,9 +74,10 @@ sw_status sw_ncin_grid(const char *path, const char *var, double radius_m, sw_gr
  * nearest file point is land (opt->land), the target is land with value 0; elsewhere an interpolation
  * uses only the file points that are not land, their weights renormalised. Values are unpacked
  * (scale_factor, add_offset). A missing value (without missing_land), NaN or Inf is an error naming the
- * variable and the first bad index in storage order as "var[j][i]". opt may be NULL (the zero value).
- * Returns SW_OK, or SW_ERR_USAGE / SW_ERR_IO / SW_ERR_NETCDF / SW_ERR_INPUT / SW_ERR_NOMEM with a
- * one-line message naming the file and variable; out and opt->land then hold no meaningful values. */
+ * variable and the first bad index in storage order as "var[j][i]"; so is a finite stored value whose
+ * unpacking overflows, and, with opt->range_accepted, a value that is not land outside the range. opt may be NULL (the zero value).
+ * Returns SW_OK, or SW_ERR_USAGE / SW_ERR_IO / SW_ERR_NETCDF / SW_ERR_INPUT / SW_ERR_RANGE / SW_ERR_NOMEM
+ * with a one-line message naming the file and variable; out and opt->land then hold no meaningful values. */
 sw_status sw_ncin_read_with(const char *path, const char *var, const sw_grid *g, const sw_ncin_options *opt,
                             double *out, sw_error *err);
 

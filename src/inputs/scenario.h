@@ -42,7 +42,7 @@ typedef enum { SW_FEATURE_BAY = 0, SW_FEATURE_ISLAND, SW_FEATURE_SHOAL } sw_feat
 /* One analytic piece of the seabed recipe, applied in file order after the base profile. */
 typedef struct {
     sw_feature_kind kind;
-    char name[SW_NAME_MAX];   /* from the section header, e.g. [island Gull Rock] -> "Gull Rock" */
+    char name[SW_NAME_MAX];   /* from the section header, e.g. [island Pellquin Rock] -> "Pellquin Rock" */
     int line;                 /* line of the section header */
     double x_m, y_m;          /* centre, m (a position: see the top of this file) */
     sw_unit_kind x_unit, y_unit; /* how x and y were written: SW_UNIT_LENGTH (m, km), SW_UNIT_ANGLE (deg) or
@@ -136,7 +136,7 @@ typedef struct {
 } sw_fault_spec;
 
 typedef struct {
-    char name[SW_NAME_MAX];   /* the key, e.g. "Port Harrow" */
+    char name[SW_NAME_MAX];   /* the key, e.g. "Port Vantrebel" */
     int line;
     double x_m, y_m;          /* m (a position: see the top of this file) */
     sw_unit_kind x_unit, y_unit; /* how x and y were written, as in sw_feature */
@@ -355,7 +355,7 @@ sw_status sw_scenario_resolve(const sw_scenario *sc, const char *rel, char *out,
 /* One change to a scenario key, as a line of the file would write it. */
 typedef struct {
     const char *target;   /* "section.key": "run.courant", "grid.dx", "source main.amplitude",
-                           * "bay Merrow Bay.depth" (the section as in its header; split at the last '.') */
+                           * "bay Vashkel Bay.depth" (the section as in its header; split at the last '.') */
     const char *value;    /* the value text with its unit, e.g. "0.5", "30 km", "C" */
 } sw_override;
 

@@ -186,6 +186,10 @@ const section_def *scn_find_section_def(const char *name, suggestion *s);
  * keys are offered to it as suggestions (scn_suggest_try). */
 const key_def *scn_find_key(const section_def *def, const char *name, suggestion *s);
 
+/* When `key` is a key of section kind `section` ("run", "source") that an earlier version accepted under
+ * that name, the text " (renamed: write NEW = ...; why)" for an error message; otherwise "". Never NULL. */
+const char *scn_renamed_key(const char *section, const char *key);
+
 /* Removes leading and trailing blanks of t in place. */
 void scn_trim(char *t);
 
@@ -214,7 +218,7 @@ typedef struct {
 /* One section as it appeared in the file. */
 typedef struct {
     const section_def *def;
-    char label[LABEL_MAX];   /* "[run]", "[island Gull Rock]": how messages name it */
+    char label[LABEL_MAX];   /* "[run]", "[island Pellquin Rock]": how messages name it */
     char name[SW_NAME_MAX];  /* named sections: the name */
     int line;                /* line of the header */
     void *item;              /* S_BAY..S_SOURCE, S_FAULT: the sw_feature / sw_source_spec / sw_fault_spec being

@@ -41,9 +41,10 @@ static const key_def RUN_KEYS[] = {
       .accepted = "the registry's names, sw_layout_names() (any case)" },
     { .name = "precision", .kind = K_CHOICE, SC(precision), .words = PRECISION_WORDS, .first = SW_DOUBLE,
       .dflt = "double", .accepted = "double, single" },
-    { .name = "courant", .kind = K_NUMBER, SC(courant_fraction), ABOVE(0, 1), .dflt = "0.9",
-      .accepted = "0 < courant <= 1, a fraction of the layout's limit" },
-    { .name = "dt", .kind = K_TIME, SC(dt_s), ABOVE(0, DAY), .accepted = "0 < dt <= 1 d, not together with courant" },
+    { .name = "courant_fraction", .kind = K_NUMBER, SC(courant_fraction), ABOVE(0, 1), .dflt = "0.9",
+      .accepted = "0 < courant_fraction <= 1, a fraction of the layout's limit" },
+    { .name = "dt", .kind = K_TIME, SC(dt_s), ABOVE(0, DAY),
+      .accepted = "0 < dt <= 1 d, not together with courant_fraction" },
     { .name = "gauge_interval", .kind = K_TIME, SC(gauge_interval_s), ABOVE(0, DAY), .dflt = "30 s",
       .accepted = "0 < gauge_interval <= 1 d" },
     { .name = "snapshot_interval", .kind = K_TIME, SC(snapshot_interval_s), RANGE(0, 30 * DAY), .dflt = "0",
@@ -244,8 +245,8 @@ static const key_def SOURCE_KEYS[] = {
     { .name = "y", SO(y_m), .required = 1, .only = SHAPES_XY, POINT_Y("centre", SO_UNIT(y_unit)) },
     { .name = "amplitude", .kind = K_LENGTH, SO(amplitude_m), RANGE(-100, 100), .required = 1, .only = SHAPES_XY,
       .accepted = "|amplitude| <= 100 m; > 0 for a pair" },
-    { .name = "trough", .kind = K_LENGTH, SO(trough_m), ABOVE(0, 100), .only = SHAPE(SW_SOURCE_PAIR),
-      .accepted = "0 < trough <= 100 m (default: amplitude)" },
+    { .name = "subsidence", .kind = K_LENGTH, SO(trough_m), ABOVE(0, 100), .only = SHAPE(SW_SOURCE_PAIR),
+      .accepted = "0 < subsidence <= 100 m (default: amplitude)" },
     { .name = "radius", .kind = K_LENGTH, SO(radius_m), ABOVE(0, HUGE_VAL), .required = 1,
       .only = SHAPE(SW_SOURCE_HUMP), .accepted = "radius > 0" },
     { .name = "length", .kind = K_LENGTH, SO(length_m), ABOVE(0, HUGE_VAL), .required = 1, .only = SHAPES_AXES,
@@ -372,6 +373,27 @@ const key_def *scn_find_key(const section_def *def, const char *name, suggestion
             scn_suggest_try(s, name, def->keys[i].name);
     }
     return NULL;
+}
+
+/* ---- renamed keys ---------------------------------------------------------------------------- */
+
+/* Keys whose names changed so that one word means one thing across scenario, command line, JSON and
+ * NetCDF: a scenario using an old name is refused with the new one rather than read differently. */
+static const struct {
+    const char *section, *old_key, *hint;
+} RENAMED_KEYS[] = {
+    { "run", "courant", " (renamed: write courant_fraction = F, a fraction 0 < F <= 1 of the layout's limit; "
+                        "'Courant number' always means the absolute c = sqrt(g h) dt / dx, which check reports)" },
+    { "source", "trough", " (renamed: write subsidence = D, the pair's sinking in metres; 'trough' is the lowest "
+                          "elevation a gauge records)" },
+};
+
+const char *scn_renamed_key(const char *section, const char *key)
+{
+    for (size_t i = 0; section && key && i < sizeof RENAMED_KEYS / sizeof RENAMED_KEYS[0]; i++)
+        if (!strcmp(RENAMED_KEYS[i].section, section) && !strcmp(RENAMED_KEYS[i].old_key, key))
+            return RENAMED_KEYS[i].hint;
+    return "";
 }
 
 /* ---- suggestions --------------------------------------------------------------------------- */

@@ -102,8 +102,8 @@ static sw_status locate_overrides(const sw_scenario *sc, const text_line *lines,
             return sw_fail(err, SW_ERR_USAGE, "%s: override '%s': expected SECTION.KEY (e.g. grid.dx)", sc->path,
                            o->target);
         if (!scn_find_key(scn_find_section_def(o->kind, NULL), o->key, NULL))
-            return sw_fail(err, SW_ERR_RANGE, "%s: override '%s': no such key in the scenario tables", sc->path,
-                           o->target);
+            return sw_fail(err, SW_ERR_RANGE, "%s: override '%s': no such key in the scenario tables%s", sc->path,
+                           o->target, scn_renamed_key(o->kind, o->key));
         if (!o->value[0] || strlen(o->value) > LINE_MAX_CHARS - strlen(o->key) - 3 || strchr(o->value, ';'))
             return sw_fail(err, SW_ERR_PARSE, "%s: override %s = '%.60s': empty, too long or holding ';'", sc->path,
                            o->target, o->value);
@@ -187,10 +187,10 @@ sw_status sw_scenario_override(const sw_scenario *sc, const sw_override *ov, siz
     text_buf b = { 0 };
     size_t n_out = 0;
     if (st == SW_OK) {
-        int courant = 0, dt = 0;   /* overrides of [run] courant / dt drop the other's line */
+        int courant = 0, dt = 0;   /* overrides of [run] courant_fraction / dt drop the other's line */
         for (size_t j = 0; j < n; j++)
             if (!strcmp(it[j].kind, "run") && !it[j].name[0]) {
-                courant |= !strcmp(it[j].key, "courant");
+                courant |= !strcmp(it[j].key, "courant_fraction");
                 dt |= !strcmp(it[j].key, "dt");
             }
         char kind[LINE_MAX_CHARS + 1] = "", name[LINE_MAX_CHARS + 1] = "", clean[LINE_MAX_CHARS + 1];
@@ -209,7 +209,7 @@ sw_status sw_scenario_override(const sw_scenario *sc, const sw_override *ov, siz
                 if (it[j].line == (long)L)
                     who = (long)j;
             int drop = in_sweep || (in_run && !is_header && ((courant && !dt && !strcmp(key, "dt"))
-                                                             || (dt && !courant && !strcmp(key, "courant"))));
+                                                             || (dt && !courant && !strcmp(key, "courant_fraction"))));
             if (who >= 0) {
                 buf_add(&b, it[who].key, strlen(it[who].key));
                 buf_add(&b, " = ", 3);

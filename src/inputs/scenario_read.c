@@ -111,7 +111,7 @@ static int begin_section(parse_state *ps, const char *inner, size_t n)
     }
     if (def->named && nn == 0)
         return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "section [%s] needs a name, e.g. [%s %s]", kind, kind,
-                           def->type == S_SOURCE || def->type == S_FAULT ? "main" : "Gull Rock");
+                           def->type == S_SOURCE || def->type == S_FAULT ? "main" : "Pellquin Rock");
     if (!def->named && nn > 0)
         return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "section [%s] takes no name, found [%.*s] (accepted: [%s])",
                            kind, (int)n, inner, kind);
@@ -341,7 +341,7 @@ static int add_gauge(parse_state *ps, const char *name, const char *value)
     sw_scenario *sc = ps->sc;
     const char *label = ps->cur->label;
     if (!name[0])
-        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s a gauge needs a name before '=' (e.g. Port Harrow = 42 km, "
+        return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s a gauge needs a name before '=' (e.g. Port Vantrebel = 42 km, "
                            "18.5 km)", label);
     size_t nl = strlen(name);
     if (nl >= SW_NAME_MAX)
@@ -408,8 +408,9 @@ static int on_key(void *user, const char *section, const char *name, const char 
     const key_def *k = scn_find_key(def, name, &s);
     if (!k) {
         char hint[96];
+        const char *renamed = scn_renamed_key(def->name, name);
         return scn_fail_at(ps, SW_ERR_PARSE, ps->line, "%s unknown key '%s'%s", sec->label, name,
-                           scn_suggest_text(&s, hint, sizeof hint));
+                           renamed[0] ? renamed : scn_suggest_text(&s, hint, sizeof hint));
     }
     size_t ki = (size_t)(k - def->keys);
     if (sec->key_line[ki])
@@ -547,10 +548,11 @@ static int finish_run(parse_state *ps, const section_ctx *run)
         return scn_fail_at(ps, SW_ERR_PARSE, 0, "missing section [run] (it needs at least 'duration')");
     if (!check_keys(ps, run, 1, ""))
         return 0;
-    int dt = key_line(run, "dt"), courant = key_line(run, "courant");
+    int dt = key_line(run, "dt"), courant = key_line(run, "courant_fraction");
     if (dt && courant)
-        return scn_fail_at(ps, SW_ERR_PARSE, dt > courant ? dt : courant, "[run] dt (line %d) and courant (line %d) "
-                           "are both given (accepted: one of them; dt fixes the step, courant derives it)",
+        return scn_fail_at(ps, SW_ERR_PARSE, dt > courant ? dt : courant, "[run] dt (line %d) and courant_fraction "
+                           "(line %d) are both given (accepted: one of them; dt fixes the step, courant_fraction "
+                           "derives it)",
                            dt, courant);
     /* lines for later messages: the key's, or the [run] header's when defaulted */
     sc->layout_line = key_line(run, "layout") ? key_line(run, "layout") : run->line;
@@ -707,7 +709,7 @@ static int finish_source(parse_state *ps, const section_ctx *sec)
             return scn_fail_at(ps, SW_ERR_RANGE, key_line(sec, "amplitude"), "%s amplitude = %g m: out of range "
                                "(accepted: 0 < amplitude <= 100 m for a pair, the uplift crest)",
                                sec->label, s->amplitude_m);
-        if (!key_line(sec, "trough"))
+        if (!key_line(sec, "subsidence"))
             s->trough_m = s->amplitude_m;
     }
     if (s->shape == SW_SOURCE_FILE && s->scale == 0)
@@ -1137,6 +1139,43 @@ static void prescan_grid_kind(parse_state *ps)
 
 /* ---- entry points -------------------------------------------------------------------------- */
 
+/* The first byte of text that is not part of well-formed UTF-8 (RFC 3629: no overlong forms, no
+ * surrogates, nothing above U+10FFFF): its line (1-based), its byte within the line (1-based) in *col
+ * and its value in *byte; 0 when the whole text is UTF-8. Titles, names and the text itself go into JSON
+ * and NetCDF, which need it. */
+static int utf8_first_bad(const char *text, size_t *col, unsigned *byte)
+{
+    const unsigned char *p = (const unsigned char *)text, *line_start = p;
+    int line = 1;
+    while (*p) {
+        unsigned c = *p;
+        size_t more = c < 0x80 ? 0 : (c & 0xE0) == 0xC0 ? 1 : (c & 0xF0) == 0xE0 ? 2 : (c & 0xF8) == 0xF0 ? 3 : 4;
+        unsigned lo = 0x80, hi = 0xBF;   /* the range of the second byte */
+        if (c == 0xE0)
+            lo = 0xA0;                    /* overlong three-byte form */
+        else if (c == 0xED)
+            hi = 0x9F;                    /* surrogates */
+        else if (c == 0xF0)
+            lo = 0x90;                    /* overlong four-byte form */
+        else if (c == 0xF4)
+            hi = 0x8F;                    /* above U+10FFFF */
+        int ok = more < 4 && c != 0xC0 && c != 0xC1 && c < 0xF5;
+        for (size_t k = 1; ok && k <= more; k++)
+            ok = k == 1 ? p[1] >= lo && p[1] <= hi : p[k] >= 0x80 && p[k] <= 0xBF;
+        if (!ok) {
+            *col = (size_t)(p - line_start) + 1;
+            *byte = c;
+            return line;
+        }
+        if (c == '\n') {
+            line++;
+            line_start = p + 1;
+        }
+        p += more + 1;
+    }
+    return 0;
+}
+
 /* Parses sc->text; sc->path and sc->dir are set. On failure fills err; the caller frees. When
  * fail_line / bare are not NULL they receive the failing line (INT_MAX: none) and the message
  * without its "NAME:LINE: " prefix (size SW_ERROR_MSG_MAX). */
@@ -1150,6 +1189,12 @@ sw_status scn_parse_text(sw_scenario *sc, sw_error *err, int *fail_line, char *b
     ps->text = sc->text;
     ps->len = strlen(sc->text);
     ps->edges_all = -1;
+    size_t bad_col = 0;
+    unsigned bad_byte = 0;
+    const int bad_line = utf8_first_bad(sc->text, &bad_col, &bad_byte);
+    if (bad_line > 0)
+        scn_fail_at(ps, SW_ERR_PARSE, bad_line, "byte %zu of the line (0x%02X) is not UTF-8 (accepted: a UTF-8 "
+                    "text file; titles and names are copied into JSON and NetCDF)", bad_col, bad_byte);
     prescan_grid_kind(ps);
     for (size_t i = 0; i < scn_n_sections; i++)
         apply_defaults(ps, NULL, &scn_sections[i], IN_SCENARIO);

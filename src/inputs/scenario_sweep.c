@@ -58,12 +58,12 @@ static const key_def SWEEP_BUILTIN_KEYS[] = {
       .accepted = "-360 <= fault_rotation <= 360 deg, clockwise" },
 };
 
-/* Short names for [run] keys: `courant = ...` in [sweep] means `run.courant = ...`. */
-static const char *const SWEEP_ALIASES[] = { "layout", "courant", "arrival_threshold", NULL };
+/* Short names for [run] keys: `courant_fraction = ...` in [sweep] means `run.courant_fraction = ...`. */
+static const char *const SWEEP_ALIASES[] = { "layout", "courant_fraction", "arrival_threshold", NULL };
 
 #define SWEEP_HINT "(accepted: design, members, seed, amplitude_factor, source_x_offset, source_y_offset, " \
                    "depth_factor, resolution_factor, slip_factor, fault_x_offset, fault_y_offset, fault_rotation, " \
-                   "layout, courant, arrival_threshold, or SECTION.KEY such as grid.dx or source main.amplitude)"
+                   "layout, courant_fraction, arrival_threshold, or SECTION.KEY such as grid.dx or source main.amplitude)"
 
 /* [sweep] name = value: kept as text; scn_finish_sweep reads it once every section is known. */
 int scn_add_sweep_entry(parse_state *ps, const char *name, const char *value)
@@ -237,8 +237,9 @@ static int sweep_key_target(parse_state *ps, const sweep_entry *e, const char *t
     const key_def *k = scn_find_key(def, key, &s);
     if (!k) {
         char hint[96];
+        const char *renamed = scn_renamed_key(def->name, key);
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: %s has no key '%s'%s", e->name, sec->label, key,
-                           scn_suggest_text(&s, hint, sizeof hint));
+                           renamed[0] ? renamed : scn_suggest_text(&s, hint, sizeof hint));
     }
     if (def->type == S_GRID && !ps->sc->has_grid && strcmp(key, "radius"))
         return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] %s: the grid comes from the seabed file (accepted: a "
@@ -337,6 +338,9 @@ static int sweep_param(parse_state *ps, const sweep_entry *e)
             for (size_t i = 0; i < sizeof SWEEP_DESIGN_KEYS / sizeof SWEEP_DESIGN_KEYS[0]; i++)
                 scn_suggest_try(&s, e->name, SWEEP_DESIGN_KEYS[i].name);
             char hint[96];
+            if (scn_renamed_key("run", e->name)[0])
+                return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] unknown key '%s'%s", e->name,
+                                   scn_renamed_key("run", e->name));
             if (s.best)
                 return scn_fail_at(ps, SW_ERR_PARSE, e->line, "[sweep] unknown key '%s'%s", e->name,
                                    scn_suggest_text(&s, hint, sizeof hint));

@@ -85,6 +85,30 @@ sw_status sw_seabed_grid(sw_scenario *sc, sw_error *err)
     return SW_OK;
 }
 
+/* Every depth read from the file within the limits the recipe's keys have: deep <= SW_SEABED_DEPTH_MAX_M,
+ * land_height <= SW_SEABED_HEIGHT_MAX_M (scenario_keys.c). The first cell beyond them (row by row from the
+ * south-west) is an error naming the scenario line, the file, the variable, the grid cell and its centre. */
+static sw_status seabed_file_range(const sw_scenario *sc, const char *path, const double *depth_m, sw_error *err)
+{
+    const sw_grid *g = &sc->grid;
+    for (size_t j = 0; j < g->ny; j++)
+        for (size_t i = 0; i < g->nx; i++) {
+            const double d = depth_m[j * g->nx + i];
+            if (d >= -SW_SEABED_HEIGHT_MAX_M && d <= SW_SEABED_DEPTH_MAX_M)
+                continue;
+            const int geo = sw_grid_geographic(g);
+            const double x = geo ? sw_grid_to_deg(g, sw_grid_xc(g, i)) : sw_grid_xc(g, i);
+            const double y = geo ? sw_grid_to_deg(g, sw_grid_yc(g, j)) : sw_grid_yc(g, j);
+            return sw_fail(err, SW_ERR_RANGE, "%s:%d: [seabed] file: %s: variable '%s' gives depth %g m at grid "
+                           "cell i = %zu, j = %zu (x = %g %s, y = %g %s), %s (accepted: -%g m <= depth <= %g m, "
+                           "the limits of [seabed] land_height and deep)", sc->path, sc->bed_line, path,
+                           bed_variable(sc), d, i, j, x, geo ? "deg" : "m", y, geo ? "deg" : "m",
+                           d > 0 ? "deeper than any sea" : "higher than any land", SW_SEABED_HEIGHT_MAX_M,
+                           SW_SEABED_DEPTH_MAX_M);
+        }
+    return SW_OK;
+}
+
 /* Depth from the file: values converted from the file's sign convention (the scenario's
  * `positive` wins over the variable's attribute); land from missing values or the mask at depth 0. */
 static sw_status seabed_from_file(const sw_scenario *sc, double *depth_m, sw_seabed_info *info, sw_error *err)
@@ -136,7 +160,7 @@ static sw_status seabed_from_file(const sw_scenario *sc, double *depth_m, sw_sea
             info->land_missing++;
     }
     free(land);
-    return SW_OK;
+    return seabed_file_range(sc, path, depth_m, err);
 }
 
 /* The recipe's settings, with the defaults docs/scenario.md gives for values left at 0 by a

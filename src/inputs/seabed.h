@@ -14,6 +14,12 @@
 #include "base/status.h"
 #include "inputs/scenario.h"
 
+/* The depths a seabed accepts, m, the same whether the recipe's keys or a file give them: down to
+ * 12 km ([seabed] deep <= 12 km; the deepest trench is about 10.9 km [memory]) and up to 9 km of land
+ * ([seabed] land_height <= 9 km; the highest summit is about 8.8 km [memory]). */
+#define SW_SEABED_DEPTH_MAX_M 12000.0
+#define SW_SEABED_HEIGHT_MAX_M 9000.0
+
 /* Fills sc->grid from the seabed file when the scenario has no [grid] section (sc->has_grid == 0):
  * the grid becomes the file's grid (ncinput.h: coordinate variables evenly spaced and monotonic, in
  * metres, or latitude and longitude in degrees, which make the grid geographic with radius
@@ -34,8 +40,9 @@ typedef struct {
  * beyond the outer centres takes the edge value, so a refined grid over the file's area reads it),
  * converting elevation (positive up) to depth. A cell whose nearest file point is land by a missing
  * value (sc->bed_missing_land) or by the land mask (sc->bed_land_mask) gets depth 0: land for every
- * min_depth (> 0). NaN/Inf or a missing value otherwise is an error naming the variable and the first
- * bad index. Without a file: evaluates the recipe (base profile, then features in file order); on a
+ * min_depth (> 0). NaN/Inf, a missing value otherwise or an unpacking overflow is an error naming the
+ * variable and the first bad index; so is a depth beyond -SW_SEABED_HEIGHT_MAX_M .. SW_SEABED_DEPTH_MAX_M
+ * (naming the grid cell and its centre). Without a file: evaluates the recipe (base profile, then features in file order); on a
  * geographic grid its lengths are true distances on the sphere (seabed.c).
  * info (may be NULL) receives the land counts (0 without a file). On failure depth_m and *info hold no
  * meaningful values; err names the scenario line, the file and the variable. */

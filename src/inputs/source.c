@@ -135,9 +135,15 @@ static sw_status source_add_file(const sw_scenario *sc, const sw_source_spec *s,
     sw_grid g = sc->grid;
     g.x0_m -= s->x_offset_m;
     g.y0_m -= s->y_offset_m;
-    st = sw_ncin_read(path, s->variable[0] ? s->variable : "eta", &g, SW_NCIN_OUTSIDE_ZERO, tmp, NULL, err);
+    const double scale = s->scale != 0.0 ? s->scale : 1.0;   /* 0 = unset, in a spec built by hand */
+    /* the file's displacement, scaled, within the limit of an analytic source's amplitude */
+    char accepted[160];
+    snprintf(accepted, sizeof accepted, "|scale x displacement| <= %g m, the limit of [source] amplitude; with "
+             "scale = %g: |displacement| <= %g m", SW_SOURCE_FILE_MAX_M, scale, SW_SOURCE_FILE_MAX_M / fabs(scale));
+    const sw_ncin_options opt = {.outside = SW_NCIN_OUTSIDE_ZERO, .range_lo = -SW_SOURCE_FILE_MAX_M / fabs(scale),
+                                 .range_hi = SW_SOURCE_FILE_MAX_M / fabs(scale), .range_accepted = accepted};
+    st = sw_ncin_read_with(path, s->variable[0] ? s->variable : "eta", &g, &opt, tmp, err);
     if (st == SW_OK) {
-        const double scale = s->scale != 0.0 ? s->scale : 1.0;   /* 0 = unset, in a spec built by hand */
         for (size_t k = 0; k < n; k++)
             eta[k] += scale * tmp[k];
     } else {
@@ -247,4 +253,136 @@ sw_status sw_source_build(const sw_scenario *sc, const sw_fault_set *faults, con
         }
     }
     return source_add_faults(sc, faults, depth_m, min_depth_m, eta0_m, faults_eta_m, err);
+}
+
+/* ---- what each source keeps: its displaced volume asked, on the grid, in the water ------------------ */
+
+/* The integral of |eta| over the plane of analytic source s, m^3 (its shape's own lengths: on a sphere the
+ * azimuthal equidistant plane about its centre, whose areas differ from the sphere's by less than
+ * (d / R)^2 / 3 at distance d [derived]). Hump and ellipse: |A| pi L W (the Gaussian integral
+ * int exp(-x^2) dx = sqrt(pi)). Pair: the along-axis factor L sqrt(pi) times the across-axis integral of
+ * |A exp(-((v - h) / W)^2) - T exp(-((v + h) / W)^2)|, by the midpoint rule over h + 8 W either side
+ * (8000 points; the tails beyond weigh less than exp(-64)). -1 for a file source. */
+static double source_asked(const sw_source_spec *s)
+{
+    const double sqrt_pi = 1.77245385090551602729;
+    switch (s->shape) {
+    case SW_SOURCE_HUMP:
+        return fabs(s->amplitude_m) * SOURCE_PI * s->radius_m * s->radius_m;
+    case SW_SOURCE_ELLIPSE:
+        return fabs(s->amplitude_m) * SOURCE_PI * s->length_m * s->width_m;
+    case SW_SOURCE_PAIR: {
+        const double h = 0.5 * s->separation_m, W = s->width_m;
+        const double trough = s->trough_m != 0.0 ? s->trough_m : s->amplitude_m;
+        const double a = -h - 8 * W, b = h + 8 * W;
+        const size_t n = 8000;
+        const double dv = (b - a) / (double)n;
+        double sum = 0;
+        for (size_t k = 0; k < n; k++) {
+            const double v = a + ((double)k + 0.5) * dv, p = (v - h) / W, q = (v + h) / W;
+            sum += fabs(s->amplitude_m * exp(-p * p) - trough * exp(-q * q));
+        }
+        return s->length_m * sqrt_pi * sum * dv;
+    }
+    default:
+        return -1;
+    }
+}
+
+/* The integrals of |eta| over every cell of g and over its water cells (depth_m >= min_depth_m) into
+ * *grid_m3 and *water_m3, a cell weighing dx dy cos(latitude of its centre) (1 on a projected grid). */
+static void source_sums(const sw_grid *g, const double *eta, const double *depth_m, double min_depth_m,
+                        double *grid_m3, double *water_m3)
+{
+    double all = 0, water = 0;
+    for (size_t j = 0; j < g->ny; j++) {
+        const double area = g->dx_m * g->dy_m * sw_grid_cos_lat(g, sw_grid_yc(g, j));
+        double ra = 0, rw = 0;
+        for (size_t i = 0; i < g->nx; i++) {
+            const size_t k = j * g->nx + i;
+            ra += fabs(eta[k]);
+            if (depth_m[k] >= min_depth_m)
+                rw += fabs(eta[k]);
+        }
+        all += ra * area;
+        water += rw * area;
+    }
+    *grid_m3 = all;
+    *water_m3 = water;
+}
+
+/* Source s alone into eta (zeroed first): the same shapes and file reading as sw_source_build. */
+static sw_status source_alone(const sw_scenario *sc, const sw_source_spec *s, double *eta, sw_error *err)
+{
+    const sw_grid *g = &sc->grid;
+    memset(eta, 0, sw_grid_cells(g) * sizeof *eta);
+    sw_status st = source_check(sc, s, err);
+    if (st != SW_OK)
+        return st;
+    const double a = s->angle_deg * SOURCE_PI / 180.0, ca = cos(a), sa = sin(a);
+    if (s->shape == SW_SOURCE_FILE)
+        return source_add_file(sc, s, eta, err);
+    if (sw_grid_geographic(g)) {
+        source_add_sphere(g, s, ca, sa, eta);
+        return SW_OK;
+    }
+    const double h = 0.5 * s->separation_m, trough = s->trough_m != 0.0 ? s->trough_m : s->amplitude_m;
+    switch (s->shape) {
+    case SW_SOURCE_HUMP:
+        source_add_ellipse(g, s->x_m, s->y_m, s->amplitude_m, s->radius_m, s->radius_m, 1.0, 0.0, eta);
+        break;
+    case SW_SOURCE_ELLIPSE:
+        source_add_ellipse(g, s->x_m, s->y_m, s->amplitude_m, s->length_m, s->width_m, ca, sa, eta);
+        break;
+    case SW_SOURCE_PAIR:
+        source_add_ellipse(g, s->x_m - h * sa, s->y_m + h * ca, s->amplitude_m, s->length_m, s->width_m, ca, sa, eta);
+        source_add_ellipse(g, s->x_m + h * sa, s->y_m - h * ca, -trough, s->length_m, s->width_m, ca, sa, eta);
+        break;
+    default:
+        break;
+    }
+    return SW_OK;
+}
+
+sw_status sw_source_budgets(const sw_scenario *sc, const double *depth_m, double min_depth_m,
+                            const double *faults_eta_m, sw_source_budget *out, size_t *n_out, sw_error *err)
+{
+    *n_out = 0;
+    const sw_grid *g = &sc->grid;
+    const size_t n = sw_grid_cells(g);
+    double *eta = malloc(n * sizeof *eta);
+    if (!eta)
+        return sw_fail(err, SW_ERR_NOMEM, "%s: out of memory for a source's field on %zu cells", sc->path, n);
+    sw_status st = SW_OK;
+    for (size_t m = 0; m < sc->n_sources && m < SW_MAX_SOURCES && st == SW_OK; m++) {
+        const sw_source_spec *s = &sc->sources[m];
+        sw_source_budget *b = &out[*n_out];
+        memset(b, 0, sizeof *b);
+        snprintf(b->name, sizeof b->name, "%s", s->name);
+        b->line = s->line;
+        st = source_alone(sc, s, eta, err);
+        if (st != SW_OK)
+            break;
+        source_sums(g, eta, depth_m, min_depth_m, &b->grid_m3, &b->water_m3);
+        const double asked = source_asked(s);
+        b->asked_known = asked >= 0;
+        /* the quadrature can fall a hair short of the grid's sum when all of it is inside */
+        b->asked_m3 = asked >= 0 ? fmax(asked, b->grid_m3) : b->grid_m3;
+        (*n_out)++;
+    }
+    if (st == SW_OK && faults_eta_m) {
+        sw_source_budget *b = &out[*n_out];
+        memset(b, 0, sizeof *b);
+        snprintf(b->name, sizeof b->name, "faults");
+        source_sums(g, faults_eta_m, depth_m, min_depth_m, &b->grid_m3, &b->water_m3);
+        b->asked_m3 = b->grid_m3;
+        (*n_out)++;
+    }
+    free(eta);
+    return st;
+}
+
+double sw_source_lost_fraction(const sw_source_budget *b)
+{
+    return b->asked_m3 > 0 ? fmax(0.0, 1.0 - b->water_m3 / b->asked_m3) : 0.0;
 }

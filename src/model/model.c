@@ -79,13 +79,24 @@ void sw_model_put(const sw_model *m, void *f, size_t k, double x)
         ((double *)f)[k] = x;
 }
 
-/* Stability uses the channel formula when the grid is one cell across. */
+int sw_model_dims(const sw_grid *g, const sw_edge_kind edges[4])
+{
+    const int closed_ns = edges[SW_SOUTH] != SW_EDGE_OPEN && edges[SW_SOUTH] != SW_EDGE_LEVEL
+                          && edges[SW_NORTH] != SW_EDGE_OPEN && edges[SW_NORTH] != SW_EDGE_LEVEL;
+    const int closed_we = edges[SW_WEST] != SW_EDGE_OPEN && edges[SW_WEST] != SW_EDGE_LEVEL
+                          && edges[SW_EAST] != SW_EDGE_OPEN && edges[SW_EAST] != SW_EDGE_LEVEL;
+    return (g->ny == 1 && closed_ns) || (g->nx == 1 && closed_we) ? 1 : 2;
+}
+
+/* dims 1: the channel formula along the grid's long axis (y when the grid is one column wide, else x);
+ * dims 2: the plane's. An open or level edge across a one-cell-wide grid moves its ghost cell, a wave
+ * across the channel, so such grids need the plane's limit (sw_model_dims says which). */
 static double max_frequency_for(const sw_layout *layout, const sw_grid *g, double gh, int dims)
 {
-    if (dims == 1 || g->ny == 1)
-        return layout->max_frequency(gh, g->dx_m, g->dy_m, 1);
-    if (g->nx == 1)
+    if (dims == 1 && g->nx == 1 && g->ny > 1)
         return layout->max_frequency(gh, g->dy_m, g->dx_m, 1);
+    if (dims == 1)
+        return layout->max_frequency(gh, g->dx_m, g->dy_m, 1);
     return layout->max_frequency(gh, g->dx_m, g->dy_m, 2);
 }
 
@@ -443,7 +454,7 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
                        cfg->min_depth_m);
     const double f_max = sw_terms_f_max(&cfg->terms, g->y0_m, g->y0_m + (double)g->ny * g->dy_m, g->radius_m);
     double dt_max = sw_terms_dt_limit(sw_model_dt_limit(cfg->layout, g, cfg->depth_m, cfg->min_depth_m,
-                                                        cfg->gravity_ms2, 2), f_max);
+                                                        cfg->gravity_ms2, sw_model_dims(g, cfg->edges)), f_max);
     if (cfg->dt_s > dt_max * (1.0 + 1e-12) && !cfg->allow_unstable) {
         double c = sw_model_courant(g, h_max, cfg->gravity_ms2, cfg->dt_s);
         double c_max = sw_model_courant(g, h_max, cfg->gravity_ms2, dt_max);

@@ -63,9 +63,15 @@ typedef struct {
     sw_precision precision;    /* of the state: SW_DOUBLE (the zero default) or SW_SINGLE (real.h) */
 } sw_model_config;
 
+/* Which stability limit a grid needs: 1 (the channel's, along its long axis) when it is one cell across
+ * (ny == 1 or nx == 1) and both edges across it are walls or periodic; otherwise 2 (the plane's): an
+ * open or level edge across a one-cell-wide grid lets a wave run across it. */
+int sw_model_dims(const sw_grid *g, const sw_edge_kind edges[4]);
+
 /* The largest stable time step (s) for `layout` on the given depth field: 2 / max_frequency at the
- * deepest water cell (on a geographic grid the least over rows, sw_model_dt_limit_row). Returns 0 when
- * there is no water cell. */
+ * deepest water cell (on a geographic grid the least over rows, sw_model_dt_limit_row); dims 1 for the
+ * channel formula along the grid's long axis, 2 for the plane (sw_model_dims chooses for a real grid).
+ * Returns 0 when there is no water cell. */
 double sw_model_dt_limit(const sw_layout *layout, const sw_grid *g, const double *depth_m,
                          double min_depth_m, double gravity_ms2, int dims);
 

@@ -32,7 +32,7 @@ struct sw_gauges {
 static void axis_weights(double c, double origin, double d, size_t n, size_t *lo, size_t *hi, double *f)
 {
     double p = (c - origin) / d - 0.5;   /* position in units of cells from the first centre */
-    if (n == 1 || p <= 0) {
+    if (n == 1 || !(p > 0)) {   /* NaN too: the cast below needs a value in range */
         *lo = *hi = 0;
         *f = 0;
         return;
@@ -274,3 +274,13 @@ void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m)
 
 sw_gauge_stats sw_gauges_stats(const sw_gauges *gs, size_t q) { return gs->stats[q]; }
 const char *sw_gauges_name(const sw_gauges *gs, size_t q) { return gs->names[q]; }
+
+double sw_gauges_next_time(double next_s, double now_s, double interval_s)
+{
+    const double reached = now_s + 1e-9 * interval_s;
+    for (int k = 0; k < 4 && next_s <= reached; k++)   /* one or two additions for an interval >= dt */
+        next_s += interval_s;
+    if (next_s <= reached)   /* an interval far below the step (or the rounding of now): sample every step */
+        next_s = fmax(reached + interval_s, nextafter(reached, INFINITY));
+    return next_s;
+}

@@ -60,6 +60,17 @@ double sw_gauges_depth(const sw_gauges *gs, size_t q);
 /* 1 if no water cell surrounds gauge q (its series is NaN). */
 int sw_gauges_dry(const sw_gauges *gs, size_t q);
 
+/* The sampling schedule shared by gauges and snapshots (run.c observes, setup.c counts the same way):
+ * after a sample at model time now_s, the next multiple of interval_s (s, > 0) to wait for, starting
+ * from the previous one, next_s. Multiples within 1e-9 of the interval of now_s count as reached. An
+ * observer samples at the first step at or after each multiple, so at most once per step: an interval
+ * shorter than the step samples at every step. For an interval that needs more than a few additions
+ * to pass now_s (shorter than a third of the step, or below the rounding of now_s) the result is the
+ * next representable time after now_s (plus the interval when that is representable), which gives the
+ * same samples, so the call always ends after at most 4 additions. Returns a time > now_s + 1e-9
+ * interval_s. */
+double sw_gauges_next_time(double next_s, double now_s, double interval_s);
+
 /* Bilinear depth at (x, y) from a [ny * nx] field on grid g (for plans, before a model exists). */
 double sw_gauges_depth_at(const sw_grid *g, const double *depth_m, double x_m, double y_m);
 

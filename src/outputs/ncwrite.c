@@ -245,6 +245,7 @@ static void ncw_globals(ncw_file *f, const sw_run_meta *m)
     ncw_double(f, NC_GLOBAL, "time_step_s", m->dt_s);
     ncw_double(f, NC_GLOBAL, "courant_number", m->courant);
     ncw_double(f, NC_GLOBAL, "courant_limit", m->courant_limit);
+    ncw_double(f, NC_GLOBAL, "courant_fraction", m->courant / m->courant_limit);
     ncw_double(f, NC_GLOBAL, "arrival_threshold_m", m->arrival_threshold_m);
     ncw_double(f, NC_GLOBAL, "gravity_m_s2", m->gravity_ms2);
     ncw_terms(f, m->terms);
@@ -514,20 +515,20 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
     const int geo = pg && sw_grid_geographic(pg);
     int v_x, v_y;
     if (geo) {
-        v_x = ncw_var(&f, "lon", NC_DOUBLE, 1, &d_station);
+        v_x = ncw_var(&f, "station_lon", NC_DOUBLE, 1, &d_station);
         ncw_text(&f, v_x, "standard_name", "longitude");
         ncw_text(&f, v_x, "long_name", "gauge longitude");
         ncw_text(&f, v_x, "units", "degrees_east");
-        v_y = ncw_var(&f, "lat", NC_DOUBLE, 1, &d_station);
+        v_y = ncw_var(&f, "station_lat", NC_DOUBLE, 1, &d_station);
         ncw_text(&f, v_y, "standard_name", "latitude");
         ncw_text(&f, v_y, "long_name", "gauge latitude");
         ncw_text(&f, v_y, "units", "degrees_north");
     } else {
-        v_x = ncw_var(&f, "x", NC_DOUBLE, 1, &d_station);
+        v_x = ncw_var(&f, "station_x", NC_DOUBLE, 1, &d_station);
         ncw_text(&f, v_x, "standard_name", "projection_x_coordinate");
         ncw_text(&f, v_x, "long_name", "gauge x position");
         ncw_text(&f, v_x, "units", "m");
-        v_y = ncw_var(&f, "y", NC_DOUBLE, 1, &d_station);
+        v_y = ncw_var(&f, "station_y", NC_DOUBLE, 1, &d_station);
         ncw_text(&f, v_y, "standard_name", "projection_y_coordinate");
         ncw_text(&f, v_y, "long_name", "gauge y position");
         ncw_text(&f, v_y, "units", "m");
@@ -569,7 +570,8 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
         ncw_text(&f, v_series[k], "standard_name", standard_name);
         ncw_text(&f, v_series[k], "long_name", series[k].long_name);
         ncw_text(&f, v_series[k], "units", series[k].units);
-        ncw_text(&f, v_series[k], "coordinates", geo ? "time lat lon station_name" : "time x y station_name");
+        ncw_text(&f, v_series[k], "coordinates", geo ? "time station_lat station_lon station_name"
+                                                     : "time station_y station_x station_name");
         if (has_crs)
             ncw_text(&f, v_series[k], "grid_mapping", NCW_CRS_VAR);
     }
@@ -587,13 +589,13 @@ sw_status sw_ncw_gauges(const char *path, const sw_run_meta *meta, const sw_gaug
                 deg[s] = isnan(gt->x_m[s]) ? NAN : sw_grid_to_deg(pg, gt->x_m[s]);
                 deg[gt->n_stations + s] = isnan(gt->y_m[s]) ? NAN : sw_grid_to_deg(pg, gt->y_m[s]);
             }
-            ncw_put_doubles(&f, v_x, "lon", deg, gt->n_stations, scratch);
-            ncw_put_doubles(&f, v_y, "lat", deg + gt->n_stations, gt->n_stations, scratch);
+            ncw_put_doubles(&f, v_x, "station_lon", deg, gt->n_stations, scratch);
+            ncw_put_doubles(&f, v_y, "station_lat", deg + gt->n_stations, gt->n_stations, scratch);
             free(deg);
         }
     } else {
-        ncw_put_doubles(&f, v_x, "x", gt->x_m, gt->n_stations, scratch);
-        ncw_put_doubles(&f, v_y, "y", gt->y_m, gt->n_stations, scratch);
+        ncw_put_doubles(&f, v_x, "station_x", gt->x_m, gt->n_stations, scratch);
+        ncw_put_doubles(&f, v_y, "station_y", gt->y_m, gt->n_stations, scratch);
     }
     ncw_put_doubles(&f, v_depth, "depth", gt->depth_m, gt->n_stations, scratch);
     if (f.rc == SW_OK)

@@ -236,6 +236,160 @@ static void add_faults(cJSON *o, const sw_setup *s)
     cJSON_AddNumberToObject(e, "memory_bytes", (double)fs->run_bytes);
 }
 
+/* ---- the source: what the plan and its JSON say about the initial sea surface ------------------------ */
+
+/* A position (x, y) in metres as text: "lon 141.2 deg, lat 38.1 deg" on a geographic grid, "x 10 km, y 12 km"
+ * otherwise. */
+static void place_text(const sw_grid *g, double x, double y, char *buf, size_t n)
+{
+    if (sw_grid_geographic(g))
+        snprintf(buf, n, "lon %.5g deg, lat %.5g deg", sw_grid_to_deg(g, x), sw_grid_to_deg(g, y));
+    else
+        snprintf(buf, n, "x %.4g km, y %.4g km", x / 1000, y / 1000);
+}
+
+/* What the initial surface is, in words: of t = 0, or of the final static surface of a rupture in time; "no
+ * initial displacement" when nothing moves at t = 0. */
+static const char *source_of(const sw_scenario *sc, const sw_setup *s)
+{
+    const sw_source_summary *o = &s->source;
+    if (!o->any)
+        return has_forcing(sc) ? "no initial displacement (the forcing drives the run)" : "no initial displacement";
+    return o->final_surface ? "final static surface (every fault segment at its full slip)" : "initial surface";
+}
+
+/* The warning for budget b into buf ("" when it keeps all but SW_SOURCE_WARN_LOST of its volume): the share
+ * lost and where it goes, on land (before the model zeroes land cells) or outside the grid. */
+static void budget_warning(const sw_source_budget *b, char *buf, size_t n)
+{
+    buf[0] = '\0';
+    const double lost = sw_source_lost_fraction(b);
+    if (!(lost > SW_SOURCE_WARN_LOST))
+        return;
+    const double land = fmax(0.0, b->grid_m3 - b->water_m3), off = fmax(0.0, b->asked_m3 - b->grid_m3);
+    char who[SW_NAME_MAX + 16];
+    if (b->line > 0)
+        snprintf(who, sizeof who, "source '%s'", b->name);
+    else
+        snprintf(who, sizeof who, "the faults");
+    if (off <= 0.01 * land)
+        snprintf(buf, n, "%s: %.0f %% of its displaced volume falls on land (%.2g of %.2g m^3)", who, 100 * lost,
+                 land, b->asked_m3);
+    else if (land <= 0.01 * off)
+        snprintf(buf, n, "%s: %.0f %% of its displaced volume falls outside the grid (%.2g of %.2g m^3)", who,
+                 100 * lost, off, b->asked_m3);
+    else
+        snprintf(buf, n, "%s: %.0f %% of its displaced volume is lost: %.2g m^3 on land and %.2g m^3 outside the "
+                 "grid, of %.2g m^3", who, 100 * lost, land, off, b->asked_m3);
+}
+
+/* The plan's Source lines: the peaks and where, the extent, the displaced volume, and a warning per source
+ * that loses more than SW_SOURCE_WARN_LOST of its volume. */
+static void print_source(FILE *f, const sw_scenario *sc, const sw_setup *s)
+{
+    const sw_source_summary *o = &s->source;
+    const sw_grid *g = &s->grid;
+    if (!o->any) {
+        fprintf(f, "Source     %s\n", source_of(sc, s));
+        return;
+    }
+    char up[80], down[80], box[128];
+    place_text(g, o->uplift_x_m, o->uplift_y_m, up, sizeof up);
+    place_text(g, o->subsidence_x_m, o->subsidence_y_m, down, sizeof down);
+    if (sw_grid_geographic(g))
+        snprintf(box, sizeof box, "lon %.5g to %.5g deg, lat %.5g to %.5g deg", sw_grid_to_deg(g, o->x0_m),
+                 sw_grid_to_deg(g, o->x1_m), sw_grid_to_deg(g, o->y0_m), sw_grid_to_deg(g, o->y1_m));
+    else
+        snprintf(box, sizeof box, "x %.4g to %.4g km, y %.4g to %.4g km", o->x0_m / 1000, o->x1_m / 1000,
+                 o->y0_m / 1000, o->y1_m / 1000);
+    fprintf(f, "Source     %s over water: uplift %.3g m", source_of(sc, s), o->uplift_m);
+    if (o->uplift_m > 0)
+        fprintf(f, " at %s", up);
+    fprintf(f, ", subsidence %.3g m", o->subsidence_m);
+    if (o->subsidence_m < 0)
+        fprintf(f, " at %s", down);
+    fprintf(f, "\n           extent: %.3g km^2 of cells with |eta| above %.2g m (%g %% of the peak), in %s\n",
+            o->area_m2 / 1e6, o->threshold_m, 100 * SW_SOURCE_EXTENT_SHARE, box);
+    fprintf(f, "           displaced volume %.3g m^3 (raised %.3g m^3, lowered %.3g m^3)\n", o->volume_m3,
+            o->positive_m3, o->negative_m3);
+    for (size_t q = 0; q < o->n_budgets; q++) {
+        char w[SW_NAME_MAX + 200];
+        budget_warning(&o->budget[q], w, sizeof w);
+        if (w[0])
+            fprintf(f, "           warning: %s\n", w);
+    }
+}
+
+/* "source": the plan's figures on the initial surface and each source's volume asked against kept. */
+static void add_source(cJSON *o, const sw_scenario *sc, const sw_setup *s)
+{
+    const sw_source_summary *so = &s->source;
+    const sw_grid *g = &s->grid;
+    const int geo = sw_grid_geographic(g);
+    cJSON *e = cJSON_AddObjectToObject(o, "source");
+    cJSON_AddStringToObject(e, "surface", source_of(sc, s));
+    cJSON_AddBoolToObject(e, "displaced", so->any);
+    cJSON_AddBoolToObject(e, "final_surface", so->final_surface);
+    cJSON_AddNumberToObject(e, "uplift_max_m", so->uplift_m);
+    cJSON_AddNumberToObject(e, "subsidence_max_m", so->subsidence_m);
+    struct { const char *key; double x, y; int on; } at[] = {
+        { "uplift_at", so->uplift_x_m, so->uplift_y_m, so->uplift_m > 0 },
+        { "subsidence_at", so->subsidence_x_m, so->subsidence_y_m, so->subsidence_m < 0 },
+    };
+    for (size_t q = 0; q < 2; q++) {
+        if (!at[q].on) {
+            cJSON_AddNullToObject(e, at[q].key);
+            continue;
+        }
+        cJSON *p = cJSON_AddObjectToObject(e, at[q].key);
+        cJSON_AddNumberToObject(p, "x_m", at[q].x);
+        cJSON_AddNumberToObject(p, "y_m", at[q].y);
+        if (geo) {
+            cJSON_AddNumberToObject(p, "lon_deg", sw_grid_to_deg(g, at[q].x));
+            cJSON_AddNumberToObject(p, "lat_deg", sw_grid_to_deg(g, at[q].y));
+        }
+    }
+    cJSON_AddNumberToObject(e, "extent_threshold_m", so->threshold_m);
+    cJSON_AddNumberToObject(e, "extent_area_m2", so->area_m2);
+    if (so->any) {
+        cJSON *b = cJSON_AddObjectToObject(e, "extent_box");
+        cJSON_AddNumberToObject(b, "x0_m", so->x0_m);
+        cJSON_AddNumberToObject(b, "x1_m", so->x1_m);
+        cJSON_AddNumberToObject(b, "y0_m", so->y0_m);
+        cJSON_AddNumberToObject(b, "y1_m", so->y1_m);
+        if (geo) {
+            cJSON_AddNumberToObject(b, "lon_west_deg", sw_grid_to_deg(g, so->x0_m));
+            cJSON_AddNumberToObject(b, "lon_east_deg", sw_grid_to_deg(g, so->x1_m));
+            cJSON_AddNumberToObject(b, "lat_south_deg", sw_grid_to_deg(g, so->y0_m));
+            cJSON_AddNumberToObject(b, "lat_north_deg", sw_grid_to_deg(g, so->y1_m));
+        }
+    } else {
+        cJSON_AddNullToObject(e, "extent_box");
+    }
+    cJSON_AddNumberToObject(e, "volume_m3", so->volume_m3);
+    cJSON_AddNumberToObject(e, "volume_raised_m3", so->positive_m3);
+    cJSON_AddNumberToObject(e, "volume_lowered_m3", so->negative_m3);
+    cJSON *bs = cJSON_AddArrayToObject(e, "sources");
+    cJSON *ws = cJSON_AddArrayToObject(e, "warnings");
+    for (size_t q = 0; q < so->n_budgets; q++) {
+        const sw_source_budget *bu = &so->budget[q];
+        cJSON *b = cJSON_CreateObject();
+        if (!b)
+            break;
+        cJSON_AddStringToObject(b, "name", bu->name);
+        cJSON_AddBoolToObject(b, "asked_over_plane", bu->asked_known);
+        cJSON_AddNumberToObject(b, "asked_m3", bu->asked_m3);
+        cJSON_AddNumberToObject(b, "on_grid_m3", bu->grid_m3);
+        cJSON_AddNumberToObject(b, "in_water_m3", bu->water_m3);
+        cJSON_AddNumberToObject(b, "lost_fraction", sw_source_lost_fraction(bu));
+        cJSON_AddItemToArray(bs, b);
+        char w[SW_NAME_MAX + 200];
+        budget_warning(bu, w, sizeof w);
+        if (w[0])
+            cJSON_AddItemToArray(ws, cJSON_CreateString(w));
+    }
+}
+
 /* The plan's Grid line: the kind, the cells and their size, the extent (in degrees on a geographic grid)
  * and the water. */
 static void print_grid(FILE *f, const sw_setup *s)
@@ -308,6 +462,7 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
     print_terms(f, sc, s);
     print_forcing(f, sc, s);
     print_faults(f, s);
+    print_source(f, sc, s);
     sw_format_duration(sc->duration_s, buf, sizeof buf);
     fprintf(f, "Run        %s simulated in %lld steps; %zu gauge samples each; %zu snapshots\n", buf, s->n_steps,
             s->n_samples, s->n_snapshots);
@@ -486,14 +641,16 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
     add_terms(o, sc, s);
     add_forcing(o, sc, s);
     add_faults(o, s);
+    add_source(o, sc, s);
     cJSON *ws = cJSON_AddArrayToObject(o, "warnings");   /* the scenario-wide ones (scenario_warnings) */
     char w[2][160];
     const int nw = scenario_warnings(sc, s, w);
     for (int q = 0; q < nw; q++)
         cJSON_AddItemToArray(ws, cJSON_CreateString(w[q]));
     cJSON_AddNumberToObject(o, "dt_s", s->dt_s);
-    cJSON_AddNumberToObject(o, "courant", s->courant);
+    cJSON_AddNumberToObject(o, "courant_number", s->courant);
     cJSON_AddNumberToObject(o, "courant_limit", s->courant_limit);
+    cJSON_AddNumberToObject(o, "courant_fraction", s->courant / s->courant_limit);
     cJSON *lim = cJSON_AddObjectToObject(o, "dt_limit");
     cJSON_AddNumberToObject(lim, "dt_s", s->dt_limit_s);
     cJSON_AddNumberToObject(lim, "row", (double)s->dt_row);
@@ -504,6 +661,8 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
     cJSON_AddNumberToObject(lim, "cell_width_m", s->dt_row_width_m);
     cJSON_AddNumberToObject(o, "dims", s->dims);
     cJSON_AddNumberToObject(o, "steps", (double)s->n_steps);
+    cJSON_AddNumberToObject(o, "gauge_samples", (double)s->n_samples);
+    cJSON_AddNumberToObject(o, "snapshots", (double)s->n_snapshots);
     cJSON_AddNumberToObject(o, "duration_s", sc->duration_s);
     cJSON_AddNumberToObject(o, "memory_bytes", (double)s->total_bytes);
     if (rate && rate->cells_per_s > 0) {
@@ -625,7 +784,7 @@ char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_
         cJSON_AddNumberToObject(e, "x_m", g->x_m);
         cJSON_AddNumberToObject(e, "y_m", g->y_m);
         cJSON_AddNumberToObject(e, "depth_m", g->depth_m);
-        cJSON_AddBoolToObject(e, "dry", g->dry);
+        cJSON_AddBoolToObject(e, "on_land", g->dry);
         add_number_or_null(e, "arrival_s", g->arrival_s);
         add_number_or_null(e, "peak_m", g->peak_m);
         add_number_or_null(e, "peak_time_s", g->peak_time_s);

@@ -20,7 +20,12 @@ void sw_format_duration(double s, char *buf, size_t n);
  * forcing a `Forcing` line naming the storm, weather file or level series (and the storm's warning when
  * its centre never enters the domain, from s->storm), with [fault] sections a `Faults` line (sections,
  * segments, the total seismic moment and Mw, and on a second line when the rupture ends and the faults' peak
- * uplift and subsidence over water, of the initial surface or of the whole rupture: s->fault), steps, memory
+ * uplift and subsidence over water, of the initial surface or of the whole rupture: s->fault), `Source` lines
+ * (s->source: the peak uplift and subsidence over water and where, the extent above SW_SOURCE_EXTENT_SHARE of
+ * the peak, the displaced volume and its raised and lowered parts, of the final static surface when a rupture
+ * goes on in time, or "no initial displacement"; a warning per source that loses more than
+ * SW_SOURCE_WARN_LOST of its volume on land or outside the grid), steps, gauge samples and snapshots (as
+ * many as the files will hold), memory
  * (the forcing's or the rupture in time's share named), gauges
  * with their depth and warnings). With a rate (NULL or cells_per_s <= 0 = unknown: no
  * estimate), one line gives the estimated time, cells x steps / rate, with the rate and where it
@@ -38,7 +43,13 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
  * "warnings" (strings). It has "faults": null without [fault], else "sections", "segments", "kajiura_segments",
  * "horizontal_segments", "moment_nm", "magnitude_mw", "rupture_end_s", "peaks_of" ("initial surface" or
  * "whole rupture"), "uplift_max_m", "subsidence_max_m" (<= 0) and "memory_bytes" (a rupture in time's
- * share of the run's memory). With a rate it has "estimated_seconds", "rate_cells_per_s", "rate_source" ("cache" or "measured"),
+ * share of the run's memory). It has "source" (docs/scenario.md, "What check says about the source"):
+ * "surface", "displaced", "final_surface", "uplift_max_m", "subsidence_max_m", "uplift_at" and
+ * "subsidence_at" (x_m, y_m, and lon_deg, lat_deg on a geographic grid; null when none), "extent_threshold_m",
+ * "extent_area_m2", "extent_box" (null without displacement), "volume_m3", "volume_raised_m3",
+ * "volume_lowered_m3", "sources" (per source "name", "asked_over_plane", "asked_m3", "on_grid_m3",
+ * "in_water_m3", "lost_fraction") and "warnings"; and "gauge_samples" and "snapshots", the lengths of the
+ * time axes of gauges.nc and snapshots.nc. With a rate it has "estimated_seconds", "rate_cells_per_s", "rate_source" ("cache" or "measured"),
  * "rate_age_days", "rate_threads", "rate_cache_file" (null when none) and "rate_note" (null when none).
  * It always has "caution": the scenario's caution (sw_caution_for, run.h), and "warnings": strings for a
  * scenario where nothing moves the water and for one without gauges (the text plan prints them too). */

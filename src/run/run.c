@@ -149,7 +149,9 @@ static void snapshot_frame(run_ctx *c)
 }
 
 /* The observers at the model's present time, by one thread: gauges (watched always, sampled at
- * the interval and at the last step) and snapshots. Also used for the initial state. */
+ * the interval and at the last step) and snapshots. Also used for the initial state. Each samples at
+ * most once a call, and the next time to wait for is found in a bounded number of operations
+ * (sw_gauges_next_time), whatever the interval: an interval shorter than dt samples every step. */
 static void observe(run_ctx *c, int last)
 {
     sw_model *m = c->model;
@@ -165,13 +167,11 @@ static void observe(run_ctx *c, int last)
             sw_forcing_sample(c->forcing, now, c->air, c->air + n, c->air + 2 * n);
             sw_gauges_put_air(c->gauges, c->air, c->air + n, c->air + 2 * n);
         }
-        while (c->next_sample <= now + 1e-9 * c->sc->gauge_interval_s)
-            c->next_sample += c->sc->gauge_interval_s;
+        c->next_sample = sw_gauges_next_time(c->next_sample, now, c->sc->gauge_interval_s);
     }
     if (c->snaps && now >= c->next_snapshot - 1e-9 * c->sc->snapshot_interval_s) {
         snapshot_frame(c);
-        while (c->next_snapshot <= now + 1e-9 * c->sc->snapshot_interval_s)
-            c->next_snapshot += c->sc->snapshot_interval_s;
+        c->next_snapshot = sw_gauges_next_time(c->next_snapshot, now, c->sc->snapshot_interval_s);
     }
 }
 
@@ -405,7 +405,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
             *err = c.loop_err;
             rc = err->code;
         } else if (sw_tracker_nonfinite(c.tracker))
-            rc = sw_fail(err, SW_ERR_UNSTABLE, "the run blew up (non-finite elevation); reduce [run] courant "
+            rc = sw_fail(err, SW_ERR_UNSTABLE, "the run blew up (non-finite elevation); reduce [run] courant_fraction "
                          "or dt");
     }
     sw_map_set maps = {0};

@@ -11,6 +11,7 @@
 #include "model/model.h"
 #include "inputs/seabed.h"
 #include "inputs/source.h"
+#include "observers/gauges.h"
 #include "observers/tracker.h"
 
 void sw_setup_free(sw_setup *s)
@@ -192,12 +193,104 @@ static void fault_peaks(const sw_scenario *sc, sw_setup *s, const double *v)
     s->fault.subsidence_m = lo;
 }
 
+/* The peaks, extent and volume of surface v over the water cells of s into *o (its budgets untouched). */
+static void source_shape(const sw_scenario *sc, const sw_setup *s, const double *v, sw_source_summary *o)
+{
+    const sw_grid *g = &s->grid;
+    o->any = 0;
+    o->uplift_m = o->subsidence_m = 0;
+    o->uplift_x_m = o->uplift_y_m = o->subsidence_x_m = o->subsidence_y_m = 0;
+    o->threshold_m = o->area_m2 = o->volume_m3 = o->positive_m3 = o->negative_m3 = 0;
+    o->x0_m = o->x1_m = o->y0_m = o->y1_m = 0;
+    for (size_t j = 0; j < g->ny; j++)
+        for (size_t i = 0; i < g->nx; i++) {
+            const size_t k = j * g->nx + i;
+            if (!(s->depth_m[k] >= sc->min_depth_m))
+                continue;
+            if (v[k] > o->uplift_m) {
+                o->uplift_m = v[k];
+                o->uplift_x_m = sw_grid_xc(g, i);
+                o->uplift_y_m = sw_grid_yc(g, j);
+            }
+            if (v[k] < o->subsidence_m) {
+                o->subsidence_m = v[k];
+                o->subsidence_x_m = sw_grid_xc(g, i);
+                o->subsidence_y_m = sw_grid_yc(g, j);
+            }
+        }
+    const double peak = fmax(o->uplift_m, -o->subsidence_m);
+    if (!(peak > 0))
+        return;
+    o->any = 1;
+    o->threshold_m = SW_SOURCE_EXTENT_SHARE * peak;
+    size_t i0 = g->nx, i1 = 0, j0 = g->ny, j1 = 0;
+    for (size_t j = 0; j < g->ny; j++) {
+        const double area = g->dx_m * g->dy_m * sw_grid_cos_lat(g, sw_grid_yc(g, j));
+        double pos = 0, neg = 0;
+        size_t over = 0;
+        for (size_t i = 0; i < g->nx; i++) {
+            const size_t k = j * g->nx + i;
+            if (!(s->depth_m[k] >= sc->min_depth_m))
+                continue;
+            if (v[k] > 0)
+                pos += v[k];
+            else
+                neg += v[k];
+            if (fabs(v[k]) > o->threshold_m) {
+                over++;
+                i0 = i < i0 ? i : i0;
+                i1 = i > i1 ? i : i1;
+                j0 = j < j0 ? j : j0;
+                j1 = j > j1 ? j : j1;
+            }
+        }
+        o->positive_m3 += pos * area;
+        o->negative_m3 += neg * area;
+        o->area_m2 += (double)over * area;
+    }
+    o->volume_m3 = o->positive_m3 + o->negative_m3;
+    o->x0_m = g->x0_m + (double)i0 * g->dx_m;
+    o->x1_m = g->x0_m + (double)(i1 + 1) * g->dx_m;
+    o->y0_m = g->y0_m + (double)j0 * g->dy_m;
+    o->y1_m = g->y0_m + (double)(j1 + 1) * g->dy_m;
+}
+
+/* The first source that keeps less than SW_SOURCE_MIN_LEFT of its displaced volume in the water, as an error
+ * naming it and the figures; SW_OK when none. */
+static sw_status source_left(const sw_scenario *sc, const sw_source_summary *o, sw_error *err)
+{
+    for (size_t q = 0; q < o->n_budgets; q++) {
+        const sw_source_budget *b = &o->budget[q];
+        if (!(b->asked_m3 > 0) || b->water_m3 >= SW_SOURCE_MIN_LEFT * b->asked_m3)
+            continue;
+        const double off = b->asked_m3 - b->grid_m3;
+        char where[SW_PATH_MAX + SW_NAME_MAX + 48];
+        if (b->line > 0)
+            snprintf(where, sizeof where, "%s:%d: [source %s]", sc->path, b->line, b->name);
+        else
+            snprintf(where, sizeof where, "%s: [fault] sections", sc->path);
+        return sw_fail(err, SW_ERR_RANGE, "%s: nothing of its displaced volume is left in the water (%.3g of %.3g "
+                       "m^3; %.3g m^3 on land, %.3g m^3 outside the grid; accepted: at least %g %% in water "
+                       "cells, at least [seabed] min_depth = %g m deep)", where, b->water_m3, b->asked_m3,
+                       b->grid_m3 - b->water_m3, off > 0 ? off : 0.0, 100 * SW_SOURCE_MIN_LEFT, sc->min_depth_m);
+    }
+    return SW_OK;
+}
+
 sw_status sw_setup_sources(const sw_scenario *sc, sw_setup *s, sw_error *err)
 {
-    if (sc->n_faults == 0)
-        return sw_source_build(sc, &s->faults, s->depth_m, sc->min_depth_m, s->eta0_m, NULL, err);
+    sw_source_summary *o = &s->source;
+    memset(o, 0, sizeof *o);
+    if (sc->n_faults == 0) {
+        sw_status rc = sw_source_build(sc, &s->faults, s->depth_m, sc->min_depth_m, s->eta0_m, NULL, err);
+        if (rc == SW_OK)
+            rc = sw_source_budgets(sc, s->depth_m, sc->min_depth_m, NULL, o->budget, &o->n_budgets, err);
+        if (rc == SW_OK)
+            source_shape(sc, s, s->eta0_m, o);
+        return rc == SW_OK ? source_left(sc, o, err) : rc;
+    }
     const size_t n = sw_grid_cells(&s->grid);
-    double *f = malloc(n * sizeof *f);
+    double *f = malloc(n * sizeof *f), *all = NULL;
     if (!f)
         return sw_fail(err, SW_ERR_NOMEM, "out of memory for the faults' sea surface on %zu x %zu cells", s->grid.nx,
                        s->grid.ny);
@@ -205,14 +298,28 @@ sw_status sw_setup_sources(const sw_scenario *sc, sw_setup *s, sw_error *err)
     if (rc == SW_OK) {
         fault_counts(sc, s);
         if (s->fault.whole_rupture) {   /* of the whole rupture: every segment at its full slip */
-            memset(f, 0, n * sizeof *f);
-            rc = sw_faults_surface(&s->faults, SW_FAULTS_ALL, &s->grid, s->depth_m, sc->min_depth_m, f, err);
+            all = calloc(n, sizeof *all);
+            rc = all ? sw_faults_surface(&s->faults, SW_FAULTS_ALL, &s->grid, s->depth_m, sc->min_depth_m, all, err)
+                     : sw_fail(err, SW_ERR_NOMEM, "out of memory for the rupture's final surface on %zu x %zu cells",
+                               s->grid.nx, s->grid.ny);
         }
     }
-    if (rc == SW_OK)
-        fault_peaks(sc, s, f);
+    const double *faults_final = all ? all : f;
+    if (rc == SW_OK) {
+        fault_peaks(sc, s, faults_final);
+        rc = sw_source_budgets(sc, s->depth_m, sc->min_depth_m, faults_final, o->budget, &o->n_budgets, err);
+    }
+    if (rc == SW_OK && all) {   /* the final static surface: eta0 less the instant faults, plus all of them */
+        for (size_t k = 0; k < n; k++)
+            f[k] = s->eta0_m[k] - f[k] + all[k];
+        source_shape(sc, s, f, o);
+        o->final_surface = 1;
+    } else if (rc == SW_OK) {
+        source_shape(sc, s, s->eta0_m, o);
+    }
     free(f);
-    return rc;
+    free(all);
+    return rc == SW_OK ? source_left(sc, o, err) : rc;
 }
 
 /* Where the time-step limit is reached (s->dt_row, from sw_model_dt_limit_row): the latitude of the row's
@@ -229,6 +336,38 @@ static void where_limit(const sw_grid *g, sw_setup *s)
     s->dt_row_lat_deg = sw_grid_to_deg(g, ys + 0.5 * g->dy_m);
     s->dt_row_width_m = g->dx_m * fmin(sw_grid_cos_lat(g, ys + 0.5 * g->dy_m),
                                        fmin(sw_grid_cos_lat(g, ys), sw_grid_cos_lat(g, ys + g->dy_m)));
+}
+
+/* The gauge samples (last_always = 1) or snapshots (0) a run of n_steps steps of dt (s) takes at interval
+ * (s), counted as run.c's observe takes them: at t = 0, at the first step whose time n dt (sw_model_tick)
+ * reaches the next multiple of the interval (less 1e-9 of it), skipping the multiples that step has passed,
+ * and for gauges at the last step when it is not already a sample. Walks sample by sample (not step by
+ * step), with run.c's very comparisons. */
+static size_t count_samples(long long n_steps, double dt, double interval, int last_always)
+{
+    const double eps = 1e-9 * interval;
+    size_t count = 1;          /* t = 0 */
+    double next = 0;
+    next = sw_gauges_next_time(next, 0, interval);   /* bounded, as run.c's observe */
+    long long last = 0;        /* the step of the latest sample */
+    while (last < n_steps) {
+        /* the first step n > last with n dt >= next - eps */
+        const double first = ceil((next - eps) / dt);   /* guarded: the cast needs a value in range */
+        long long n = first > (double)n_steps ? n_steps + 1 : (long long)first;
+        if (n <= last)
+            n = last + 1;
+        while (n > last + 1 && (double)(n - 1) * dt >= next - eps)
+            n--;
+        while ((double)n * dt < next - eps)
+            n++;
+        if (n > n_steps || (n == n_steps && last_always))   /* the last step is always a gauge sample */
+            return count + (last_always ? 1 : 0);
+        count++;
+        last = n;
+        const double now = (double)n * dt;
+        next = sw_gauges_next_time(next, now, interval);
+    }
+    return count;
 }
 
 sw_status sw_setup_derive(const sw_scenario *sc, sw_setup *s, const char *change, sw_error *err)
@@ -251,7 +390,7 @@ sw_status sw_setup_derive(const sw_scenario *sc, sw_setup *s, const char *change
     }
 
     /* dt from the Courant fraction, or the explicit dt checked against the limit */
-    s->dims = (g->nx == 1 || g->ny == 1) ? 1 : 2;
+    s->dims = sw_model_dims(g, sc->edges);
     s->dt_limit_s = sw_model_dt_limit_row(s->layout, g, s->depth_m, sc->min_depth_m, sc->gravity_ms2, s->dims,
                                           &s->dt_row);
     where_limit(g, s);
@@ -282,13 +421,12 @@ sw_status sw_setup_derive(const sw_scenario *sc, sw_setup *s, const char *change
 
     /* sizes */
     double steps = ceil(sc->duration_s / s->dt_s - 1e-9);
-    if (steps > 1e12)
+    if (!(steps <= 1e12))   /* also NaN: the cast below needs a value in range */
         return sw_fail(err, SW_ERR_RANGE, "%s: the run needs %.3g steps (duration %g s / dt %g s); "
                        "shorten the duration or coarsen the grid", sc->path, steps, sc->duration_s, s->dt_s);
     s->n_steps = (long long)steps;
-    double run_end = (double)s->n_steps * s->dt_s;
-    s->n_samples = (size_t)floor(run_end / sc->gauge_interval_s) + 2;
-    s->n_snapshots = sc->snapshot_interval_s > 0 ? (size_t)floor(run_end / sc->snapshot_interval_s) + 1 : 0;
+    s->n_samples = count_samples(s->n_steps, s->dt_s, sc->gauge_interval_s, 1);
+    s->n_snapshots = sc->snapshot_interval_s > 0 ? count_samples(s->n_steps, s->dt_s, sc->snapshot_interval_s, 0) : 0;
     s->model_bytes = sw_model_bytes_for(g, sc->precision, s->layout, &sc->terms);
     s->forcing_bytes = sw_setup_forcing_bytes(sc, s);
     s->total_bytes = sw_setup_total_bytes(sc, s);

@@ -12,6 +12,7 @@
 #include "base/status.h"
 #include "inputs/faults.h"
 #include "inputs/scenario.h"
+#include "inputs/source.h"
 #include "model/layout.h"
 
 /* Where a [storm]'s centre goes relative to the domain during the run: the plan warns when it never
@@ -41,6 +42,33 @@ typedef struct {
     size_t run_bytes;         /* what a rupture in time adds to a run's memory, bytes (0 when all at once) */
 } sw_fault_summary;
 
+/* The share of a source's displaced volume the water may lose before `check` warns, and the share that must
+ * be left in the water for a run to go ahead (docs/scenario.md, "What check says about the source"). */
+#define SW_SOURCE_WARN_LOST 0.01
+#define SW_SOURCE_MIN_LEFT 0.001
+/* The extent of the source: cells whose |eta| is above this share of the larger peak. */
+#define SW_SOURCE_EXTENT_SHARE 0.01
+
+/* The initial sea surface as the model holds it (water cells only: the model zeroes land), for `check`. */
+typedef struct {
+    int any;                  /* 1 when some water cell moves (|eta| > 0); the fields below are 0 otherwise */
+    int final_surface;        /* 1: of the final static surface of a rupture in time (every fault segment at its
+                               * full slip, the other sources as at t = 0); 0: of the surface at t = 0 */
+    double uplift_m;          /* the highest elevation over water, m (>= 0) */
+    double uplift_x_m, uplift_y_m;         /* the centre of its cell, m (arc metres on a geographic grid) */
+    double subsidence_m;      /* the lowest elevation over water, m (<= 0) */
+    double subsidence_x_m, subsidence_y_m; /* the centre of its cell, m */
+    double threshold_m;       /* SW_SOURCE_EXTENT_SHARE of max(uplift, -subsidence), m */
+    double x0_m, x1_m, y0_m, y1_m;         /* the bounding box of the water cells with |eta| > threshold_m (their
+                                            * edges), m */
+    double area_m2;           /* the area of those cells, m^2 (cells weigh dx dy cos(latitude)) */
+    double volume_m3;         /* the displaced volume: the sum of eta times cell area over water, m^3 */
+    double positive_m3;       /* the sum of its positive parts, m^3 (>= 0) */
+    double negative_m3;       /* the sum of its negative parts, m^3 (<= 0) */
+    size_t n_budgets;         /* entries of budget: the scenario's sources, then "faults" when there are some */
+    sw_source_budget budget[SW_MAX_SOURCES + 1];   /* each source asked against kept (sw_source_budgets) */
+} sw_source_summary;
+
 typedef struct {
     sw_grid grid;             /* the model grid (from [grid] or the seabed file) */
     const sw_layout *layout;  /* the chosen layout */
@@ -63,7 +91,7 @@ typedef struct {
                                * masked and missing counts here (sw_seabed_info) */
     int dims;                 /* 1 for a one-cell-wide channel, else 2 */
     long long n_steps;        /* steps to cover the duration */
-    size_t n_samples;         /* gauge samples the run will record, at most */
+    size_t n_samples;         /* gauge samples the run records: the length of the gauge file's time axis */
     size_t n_snapshots;       /* eta snapshots the run will write */
     size_t model_bytes;       /* memory of the model state, bytes (with a storm or weather file its two
                                * forcing slabs and their scratch included: sw_model_bytes_for) */
@@ -77,6 +105,8 @@ typedef struct {
                                * [fault]. The instant ones are in eta0_m; a run adds the others' motion
                                * with sw_faults_increment until sw_faults_end */
     sw_fault_summary fault;   /* their moment, magnitude, timing and peaks (sw_setup_sources) */
+    sw_source_summary source; /* the initial surface's peaks, extent and volume, and each source's volume asked
+                               * against kept (sw_setup_sources) */
 } sw_setup;
 
 /* Builds the setup for sc: grid (taken from the seabed file when sc has no [grid]; sc->grid is
@@ -96,8 +126,12 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err);
  * whole rupture (sw_faults_surface SW_FAULTS_ALL, one more evaluation) when some segments move later.
  * sw_setup_build calls it once the depth and the faults are known; a caller that changes the depth
  * afterwards (a sweep's depth_factor) calls it again when a fault uses the depth (Kajiura filter or the
- * horizontal term: sw_setup_faults_use_depth). Returns SW_OK or the failure (a source file, memory) with err
- * naming the file and line; s keeps its arrays either way. */
+ * horizontal term: sw_setup_faults_use_depth). Also fills s->source: the peaks, extent and volume of the
+ * surface over water (of the final static surface when a rupture goes on in time), and each source's
+ * displaced volume asked, on the grid and in the water (sw_source_budgets). Returns SW_OK or the failure (a
+ * source file, memory; SW_ERR_RANGE when a source keeps less than SW_SOURCE_MIN_LEFT of its volume in the
+ * water, naming the source, its line and the figures) with err naming the file and line; s keeps its
+ * arrays either way. */
 sw_status sw_setup_sources(const sw_scenario *sc, sw_setup *s, sw_error *err);
 
 /* 1 when a fault segment of s uses the depth (surface = kajiura or horizontal = on). */

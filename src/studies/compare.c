@@ -262,7 +262,7 @@ sw_status sw_compare_write_csv(const char *path, const sw_compare *cmp, sw_error
     /* one comment line first (readers skip it with comment='#'); the general caution, as the CSV has no
      * scenario to tell a surge run by: compare.md and the JSON carry the scenario's own */
     fprintf(f, "# %s\n", sw_caution());
-    fprintf(f, "layout,refine,status,nx,ny,dt_s,steps,wall_s,cell_updates_per_s,memory_bytes,courant,courant_limit,"
+    fprintf(f, "layout,refine,status,nx,ny,dt_s,steps,wall_s,cell_updates_per_s,memory_bytes,courant_number,courant_limit,"
                "noise_index,gauge,arrival_s,d_arrival_s,peak_m,d_peak_m\n");
     for (size_t q = 0; q < cmp->n_rows; q++) {
         const sw_compare_row *r = &cmp->rows[q];
@@ -315,7 +315,7 @@ char *sw_compare_json(const sw_scenario *sc, const sw_compare *cmp)
         cJSON_AddNumberToObject(e, "wall_s", r->wall_s);
         cJSON_AddNumberToObject(e, "cell_updates_per_s", r->cell_updates_per_s);
         cJSON_AddNumberToObject(e, "memory_bytes", (double)r->memory_bytes);
-        cJSON_AddNumberToObject(e, "courant", r->courant);
+        cJSON_AddNumberToObject(e, "courant_number", r->courant);
         cJSON_AddNumberToObject(e, "courant_limit", r->courant_limit);
         cJSON_AddNumberToObject(e, "noise_index", r->noise_index);
         cJSON *gs = cJSON_AddArrayToObject(e, "gauges");

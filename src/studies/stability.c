@@ -18,6 +18,10 @@
 #include <stdlib.h>
 #include <string.h>
 
+#ifndef CMPLX   /* C11 7.3.9.3; glibc defines it for gcc only: clang builds (tools/fuzz) take the builtin */
+#define CMPLX(x, y) __builtin_complex((double)(x), (double)(y))
+#endif
+
 #include "base/atomic_file.h"
 
 #define STAB_PI 3.14159265358979323846
@@ -422,7 +426,7 @@ static const char STAB_COMMENT[] =
     "above 1 the mode grows every step. phase_speed_ratio is the numerical frequency of the fastest mode "
     "(max |arg lambda| / dt) over the exact continuous frequency sqrt(f^2 + g h K^2), which is the ratio of "
     "numerical to exact phase speed; 1 is exact, below 1 the wave lags. Coordinates are k dx and l dy in "
-    "radians: pi is the 2-cell wave. courant = sqrt(g h) dt / dx, f_dt = Coriolis parameter times dt. "
+    "radians: pi is the 2-cell wave. courant_number = sqrt(g h) dt / dx, f_dt = Coriolis parameter times dt. "
     "See docs/stability.md.";
 
 /* Records a NetCDF failure once; returns 1 while nothing has failed. */
@@ -541,7 +545,7 @@ sw_status sw_stab_write_planes(const char *path, const sw_stab_plane *planes, si
     put_text(ncid, v_ky, "comment", "pi is the 2-cell wave along y, 0 the infinitely long wave", &st, err, path);
     int v_name = def_var(ncid, "layout_name", NC_CHAR, 2, dims_name, "grid layout (Arakawa letter)", NULL, &st,
                          err, path);
-    int v_c = def_var(ncid, "courant", NC_DOUBLE, 1, &d_layout,
+    int v_c = def_var(ncid, "courant_number", NC_DOUBLE, 1, &d_layout,
                       "Courant number sqrt(g h) dt / dx the plane is analysed at", "1", &st, err, path);
     int v_l1 = def_var(ncid, "courant_limit_1d", NC_DOUBLE, 1, &d_layout,
                        "Courant limit of waves along x (closed form, 2 / max frequency)", "1", &st, err, path);
@@ -573,7 +577,7 @@ sw_status sw_stab_write_planes(const char *path, const sw_stab_plane *planes, si
              &st, err, path);
     put_text(ncid, NC_GLOBAL, "history", history ? history : "", &st, err, path);
     put_text(ncid, NC_GLOBAL, "source", source, &st, err, path);
-    put_double(ncid, NC_GLOBAL, "courant", n_planes, per, &st, err, path);
+    put_double(ncid, NC_GLOBAL, "courant_number", n_planes, per, &st, err, path);
     put_double(ncid, NC_GLOBAL, "f_dt", 1, &f_dt, &st, err, path);
     put_text(ncid, NC_GLOBAL, "comment", STAB_COMMENT, &st, err, path);
     if (st == SW_OK)
@@ -586,7 +590,7 @@ sw_status sw_stab_write_planes(const char *path, const sw_stab_plane *planes, si
     if (st == SW_OK)
         nc_ok(nc_put_var_text(ncid, v_name, names), &st, err, path, "writing layout_name");
     if (st == SW_OK)
-        nc_ok(nc_put_var_double(ncid, v_c, per), &st, err, path, "writing courant");
+        nc_ok(nc_put_var_double(ncid, v_c, per), &st, err, path, "writing courant_number");
     if (st == SW_OK)
         nc_ok(nc_put_var_double(ncid, v_l1, per + n_planes), &st, err, path, "writing courant_limit_1d");
     if (st == SW_OK)

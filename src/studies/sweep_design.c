@@ -63,9 +63,24 @@ static const char *choice_word(const sw_sweep_param *p, double v)
     return v >= 0 && (size_t)v < n ? p->words[(size_t)v] : "?";
 }
 
-/* The exact text of value v for an override: every double round-trips through "%.17g". */
+/* The shortest of "%.15g", "%.16g" and "%.17g" that strtod reads back as exactly v, into buf (size n):
+ * 0.4 is written "0.4", not "0.40000000000000002" ("%.17g" always round-trips; IEEE 754 binary64 needs
+ * at most 17 significant digits [memory]). */
+static void shortest_text(double v, char *buf, size_t n)
+{
+    for (int digits = 15; digits <= 17; digits++) {
+        snprintf(buf, n, "%.*g", digits, v);
+        if (digits == 17 || strtod(buf, NULL) == v)
+            return;
+    }
+}
+
+/* The exact text of value v for an override: the shortest decimal that reads back as the same double
+ * (shortest_text), so the member scenario files show what a person would write. */
 void swp_override_text(const sw_sweep_param *p, double v, char *buf, size_t n)
 {
+    char num[32];
+    shortest_text(v, num, sizeof num);
     const char *u = swp_unit_text(p);
     if (p->layout)
         snprintf(buf, n, "%s", layout_name(v));
@@ -74,9 +89,9 @@ void swp_override_text(const sw_sweep_param *p, double v, char *buf, size_t n)
     else if (p->integer)
         snprintf(buf, n, "%.0f", v);
     else if (strcmp(u, "1") == 0)
-        snprintf(buf, n, "%.17g", v);
+        snprintf(buf, n, "%s", num);
     else
-        snprintf(buf, n, "%.17g %s", v, u);
+        snprintf(buf, n, "%s %s", num, u);
 }
 
 void sw_sweep_format_value(const sw_sweep_param *p, double v, char *buf, size_t n)

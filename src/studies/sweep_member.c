@@ -4,7 +4,7 @@
  * How a member is made. Every parameter except depth_factor becomes one or more scenario overrides
  * ("section.key = value" text, sw_scenario_override), collected into one list and applied in one
  * re-parse: key parameters first, then resolution_factor (grid.nx/ny/dx/dy from the effective grid),
- * amplitude_factor (each source's amplitude, and a pair's trough), the source offsets (each
+ * amplitude_factor (each source's amplitude, and a pair's subsidence), the source offsets (each
  * source's x, y), and the fault parameters (each [fault]'s slip_factor, x_offset, y_offset and
  * rotation, which apply to a segment table too), each computed from the values already in the list.
  * depth_factor multiplies the depth field after the setup is built; dt, the step count and the sizes are
@@ -72,13 +72,25 @@ static double ov_get(const ov_list *l, const char *target, double fallback)
     return fallback;
 }
 
+/* The shortest of "%.15g", "%.16g" and "%.17g" that strtod reads back as exactly v, into buf (size n), so
+ * a member file shows "0.4 m", not "0.40000000000000002 m" (the same rule as swp_override_text). */
+static void shortest_text(double v, char *buf, size_t n)
+{
+    for (int digits = 15; digits <= 17; digits++) {
+        snprintf(buf, n, "%.*g", digits, v);
+        if (digits == 17 || strtod(buf, NULL) == v)
+            return;
+    }
+}
+
 static void ov_set_number(ov_list *l, const char *target, double v, const char *unit)
 {
-    char text[64];
+    char text[64], num[32];
+    shortest_text(v, num, sizeof num);
     if (unit[0])
-        snprintf(text, sizeof text, "%.17g %s", v, unit);
+        snprintf(text, sizeof text, "%s %s", num, unit);
     else
-        snprintf(text, sizeof text, "%.17g", v);
+        snprintf(text, sizeof text, "%s", num);
     ov_set(l, target, text, v);
 }
 
@@ -181,7 +193,7 @@ static void member_overrides(const sw_sweep_plan *plan, size_t k, ov_list *l)
             double amp = ov_get(l, target, s->amplitude_m);
             if (s->shape == SW_SOURCE_PAIR) {
                 char tt[SW_TARGET_MAX];
-                snprintf(tt, sizeof tt, "source %s.trough", s->name);
+                snprintf(tt, sizeof tt, "source %s.subsidence", s->name);
                 double trough = ov_get(l, tt, s->trough_m == s->amplitude_m ? amp : s->trough_m);
                 ov_set_number(l, tt, f * trough, "m");
             }

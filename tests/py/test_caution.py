@@ -97,8 +97,8 @@ y = 15 km
 amplitude = 1 m
 radius = 3 km
 [gauges]
-Alder Point = 25 km, 15 km
-Brisk Head = 30 km, 22 km
+Istelbrac Point = 25 km, 15 km
+Brisquelle Head = 30 km, 22 km
 """
 SWEEP_SECTION = """[sweep]
 design = one-at-a-time

@@ -55,7 +55,7 @@ SCENARIO = """; small fictional basin for the CF and tools checks
 [run]
 title = cf tools basin (fictional)
 duration = 8 min
-courant = 0.9
+courant_fraction = 0.9
 gauge_interval = 15 s
 arrival_threshold = 0.01 m
 snapshot_interval = 2 min
@@ -128,8 +128,7 @@ def check_cf(path):
                   f"{name}: history starts with an ISO 8601 UTC timestamp ({getattr(ds, 'history', '')[:40]!r})")
         for v in ds.variables.values():
             coord = v.ndim == 1 and v.dimensions[0] == v.name
-            position = v.name in ("station_x", "station_y", "station_lon", "station_lat") or \
-                (v.ndim == 1 and v.dimensions == ("station",) and v.name in ("x", "y", "lon", "lat"))
+            position = v.name in ("station_x", "station_y", "station_lon", "station_lat")
             if coord or position:
                 check("_FillValue" not in v.ncattrs(), f"{name}: coordinate {v.name} has no _FillValue")
             if "cf_role" in v.ncattrs():

@@ -19,7 +19,7 @@ os.makedirs(WORK, exist_ok=True)
 FAILURES = []
 
 BASE = """[run]
-title = Brindle Flats (fictional)
+title = Brevanquil Flats (fictional)
 duration = 10 min
 [grid]
 nx = 20
@@ -29,7 +29,7 @@ dx = 1 km
 deep = 100 m
 """
 SOURCE = "[source hump]\nshape = hump\nx = 10 km\ny = 10 km\namplitude = 1 m\nradius = 3 km\n"
-GAUGES = "[gauges]\nOld Weir = 5 km, 5 km\n"
+GAUGES = "[gauges]\nRavelquist Weir = 5 km, 5 km\n"
 
 
 def check(cond, what):

@@ -72,7 +72,7 @@ check(len(runs) == 3 * len(names) and len(names) >= 2, "one row per layout x res
 check(all(x["status"] == "ok" for x in runs), "every run succeeded")
 ref = runs[doc["reference"]] if doc.get("reference", -1) >= 0 else {}
 check(ref.get("layout") == "C" and ref.get("refine") == 4, "reference is the finest C run")
-check(all(x["courant"] <= x["courant_limit"] * 0.9 + 1e-9 for x in runs), "every run at 90 % of its limit")
+check(all(x["courant_number"] <= x["courant_limit"] * 0.9 + 1e-9 for x in runs), "every run at 90 % of its limit")
 for lay in names:
     rows = sorted([x for x in runs if x["layout"] == lay], key=lambda x: x["refine"])
     for g in range(2):

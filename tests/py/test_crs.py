@@ -124,9 +124,9 @@ def seabed_file(name, mapping="wkt+cf", grid_mapping="crs", mapping_name=None):
 
 UTM_SCENARIO = """; a fictional basin on a UTM grid (tests/py/test_crs.py)
 [run]
-title = Ferrow Deep (fictional)
+title = Fennikar Deep (fictional)
 duration = 4 min
-courant = 0.9
+courant_fraction = 0.9
 gauge_interval = 30 s
 snapshot_interval = 2 min
 
@@ -144,14 +144,14 @@ amplitude = 1 m
 radius = 5 km
 
 [gauges]
-Ferrow Quay = 440 km, 4520 km
+Fennikar Quay = 440 km, 4520 km
 """
 
 GEO_SCENARIO = """; a fictional ocean basin across the 180th meridian (tests/py/test_crs.py)
 [run]
-title = Tasman Reach (fictional)
+title = Oskeldrun Reach (fictional)
 duration = 10 min
-courant = 0.9
+courant_fraction = 0.9
 gauge_interval = 60 s
 snapshot_interval = 5 min
 
@@ -180,7 +180,7 @@ radius = 30 km
 
 [gauges]
 Dateline Buoy = 180.5 deg, -43 deg
-Kerrin Bank = -175.5 deg, -41 deg
+Kervallo Bank = -175.5 deg, -41 deg
 """
 
 
@@ -293,6 +293,7 @@ def test_sweep_carries_crs():
     bed = seabed_file("sweep-utm.nc")
     scn = write("sweep-utm.scn", UTM_SCENARIO.format(bed=bed) + "\n[sweep]\namplitude_factor = 0.5, 2\n")
     out = os.path.join(WORK, "sweep-utm-out")
+    shutil.rmtree(out, ignore_errors=True)   # a folder left by an earlier run would be resumed
     r = run("sweep", scn, "--out", out, "--quiet")
     check(r.returncode == 0, f"UTM sweep (exit {r.returncode}: {r.stderr.strip()[-300:]})")
     if r.returncode == 0:
@@ -358,9 +359,9 @@ def test_geographic():
         check(not missing, f"every map names crs in grid_mapping ({missing or 'all'})")
         check(ds.variables["eta_max"].dimensions == ("lat", "lon"), "eta_max(lat, lon)")
     with Dataset(os.path.join(out, "gauges.nc")) as g:
-        glon, glat = g.variables.get("lon"), g.variables.get("lat")
+        glon, glat = g.variables.get("station_lon"), g.variables.get("station_lat")
         # -175.5 deg is moved by 360 onto the grid: 184.5 (the scenario's rule, scenario.h)
-        ok = glon is not None and glat is not None and "x" not in g.variables
+        ok = glon is not None and glat is not None and "station_x" not in g.variables
         check(ok and np.allclose(glon[:], [180.5, 184.5], atol=1e-9)
               and np.allclose(glat[:], [-43.0, -41.0], atol=1e-9),
               f"gauges in degrees: lon {glon[:] if ok else None}, lat {glat[:] if ok else None}")

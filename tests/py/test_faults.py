@@ -3,7 +3,7 @@
 
 usage: test_faults.py SHOREWARD_BINARY WORK_DIR
 
-The fictional Corran Trench: a table of 12 segments rupturing from a hypocentre at 2 km/s (20 s rise,
+The fictional Zelvaro Trench: a table of 12 segments rupturing from a hypocentre at 2 km/s (20 s rise,
 Kajiura filter) and a splay fault moving at 45 s. Checks, each against its outside reference:
   - the plan's seismic moment is the sum of mu L W D over the segments, with the default rigidity of
     30 GPa (common practice), and Mw = (2/3)(log10 M0 - 9.1) (Hanks & Kanamori 1979, J. Geophys. Res. 84
@@ -95,10 +95,10 @@ def main():
         return
     res = json.loads(r.stdout)
     arr = {g["name"]: g["arrival_s"] for g in res["gauges"]}
-    check(arr["Corran Deep buoy"] is not None and arr["Corran Deep buoy"] < 120,
-          f"the deep buoy above the rupture hears it within 2 minutes ({arr['Corran Deep buoy']} s)")
-    coast = [arr[n] for n in ("Halvard Point", "Sennet Harbour", "Tolmey Sands")]
-    check(all(t is not None and t > arr["Corran Deep buoy"] + 300 for t in coast),
+    check(arr["Zelvaro Deep buoy"] is not None and arr["Zelvaro Deep buoy"] < 120,
+          f"the deep buoy above the rupture hears it within 2 minutes ({arr['Zelvaro Deep buoy']} s)")
+    coast = [arr[n] for n in ("Ketravo Point", "Umbrisk Harbour", "Pavrune Sands")]
+    check(all(t is not None and t > arr["Zelvaro Deep buoy"] + 300 for t in coast),
           f"the coast 100 km further east hears it minutes later ({coast} s)")
 
     bad = os.path.join(WORK, "fault-demo-segments.txt")

@@ -3,7 +3,7 @@
 
 usage: test_geographic.py SHOREWARD_BINARY WORK_DIR
 
-Runs scenarios/geographic-demo.scn (the fictional Varlen Sea) and checks, each against its outside
+Runs scenarios/geographic-demo.scn (the fictional Quorvane Sea) and checks, each against its outside
 reference:
   - the plan states the grid kind and extent in degrees and finds the time-step limit on the row nearest
     the pole, where the cells are narrowest: dx R cos(latitude) [derived];
@@ -109,14 +109,14 @@ def main():
                  for row in np.ma.filled(g.variables["station_name"][:], b"")]
         eta = g.variables["eta"][:]
         time = g.variables["time"][:]
-        glat, glon = g.variables["lat"][:], g.variables["lon"][:]
-    k1, k2 = names.index("Tarn Rock buoy"), names.index("Far Station")
+        glat, glon = g.variables["station_lat"][:], g.variables["station_lon"][:]
+    k1, k2 = names.index("Gorvolt Rock buoy"), names.index("Far Station")
     t1, t2 = time[np.argmax(eta[k1])], time[np.argmax(eta[k2])]
     d1 = haversine(src_lat, src_lon, glat[k1], glon[k1])
     d2 = haversine(src_lat, src_lon, glat[k2], glon[k2])
     speed = (d2 - d1) / (t2 - t1)
     check(abs(speed / c - 1) < 0.04,
-          f"peaks travel from Tarn Rock buoy to Far Station at {speed:.1f} m/s over the great circle, "
+          f"peaks travel from Gorvolt Rock buoy to Far Station at {speed:.1f} m/s over the great circle, "
           f"sqrt(g h) = {c:.1f} m/s ({100 * (speed / c - 1):+.1f} %)")
 
     with open(SCN) as f:

@@ -45,7 +45,7 @@ FLAT = """; constant-depth basin for output tests (fictional)
 title = flat basin
 duration = {duration}
 layout = {layout}
-courant = 0.9
+courant_fraction = 0.9
 gauge_interval = 20 s
 arrival_threshold = 0.005 m
 snapshot_interval = {snap}
@@ -184,7 +184,7 @@ def test_json():
         plan = json.loads(r.stdout)
     except ValueError:
         plan = {}
-    check(r.returncode == 0 and plan.get("courant", 9) <= plan.get("courant_limit", 0), "check --json plan")
+    check(r.returncode == 0 and plan.get("courant_number", 9) <= plan.get("courant_limit", 0), "check --json plan")
 
 
 def test_interrupt_leaves_nothing():
@@ -202,11 +202,11 @@ def test_interrupt_leaves_nothing():
 
 
 def test_bad_scenario():
-    text = FLAT.format(duration="5 min", layout="C", snap="0").replace("courant = 0.9", "courant = 1.9")
+    text = FLAT.format(duration="5 min", layout="C", snap="0").replace("courant_fraction = 0.9", "courant_fraction = 1.9")
     path = write("bad.scn", text)
     r = run("run", path, "--out", os.path.join(WORK, "bad-out"))
     check(r.returncode == 1, "bad scenario exits 1")
-    check("bad.scn:6:" in r.stderr and "courant" in r.stderr, "message names file:line and key: %s"
+    check("bad.scn:6:" in r.stderr and "courant_fraction" in r.stderr, "message names file:line and key: %s"
           % r.stderr.strip())
     r = run("run", os.path.join(WORK, "missing.scn"))
     check(r.returncode == 1 and "missing.scn" in r.stderr, "missing scenario named")

@@ -172,7 +172,7 @@ def check_run(folder, label):
 
 
 def main():
-    # the built-in demo (fictional Merrow Bay)
+    # the built-in demo (fictional Vashkel Bay)
     demo = os.path.join(WORK, "demo")
     r = run("demo", demo)
     check(r.returncode == 0, "shoreward demo runs " + r.stderr.strip()[-200:])
@@ -182,7 +182,7 @@ def main():
     check(cli.returncode == 0 and "gauges.png" in cli.stdout, "tools/plot --shared-y draws from the command line "
           + cli.stderr.strip()[-200:])
 
-    # the storm demo (fictional Storm Brannagh) and the geographic demo (fictional Varlen Sea)
+    # the storm demo (fictional Storm Quistabel) and the geographic demo (fictional Quorvane Sea)
     for label, files in (("storm", ("storm-demo.scn", "storm-demo-track.txt")),
                          ("geographic", ("geographic-demo.scn",))):
         folder = os.path.join(WORK, label)
@@ -221,7 +221,7 @@ SWEEP = """; a small FICTIONAL coast for picture tests
 [run]
 title = picture test coast (fictional)
 duration = 8 min
-courant = 0.9
+courant_fraction = 0.9
 gauge_interval = 15 s
 arrival_threshold = 0.01 m
 

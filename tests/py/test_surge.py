@@ -3,7 +3,7 @@
 
 usage: test_surge.py SHOREWARD_BINARY WORK_DIR
 
-Every name here is invented (storm Orla, the Calder Shelf, Tern Quay, Eyepath Buoy): fictional.
+Every name here is invented (storm Vantelle, the Ondrevi Shelf, Tervelka Quay, Eyepath Buoy): fictional.
 
 Checks (each names its source where there is one):
   - gauges.nc gains air_pressure, wind_east, wind_north with the CF standard names
@@ -66,9 +66,9 @@ G = 9.81
 OMEGA = 7.2921159e-5       # Earth's rotation rate, s-1 [memory; docs/references.md]
 UPDATE_S = 600.0           # [storm] update default
 
-SCENARIO = """# Fictional: storm Orla crosses the Calder Shelf (invented names, not a real place or storm).
+SCENARIO = """# Fictional: storm Vantelle crosses the Ondrevi Shelf (invented names, not a real place or storm).
 [run]
-title = Fictional storm Orla over the Calder Shelf
+title = Fictional storm Vantelle over the Ondrevi Shelf
 duration = 6 h
 rotation = f-plane
 latitude = 20 deg
@@ -89,12 +89,12 @@ shelf_depth = 20 m
 
 {forcing}
 [gauges]
-Tern Quay = 170 km, 172 km
+Tervelka Quay = 170 km, 172 km
 Eyepath Buoy = 140 km, 100 km
 """
 
 # The storm heads due north along x = 140 km at 350 km / 8 h, onto the coast at y = 180 km.
-TRACK = """# Fictional storm Orla: heads north onto the Calder coast.
+TRACK = """# Fictional storm Vantelle: heads north onto the Ondrevi coast.
 time[h]   x[km]   y[km]   central_pressure[hPa]   rmax[km]   B
 0         {x}     -100    973                     30         1.3
 8         {x}     250     973                     30         1.3
@@ -243,7 +243,7 @@ def check_storm_run():
 
     # the water: raised on the coast the storm drives onshore; the inverse barometer under the eye
     peaks = {g["name"]: g["peak_m"] for g in res["gauges"]}
-    check(peaks["Tern Quay"] > 0.1, f"the storm raises the water at the coastal gauge: peak {peaks['Tern Quay']:.3f} m")
+    check(peaks["Tervelka Quay"] > 0.1, f"the storm raises the water at the coastal gauge: peak {peaks['Tervelka Quay']:.3f} m")
     ib = DP_PA / (RHO_WATER * G)
     check(0.5 * ib < peaks["Eyepath Buoy"] < 2 * ib,
           f"under the eye the peak {peaks['Eyepath Buoy']:.3f} m is within a factor 2 of the inverse barometer "

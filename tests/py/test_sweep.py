@@ -61,7 +61,7 @@ COAST = """; small fictional coast for sweep tests
 [run]
 title = sweep test coast
 duration = {duration}
-courant = 0.9
+courant_fraction = 0.9
 gauge_interval = 15 s
 arrival_threshold = 0.01 m
 
@@ -128,7 +128,7 @@ def sweep(path, out, *extra):
 
 OAT = """amplitude_factor = 2
 source_x_offset = 3 km
-courant = 0.5
+courant_fraction = 0.5
 grid.dx = 1.2 km
 layout = A
 arrival_threshold = 0.02 m"""

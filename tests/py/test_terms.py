@@ -72,11 +72,11 @@ def main():
     if rot and norot:
         pr, pn = peaks(rot), peaks(norot)
         print(f"     peaks with rotation {pr}\n     without {pn}")
-        check(pr["Brannock Head"] > 2 * pr["Saltmere"],
+        check(pr["Ostvarin Head"] > 2 * pr["Ulmquessa"],
               f"with rotation the gauge 250 km east sees more than twice the west one "
-              f"({pr['Brannock Head']:.3f} m vs {pr['Saltmere']:.3f} m; Kelvin wave, coast on its right)")
-        check(abs(pn["Brannock Head"] - pn["Saltmere"]) <= 1e-9 * pn["Saltmere"],
-              f"without rotation east and west see the same ({pn['Brannock Head']:.6f} vs {pn['Saltmere']:.6f} m)")
+              f"({pr['Ostvarin Head']:.3f} m vs {pr['Ulmquessa']:.3f} m; Kelvin wave, coast on its right)")
+        check(abs(pn["Ostvarin Head"] - pn["Ulmquessa"]) <= 1e-9 * pn["Ulmquessa"],
+              f"without rotation east and west see the same ({pn['Ostvarin Head']:.6f} vs {pn['Ulmquessa']:.6f} m)")
         t = rot["terms"]
         f52 = 2 * 7.2921159e-5 * math.sin(math.radians(52))
         check(t["rotation"] == "f-plane" and abs(t["coriolis_f0_per_s"] / f52 - 1) < 1e-12,
@@ -111,7 +111,7 @@ def main():
         r1, r2 = run_json(scaled(lines, 1), "s1"), run_json(scaled(lines, 2), "s2")
         if not (r1 and r2):
             continue
-        ratio = peaks(r2)["Quillan Sands"] / peaks(r1)["Quillan Sands"]
+        ratio = peaks(r2)["Yelmarsk Sands"] / peaks(r1)["Yelmarsk Sands"]
         kind = lines.split("\n")[0]
         if linear:
             check(abs(ratio - 2) < 1e-9, f"{kind}: twice the source gives twice the peak (ratio {ratio:.12f})")

@@ -505,7 +505,7 @@ static const char SETUP_SCN[] =
     "[grid]\nkind = geographic\nnx = 40\nny = 10\ndx = 0.5 deg\ny0 = 50\nx0 = 170\n"
     "[seabed]\ndeep = 3 km\n"
     "[source main]\nshape = hump\nx = 178\ny = 52.5\namplitude = 1\nradius = 60 km\n"
-    "[gauges]\nKestrel Post = -175, 54\n";
+    "[gauges]\nOskeldrun Post = -175, 54\n";
 
 static void test_setup_time_step_row(void **state)
 {

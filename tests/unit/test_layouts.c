@@ -78,7 +78,7 @@ static sw_model *make(const spec *sp)
     sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta, .min_depth_m = 1,
                            .gravity_ms2 = G, .allow_unstable = sp->courant_frac > 1,
                            .edges = {sp->edges[0], sp->edges[1], sp->edges[2], sp->edges[3]}};
-    cfg.dt_s = sp->courant_frac * sw_model_dt_limit(lay, &g, depth, 1, G, 2);
+    cfg.dt_s = sp->courant_frac * sw_model_dt_limit(lay, &g, depth, 1, G, sw_model_dims(&g, cfg.edges));
     sw_model *m = NULL;
     sw_error err = {0};
     sw_status rc = sw_model_create(&cfg, &m, &err);

@@ -65,7 +65,7 @@ static sw_model *make_model(const char *layout, size_t nx, size_t ny, double d, 
     sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta, .min_depth_m = 1,
                            .gravity_ms2 = G, .edges = {edges[0], edges[1], edges[2], edges[3]},
                            .precision = model_precision};
-    cfg.dt_s = courant_frac * sw_model_dt_limit(lay, &g, depth, 1, G, 2);
+    cfg.dt_s = courant_frac * sw_model_dt_limit(lay, &g, depth, 1, G, sw_model_dims(&g, cfg.edges));
     sw_model *m = NULL;
     sw_error err = {0};
     assert_int_equal(sw_model_create(&cfg, &m, &err), SW_OK);

@@ -42,7 +42,7 @@
 #define FILL_FLOAT_NUG 9.96921e+36f
 
 static const char CAUTION[] = "Simplified linear model - not a hazard forecast. Follow official warnings.";
-static const char SCENARIO[] = "[run]\ntitle = Test bay\nduration = 1 h\n\n[gauges]\nNorth Pier = 1 km, 2 km\n";
+static const char SCENARIO[] = "[run]\ntitle = Test bay\nduration = 1 h\n\n[gauges]\nDravonne Pier = 1 km, 2 km\n";
 
 static sw_run_meta test_meta(const char *title)
 {
@@ -233,7 +233,7 @@ static void assert_done(const char *path)
 /* ---- gauges ----------------------------------------------------------------------------- */
 
 enum { NS = 3, NT = 4 };
-static const char *const G_NAMES[NS] = {"North Pier", "Harbour Mouth",
+static const char *const G_NAMES[NS] = {"Dravonne Pier", "Harbour Mouth",
                                         /* exactly 64 characters: fills name_strlen, no NUL */
                                         "A234567890123456789012345678901234567890123456789012345678901234"};
 static const double G_X[NS] = {1000.0, 2500.0, 4000.0};
@@ -280,8 +280,8 @@ static void test_gauges_roundtrip(void **state)
     assert_int_equal(dim_len(ncid, "time"), NT);
     assert_int_equal(dim_len(ncid, "name_strlen"), 64);
     assert_var_dims(ncid, "station_name", NC_CHAR, "station,name_strlen");
-    assert_var_dims(ncid, "x", NC_DOUBLE, "station");
-    assert_var_dims(ncid, "y", NC_DOUBLE, "station");
+    assert_var_dims(ncid, "station_x", NC_DOUBLE, "station");
+    assert_var_dims(ncid, "station_y", NC_DOUBLE, "station");
     assert_var_dims(ncid, "depth", NC_DOUBLE, "station");
     assert_var_dims(ncid, "time", NC_DOUBLE, "time");
     assert_var_dims(ncid, "eta", NC_DOUBLE, "station,time");
@@ -290,10 +290,10 @@ static void test_gauges_roundtrip(void **state)
 
     assert_text(ncid, "station_name", "cf_role", "timeseries_id");
     assert_text(ncid, "station_name", "long_name", "gauge name");
-    assert_text(ncid, "x", "standard_name", "projection_x_coordinate");
-    assert_text(ncid, "y", "standard_name", "projection_y_coordinate");
-    assert_text(ncid, "x", "units", "m");
-    assert_text(ncid, "x", "long_name", "gauge x position");
+    assert_text(ncid, "station_x", "standard_name", "projection_x_coordinate");
+    assert_text(ncid, "station_y", "standard_name", "projection_y_coordinate");
+    assert_text(ncid, "station_x", "units", "m");
+    assert_text(ncid, "station_x", "long_name", "gauge x position");
     assert_text(ncid, "depth", "standard_name", "sea_floor_depth_below_mean_sea_level");
     assert_text(ncid, "depth", "positive", "down");
     assert_text(ncid, "time", "standard_name", "time");
@@ -308,7 +308,7 @@ static void test_gauges_roundtrip(void **state)
     assert_text(ncid, "u", "units", "m s-1");
     assert_text(ncid, "v", "units", "m s-1");
     for (int k = 0; k < 3; k++)
-        assert_text(ncid, (const char *[]){"eta", "u", "v"}[k], "coordinates", "time x y station_name");
+        assert_text(ncid, (const char *[]){"eta", "u", "v"}[k], "coordinates", "time station_y station_x station_name");
     assert_no_var(ncid, "air_pressure");   /* no atmosphere: no air series */
     assert_no_var(ncid, "wind_east");
     assert_no_var(ncid, "wind_north");
@@ -326,9 +326,9 @@ static void test_gauges_roundtrip(void **state)
     }
 
     double buf[NS * NT];
-    get_doubles(ncid, "x", buf);
+    get_doubles(ncid, "station_x", buf);
     assert_memory_equal(buf, G_X, sizeof G_X);
-    get_doubles(ncid, "y", buf);
+    get_doubles(ncid, "station_y", buf);
     assert_memory_equal(buf, G_Y, sizeof G_Y);
     get_doubles(ncid, "depth", buf);
     assert_memory_equal(buf, G_DEPTH, sizeof G_DEPTH);
@@ -391,7 +391,7 @@ static void test_gauges_air(void **state)
         assert_var_dims(ncid, want[k].var, NC_DOUBLE, "station,time");
         assert_text(ncid, want[k].var, "standard_name", want[k].standard_name);
         assert_text(ncid, want[k].var, "units", want[k].units);
-        assert_text(ncid, want[k].var, "coordinates", "time x y station_name");
+        assert_text(ncid, want[k].var, "coordinates", "time station_y station_x station_name");
         char *ln = get_text(ncid, want[k].var, "long_name");
         assert_non_null(strstr(ln, "(the forcing at the gauge, linear in time between forcing slabs)"));
         assert_true(k == 0 || strstr(ln, "10 m wind") != NULL);
@@ -1248,10 +1248,10 @@ static void test_projected_crs_copied(void **state)
     assert_int_equal(nc_open(gpath, NC_NOWRITE, &ncid), NC_NOERR);
     assert_crs_copied(ncid, &c);
     assert_text(ncid, "eta", "grid_mapping", "crs");
-    assert_text(ncid, "eta", "coordinates", "time x y station_name");
+    assert_text(ncid, "eta", "coordinates", "time station_y station_x station_name");
     assert_text(ncid, "u", "standard_name", "sea_water_x_velocity");
     double buf[NS];
-    get_doubles(ncid, "x", buf);
+    get_doubles(ncid, "station_x", buf);
     assert_memory_equal(buf, G_X, sizeof G_X);
     assert_int_equal(nc_close(ncid), NC_NOERR);
 
@@ -1437,19 +1437,19 @@ static void test_gauges_geographic(void **state)
     assert_int_equal(sw_ncw_gauges(path, &meta, &gt, &err), SW_OK);
     int ncid;
     assert_int_equal(nc_open(path, NC_NOWRITE, &ncid), NC_NOERR);
-    assert_no_var(ncid, "x");
-    assert_no_var(ncid, "y");
-    assert_var_dims(ncid, "lon", NC_DOUBLE, "station");
-    assert_var_dims(ncid, "lat", NC_DOUBLE, "station");
-    assert_text(ncid, "lon", "standard_name", "longitude");
-    assert_text(ncid, "lon", "units", "degrees_east");
-    assert_text(ncid, "lat", "standard_name", "latitude");
-    assert_text(ncid, "lat", "units", "degrees_north");
+    assert_no_var(ncid, "station_x");
+    assert_no_var(ncid, "station_y");
+    assert_var_dims(ncid, "station_lon", NC_DOUBLE, "station");
+    assert_var_dims(ncid, "station_lat", NC_DOUBLE, "station");
+    assert_text(ncid, "station_lon", "standard_name", "longitude");
+    assert_text(ncid, "station_lon", "units", "degrees_east");
+    assert_text(ncid, "station_lat", "standard_name", "latitude");
+    assert_text(ncid, "station_lat", "units", "degrees_north");
     double got[NS];
-    get_doubles(ncid, "lon", got);
+    get_doubles(ncid, "station_lon", got);
     for (size_t k = 0; k < NS; k++)
         assert_true(fabs(got[k] - lon[k]) < 1e-9);
-    get_doubles(ncid, "lat", got);
+    get_doubles(ncid, "station_lat", got);
     for (size_t k = 0; k < NS; k++)
         assert_true(fabs(got[k] - lat[k]) < 1e-9);
     assert_text(ncid, "u", "standard_name", "eastward_sea_water_velocity");
@@ -1457,7 +1457,7 @@ static void test_gauges_geographic(void **state)
     assert_text(ncid, "eta", "standard_name", "sea_surface_height_above_mean_sea_level");
     for (int k = 0; k < 3; k++) {
         const char *var = (const char *[]){"eta", "u", "v"}[k];
-        assert_text(ncid, var, "coordinates", "time lat lon station_name");
+        assert_text(ncid, var, "coordinates", "time station_lat station_lon station_name");
         assert_text(ncid, var, "grid_mapping", "crs");
     }
     assert_text(ncid, "crs", "grid_mapping_name", "latitude_longitude");

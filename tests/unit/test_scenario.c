@@ -109,18 +109,18 @@ static const char FULL[] =
     "shelf_width = 20 km\n"                     /* 32 */
     "slope_width = 15 km\n"                     /* 33 */
     "land_height = 25 m\n"                      /* 34 */
-    "[bay Long Bay]\n"                          /* 35 */
+    "[bay Lonquessa Bay]\n"                          /* 35 */
     "x = 100 km\n"                              /* 36 */
     "y = 30 km\n"                               /* 37 */
     "radius_x = 8 km\n"                         /* 38 */
     "radius_y = 5 km\n"                         /* 39 */
     "depth = 20 m\n"                            /* 40 */
-    "[island Gull Rock]\n"                      /* 41 */
+    "[island Pellquin Rock]\n"                      /* 41 */
     "x = 60 km\n"                               /* 42 */
     "y = 20 km\n"                               /* 43 */
     "radius = 2 km\n"                           /* 44 */
     "height = 30 m\n"                           /* 45 */
-    "[shoal Middle Ground]\n"                   /* 46 */
+    "[shoal Trevolsk Ground]\n"                   /* 46 */
     "x = 70 km\n"                               /* 47 */
     "y = 15 km\n"                               /* 48 */
     "radius = 3 km\n"                           /* 49 */
@@ -130,7 +130,7 @@ static const char FULL[] =
     "x = 30 km\n"                               /* 53 */
     "y = 25 km\n"                               /* 54 */
     "amplitude = 2 m\n"                         /* 55 */
-    "trough = 1.5 m\n"                          /* 56 */
+    "subsidence = 1.5 m\n"                      /* 56 */
     "length = 50 km\n"                          /* 57 */
     "width = 20 km\n"                           /* 58 */
     "angle = 30 deg\n"                          /* 59 */
@@ -154,7 +154,7 @@ static const char FULL[] =
     "file = data/eta0.nc\n"                     /* 77 */
     "variable = zeta\n"                         /* 78 */
     "[gauges]\n"                                /* 79 */
-    "Port Harrow = 42 km, 18.5 km\n"            /* 80 */
+    "Port Vantrebel = 42 km, 18.5 km\n"            /* 80 */
     "Buoy 7 = 0.5km,12000\n";                   /* 81 */
 
 static void test_full_scenario_in_si(void **state)
@@ -207,19 +207,19 @@ static void test_full_scenario_in_si(void **state)
     assert_int_equal(sc->n_features, 3);
     const sw_feature *f = sc->features;
     assert_int_equal(f[0].kind, SW_FEATURE_BAY);
-    assert_string_equal(f[0].name, "Long Bay");
+    assert_string_equal(f[0].name, "Lonquessa Bay");
     assert_int_equal(f[0].line, 35);
     assert_true(f[0].x_m == 100000.0 && f[0].y_m == 30000.0);
     assert_true(f[0].radius_x_m == 8000.0 && f[0].radius_y_m == 5000.0);
     assert_true(f[0].depth_m == 20.0);
     assert_int_equal(f[1].kind, SW_FEATURE_ISLAND);
-    assert_string_equal(f[1].name, "Gull Rock");
+    assert_string_equal(f[1].name, "Pellquin Rock");
     assert_int_equal(f[1].line, 41);
     assert_true(f[1].x_m == 60000.0 && f[1].y_m == 20000.0);
     assert_true(f[1].radius_x_m == 2000.0 && f[1].radius_y_m == 2000.0);
     assert_true(f[1].height_m == 30.0);
     assert_int_equal(f[2].kind, SW_FEATURE_SHOAL);
-    assert_string_equal(f[2].name, "Middle Ground");
+    assert_string_equal(f[2].name, "Trevolsk Ground");
     assert_true(f[2].radius_x_m == 3000.0 && f[2].radius_y_m == 3000.0);
     assert_true(f[2].crest_m == 5.0);
     /* sources */
@@ -242,7 +242,7 @@ static void test_full_scenario_in_si(void **state)
     assert_string_equal(s[3].variable, "zeta");
     /* gauges */
     assert_int_equal(sc->n_gauges, 2);
-    assert_string_equal(sc->gauges[0].name, "Port Harrow");
+    assert_string_equal(sc->gauges[0].name, "Port Vantrebel");
     assert_int_equal(sc->gauges[0].line, 80);
     assert_true(sc->gauges[0].x_m == 42000.0 && sc->gauges[0].y_m == 18500.0);
     assert_string_equal(sc->gauges[1].name, "Buoy 7");
@@ -290,7 +290,7 @@ static void test_defaults(void **state)
     assert_int_equal(sc->n_gauges, 0);
     del_sc(sc);
 
-    /* pair: trough defaults to amplitude; file: variable defaults to eta */
+    /* pair: subsidence defaults to amplitude; file: variable defaults to eta */
     sc = parse_ok(BASE "[source p]\nshape = pair\nx = 1 km\ny = 1 km\namplitude = 0.7\nlength = 9 km\n"
                        "width = 3 km\nangle = 0\nseparation = 5 km\n"
                        "[source f]\nshape = file\nfile = /abs/eta.nc\n");
@@ -353,8 +353,8 @@ static void test_messages_name_file_line_key(void **state)
     (void)state;
     static const bad_case cases[] = {
         /* the format promised in docs/scenario.md */
-        { "[run]\nduration = 1 h\n\ncourant = 1.9\n", SW_ERR_RANGE,
-          "t.scn:4: [run] courant = 1.9: out of range (accepted: 0 < courant <= 1, a fraction of the layout's limit)",
+        { "[run]\nduration = 1 h\n\ncourant_fraction = 1.9\n", SW_ERR_RANGE,
+          "t.scn:4: [run] courant_fraction = 1.9: out of range (accepted: 0 < courant_fraction <= 1, a fraction of the layout's limit)",
           NULL },
         { "[run]\nlayout = C\n\n\n\nduraton = 1 h\n", SW_ERR_PARSE,
           "t.scn:6: [run] unknown key 'duraton' (did you mean 'duration'?)", NULL },
@@ -362,8 +362,8 @@ static void test_messages_name_file_line_key(void **state)
         /* duplicates name both lines */
         { "[run]\nduration = 1 h\ntitle = a\nduration = 2 h\n", SW_ERR_PARSE,
           "t.scn:4: [run] duplicate key 'duration' (first on line 2, again on line 4)", NULL },
-        { BASE "[island Gull Rock]\nx = 1\n[island Gull Rock]\n", SW_ERR_PARSE,
-          "t.scn:11: duplicate section [island Gull Rock] (first on line 9)", NULL },
+        { BASE "[island Pellquin Rock]\nx = 1\n[island Pellquin Rock]\n", SW_ERR_PARSE,
+          "t.scn:11: duplicate section [island Pellquin Rock] (first on line 9)", NULL },
         { BASE "[run]\n", SW_ERR_PARSE, "t.scn:9: duplicate section [run] (first on line 1)", NULL },
         { BASE "[gauges]\nA = 1 km, 1 km\nB = 2 km, 2 km\nA = 3 km, 3 km\n", SW_ERR_PARSE,
           "t.scn:12: [gauges] duplicate gauge 'A' (first on line 10, again on line 12)", NULL },
@@ -413,8 +413,8 @@ static void test_messages_name_file_line_key(void **state)
           NULL },
         { BASE "[shoal s]\nx = 1\ny = 1\nradius = 1\n", SW_ERR_PARSE, "t.scn:9: [shoal s] missing key 'crest'", NULL },
         /* cross-key rules */
-        { "[run]\nduration = 1 h\ndt = 2 s\ncourant = 0.5\n[grid]\nnx = 1\nny = 1\ndx = 1\n[seabed]\ndeep = 1\n",
-          SW_ERR_PARSE, "t.scn:4: [run] dt (line 3) and courant (line 4) are both given", NULL },
+        { "[run]\nduration = 1 h\ndt = 2 s\ncourant_fraction = 0.5\n[grid]\nnx = 1\nny = 1\ndx = 1\n[seabed]\ndeep = 1\n",
+          SW_ERR_PARSE, "t.scn:4: [run] dt (line 3) and courant_fraction (line 4) are both given", NULL },
         { BASE "shelf_depth = 200 m\n", SW_ERR_RANGE,
           "t.scn:9: [seabed] shelf_depth = 200 m: out of range (accepted: 0 < shelf_depth <= deep = 100 m)", NULL },
         { "[run]\nduration = 1 h\n[grid]\nnx = 100000\nny = 5000\ndx = 1 m\n[seabed]\ndeep = 1 km\n", SW_ERR_RANGE,
@@ -457,8 +457,11 @@ static void test_values_out_of_range_or_malformed(void **state)
         { "[run]\nlayout = CC\n", SW_ERR_PARSE, "unknown layout", NULL },
         { "[run]\nprecision = half\n", SW_ERR_PARSE, "t.scn:2: [run] precision = half: unknown value (accepted: "
           "double, single)", NULL },
-        { "[run]\ncourant = 0\n", SW_ERR_RANGE, "[run] courant = 0: out of range", NULL },
-        { "[run]\ncourant = 0.5 s\n", SW_ERR_PARSE, "[run] courant = 0.5 s: unexpected 's' after the number", NULL },
+        { "[run]\ncourant_fraction = 0\n", SW_ERR_RANGE, "[run] courant_fraction = 0: out of range", NULL },
+        { "[run]\ncourant_fraction = 0.5 s\n", SW_ERR_PARSE, "[run] courant_fraction = 0.5 s: unexpected 's' after the number", NULL },
+        /* keys renamed so that one word means one thing everywhere: the old name is refused with the new */
+        { "[run]\ncourant = 0.9\n", SW_ERR_PARSE, "t.scn:2: [run] unknown key 'courant' (renamed: write "
+          "courant_fraction = F", "'Courant number' always means the absolute c" },
         { "[run]\ndt = 2 d\n", SW_ERR_RANGE, "[run] dt = 2 d: out of range (accepted: 0 < dt <= 1 d", NULL },
         { "[run]\ngauge_interval = 0\n", SW_ERR_RANGE, "gauge_interval = 0: out of range", NULL },
         { "[run]\nsnapshot_interval = -1 s\n", SW_ERR_RANGE, "snapshot_interval = -1 s: out of range", NULL },
@@ -520,8 +523,11 @@ static void test_source_shapes(void **state)
         { BASE "[source s]\nshape = pair\nx = 1\ny = 1\namplitude = -1\nlength = 1\nwidth = 1\nangle = 0\n"
                "separation = 1\n",
           SW_ERR_RANGE, "t.scn:13: [source s] amplitude = -1 m: out of range", "for a pair" },
-        { BASE "[source s]\nshape = hump\nx = 1\ny = 1\namplitude = 1\nradius = 1\ntrough = 1\n", SW_ERR_PARSE,
-          "t.scn:15: [source s] trough: not used by shape 'hump'", NULL },
+        { BASE "[source s]\nshape = hump\nx = 1\ny = 1\namplitude = 1\nradius = 1\nsubsidence = 1\n", SW_ERR_PARSE,
+          "t.scn:15: [source s] subsidence: not used by shape 'hump'", NULL },
+        { BASE "[source s]\nshape = pair\nx = 1\ny = 1\namplitude = 1\nlength = 1\nwidth = 1\nangle = 0\n"
+               "separation = 1\ntrough = 1 m\n", SW_ERR_PARSE,
+          "t.scn:18: [source s] unknown key 'trough' (renamed: write subsidence = D", "lowest elevation a gauge" },
         { BASE "[source s]\nshape = file\nvariable = eta\n", SW_ERR_PARSE, "t.scn:9: [source s] missing key 'file'",
           NULL },
         { BASE "[source s]\nshape = file\nfile = a.nc\nx = 1\n", SW_ERR_PARSE,
@@ -618,7 +624,7 @@ static void test_text_conventions(void **state)
                                "  [run]   ; trailing comment\r\n"
                                "\ttitle = Bay; with a semicolon ; and a comment\r\n"
                                "    duration = 3 h\r\n"
-                               "    courant = 0.5\r\n"
+                               "    courant_fraction = 0.5\r\n"
                                "\r\n"
                                "[grid]\r\nnx: 4\r\nny=4\r\ndx = 1km\r\n[seabed]\r\ndeep = 1 km");   /* no final newline */
     assert_string_equal(sc->title, "Bay; with a semicolon");
@@ -806,10 +812,10 @@ static void test_load_file_and_resolve(void **state)
     sw_scenario_free(NULL);
 
     /* an error in a file names the path and the line */
-    assert_int_equal(tu_write_file(path, "[run]\nduration = 1 h\n\ncourant = 1.9\n"), 0);
+    assert_int_equal(tu_write_file(path, "[run]\nduration = 1 h\n\ncourant_fraction = 1.9\n"), 0);
     assert_int_equal(sw_scenario_load(path, sc, &err), SW_ERR_RANGE);
     char want_msg[600];
-    snprintf(want_msg, sizeof want_msg, "%s:4: [run] courant = 1.9: out of range", path);
+    snprintf(want_msg, sizeof want_msg, "%s:4: [run] courant_fraction = 1.9: out of range", path);
     assert_non_null(strstr(err.msg, want_msg));
     assert_null(sc->text);
 

@@ -150,7 +150,7 @@ static void test_island_and_shoal_on_flat_floor(void **state)
     sw_scenario *sc = new_scenario(41, 21, 1000.0);
     sc->deep_m = 100.0;
     sc->n_features = 2;
-    sc->features[0] = (sw_feature){.kind = SW_FEATURE_ISLAND, .name = "Gull Rock", .line = 9,
+    sc->features[0] = (sw_feature){.kind = SW_FEATURE_ISLAND, .name = "Pellquin Rock", .line = 9,
                                    .x_m = 10000.0, .y_m = 10000.0, .radius_x_m = 2000.0,
                                    .radius_y_m = 2000.0, .height_m = 20.0};
     sc->features[1] = (sw_feature){.kind = SW_FEATURE_SHOAL, .name = "Bank", .line = 15,
@@ -576,7 +576,7 @@ static void test_geographic_recipe(void **state)
     sw_scenario *sc = geo_scenario(80, 60, 0.0, 59.7, 0.01);
     sc->deep_m = 100.0;
     sc->n_features = 1;
-    sc->features[0] = (sw_feature){.kind = SW_FEATURE_ISLAND, .name = "Tern Holm", .x_m = sw_grid_deg(&sc->grid, 0.4),
+    sc->features[0] = (sw_feature){.kind = SW_FEATURE_ISLAND, .name = "Tervelka Islet", .x_m = sw_grid_deg(&sc->grid, 0.4),
                                    .y_m = sw_grid_deg(&sc->grid, 60.0), .radius_x_m = 5000.0, .radius_y_m = 5000.0,
                                    .height_m = 20.0};
     double *d = build(sc);

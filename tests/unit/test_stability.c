@@ -571,7 +571,7 @@ static double run_mode(const sw_layout *lay, size_t nx, size_t ny, double d, dou
         }
     sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta0, .min_depth_m = 1,
                            .gravity_ms2 = G, .edges = {edges[0], edges[1], edges[2], edges[3]}};
-    cfg.dt_s = 0.9 * sw_model_dt_limit(lay, &g, depth, 1, G, 2);
+    cfg.dt_s = 0.9 * sw_model_dt_limit(lay, &g, depth, 1, G, sw_model_dims(&g, cfg.edges));
     sw_model *m = NULL;
     sw_error err = {0};
     assert_int_equal(sw_model_create(&cfg, &m, &err), SW_OK);
@@ -702,9 +702,9 @@ static void test_write_planes(void **state)
     assert_non_null(strstr(buf, "amplification"));
     double courants[16], f_dt = -1;
     size_t len = 0;
-    assert_int_equal(nc_inq_attlen(ncid, NC_GLOBAL, "courant", &len), NC_NOERR);
+    assert_int_equal(nc_inq_attlen(ncid, NC_GLOBAL, "courant_number", &len), NC_NOERR);
     assert_int_equal(len, nl);
-    assert_int_equal(nc_get_att_double(ncid, NC_GLOBAL, "courant", courants), NC_NOERR);
+    assert_int_equal(nc_get_att_double(ncid, NC_GLOBAL, "courant_number", courants), NC_NOERR);
     assert_int_equal(nc_get_att_double(ncid, NC_GLOBAL, "f_dt", &f_dt), NC_NOERR);
     assert_true(f_dt == 0.0 && courants[0] == planes[0].courant);
 

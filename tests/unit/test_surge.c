@@ -54,7 +54,7 @@ static sw_model *make(const char *layout, size_t nx, size_t ny, double d, double
                            .gravity_ms2 = G, .terms = terms, .edge_level_m = start_level};
     memcpy(cfg.edges, edges, sizeof cfg.edges);
     const double f = sw_terms_f_max(&terms, 0, (double)ny * d, 0);
-    cfg.dt_s = courant * sw_terms_dt_limit(sw_model_dt_limit(lay, &g, depth, 1, G, 2), f);
+    cfg.dt_s = courant * sw_terms_dt_limit(sw_model_dt_limit(lay, &g, depth, 1, G, sw_model_dims(&g, cfg.edges)), f);
     sw_model *m = NULL;
     sw_error err = {0};
     sw_status rc = sw_model_create(&cfg, &m, &err);

@@ -45,7 +45,7 @@
     "dx = 1 km\n"                      /*  7 */                                                              \
     "[seabed]\n"                       /*  8 */                                                              \
     "deep = 100 m\n"                   /*  9 */                                                              \
-    "[bay Long Bay]\n"                 /* 10 */                                                              \
+    "[bay Lonquessa Bay]\n"                 /* 10 */                                                              \
     "x = 30 km\n"                      /* 11 */                                                              \
     "y = 15 km\n"                      /* 12 */                                                              \
     "radius_x = 4 km\n"                /* 13 */                                                              \
@@ -119,10 +119,10 @@ static void test_sweep_values(void **state)
                                "amplitude_factor = 0.5, 2\n"              /* 35 */
                                "source_y_offset = -30 km, 0, 30 km\n"     /* 36 */
                                "depth_factor = 0.9 .. 1.1 in 3\n"         /* 37 */
-                               "courant = 0.5, 0.9\n"                     /* 38 */
+                               "courant_fraction = 0.5, 0.9\n"            /* 38 */
                                "layout = a, C\n"                          /* 39 */
                                "source main.amplitude = 1 m, 2 m\n"       /* 40 */
-                               "bay Long Bay.depth = 10 m, 30 m\n"        /* 41 */
+                               "bay Lonquessa Bay.depth = 10 m, 30 m\n"        /* 41 */
                                "grid.nx = 20 .. 40 in 3\n");              /* 42 */
     const sw_sweep_spec *sw = &sc->sweep;
     assert_int_equal(sw->present, 1);
@@ -142,12 +142,12 @@ static void test_sweep_values(void **state)
     assert_true(p[2].is_range && p[2].lo == 0.9 && p[2].hi == 1.1);
     assert_true(fabs(p[2].level[1] - 1.0) < 1e-15 && p[2].level[2] == 1.1);
     assert_int_equal(p[3].kind, SW_SWEEP_KEY);
-    assert_string_equal(p[3].target, "run.courant");   /* the alias */
+    assert_string_equal(p[3].target, "run.courant_fraction");   /* the alias */
     assert_string_equal(p[4].target, "run.layout");
     assert_int_equal(p[4].layout, 1);
     assert_true(p[4].level[0] == 0.0 && p[4].level[1] == 2.0);   /* A = 0, C = 2 */
     assert_string_equal(p[5].target, "source main.amplitude");
-    assert_string_equal(p[6].target, "bay Long Bay.depth");
+    assert_string_equal(p[6].target, "bay Lonquessa Bay.depth");
     assert_true(p[6].level[1] == 30.0);
     assert_int_equal(p[7].integer, 1);
     assert_true(p[7].level[0] == 20 && p[7].level[1] == 30 && p[7].level[2] == 40);
@@ -203,16 +203,21 @@ static void test_sweep_errors(void **state)
     parse_bad(BASE "run.title = a, b\n", SW_ERR_PARSE, "t.scn:34:", "is not a number");
     parse_bad(BASE "source main.length = 1 km, 2 km\n", SW_ERR_PARSE, "t.scn:34:", "not used by this source's shape");
     parse_bad(BASE "gauges.Harbour = 1 km, 2 km\n", SW_ERR_PARSE, "t.scn:34:", "cannot be varied");
-    parse_bad(BASE "run.courant = 0.5, 1.5\n", SW_ERR_RANGE, "t.scn:34: [sweep] run.courant = 0.5, 1.5: value '1.5': "
-              "out of range", "0 < courant <= 1");
-    parse_bad(BASE "courant = 0.5, 0.7\nrun.courant = 0.6, 0.8\n", SW_ERR_PARSE, "t.scn:35:",
-              "varies run.courant, as 'courant' on line 34 already does");
+    /* the old names of renamed keys are refused with the new ones, as a short name and as SECTION.KEY */
+    parse_bad(BASE "courant = 0.5, 0.7\n", SW_ERR_PARSE, "t.scn:34: [sweep] unknown key 'courant' (renamed: write "
+              "courant_fraction = F", NULL);
+    parse_bad(BASE "run.courant = 0.5, 0.7\n", SW_ERR_PARSE, "t.scn:34: [sweep] run.courant: [run] has no key "
+              "'courant' (renamed: write courant_fraction", NULL);
+    parse_bad(BASE "run.courant_fraction = 0.5, 1.5\n", SW_ERR_RANGE, "t.scn:34: [sweep] run.courant_fraction = 0.5, 1.5: value '1.5': "
+              "out of range", "0 < courant_fraction <= 1");
+    parse_bad(BASE "courant_fraction = 0.5, 0.7\nrun.courant_fraction = 0.6, 0.8\n", SW_ERR_PARSE, "t.scn:35:",
+              "varies run.courant_fraction, as 'courant_fraction' on line 34 already does");
     parse_bad(BASE "depth_factor = 1, 2\ndepth_factor = 3, 4\n", SW_ERR_PARSE, "t.scn:35: [sweep] duplicate key",
               NULL);
     parse_bad(BASE "design = factorial\na.x = 1\n" , SW_ERR_PARSE, "t.scn:35:", "unknown section 'a'");
     /* 4 parameters of 20 values: 160000 members */
     parse_bad(BASE "design = factorial\namplitude_factor = 1 .. 20 in 20\ndepth_factor = 1 .. 20 in 20\n"
-                   "resolution_factor = 1 .. 20 in 20\ncourant = 0.05 .. 1 in 20\n", SW_ERR_RANGE,
+                   "resolution_factor = 1 .. 20 in 20\ncourant_fraction = 0.05 .. 1 in 20\n", SW_ERR_RANGE,
               "t.scn:34: [sweep] design = factorial makes 160000 members", "at most 10000");
     /* amplitude_factor and offsets need analytic sources */
     parse_bad("[run]\nduration = 1 h\n[grid]\nnx = 10\nny = 10\ndx = 1 km\n[seabed]\ndeep = 100 m\n"
@@ -280,9 +285,9 @@ static void test_override(void **state)
     sw_scenario *o = new_sc();
     sw_error err = { 0 };
 
-    /* courant replaces dt (they exclude each other), the [sweep] section goes, lines stay */
-    sw_override a[] = { { "run.courant", "0.5" }, { "grid.dx", "1.5 km" }, { "source pair.amplitude", "2 m" },
-                        { "bay Long Bay.depth", "25 m" }, { "seabed.min_depth", "3 m" } };
+    /* courant_fraction replaces dt (they exclude each other), the [sweep] section goes, lines stay */
+    sw_override a[] = { { "run.courant_fraction", "0.5" }, { "grid.dx", "1.5 km" }, { "source pair.amplitude", "2 m" },
+                        { "bay Lonquessa Bay.depth", "25 m" }, { "seabed.min_depth", "3 m" } };
     override_ok(sc, a, 5, o);
     assert_true(o->courant_fraction == 0.5 && o->dt_s == 0.0);
     assert_true(o->grid.dx_m == 1500.0 && o->grid.dy_m == 1500.0);   /* dy follows dx when the file gives none */
@@ -290,10 +295,10 @@ static void test_override(void **state)
     assert_true(o->features[0].depth_m == 25.0);
     assert_true(o->min_depth_m == 3.0);
     assert_int_equal(o->sweep.present, 0);
-    assert_non_null(strstr(o->text, "courant = 0.5"));
+    assert_non_null(strstr(o->text, "courant_fraction = 0.5"));
     assert_null(strstr(o->text, "dt = 2 s"));
     assert_null(strstr(o->text, "[sweep]"));
-    assert_int_equal(o->gauges[0].line, 34);   /* two lines inserted (courant, min_depth), the dt line blanked */
+    assert_int_equal(o->gauges[0].line, 34);   /* two lines inserted (courant_fraction, min_depth), the dt line blanked */
     double v = 0;
     assert_int_equal(sw_scenario_value(o, "grid.dx", &v, &err), SW_OK);
     assert_true(v == 1500.0);
@@ -312,11 +317,16 @@ static void test_override(void **state)
     sw_scenario_free(o);
 
     /* refusals quote the override, or the original line for a rule it breaks elsewhere */
-    sw_override bad1 = { "run.courant", "1.5" };
+    sw_override renamed = { "run.courant", "0.5" };
+    assert_int_equal(sw_scenario_override(sc, &renamed, 1, o, &err), SW_ERR_RANGE);
+    assert_non_null(strstr(err.msg, "override 'run.courant': no such key in the scenario tables (renamed: write "
+                                    "courant_fraction = F"));
+    assert_null(o->text);
+    sw_override bad1 = { "run.courant_fraction", "1.5" };
     assert_int_equal(sw_scenario_override(sc, &bad1, 1, o, &err), SW_ERR_RANGE);
     print_message("  %s\n", err.msg);
-    assert_non_null(strstr(err.msg, "t.scn: override run.courant = 1.5: [run] courant = 1.5: out of range (accepted: "
-                                    "0 < courant <= 1"));
+    assert_non_null(strstr(err.msg, "t.scn: override run.courant_fraction = 1.5: [run] courant_fraction = 1.5: out of range (accepted: "
+                                    "0 < courant_fraction <= 1"));
     assert_null(o->text);
     sw_override bad2 = { "grid.dx", "100 m" };   /* the domain shrinks to 4 km: the gauge at 35 km is outside */
     assert_int_equal(sw_scenario_override(sc, &bad2, 1, o, &err), SW_ERR_RANGE);
@@ -352,9 +362,9 @@ static void test_designs(void **state)
     (void)state;
     /* one-at-a-time: the base, then each value that differs from the base (1 for factors) */
     sw_scenario *sc = parse_ok(BASE "amplitude_factor = 0.5, 1, 2\nsource_y_offset = -3 km, 3 km\n"
-                                    "courant = 0.9, 0.5\n");
+                                    "courant_fraction = 0.9, 0.5\n");
     sw_sweep_plan p = design_of(sc);
-    assert_int_equal(p.n_members, 1 + 2 + 2 + 1);   /* 1 and run.courant = 0.9 (the default) are the base */
+    assert_int_equal(p.n_members, 1 + 2 + 2 + 1);   /* 1 and run.courant_fraction = 0.9 (the default) are the base */
     assert_true(p.member[0].varied == -1 && p.member[0].value[0] == 1.0 && p.member[0].value[1] == 0.0);
     assert_true(p.member[1].varied == 0 && p.member[1].value[0] == 0.5 && p.member[1].value[1] == 0.0);
     assert_true(p.member[2].varied == 0 && p.member[2].value[0] == 2.0);
@@ -449,7 +459,7 @@ static void test_statistics(void **state)
 
 /* A flat basin with walls, one hump and two gauges; [sweep] appended. */
 #define FLAT                                                                                                 \
-    "[run]\nduration = 10 min\ncourant = 0.8\ngauge_interval = 10 s\narrival_threshold = 0.002 m\n"           \
+    "[run]\nduration = 10 min\ncourant_fraction = 0.8\ngauge_interval = 10 s\narrival_threshold = 0.002 m\n"           \
     "[grid]\nnx = 60\nny = 40\ndx = 500 m\n"                                                                 \
     "[seabed]\ndeep = 50 m\n"                                                                                \
     "[source main]\nshape = hump\nx = 10 km\ny = 10 km\namplitude = 0.5 m\nradius = 1.5 km\n"                \
@@ -509,8 +519,8 @@ static void test_depth_factor_arrival(void **state)
         char text[4096];
         snprintf(text, sizeof text, "%s%s", FLAT "depth_factor = 0.81, 1.21\n", "");
         if (fixed_dt) {
-            char *at = strstr(text, "courant = 0.8");
-            memcpy(at, "dt = 2.5 s   ", 13);   /* same length; 2.5 s is stable at 1.21 x 50 m */
+            char *at = strstr(text, "courant_fraction = 0.8");
+            memcpy(at, "dt = 2.5 s            ", 22);   /* same length; 2.5 s is stable at 1.21 x 50 m */
         }
         sw_scenario *sc = parse_ok(text);
         sw_sweep_plan p;

@@ -73,7 +73,8 @@ static sw_model *make(const spec *sp)
                            .u0_ms = sp->u0 ? u : NULL, .min_depth_m = 1, .gravity_ms2 = G,
                            .terms = sp->terms, .precision = sp->precision, .allow_unstable = 1};
     memcpy(cfg.edges, sp->edges, sizeof cfg.edges);
-    cfg.dt_s = sp->dt_s > 0 ? sp->dt_s : sp->courant_frac * sw_model_dt_limit(sp->layout, &g, depth, 1, G, 2);
+    cfg.dt_s = sp->dt_s > 0 ? sp->dt_s : sp->courant_frac * sw_model_dt_limit(sp->layout, &g, depth, 1, G,
+                                                                                 sw_model_dims(&g, cfg.edges));
     sw_model *m = NULL;
     sw_error err = {0};
     sw_status rc = sw_model_create(&cfg, &m, &err);

@@ -56,7 +56,7 @@ static sw_model *basin(const char *layout, sw_precision precision, size_t nx, si
     sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .eta0_m = eta, .min_depth_m = 1,
                            .gravity_ms2 = G, .precision = precision,
                            .edges = {SW_EDGE_OPEN, SW_EDGE_OPEN, SW_EDGE_WALL, SW_EDGE_OPEN}};
-    cfg.dt_s = 0.9 * sw_model_dt_limit(lay, &g, depth, 1, G, 2);
+    cfg.dt_s = 0.9 * sw_model_dt_limit(lay, &g, depth, 1, G, sw_model_dims(&g, cfg.edges));
     sw_model *m = NULL;
     sw_error err = {0};
     assert_int_equal(sw_model_create(&cfg, &m, &err), SW_OK);

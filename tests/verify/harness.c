@@ -26,7 +26,7 @@ sw_status vh_model(const vh_setup *s, sw_model **out, sw_error *err)
                            .precision = vh_precision};
     for (int e = 0; e < 4; e++)
         cfg.edges[e] = s->edges[e];
-    cfg.dt_s = s->courant_frac * sw_model_dt_limit(s->layout, &g, depth, 1.0, VH_G, 2);
+    cfg.dt_s = s->courant_frac * sw_model_dt_limit(s->layout, &g, depth, 1.0, VH_G, sw_model_dims(&g, cfg.edges));
     sw_status rc = sw_model_create(&cfg, out, err);
     free(depth);
     return rc;

@@ -74,7 +74,7 @@ def scenario(layout, duration):
         "title = verification hump",
         f"duration = {duration:.1f} s",
         f"layout = {layout}",
-        "courant = 0.9",
+        "courant_fraction = 0.9",
         "gauge_interval = 1 s",     # below dt: every step is sampled
         "",
         "[grid]",
