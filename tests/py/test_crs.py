@@ -365,8 +365,8 @@ def test_geographic():
         check(ok and np.allclose(glon[:], [180.5, 184.5], atol=1e-9)
               and np.allclose(glat[:], [-43.0, -41.0], atol=1e-9),
               f"gauges in degrees: lon {glon[:] if ok else None}, lat {glat[:] if ok else None}")
-        check(ok and glon.units == "degrees_east" and g.variables["eta"].coordinates == "time lat lon station_name",
-              "gauges: lon in degrees_east, eta's coordinates name lat and lon")
+        check(ok and glon.units == "degrees_east" and g.variables["eta"].coordinates == "time station_lat station_lon station_name",
+              "gauges: lon in degrees_east, eta's coordinates name station_lat and station_lon")
     with Dataset(os.path.join(out, "snapshots.nc")) as s:
         check(s.variables["eta"].dimensions == ("time", "lat", "lon") and s.variables["eta"].grid_mapping == "crs",
               "snapshots: eta(time, lat, lon) with grid_mapping crs")

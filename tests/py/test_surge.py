@@ -170,7 +170,7 @@ def check_storm_run():
             v = ds.variables.get(var)
             check(v is not None and v.dimensions == ("station", "time") and v.standard_name == std
                   and v.units == units and "linear in time between forcing slabs" in v.long_name
-                  and v.coordinates == "time x y station_name",
+                  and v.coordinates == "time station_y station_x station_name",
                   f"gauges.nc has {var}(station, time) with standard_name {std}, units {units}")
         p_pa = np.ma.filled(ds["air_pressure"][:], np.nan)
         speed = np.hypot(np.ma.filled(ds["wind_east"][:], np.nan), np.ma.filled(ds["wind_north"][:], np.nan))
