@@ -9,14 +9,9 @@ import os
 import subprocess
 import sys
 
+from swtest import FAILURES, check
+
 BIN = os.path.abspath(sys.argv[1])
-FAILURES = []
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
 
 
 r = subprocess.run([BIN, "bench", "--size", "96", "--rounds", "3", "--threads", "1,2", "--json"],

@@ -22,10 +22,11 @@ import sys
 
 import netCDF4
 
+from swtest import FAILURES, check
+
 BIN, WORK = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
 shutil.rmtree(WORK, ignore_errors=True)
 os.makedirs(WORK)
-FAILURES = []
 
 # The sentences every full caution has (the plain and the surge form share them; run.c defines both).
 FULL = ["CAUTION:", "hazard forecast or warning.",
@@ -37,12 +38,6 @@ SWEEP = ["The spread shows how sensitive this model is to the settings you vary,
 # The short form (top-level --help).
 SHORT = ["CAUTION:", "not a hazard forecast or warning",
          "in an emergency follow official warning agencies and local emergency management"]
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
 
 
 def flat(text):

@@ -34,11 +34,12 @@ import warnings
 import numpy as np
 from netCDF4 import Dataset
 
+from swtest import FAILURES, check
+
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 shutil.rmtree(WORK, ignore_errors=True)
 os.makedirs(WORK)
-FAILURES = []
 # pandas warns when xarray turns the _FillValue cells (NaN) of a duration into NaT: expected here
 warnings.filterwarnings("ignore", category=RuntimeWarning, module="pandas")
 
@@ -95,12 +96,6 @@ design = factorial
 amplitude_factor = 0.5, 1
 depth_factor = 0.8, 1.2
 """
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
 
 
 def run(*args):

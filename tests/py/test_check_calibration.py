@@ -20,17 +20,12 @@ import subprocess
 import sys
 import time
 
+from swtest import FAILURES, check
+
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 SCENARIO = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "..", "scenarios", "demo.scn")
 CACHE = os.path.join(WORK, "cache")
-FAILURES = []
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
 
 
 def run(*args, cache=CACHE):

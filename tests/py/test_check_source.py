@@ -23,23 +23,17 @@ All places and names are fictional.
 import json
 import math
 import os
-import subprocess
 import sys
 
 import netCDF4
 import numpy as np
 
+from swtest import FAILURES, check, run
+
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 REPO = os.path.dirname(os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
 os.makedirs(WORK, exist_ok=True)
-FAILURES = []
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
 
 
 def write(name, text):
@@ -47,10 +41,6 @@ def write(name, text):
     with open(path, "w") as f:
         f.write(text)
     return path
-
-
-def run(*args):
-    return subprocess.run([BIN, *args], capture_output=True, text=True)
 
 
 def plan(path):

@@ -13,10 +13,11 @@ import os
 import subprocess
 import sys
 
+from swtest import FAILURES, check
+
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 os.makedirs(WORK, exist_ok=True)
-FAILURES = []
 
 BASE = """[run]
 title = Brevanquil Flats (fictional)
@@ -30,12 +31,6 @@ deep = 100 m
 """
 SOURCE = "[source hump]\nshape = hump\nx = 10 km\ny = 10 km\namplitude = 1 m\nradius = 3 km\n"
 GAUGES = "[gauges]\nRavelquist Weir = 5 km, 5 km\n"
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
 
 
 def plan(name, text):

@@ -12,15 +12,10 @@ import os
 import subprocess
 import sys
 
+from swtest import FAILURES, check
+
 BIN, WORK = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
 os.makedirs(WORK, exist_ok=True)
-FAILURES = []
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
 
 
 SCENARIO = """; small fictional coast for the comparison test

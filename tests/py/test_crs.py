@@ -35,12 +35,13 @@ import sys
 import numpy as np
 from netCDF4 import Dataset
 
+from swtest import FAILURES, check, run
+
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 HERE = os.path.dirname(os.path.abspath(__file__))
 PLOT = os.path.join(HERE, "..", "..", "tools", "plot")
 os.makedirs(WORK, exist_ok=True)
-FAILURES = []
 GDALINFO = shutil.which("gdalinfo")
 GDALSRSINFO = shutil.which("gdalsrsinfo")
 
@@ -71,16 +72,6 @@ NX, NY, DX = 60, 40, 1000.0
 X_WEST, Y_SOUTH = 400000.0, 4500000.0
 
 GRIDDED = ("depth", "wet", "eta_max", "eta_min", "arrival_time", "eta_max_time", "speed_max")
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
-
-
-def run(*args):
-    return subprocess.run([BIN, *args], capture_output=True, text=True)
 
 
 def write(name, text):

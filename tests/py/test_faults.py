@@ -19,25 +19,15 @@ import json
 import math
 import os
 import shutil
-import subprocess
 import sys
+
+from swtest import FAILURES, check, run
 
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 HERE = os.path.dirname(os.path.abspath(__file__))
 SCN_DIR = os.path.join(HERE, "..", "..", "scenarios")
 os.makedirs(WORK, exist_ok=True)
-FAILURES = []
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
-
-
-def run(*args):
-    return subprocess.run([BIN, *args], capture_output=True, text=True)
 
 
 def table_rows(path):

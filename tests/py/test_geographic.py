@@ -18,11 +18,12 @@ reference:
 """
 import math
 import os
-import subprocess
 import sys
 
 import numpy as np
 from netCDF4 import Dataset
+
+from swtest import FAILURES, check, run
 
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
@@ -31,17 +32,6 @@ SCN = os.path.join(HERE, "..", "..", "scenarios", "geographic-demo.scn")
 R = 6371e3
 G = 9.81
 os.makedirs(WORK, exist_ok=True)
-FAILURES = []
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
-
-
-def run(*args):
-    return subprocess.run([BIN, *args], capture_output=True, text=True)
 
 
 def haversine(lat1, lon1, lat2, lon2):

@@ -28,6 +28,8 @@ import sys
 import numpy as np
 from netCDF4 import Dataset
 
+from swtest import FAILURES, check
+
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 RECORD = "--record" in sys.argv[3:]
@@ -35,13 +37,6 @@ HERE = os.path.dirname(os.path.abspath(__file__))
 GOLDEN = os.path.join(HERE, "..", "golden")
 EXPECTED = os.path.join(GOLDEN, "expected.json")
 os.makedirs(WORK, exist_ok=True)
-FAILURES = []
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
 
 
 def cases():

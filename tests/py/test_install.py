@@ -30,6 +30,8 @@ import shutil
 import subprocess
 import sys
 
+from swtest import FAILURES, check
+
 BIN, WORK = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
 BUILD = os.path.dirname(BIN)
 ROOT = os.path.abspath(os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", ".."))
@@ -38,15 +40,8 @@ PREFIX = os.path.join(WORK, "prefix")
 PY = "/usr/bin/python3"
 shutil.rmtree(WORK, ignore_errors=True)
 os.makedirs(WORK)
-FAILURES = []
 INSTALLED_TOOLS = ["shoreward-plot", "shoreward-plot-sweep", "shoreward-plot-stability"]
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"     # PNG specification (ISO/IEC 15948), section 5.2 [memory]
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
 
 
 def sh(cmd, cwd=None):

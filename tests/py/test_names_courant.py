@@ -22,10 +22,11 @@ import sys
 
 from netCDF4 import Dataset
 
+from swtest import FAILURES, check
+
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 os.makedirs(WORK, exist_ok=True)
-FAILURES = []
 
 SCENARIO = """[run]
 title = Ketravo Point basin (fictional)
@@ -54,12 +55,6 @@ Ketravo Point = 20 km, 15 km
 Pavrune Sands = 38 km, 15 km
 """
 HUMP = dict(shape="hump", extra="radius = 3 km")
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
 
 
 def run(*args):

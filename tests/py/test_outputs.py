@@ -24,20 +24,11 @@ import time
 import numpy as np
 from netCDF4 import Dataset
 
+from swtest import FAILURES, check, run
+
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 os.makedirs(WORK, exist_ok=True)
-FAILURES = []
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
-
-
-def run(*args, **kw):
-    return subprocess.run([BIN, *args], capture_output=True, text=True, **kw)
 
 
 FLAT = """; constant-depth basin for output tests (fictional)

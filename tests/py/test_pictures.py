@@ -33,6 +33,8 @@ import matplotlib.text  # noqa: E402
 import numpy as np  # noqa: E402
 from netCDF4 import Dataset  # noqa: E402
 
+from swtest import FAILURES, check, run
+
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 HERE = os.path.dirname(os.path.abspath(__file__))
@@ -40,14 +42,7 @@ ROOT = os.path.join(HERE, "..", "..")
 TOOLS = os.path.join(ROOT, "tools")
 shutil.rmtree(WORK, ignore_errors=True)
 os.makedirs(WORK)
-FAILURES = []
 MAX_MARGIN_PX = 45
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
 
 
 def load(name):
@@ -77,10 +72,6 @@ def recording_save(fig, out):
 
 plot.save = recording_save          # plot-sweep calls tools/plot's save through the same module object
 plot_sweep.sp.save = recording_save
-
-
-def run(*args):
-    return subprocess.run([BIN, *args], capture_output=True, text=True)
 
 
 def squash(text):

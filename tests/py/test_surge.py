@@ -43,15 +43,15 @@ import math
 import os
 import re
 import shutil
-import subprocess
 import sys
 
 import numpy as np
 from netCDF4 import Dataset
 
+from swtest import FAILURES, check, run
+
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
-FAILURES = []
 
 AMBIENT_PA = 101300.0      # [storm] ambient_pressure default, 1013 hPa (docs/storm.md)
 CENTRAL_PA = 97300.0       # the track's central pressure, 973 hPa
@@ -101,16 +101,6 @@ time[h]   x[km]   y[km]   central_pressure[hPa]   rmax[km]   B
 """
 TRACK_X_KM = 140.0
 TRACK_Y0_KM, TRACK_Y1_KM, TRACK_T1_S = -100.0, 250.0, 8 * 3600.0
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
-
-
-def run(*args):
-    return subprocess.run([BIN, *args], capture_output=True, text=True)
 
 
 def write(name, text):

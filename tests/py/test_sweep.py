@@ -30,23 +30,14 @@ import numpy as np
 from netCDF4 import Dataset
 from scipy import stats
 
+from swtest import FAILURES, check, run
+
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 HERE = os.path.dirname(os.path.abspath(__file__))
 PLOT = os.path.join(HERE, "..", "..", "tools", "plot-sweep")
 shutil.rmtree(WORK, ignore_errors=True)   # a sweep resumes from what it finds: start from nothing
 os.makedirs(WORK)
-FAILURES = []
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
-
-
-def run(*args, **kw):
-    return subprocess.run([BIN, *args], capture_output=True, text=True, **kw)
 
 
 def write(name, text):

@@ -20,28 +20,17 @@ import json
 import math
 import os
 import re
-import subprocess
 import sys
 
-import numpy as np
 from netCDF4 import Dataset
+
+from swtest import FAILURES, check, run
 
 BIN = os.path.abspath(sys.argv[1])
 WORK = os.path.abspath(sys.argv[2])
 HERE = os.path.dirname(os.path.abspath(__file__))
 SCN = os.path.join(HERE, "..", "..", "scenarios", "rotating-shelf.scn")
 os.makedirs(WORK, exist_ok=True)
-FAILURES = []
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what)
-    if not cond:
-        FAILURES.append(what)
-
-
-def run(*args):
-    return subprocess.run([BIN, *args], capture_output=True, text=True)
 
 
 def write(name, text):
