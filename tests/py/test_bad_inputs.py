@@ -10,10 +10,12 @@ runs under a timeout, so a hang (a loop that never ends, a signal ignored) fails
 the suite. A row may also name a check of its own (EXTRA). Rows marked PENDING describe a fix that is
 not in yet (see the comment beside them): they are run and reported but do not fail the test.
 
-What is covered (issue 15, item 4): intervals far below the time step (the observers sample at most once
-per step; the sample and snapshot counts are those of the steps), out-of-range values from a seabed file
-after unpacking (scale_factor, add_offset), non-finite values, text that is not UTF-8, and grids one
-cell wide with open edges across them. Every place name is invented (fictional).
+What is covered (issue 15, items 4 and 7): intervals far below the time step (the observers sample at most
+once per step; the sample and snapshot counts are those of the steps), out-of-range values from a seabed or
+source file after unpacking (scale_factor, add_offset), non-finite values, text that is not UTF-8, grids one
+cell wide with open edges across them, the syntax, units and ranges of every section, missing and damaged
+files, and the command line (CLI). Signals, full disks, locks and resumes are in test_output_safety.py and
+test_resume.py, damaged NetCDF files in test_damaged_inputs.py. Every place name is invented (fictional).
 """
 import json
 import os
@@ -227,6 +229,118 @@ CASES += [
      .replace("x = 0.5 km", "x = 2.5 km"), {}, "run", 0, [], None, False),
 ]
 
+# syntax, units and ranges of the scenario text: each refused on its line with the accepted form
+FAULT = ("[fault F]\nx = 10 km\ny = 10 km\ndepth = 5 km\nlength = 10 km\nwidth = 5 km\nstrike = 0\ndip = 20\n"
+         "rake = 90\n")
+NOT_NETCDF = {"text.nc": lambda path: open(path, "w").write("not a NetCDF file\n")}
+CASES += [(name, text, files, "check", 1, words, None, False) for name, text, files, words in [
+    ("no-run-section", BASE, {}, ["missing section [run]", "duration"]),
+    ("no-duration", "[run]\n" + BASE, {}, [":1:", "missing key 'duration'", "0 < duration <= 30 d"]),
+    ("unknown-section", run_sec() + BASE + "[harbour]\nx = 1\n", {}, [":18:", "unknown section [harbour]", "accepted"]),
+    ("section-typo", run_sec() + BASE.replace("[seabed]", "[seabd]"), {}, [":8:", "did you mean 'seabed'?"]),
+    ("unclosed-header", run_sec() + "[grid\nnx = 2\n" + BASE, {}, [":4:", "missing ']'"]),
+    ("no-equals", run_sec() + "layout C\n" + BASE, {}, [":4:", "cannot read 'layout C'", "key = value"]),
+    ("empty-key", run_sec() + " = 3\n" + BASE, {}, [":4:", "key name is missing"]),
+    ("key-before-section", "duration = 1 h\n" + run_sec() + BASE, {}, [":1:", "comes before any [section]"]),
+    ("duplicate-key", run_sec("duration = 20 min\n") + BASE, {}, [":4:", "duplicate key 'duration'", "line 3"]),
+    ("duplicate-section", run_sec() + BASE + "[grid]\nnx = 3\n", {}, [":18:", "duplicate section [grid]"]),
+    ("nul-byte", run_sec() + BASE.replace("deep", "de\0ep"), {}, [":9:", "NUL byte"]),
+    ("long-line", run_sec() + BASE + "; " + "y" * 400 + "\n", {}, [":18:", "402 characters", "at most 200"]),
+    ("long-title", run_sec().replace("Brevanquil Flats (fictional)", "x" * 300), {}, [":2:", "at most 200"]),
+    ("unit-unknown", run_sec().replace("10 min", "10 fortnights") + BASE, {}, [":3:", "unknown unit 'fortnights'",
+                                                                            "s, min, h, d"]),
+    ("unit-on-plain-number", run_sec("courant_fraction = 0.5 m\n") + BASE, {}, [":4:", "unexpected 'm'", "no unit"]),
+    ("two-numbers", run_sec().replace("10 min", "10 20 min") + BASE, {}, [":3:", "unexpected '20 min'"]),
+    ("duration-negative", run_sec().replace("10 min", "-10 min") + BASE, {}, [":3:", "out of range", "30 d"]),
+    ("duration-huge", run_sec().replace("10 min", "1e9 d") + BASE, {}, [":3:", "out of range"]),
+    ("layout-unknown", run_sec("layout = F\n") + BASE, {}, [":4:", "unknown layout", "A, B, C, D, E"]),
+    ("precision-unknown", run_sec("precision = half\n") + BASE, {}, [":4:", "double, single"]),
+    ("courant-old-name", run_sec("courant = 0.5\n") + BASE, {}, [":4:", "unknown key 'courant'", "courant_fraction"]),
+    ("courant-over", run_sec("courant_fraction = 1.5\n") + BASE, {}, [":4:", "0 < courant_fraction <= 1"]),
+    ("dt-and-courant", run_sec("dt = 1 s\ncourant_fraction = 0.5\n") + BASE, {}, [":5:", "both given"]),
+    ("dt-over-limit", run_sec("dt = 100 s\n") + BASE, {}, [":4:", "exceeds the C-layout limit", "largest stable dt"]),
+    ("nx-zero", run_sec() + BASE.replace("nx = 20", "nx = 0"), {}, [":5:", "1 <= nx <= 100000"]),
+    ("nx-fraction", run_sec() + BASE.replace("nx = 20", "nx = 2.5"), {}, [":5:", "not a whole number"]),
+    ("nx-huge", run_sec() + BASE.replace("nx = 20", "nx = 1e12"), {}, [":5:", "out of range"]),
+    ("dx-negative", run_sec() + BASE.replace("dx = 1 km", "dx = -1 km"), {}, [":7:", "1 m <= dx <= 1000 km"]),
+    ("dx-degrees-projected", run_sec() + BASE.replace("dx = 1 km", "dx = 1 deg"), {},
+     [":7:", "degrees on a projected grid", "kind = geographic"]),
+    ("deep-over", run_sec() + BASE.replace("deep = 100 m", "deep = 13 km"), {}, [":9:", "0 < deep <= 12 km"]),
+    ("min-depth-over", run_sec() + BASE.replace("deep = 100 m", "deep = 100 m\nmin_depth = 200 m"), {},
+     [":10:", "0 < min_depth <= 100 m"]),
+    ("all-land", run_sec() + GRID + "[seabed]\ndeep = 50 m\nmin_depth = 60 m\n", {}, ["the domain has no water",
+                                                                                     "min_depth = 60 m"]),
+    ("coast-unknown", run_sec() + BASE.replace("deep = 100 m", "deep = 100 m\ncoast = up"), {},
+     [":10:", "none, west, east, south, north"]),
+    ("edge-unknown", run_sec() + BASE + "[edges]\nwest = sponge\n", {}, [":19:", "wall, open, level, periodic"]),
+    ("periodic-unpaired", run_sec() + BASE + "[edges]\nwest = periodic\n", {}, [":19:", "needs east = periodic"]),
+    ("gauge-outside", run_sec() + BASE + "Tervelka Quay = 50 km, 5 km\n", {}, [":18:", "outside the domain"]),
+    ("gauge-no-comma", run_sec() + BASE + "Tervelka Quay = 5 km 5 km\n", {}, [":18:", "expected two lengths"]),
+    ("gauge-duplicate", run_sec() + BASE + "Ravelquist Weir = 6 km, 6 km\n", {}, [":18:", "duplicate gauge"]),
+    ("hump-no-radius", run_sec() + BASE.replace("radius = 3 km\n", ""), {}, [":10:", "missing key 'radius'"]),
+    ("amplitude-over", run_sec() + BASE.replace("amplitude = 1 m", "amplitude = 150 m"), {},
+     [":14:", "|amplitude| <= 100 m"]),
+    ("shape-unknown", run_sec() + BASE.replace("shape = hump", "shape = cone"), {}, [":11:", "hump, ellipse, pair"]),
+    ("source-outside-grid", run_sec() + BASE.replace("x = 10 km\ny = 10 km", "x = 100 km\ny = 100 km"), {},
+     [":10:", "nothing of its displaced volume is left in the water", "outside the grid"]),
+    ("pair-trough-old-name", run_sec() + GRID + DEEP + GAUGE + "[source P]\nshape = pair\nx = 10 km\ny = 10 km\n"
+     "amplitude = 1 m\nlength = 4 km\nwidth = 2 km\nangle = 0\nseparation = 3 km\ntrough = 1 m\n", {},
+     ["unknown key 'trough'", "subsidence"]),
+    ("source-file-missing", run_sec() + BASE + "[source F]\nshape = file\nfile = nothere.nc\n", {},
+     [":18:", "nothere.nc", "No such file"]),
+    ("seabed-file-missing", run_sec() + GRID + "[seabed]\nfile = nothere.nc\n" + HUMP + GAUGE, {},
+     [":9:", "nothere.nc", "No such file"]),
+    ("seabed-file-not-netcdf", run_sec() + GRID + "[seabed]\nfile = text.nc\n" + HUMP + GAUGE, NOT_NETCDF,
+     [":9:", "text.nc", "Unknown file format"]),
+    ("rotation-unknown", run_sec("rotation = spin\n") + BASE, {}, [":4:", "none, f-plane, beta-plane"]),
+    ("f-plane-without-f", run_sec("rotation = f-plane\n") + BASE, {}, [":4:", "needs coriolis", "latitude"]),
+    ("coriolis-over", run_sec("rotation = f-plane\ncoriolis = 1 s-1\n") + BASE, {}, [":5:", "1.458e-4"]),
+    ("drag-without-friction", run_sec("drag = 0.0025\n") + BASE, {}, [":4:", "not used without friction"]),
+    ("manning-negative", run_sec("friction = manning\nmanning = -0.02\n") + BASE, {}, [":5:", "Manning's n"]),
+    ("origin-not-a-date", run_sec("origin = yesterday\n") + BASE, {}, [":4:", "YYYY-MM-DD HH:MM:SS"]),
+    ("fault-no-slip", run_sec() + GRID + DEEP + GAUGE + FAULT, {}, [":12:", "missing key 'slip'", "200 m"]),
+    ("fault-dip-over", run_sec() + GRID + DEEP + GAUGE + FAULT.replace("dip = 20", "dip = 95") + "slip = 1 m\n", {},
+     [":19:", "0 < dip <= 90 deg"]),
+    ("storm-no-track", run_sec() + GRID + DEEP + "[storm]\nreduction = 0.5\n", {}, [":10:", "missing key 'track'"]),
+    ("sweep-unknown-key", run_sec() + BASE + "[sweep]\nfoo = 1, 2\n", {}, [":19:", "unknown key 'foo'"]),
+]]
+
+# the command line: usage errors exit 2 with the command's name and a pointer to its --help;
+# a scenario that cannot be read exits 1 naming it. {scn} is a valid scenario, {dir} the case folder.
+CLI = [
+    ("cli-no-scenario", ["check"], 2, ["needs a scenario file", "shoreward check --help"]),
+    ("cli-scenario-missing", ["check", "{dir}/none.scn"], 1, ["none.scn", "No such file"]),
+    ("cli-scenario-is-folder", ["check", "{dir}"], 1, ["Is a directory"]),
+    ("cli-unknown-option", ["check", "{scn}", "--bogus"], 2, ["unknown option '--bogus'"]),
+    ("cli-extra-argument", ["check", "{scn}", "extra.scn"], 2, ["unexpected argument 'extra.scn'"]),
+    ("cli-threads-zero", ["run", "{scn}", "--threads", "0"], 2, ["--threads", "1 to 1024"]),
+    ("cli-precision-unknown", ["run", "{scn}", "--precision", "quad"], 2, ["double or single"]),
+    ("cli-unknown-command", ["frobnicate"], 2, ["'frobnicate' is not a command"]),
+    ("cli-refine-zero", ["compare", "{scn}", "--refine", "0"], 2, ["--refine", "1 to 64"]),
+    ("cli-stability-layout", ["stability", "--layout", "Z"], 2, ["unknown layout 'Z'"]),
+    ("cli-stability-dims", ["stability", "--dims", "3"], 2, ["--dims"]),
+    ("cli-stability-old-courant", ["stability", "--courant", "0.5"], 2, ["--courant-number", "--courant-fraction"]),
+    ("cli-bench-rounds", ["bench", "--rounds", "1"], 2, ["--rounds", "3 to 32"]),
+]
+
+
+def run_cli_case(name, args, want_rc, words):
+    folder = os.path.join(WORK, name)
+    os.makedirs(folder, exist_ok=True)
+    scn = os.path.join(folder, "case.scn")
+    with open(scn, "w") as f:
+        f.write(run_sec() + BASE)
+    argv = [a.format(scn=scn, dir=folder) for a in args]
+    try:
+        r = subprocess.run([BIN] + argv, capture_output=True, text=True, timeout=TIMEOUT_S)
+    except subprocess.TimeoutExpired:
+        check(False, f"{name}: ends within {TIMEOUT_S} s")
+        return
+    missing = [w for w in words if w not in r.stderr]
+    check(r.returncode == want_rc and not missing and r.stdout == "",
+          f"{name}: exit {r.returncode} (want {want_rc})" + (f", missing {missing}" if missing else "")
+          + ("" if r.returncode == want_rc and not missing else f" [{r.stderr.strip()[:300]}]"))
+
 
 def run_case(name, text, files, command, want_rc, words, extra, pending):
     folder = os.path.join(WORK, name)
@@ -260,5 +374,7 @@ def run_case(name, text, files, command, want_rc, words, extra, pending):
 
 for case in CASES:
     run_case(*case)
-print("%d cases, %d failed, %d pending still failing" % (len(CASES), len(FAILURES), len(PENDING_FAILED)))
+for case in CLI:
+    run_cli_case(*case)
+print("%d cases, %d failed, %d pending still failing" % (len(CASES) + len(CLI), len(FAILURES), len(PENDING_FAILED)))
 sys.exit(1 if FAILURES else 0)
