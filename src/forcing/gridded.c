@@ -27,6 +27,7 @@
 
 #include "base/atomic_file.h"
 #include "base/civil_time.h"
+#include "base/isolate.h"
 #include "base/omp_compat.h"
 #include "inputs/ncattr.h"
 
@@ -586,6 +587,33 @@ static sw_status wx_cover_grid(const sw_weather *w, const sw_grid *g, sw_error *
 
 /* ---- public: open, close, times ----------------------------------------------------------- */
 
+/* The arguments of sw_weather_open probed in an isolated child (base/isolate.h). */
+typedef struct {
+    const char *path, *origin;
+    const sw_grid *model_grid;
+} wx_probe_args;
+
+/* The child's reader: opens the file as the parent will, then reads every time slab, as a run may. An
+ * error of the open is handed back (the parent would meet the same); an error of a slab is not (a run
+ * reads only the slabs it covers and reports its own), only a crash, hang or runaway allocation is. */
+static sw_status wx_probe(void *ctx, sw_error *err)
+{
+    const wx_probe_args *a = ctx;
+    sw_weather *w = NULL;
+    sw_status st = sw_weather_open(a->path, a->origin, a->model_grid, &w, err);
+    if (st != SW_OK)
+        return st;
+    sw_weather_slab s;
+    sw_error ignored;
+    if (sw_weather_slab_alloc(w, &s, &ignored) == SW_OK) {
+        for (size_t k = 0; k < w->nt; k++)
+            sw_weather_read(w, k, &s, &ignored);
+        sw_weather_slab_free(&s);
+    }
+    sw_weather_close(w);
+    return SW_OK;
+}
+
 sw_status sw_weather_open(const char *path, const char *origin, const sw_grid *model_grid, sw_weather **out,
                           sw_error *err)
 {
@@ -601,6 +629,12 @@ sw_status sw_weather_open(const char *path, const char *origin, const sw_grid *m
     if (sw_datetime_parse(origin, &origin_s, NULL, 0) != 0)
         return sw_fail(err, SW_ERR_USAGE, "%s: time origin '%s' is not a date and time (accepted: YYYY-MM-DD "
                        "HH:MM:SS, e.g. 2000-01-01 00:00:00)", p, origin);
+    if (!sw_isolate_in_child()) {
+        wx_probe_args probe = {path, origin, model_grid};
+        sw_status pst = sw_isolate_file(path, "weather", wx_probe, &probe, err);
+        if (pst != SW_OK)
+            return pst;
+    }
 
     sw_weather *w = calloc(1, sizeof *w);
     size_t plen = strlen(path);

@@ -48,7 +48,11 @@ typedef struct {
  * Returns SW_OK with *out open (close with sw_weather_close); on failure *out = NULL, the file is closed
  * and err holds one line starting with the path: SW_ERR_IO (cannot open), SW_ERR_INPUT (the file's
  * content: a missing variable, units, dimensions, axes, coverage), SW_ERR_NETCDF (the library failed),
- * SW_ERR_USAGE (arguments, a malformed origin), SW_ERR_NOMEM. */
+ * SW_ERR_USAGE (arguments, a malformed origin), SW_ERR_NOMEM.
+ * Damaged files: the first open of a file runs in an isolated child that also reads every slab
+ * (base/isolate.h); a crash, hang or runaway allocation of the library there is SW_ERR_INPUT naming the
+ * file (SW_ERR_IO when no child can be started, SW_ERR_INTERRUPTED on Ctrl-C); an error of a slab is
+ * left to sw_weather_read. */
 sw_status sw_weather_open(const char *path, const char *origin, const sw_grid *model_grid, sw_weather **out,
                           sw_error *err);
 

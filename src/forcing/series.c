@@ -17,6 +17,7 @@
 #include <string.h>
 
 #include "base/civil_time.h"
+#include "base/isolate.h"
 #include "inputs/ncattr.h"
 #include "inputs/table_text.h"
 
@@ -366,6 +367,21 @@ static int ser_is_netcdf(const char *path, sw_error *err)
     return got == 8 && memcmp(b, hdf5, 8) == 0;
 }
 
+/* The arguments of sw_series_load probed in an isolated child (base/isolate.h). */
+typedef struct {
+    const char *path, *variable, *origin;
+} ser_probe_args;
+
+/* The child's reader: sw_series_load itself; the series it makes is freed there. */
+static sw_status ser_probe(void *ctx, sw_error *err)
+{
+    const ser_probe_args *a = ctx;
+    sw_series *s = NULL;
+    sw_status st = sw_series_load(a->path, a->variable, a->origin, &s, err);
+    sw_series_free(s);
+    return st;
+}
+
 sw_status sw_series_load(const char *path, const char *variable_or_null, const char *origin, sw_series **out,
                          sw_error *err)
 {
@@ -384,6 +400,14 @@ sw_status sw_series_load(const char *path, const char *variable_or_null, const c
     char why[256];
     if (!origin || sw_datetime_parse(origin, &origin_s, why, sizeof why) != 0)
         return sw_fail(err, SW_ERR_USAGE, "%s: the scenario's time origin: %s", path, origin ? why : "none given");
+    if (!sw_isolate_in_child()) {
+        char key[512];
+        snprintf(key, sizeof key, "series '%s'", variable_or_null ? variable_or_null : "");
+        ser_probe_args probe = {path, variable_or_null, origin};
+        sw_status pst = sw_isolate_file(path, key, ser_probe, &probe, err);
+        if (pst != SW_OK)
+            return pst;
+    }
     int ncid;
     int rc = nc_open(path, NC_NOWRITE, &ncid);
     if (rc != NC_NOERR)

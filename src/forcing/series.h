@@ -46,7 +46,9 @@ typedef struct sw_series sw_series;
  * SW_ERR_IO (cannot open or read), SW_ERR_PARSE (a text table's form, an unreadable time unit or date),
  * SW_ERR_INPUT (NetCDF content: variable, dimensions, units, missing values, order of times),
  * SW_ERR_NETCDF, SW_ERR_USAGE (a bad origin) or SW_ERR_NOMEM, with a one-line message naming the file
- * (and the line, the variable or the index). */
+ * (and the line, the variable or the index). A NetCDF file is read once first in an isolated child
+ * (base/isolate.h): a crash, hang or runaway allocation of the library is SW_ERR_INPUT naming the file
+ * (SW_ERR_IO when no child can be started, SW_ERR_INTERRUPTED on Ctrl-C). */
 sw_status sw_series_load(const char *path, const char *variable_or_null, const char *origin, sw_series **out,
                          sw_error *err);
 

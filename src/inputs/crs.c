@@ -11,6 +11,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "base/isolate.h"
 #include "inputs/ncattr.h"
 
 /* CF Conventions 1.11, appendix F "Grid Mappings": every grid_mapping_name it defines. */
@@ -185,6 +186,22 @@ static void crs_first_mapping(const char *att, char *out, size_t n)
     out[len] = '\0';
 }
 
+/* The arguments of sw_crs_read probed in an isolated child (base/isolate.h). */
+typedef struct {
+    const char *path, *variable;
+    sw_crs *out;
+} crs_probe_args;
+
+/* The child's reader: sw_crs_read itself, its output in the child's copy (freed there). */
+static sw_status crs_probe(void *ctx, sw_error *err)
+{
+    const crs_probe_args *a = ctx;
+    sw_status st = sw_crs_read(a->path, a->variable, a->out, err);
+    if (st == SW_OK)
+        sw_crs_free(a->out);
+    return st;
+}
+
 sw_status sw_crs_read(const char *path, const char *variable, sw_crs *out, sw_error *err)
 {
     if (!out)
@@ -192,6 +209,14 @@ sw_status sw_crs_read(const char *path, const char *variable, sw_crs *out, sw_er
     memset(out, 0, sizeof *out);
     if (!path || !*path || !variable || !*variable)
         return sw_fail(err, SW_ERR_USAGE, "crs: no file or variable given");
+    if (!sw_isolate_in_child()) {
+        char key[512];
+        snprintf(key, sizeof key, "crs '%s'", variable);
+        crs_probe_args probe = {path, variable, out};
+        sw_status pst = sw_isolate_file(path, key, crs_probe, &probe, err);
+        if (pst != SW_OK)
+            return pst;
+    }
 
     int ncid, rc = nc_open(path, NC_NOWRITE, &ncid);
     if (rc != NC_NOERR)

@@ -55,7 +55,9 @@ typedef struct {
  *   SW_ERR_IO (the file cannot be opened), SW_ERR_NETCDF (the library failed), SW_ERR_NOMEM,
  *   SW_ERR_INPUT (no such variable, grid_mapping not text, it names no variable of the file, or a
  *   grid_mapping_name that is not a CF one): one line naming the file and the variable, and the
- *   accepted names where they apply. */
+ *   accepted names where they apply; or the isolated reader's SW_ERR_INPUT / SW_ERR_IO /
+ *   SW_ERR_INTERRUPTED when the library crashes, hangs or runs out of memory on the file (the first
+ *   read of each file and variable runs in a child first: base/isolate.h). */
 sw_status sw_crs_read(const char *path, const char *variable, sw_crs *out, sw_error *err);
 
 /* Frees what crs owns and empties it (crs->variable ""). NULL is fine; safe to call twice. */

@@ -32,6 +32,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "base/isolate.h"
 #include "inputs/ncattr.h"
 #include "inputs/scenario.h"   /* sw_positive */
 
@@ -413,12 +414,50 @@ fail:
     return st;
 }
 
+/* The arguments of a reader probed in an isolated child (base/isolate.h): the child calls the same
+ * public function with them, its output going to its own copy-on-write pages. */
+typedef struct {
+    const char *path, *var;
+    double radius_m;
+    sw_grid *grid_out;
+    const sw_grid *g;
+    const sw_ncin_options *opt;
+    double *out;
+} ncin_probe_args;
+
+static sw_status ncin_probe_grid(void *ctx, sw_error *err)
+{
+    const ncin_probe_args *a = ctx;
+    return sw_ncin_grid(a->path, a->var, a->radius_m, a->grid_out, err);
+}
+
+static sw_status ncin_probe_read(void *ctx, sw_error *err)
+{
+    const ncin_probe_args *a = ctx;
+    return sw_ncin_read_with(a->path, a->var, a->g, a->opt, a->out, err);
+}
+
+/* Probes path once in an isolated child with `fn` (base/isolate.h); `what` and var (and mask) name the
+ * reader for the cache of probes. */
+static sw_status ncin_probe(const char *what, sw_isolate_fn fn, ncin_probe_args *a, const char *mask, sw_error *err)
+{
+    if (!a->path || !a->var || sw_isolate_in_child())
+        return SW_OK;
+    char key[512];
+    snprintf(key, sizeof key, "ncinput %s '%s' mask '%s'", what, a->var, mask ? mask : "");
+    return sw_isolate_file(a->path, key, fn, a, err);
+}
+
 sw_status sw_ncin_grid(const char *path, const char *var, double radius_m, sw_grid *out, sw_error *err)
 {
     if (!out)
         return sw_fail(err, SW_ERR_USAGE, "sw_ncin_grid: no output grid");
+    ncin_probe_args probe = {.path = path, .var = var, .radius_m = radius_m, .grid_out = out};
+    sw_status st = ncin_probe("grid", ncin_probe_grid, &probe, NULL, err);
+    if (st != SW_OK)
+        return st;
     ncin_file f;
-    sw_status st = ncin_open(path, var, &f, err);
+    st = ncin_open(path, var, &f, err);
     if (st != SW_OK)
         return st;
     ncin_close(&f);
@@ -872,8 +911,12 @@ sw_status sw_ncin_read_with(const char *path, const char *var, const sw_grid *g,
         || ((opt->missing_land || has_mask) && !opt->land))
         return sw_fail(err, SW_ERR_USAGE, "%s: variable '%s': no output, an empty grid or no land array",
                        path ? path : "(null)", var ? var : "(null)");
+    ncin_probe_args probe = {.path = path, .var = var, .g = g, .opt = opt, .out = out};
+    sw_status st = ncin_probe("read", ncin_probe_read, &probe, has_mask ? opt->land_mask : NULL, err);
+    if (st != SW_OK)
+        return st;
     ncin_file f;
-    sw_status st = ncin_open(path, var, &f, err);
+    st = ncin_open(path, var, &f, err);
     if (st != SW_OK)
         return st;
     if (ncin_geographic(&f) != sw_grid_geographic(g)) {

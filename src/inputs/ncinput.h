@@ -18,6 +18,10 @@
  * (grid.h); the grid's longitudes are matched to the file's modulo 360. A longitude spacing that divides
  * 360 (within the evenly-spaced tolerance) is taken as exactly 360 / k and the centres as lying on its
  * half-cells, so that the same data in 0 .. 360 and in -180 .. 180 give the same field, bit for bit.
+ *
+ * Damaged files: sw_ncin_grid and sw_ncin_read_with first run themselves once per file and variable in an
+ * isolated child (base/isolate.h), so that a NetCDF/HDF5 crash, hang or runaway allocation on a damaged
+ * file is an SW_ERR_INPUT error naming the file; SHOREWARD_ISOLATE=off reads in the process only.
  */
 #ifndef SW_NCINPUT_H
 #define SW_NCINPUT_H
@@ -66,7 +70,8 @@ typedef struct {
  * SW_EARTH_RADIUS_M) and x0_m, dx_m, ... as arc lengths (grid.h: x = R lambda, y = R phi), longitudes as
  * the file writes them; a projected file gives kind SW_GRID_PROJECTED (radius_m 0). Needs path, var and
  * out. Returns SW_OK, or SW_ERR_IO / SW_ERR_NETCDF / SW_ERR_INPUT with a message that names the file and
- * variable (and the accepted form); *out is then unchanged. */
+ * variable (and the accepted form), or the isolated reader's SW_ERR_INPUT / SW_ERR_IO / SW_ERR_INTERRUPTED
+ * for a file that crashes, hangs or exhausts the library (isolate.h); *out is then unchanged. */
 sw_status sw_ncin_grid(const char *path, const char *var, double radius_m, sw_grid *out, sw_error *err);
 
 /* Reads `var` from `path` onto grid g (its kind must match the file's): copied where the grids' centres
@@ -77,7 +82,8 @@ sw_status sw_ncin_grid(const char *path, const char *var, double radius_m, sw_gr
  * variable and the first bad index in storage order as "var[j][i]"; so is a finite stored value whose
  * unpacking overflows, and, with opt->range_accepted, a value that is not land outside the range. opt may be NULL (the zero value).
  * Returns SW_OK, or SW_ERR_USAGE / SW_ERR_IO / SW_ERR_NETCDF / SW_ERR_INPUT / SW_ERR_RANGE / SW_ERR_NOMEM
- * with a one-line message naming the file and variable; out and opt->land then hold no meaningful values. */
+ * with a one-line message naming the file and variable (or the isolated reader's errors, as sw_ncin_grid);
+ * out and opt->land then hold no meaningful values. */
 sw_status sw_ncin_read_with(const char *path, const char *var, const sw_grid *g, const sw_ncin_options *opt,
                             double *out, sw_error *err);
 
