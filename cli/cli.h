@@ -31,10 +31,12 @@ typedef struct {
     int precision_set;      /* 1 when --precision was given */
     sw_precision precision; /* --precision double|single: replaces the scenario's [run] precision */
     int recalibrate;        /* --recalibrate: measure this machine's rate again (check) */
+    int resume;             /* --resume: continue from the output folder's checkpoint (run) */
 } cli_args;
 
-/* parse flags: accept --out; accept --threads/--quiet; accept --precision; accept --recalibrate */
-enum { CLI_OUT = 1, CLI_RUN_OPTS = 2, CLI_PRECISION = 4, CLI_RECALIBRATE = 8 };
+/* parse flags: accept --out; accept --threads/--quiet; accept --precision; accept --recalibrate;
+ * accept --resume */
+enum { CLI_OUT = 1, CLI_RUN_OPTS = 2, CLI_PRECISION = 4, CLI_RECALIBRATE = 8, CLI_RESUME = 16 };
 
 /* Help text for --precision, shared by the commands that take it. */
 #define CLI_PRECISION_HELP \
@@ -61,8 +63,10 @@ void cli_show_progress(const sw_progress *p, void *user);
 /* Default output folder for a scenario path: "<file name without extension>-out". */
 void cli_default_out(const char *scenario, char *out, size_t n);
 
-/* Builds the setup for sc, prints the plan (unless quiet or json), runs it into out_dir and prints
- * the summary (text, or JSON on stdout). Returns the exit status. */
+/* Opens and locks out_dir (run/outdir.h: created, write-tested, .shoreward.lock), builds the setup for sc,
+ * refuses too little disk or memory before the first step, prints the plan (unless quiet or json), runs
+ * it into out_dir (from its checkpoint with a->resume) and prints the summary (text, or JSON on stdout);
+ * releases the lock. Returns the exit status. */
 int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const char *out_dir,
                      const char *history);
 
@@ -74,6 +78,10 @@ const char *cli_tool(const char *name);
 /* The NumPy bench script: PREFIX/share/shoreward/bench_numpy.py when this program runs installed in
  * PREFIX/bin, else the checkout's tools/bench_numpy.py (the path compiled in). Static buffer. */
 const char *cli_bench_script(void);
+
+/* The number of copies and this copy's rank that an MPI launcher announces in the environment (Open MPI,
+ * MPICH and Intel MPI's Hydra or Slurm's PMI, MVAPICH); *size is 0 when none did. */
+void cli_launcher_size(long *size, long *rank);
 
 int cmd_run(int argc, char **argv, const char *history);
 int cmd_check(int argc, char **argv, const char *history);

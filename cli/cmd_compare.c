@@ -8,6 +8,7 @@
 #include "studies/compare.h"
 #include "model/layout.h"
 #include "outputs/report.h"
+#include "run/outdir.h"
 
 static const char *const usage_compare =
     "Usage: shoreward compare SCENARIO [--layouts A,C,...] [--refine 1,2,4] [--out DIR] [--threads N]\n"
@@ -164,11 +165,19 @@ int cmd_compare(int argc, char **argv, const char *history)
     sw_compare cmp;
     if (!a.json && !a.quiet)
         fprintf(stderr, "Comparing %d layout(s) x %d resolution(s) of %s\n", n_lay, n_ref, a.scenario);
-    if (sw_make_dirs(out, &err) != SW_OK
-        || sw_compare_run(&sc, layouts, (size_t)n_lay, refine, (size_t)n_ref, &opt, show_row, &cv, &cmp, &err)
-               != SW_OK) {
+    /* the folder is created, write-tested and locked (run/outdir.h) for the runs and compare.md/.csv: a
+     * second compare or run into it is refused with the holder's pid */
+    sw_outdir od;
+    if (sw_outdir_open(&od, out, history, &err) != SW_OK) {
+        sw_scenario_free(&sc);
+        return cli_fail("compare", &err);
+    }
+    if (od.note[0] && !a.json && !a.quiet)
+        fprintf(stderr, "%s\n", od.note);
+    if (sw_compare_run(&sc, layouts, (size_t)n_lay, refine, (size_t)n_ref, &opt, show_row, &cv, &cmp, &err) != SW_OK) {
         if (cv.line_open)
             fputc('\n', stderr);
+        sw_outdir_close(&od);
         sw_scenario_free(&sc);
         return cli_fail("compare", &err);
     }
@@ -178,6 +187,7 @@ int cmd_compare(int argc, char **argv, const char *history)
     code = 0;
     if (sw_compare_write_markdown(md, &sc, &cmp, &err) != SW_OK || sw_compare_write_csv(csv, &cmp, &err) != SW_OK)
         code = cli_fail("compare", &err);
+    sw_outdir_close(&od);
     if (a.json) {
         char *js = sw_compare_json(&sc, &cmp);
         if (js)

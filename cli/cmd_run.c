@@ -13,7 +13,7 @@
 #include "studies/sweep.h"
 
 static const char *const usage_run =
-    "Usage: shoreward run SCENARIO [--out DIR] [--threads N] [--precision P] [--quiet] [--json]\n"
+    "Usage: shoreward run SCENARIO [--out DIR] [--threads N] [--precision P] [--quiet] [--json] [--resume]\n"
     "\n"
     "Runs SCENARIO and writes into DIR (default: <scenario name>-out):\n"
     "  gauges.nc     eta, u, v time series at the gauges (CF timeSeries); with a [storm] or\n"
@@ -22,13 +22,23 @@ static const char *const usage_run =
     "                or [weather] also wind_speed_max, air_pressure_min (the extremes the water felt),\n"
     "                and with a [storm] its track: storm_time, storm_x, storm_y, storm_central_pressure\n"
     "  snapshots.nc  eta at [run] snapshot_interval (only when set)\n"
-    "Files appear only when complete; an interrupted run (Ctrl-C) leaves none.\n"
+    "  run.json      written last: the files of this set and their sizes (tools/plot checks it)\n"
+    "Before the first step the run creates DIR, tests that it can write there, locks it (DIR/.shoreward.lock;\n"
+    "a second run into DIR is refused with the first one's pid) and refuses a run whose outputs would not\n"
+    "fit on the disk or whose memory exceeds what the machine and its limits (cgroup, ulimit -v) allow.\n"
+    "The files are written in DIR/.staging-PID and moved into place together once all are complete: a\n"
+    "failed, interrupted (Ctrl-C) or killed run leaves the previous set in DIR as it was.\n"
+    "With [run] checkpoint_interval the run also writes DIR/checkpoint.swck (its whole state) at that\n"
+    "interval of simulated time and when stopped by Ctrl-C or SIGTERM; --resume continues from it, and\n"
+    "the files are then the same bits as those of a run never stopped.\n"
     "\n"
     "  --out DIR      output folder, created if missing\n"
     "  --threads N    OpenMP threads (default: all cores); results do not depend on N\n"
     CLI_PRECISION_HELP
     "  --quiet        no plan and no progress line\n"
     "  --json         print the summary as one JSON object on stdout\n"
+    "  --resume       continue from DIR/checkpoint.swck, written by a stopped run of the same\n"
+    "                 scenario with the same --precision (any --threads)\n"
     "\n"
     "Example:\n"
     "  shoreward run scenarios/demo.scn --out demo-out --threads 2\n"
@@ -71,10 +81,30 @@ static const char *const usage_demo =
     "Example:\n"
     "  shoreward demo /tmp/merrow\n";
 
+/* A run does not spread over MPI ranks: refused (exit 2, from rank 0 only) when a launcher started more
+ * than one copy, since every copy would run the whole scenario into the same folder. -1 to go on. */
+static int refuse_mpi_copies(const char *cmd)
+{
+    long copies = 0, rank = 0;
+    cli_launcher_size(&copies, &rank);
+    if (copies <= 1)
+        return -1;
+    if (rank == 0) {
+        char msg[200];
+        snprintf(msg, sizeof msg, "one run does not spread over MPI ranks; %ld copies would each run the whole "
+                 "scenario (start one process, or use sweep for many runs)", copies);
+        cli_usage_error(cmd, "%s", msg);
+    }
+    return 2;
+}
+
 int cmd_run(int argc, char **argv, const char *history)
 {
     cli_args a;
-    int code = cli_parse("run", usage_run, argc, argv, CLI_OUT | CLI_RUN_OPTS | CLI_PRECISION, &a);
+    int code = refuse_mpi_copies("run");
+    if (code >= 0)
+        return code;
+    code = cli_parse("run", usage_run, argc, argv, CLI_OUT | CLI_RUN_OPTS | CLI_PRECISION | CLI_RESUME, &a);
     if (code >= 0)
         return code;
     if (!a.scenario)
@@ -152,7 +182,10 @@ int cmd_check(int argc, char **argv, const char *history)
 int cmd_demo(int argc, char **argv, const char *history)
 {
     cli_args a;
-    int code = cli_parse("demo", usage_demo, argc, argv, CLI_RUN_OPTS | CLI_PRECISION, &a);
+    int code = refuse_mpi_copies("demo");
+    if (code >= 0)
+        return code;
+    code = cli_parse("demo", usage_demo, argc, argv, CLI_RUN_OPTS | CLI_PRECISION, &a);
     if (code >= 0)
         return code;
     const char *dir = a.scenario ? a.scenario : "shoreward-demo";

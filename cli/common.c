@@ -6,7 +6,10 @@
 #include <unistd.h>
 
 #include "cli.h"
+#include "outputs/ncwrite.h"
 #include "outputs/report.h"
+#include "run/memcheck.h"
+#include "run/outdir.h"
 #include "run/setup.h"
 
 volatile sig_atomic_t cli_stop = 0;
@@ -23,6 +26,25 @@ static int exe_dir(char *dir, size_t n)
         return 0;
     *slash = '\0';
     return 1;
+}
+
+void cli_launcher_size(long *size, long *rank)
+{
+    static const char *const names[][2] = {
+        {"OMPI_COMM_WORLD_SIZE", "OMPI_COMM_WORLD_RANK"},
+        {"PMI_SIZE", "PMI_RANK"},
+        {"MV2_COMM_WORLD_SIZE", "MV2_COMM_WORLD_RANK"},
+    };
+    *size = 0;
+    *rank = 0;
+    for (size_t q = 0; q < sizeof names / sizeof names[0]; q++) {
+        const char *n = getenv(names[q][0]), *r = getenv(names[q][1]);
+        if (n && *n) {
+            *size = strtol(n, NULL, 10);
+            *rank = r && *r ? strtol(r, NULL, 10) : 0;
+            return;
+        }
+    }
 }
 
 const char *cli_tool(const char *name)
@@ -136,6 +158,7 @@ static void print_help(const char *cmd, const char *usage)
 
 int cli_parse(const char *cmd, const char *usage, int argc, char **argv, int flags, cli_args *a)
 {
+    sw_ncw_no_exit_handler();   /* before any NetCDF call: no HDF5 exit handler to crash after a full disk */
     memset(a, 0, sizeof *a);
     for (int k = 0; k < argc; k++) {
         const char *s = argv[k], *val;
@@ -147,6 +170,8 @@ int cli_parse(const char *cmd, const char *usage, int argc, char **argv, int fla
             a->json = 1;
         } else if ((flags & CLI_RUN_OPTS) && !strcmp(s, "--quiet")) {
             a->quiet = 1;
+        } else if ((flags & CLI_RESUME) && !strcmp(s, "--resume")) {
+            a->resume = 1;
         } else if ((flags & CLI_RECALIBRATE) && !strcmp(s, "--recalibrate")) {
             a->recalibrate = 1;
         } else if ((flags & CLI_OUT) && (val = option_value("--out", argc, argv, &k, &missing))) {
@@ -206,8 +231,28 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
 {
     sw_error err = {0};
     sw_setup setup;
-    if (sw_setup_build(sc, &setup, &err) != SW_OK)
+    sw_outdir od;   /* created, write-tested and locked before anything is computed (run/outdir.h) */
+    if (sw_outdir_open(&od, out_dir, history, &err) != SW_OK)
         return cli_fail(cmd, &err);
+    if (od.note[0])
+        fprintf(stderr, "shoreward %s: note: %s\n", cmd, od.note);
+    if (sw_setup_build(sc, &setup, &err) != SW_OK) {
+        sw_outdir_close(&od);
+        return cli_fail(cmd, &err);
+    }
+    /* the outputs against the free space, the run's memory against the machine and its limits */
+    sw_memory_limits lim;
+    sw_memory_limits_read(&lim);
+    double held = 2.0 * (double)sw_grid_cells(&setup.grid) * sizeof(double);   /* depth and eta0, built */
+    double need = (double)setup.total_bytes > held ? (double)setup.total_bytes - held : 0;
+    long cores = sysconf(_SC_NPROCESSORS_ONLN);
+    int threads = a->threads > 0 ? a->threads : (cores > 0 ? (int)cores : 1);
+    if (sw_outdir_check_space(out_dir, sw_outdir_output_bytes(sc, &setup), &err) != SW_OK ||
+        sw_memory_check(need, threads, &lim, &err) != SW_OK) {
+        sw_setup_free(&setup);
+        sw_outdir_close(&od);
+        return cli_fail(cmd, &err);
+    }
 
     int tty = isatty(STDERR_FILENO) && !a->quiet;
     if (!a->json && !a->quiet) {
@@ -218,15 +263,17 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
     cli_catch_signals();
     sw_run_options opt = {
         .out_dir = out_dir, .history = history, .threads = a->threads,
-        .progress = tty ? cli_show_progress : NULL, .stop = &cli_stop,
+        .progress = tty ? cli_show_progress : NULL, .stop = &cli_stop, .resume = a->resume,
     };
     sw_run_result *res = malloc(sizeof *res);
     if (!res) {
         sw_setup_free(&setup);
+        sw_outdir_close(&od);
         fprintf(stderr, "shoreward %s: error: out of memory\n", cmd);
         return 1;
     }
     sw_status rc = sw_run(sc, &setup, &opt, res, &err);
+    sw_outdir_close(&od);   /* the set is in place (or the old one untouched): the next run may start */
     if (tty)
         fputc('\n', stderr);
     int code = 0;

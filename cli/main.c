@@ -4,6 +4,7 @@
 #include <string.h>
 
 #include "cli.h"
+#include "outputs/ncwrite.h"
 
 static const char *const usage_main =
     "shoreward - linear shallow-water sandbox for tsunami and surge arrival times\n"
@@ -57,6 +58,8 @@ static char *join_args(int argc, char **argv)
 
 int main(int argc, char **argv)
 {
+    sw_ncw_no_exit_handler();   /* before any NetCDF call (stability and bench too): no HDF5 exit handler to
+                                 * crash after a failed close on a full disk (outputs/ncwrite.h) */
     if (argc < 2) {
         fputs(usage_main, stderr);
         fprintf(stderr, "\n%s\n", sw_caution_short());

@@ -293,6 +293,25 @@ void sw_forcing_track(const sw_forcing *f, size_t *n, const double **t_s, const 
     *pc_pa = k ? f->track + 3 * k : NULL;
 }
 
+size_t sw_forcing_state_parts(sw_forcing *f, void **ptr, size_t *bytes)
+{
+    if (!sw_forcing_has_air(f))
+        return 0;
+    const size_t values = 3 * (f->n_points ? f->n_points : 1) * sizeof(double);
+    const size_t map = sw_grid_cells(f->grid) * sizeof(float);
+    ptr[0] = f->t_slot;
+    bytes[0] = sizeof f->t_slot;
+    ptr[1] = f->pv[0];
+    bytes[1] = values;
+    ptr[2] = f->pv[1];
+    bytes[2] = values;
+    ptr[3] = f->wind_max;
+    bytes[3] = map;
+    ptr[4] = f->p_min;
+    bytes[4] = map;
+    return SW_FORCING_STATE_PARTS;
+}
+
 void sw_forcing_describe(const sw_forcing *f, char *buf, size_t n)
 {
     snprintf(buf, n, "%s", f ? f->what : "none");

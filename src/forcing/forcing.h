@@ -79,4 +79,17 @@ void sw_forcing_storm_settings(const sw_scenario *sc, const sw_grid *g, sw_storm
  * every 600 s" or "weather file.nc (48 slabs)"; "level series tide.txt" is added when there is one. */
 void sw_forcing_describe(const sw_forcing *f, char *buf, size_t n);
 
+#define SW_FORCING_STATE_PARTS 5   /* most parts sw_forcing_state_parts gives */
+
+/* The memory holding what of f evolves, for a checkpoint (run/checkpoint.h): ptr[k], bytes[k] for up to
+ * SW_FORCING_STATE_PARTS parts in this order: the times of the two slabs (2 doubles, NaN: not built), the
+ * values at the sample points of slot 0 and slot 1 (3 n_points doubles each), the maps of the highest
+ * wind and lowest pressure so far (float [ny * nx] each); none without an atmosphere (f NULL or a level
+ * series only: a series has no state). The slabs themselves are the model's (sw_model_state_parts); the
+ * source each was built from (a storm frame, a weather slab) is needed only while building it, and is
+ * made again for the next slab. Writing a saved state into the parts of a forcing made alike, together
+ * with the model's, between steps (after any sw_forcing_advance), makes the next advances give the
+ * same slabs, samples and maps. The pointers are valid until the next advance. Returns the count. */
+size_t sw_forcing_state_parts(sw_forcing *f, void **ptr, size_t *bytes);
+
 #endif

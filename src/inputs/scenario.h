@@ -251,6 +251,7 @@ typedef struct {
     int dt_line;
     double gauge_interval_s;  /* default 30 s */
     double snapshot_interval_s; /* 0 = no snapshots (default) */
+    double checkpoint_interval_s; /* s of simulated time between checkpoints (run/checkpoint.h); 0 = none (default) */
     double arrival_threshold_m; /* default 0.01 m */
     double gravity_ms2;       /* default 9.81 */
     char origin[32];          /* time origin "YYYY-MM-DD HH:MM:SS", default "2000-01-01 00:00:00" */

@@ -49,6 +49,8 @@ static const key_def RUN_KEYS[] = {
       .accepted = "0 < gauge_interval <= 1 d" },
     { .name = "snapshot_interval", .kind = K_TIME, SC(snapshot_interval_s), RANGE(0, 30 * DAY), .dflt = "0",
       .accepted = "0 <= snapshot_interval <= 30 d; 0 writes none" },
+    { .name = "checkpoint_interval", .kind = K_TIME, SC(checkpoint_interval_s), RANGE(0, 30 * DAY), .dflt = "0",
+      .accepted = "0 <= checkpoint_interval <= 30 d; 0 writes none" },
     { .name = "arrival_threshold", .kind = K_LENGTH, SC(arrival_threshold_m), ABOVE(0, 100), .dflt = "0.01 m",
       .accepted = "0 < arrival_threshold <= 100 m" },
     { .name = "gravity", .kind = K_NUMBER, SC(gravity_ms2), RANGE(1, 30), .dflt = "9.81",

@@ -743,6 +743,28 @@ void sw_model_surface_weight(sw_model *m, double w) { m->terms.surface_w = w < 0
 
 void sw_model_set_edge_level(sw_model *m, double level_m) { m->edge_level = level_m; }
 
+size_t sw_model_state_parts(sw_model *m, void **ptr, size_t *bytes)
+{
+    const size_t field = m->n_pad * sw_precision_bytes(m->precision);
+    size_t n = 0;
+#define PART(p, b) (ptr[n] = (p), bytes[n] = (b), n++)
+    PART(m->view.eta, field);
+    PART(m->view.u, field);
+    PART(m->view.v, field);
+    PART(&m->steps, sizeof m->steps);
+    PART(&m->time, sizeof m->time);
+    PART(&m->edge_level, sizeof m->edge_level);
+    PART(&m->terms.surface_w, sizeof m->terms.surface_w);
+    if (m->surface) {
+        for (int q = 0; q < 4; q++)
+            PART(m->slab[q / 2][q % 2], m->n_pad * sizeof(float));
+        for (int q = 0; q < 2; q++)
+            PART(m->edge_slab[q], (m->n_edge ? m->n_edge : 1) * sizeof(float));
+    }
+#undef PART
+    return n;
+}
+
 void sw_model_velocity_points(const sw_model *m, size_t i, size_t j, double u_xy[2], double v_xy[2])
 {
     const sw_grid *g = &m->grid;

@@ -201,6 +201,21 @@ void sw_model_set_edge_level(sw_model *m, double level_m);
  * the position (m) of the u and v points of cell (i, j) (sw_layout.u_at, v_at). */
 void sw_model_velocity_points(const sw_model *m, size_t i, size_t j, double u_xy[2], double v_xy[2]);
 
+/* ---- checkpoints (run/checkpoint.h) */
+
+#define SW_MODEL_STATE_PARTS 13   /* most parts sw_model_state_parts gives */
+
+/* The memory holding everything of m that evolves in a run and that the next step reads, for writing a
+ * checkpoint and reading one back. Fills ptr[k], bytes[k] for up to SW_MODEL_STATE_PARTS parts, always in
+ * this order: eta, u, v as stored (padded, halo included, in the model's precision); the steps taken
+ * (long long); the time (s), the level of `level` edges (m) and the weight of slab 1 (doubles); with surface
+ * forcing the slabs in slot order (slot 0 along x, along y, then slot 1: padded float arrays) and the edge
+ * heads of slots 0 and 1 (floats). Returns the number of parts. Copying a saved state into the parts of a
+ * model made from the same configuration, between steps, makes the next steps give the same bits as
+ * the model it was saved from. The pointers are valid until the next sw_model_surface_shift or
+ * sw_model_free. Reads or writes nothing itself. */
+size_t sw_model_state_parts(sw_model *m, void **ptr, size_t *bytes);
+
 /* Bytes a model of this grid, layout and terms would hold in this precision (for plans), without creating
  * it: the six padded state and depth arrays, the wet mask and edge cells, and with terms the per-row
  * Coriolis parameters, the drag arrays of quadratic friction (2 padded arrays), on transport-weighted

@@ -100,6 +100,25 @@ void sw_gauges_free(sw_gauges *gs)
     free(gs);
 }
 
+size_t sw_gauges_state_parts(sw_gauges *gs, void **ptr, size_t *bytes)
+{
+    const size_t nn = gs->n ? gs->n : 1, cap = gs->cap ? gs->cap : 1;
+    size_t n = 0;
+#define PART(p, b) (ptr[n] = (p), bytes[n] = (b), n++)
+    PART(&gs->count, sizeof gs->count);
+    PART(gs->time, cap * sizeof *gs->time);
+    PART(gs->eta, nn * cap * sizeof *gs->eta);
+    PART(gs->u, nn * cap * sizeof *gs->u);
+    PART(gs->v, nn * cap * sizeof *gs->v);
+    PART(gs->stats, nn * sizeof *gs->stats);
+    PART(gs->prev_eta, nn * sizeof *gs->prev_eta);
+    PART(&gs->prev_time, sizeof gs->prev_time);
+    if (gs->air)
+        PART(gs->air, 3 * nn * cap * sizeof *gs->air);
+#undef PART
+    return n;
+}
+
 sw_status sw_gauges_create(const sw_model *m, const double *depth_m, const sw_gauge_spec *specs, size_t n,
                            size_t max_samples, sw_gauges **out, sw_error *err)
 {

@@ -74,6 +74,15 @@ double sw_gauges_next_time(double next_s, double now_s, double interval_s);
 /* Bilinear depth at (x, y) from a [ny * nx] field on grid g (for plans, before a model exists). */
 double sw_gauges_depth_at(const sw_grid *g, const double *depth_m, double x_m, double y_m);
 
+#define SW_GAUGES_STATE_PARTS 9   /* most parts sw_gauges_state_parts gives */
+
+/* The memory holding the recorder's state, for a checkpoint (run/checkpoint.h): ptr[k], bytes[k] for up to
+ * SW_GAUGES_STATE_PARTS parts in this order: the samples taken (size_t), their times, the eta, u, v series
+ * (doubles, the whole capacity), what sw_gauges_watch keeps (the stats, the previous elevations and
+ * time), and with sw_gauges_enable_air the air series. Writing a saved state into the parts of a recorder
+ * made alike (same gauges, capacity, air) restores it. Returns the number of parts. */
+size_t sw_gauges_state_parts(sw_gauges *gs, void **ptr, size_t *bytes);
+
 void sw_gauges_free(sw_gauges *gs);
 
 #endif

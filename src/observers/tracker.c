@@ -56,6 +56,7 @@ static float trigger(float weakest, float floor_value)
 typedef struct {
     _Alignas(64) float *row;   /* [3 nx]: centre eta, u, v of one row */
     int nonfinite;        /* the thread met a NaN or Inf */
+    size_t bad_row;       /* the grid row (0 .. ny-1) where it first did, valid with nonfinite */
     long long seen;       /* segments looked at */
     long long updated;    /* segments whose maps were rewritten */
 } thread_slot;
@@ -118,6 +119,32 @@ static sw_status ensure_slots(sw_tracker *t, int n, sw_error *err)
     t->slot = slot;
     t->n_threads = n;
     return SW_OK;
+}
+
+size_t sw_tracker_state_parts(sw_tracker *t, void **ptr, size_t *bytes)
+{
+    for (int q = 1; q <= t->n_threads; q++) {   /* every count into slot 0 */
+        t->slot[0].nonfinite |= t->slot[q].nonfinite;
+        t->slot[0].seen += t->slot[q].seen;
+        t->slot[0].updated += t->slot[q].updated;
+        t->slot[q].nonfinite = 0;
+        t->slot[q].seen = t->slot[q].updated = 0;
+    }
+    const size_t map = t->nx * t->ny * sizeof(float);
+    float *maps[5] = {t->eta_max, t->eta_min, t->arrival, t->eta_max_time, t->speed2_max};
+    for (int k = 0; k < 5; k++) {
+        ptr[k] = maps[k];
+        bytes[k] = map;
+    }
+    ptr[5] = t->seg;
+    bytes[5] = t->ny * t->n_seg * sizeof *t->seg;
+    ptr[6] = &t->slot[0].seen;
+    bytes[6] = sizeof t->slot[0].seen;
+    ptr[7] = &t->slot[0].updated;
+    bytes[7] = sizeof t->slot[0].updated;
+    ptr[8] = &t->slot[0].nonfinite;
+    bytes[8] = sizeof t->slot[0].nonfinite;
+    return SW_TRACKER_STATE_PARTS;
 }
 
 void sw_tracker_free(sw_tracker *t)
@@ -255,8 +282,11 @@ static void track_row_in(sw_tracker *t, thread_slot *sl, const sw_model *m, size
             updated++;
         }
     }
-    if (bad)
+    if (bad) {
+        if (!sl->nonfinite)
+            sl->bad_row = j;
         sl->nonfinite = 1;
+    }
     sl->seen += (long long)t->n_seg;
     sl->updated += updated;
 }
@@ -304,6 +334,17 @@ void sw_tracker_segments(const sw_tracker *t, long long *seen, long long *update
         *seen += t->slot[q].seen;
         *updated += t->slot[q].updated;
     }
+}
+
+int sw_tracker_nonfinite_row(const sw_tracker *t, size_t *row)
+{
+    int bad = 0;
+    for (int q = 0; q <= t->n_threads; q++)
+        if (t->slot[q].nonfinite && (!bad || t->slot[q].bad_row < *row)) {
+            *row = t->slot[q].bad_row;
+            bad = 1;
+        }
+    return bad;
 }
 
 int sw_tracker_nonfinite(const sw_tracker *t)

@@ -45,6 +45,11 @@ double sw_tracker_max_abs(const sw_tracker *t);
 /* 1 if any update met a NaN or Inf elevation (the run blew up), else 0. Call outside parallel regions. */
 int sw_tracker_nonfinite(const sw_tracker *t);
 
+/* As sw_tracker_nonfinite, and when it is 1 the lowest grid row (0 .. ny-1) where a thread first met it
+ * into *row. Cheap (one flag per thread): sw_run asks after every step, between steps, so that a run
+ * that blows up stops at once. */
+int sw_tracker_nonfinite_row(const sw_tracker *t, size_t *row);
+
 /* Grid-scale noise index of the eta_max map: the RMS of eta_max minus its
  * 1-2-1 smoothed copy (separable, weights 1/4, 1/2, 1/4 along x and y), over water cells whose eight
  * neighbours are water, divided by the RMS of eta_max there. The smoother removes the 2-cell wave
@@ -52,6 +57,18 @@ int sw_tracker_nonfinite(const sw_tracker *t);
  * wavenumber: near 0 for a smooth field, larger where a layout lets grid-scale modes grow.
  * Returns 0 when no cell qualifies. */
 double sw_tracker_noise(const sw_tracker *t, const unsigned char *wet);
+
+#define SW_TRACKER_STATE_PARTS 9   /* parts sw_tracker_state_parts gives */
+
+/* The memory holding the tracker's state, for a checkpoint (run/checkpoint.h): ptr[k], bytes[k] for
+ * SW_TRACKER_STATE_PARTS parts in this order: the running maps eta_max, eta_min, arrival, eta_max_time,
+ * speed2_max (float [ny * nx] each), the segments' summaries, and the counts of sw_tracker_segments and
+ * sw_tracker_nonfinite (long long, long long, int). First gathers the threads' counts into the first
+ * thread's (their sums and sw_tracker_segments stay the same), so that the parts hold them all.
+ * Writing a saved state into the parts of a tracker made for the same model, between steps, restores it
+ * whatever the thread count. Returns SW_TRACKER_STATE_PARTS. Call outside parallel regions or from one
+ * thread between steps. */
+size_t sw_tracker_state_parts(sw_tracker *t, void **ptr, size_t *bytes);
 
 void sw_tracker_free(sw_tracker *t);
 

@@ -13,8 +13,11 @@
  * always had (tests/py/test_golden.py pins their values); the crs variable, grid_mapping and the
  * lon/lat coordinates appear only with a CRS or on a geographic grid.
  */
+#define _GNU_SOURCE   /* RTLD_DEFAULT */
 #include "outputs/ncwrite.h"
 
+#include <dlfcn.h>
+#include <errno.h>
 #include <math.h>
 #include <netcdf.h>
 #include <stdint.h>
@@ -42,6 +45,21 @@ typedef struct {
     sw_status rc;     /* first failure, SW_OK until then */
 } ncw_file;
 
+/* The cause a failed HDF5 write leaves in errno, worded for the user ("no space left on device"), or NULL
+ * when errno names none of the file system's refusals. HDF5 reports all of them as "NetCDF: HDF error". */
+static const char *ncw_cause(int e)
+{
+    switch (e) {
+    case ENOSPC: return "no space left on device";
+    case EDQUOT: return "disk quota exceeded";
+    case EFBIG: return "file too large for the file system";
+    case EROFS: return "read-only file system";
+    case EACCES: case EPERM: return "permission denied";
+    case EIO: return "input/output error";
+    default: return NULL;
+    }
+}
+
 /* Records `rc` (a NetCDF status from the step `what`, about `name` when not NULL) as the file's
  * failure. Returns 1 when rc is NC_NOERR and nothing has failed before, 0 otherwise. */
 static int ncw_ok(ncw_file *f, int rc, const char *what, const char *name)
@@ -50,8 +68,10 @@ static int ncw_ok(ncw_file *f, int rc, const char *what, const char *name)
         return 0;
     if (rc == NC_NOERR)
         return 1;
-    f->rc = sw_fail(f->err, SW_ERR_NETCDF, "%s: %s%s%s: %s", f->af.path, what, name ? " " : "",
-                    name ? name : "", nc_strerror(rc));
+    const char *cause = rc == NC_EHDFERR ? ncw_cause(errno) : NULL;
+    f->rc = sw_fail(f->err, cause ? SW_ERR_IO : SW_ERR_NETCDF, "%s: %s%s%s: %s%s%s%s", f->af.path, what,
+                    name ? " " : "", name ? name : "", nc_strerror(rc), cause ? " (" : "", cause ? cause : "",
+                    cause ? ")" : "");
     return 0;
 }
 
@@ -70,9 +90,12 @@ static sw_status ncw_create(ncw_file *f, const char *path, sw_error *err)
     f->err = err;
     if ((f->rc = sw_atomic_begin(&f->af, path, err)) != SW_OK)
         return f->rc;
+    errno = 0;
     int rc = nc_create(f->af.part, NC_NETCDF4 | NC_CLOBBER, &f->ncid);
+    const char *cause = rc != NC_NOERR ? ncw_cause(errno) : NULL;   /* HDF5 words a full disk "Permission denied" */
     if (rc != NC_NOERR)   /* positive codes are errno values */
-        return f->rc = sw_atomic_create_failed(&f->af, rc > 0 ? SW_ERR_IO : SW_ERR_NETCDF, nc_strerror(rc), err);
+        return f->rc = sw_atomic_create_failed(&f->af, rc > 0 || cause ? SW_ERR_IO : SW_ERR_NETCDF,
+                                               cause ? cause : nc_strerror(rc), err);
     f->is_open = 1;
     return SW_OK;
 }
@@ -83,6 +106,7 @@ static sw_status ncw_create(ncw_file *f, const char *path, sw_error *err)
 static sw_status ncw_finish(ncw_file *f)
 {
     if (f->is_open) {
+        errno = 0;   /* what nc_close leaves in errno names the cause (ncw_ok) */
         int rc = nc_close(f->ncid);
         f->is_open = 0;
         ncw_ok(f, rc, "closing", NULL);
@@ -92,6 +116,18 @@ static sw_status ncw_finish(ncw_file *f)
     else
         sw_atomic_discard(&f->af);
     return f->rc;
+}
+
+void sw_ncw_no_exit_handler(void)
+{
+    /* HDF5 is netCDF's dependency, not ours: look it up where the dynamic linker put it. A build linked
+     * without HDF5 (or statically) finds nothing and keeps the library's default. */
+    void *sym = dlsym(RTLD_DEFAULT, "H5dont_atexit");
+    int (*dont_atexit)(void) = NULL;
+    if (sym) {
+        memcpy(&dont_atexit, &sym, sizeof dont_atexit);   /* object to function pointer, without the warning */
+        (void)dont_atexit();
+    }
 }
 
 /* ---- definitions: each does nothing after a failure -------------------------------------- */

@@ -69,6 +69,14 @@ sw_status sw_ncw_maps(const char *path, const sw_run_meta *meta, const sw_map_se
  * Returns a new string the caller frees, or NULL when out of memory or the clock is unreadable. */
 char *sw_ncw_history(const char *command);
 
+/* Keeps HDF5 (under NetCDF-4) from installing its exit handler, H5_term_library. After a failed close
+ * (a full disk) HDF5 keeps a half-closed file in its table, and that handler crashed on it at exit
+ * (SIGSEGV in H5F__close_cb, exit status 139, after the error had been reported). Without the handler
+ * nothing is flushed at exit, which is what every writer here wants: a file is complete only once
+ * closed and renamed. Must run before the first NetCDF call of the process to take effect (the command
+ * line calls it first thing); later calls do nothing. Never fails. */
+void sw_ncw_no_exit_handler(void);
+
 /* Snapshots of eta written as the run goes (unlimited time dimension). */
 typedef struct sw_ncw_snapshots sw_ncw_snapshots;
 

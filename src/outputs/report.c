@@ -466,6 +466,10 @@ void sw_report_plan(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_
     sw_format_duration(sc->duration_s, buf, sizeof buf);
     fprintf(f, "Run        %s simulated in %lld steps; %zu gauge samples each; %zu snapshots\n", buf, s->n_steps,
             s->n_samples, s->n_snapshots);
+    if (sc->checkpoint_interval_s > 0) {
+        sw_format_duration(sc->checkpoint_interval_s, buf, sizeof buf);
+        fprintf(f, "           a checkpoint every %s of simulated time and at Ctrl-C (run --resume continues)\n", buf);
+    }
     if (s->forcing_bytes)
         fprintf(f, "Memory     %.1f MB (model state %.1f MB; of the total, the forcing takes %.1f MB)\n",
                 bytes_mb(s->total_bytes), bytes_mb(s->model_bytes), bytes_mb(s->forcing_bytes));
@@ -663,6 +667,7 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
     cJSON_AddNumberToObject(o, "steps", (double)s->n_steps);
     cJSON_AddNumberToObject(o, "gauge_samples", (double)s->n_samples);
     cJSON_AddNumberToObject(o, "snapshots", (double)s->n_snapshots);
+    cJSON_AddNumberToObject(o, "checkpoint_interval_s", sc->checkpoint_interval_s);
     cJSON_AddNumberToObject(o, "duration_s", sc->duration_s);
     cJSON_AddNumberToObject(o, "memory_bytes", (double)s->total_bytes);
     if (rate && rate->cells_per_s > 0) {

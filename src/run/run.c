@@ -26,6 +26,8 @@
 #include "base/omp_compat.h"
 #include "observers/tracker.h"
 #include "forcing/forcing.h"
+#include "run/checkpoint.h"
+#include "run/outdir.h"
 
 /* The one definition of the caution texts (run.h). The full forms are built from the same sentences,
  * so that the short form, the surge form and the sweep form can never drift apart. */
@@ -124,6 +126,16 @@ typedef struct {
     double t_start;
     int stop;                 /* set inside `single`: 0 go on, 1 interrupted, 2 failed */
     sw_error loop_err;
+    /* checkpoints (checkpoint.h): on with [run] checkpoint_interval in a run that writes files */
+    int checkpointing;
+    int checkpointed;         /* 1 once the checkpoint at a stop is written */
+    long long first_step;     /* where the loop starts: 0, or the step of the checkpoint resumed */
+    double next_checkpoint;   /* s */
+    double volume_start;      /* m3, the displaced volume at t = 0 */
+    long long n_frames;       /* snapshots taken, kept in `frames` */
+    sw_ckpt_frames *frames;   /* the snapshots beside the checkpoint, or NULL */
+    sw_ckpt_fingerprint fp;
+    char ckpt_path[SW_PATH_MAX];
 } run_ctx;
 
 static void snapshot_frame(run_ctx *c)
@@ -144,7 +156,28 @@ static void snapshot_frame(run_ctx *c)
                 row[i] = NAN;
     }
     free(tmp_u);
-    if (sw_ncw_snapshots_append(c->snaps, sw_model_time(c->model), c->frame, &c->loop_err) != SW_OK)
+    if (sw_ncw_snapshots_append(c->snaps, sw_model_time(c->model), c->frame, &c->loop_err) != SW_OK ||
+        (c->frames && sw_ckpt_frames_add(c->frames, sw_model_time(c->model), c->frame, &c->loop_err) != SW_OK))
+        c->stop = 2;
+    c->n_frames = sw_ckpt_frames_count(c->frames);
+}
+
+/* What a checkpoint of this run holds (checkpoint.h). */
+static sw_ckpt_run ckpt_state(run_ctx *c)
+{
+    return (sw_ckpt_run){.model = c->model, .tracker = c->tracker, .gauges = c->gauges, .forcing = c->forcing,
+                         .next_sample_s = &c->next_sample, .next_snapshot_s = &c->next_snapshot,
+                         .next_checkpoint_s = &c->next_checkpoint, .volume_start_m3 = &c->volume_start,
+                         .frames = &c->n_frames};
+}
+
+/* Writes the checkpoint at the present step, by one thread between steps; a failure stops the run. */
+static void write_checkpoint(run_ctx *c)
+{
+    const sw_ckpt_run st = ckpt_state(c);
+    const long long step = (long long)llround(sw_model_time(c->model) / sw_model_dt(c->model));
+    if ((c->frames && sw_ckpt_frames_sync(c->frames, &c->loop_err) != SW_OK) ||
+        sw_ckpt_save(c->ckpt_path, &c->fp, step, &st, &c->loop_err) != SW_OK)
         c->stop = 2;
 }
 
@@ -183,7 +216,33 @@ static void between_steps(run_ctx *c, int last)
         return;
     sw_model *m = c->model;
     double now = sw_model_time(m);
-    if (c->opt->stop && *c->opt->stop) {
+    size_t bad_row;
+    if (c->tracker && sw_tracker_nonfinite_row(c->tracker, &bad_row)) {   /* a blow-up stops the run at once */
+        const sw_grid *g = &c->setup->grid;
+        sw_fail(&c->loop_err, SW_ERR_UNSTABLE, "the run blew up at t = %.6g s (step %lld of %lld): the elevation "
+                "became infinite or NaN on grid row %zu (y = %.6g %s); reduce [run] courant_fraction or dt", now,
+                (long long)llround(now / sw_model_dt(m)), c->setup->n_steps, bad_row,
+                sw_grid_geographic(g) ? sw_grid_to_deg(g, g->y0_m + ((double)bad_row + 0.5) * g->dy_m)
+                                      : (g->y0_m + ((double)bad_row + 0.5) * g->dy_m) / 1000,
+                sw_grid_geographic(g) ? "deg" : "km");
+        c->stop = 2;
+        return;
+    }
+    const double every = c->sc->checkpoint_interval_s;
+    if (c->checkpointing && !last && now >= c->next_checkpoint - 1e-9 * every) {
+        c->next_checkpoint = sw_gauges_next_time(c->next_checkpoint, now, every);
+        write_checkpoint(c);
+        if (c->stop)
+            return;
+    }
+    if ((c->opt->stop && *c->opt->stop) ||
+        (c->opt->stop_after_steps > 0 && llround(now / sw_model_dt(m)) >= c->opt->stop_after_steps)) {
+        if (c->checkpointing) {
+            write_checkpoint(c);
+            if (c->stop)
+                return;
+            c->checkpointed = 1;
+        }
         c->stop = 1;
         return;
     }
@@ -194,8 +253,10 @@ static void between_steps(run_ctx *c, int last)
             sw_progress p = {
                 .step = step, .n_steps = c->setup->n_steps, .sim_time_s = now,
                 .duration_s = (double)c->setup->n_steps * sw_model_dt(m), .elapsed_s = wall,
-                .remaining_s = step > 0 ? wall * (double)(c->setup->n_steps - step) / (double)step : NAN,
-                .cell_updates_per_s = wall > 0 ? (double)step * (double)sw_grid_cells(&c->setup->grid) / wall : 0,
+                .remaining_s = step > c->first_step
+                    ? wall * (double)(c->setup->n_steps - step) / (double)(step - c->first_step) : NAN,
+                .cell_updates_per_s = wall > 0
+                    ? (double)(step - c->first_step) * (double)sw_grid_cells(&c->setup->grid) / wall : 0,
             };
             c->opt->progress(&p, c->opt->progress_user);
             c->next_progress = wall + 0.5;
@@ -244,7 +305,7 @@ static int rupture_step(run_ctx *c, long long n, long long n_steps)
 static void time_loop(run_ctx *c)
 {
     const long long n_steps = c->setup->n_steps;
-    long long first = 0;
+    long long first = c->first_step;
     /* while a rupture goes on each step adds the sea floor's motion first (docs/faults.md); once the last
      * segment has stopped, the steps run as without it, in one parallel region */
     while (c->faults && first < n_steps && (double)first * sw_model_dt(c->model) < c->fault_end_s)
@@ -265,6 +326,16 @@ static void file_path(char *out, const sw_run_options *opt, const char *name)
     snprintf(out, SW_PATH_MAX, "%s/%s%s", opt->out_dir, opt->file_prefix ? opt->file_prefix : "", name);
 }
 
+/* The path an output file is written at: `name` (with the prefix) in the staging folder (outdir.h),
+ * into out (size SW_PATH_MAX + 64); its name alone into name_out (size 256) when not NULL. */
+static void staged_path(char *out, char *name_out, const char *stage, const sw_run_options *opt, const char *name)
+{
+    const char *pre = opt->file_prefix ? opt->file_prefix : "";
+    snprintf(out, SW_PATH_MAX + 64, "%s/%s%s", stage, pre, name);
+    if (name_out)
+        snprintf(name_out, 256, "%s%s", pre, name);
+}
+
 sw_status sw_run_crs(const sw_scenario *sc, const sw_grid *g, sw_crs *crs, sw_error *err)
 {
     memset(crs, 0, sizeof *crs);
@@ -281,6 +352,44 @@ sw_status sw_run_crs(const sw_scenario *sc, const sw_grid *g, sw_crs *crs, sw_er
                      "geographic)", path, crs->variable, sc->bed_variable, crs->mapping_name);
         sw_crs_free(crs);
     }
+    return rc;
+}
+
+/* Readies checkpoints for a run that writes files, once its parts exist (their state at t = 0) and before
+ * the first observation: with opt->resume, the state of the checkpoint in the output folder and the
+ * snapshots it names, appended again to the new snapshot file. Sets c->first_step (the step to go on from)
+ * and *resumed. */
+static sw_status start_checkpoints(run_ctx *c, int *resumed, sw_error *err)
+{
+    const sw_scenario *sc = c->sc;
+    const sw_run_options *opt = c->opt;
+    *resumed = 0;
+    if (opt->resume && (opt->sink || !(sc->checkpoint_interval_s > 0)))
+        return sw_fail(err, SW_ERR_USAGE, opt->sink ? "a run handing its results to a sink (a sweep member) has no "
+                       "checkpoint to resume from" : "no checkpoint to resume from: the scenario's [run] "
+                       "checkpoint_interval is 0, so no run of it writes one (accepted: a time > 0)");
+    if (opt->sink || !(sc->checkpoint_interval_s > 0))
+        return SW_OK;
+    c->checkpointing = 1;
+    c->next_checkpoint = sc->checkpoint_interval_s;
+    sw_ckpt_fingerprint_of(sc, c->setup, &c->fp);
+    file_path(c->ckpt_path, opt, SW_CKPT_NAME);
+    char frames_path[SW_PATH_MAX];
+    file_path(frames_path, opt, SW_CKPT_FRAMES_NAME);
+    const size_t cells = sw_grid_cells(&c->setup->grid);
+    if (!opt->resume)
+        return c->snaps ? sw_ckpt_frames_open(frames_path, cells, -1, &c->frames, err) : SW_OK;
+    const sw_ckpt_run st = ckpt_state(c);
+    sw_status rc = sw_ckpt_load(c->ckpt_path, &c->fp, &st, &c->first_step, err);
+    if (rc == SW_OK && c->snaps)
+        rc = sw_ckpt_frames_open(frames_path, cells, c->n_frames, &c->frames, err);
+    for (long long k = 0; rc == SW_OK && k < c->n_frames; k++) {
+        double t;
+        rc = sw_ckpt_frames_get(c->frames, k, &t, c->frame, err);
+        if (rc == SW_OK)
+            rc = sw_ncw_snapshots_append(c->snaps, t, c->frame, err);
+    }
+    *resumed = rc == SW_OK;
     return rc;
 }
 
@@ -319,7 +428,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
     sw_model_config cfg = {
         .layout = setup->layout, .grid = setup->grid, .depth_m = setup->depth_m, .eta0_m = setup->eta0_m,
         .min_depth_m = sc->min_depth_m, .gravity_ms2 = sc->gravity_ms2, .dt_s = setup->dt_s,
-        .precision = sc->precision, .terms = sc->terms,
+        .precision = sc->precision, .terms = sc->terms, .allow_unstable = opt->allow_unstable,
     };
     memcpy(cfg.edges, sc->edges, sizeof cfg.edges);
 
@@ -375,30 +484,46 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         if (!c.fault_inc)
             rc = sw_fail(err, SW_ERR_NOMEM, "out of memory for the rupture's sea-floor motion");
     }
+    /* the files are written in a staging folder and moved into place together once all are complete */
+    char stage[SW_PATH_MAX + 32] = "", staged[3][SW_PATH_MAX + 64], names[3][256];
+    size_t n_staged = 0;
+    if (rc == SW_OK && !opt->sink)
+        rc = sw_outdir_stage(opt->out_dir, stage, sizeof stage, err);
     if (rc == SW_OK && sc->snapshot_interval_s > 0 && !opt->sink) {
         file_path(res->snapshots_path, opt, "snapshots.nc");
+        staged_path(staged[2], names[2], stage, opt, "snapshots.nc");
         c.frame = malloc(sw_grid_cells(&setup->grid) * sizeof(double));
-        rc = c.frame ? sw_ncw_snapshots_open(res->snapshots_path, &meta, &setup->grid, setup->depth_m,
+        rc = c.frame ? sw_ncw_snapshots_open(staged[2], &meta, &setup->grid, setup->depth_m,
                                              sw_model_wet(c.model), &c.snaps, err)
                      : sw_fail(err, SW_ERR_NOMEM, "out of memory for the snapshot buffer");
     }
+    int resumed = 0;
     if (rc == SW_OK) {
-        res->volume_start_m3 = sw_model_volume(c.model);
+        c.volume_start = sw_model_volume(c.model);
         /* the initial state is sample 0 and snapshot 0 */
         c.next_sample = 0;
         c.next_snapshot = 0;
+        rc = start_checkpoints(&c, &resumed, err);   /* resumed: the state of a checkpoint instead */
+        res->volume_start_m3 = c.volume_start;
+    }
+    if (rc == SW_OK) {
         c.t_start = omp_get_wtime();
         c.next_progress = 0.5;
-        observe(&c, 0);
+        if (!resumed)
+            observe(&c, 0);
         if (!c.stop)
             time_loop(&c);
         res->wall_s = omp_get_wtime() - c.t_start;
         res->steps = (long long)llround(sw_model_time(c.model) / sw_model_dt(c.model));
         res->end_time_s = sw_model_time(c.model);
         res->cell_updates_per_s = res->wall_s > 0
-            ? (double)res->steps * (double)sw_grid_cells(&setup->grid) / res->wall_s : 0;
+            ? (double)(res->steps - c.first_step) * (double)sw_grid_cells(&setup->grid) / res->wall_s : 0;
         res->volume_end_m3 = sw_model_volume(c.model);
-        if (c.stop == 1)
+        if (c.stop == 1 && c.checkpointed)
+            rc = sw_fail(err, SW_ERR_INTERRUPTED, "run interrupted at t = %g s; no output files were written; "
+                         "checkpoint written to %s: run the same scenario with --resume and the same output "
+                         "folder to continue", sw_model_time(c.model), c.ckpt_path);
+        else if (c.stop == 1)
             rc = sw_fail(err, SW_ERR_INTERRUPTED, "run interrupted at t = %g s; no output files were written",
                          sw_model_time(c.model));
         else if (c.stop == 2) {
@@ -438,20 +563,38 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         res->noise_index = sw_tracker_noise(c.tracker, maps.wet);
         sw_gauges_table(c.gauges, &table);
         fill_results(&c, res);
+        const char *set[3];
+        if (!opt->sink) {
+            staged_path(staged[0], names[0], stage, opt, "gauges.nc");
+            staged_path(staged[1], names[1], stage, opt, "maps.nc");
+        }
         if (opt->sink)
             rc = opt->sink(&maps, &table, opt->sink_user, err);   /* instead of the files */
-        else if (table.n_stations > 0)
-            rc = sw_ncw_gauges(res->gauges_path, &meta, &table, err);
-        else
+        else if (table.n_stations > 0) {
+            rc = sw_ncw_gauges(staged[0], &meta, &table, err);
+            set[n_staged++] = names[0];
+        } else
             res->gauges_path[0] = '\0';   /* no gauges, no gauge file */
-        if (rc == SW_OK && !opt->sink)
-            rc = sw_ncw_maps(res->maps_path, &meta, &maps, err);
+        if (rc == SW_OK && !opt->sink) {
+            rc = sw_ncw_maps(staged[1], &meta, &maps, err);
+            set[n_staged++] = names[1];
+        }
         if (rc == SW_OK && c.snaps) {
             rc = sw_ncw_snapshots_commit(c.snaps, err);
             c.snaps = NULL;
+            set[n_staged++] = names[2];
         }
+        if (rc == SW_OK && !opt->sink)   /* all complete: the set replaces the previous one (outdir.h) */
+            rc = sw_outdir_commit(opt->out_dir, stage, opt->file_prefix, set, n_staged, meta.caution, err);
     }
     sw_ncw_snapshots_abort(c.snaps);
+    if (rc != SW_OK && stage[0]) {   /* the previous set stays as it was; the message names the final paths */
+        sw_outdir_rename_msg(err, stage, opt->out_dir);
+        sw_outdir_unstage(stage);
+    }
+    sw_ckpt_frames_close(c.frames, rc == SW_OK);   /* the run's files are written: its checkpoint is spent */
+    if (rc == SW_OK && c.checkpointing)
+        remove(c.ckpt_path);
     free(air_maps);
     free(c.air);
     free(c.fault_inc);

@@ -44,6 +44,12 @@ typedef struct {
                                    * (out_dir and file_prefix unused, no snapshots); sweep members use it,
                                    * since NetCDF calls must not run in several threads at once */
     void *sink_user;              /* passed to sink */
+    long long stop_after_steps;   /* > 0: stop as an interruption does once the model has taken this many
+                                   * steps (writing the final checkpoint when checkpoints are on); for tests */
+    int resume;                   /* 1: continue from the checkpoint in out_dir (run/checkpoint.h) instead of
+                                   * t = 0 (`shoreward run --resume`) */
+    int allow_unstable;           /* 1: accept a time step beyond the layout's limit (sw_model_config); for
+                                   * tests of what a run does when it blows up */
 } sw_run_options;
 
 /* What a gauge saw (times in s since the origin; NaN when never reached or the gauge is dry). */
@@ -106,7 +112,16 @@ const char *sw_caution_sweep_for(const sw_scenario *sc);
 /* Runs the scenario with the setup built from it and writes <out_dir>/<prefix>gauges.nc (when there
  * are gauges), maps.nc and (with a snapshot interval) snapshots.nc, each only once complete. Fills *res. On failure (I/O,
  * interruption, a run that blew up) returns the status with err naming the cause; no output file
- * is left half-written, and files of an earlier run at the same paths are kept. */
+ * is left half-written, and files of an earlier run at the same paths are kept.
+ * Checkpoints (run/checkpoint.h), for a run that writes files: with sc->checkpoint_interval_s > 0 the run
+ * writes <out_dir>/<prefix>checkpoint.swck at the first step at or after each multiple of the interval
+ * (not at the last step), and once more when it is stopped (opt->stop, opt->stop_after_steps; the message
+ * then names the checkpoint); snapshots taken so far are kept beside it in checkpoint.frames. Both are
+ * removed when the run ends with its files written. With opt->resume the run continues from the
+ * checkpoint in out_dir instead of t = 0, and its files are the same bits as those of a run never
+ * stopped, whatever the thread counts of either; refused (SW_ERR_USAGE) with a sink or without a
+ * checkpoint interval, and as sw_ckpt_load refuses a checkpoint of another run. res->wall_s and the
+ * progress then count the resumed part only. */
 sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_options *opt,
                  sw_run_result *res, sw_error *err);
 

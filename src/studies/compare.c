@@ -103,9 +103,22 @@ static void fill_differences(sw_compare *cmp)
     }
 }
 
+static sw_status compare_runs(const sw_scenario *sc, const char *const *layouts, size_t n_layouts, const int *refine,
+                               size_t n_refine, const sw_run_options *opt, sw_compare_fn done, void *user,
+                               sw_compare *out, sw_error *err);
+
 sw_status sw_compare_run(const sw_scenario *sc, const char *const *layouts, size_t n_layouts, const int *refine,
                          size_t n_refine, const sw_run_options *opt, sw_compare_fn done, void *user,
                          sw_compare *out, sw_error *err)
+{
+    if (!opt || !opt->out_dir)
+        return sw_fail(err, SW_ERR_USAGE, "sw_compare_run: an output folder is required");
+    return compare_runs(sc, layouts, n_layouts, refine, n_refine, opt, done, user, out, err);
+}
+
+static sw_status compare_runs(const sw_scenario *sc, const char *const *layouts, size_t n_layouts, const int *refine,
+                               size_t n_refine, const sw_run_options *opt, sw_compare_fn done, void *user,
+                               sw_compare *out, sw_error *err)
 {
     memset(out, 0, sizeof *out);
     out->reference = -1;

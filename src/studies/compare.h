@@ -54,7 +54,8 @@ typedef void (*sw_compare_fn)(const sw_compare_row *row, size_t i, size_t n, voi
  * each run go to <opt->out_dir>/<layout>-x<r>/. A failing run is recorded in its row and the others
  * go on (sw_compare_outcome then says the comparison failed); the call itself fails only for bad
  * arguments (SW_ERR_USAGE/RANGE: unknown layout, refine < 1, more than SW_COMPARE_MAX_RUNS runs), out of
- * memory, or an interruption (SW_ERR_INTERRUPTED), and then *out owns nothing. */
+ * memory, or an interruption (SW_ERR_INTERRUPTED), and then *out owns nothing. The caller locks
+ * opt->out_dir (run/outdir.h) for the runs and the files it writes after them (the CLI does). */
 sw_status sw_compare_run(const sw_scenario *sc, const char *const *layouts, size_t n_layouts, const int *refine,
                          size_t n_refine, const sw_run_options *opt, sw_compare_fn done, void *user,
                          sw_compare *out, sw_error *err);

@@ -376,5 +376,20 @@ for case in CASES:
     run_case(*case)
 for case in CLI:
     run_cli_case(*case)
+
+# started by an MPI launcher with 3 copies (the environment Open MPI gives each copy): a run never spreads
+# over ranks, and a build without MPI cannot spread a sweep either; rank 0 says so, every copy exits 2
+LAUNCHER = dict(os.environ, OMPI_COMM_WORLD_SIZE="3", OMPI_COMM_WORLD_RANK="0")
+scn = os.path.join(WORK, "cli-no-scenario", "case.scn")
+for cmd, words in (("run", "does not spread over MPI ranks; 3 copies"), ("demo", "does not spread over MPI ranks; 3 copies"),
+                   ("sweep", "built without MPI")):
+    args = [BIN, cmd] + ([] if cmd == "demo" else [scn]) + ["--out", os.path.join(WORK, f"mpi-{cmd}-out")]
+    r = subprocess.run(args, capture_output=True, text=True, timeout=TIMEOUT_S, env=LAUNCHER)
+    check(r.returncode == 2 and words in r.stderr and not os.path.exists(os.path.join(WORK, f"mpi-{cmd}-out")),
+          f"{cmd} under a launcher's 3 copies: exit {r.returncode} (want 2), refused before any output "
+          f"[{r.stderr.strip()[:200]}]")
+    r = subprocess.run(args, capture_output=True, text=True, timeout=TIMEOUT_S,
+                       env=dict(LAUNCHER, OMPI_COMM_WORLD_RANK="1"))
+    check(r.returncode == 2 and r.stderr == "", f"{cmd}: a launcher's rank 1 exits 2 silently ({r.stderr[:100]!r})")
 print("%d cases, %d failed, %d pending still failing" % (len(CASES) + len(CLI), len(FAILURES), len(PENDING_FAILED)))
 sys.exit(1 if FAILURES else 0)
