@@ -1,4 +1,12 @@
-/* cmd_sweep.c - `shoreward sweep`: a sensitivity sweep of one scenario (the work is in src/studies/sweep_*.c). */
+/* cmd_sweep.c - `shoreward sweep`: a sensitivity sweep of one scenario (the work is in src/studies/sweep_*.c).
+ *
+ * MPI. Started by an MPI launcher (mpirun, mpiexec, srun: cli_launcher_size), a build with -DSW_MPI=ON
+ * (SW_HAVE_MPI) spreads the members over the ranks (studies/sweep_mpi.h): every rank parses the arguments
+ * and the scenario and plans the sweep, the plans are checked to agree, and only rank 0 prints (the other
+ * ranks' stdout and stderr go to /dev/null; their failures reach rank 0 and are printed there). A build
+ * without MPI started by a launcher with more than one copy refuses to run, since every copy would run the
+ * whole sweep into the same folder.
+ */
 #define _POSIX_C_SOURCE 200809L
 #include <stdio.h>
 #include <stdlib.h>
@@ -8,6 +16,11 @@
 #include "cli.h"
 #include "outputs/report.h"
 #include "studies/sweep.h"
+#ifdef SW_HAVE_MPI
+#include "studies/sweep_mpi.h"
+
+static sw_sweep_mpi_world *mpi_world;   /* the MPI job this sweep runs in; NULL when not started by a launcher */
+#endif
 
 static const char *const usage_sweep =
     "Usage: shoreward sweep SCENARIO [--out DIR] [--members-parallel N] [--threads N] [--precision P]\n"
@@ -31,6 +44,9 @@ static const char *const usage_sweep =
     "                          each member's scenario file)\n"
     "  --quiet                 no plan and no progress line\n"
     "  --json                  print the summary as one JSON object on stdout\n"
+    "\n"
+    "On a cluster (a build configured with -DSW_MPI=ON): mpirun -n N shoreward sweep SCENARIO --out DIR\n"
+    "hands the members to N ranks (DIR must be one folder all of them see); the result is the same.\n"
     "\n"
     "Example:\n"
     "  shoreward sweep scenarios/sweep-demo.scn --out sweep-out\n"
@@ -72,7 +88,69 @@ static int take_members_parallel(int argc, char **argv, char **rest, int *n_rest
     return -1;
 }
 
+/* 1 on the rank that prints (rank 0, or the only process). */
+static int printing_rank(void)
+{
+#ifdef SW_HAVE_MPI
+    return !mpi_world || mpi_world->rank == 0;
+#else
+    return 1;
+#endif
+}
+
+/* Under MPI: brings every rank's setup outcome together (sw_sweep_mpi_agree). `code` is this rank's exit
+ * status so far (-1 = set up; a failure was printed already by rank 0 when it was its own). Returns the
+ * exit status every rank goes on with (-1 = all set up). Without MPI it returns code. */
+static int agree(int code, const sw_sweep_plan *plan, sw_error *err)
+{
+#ifdef SW_HAVE_MPI
+    if (!mpi_world)
+        return code;
+    if (code >= 0 && err->code == SW_OK)
+        sw_fail(err, code == 2 ? SW_ERR_USAGE : SW_ERR_INPUT, "the command line or scenario is refused");
+    sw_status st = sw_sweep_mpi_agree(mpi_world, code < 0 ? plan : NULL, code < 0 ? SW_OK : err->code, err);
+    if (st == SW_OK || code >= 0)
+        return code;
+    return cli_fail("sweep", err);
+#else
+    (void)plan;
+    (void)err;
+    return code;
+#endif
+}
+
+static int sweep_main(int argc, char **argv, const char *history);
+
 int cmd_sweep(int argc, char **argv, const char *history)
+{
+    long n_copies, rank;
+    cli_launcher_size(&n_copies, &rank);
+#ifndef SW_HAVE_MPI
+    if (n_copies > 1) {
+        if (rank == 0)
+            fprintf(stderr, "shoreward sweep: error: this shoreward was built without MPI (cmake -DSW_MPI=ON); "
+                            "%ld copies would each run the whole sweep\n", n_copies);
+        return 2;
+    }
+    return sweep_main(argc, argv, history);
+#else
+    if (n_copies <= 0)
+        return sweep_main(argc, argv, history);
+    static sw_sweep_mpi_world w;
+    sw_error err = { 0 };
+    if (sw_sweep_mpi_init(NULL, NULL, &w, &err) != SW_OK)
+        return rank == 0 ? cli_fail("sweep", &err) : 1;
+    mpi_world = &w;
+    if (w.rank != 0) {   /* silent: what goes wrong here is reported by rank 0 */
+        if (!freopen("/dev/null", "w", stdout) || !freopen("/dev/null", "w", stderr))
+            clearerr(stderr);
+    }
+    int code = sweep_main(argc, argv, history);
+    return sw_sweep_mpi_finish(&w, code);
+#endif
+}
+
+static int sweep_main(int argc, char **argv, const char *history)
 {
     char **rest = calloc((size_t)argc + 1, sizeof *rest);
     if (!rest)
@@ -80,31 +158,34 @@ int cmd_sweep(int argc, char **argv, const char *history)
     int n_rest = 0, members_parallel = 0;
     int code = take_members_parallel(argc, argv, rest, &n_rest, &members_parallel);
     cli_args a;
+    sw_error err = { 0 };
     if (code < 0)
         code = cli_parse("sweep", usage_sweep, n_rest, rest, CLI_OUT | CLI_RUN_OPTS | CLI_PRECISION, &a);
     free(rest);
+    if (code < 0 && !a.scenario)
+        code = cli_usage_error("sweep", "%s", "needs a scenario file with a [sweep] section");
     if (code >= 0)
-        return code;
-    if (!a.scenario)
-        return cli_usage_error("sweep", "%s", "needs a scenario file with a [sweep] section");
+        return agree(code, NULL, &err);
 
     sw_scenario *sc = malloc(sizeof *sc);
     sw_sweep_plan plan;
     sw_sweep_summary summary;
-    sw_error err = { 0 };
-    if (!sc)
-        return 1;
+    if (!sc) {
+        sw_fail(&err, SW_ERR_NOMEM, "out of memory");
+        return agree(1, NULL, &err);
+    }
     if (sw_scenario_load(a.scenario, sc, &err) != SW_OK) {
         free(sc);
-        return cli_fail("sweep", &err);
+        return agree(cli_fail("sweep", &err), NULL, &err);
     }
     cli_apply_precision(&a, sc);
     if (!sc->sweep.present) {
         fprintf(stderr, "shoreward sweep: error: %s has no [sweep] section; docs/sweep.md says how to write one\n",
                 a.scenario);
+        sw_fail(&err, SW_ERR_USAGE, "%s has no [sweep] section; docs/sweep.md says how to write one", a.scenario);
         sw_scenario_free(sc);
         free(sc);
-        return 1;
+        return agree(1, NULL, &err);
     }
     char out[SW_PATH_MAX];
     if (a.out)
@@ -118,26 +199,53 @@ int cmd_sweep(int argc, char **argv, const char *history)
     if (sw_sweep_plan_build(sc, out, &plan, &err) != SW_OK) {
         sw_scenario_free(sc);
         free(sc);
-        return cli_fail("sweep", &err);
+        return agree(cli_fail("sweep", &err), NULL, &err);
     }
-    if (!a.json && !a.quiet) {
+    code = agree(-1, &plan, &err);
+    if (code >= 0) {
+        sw_sweep_plan_free(&plan);
+        sw_scenario_free(sc);
+        free(sc);
+        return code;
+    }
+    if (!a.json && !a.quiet && printing_rank()) {
         printf("Scenario   %s  (%s)\n", sc->title, sc->path);
         sw_sweep_report_plan(stdout, &plan, a.threads, members_parallel, 0, 0);
+#ifdef SW_HAVE_MPI
+        if (mpi_world)
+            printf("MPI        %d ranks, each running one member at a time (rank 0 with %d thread%s); rank 0 %s\n",
+                   mpi_world->size, sw_sweep_mpi_threads(mpi_world, a.threads),
+                   sw_sweep_mpi_threads(mpi_world, a.threads) == 1 ? "" : "s",
+                   mpi_world->rank0_runs_members ? "also dispatches" : "only dispatches");
+#endif
         printf("\n%s\n\n", sw_caution_sweep_for(sc));
         fflush(stdout);
     }
+#ifdef SW_HAVE_MPI
+    if (mpi_world && mpi_world->rank == 0 && (size_t)mpi_world->size > plan.n_members)
+        fprintf(stderr, "shoreward sweep: note: %d ranks for %zu members: %zu of them will have nothing to do; "
+                        "mpirun -n %zu is enough\n", mpi_world->size, plan.n_members,
+                (size_t)mpi_world->size - plan.n_members, plan.n_members);
+#endif
     cli_catch_signals();
-    int tty = isatty(STDERR_FILENO) && !a.quiet;
+    int tty = isatty(STDERR_FILENO) && !a.quiet && printing_rank();
     sw_sweep_options opt = {
         .threads = a.threads, .members_parallel = members_parallel, .history = history,
         .progress = tty ? show_progress : NULL, .stop = &cli_stop,
     };
+#ifdef SW_HAVE_MPI
+    sw_status rc = mpi_world ? sw_sweep_mpi_run(mpi_world, &plan, &opt, &summary, &err)
+                             : sw_sweep_run(&plan, &opt, &summary, &err);
+#else
     sw_status rc = sw_sweep_run(&plan, &opt, &summary, &err);
+#endif
     if (tty)
         fputc('\n', stderr);
     code = 0;
     if (rc != SW_OK) {
         code = cli_fail("sweep", &err);
+    } else if (!printing_rank()) {
+        code = 0;   /* a worker rank: rank 0 reports */
     } else {
         if (a.json) {
             char *js = sw_sweep_json(&plan, &summary);

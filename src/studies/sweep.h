@@ -160,6 +160,15 @@ typedef struct {
     sw_sweep_progress_fn progress; /* NULL = no reports */
     void *progress_user;
     volatile sig_atomic_t *stop;   /* non-zero stops the sweep (finished members are kept) */
+    /* NULL (the default): the members run in this process. Otherwise the attempt's member loop is handed
+     * to it (sweep_mpi.c hands the members to MPI ranks): pending[0..n_pending) are the members left to
+     * run, ascending; done counts those already finished (earlier attempts, members that cannot run);
+     * out->members_parallel and out->threads are its to set; user is member_loop_user. It returns SW_OK
+     * when every pending member has its member file, else the interruption or failure that stopped it
+     * (err filled); sw_sweep_run then returns that. */
+    sw_status (*member_loop)(const sw_sweep_plan *plan, const size_t *pending, size_t n_pending, size_t done,
+                             sw_sweep_summary *out, void *user, sw_error *err);
+    void *member_loop_user;
 } sw_sweep_options;
 
 /* Runs the planned sweep into plan->out_dir (see the data flow above). Members already in

@@ -6,7 +6,8 @@
  * loops in the model, tracker and layouts bind to it and not to the team of members; nested
  * regions are inactive by default, and a member's own regions then run on its one thread). Large members
  * run one after another, each with all threads. NetCDF-C is not thread-safe: every NetCDF call made
- * while members may run (setup input, member files) sits in `omp critical(sw_netcdf)`.
+ * while members may run (setup input, member files) sits in `omp critical(sw_netcdf)`. With
+ * opt->member_loop set, the loop is that function's instead (sweep_mpi.c: the members go to MPI ranks).
  *
  * Files. <out>/members/manifest.json records the scenario text and the design; a resumed sweep
  * whose scenario or design differs is refused. <out>/members/mNNNNN.nc (ncsweep.c) appears, via
@@ -25,6 +26,7 @@
 
 #include "base/atomic_file.h"
 #include "base/omp_compat.h"
+#include "run/outdir.h"
 #include "run/run.h"
 #include "studies/ncsweep.h"
 
@@ -329,7 +331,27 @@ static sw_status write_member_scenario(const sw_sweep_plan *plan, size_t k, sw_e
     return st;
 }
 
+static sw_status sweep_members(sw_sweep_plan *plan, const sw_sweep_options *opt, sw_sweep_summary *out,
+                               sw_error *err);
+
+/* The output folder is created, write-tested and locked (run/outdir.h) while the members run, so that two
+ * sweeps (or a sweep and a run) never write into one folder at once. */
 sw_status sw_sweep_run(sw_sweep_plan *plan, const sw_sweep_options *opt, sw_sweep_summary *out, sw_error *err)
+{
+    memset(out, 0, sizeof *out);
+    if (!plan || !plan->out_dir[0] || !opt)
+        return sw_fail(err, SW_ERR_USAGE, "sw_sweep_run: a plan with an output folder is required");
+    sw_outdir od;
+    sw_status st = sw_outdir_open(&od, plan->out_dir, opt->history, err);
+    if (st != SW_OK)
+        return st;
+    st = sweep_members(plan, opt, out, err);
+    sw_outdir_close(&od);
+    return st;
+}
+
+static sw_status sweep_members(sw_sweep_plan *plan, const sw_sweep_options *opt, sw_sweep_summary *out,
+                               sw_error *err)
 {
     memset(out, 0, sizeof *out);
     if (!plan || !plan->out_dir[0] || !opt)
@@ -387,7 +409,11 @@ sw_status sw_sweep_run(sw_sweep_plan *plan, const sw_sweep_options *opt, sw_swee
     out->members_parallel = par;
     out->threads = par > 1 ? 1 : threads;
     c.t0 = omp_get_wtime();
-    if (st == SW_OK && par > 1) {
+    if (st == SW_OK && opt->member_loop) {   /* the members run elsewhere (MPI ranks: sweep_mpi.c) */
+        st = opt->member_loop(plan, pending, n_pending, c.done, out, opt->member_loop_user, err);
+        if (st == SW_OK)
+            c.done = M;
+    } else if (st == SW_OK && par > 1) {
         SW_OMP(parallel for num_threads(par) schedule(dynamic, 1))
         for (size_t i = 0; i < n_pending; i++) {
             int skip;
