@@ -7,6 +7,7 @@
 
 #include <errno.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
 
@@ -105,4 +106,34 @@ sw_status sw_atomic_write_text(const char *path, const char *text, sw_error *err
         return st;
     fputs(text, af.f);   /* a failed write sets the stream's error flag, which sw_atomic_close reports */
     return sw_atomic_close(&af, err);
+}
+
+char *sw_read_text(const char *path)
+{
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return NULL;
+    char *buf = NULL;
+    size_t len = 0, cap = 0;
+    for (;;) {
+        if (len + 4096 + 1 > cap) {
+            cap = (cap + 4096) * 2;
+            char *nb = realloc(buf, cap);
+            if (!nb) {   /* out of memory: no partial text, which would list too few files */
+                free(buf);
+                fclose(f);
+                errno = ENOMEM;
+                return NULL;
+            }
+            buf = nb;
+        }
+        size_t got = fread(buf + len, 1, cap - len - 1, f);
+        len += got;
+        if (got == 0)
+            break;
+    }
+    fclose(f);
+    if (buf)
+        buf[len] = '\0';
+    return buf;
 }

@@ -1,4 +1,5 @@
-/* atomic_file.h - replacing a file only once its new content is complete ("<path>.part", then rename).
+/* atomic_file.h - replacing a file only once its new content is complete ("<path>.part", then rename);
+ * and reading a small text file whole (sw_read_text).
  *
  * A writer writes "<path>.part" in the same folder as <path> and renames it to <path> only when every
  * write and the close succeeded; on any failure it removes the .part. rename() within one folder is
@@ -59,5 +60,9 @@ sw_status sw_atomic_close(sw_atomic_file *af, sw_error *err);
 
 /* Writes the whole NUL-terminated text to path the same way (open, write, close). */
 sw_status sw_atomic_write_text(const char *path, const char *text, sw_error *err);
+
+/* The whole content of the (small) file at path as NUL-terminated text, which the caller frees; NULL with
+ * errno set when it cannot be opened or read (ENOMEM when out of memory: never a partial text). */
+char *sw_read_text(const char *path);
 
 #endif

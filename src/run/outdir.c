@@ -269,38 +269,6 @@ sw_status sw_outdir_check_space(const char *path, double need_bytes, sw_error *e
 
 /* ---- staging and the commit --------------------------------------------------------------------- */
 
-/* The whole text of file path (NUL-terminated, caller frees), or NULL with errno set (ENOMEM when out of
- * memory). */
-static char *slurp(const char *path)
-{
-    FILE *f = fopen(path, "rb");
-    if (!f)
-        return NULL;
-    char *buf = NULL;
-    size_t len = 0, cap = 0;
-    for (;;) {
-        if (len + 4096 + 1 > cap) {
-            cap = (cap + 4096) * 2;
-            char *nb = realloc(buf, cap);
-            if (!nb) {   /* out of memory: no partial text, which would list too few files */
-                free(buf);
-                fclose(f);
-                errno = ENOMEM;
-                return NULL;
-            }
-            buf = nb;
-        }
-        size_t got = fread(buf + len, 1, cap - len - 1, f);
-        len += got;
-        if (got == 0)
-            break;
-    }
-    fclose(f);
-    if (buf)
-        buf[len] = '\0';
-    return buf;
-}
-
 /* Whether manifest text lists file `name` ("name": "<name>"). */
 static int manifest_lists(const char *text, const char *name)
 {
@@ -316,7 +284,7 @@ static sw_status roll_forward(const char *out_dir, const char *stage, const char
 {
     char from[SW_PATH_MAX + 300], to[SW_PATH_MAX + 300];
     snprintf(from, sizeof from, "%s/%s", stage, manifest);
-    char *text = slurp(from);
+    char *text = sw_read_text(from);
     if (!text)
         return sw_fail(err, SW_ERR_IO, "%s: cannot read the staged manifest: %s", from, strerror(errno));
     snprintf(to, sizeof to, "%s/%s", out_dir, manifest);

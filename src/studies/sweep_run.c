@@ -36,36 +36,6 @@ static int file_exists(const char *path)
     return stat(path, &st) == 0 && S_ISREG(st.st_mode);
 }
 
-/* Reads a whole small text file (caller frees); NULL when it cannot. */
-static char *read_text_file(const char *path)
-{
-    FILE *f = fopen(path, "rb");
-    if (!f)
-        return NULL;
-    size_t cap = 4096, len = 0;
-    char *buf = malloc(cap);
-    while (buf) {
-        if (len + 1 >= cap) {
-            char *b = realloc(buf, cap * 2);
-            if (!b) {
-                free(buf);
-                buf = NULL;
-                break;
-            }
-            buf = b;
-            cap *= 2;
-        }
-        size_t got = fread(buf + len, 1, cap - 1 - len, f);
-        len += got;
-        if (got == 0)
-            break;
-    }
-    fclose(f);
-    if (buf)
-        buf[len] = '\0';
-    return buf;
-}
-
 void sw_sweep_summary_free(sw_sweep_summary *s)
 {
     if (!s)
@@ -153,7 +123,7 @@ static sw_status manifest(const sw_sweep_plan *plan, const char *members_dir, sw
     if (!design)
         return sw_fail(err, SW_ERR_NOMEM, "out of memory writing the sweep manifest");
     sw_status st = SW_OK;
-    char *old = read_text_file(path);
+    char *old = sw_read_text(path);
     if (old) {
         cJSON *o = cJSON_Parse(old);
         const char *ver = cJSON_GetStringValue(cJSON_GetObjectItem(o, "shoreward"));
