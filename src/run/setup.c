@@ -126,8 +126,10 @@ sw_status sw_setup_build(sw_scenario *sc, sw_setup *s, sw_error *err)
     s->depth_m = malloc(n * sizeof(double));
     s->eta0_m = malloc(n * sizeof(double));
     if (!s->depth_m || !s->eta0_m) {
+        const size_t nx = s->grid.nx, ny = s->grid.ny;   /* sw_setup_free clears s */
         sw_setup_free(s);
-        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the %zu x %zu input fields", s->grid.nx, s->grid.ny);
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the %zu x %zu input fields (depth and initial "
+                       "elevation, %.0f MB)", nx, ny, 2.0 * (double)n * sizeof(double) / 1e6);
     }
     sw_seabed_info info = { 0 };
     rc = sw_seabed_build_info(sc, s->depth_m, &info, err);

@@ -377,6 +377,20 @@ for case in CASES:
 for case in CLI:
     run_cli_case(*case)
 
+# under an address-space limit (ulimit -v 2 GB) a grid whose input fields alone need 6.4 GB: one line naming
+# the grid's true size and the bytes, not a zeroed grid
+def limit_as():
+    import resource
+    resource.setrlimit(resource.RLIMIT_AS, (2 << 30, 2 << 30))
+
+
+big = os.path.join(WORK, "big-grid.scn")
+with open(big, "w") as f:
+    f.write(run_sec() + "[grid]\nnx = 20000\nny = 20000\ndx = 1 km\n" + DEEP)
+r = subprocess.run([BIN, "check", big], capture_output=True, text=True, timeout=TIMEOUT_S, preexec_fn=limit_as)
+check(r.returncode == 1 and "out of memory for the 20000 x 20000 input fields" in r.stderr and "6400 MB" in r.stderr,
+      f"a grid too big for the address space: exit {r.returncode} [{r.stderr.strip()[:200]}]")
+
 # started by an MPI launcher with 3 copies (the environment Open MPI gives each copy): a run never spreads
 # over ranks, and a build without MPI cannot spread a sweep either; rank 0 says so, every copy exits 2
 LAUNCHER = dict(os.environ, OMPI_COMM_WORLD_SIZE="3", OMPI_COMM_WORLD_RANK="0")
