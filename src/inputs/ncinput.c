@@ -31,6 +31,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 
 #include "base/isolate.h"
 #include "inputs/ncattr.h"
@@ -292,6 +293,25 @@ static sw_status ncin_lon_axis(ncin_file *f, const double *c, double tol, sw_err
     return SW_OK;
 }
 
+/* The longest axis a file may have: ten times the grid's own limit ([grid] nx, ny <= 100000). */
+#define NCIN_AXIS_MAX 1000000
+
+/* Refuses a variable of a classic-format file (CDF-1, -2, -5: stored uncompressed) whose `count` values
+ * of `type_bytes` each cannot fit in the file's bytes: a damaged header claims sizes that no data back,
+ * and reading them would first allocate all of it. NetCDF-4 files may be compressed and pass. */
+static sw_status ncin_fits(const ncin_file *f, const char *name, size_t count, size_t type_bytes, sw_error *err)
+{
+    int format = 0;
+    struct stat st;
+    if (nc_inq_format(f->ncid, &format) != NC_NOERR || format == NC_FORMAT_NETCDF4
+        || format == NC_FORMAT_NETCDF4_CLASSIC || stat(f->path, &st) != 0)
+        return SW_OK;
+    if (count <= (size_t)st.st_size / type_bytes)
+        return SW_OK;
+    return sw_fail(err, SW_ERR_INPUT, "%s: variable '%s' claims %zu values, more than the file's %lld bytes can "
+                   "hold (a damaged file?)", f->path, name, count, (long long)st.st_size);
+}
+
 /* Checks the coordinate variable of axis k (dimension f->dimid[k]) and describes it in f. Returns SW_OK
  * or SW_ERR_INPUT / SW_ERR_NETCDF / SW_ERR_NOMEM; the file stays open either way (the caller closes it). */
 static sw_status ncin_axis(ncin_file *f, int k, sw_error *err)
@@ -301,6 +321,9 @@ static sw_status ncin_axis(ncin_file *f, int k, sw_error *err)
     if (rc != NC_NOERR)
         return ncin_lib_fail(f, rc, "reading its dimensions", err);
     f->n[k] = f->n_stored[k];
+    if (f->n[k] > NCIN_AXIS_MAX)
+        return sw_fail(err, SW_ERR_INPUT, "%s: variable '%s': dimension '%s' has %zu points (accepted: at most %d)",
+                       f->path, f->var, dn, f->n[k], NCIN_AXIS_MAX);
     if (f->n[k] < 2)
         return sw_fail(err, SW_ERR_INPUT,
                        "%s: variable '%s': dimension '%s' has %zu point(s); at least 2 are needed "
@@ -315,6 +338,9 @@ static sw_status ncin_axis(ncin_file *f, int k, sw_error *err)
         return st;
 
     size_t n = f->n[k];
+    st = ncin_fits(f, dn, n, 1, err);   /* a coordinate takes at least a byte a value */
+    if (st != SW_OK)
+        return st;
     double *c = malloc(n * sizeof *c);
     if (!c)
         return sw_fail(err, SW_ERR_NOMEM, "%s: variable '%s': out of memory reading coordinate '%s'",
@@ -493,6 +519,9 @@ static sw_status ncin_values(const ncin_file *f, int varid, const char *name, do
         return sw_fail(err, SW_ERR_NOMEM, "%s: variable '%s' is too large (%zu x %zu)", f->path,
                        name, rows, cols);
     size_t total = rows * cols;
+    sw_status fits = ncin_fits(f, name, total, 1, err);   /* a stored value takes at least a byte */
+    if (fits != SW_OK)
+        return fits;
     double *v = malloc(total * sizeof *v);
     if (!v)
         return sw_fail(err, SW_ERR_NOMEM, "%s: variable '%s': out of memory for %zu x %zu values",
