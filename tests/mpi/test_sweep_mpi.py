@@ -152,8 +152,9 @@ def test_ranks_identical():
 
 def test_interrupted_resume(ref):
     path = os.path.join(WORK, "fact.scn")
-    # the same sweep with longer members, so that it can be caught half done
-    slow = write("slow.scn", coast(FACTORIAL, duration="60 min", n=200))
+    # members of about a second each here (AMD EPYC, 2 cores): slow enough to be caught half done even
+    # on a machine several times faster (with 60 min on 200 x 200 all 18 could finish before SIGINT landed)
+    slow = write("slow.scn", coast(FACTORIAL, duration="240 min", n=300))
     full = os.path.join(WORK, "slow-one")
     r = run([BIN, "sweep", slow, "--out", full, "--quiet"])
     check(r.returncode == 0, "one-process sweep of the longer members (%s)" % r.stderr.strip()[-300:])
