@@ -846,10 +846,11 @@ static void format_coord(char *out, size_t n, double v, sw_unit_kind unit)
 }
 
 /* One coordinate *v written with `unit` along `axis`, of key k (NULL: a point's, scn_point_key): checked
- * against the grid's kind, and with commit set turned into model metres. `what` names it in a message
- * ("[source main] x"). */
-static int place_coord(const sw_grid *g, const key_def *k, int axis, double *v, sw_unit_kind unit, const char *what,
-                       int line, int commit, place_problem *p)
+ * against the grid's kind, and with commit set turned into model metres: a position moved onto the grid's
+ * longitudes (scn_coord_to_m), an offset (a file source's, a fault's: `offset` set) without the move by
+ * 360 deg. `what` names it in a message ("[source main] x"). */
+static int place_value(const sw_grid *g, const key_def *k, int axis, double *v, sw_unit_kind unit, const char *what,
+                       int line, int commit, int offset, place_problem *p)
 {
     char why[512], txt[64];
     sw_status st = scn_check_coord(k, axis, *v, unit, (int)g->kind, why, sizeof why);
@@ -858,24 +859,20 @@ static int place_coord(const sw_grid *g, const key_def *k, int axis, double *v, 
         return place_fail(p, st, line, "%s = %s: %s", what, txt, why);
     }
     if (commit && sw_grid_geographic(g))
-        *v = scn_coord_to_m(g, axis, *v);
+        *v = offset ? sw_grid_deg(g, *v) : scn_coord_to_m(g, axis, *v);
     return 1;
 }
 
-/* An offset *v (a file source's, a fault's) as place_coord places a position, but converted to model metres
- * without the longitude's move by 360 deg. */
+static int place_coord(const sw_grid *g, const key_def *k, int axis, double *v, sw_unit_kind unit, const char *what,
+                       int line, int commit, place_problem *p)
+{
+    return place_value(g, k, axis, v, unit, what, line, commit, 0, p);
+}
+
 static int place_offset(const sw_grid *g, const key_def *k, int axis, double *v, sw_unit_kind unit, const char *what,
                         int line, int commit, place_problem *p)
 {
-    char why[512], txt[64];
-    sw_status st = scn_check_coord(k, axis, *v, unit, (int)g->kind, why, sizeof why);
-    if (st != SW_OK) {
-        format_coord(txt, sizeof txt, *v, unit);
-        return place_fail(p, st, line, "%s = %s: %s", what, txt, why);
-    }
-    if (commit && sw_grid_geographic(g))
-        *v = sw_grid_deg(g, *v);
-    return 1;
+    return place_value(g, k, axis, v, unit, what, line, commit, 1, p);
 }
 
 /* Every position of sc: checked against sc->grid's kind (commit 0), or converted (commit 1). */
