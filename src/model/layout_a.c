@@ -73,7 +73,7 @@ static void a_continuity(const sw_view *v, size_t j)
 static void a_continuity_observed(const sw_view *v, size_t j, size_t f, float *buf)
 {
     const sw_cells c = sw_colocated_cells(v, j);
-    sw_continuity_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, sw_colocated_eta_cell, a_centre_cell);
+    sw_colocated_observed_loop(&c, j * v->stride + 1, f * v->stride + 1, f - 1, v->nx, buf, a_centre_cell);
 }
 
 /* Momentum on padded row j, plain and with the terms: the co-located stencil (colocated.h). */

@@ -16,7 +16,8 @@
  * of its maps (the lowest eta_max, the highest eta_min, the lowest speed_max^2, whether a water cell
  * still waits for its arrival). A row update first reduces the new values of each segment (highest
  * and lowest elevation, top squared speed) and touches the segment's maps only when one
- * of them could change; the per-cell rules are the same either way, so the maps are the same bits as
+ * of them could change, and then only that one (behind a crest, where the water falls, eta_min and the
+ * speed, not all five); the per-cell rules are the same either way, so the maps are the same bits as
  * with every cell updated. Attached to the model (sw_tracker_attach) the update runs inside the step,
  * on rows still in cache, and the state is not streamed from memory a second time. Either way it runs
  * with subnormal numbers flushed to zero (fpmode.h), so values below 1.18e-38 enter the maps as 0.
@@ -74,6 +75,8 @@ struct sw_tracker {
     size_t n_seg;         /* segments per row */
     seg_summary *seg;     /* [ny * n_seg] */
     const unsigned char *wet; /* the model's mask [ny * nx] */
+    int all_maps;         /* 1 during the first update (sw_tracker_create): every segment rewrites every map,
+                           * so that each summary holds what its maps say from then on */
     double *out;          /* [5 * ny * nx] the double maps, made by sw_tracker_maps */
 };
 
@@ -201,45 +204,95 @@ sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads
         }
     for (size_t q = 0; q < g->ny * t->n_seg; q++)   /* anything may change: every segment updates */
         t->seg[q] = (seg_summary){.up = -INFINITY, .down = INFINITY, .faster = -1, .waiting = 1};
+    t->all_maps = 1;
     sw_tracker_update(t, m);
+    t->all_maps = 0;
     *out = t;
     return SW_OK;
 }
 
-/* Folds cells [a, b) of row j (centre values e, uu, vv, indexed from the row's start) into the maps,
- * cell by cell, and renews the segment's summary. Returns 1 when a value is NaN or infinite. A state
- * that blows up passes through ever larger values, which make its segments update, so checking here
- * finds it without a test on every cell of every step. */
+/* The maps a segment's update rewrites: those whose trigger a new value passed (seg_summary). */
+enum { MAP_MAX = 1, MAP_MIN = 2, MAP_SPEED = 4, MAP_ARRIVAL = 8, MAP_ALL = 15 };
+
+/* Folds cells [a, b) of row j (centre values e, uu, vv, indexed from the row's start) into the maps
+ * named by `which` (MAP_...), cell by cell, and renews their parts of the segment's summary. A map
+ * whose trigger no value passed cannot change (seg_summary), so it is neither read nor written and its
+ * part of the summary stays as it is: the maps and the summary are those of updating every map. A cell
+ * is written only where its map changes (a masked store: lines with no change stay clean), so a
+ * segment where only the minimum is falling costs one map's traffic, not five. Returns 1 when a value
+ * is NaN or infinite. A state that blows up passes through ever larger values, which make its segments
+ * update, so checking here finds it without a test on every cell of every step. */
 static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float *restrict e,
-                         const float *restrict uu, const float *restrict vv, float now, seg_summary *sum)
+                         const float *restrict uu, const float *restrict vv, float now, unsigned which,
+                         seg_summary *sum)
 {
     const size_t r = j * t->nx;
     const float thr = t->threshold, fl = t->floor;
-    float *restrict mx = t->eta_max + r, *restrict mn = t->eta_min + r;
-    float *restrict arr = t->arrival + r, *restrict tmx = t->eta_max_time + r;
-    float *restrict sp = t->speed2_max + r;
     const unsigned char *restrict wet = t->wet + r;
-    float lo_max = INFINITY, hi_min = -INFINITY, lo_sp = INFINITY;
-    int waiting = 0, bad = 0;
-    SW_OMP(simd reduction(min : lo_max, lo_sp) reduction(max : hi_min) reduction(| : waiting, bad))
-    for (size_t i = a; i < b; i++) {
-        const float ei = fabsf(e[i]) < fl ? 0.0f : e[i];
-        const float s2_raw = uu[i] * uu[i] + vv[i] * vv[i], s2 = s2_raw < SPEED2_FLOOR ? 0.0f : s2_raw;
-        bad |= !(fabsf(ei) <= FLT_MAX) | !(s2_raw <= FLT_MAX);   /* NaN or Inf in the state */
-        int higher = ei > mx[i];
-        mx[i] = higher ? ei : mx[i];
-        tmx[i] = higher ? now : tmx[i];
-        mn[i] = ei < mn[i] ? ei : mn[i];
-        sp[i] = s2 > sp[i] ? s2 : sp[i];
-        arr[i] = (arr[i] != arr[i] && fabsf(ei) >= thr) ? now : arr[i];   /* NaN until first reached */
-        /* water cells only: land reads 0 for ever, and its maps (0) would pin the triggers to the floor */
-        lo_max = wet[i] && mx[i] < lo_max ? mx[i] : lo_max;   /* not fminf: a libm call per cell */
-        hi_min = wet[i] && mn[i] > hi_min ? mn[i] : hi_min;
-        lo_sp = wet[i] && sp[i] < lo_sp ? sp[i] : lo_sp;
-        waiting |= wet[i] && arr[i] != arr[i];
+    int bad = 0;
+    SW_OMP(simd reduction(| : bad))
+    for (size_t i = a; i < b; i++)   /* NaN or Inf in the state (the floor leaves both as they are) */
+        bad |= !(fabsf(e[i]) <= FLT_MAX) | !(uu[i] * uu[i] + vv[i] * vv[i] <= FLT_MAX);
+    /* water cells only in the summaries: land reads 0 for ever, and its maps (0) would pin the triggers
+     * to the floor; the comparisons are not fminf / fmaxf, libm calls per cell */
+    if (which & MAP_MAX) {
+        float *restrict mx = t->eta_max + r, *restrict tmx = t->eta_max_time + r;
+        float lo_max = INFINITY;
+        SW_OMP(simd reduction(min : lo_max))
+        for (size_t i = a; i < b; i++) {
+            const float ei = fabsf(e[i]) < fl ? 0.0f : e[i], old = mx[i];
+            const int higher = ei > old;
+            if (higher) {
+                mx[i] = ei;
+                tmx[i] = now;
+            }
+            const float m = higher ? ei : old;
+            lo_max = wet[i] && m < lo_max ? m : lo_max;
+        }
+        sum->up = trigger(lo_max, fl);
     }
-    *sum = (seg_summary){.up = trigger(lo_max, fl), .down = -trigger(-hi_min, fl),
-                         .faster = trigger(lo_sp, SPEED2_FLOOR), .waiting = waiting};
+    if (which & MAP_MIN) {
+        float *restrict mn = t->eta_min + r;
+        float hi_min = -INFINITY;
+        SW_OMP(simd reduction(max : hi_min))
+        for (size_t i = a; i < b; i++) {
+            const float ei = fabsf(e[i]) < fl ? 0.0f : e[i], old = mn[i];
+            const int lower = ei < old;
+            if (lower)
+                mn[i] = ei;
+            const float m = lower ? ei : old;
+            hi_min = wet[i] && m > hi_min ? m : hi_min;
+        }
+        sum->down = -trigger(-hi_min, fl);
+    }
+    if (which & MAP_SPEED) {
+        float *restrict sp = t->speed2_max + r;
+        float lo_sp = INFINITY;
+        SW_OMP(simd reduction(min : lo_sp))
+        for (size_t i = a; i < b; i++) {
+            const float s2_raw = uu[i] * uu[i] + vv[i] * vv[i], s2 = s2_raw < SPEED2_FLOOR ? 0.0f : s2_raw;
+            const float old = sp[i];
+            const int faster = s2 > old;
+            if (faster)
+                sp[i] = s2;
+            const float m = faster ? s2 : old;
+            lo_sp = wet[i] && m < lo_sp ? m : lo_sp;
+        }
+        sum->faster = trigger(lo_sp, SPEED2_FLOOR);
+    }
+    if (which & MAP_ARRIVAL) {
+        float *restrict arr = t->arrival + r;
+        int waiting = 0;
+        SW_OMP(simd reduction(| : waiting))
+        for (size_t i = a; i < b; i++) {
+            const float ei = fabsf(e[i]) < fl ? 0.0f : e[i], old = arr[i];
+            const int arrives = old != old && fabsf(ei) >= thr;   /* NaN until first reached */
+            if (arrives)
+                arr[i] = now;
+            waiting |= wet[i] && !arrives && old != old;
+        }
+        sum->waiting = waiting;
+    }
     return bad;
 }
 
@@ -277,8 +330,11 @@ static void track_row_in(sw_tracker *t, thread_slot *sl, const sw_model *m, size
         /* A cell's maps change only when its new value passes them, or it arrives; if no raw value
          * passes the segment's triggers, no floored value passes its own cell's maps (seg_summary).
          * |eta| >= thr (> floor) is the same test raw or floored. */
-        if (hi > sum->up || lo < sum->down || top_s2 > sum->faster || (sum->waiting && (hi >= thr || -lo >= thr))) {
-            bad |= update_cells(t, j, a, b, e, uu, vv, now, sum);
+        const unsigned which = t->all_maps ? MAP_ALL
+            : (hi > sum->up ? MAP_MAX : 0u) | (lo < sum->down ? MAP_MIN : 0u) | (top_s2 > sum->faster ? MAP_SPEED : 0u)
+              | (sum->waiting && (hi >= thr || -lo >= thr) ? MAP_ARRIVAL : 0u);
+        if (which) {
+            bad |= update_cells(t, j, a, b, e, uu, vv, now, which, sum);
             updated++;
         }
     }
