@@ -32,6 +32,7 @@ typedef struct {
     sw_precision precision; /* --precision double|single: replaces the scenario's [run] precision */
     int recalibrate;        /* --recalibrate: measure this machine's rate again (check) */
     int resume;             /* --resume: continue from the output folder's checkpoint (run) */
+    struct sw_split *split; /* set by cmd_run under an MPI launcher: this rank of a split run (run/split.h) */
 } cli_args;
 
 /* parse flags: accept --out; accept --threads/--quiet; accept --precision; accept --recalibrate;

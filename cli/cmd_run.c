@@ -11,6 +11,11 @@
 #include "run/run.h"
 #include "run/setup.h"
 #include "studies/sweep.h"
+#include "run/split.h"
+#ifdef SW_HAVE_MPI
+#include "run/split_mpi.h"
+#include "studies/sweep_mpi.h"
+#endif
 
 static const char *const usage_run =
     "Usage: shoreward run SCENARIO [--out DIR] [--threads N] [--precision P] [--quiet] [--json] [--resume]\n"
@@ -81,39 +86,74 @@ static const char *const usage_demo =
     "Example:\n"
     "  shoreward demo /tmp/merrow\n";
 
-/* A run does not spread over MPI ranks: refused (exit 2, from rank 0 only) when a launcher started more
- * than one copy, since every copy would run the whole scenario into the same folder. -1 to go on. */
-static int refuse_mpi_copies(const char *cmd)
+/* One run over the ranks of an MPI job (`mpirun -n N shoreward run`): a build with -DSW_MPI=ON splits the
+ * grid's rows over the ranks (run/split.h); rank 0 prints and writes, the others are silent. A build
+ * without MPI started by a launcher with more than one copy refuses (exit 2, from rank 0 only), since every
+ * copy would run the whole scenario into the same folder. */
+static int run_main(int argc, char **argv, const char *history, sw_split *split);
+
+#ifdef SW_HAVE_MPI
+/* Runs `run_main` as one rank of a split run; returns rank 0's exit status on every rank. */
+static int run_split(int argc, char **argv, const char *history)
 {
+    static sw_sweep_mpi_world w;
+    sw_error err = {0};
     long copies = 0, rank = 0;
     cli_launcher_size(&copies, &rank);
-    if (copies <= 1)
-        return -1;
-    if (rank == 0) {
-        char msg[200];
-        snprintf(msg, sizeof msg, "one run does not spread over MPI ranks; %ld copies would each run the whole "
-                 "scenario (start one process, or use sweep for many runs)", copies);
-        cli_usage_error(cmd, "%s", msg);
+    if (sw_sweep_mpi_init(NULL, NULL, &w, &err) != SW_OK)
+        return rank == 0 ? cli_fail("run", &err) : 1;
+    sw_split split;
+    int code = 1;
+    if (sw_split_mpi_create(&split, &err) != SW_OK)
+        code = cli_fail("run", &err);
+    else {
+        if (w.rank != 0 && (!freopen("/dev/null", "w", stdout) || !freopen("/dev/null", "w", stderr)))
+            clearerr(stderr);   /* silent: what goes wrong is reported by rank 0 */
+        code = run_main(argc, argv, history, &split);
+        sw_split_mpi_free(&split);
     }
-    return 2;
+    return sw_sweep_mpi_finish(&w, code);
 }
+#endif
 
 int cmd_run(int argc, char **argv, const char *history)
 {
+    long copies = 0, rank = 0;
+    cli_launcher_size(&copies, &rank);
+    if (copies > 1) {
+#ifdef SW_HAVE_MPI
+        return run_split(argc, argv, history);
+#else
+        if (rank == 0) {
+            char msg[300];
+            snprintf(msg, sizeof msg, "this shoreward was built without MPI (cmake -DSW_MPI=ON), so one run does not "
+                     "spread over MPI ranks; %ld copies would each run the whole scenario (start one process, or "
+                     "build with MPI)", copies);
+            cli_usage_error("run", "%s", msg);
+        }
+        return 2;
+#endif
+    }
+    return run_main(argc, argv, history, NULL);
+}
+
+static int run_main(int argc, char **argv, const char *history, sw_split *split)
+{
     cli_args a;
-    int code = refuse_mpi_copies("run");
-    if (code >= 0)
-        return code;
-    code = cli_parse("run", usage_run, argc, argv, CLI_OUT | CLI_RUN_OPTS | CLI_PRECISION | CLI_RESUME, &a);
+    int code = cli_parse("run", usage_run, argc, argv, CLI_OUT | CLI_RUN_OPTS | CLI_PRECISION | CLI_RESUME, &a);
     if (code >= 0)
         return code;
     if (!a.scenario)
         return cli_usage_error("run", "%s", "needs a scenario file");
     sw_scenario sc;
     sw_error err = {0};
-    if (sw_scenario_load(a.scenario, &sc, &err) != SW_OK)
+    sw_status rc = sw_scenario_load(a.scenario, &sc, &err);
+    if (split)   /* a rank that cannot read the scenario ends the job */
+        rc = sw_split_agree(split, rc, &err);
+    if (rc != SW_OK)
         return cli_fail("run", &err);
     cli_apply_precision(&a, &sc);
+    a.split = split;
     char out[SW_PATH_MAX];
     if (a.out)
         snprintf(out, sizeof out, "%s", a.out);
@@ -182,9 +222,18 @@ int cmd_check(int argc, char **argv, const char *history)
 int cmd_demo(int argc, char **argv, const char *history)
 {
     cli_args a;
-    int code = refuse_mpi_copies("demo");
-    if (code >= 0)
-        return code;
+    long copies = 0, rank = 0;
+    cli_launcher_size(&copies, &rank);
+    if (copies > 1) {   /* every copy would write the same demo folder */
+        if (rank == 0) {
+            char msg[300];
+            snprintf(msg, sizeof msg, "the demo runs in one process, not %ld: write it with `shoreward demo DIR`, "
+                     "then run it on ranks with `mpirun -n N shoreward run DIR/demo.scn`", copies);
+            cli_usage_error("demo", "%s", msg);
+        }
+        return 2;
+    }
+    int code;
     code = cli_parse("demo", usage_demo, argc, argv, CLI_RUN_OPTS | CLI_PRECISION, &a);
     if (code >= 0)
         return code;

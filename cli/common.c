@@ -6,6 +6,7 @@
 #include <unistd.h>
 
 #include "cli.h"
+#include "run/split.h"
 #include "outputs/ncwrite.h"
 #include "outputs/report.h"
 #include "run/memcheck.h"
@@ -226,17 +227,28 @@ void cli_default_out(const char *scenario, char *out, size_t n)
     snprintf(out, n, "%.*s-out", len, base);
 }
 
+/* A split run's ranks agree on rc (run/split.h: the lowest failing rank's message); rc itself otherwise. */
+static sw_status agreed(const cli_args *a, sw_status rc, sw_error *err)
+{
+    return a->split ? sw_split_agree(a->split, rc, err) : rc;
+}
+
 int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const char *out_dir,
                      const char *history)
 {
     sw_error err = {0};
     sw_setup setup;
-    sw_outdir od;   /* created, write-tested and locked before anything is computed (run/outdir.h) */
-    if (sw_outdir_open(&od, out_dir, history, &err) != SW_OK)
+    sw_outdir od = {.lock_fd = -1};   /* created, write-tested and locked before anything is computed
+                                       * (run/outdir.h) */
+    const int root = !a->split || a->split->rank == 0;   /* a split run: rank 0 owns the folder */
+    if (agreed(a, root ? sw_outdir_open(&od, out_dir, history, &err) : SW_OK, &err) != SW_OK)
         return cli_fail(cmd, &err);
     if (od.note[0])
         fprintf(stderr, "shoreward %s: note: %s\n", cmd, od.note);
-    if (sw_setup_build(sc, &setup, &err) != SW_OK) {
+    const sw_status built = sw_setup_build(sc, &setup, &err);
+    if (agreed(a, built, &err) != SW_OK) {
+        if (built == SW_OK)   /* another rank failed */
+            sw_setup_free(&setup);
         sw_outdir_close(&od);
         return cli_fail(cmd, &err);
     }
@@ -247,8 +259,10 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
     double need = (double)setup.total_bytes > held ? (double)setup.total_bytes - held : 0;
     long cores = sysconf(_SC_NPROCESSORS_ONLN);
     int threads = a->threads > 0 ? a->threads : (cores > 0 ? (int)cores : 1);
-    if (sw_outdir_check_space(out_dir, sw_outdir_output_bytes(sc, &setup), &err) != SW_OK ||
-        sw_memory_check(need, threads, &lim, &err) != SW_OK) {
+    sw_status fits = root ? sw_outdir_check_space(out_dir, sw_outdir_output_bytes(sc, &setup), &err) : SW_OK;
+    if (fits == SW_OK)
+        fits = sw_memory_check(need, threads, &lim, &err);
+    if (agreed(a, fits, &err) != SW_OK) {
         sw_setup_free(&setup);
         sw_outdir_close(&od);
         return cli_fail(cmd, &err);
@@ -263,7 +277,7 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
     cli_catch_signals();
     sw_run_options opt = {
         .out_dir = out_dir, .history = history, .threads = a->threads,
-        .progress = tty ? cli_show_progress : NULL, .stop = &cli_stop, .resume = a->resume,
+        .progress = tty ? cli_show_progress : NULL, .stop = &cli_stop, .resume = a->resume, .split = a->split,
     };
     sw_run_result *res = malloc(sizeof *res);
     if (!res) {

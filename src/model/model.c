@@ -483,6 +483,8 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
     const size_t size = sw_precision_bytes(cfg->precision);
     m->stride = stride_for(g, size);
     m->n_pad = m->stride * (g->ny + 2);
+    m->share_p0 = 1;
+    m->share_p1 = g->ny;
 
     sw_view *v = &m->view;
     *v = (sw_view){.nx = g->nx, .ny = g->ny, .stride = m->stride, .dx_m = g->dx_m, .dy_m = g->dy_m, .g = m->g,
@@ -763,6 +765,63 @@ size_t sw_model_state_parts(sw_model *m, void **ptr, size_t *bytes)
     }
 #undef PART
     return n;
+}
+
+size_t sw_model_halo_rows(const sw_model *m)
+{
+    int reach = 1;
+    for (int s = 0; s < m->plan.n_stages; s++)
+        for (int f = 0; f < SW_N_FIELDS; f++) {
+            const sw_rows r = m->plan.stage[s]->reads[f];
+            if (r.lo <= r.hi)
+                reach = r.hi > reach ? r.hi : -r.lo > reach ? -r.lo : reach;
+        }
+    for (int f = 0; f < SW_N_FIELDS; f++) {
+        const sw_rows r = m->plan.observes[f];
+        if (r.lo <= r.hi)
+            reach = r.hi > reach ? r.hi : -r.lo > reach ? -r.lo : reach;
+    }
+    return (size_t)reach + 1;   /* + 1: a gauge's bilinear centre values reach one row past its own */
+}
+
+sw_status sw_model_set_share(sw_model *m, size_t row0, size_t row1, sw_halo_fn halo, void *ctx, sw_error *err)
+{
+    const size_t ny = m->grid.ny, h = sw_model_halo_rows(m);
+    if (row0 >= row1 || row1 > ny)
+        return sw_fail(err, SW_ERR_USAGE, "model: rows %zu .. %zu are not a share of a grid of %zu rows", row0,
+                       row1, ny);
+    if (row1 - row0 < ny && row1 - row0 < h)
+        return sw_fail(err, SW_ERR_USAGE, "model: a share of %zu rows (of %zu) is too thin: the %s layout's "
+                       "stencils reach %zu rows, so every share needs at least %zu", row1 - row0, ny,
+                       m->layout->name, h, h);
+    m->share_p0 = row0 + 1;
+    m->share_p1 = row1;
+    m->halo = halo;
+    m->halo_ctx = ctx;
+    return SW_OK;
+}
+
+void *sw_model_field_rows(sw_model *m, int k, size_t r, size_t *row_bytes)
+{
+    const size_t size = sw_precision_bytes(m->precision);
+    void *f = k == 0 ? m->view.eta : k == 1 ? m->view.u : m->view.v;
+    *row_bytes = m->stride * size;
+    return (char *)f + r * m->stride * size;
+}
+
+void sw_model_wrap_rows(sw_model *m)
+{
+    if (m->edges[SW_SOUTH] != SW_EDGE_PERIODIC)
+        return;
+    const size_t ny = m->grid.ny;
+    for (int k = 0; k < 3; k++) {
+        size_t rb;
+        char *f = sw_model_field_rows(m, k, 0, &rb);
+        if (m->share_p0 == 1)
+            memcpy(f, f + ny * rb, rb);
+        if (m->share_p1 == ny)
+            memcpy(f + (ny + 1) * rb, f + rb, rb);
+    }
 }
 
 void sw_model_velocity_points(const sw_model *m, size_t i, size_t j, double u_xy[2], double v_xy[2])

@@ -216,6 +216,39 @@ void sw_model_velocity_points(const sw_model *m, size_t i, size_t j, double u_xy
  * sw_model_free. Reads or writes nothing itself. */
 size_t sw_model_state_parts(sw_model *m, void **ptr, size_t *bytes);
 
+/* ---- one run split over processes (run/split.h) ------------------------------------------------------ */
+
+/* Brings into m the halo rows of its share (sw_model_set_share) from the processes that compute them.
+ * Called by one thread of the step, at every point where the step's threads meet. */
+typedef void (*sw_halo_fn)(void *ctx, sw_model *m);
+
+/* Restricts every later step of m to grid rows row0 .. row1 - 1 (0-based; the rows this process
+ * computes), with `halo` called at each meeting point of the step: after the sweep, before each stage
+ * whose waiting rows read another stage's waiting rows, before and after the edge ghosts. At each call,
+ * halo must copy into m the current values of the sw_model_halo_rows(m) rows on each side of the share
+ * (from the processes computing them, into the same padded rows: sw_model_field_rows), then call
+ * sw_model_wrap_rows. The step then computes, observes and sets edge ghosts for the share's rows only;
+ * rows beyond the share and its halo keep stale values. Since the step's values do not depend on who
+ * computes a row, the share's rows are the same bits as those of an unsplit model (stepper.h). halo NULL
+ * and the whole grid: the default, no split. SW_ERR_USAGE when the rows are empty or out of the grid, or
+ * fewer than sw_model_halo_rows(m) (a halo would then reach past the neighbour). Call outside parallel
+ * regions. */
+sw_status sw_model_set_share(sw_model *m, size_t row0, size_t row1, sw_halo_fn halo, void *ctx, sw_error *err);
+
+/* Rows on each side of a share its step reads (the stencils' reach, plus one for the gauges' bilinear
+ * centre values): at least 2. */
+size_t sw_model_halo_rows(const sw_model *m);
+
+/* Padded row r (0 .. ny + 1; grid row r - 1) of state field k (0 eta, 1 u, 2 v): its first byte, and
+ * the bytes of one padded row in *row_bytes. Rows are contiguous: rows r .. r + n - 1 are n * row_bytes
+ * bytes from the returned pointer. */
+void *sw_model_field_rows(sw_model *m, int k, size_t r, size_t *row_bytes);
+
+/* After a halo exchange: where the south and north edges are periodic, copies the end rows of the share
+ * into the halo row beyond the opposite end (row ny into row 0 when the share holds row 1, row 1 into row
+ * ny + 1 when it holds row ny), as the step does within one process. Nothing otherwise. */
+void sw_model_wrap_rows(sw_model *m);
+
 /* Bytes a model of this grid, layout and terms would hold in this precision (for plans), without creating
  * it: the six padded state and depth arrays, the wet mask and edge cells, and with terms the per-row
  * Coriolis parameters, the drag arrays of quadratic friction (2 padded arrays), on transport-weighted

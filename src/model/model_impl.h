@@ -73,6 +73,10 @@ struct sw_model {
     long long steps;     /* steps taken */
     double time;         /* simulated time, s */
 
+    size_t share_p0, share_p1;  /* padded rows this process steps: 1 .. ny unless split (sw_model_set_share) */
+    sw_halo_fn halo;            /* NULL, or the exchange of a split run's halo rows */
+    void *halo_ctx;
+
     sw_row_observer observe;   /* never NULL: a no-op when nothing observes (model.c) */
     void *observe_ctx;
     int observed;              /* 1 when an observer is set */

@@ -133,9 +133,10 @@ static block block_of(const sw_model *m, int t, int nt)
 {
     const sw_step_plan *pl = &m->plan;
     const ptrdiff_t ny = (ptrdiff_t)m->grid.ny;
+    const ptrdiff_t p0 = (ptrdiff_t)m->share_p0, rows = (ptrdiff_t)m->share_p1 - p0 + 1;   /* all rows, unsplit */
     block b = {0};
-    b.j0 = 1 + ny * t / nt;
-    b.j1 = ny * (t + 1) / nt;
+    b.j0 = p0 + rows * t / nt;
+    b.j1 = p0 + rows * (t + 1) / nt - 1;
     /* the block holding row 1 (ny) also holds the south (north) halo rows, unless the edge is periodic;
      * blocks may be empty when there are more threads than rows */
     const int south_domain = b.j0 == 1 && !pl->periodic_y, north_domain = b.j1 == ny && !pl->periodic_y;
@@ -250,7 +251,10 @@ static void observe_rest(const sw_model *m, const block *b)
  * observed next read halo cells. */
 static void ghosts(sw_model *m, int t, int nt)
 {
-    const size_t n = m->n_edge, q0 = n * (size_t)t / (size_t)nt, q1 = n * (size_t)(t + 1) / (size_t)nt;
+    /* a split run's share: the ghosts whose inner cell is in its rows (the list is sorted by that row) */
+    const size_t a = m->share_p0 == 1 ? 0 : m->edge_row[m->share_p0];
+    const size_t z = m->share_p1 == m->grid.ny ? m->n_edge : m->edge_row[m->share_p1 + 1];
+    const size_t n = z - a, q0 = a + n * (size_t)t / (size_t)nt, q1 = a + n * (size_t)(t + 1) / (size_t)nt;
     if (q1 > q0)
         m->kernels->edge_velocities(&m->view, m->edge, q0, q1);
     if (m->plan.periodic_x || m->plan.periodic_y) {
@@ -271,6 +275,18 @@ static void ghosts(sw_model *m, int t, int nt)
             }
         }   /* the end of `single` is a barrier */
     } else if (m->plan.ghosts_before_obs) {
+        SW_OMP(barrier)
+    }
+}
+
+/* A split run's halo exchange (model.h sw_model_set_share), by the master thread (the one that started
+ * the messages' library) once every thread has arrived: the caller has just passed a barrier; the one
+ * after it publishes the halo rows. Nothing when unsplit. */
+static void halo(sw_model *m)
+{
+    if (m->halo) {
+        SW_OMP(master)
+        m->halo(m->halo_ctx, m);
         SW_OMP(barrier)
     }
 }
@@ -312,9 +328,11 @@ void SW_NAME(sw_stepper_step)(sw_model *m)
         }
     }
     SW_OMP(barrier)
+    halo(m);
     for (int st = 1; st < pl->n_stages; st++) {
         if (pl->barrier_before[st]) {
             SW_OMP(barrier)
+            halo(m);
         }
         if (b.j1 < b.j0)
             continue;
@@ -323,8 +341,14 @@ void SW_NAME(sw_stepper_step)(sw_model *m)
                 run_stage(m, st, r);
     }
     SW_OMP(barrier)
-    if (m->kernels->edge_velocities && m->n_edge)
+    halo(m);
+    if (m->kernels->edge_velocities && m->n_edge) {
         ghosts(m, t, nt);
+        if (m->halo) {
+            SW_OMP(barrier)
+            halo(m);
+        }
+    }
     if (observed && b.j1 >= b.j0)
         observe_rest(m, &b);
     SW_OMP(barrier)   /* the step ends when every row has been observed */

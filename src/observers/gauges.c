@@ -119,6 +119,27 @@ size_t sw_gauges_state_parts(sw_gauges *gs, void **ptr, size_t *bytes)
     return n;
 }
 
+size_t sw_gauges_row(const sw_gauges *gs, size_t q) { return gs->st[q].j[0]; }
+
+size_t sw_gauges_station_parts(sw_gauges *gs, size_t q, void **ptr, size_t *bytes)
+{
+    const size_t cap = gs->cap ? gs->cap : 1, series = cap * sizeof(double);
+    size_t n = 0;
+#define PART(p, b) (ptr[n] = (p), bytes[n] = (b), n++)
+    PART(gs->eta + q * cap, series);
+    PART(gs->u + q * cap, series);
+    PART(gs->v + q * cap, series);
+    PART(gs->stats + q, sizeof *gs->stats);
+    PART(gs->prev_eta + q, sizeof *gs->prev_eta);
+    if (gs->air) {
+        const size_t nn = gs->n ? gs->n : 1;
+        for (size_t k = 0; k < 3; k++)
+            PART(gs->air + (k * nn + q) * cap, series);
+    }
+#undef PART
+    return n;
+}
+
 sw_status sw_gauges_create(const sw_model *m, const double *depth_m, const sw_gauge_spec *specs, size_t n,
                            size_t max_samples, sw_gauges **out, sw_error *err)
 {

@@ -83,6 +83,17 @@ double sw_gauges_depth_at(const sw_grid *g, const double *depth_m, double x_m, d
  * made alike (same gauges, capacity, air) restores it. Returns the number of parts. */
 size_t sw_gauges_state_parts(sw_gauges *gs, void **ptr, size_t *bytes);
 
+/* The grid row of gauge q's lower stencil cells: its samples read that row and the next. */
+size_t sw_gauges_row(const sw_gauges *gs, size_t q);
+
+#define SW_GAUGES_STATION_PARTS 8   /* most parts sw_gauges_station_parts gives */
+
+/* The memory holding what gauge q alone has recorded (the rest of sw_gauges_state_parts is the same for
+ * every gauge): its eta, u, v series (the whole capacity), its stats and previous elevation, and with
+ * sw_gauges_enable_air its pressure and wind series. Fills ptr[k], bytes[k]; returns the number of parts.
+ * For a split run (run/split.h), whose gauges are sampled on different ranks. */
+size_t sw_gauges_station_parts(sw_gauges *gs, size_t q, void **ptr, size_t *bytes);
+
 void sw_gauges_free(sw_gauges *gs);
 
 #endif

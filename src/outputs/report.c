@@ -723,6 +723,10 @@ void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_r
     fprintf(f, "\n%s: layout %s in %s precision, %lld steps of %.4g s, %s wall time with %d thread%s "
             "(%.3g cell-updates/s)\n", sc->title, s->layout->name, sw_precision_name(sc->precision), r->steps, s->dt_s, wall, r->threads, r->threads == 1 ? "" : "s",
             r->cell_updates_per_s);
+    if (r->ranks > 1)
+        fprintf(f, "Ranks: %d (MPI), bands of about %zu rows with %zu halo rows on each side; %.3g s of the time "
+                "loop in halo exchanges and %.3g kB sent per step (the most of any rank)\n", r->ranks,
+                s->grid.ny / (size_t)r->ranks, r->halo_rows, r->exchange_s, r->halo_bytes_per_step / 1e3);
     if (strcmp(terms, "none"))
         fprintf(f, "Terms: %s\n", terms);
     if (r->forcing[0])
@@ -771,6 +775,13 @@ char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_
     cJSON_AddNumberToObject(run, "wall_s", r->wall_s);
     cJSON_AddNumberToObject(run, "threads", r->threads);
     cJSON_AddNumberToObject(run, "cell_updates_per_s", r->cell_updates_per_s);
+    cJSON_AddNumberToObject(run, "ranks", r->ranks);
+    if (r->ranks > 1) {
+        cJSON_AddNumberToObject(run, "halo_rows", (double)r->halo_rows);
+        cJSON_AddNumberToObject(run, "exchange_s", r->exchange_s);
+        cJSON_AddNumberToObject(run, "halo_bytes_per_step", r->halo_bytes_per_step);
+        cJSON_AddNumberToObject(run, "exchanges_per_step", r->exchanges_per_step);
+    }
     cJSON_AddNumberToObject(run, "volume_start_m3", r->volume_start_m3);
     cJSON_AddNumberToObject(run, "volume_end_m3", r->volume_end_m3);
     cJSON_AddNumberToObject(run, "arrival_threshold_m", sc->arrival_threshold_m);

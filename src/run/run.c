@@ -28,6 +28,7 @@
 #include "forcing/forcing.h"
 #include "run/checkpoint.h"
 #include "run/outdir.h"
+#include "run/split.h"
 
 /* The one definition of the caution texts (run.h). The full forms are built from the same sentences,
  * so that the short form, the surge form and the sweep form can never drift apart. */
@@ -136,6 +137,7 @@ typedef struct {
     sw_ckpt_frames *frames;   /* the snapshots beside the checkpoint, or NULL */
     sw_ckpt_fingerprint fp;
     char ckpt_path[SW_PATH_MAX];
+    sw_split *split;          /* a run split over processes (split.h), or NULL */
 } run_ctx;
 
 static void snapshot_frame(run_ctx *c)
@@ -146,9 +148,13 @@ static void snapshot_frame(run_ctx *c)
     if (!tmp_u) {
         sw_fail(&c->loop_err, SW_ERR_NOMEM, "out of memory writing a snapshot");
         c->stop = 2;
-        return;
+        if (!c->split)
+            return;
     }
-    for (size_t j = 0; j < g->ny; j++) {
+    size_t j0 = 0, j1 = g->ny;   /* a split run: this rank's band, then the bands gathered on rank 0 */
+    if (c->split)
+        sw_split_rows(g->ny, c->split->size, c->split->rank, &j0, &j1);
+    for (size_t j = j0; tmp_u && j < j1; j++) {
         double *row = c->frame + j * g->nx;
         sw_model_centre_row(c->model, j, row, tmp_u, tmp_u + g->nx);
         for (size_t i = 0; i < g->nx; i++)
@@ -156,6 +162,10 @@ static void snapshot_frame(run_ctx *c)
                 row[i] = NAN;
     }
     free(tmp_u);
+    if (c->split)   /* every rank gathers, even one that failed (split.h: collectives are never skipped) */
+        c->split->ops->gather_rows(c->split, c->frame, g->nx * sizeof *c->frame);
+    if (!c->snaps || c->stop)   /* a rank other than 0 of a split run, or a failure */
+        return;
     if (sw_ncw_snapshots_append(c->snaps, sw_model_time(c->model), c->frame, &c->loop_err) != SW_OK ||
         (c->frames && sw_ckpt_frames_add(c->frames, sw_model_time(c->model), c->frame, &c->loop_err) != SW_OK))
         c->stop = 2;
@@ -174,6 +184,11 @@ static sw_ckpt_run ckpt_state(run_ctx *c)
 /* Writes the checkpoint at the present step, by one thread between steps; a failure stops the run. */
 static void write_checkpoint(run_ctx *c)
 {
+    if (c->split) {   /* rank 0 saves the whole run: every band's state, maps and gauges first */
+        sw_split_gather(c->split, c->model, c->tracker, c->gauges, c->sc->n_gauges);
+        if (c->split->rank != 0)
+            return;
+    }
     const sw_ckpt_run st = ckpt_state(c);
     const long long step = (long long)llround(sw_model_time(c->model) / sw_model_dt(c->model));
     if ((c->frames && sw_ckpt_frames_sync(c->frames, &c->loop_err) != SW_OK) ||
@@ -193,7 +208,8 @@ static void observe(run_ctx *c, int last)
     if (now >= c->next_sample - 1e-9 * c->sc->gauge_interval_s || last) {
         if (sw_gauges_sample(c->gauges, m, &c->loop_err) != SW_OK) {
             c->stop = 2;
-            return;
+            if (!c->split)   /* a split run still takes its part in the snapshot's gather */
+                return;
         }
         if (c->air) {
             const size_t n = c->sc->n_gauges;
@@ -202,22 +218,38 @@ static void observe(run_ctx *c, int last)
         }
         c->next_sample = sw_gauges_next_time(c->next_sample, now, c->sc->gauge_interval_s);
     }
-    if (c->snaps && now >= c->next_snapshot - 1e-9 * c->sc->snapshot_interval_s) {
+    if (c->frame && now >= c->next_snapshot - 1e-9 * c->sc->snapshot_interval_s) {
         snapshot_frame(c);
         c->next_snapshot = sw_gauges_next_time(c->next_snapshot, now, c->sc->snapshot_interval_s);
     }
 }
 
-/* Work between steps, by one thread: the observers, then interruption and progress. */
+/* A split run: c->stop (and *flag when not NULL) become the largest over the ranks, so that every rank
+ * takes the same decisions from here. Nothing for one process. */
+static void agree(run_ctx *c, int *flag)
+{
+    if (!c->split)
+        return;
+    long long v[2] = {c->stop, flag ? *flag : 0};
+    c->split->ops->max_ll(c->split, v, 2);
+    c->stop = (int)v[0];
+    if (flag)
+        *flag = (int)v[1];
+}
+
+/* Work between steps, by one thread: the observers, then interruption and progress. In a split run every
+ * rank makes the same collective calls in the same order whatever happened to it alone: decisions to skip
+ * one are taken on agreed values only (agree). */
 static void between_steps(run_ctx *c, int last)
 {
-    observe(c, last);
+    agree(c, NULL);   /* a failure of the forcing on one rank */
     if (c->stop)
         return;
+    observe(c, last);
     sw_model *m = c->model;
     double now = sw_model_time(m);
     size_t bad_row;
-    if (c->tracker && sw_tracker_nonfinite_row(c->tracker, &bad_row)) {   /* a blow-up stops the run at once */
+    if (!c->stop && c->tracker && sw_tracker_nonfinite_row(c->tracker, &bad_row)) {   /* a blow-up stops the run */
         const sw_grid *g = &c->setup->grid;
         sw_fail(&c->loop_err, SW_ERR_UNSTABLE, "the run blew up at t = %.6g s (step %lld of %lld): the elevation "
                 "became infinite or NaN on grid row %zu (y = %.6g %s); reduce [run] courant_fraction or dt", now,
@@ -226,19 +258,25 @@ static void between_steps(run_ctx *c, int last)
                                       : (g->y0_m + ((double)bad_row + 0.5) * g->dy_m) / 1000,
                 sw_grid_geographic(g) ? "deg" : "km");
         c->stop = 2;
-        return;
     }
+    /* a stop asked for (Ctrl-C reaches the ranks of a job at different moments) */
+    int asked = (c->opt->stop && *c->opt->stop) ||
+                (c->opt->stop_after_steps > 0 && llround(now / sw_model_dt(m)) >= c->opt->stop_after_steps);
+    agree(c, &asked);
+    if (c->stop)
+        return;
     const double every = c->sc->checkpoint_interval_s;
     if (c->checkpointing && !last && now >= c->next_checkpoint - 1e-9 * every) {
         c->next_checkpoint = sw_gauges_next_time(c->next_checkpoint, now, every);
         write_checkpoint(c);
+        agree(c, NULL);
         if (c->stop)
             return;
     }
-    if ((c->opt->stop && *c->opt->stop) ||
-        (c->opt->stop_after_steps > 0 && llround(now / sw_model_dt(m)) >= c->opt->stop_after_steps)) {
+    if (asked) {
         if (c->checkpointing) {
             write_checkpoint(c);
+            agree(c, NULL);
             if (c->stop)
                 return;
             c->checkpointed = 1;
@@ -268,18 +306,26 @@ static void between_steps(run_ctx *c, int last)
  * at the time the step ends (forcing.h), the step (which also updates the tracker attached in sw_run),
  * then by one thread the clock and the work between steps. The barrier at the end of `single` publishes
  * c->stop to every thread. */
+static void after_step(run_ctx *c, long long n, long long n_steps)
+{
+    sw_model_tick(c->model);
+    if (sw_forcing_failed(c->forcing, &c->loop_err))
+        c->stop = 2;
+    between_steps(c, n + 1 == n_steps);   /* returns at once on a failure, all ranks alike (agree) */
+}
+
 static void step_in_region(run_ctx *c, long long n, long long n_steps)
 {
     if (c->forcing)
         sw_forcing_advance(c->forcing, c->model, (double)(n + 1) * sw_model_dt(c->model));
     sw_model_step(c->model);
-    SW_OMP(single)
-    {
-        sw_model_tick(c->model);
-        if (sw_forcing_failed(c->forcing, &c->loop_err))
-            c->stop = 2;
-        else
-            between_steps(c, n + 1 == n_steps);
+    if (c->split) {   /* its messages from the thread that started MPI (split.h) */
+        SW_OMP(master)
+        after_step(c, n, n_steps);
+        SW_OMP(barrier)
+    } else {
+        SW_OMP(single)
+        after_step(c, n, n_steps);
     }
 }
 
@@ -383,7 +429,7 @@ static sw_status start_checkpoints(run_ctx *c, int *resumed, sw_error *err)
     sw_status rc = sw_ckpt_load(c->ckpt_path, &c->fp, &st, &c->first_step, err);
     if (rc == SW_OK && c->snaps)
         rc = sw_ckpt_frames_open(frames_path, cells, c->n_frames, &c->frames, err);
-    for (long long k = 0; rc == SW_OK && k < c->n_frames; k++) {
+    for (long long k = 0; rc == SW_OK && c->frames && k < c->n_frames; k++) {   /* rank 0 of a split run */
         double t;
         rc = sw_ckpt_frames_get(c->frames, k, &t, c->frame, err);
         if (rc == SW_OK)
@@ -418,7 +464,15 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
 {
     memset(res, 0, sizeof *res);
     run_ctx c = {.sc = sc, .setup = setup, .opt = opt};
-    sw_status rc = opt->sink ? SW_OK : sw_make_dirs(opt->out_dir, err);
+    sw_split *split = opt->split && opt->split->size > 1 ? opt->split : NULL;
+    const int root = !split || split->rank == 0;   /* writes the files */
+    c.split = split;
+    if (split && opt->sink)
+        return sw_fail(err, SW_ERR_USAGE, "a run split over %d MPI ranks cannot hand its results to a sweep",
+                       split->size);
+    sw_status rc = opt->sink || !root ? SW_OK : sw_make_dirs(opt->out_dir, err);
+    if (split)
+        rc = sw_split_agree(split, rc, err);
     if (rc != SW_OK)
         return rc;
     if (opt->threads > 0)
@@ -478,6 +532,8 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
                 rc = err->code;
         }
     }
+    if (rc == SW_OK && split)
+        rc = sw_split_attach(split, c.model, sc->edges[SW_SOUTH] == SW_EDGE_PERIODIC, err);
     if (rc == SW_OK && (c.fault_end_s = sw_faults_end(&setup->faults)) > 0) {   /* a rupture in time */
         c.faults = &setup->faults;
         c.fault_inc = malloc(sw_grid_cells(&setup->grid) * sizeof(double));
@@ -487,15 +543,17 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
     /* the files are written in a staging folder and moved into place together once all are complete */
     char stage[SW_PATH_MAX + 32] = "", staged[3][SW_PATH_MAX + 64], names[3][256];
     size_t n_staged = 0;
-    if (rc == SW_OK && !opt->sink)
+    if (rc == SW_OK && !opt->sink && root)
         rc = sw_outdir_stage(opt->out_dir, stage, sizeof stage, err);
     if (rc == SW_OK && sc->snapshot_interval_s > 0 && !opt->sink) {
         file_path(res->snapshots_path, opt, "snapshots.nc");
         staged_path(staged[2], names[2], stage, opt, "snapshots.nc");
         c.frame = malloc(sw_grid_cells(&setup->grid) * sizeof(double));
-        rc = c.frame ? sw_ncw_snapshots_open(staged[2], &meta, &setup->grid, setup->depth_m,
-                                             sw_model_wet(c.model), &c.snaps, err)
-                     : sw_fail(err, SW_ERR_NOMEM, "out of memory for the snapshot buffer");
+        if (!c.frame)
+            rc = sw_fail(err, SW_ERR_NOMEM, "out of memory for the snapshot buffer");
+        else if (root)
+            rc = sw_ncw_snapshots_open(staged[2], &meta, &setup->grid, setup->depth_m, sw_model_wet(c.model),
+                                       &c.snaps, err);
     }
     int resumed = 0;
     if (rc == SW_OK) {
@@ -506,6 +564,8 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         rc = start_checkpoints(&c, &resumed, err);   /* resumed: the state of a checkpoint instead */
         res->volume_start_m3 = c.volume_start;
     }
+    if (split)   /* no rank steps unless every rank is ready */
+        rc = sw_split_agree(split, rc, err);
     if (rc == SW_OK) {
         c.t_start = omp_get_wtime();
         c.next_progress = 0.5;
@@ -514,6 +574,17 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         if (!c.stop)
             time_loop(&c);
         res->wall_s = omp_get_wtime() - c.t_start;
+        res->ranks = split ? split->size : 1;
+        if (split && !c.stop) {   /* rank 0 then holds what one process would */
+            sw_split_gather(split, c.model, c.tracker, c.gauges, sc->n_gauges);
+            long long most[2] = {llround(split->exchange_s * 1e6), llround(split->halo_bytes)};
+            split->ops->max_ll(split, most, 2);
+            const long long steps = (long long)llround(sw_model_time(c.model) / sw_model_dt(c.model)) - c.first_step;
+            res->halo_rows = split->halo;
+            res->exchange_s = (double)most[0] * 1e-6;
+            res->halo_bytes_per_step = steps > 0 ? (double)most[1] / (double)steps : 0;
+            res->exchanges_per_step = steps > 0 ? (double)split->exchanges / (double)steps : 0;
+        }
         res->steps = (long long)llround(sw_model_time(c.model) / sw_model_dt(c.model));
         res->end_time_s = sw_model_time(c.model);
         res->cell_updates_per_s = res->wall_s > 0
@@ -532,13 +603,15 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         } else if (sw_tracker_nonfinite(c.tracker))
             rc = sw_fail(err, SW_ERR_UNSTABLE, "the run blew up (non-finite elevation); reduce [run] courant_fraction "
                          "or dt");
+        if (split)   /* a failure seen by one rank is the job's */
+            rc = sw_split_agree(split, rc, err);
     }
     sw_map_set maps = {0};
     double *air_maps = NULL;   /* [2 cells]: highest wind, lowest pressure */
     res->wind_max_ms = res->air_pressure_min_pa = NAN;
-    if (rc == SW_OK)
+    if (rc == SW_OK && root)
         rc = sw_tracker_maps(c.tracker, c.model, setup->depth_m, &maps, err);
-    if (rc == SW_OK && sw_forcing_has_air(c.forcing)) {
+    if (rc == SW_OK && root && sw_forcing_has_air(c.forcing)) {
         const size_t n = sw_grid_cells(&setup->grid);
         air_maps = malloc(2 * n * sizeof *air_maps);
         if (!air_maps)
@@ -557,7 +630,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
             }
         }
     }
-    if (rc == SW_OK) {
+    if (rc == SW_OK && root) {
         sw_gauge_table table;
         res->max_abs_eta_m = sw_tracker_max_abs(c.tracker);
         res->noise_index = sw_tracker_noise(c.tracker, maps.wet);
@@ -587,6 +660,8 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         if (rc == SW_OK && !opt->sink)   /* all complete: the set replaces the previous one (outdir.h) */
             rc = sw_outdir_commit(opt->out_dir, stage, opt->file_prefix, set, n_staged, meta.caution, err);
     }
+    if (split)   /* rank 0's writing: the job's outcome (every rank comes here) */
+        rc = sw_split_agree(split, rc, err);
     sw_ncw_snapshots_abort(c.snaps);
     if (rc != SW_OK && stage[0]) {   /* the previous set stays as it was; the message names the final paths */
         sw_outdir_rename_msg(err, stage, opt->out_dir);

@@ -50,6 +50,10 @@ typedef struct {
                                    * t = 0 (`shoreward run --resume`) */
     int allow_unstable;           /* 1: accept a time step beyond the layout's limit (sw_model_config); for
                                    * tests of what a run does when it blows up */
+    struct sw_split *split;       /* NULL: one process; else this rank of a run split over the processes of
+                                   * a job (run/split.h): every rank calls sw_run with the same scenario and
+                                   * options but the progress callback; rank 0 writes the files. No sink,
+                                   * resume or checkpoints then (SW_ERR_USAGE) */
 } sw_run_options;
 
 /* What a gauge saw (times in s since the origin; NaN when never reached or the gauge is dry). */
@@ -80,6 +84,11 @@ typedef struct {
     char forcing[3 * SW_PATH_MAX];    /* the forcing in force (sw_forcing_describe), "" when none */
     double wind_max_ms;               /* highest 10 m wind over the water, m/s; NaN without an atmosphere */
     double air_pressure_min_pa;       /* lowest air pressure over the water, Pa; NaN likewise */
+    int ranks;                        /* processes the run was split over (1: not split) */
+    size_t halo_rows;                 /* rows of each band's halo on each side (split runs), else 0 */
+    double exchange_s;                /* split runs: wall-clock time in halo exchanges, the most of any rank, s */
+    double halo_bytes_per_step;       /* split runs: bytes a rank sends per step, the most of any rank */
+    double exchanges_per_step;        /* split runs: halo exchanges per step (each with both neighbours) */
 } sw_run_result;
 
 /* The caution texts are defined once, in run.c; every command's output, help text and output file takes

@@ -15,54 +15,13 @@ The scenarios are a small fictional coast (the one of tests/py/test_sweep.py); t
 (--oversubscribe) so that the checks run on a two-core machine.
 """
 import os
-import shutil
 import signal
 import subprocess
 import sys
 import time
 
-import numpy as np
-from netCDF4 import Dataset
-
-BIN = os.path.abspath(sys.argv[1])
-WORK = os.path.abspath(sys.argv[2])
-MPIRUN = sys.argv[3] if len(sys.argv) > 3 else "mpirun"
-TIMEOUT_S = 600
-FAILURES = []
-shutil.rmtree(WORK, ignore_errors=True)   # a sweep resumes from what it finds: start from nothing
-os.makedirs(WORK)
-
-
-def check(cond, what):
-    print(("ok   " if cond else "FAIL ") + what, flush=True)
-    if not cond:
-        FAILURES.append(what)
-
-
-def write(name, text):
-    path = os.path.join(WORK, name)
-    with open(path, "w") as f:
-        f.write(text)
-    return path
-
-
-def mpi(n, *args):
-    """The command line of `shoreward ARGS` on n ranks (root allowed: CI runs as root)."""
-    return [MPIRUN, "--oversubscribe", "--allow-run-as-root", "-n", str(n), BIN, *args]
-
-
-def run(cmd):
-    return subprocess.run(cmd, capture_output=True, text=True, timeout=TIMEOUT_S, cwd=WORK)
-
-
-def data_vars(path):
-    """Every variable's raw bytes (fill values as stored), for bitwise comparison."""
-    out = {}
-    with Dataset(path) as d:
-        d.set_auto_mask(False)
-        for k, v in d.variables.items():
-            out[k] = np.array(v[:]).tobytes()
-    return out
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from mpitest import BIN, MPIRUN, TIMEOUT_S, WORK, check, data_vars, finish, mpi, run, write  # noqa: E402
 
 
 def same_data(a_dir, b_dir):
@@ -231,5 +190,4 @@ ref = test_ranks_identical()
 test_rank_failure()
 test_fewer_members()
 test_interrupted_resume(ref)
-print("%d failure(s)" % len(FAILURES))
-sys.exit(1 if FAILURES else 0)
+finish()

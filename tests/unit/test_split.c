@@ -1,0 +1,379 @@
+/* test_split.c - one run split over ranks (run/split.h) gives the files of the unsplit run bit for bit,
+ * without MPI: the ranks are threads of this process and the split's operations (sw_split_ops) copy
+ * between their models through shared memory, meeting at a barrier, as MPI messages would deliver.
+ *
+ * This is the claim of split.h and of the stepper's process halos (DEVELOPERS.md): every value is computed
+ * from the same inputs whichever rank computes it. Checked on every layout with two sets of edges (wall,
+ * open and level; periodic south-north with open and level west-east), rotation and quadratic friction
+ * on, 2 and 3 ranks, and 2 ranks of 2 threads; gauges sit across the bands' boundaries (rows 19/20 and
+ * 12/13 of 40) and the land along the south edge fills the first band's rows with 3 ranks. The bands,
+ * the halo's size and the refusal of too many ranks are checked too. The tests/mpi tests check the same
+ * over MPI itself; this one also runs in every build and under the sanitizers. The basin is fictional.
+ */
+#define _POSIX_C_SOURCE 200809L
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <cmocka.h>
+
+#include <netcdf.h>
+#include <pthread.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+
+#include "model/model.h"
+#include "run/run.h"
+#include "run/setup.h"
+#include "run/split.h"
+#include "testutil.h"
+
+#define MAX_RANKS 4
+
+static const char *const BASIN =
+    "[run]\n"
+    "title = Tiravesk basin (fictional) - split test\n"
+    "duration = 5 min\nlayout = %s\ncourant_fraction = 0.9\ngauge_interval = 20 s\n"
+    "snapshot_interval = 1 min\narrival_threshold = 0.01 m\n"
+    "rotation = f-plane\ncoriolis = 1e-4 /s\nfriction = quadratic\ndrag = 0.0025\n"
+    "[grid]\nnx = 36\nny = 40\ndx = 1 km\n"
+    "[edges]\n%s\n"
+    "[seabed]\ndeep = 800 m\ncoast = south\nshoreline = 14 km\nshelf_depth = 40 m\nshelf_width = 4 km\n"
+    "slope_width = 4 km\nmin_depth = 2 m\n"
+    "[source Tiravesk rise]\nshape = hump\nx = 18 km\ny = 20 km\namplitude = 1 m\nradius = 4 km\n"
+    "[gauges]\nacross 19-20 = 12 km, 20 km\nacross 12-13 = 26 km, 13 km\nacross 26-27 = 20 km, 27 km\n";
+
+/* ---- ranks as threads -------------------------------------------------------------------------- */
+
+typedef struct {
+    int n;
+    pthread_barrier_t bar;
+    sw_model *model[MAX_RANKS];
+    long long slot[MAX_RANKS][4];
+    void *ptr[MAX_RANKS];
+} fake_job;
+
+typedef struct {
+    sw_split sp;
+    fake_job *job;
+    const char *text, *out;
+    int threads;
+    long long stop_after;   /* sw_run_options.stop_after_steps */
+    int resume;             /* sw_run_options.resume */
+    sw_status rc;
+    sw_error err;
+} fake_rank;
+
+static void meet(fake_job *j) { pthread_barrier_wait(&j->bar); }
+
+/* The rows of rank nb's band nearest to this rank's, copied into the same rows of m. */
+static void copy_rows(sw_split *sp, sw_model *m, int nb, int from_top)
+{
+    fake_job *j = ((fake_rank *)sp->job)->job;
+    size_t a, b;
+    sw_split_rows(sp->ny, sp->size, nb, &a, &b);
+    const size_t first = from_top ? b - sp->halo + 1 : a + 1;   /* padded rows */
+    for (int k = 0; k < 3; k++) {
+        size_t rb;
+        char *dst = sw_model_field_rows(m, k, first, &rb);
+        const char *src = sw_model_field_rows(j->model[nb], k, first, &rb);
+        memcpy(dst, src, sp->halo * rb);
+    }
+}
+
+static void fake_halo(void *ctx, sw_model *m)
+{
+    sw_split *sp = ctx;
+    fake_job *j = ((fake_rank *)sp->job)->job;
+    const int r = sp->rank, n = sp->size;
+    j->model[r] = m;
+    meet(j);   /* every band is as the step left it */
+    const int south = r > 0 ? r - 1 : sp->ring ? n - 1 : -1, north = r < n - 1 ? r + 1 : sp->ring ? 0 : -1;
+    if (south >= 0)
+        copy_rows(sp, m, south, 1);
+    if (north >= 0)
+        copy_rows(sp, m, north, 0);
+    meet(j);   /* nobody changes a band while another still copies from it */
+    sw_model_wrap_rows(m);
+    sp->exchanges++;
+}
+
+static void reduce(sw_split *sp, long long *v, int n, int sum)
+{
+    fake_job *j = ((fake_rank *)sp->job)->job;
+    memcpy(j->slot[sp->rank], v, (size_t)n * sizeof *v);
+    meet(j);
+    for (int q = 0; q < n; q++) {
+        long long x = j->slot[0][q];
+        for (int r = 1; r < sp->size; r++)
+            x = sum ? x + j->slot[r][q] : (j->slot[r][q] > x ? j->slot[r][q] : x);
+        v[q] = x;
+    }
+    meet(j);
+}
+
+static void fake_max(sw_split *sp, long long *v, int n) { reduce(sp, v, n, 0); }
+static void fake_sum(sw_split *sp, long long *v, int n) { reduce(sp, v, n, 1); }
+
+static void fake_bcast(sw_split *sp, int from, void *p, size_t bytes)
+{
+    fake_job *j = ((fake_rank *)sp->job)->job;
+    j->ptr[sp->rank] = p;
+    meet(j);
+    if (sp->rank != from)
+        memcpy(p, j->ptr[from], bytes);
+    meet(j);
+}
+
+static void fake_to_root(sw_split *sp, int from, void *p, size_t bytes)
+{
+    fake_job *j = ((fake_rank *)sp->job)->job;
+    j->ptr[sp->rank] = p;
+    meet(j);
+    if (sp->rank == 0 && from != 0)
+        memcpy(p, j->ptr[from], bytes);
+    meet(j);
+}
+
+static void fake_gather_rows(sw_split *sp, void *base, size_t row_bytes)
+{
+    fake_job *j = ((fake_rank *)sp->job)->job;
+    j->ptr[sp->rank] = base;
+    meet(j);
+    for (int r = 1; sp->rank == 0 && r < sp->size; r++) {
+        size_t a, b;
+        sw_split_rows(sp->ny, sp->size, r, &a, &b);
+        memcpy((char *)base + a * row_bytes, (char *)j->ptr[r] + a * row_bytes, (b - a) * row_bytes);
+    }
+    meet(j);
+}
+
+static const sw_split_ops fake_ops = {
+    .halo = fake_halo, .max_ll = fake_max, .sum_ll = fake_sum, .bcast = fake_bcast, .to_root = fake_to_root,
+    .gather_rows = fake_gather_rows,
+};
+
+/* ---- runs ---------------------------------------------------------------------------------------- */
+
+/* Runs the scenario text into folder out as one rank (split NULL: unsplit), stopped after stop_after steps
+ * when > 0, or resumed from the folder's checkpoint. */
+static sw_status run_text(const char *text, const char *out, int threads, long long stop_after, int resume,
+                          sw_split *split, sw_error *err)
+{
+    char dir[1024];
+    tu_tmp_path(dir, sizeof dir, "");
+    sw_scenario sc;
+    sw_status rc = sw_scenario_parse(text, "split.scn", dir, &sc, err);
+    if (rc != SW_OK)
+        return rc;
+    sw_setup setup;
+    rc = sw_setup_build(&sc, &setup, err);
+    if (rc == SW_OK) {
+        sw_run_options opt = {.out_dir = out, .threads = threads, .split = split, .stop_after_steps = stop_after,
+                              .resume = resume};
+        sw_run_result *res = calloc(1, sizeof *res);
+        rc = res ? sw_run(&sc, &setup, &opt, res, err) : SW_ERR_NOMEM;
+        free(res);
+        sw_setup_free(&setup);
+    }
+    sw_scenario_free(&sc);
+    return rc;
+}
+
+static void *rank_main(void *arg)
+{
+    fake_rank *fr = arg;
+    fr->rc = run_text(fr->text, fr->out, fr->threads, fr->stop_after, fr->resume, &fr->sp, &fr->err);
+    return NULL;
+}
+
+/* Runs text on n ranks (threads of this process) into out, as run_text; returns rank 0's status. */
+static sw_status run_split(const char *text, const char *out, int n, int threads, long long stop_after, int resume,
+                           sw_error *err)
+{
+    fake_job job = {.n = n};
+    pthread_barrier_init(&job.bar, NULL, (unsigned)n);
+    fake_rank fr[MAX_RANKS];
+    pthread_t th[MAX_RANKS];
+    for (int r = 0; r < n; r++) {
+        fr[r] = (fake_rank){.job = &job, .text = text, .out = out, .threads = threads, .stop_after = stop_after,
+                            .resume = resume};
+        fr[r].sp = (sw_split){.rank = r, .size = n, .ops = &fake_ops, .job = &fr[r]};
+        assert_int_equal(pthread_create(&th[r], NULL, rank_main, &fr[r]), 0);
+    }
+    for (int r = 0; r < n; r++)
+        pthread_join(th[r], NULL);
+    pthread_barrier_destroy(&job.bar);
+    for (int r = 1; r < n; r++)   /* every rank ends with the job's outcome */
+        assert_int_equal(fr[r].rc, fr[0].rc);
+    *err = fr[0].err;
+    return fr[0].rc;
+}
+
+/* Every value of variable `var` of file `name` in both folders, as bytes; 1 when the same. */
+static int same_var(const char *a, const char *b, const char *name, const char *var)
+{
+    char pa[1300], pb[1300];
+    snprintf(pa, sizeof pa, "%s/%s", a, name);
+    snprintf(pb, sizeof pb, "%s/%s", b, name);
+    int fa, fb, va, vb, same = 0;
+    if (nc_open(pa, NC_NOWRITE, &fa) != NC_NOERR)
+        return 0;
+    if (nc_open(pb, NC_NOWRITE, &fb) != NC_NOERR) {
+        nc_close(fa);
+        return 0;
+    }
+    if (nc_inq_varid(fa, var, &va) == NC_NOERR && nc_inq_varid(fb, var, &vb) == NC_NOERR) {
+        int nd, dims[NC_MAX_VAR_DIMS];
+        size_t n = 1;
+        nc_inq_varndims(fa, va, &nd);
+        nc_inq_vardimid(fa, va, dims);
+        for (int d = 0; d < nd; d++) {
+            size_t len;
+            nc_inq_dimlen(fa, dims[d], &len);
+            n *= len;
+        }
+        double *x = malloc(n * sizeof *x), *y = malloc(n * sizeof *y);
+        if (x && y && nc_get_var_double(fa, va, x) == NC_NOERR && nc_get_var_double(fb, vb, y) == NC_NOERR)
+            same = memcmp(x, y, n * sizeof *x) == 0;
+        free(x);
+        free(y);
+    }
+    nc_close(fa);
+    nc_close(fb);
+    return same;
+}
+
+static void check_same(const char *ref, const char *out, const char *what)
+{
+    static const char *const vars[][2] = {
+        {"gauges.nc", "eta"}, {"gauges.nc", "u"}, {"gauges.nc", "v"}, {"maps.nc", "eta_max"},
+        {"maps.nc", "eta_min"}, {"maps.nc", "arrival_time"}, {"maps.nc", "eta_max_time"},
+        {"maps.nc", "speed_max"}, {"snapshots.nc", "eta"},
+    };
+    for (size_t q = 0; q < sizeof vars / sizeof vars[0]; q++)
+        if (!same_var(ref, out, vars[q][0], vars[q][1]))
+            fail_msg("%s: %s %s differs from the unsplit run", what, vars[q][0], vars[q][1]);
+}
+
+static void test_split_equals_unsplit(void **state)
+{
+    (void)state;
+    static const char *const edges[][2] = {
+        {"wall-open-level", "west = wall\neast = open\nsouth = level\nnorth = open"},
+        {"periodic-ns", "south = periodic\nnorth = periodic\nwest = open\neast = level"},
+    };
+    char dir[1024];
+    tu_tmp_path(dir, sizeof dir, "");
+    for (const char *layout = "ABCDE"; *layout; layout++)
+        for (size_t e = 0; e < 2; e++) {
+            char text[4096], name[8] = {*layout, 0}, ref[1200], out[1200], what[128];
+            snprintf(text, sizeof text, BASIN, name, edges[e][1]);
+            snprintf(ref, sizeof ref, "%s/split-%s-%s-ref", dir, name, edges[e][0]);
+            mkdir(ref, 0777);
+            sw_error err = {0};
+            if (run_text(text, ref, 1, 0, 0, NULL, &err) != SW_OK)
+                fail_msg("%s", err.msg);
+            const int cases[][2] = {{2, 1}, {3, 1}, {2, 2}};
+            for (size_t c = 0; c < 3; c++) {
+                if (cases[c][1] == 2 && e == 0)
+                    continue;   /* threads inside ranks: once per layout */
+                snprintf(out, sizeof out, "%s/split-%s-%s-%dx%d", dir, name, edges[e][0], cases[c][0], cases[c][1]);
+                mkdir(out, 0777);
+                if (run_split(text, out, cases[c][0], cases[c][1], 0, 0, &err) != SW_OK)
+                    fail_msg("%s", err.msg);
+                snprintf(what, sizeof what, "%s %s on %d ranks x %d threads", name, edges[e][0], cases[c][0],
+                         cases[c][1]);
+                check_same(ref, out, what);
+                print_message("  %s: every value the same bits\n", what);
+            }
+        }
+}
+
+static void test_bands_and_refusal(void **state)
+{
+    (void)state;
+    size_t a, b, covered = 0;
+    for (int r = 0; r < 3; r++) {   /* bands tile the rows in order, sizes within one */
+        sw_split_rows(40, 3, r, &a, &b);
+        assert_int_equal(a, covered);
+        assert_true(b - a == 13 || b - a == 14);
+        covered = b;
+    }
+    assert_int_equal(covered, 40);
+    char text[4096];
+    snprintf(text, sizeof text, BASIN, "C", "all = wall");
+    char dir[1024], out[1200];
+    tu_tmp_path(dir, sizeof dir, "");
+    snprintf(out, sizeof out, "%s/split-too-many", dir);
+    mkdir(out, 0777);
+    sw_error err = {0};   /* 4 bands of 40 rows are fine; a 6-row grid on 4 ranks is not */
+    char thin[4096];
+    snprintf(thin, sizeof thin, "%s", text);
+    char *ny = strstr(thin, "ny = 40");
+    memcpy(ny, "ny = 06", 7);
+    char *g = strstr(thin, "[gauges]");
+    *g = '\0';
+    char *y = strstr(thin, "y = 20 km");
+    memcpy(y, "y = 03 km", 9);
+    char *shore = strstr(thin, "shoreline = 14 km");
+    memcpy(shore, "shoreline = 01 km", 17);
+    assert_int_equal(run_split(thin, out, 4, 1, 0, 0, &err), SW_ERR_USAGE);
+    print_message("  %s\n", err.msg);
+    assert_non_null(strstr(err.msg, "4 ranks are too many for a grid of 6 rows"));
+    assert_non_null(strstr(err.msg, "at most 3 ranks"));
+    char p[1300];
+    snprintf(p, sizeof p, "%s/maps.nc", out);
+    struct stat st;
+    assert_true(stat(p, &st) != 0);   /* nothing written */
+}
+
+/* A split run stopped half-way writes one checkpoint (rank 0, from every band); resumed on another number
+ * of ranks, or on one process, it ends with the files of a run never stopped (run/checkpoint.h). */
+static void test_checkpoint_across_ranks(void **state)
+{
+    (void)state;
+    char dir[1024], ref[1200], text[4096];
+    tu_tmp_path(dir, sizeof dir, "");
+    snprintf(text, sizeof text, BASIN, "D", "south = periodic\nnorth = periodic\nwest = open\neast = level");
+    static const char every[] = "checkpoint_interval = 1 min\n";   /* the end of [run] */
+    char *run = strstr(text, "[grid]");
+    memmove(run + strlen(every), run, strlen(run) + 1);
+    memcpy(run, every, strlen(every));
+    snprintf(ref, sizeof ref, "%s/split-ckpt-ref", dir);
+    mkdir(ref, 0777);
+    sw_error err = {0};
+    if (run_text(text, ref, 1, 0, 0, NULL, &err) != SW_OK)
+        fail_msg("%s", err.msg);
+    const int stopped_on[] = {3, 2, 1}, resumed_on[] = {2, 1, 3};
+    for (int c = 0; c < 3; c++) {
+        char out[1200];
+        snprintf(out, sizeof out, "%s/split-ckpt-%d-%d", dir, stopped_on[c], resumed_on[c]);
+        mkdir(out, 0777);
+        sw_status rc = stopped_on[c] > 1 ? run_split(text, out, stopped_on[c], 1, 10, 0, &err)
+                                         : run_text(text, out, 1, 10, 0, NULL, &err);
+        print_message("  stopped on %d: %s\n", stopped_on[c], err.msg);
+        assert_int_equal(rc, SW_ERR_INTERRUPTED);
+        assert_non_null(strstr(err.msg, "checkpoint written"));
+        rc = resumed_on[c] > 1 ? run_split(text, out, resumed_on[c], 1, 0, 1, &err)
+                               : run_text(text, out, 1, 0, 1, NULL, &err);
+        if (rc != SW_OK)
+            fail_msg("%s", err.msg);
+        char what[128];
+        snprintf(what, sizeof what, "stopped on %d rank(s), resumed on %d", stopped_on[c], resumed_on[c]);
+        check_same(ref, out, what);
+        print_message("  %s: every value the same bits as the run never stopped\n", what);
+    }
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_checkpoint_across_ranks),
+        cmocka_unit_test(test_bands_and_refusal),
+        cmocka_unit_test(test_split_equals_unsplit),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
