@@ -38,7 +38,8 @@ static const char *const usage_run =
     "the files are then the same bits as those of a run never stopped.\n"
     "\n"
     "  --out DIR      output folder, created if missing\n"
-    "  --threads N    OpenMP threads (default: all cores); results do not depend on N\n"
+    "  --threads N    OpenMP threads (default: the cores free of other work, README \"Threads on a\n"
+    "                 busy machine\"); results do not depend on N\n"
     CLI_PRECISION_HELP
     "  --quiet        no plan and no progress line\n"
     "  --json         print the summary as one JSON object on stdout\n"
@@ -90,7 +91,7 @@ static const char *const usage_demo =
  * grid's rows over the ranks (run/split.h); rank 0 prints and writes, the others are silent. A build
  * without MPI started by a launcher with more than one copy refuses (exit 2, from rank 0 only), since every
  * copy would run the whole scenario into the same folder. */
-static int run_main(int argc, char **argv, const char *history, sw_split *split);
+static int run_main(int argc, char **argv, const char *history, sw_split *split, int node_threads);
 
 #ifdef SW_HAVE_MPI
 /* Runs `run_main` as one rank of a split run; returns rank 0's exit status on every rank. */
@@ -109,7 +110,7 @@ static int run_split(int argc, char **argv, const char *history)
     else {
         if (w.rank != 0 && (!freopen("/dev/null", "w", stdout) || !freopen("/dev/null", "w", stderr)))
             clearerr(stderr);   /* silent: what goes wrong is reported by rank 0 */
-        code = run_main(argc, argv, history, &split);
+        code = run_main(argc, argv, history, &split, sw_sweep_mpi_threads(&w, 0));
         sw_split_mpi_free(&split);
     }
     return sw_sweep_mpi_finish(&w, code);
@@ -134,10 +135,12 @@ int cmd_run(int argc, char **argv, const char *history)
         return 2;
 #endif
     }
-    return run_main(argc, argv, history, NULL);
+    return run_main(argc, argv, history, NULL, 0);
 }
 
-static int run_main(int argc, char **argv, const char *history, sw_split *split)
+/* `shoreward run` in this process; split: this rank of a split run (NULL: not split), whose threads are
+ * node_threads unless --threads says (the ranks on one node share its cores: sweep_mpi.h). */
+static int run_main(int argc, char **argv, const char *history, sw_split *split, int node_threads)
 {
     cli_args a;
     int code = cli_parse("run", usage_run, argc, argv, CLI_OUT | CLI_RUN_OPTS | CLI_PRECISION | CLI_RESUME, &a);
@@ -154,6 +157,8 @@ static int run_main(int argc, char **argv, const char *history, sw_split *split)
         return cli_fail("run", &err);
     cli_apply_precision(&a, &sc);
     a.split = split;
+    if (split && a.threads <= 0)
+        a.threads = node_threads;
     char out[SW_PATH_MAX];
     if (a.out)
         snprintf(out, sizeof out, "%s", a.out);

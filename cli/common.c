@@ -5,6 +5,8 @@
 #include <string.h>
 #include <unistd.h>
 
+#include "base/cpu_share.h"
+#include "base/omp_compat.h"
 #include "cli.h"
 #include "run/split.h"
 #include "outputs/ncwrite.h"
@@ -257,8 +259,8 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
     sw_memory_limits_read(&lim);
     double held = 2.0 * (double)sw_grid_cells(&setup.grid) * sizeof(double);   /* depth and eta0, built */
     double need = (double)setup.total_bytes > held ? (double)setup.total_bytes - held : 0;
-    long cores = sysconf(_SC_NPROCESSORS_ONLN);
-    int threads = a->threads > 0 ? a->threads : (cores > 0 ? (int)cores : 1);
+    /* the threads the run will have: --threads, else the process's choice (main.c, base/cpu_share.h) */
+    int threads = a->threads > 0 ? a->threads : omp_get_max_threads();
     sw_status fits = root ? sw_outdir_check_space(out_dir, sw_outdir_output_bytes(sc, &setup), &err) : SW_OK;
     if (fits == SW_OK)
         fits = sw_memory_check(need, threads, &lim, &err);
@@ -271,6 +273,8 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
     int tty = isatty(STDERR_FILENO) && !a->quiet;
     if (!a->json && !a->quiet) {
         sw_report_plan(stdout, sc, &setup, NULL);
+        const char *why = sw_cpu_share_note(threads);
+        printf("\nThreads    %d%s%s%s\n", threads, *why ? " (" : "", why, *why ? ")" : "");
         printf("\n%s\n\n", sw_caution_for(sc));
         fflush(stdout);
     }

@@ -1,8 +1,12 @@
 /* main.c - the shoreward command line: dispatches to one function per command (see cli.h). */
+#define _POSIX_C_SOURCE 200809L
+#include <errno.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
+#include "base/cpu_share.h"
 #include "cli.h"
 #include "outputs/ncwrite.h"
 
@@ -56,6 +60,91 @@ static char *join_args(int argc, char **argv)
     return s;
 }
 
+/* The commands whose runs keep OpenMP threads busy: they get the automatic thread choice (base/cpu_share.h).
+ * Not bench (it measures the thread counts it is given) nor stability (no long parallel work). */
+static int runs_threads(const char *cmd)
+{
+    static const char *const names[] = {"run", "demo", "check", "compare", "sweep"};
+    for (size_t q = 0; q < sizeof names / sizeof names[0]; q++)
+        if (!strcmp(cmd, names[q]))
+            return 1;
+    return 0;
+}
+
+/* The N of --threads N / --threads=N among a command's arguments, 0 when absent or not a whole number
+ * from 1 to 1024 (cli_parse then refuses it with the usage message). 0 too when --help is asked for. */
+static int threads_option(int argc, char **argv, int *help)
+{
+    int n = 0;
+    *help = 0;
+    for (int k = 0; k < argc; k++) {
+        const char *val = NULL;
+        if (!strcmp(argv[k], "--help") || !strcmp(argv[k], "-h"))
+            *help = 1;
+        else if (!strcmp(argv[k], "--threads") && k + 1 < argc)
+            val = argv[++k];
+        else if (!strncmp(argv[k], "--threads=", 10))
+            val = argv[k] + 10;
+        if (val) {
+            char *end = NULL;
+            long v = strtol(val, &end, 10);
+            n = end != val && !*end && v >= 1 && v <= 1024 ? (int)v : 0;
+        }
+    }
+    return n;
+}
+
+/* The threads and the waiting of this process, chosen before any OpenMP work (base/cpu_share.h): taken
+ * back from before a restart, or measured and decided for a command that runs threads. Passive waiting
+ * needs a fresh process (libgomp reads OMP_WAIT_POLICY before main): the program then executes itself
+ * again with the same arguments and does not come back here. Returns -1 to go on, or an exit status. */
+static int choose_threads(int argc, char **argv)
+{
+    sw_cpu_choice c;
+    if (sw_cpu_share_import(&c)) {
+        sw_cpu_share_apply(&c);
+        return -1;
+    }
+    int help = 0, option = threads_option(argc - 2, argv + 2, &help);
+    long copies = 0, rank = 0;
+    cli_launcher_size(&copies, &rank);
+    if (!runs_threads(argv[1]) || help || copies > 1)   /* MPI ranks: the launcher places them (sweep_mpi.h) */
+        return -1;
+    sw_cpu_wishes w;
+    sw_cpu_wishes_from_env(&w, option);
+    sw_cpu_load load;
+    const sw_cpu_load *lp = NULL;
+    if (sw_cpu_share_wants_load(&w)) {
+        sw_cpu_load_measure(SW_CPU_SHARE_SAMPLE_S, &load);
+        lp = &load;
+    }
+    sw_error err = {0};
+    if (sw_cpu_share_decide(lp, &w, &c, &err) != SW_OK) {
+        fprintf(stderr, "shoreward %s: error: %s\n", argv[1], err.msg);
+        return 2;
+    }
+    if (sw_cpu_share_needs_restart(&c)) {
+        const char *why = NULL;
+        if (sw_cpu_share_export(&c, &err) == SW_OK) {
+            fflush(NULL);
+            execv("/proc/self/exe", argv);
+            why = strerror(errno);
+            sw_cpu_share_unexport();
+        } else {
+            why = err.msg;
+        }
+        c.wait = SW_WAIT_SPIN;   /* this process keeps libgomp's spinning waits */
+        size_t len = strlen(c.note);
+        char *cut = strstr(c.note, "passive waiting");
+        if (cut)
+            len = (size_t)(cut - c.note);
+        snprintf(c.note + len, sizeof c.note - len, "spinning waits (the restart for passive waiting failed: %.60s)",
+                 why);
+    }
+    sw_cpu_share_apply(&c);
+    return -1;
+}
+
 int main(int argc, char **argv)
 {
     sw_ncw_no_exit_handler();   /* before any NetCDF call (stability and bench too): no HDF5 exit handler to
@@ -76,8 +165,11 @@ int main(int argc, char **argv)
     }
     for (size_t q = 0; q < sizeof commands / sizeof commands[0]; q++)
         if (!strcmp(argv[1], commands[q].name)) {
+            int code = choose_threads(argc, argv);   /* before the command's first OpenMP call */
+            if (code >= 0)
+                return code;
             char *history = join_args(argc, argv);
-            int code = commands[q].fn(argc - 2, argv + 2, history ? history : "shoreward");
+            code = commands[q].fn(argc - 2, argv + 2, history ? history : "shoreward");
             free(history);
             return code;
         }

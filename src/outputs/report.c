@@ -7,6 +7,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "base/cpu_share.h"
 #include "forcing/drag.h"
 #include "observers/gauges.h"
 
@@ -723,6 +724,8 @@ void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_r
     fprintf(f, "\n%s: layout %s in %s precision, %lld steps of %.4g s, %s wall time with %d thread%s "
             "(%.3g cell-updates/s)\n", sc->title, s->layout->name, sw_precision_name(sc->precision), r->steps, s->dt_s, wall, r->threads, r->threads == 1 ? "" : "s",
             r->cell_updates_per_s);
+    if (*sw_cpu_share_note(r->threads))   /* why that many threads (base/cpu_share.h) */
+        fprintf(f, "Threads: %s\n", sw_cpu_share_note(r->threads));
     if (r->ranks > 1)
         fprintf(f, "Ranks: %d (MPI), bands of about %zu rows with %zu halo rows on each side; %.3g s of the time "
                 "loop in halo exchanges and %.3g kB sent per step (the most of any rank)\n", r->ranks,

@@ -1,0 +1,189 @@
+#!/usr/bin/python3
+"""Threads on a busy machine (issue 18, part 6): with one of the run's two CPUs kept busy by another
+program, the plan's Threads line and the summary name the busy core and the choice (threads, waiting), and
+what the user sets wins: --threads, OMP_NUM_THREADS, OMP_WAIT_POLICY, SHOREWARD_THREADS_AUTO=off.
+
+The program and the busy loop are pinned (sched_setaffinity) to two CPUs of this machine, one of them the
+busy loop's, so the test holds on any machine with two CPUs or more, however loaded by other tests: the
+busy CPU is never idle, so at least one core counts as busy. Timings are not tests: the wall time of each
+run is printed, never compared. On a machine with one CPU the test is skipped (exit 0).
+
+Passive waiting is set by executing the program again with OMP_WAIT_POLICY=passive (libgomp reads it
+before main; base/cpu_share.h); OMP_DISPLAY_ENV=verbose makes libgomp print its settings at each start,
+so the restart and the spin count it took are seen on stderr.
+
+The scenario is small and fictional (invented coast, no real place).
+
+usage: test_busy.py SHOREWARD_BINARY WORK_DIR
+"""
+import os
+import re
+import shutil
+import subprocess
+import sys
+import time
+
+from swtest import BIN, FAILURES, RUN_TIMEOUT_S, WORK, check
+
+shutil.rmtree(WORK, ignore_errors=True)
+os.makedirs(WORK)
+
+SCENARIO = """; a small fictional coast for the busy-machine test
+[run]
+title = busy machine test (fictional)
+duration = 10 min
+arrival_threshold = 0.01 m
+[grid]
+nx = 120
+ny = 90
+dx = 500 m
+[edges]
+all = open
+[seabed]
+deep = 500 m
+coast = east
+shoreline = 50 km
+shelf_width = 8 km
+shelf_depth = 50 m
+slope_width = 5 km
+[source s]
+shape = hump
+x = 15 km
+y = 22 km
+amplitude = 1 m
+radius = 3 km
+[gauges]
+Istelbrac Point = 40 km, 22 km
+"""
+scn = os.path.join(WORK, "busy.scn")
+with open(scn, "w") as f:
+    f.write(SCENARIO)
+
+cpus = sorted(os.sched_getaffinity(0))
+if len(cpus) < 2:
+    print("skipped: this process may run on %d CPU only; the test needs 2" % len(cpus))
+    sys.exit(0)
+BUSY_CPU, FREE_CPU = cpus[0], cpus[1]
+PAIR = {BUSY_CPU, FREE_CPU}
+
+
+def clean_env(**extra):
+    """The environment without the variables the choice reads, plus extra."""
+    env = {k: v for k, v in os.environ.items()
+           if k not in ("OMP_NUM_THREADS", "OMP_WAIT_POLICY", "GOMP_SPINCOUNT", "OMP_DISPLAY_ENV",
+                        "SHOREWARD_THREADS_AUTO", "SHOREWARD_CPU_SHARE")}
+    env.update(extra)
+    return env
+
+
+def shoreward(label, args, env):
+    """Runs the program pinned to the two CPUs; prints and returns (result, wall seconds)."""
+    t0 = time.monotonic()
+    r = subprocess.run([BIN, *args], capture_output=True, text=True, env=env, timeout=RUN_TIMEOUT_S,
+                       preexec_fn=lambda: os.sched_setaffinity(0, PAIR))
+    wall = time.monotonic() - t0
+    print("     %-44s exit %d, wall %.2f s" % (label, r.returncode, wall))
+    return r, wall
+
+
+def threads_line(text):
+    """(count, reason) of the plan's "Threads    N (reason)" line, or (None, '')."""
+    m = re.search(r"^Threads +(\d+)(?: \((.*)\))?$", text, re.M)
+    return (int(m.group(1)), m.group(2) or "") if m else (None, "")
+
+
+def summary_reason(text):
+    m = re.search(r"^Threads: (.*)$", text, re.M)
+    return m.group(1) if m else ""
+
+
+def spin_counts(stderr):
+    """GOMP_SPINCOUNT of each libgomp start shown by OMP_DISPLAY_ENV=verbose, in order."""
+    return re.findall(r"GOMP_SPINCOUNT = '(\d+)'", stderr)
+
+
+def cpu_ticks(pid):
+    with open("/proc/%d/stat" % pid) as f:
+        fields = f.read().rsplit(")", 1)[1].split()
+    return int(fields[11]) + int(fields[12])   # utime + stime (proc(5): fields 14 and 15)
+
+
+# Quiet or not, first a reference run with the choice off (the wall times are only printed).
+print("CPUs %d (busy loop) and %d; the program is pinned to both" % (BUSY_CPU, FREE_CPU))
+r, wall_off_quiet = shoreward("before the busy loop, choice off, 2 threads", ["run", scn, "--out",
+                              os.path.join(WORK, "o0"), "--threads", "2"], clean_env(SHOREWARD_THREADS_AUTO="off"))
+check(r.returncode == 0, "a run before the busy loop exits 0")
+
+spinner = subprocess.Popen(["/usr/bin/python3", "-c", "while True: pass"],
+                           preexec_fn=lambda: os.sched_setaffinity(0, {BUSY_CPU}))
+try:
+    deadline = time.monotonic() + 30
+    while cpu_ticks(spinner.pid) < 2 and time.monotonic() < deadline:   # it is running (2 ticks of CPU)
+        time.sleep(0.01)
+    check(cpu_ticks(spinner.pid) >= 2, "the busy loop runs on CPU %d" % BUSY_CPU)
+
+    # 1. the automatic choice: one thread, and why
+    r, wall_auto = shoreward("busy, automatic", ["run", scn, "--out", os.path.join(WORK, "o1")], clean_env())
+    n, why = threads_line(r.stdout)
+    check(r.returncode == 0, "automatic: the run exits 0")
+    check(n == 1, "automatic: the plan says 1 thread (got %s: %r)" % (n, why))
+    check(re.search(r"\b[12](\.\d)? of 2 cores busy with other work", why) is not None,
+          "automatic: the plan names the busy core: %r" % why)
+    check("with 1 thread " in r.stdout and "busy with other work" in summary_reason(r.stdout),
+          "automatic: the summary says 1 thread and why: %r" % summary_reason(r.stdout))
+    check("passive" not in why, "automatic: one thread waits for nobody (no passive waiting named)")
+
+    # 2. --threads wins; more threads than free cores: passive waiting, through a restart
+    r, wall_t2 = shoreward("busy, --threads 2", ["run", scn, "--out", os.path.join(WORK, "o2"), "--threads", "2"],
+                           clean_env(OMP_DISPLAY_ENV="verbose"))
+    n, why = threads_line(r.stdout)
+    check(r.returncode == 0, "--threads 2: the run exits 0")
+    check(n == 2 and why.startswith("set by --threads") and "busy with other work" in why
+          and why.endswith("passive waiting"), "--threads 2: 2 threads, busy core, passive waiting: %r" % why)
+    counts = spin_counts(r.stderr)
+    check(len(counts) == 2 and counts[-1] == "0",
+          "--threads 2: the program started again and libgomp took passive waiting (spin counts %s)" % counts)
+    check("with 2 threads " in r.stdout and summary_reason(r.stdout) == why,
+          "--threads 2: the summary has the same reason")
+
+    # 3. OMP_NUM_THREADS wins the same way
+    r, _ = shoreward("busy, OMP_NUM_THREADS=2", ["run", scn, "--out", os.path.join(WORK, "o3"), "--quiet"],
+                     clean_env(OMP_NUM_THREADS="2"))
+    check(r.returncode == 0 and "with 2 threads " in r.stdout and
+          summary_reason(r.stdout).startswith("set by OMP_NUM_THREADS") and "passive waiting" in r.stdout,
+          "OMP_NUM_THREADS=2: 2 threads, passive waiting: %r" % summary_reason(r.stdout))
+
+    # 4. the user's OMP_WAIT_POLICY wins: no restart, the reason names it
+    r, _ = shoreward("busy, --threads 2, OMP_WAIT_POLICY=passive",
+                     ["run", scn, "--out", os.path.join(WORK, "o4"), "--threads", "2"],
+                     clean_env(OMP_WAIT_POLICY="passive", OMP_DISPLAY_ENV="verbose"))
+    n, why = threads_line(r.stdout)
+    check(r.returncode == 0 and n == 2 and why.endswith("waiting as OMP_WAIT_POLICY=passive"),
+          "OMP_WAIT_POLICY set by the user: named, kept: %r" % why)
+    check(len(spin_counts(r.stderr)) == 1, "OMP_WAIT_POLICY set by the user: no restart (%d libgomp starts)"
+          % len(spin_counts(r.stderr)))
+
+    # 5. the switch off: OpenMP's defaults (both CPUs), said so
+    r, wall_off = shoreward("busy, SHOREWARD_THREADS_AUTO=off", ["run", scn, "--out", os.path.join(WORK, "o5")],
+                            clean_env(SHOREWARD_THREADS_AUTO="off", OMP_DISPLAY_ENV="verbose"))
+    n, why = threads_line(r.stdout)
+    check(r.returncode == 0 and n == 2 and "automatic choice off by SHOREWARD_THREADS_AUTO=off" in why,
+          "SHOREWARD_THREADS_AUTO=off: all (2) threads, said so: %r" % why)
+    check(len(spin_counts(r.stderr)) == 1, "SHOREWARD_THREADS_AUTO=off: no restart")
+
+    # 6. a bad switch value is refused with the accepted values
+    r, _ = shoreward("busy, SHOREWARD_THREADS_AUTO=maybe", ["run", scn, "--out", os.path.join(WORK, "o6")],
+                     clean_env(SHOREWARD_THREADS_AUTO="maybe"))
+    check(r.returncode == 2 and "SHOREWARD_THREADS_AUTO = 'maybe'" in r.stderr and "on and off" in r.stderr,
+          "SHOREWARD_THREADS_AUTO=maybe: exit 2 naming the accepted values (%d: %s)"
+          % (r.returncode, r.stderr.strip()[-200:]))
+finally:
+    spinner.kill()
+    spinner.wait()
+
+print("wall times (printed, not tested): quiet-or-not 2 threads %.2f s; busy: automatic %.2f s, --threads 2 "
+      "passive %.2f s, choice off (2 threads spinning) %.2f s" % (wall_off_quiet, wall_auto, wall_t2, wall_off))
+if FAILURES:
+    print("\n%d check(s) failed" % len(FAILURES))
+    sys.exit(1)
+print("\nall checks passed")
