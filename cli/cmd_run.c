@@ -110,6 +110,7 @@ static int run_split(int argc, char **argv, const char *history)
     else {
         if (w.rank != 0 && (!freopen("/dev/null", "w", stdout) || !freopen("/dev/null", "w", stderr)))
             clearerr(stderr);   /* silent: what goes wrong is reported by rank 0 */
+        split.node_ranks = w.node_ranks > 0 ? w.node_ranks : 1;
         code = run_main(argc, argv, history, &split, sw_sweep_mpi_threads(&w, 0));
         sw_split_mpi_free(&split);
     }

@@ -262,8 +262,14 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
     /* the threads the run will have: --threads, else the process's choice (main.c, base/cpu_share.h) */
     int threads = a->threads > 0 ? a->threads : omp_get_max_threads();
     sw_status fits = root ? sw_outdir_check_space(out_dir, sw_outdir_output_bytes(sc, &setup), &err) : SW_OK;
-    if (fits == SW_OK)
-        fits = sw_memory_check(need, threads, &lim, &err);
+    const int on_node = a->split && a->split->node_ranks > 1 ? a->split->node_ranks : 1;
+    if (fits == SW_OK)   /* every rank of a split run holds the whole grid, and a node's ranks add up */
+        fits = sw_memory_check(need * on_node, threads, &lim, &err);
+    if (fits != SW_OK && on_node > 1) {
+        char more[96];
+        snprintf(more, sizeof more, " (for the %d ranks on this node, each holding the whole grid)", on_node);
+        strncat(err.msg, more, sizeof err.msg - strlen(err.msg) - 1);
+    }
     if (agreed(a, fits, &err) != SW_OK) {
         sw_setup_free(&setup);
         sw_outdir_close(&od);

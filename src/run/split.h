@@ -53,6 +53,7 @@ struct sw_split {
     void *job;                 /* the implementation's state */
     size_t ny;                 /* grid rows, set by sw_split_attach */
     size_t halo;               /* halo rows on each side, set by sw_split_attach */
+    int node_ranks;            /* ranks sharing this rank's node (and its memory), >= 1 */
     int ring;                  /* 1 when the south and north edges are periodic: the last band's northern
                                 * neighbour is the first band (set by sw_split_attach) */
     double exchange_s;         /* wall-clock time spent in halo exchanges so far, s (the implementation adds) */
