@@ -15,6 +15,7 @@
 #include <time.h>
 #include <unistd.h>
 
+#include "base/cgroup.h"
 #include "base/omp_compat.h"
 
 /* ---- parsing --------------------------------------------------------------------------------------- */
@@ -200,47 +201,23 @@ static double seconds(clockid_t clk)
     return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
 }
 
-/* The tightest cgroup CPU quota along this process's cgroup path (v2 "0::/path" cpu.max, else v1 "N:cpu...:/path"
- * cpu.cfs_quota_us and cpu.cfs_period_us), cores; 0 when none. */
+/* The tightest cgroup CPU quota along this process's cgroup path (v2 cpu.max, else v1 cpu.cfs_quota_us and
+ * cpu.cfs_period_us), cores; 0 when none. */
 static double cgroup_quota(void)
 {
-    FILE *f = fopen("/proc/self/cgroup", "r");
-    if (!f)
-        return 0;
-    char line[1024], rel[1024] = "";
-    int v2 = 0, found = 0;
-    while (fgets(line, sizeof line, f)) {
-        line[strcspn(line, "\n")] = '\0';
-        char *c1 = strchr(line, ':'), *c2 = c1 ? strchr(c1 + 1, ':') : NULL;
-        if (!c2)
-            continue;
-        *c2 = '\0';
-        const char *ctrl = c1 + 1;
-        if (!strcmp(ctrl, "") && !found) {
-            v2 = found = 1;
-            snprintf(rel, sizeof rel, "%s", c2 + 1);
-        } else if (!strcmp(ctrl, "cpu") || !strncmp(ctrl, "cpu,", 4) || strstr(ctrl, ",cpu,") ||
-                   (strlen(ctrl) > 4 && !strcmp(ctrl + strlen(ctrl) - 4, ",cpu"))) {
-            v2 = 0;
-            found = 1;
-            snprintf(rel, sizeof rel, "%s", c2 + 1);
-            /* the v1 folder is named after the controller list as mounted: cpu,cpuacct or cpu */
-            break;
-        }
-    }
-    fclose(f);
-    if (!found)
+    sw_cgroup cg;
+    if (!sw_cgroup_find("cpu", &cg))
         return 0;
     double best = 0;
-    for (;;) {
-        const char *sub = strcmp(rel, "/") ? rel : "";
+    do {
+        const char *sub = sw_cgroup_sub(&cg);
         char path[1400], text[128] = "", a[64], b[64];
         double cores = 0;
-        if (v2) {
+        if (cg.v2) {
             snprintf(path, sizeof path, "/sys/fs/cgroup%s/cpu.max", sub);
             if (read_small(path, text, sizeof text) && sw_cpu_max_parse(text, path, &cores, NULL) != SW_OK)
                 cores = 0;
-        } else {
+        } else {   /* the v1 folder is named after the controller list as mounted: cpu,cpuacct or cpu */
             static const char *const roots[] = {"/sys/fs/cgroup/cpu,cpuacct", "/sys/fs/cgroup/cpu"};
             for (size_t r = 0; r < 2 && cores == 0; r++) {
                 snprintf(path, sizeof path, "%s%s/cpu.cfs_quota_us", roots[r], sub);
@@ -256,14 +233,7 @@ static double cgroup_quota(void)
         }
         if (cores > 0 && (best == 0 || cores < best))
             best = cores;
-        char *slash = strrchr(rel, '/');
-        if (!slash || !strcmp(rel, "/"))
-            break;
-        if (slash == rel)
-            snprintf(rel, sizeof rel, "/");
-        else
-            *slash = '\0';
-    }
+    } while (sw_cgroup_up(&cg));
     return best;
 }
 

@@ -7,6 +7,8 @@
 #include <string.h>
 #include <sys/resource.h>
 
+#include "base/cgroup.h"
+
 /* The value after `key` in a "Key: N kB" file such as /proc/meminfo, bytes; -1 when absent. */
 static double kb_field(const char *file, const char *key)
 {
@@ -39,44 +41,19 @@ static double number_file(const char *path)
     return v;
 }
 
-/* Walks the process's cgroup (v2 "0::/path", else v1 "N:memory:/path" or "N:...,memory,...:/path") and its
- * ancestors, keeping the tightest limit less use. */
+/* Walks the process's memory cgroup (base/cgroup.h) and its ancestors, keeping the tightest limit less use. */
 static void read_cgroup(sw_memory_limits *m)
 {
-    FILE *f = fopen("/proc/self/cgroup", "r");
-    if (!f)
+    sw_cgroup cg;
+    if (!sw_cgroup_find("memory", &cg))
         return;
-    char line[1024], rel[1024] = "";
-    int v2 = 0, found = 0;
-    while (fgets(line, sizeof line, f)) {
-        line[strcspn(line, "\n")] = '\0';
-        char *c1 = strchr(line, ':'), *c2 = c1 ? strchr(c1 + 1, ':') : NULL;
-        if (!c2)
-            continue;
-        *c2 = '\0';
-        const char *ctrl = c1 + 1;
-        if (!strcmp(ctrl, "") && !found) {
-            v2 = 1;
-            found = 1;
-            snprintf(rel, sizeof rel, "%s", c2 + 1);
-        } else if (strstr(ctrl, "memory") && (!strcmp(ctrl, "memory") || strstr(ctrl, ",memory") ||
-                                              strstr(ctrl, "memory,"))) {
-            v2 = 0;
-            found = 1;
-            snprintf(rel, sizeof rel, "%s", c2 + 1);
-            break;   /* a v1 memory controller wins over the v2 line of a hybrid set-up */
-        }
-    }
-    fclose(f);
-    if (!found)
-        return;
-    const char *root = v2 ? "/sys/fs/cgroup" : "/sys/fs/cgroup/memory";
-    const char *lim_name = v2 ? "memory.max" : "memory.limit_in_bytes";
-    const char *use_name = v2 ? "memory.current" : "memory.usage_in_bytes";
-    for (;;) {
+    const char *root = cg.v2 ? "/sys/fs/cgroup" : "/sys/fs/cgroup/memory";
+    const char *lim_name = cg.v2 ? "memory.max" : "memory.limit_in_bytes";
+    const char *use_name = cg.v2 ? "memory.current" : "memory.usage_in_bytes";
+    do {
         char lim_path[1400], use_path[1400];
-        snprintf(lim_path, sizeof lim_path, "%s%s/%s", root, strcmp(rel, "/") ? rel : "", lim_name);
-        snprintf(use_path, sizeof use_path, "%s%s/%s", root, strcmp(rel, "/") ? rel : "", use_name);
+        snprintf(lim_path, sizeof lim_path, "%s%s/%s", root, sw_cgroup_sub(&cg), lim_name);
+        snprintf(use_path, sizeof use_path, "%s%s/%s", root, sw_cgroup_sub(&cg), use_name);
         double lim = number_file(lim_path);
         if (lim > 0 && lim < 9.0e18) {   /* v1 writes "no limit" as a huge number */
             double use = number_file(use_path);
@@ -87,14 +64,7 @@ static void read_cgroup(sw_memory_limits *m)
                 snprintf(m->cgroup_file, sizeof m->cgroup_file, "%.255s", lim_path);
             }
         }
-        char *slash = strrchr(rel, '/');
-        if (!slash || !strcmp(rel, "/"))
-            break;
-        if (slash == rel)
-            snprintf(rel, sizeof rel, "/");
-        else
-            *slash = '\0';
-    }
+    } while (sw_cgroup_up(&cg));
 }
 
 void sw_memory_limits_read(sw_memory_limits *m)
