@@ -54,42 +54,13 @@ SW_INLINE sw_real sw_colocated_eta_cell(const sw_cells *c, size_t k)
                         + c->cy * (c->wn * (c->hy[k + s] * c->v[k + s]) - c->ws * (c->hy[k - s] * c->v[k - s])));
 }
 
-/* The continuity_observed body of these layouts (stage.h, sw_continuity_observed_loop): continuity of
- * the row starting at padded index k0 and the float centre values of grid row jf (padded index f0 of
- * its first cell) into buf (row_values.h), segment by segment: the segment's continuity, then its
- * centre values with their extremes (sw_row_extremes' comparisons, so the same values) reduced in the
- * loop that makes them, not in a second pass. Two loops, not one: with the continuity's arrays and the
- * centre row's in one loop the compiler runs out of registers and reloads addresses every iteration
- * (measured: A's step with an observer 1.4 x the plain step in one loop, 1.2 x in two). */
+/* The continuity_observed body of these layouts: stage.h's sw_continuity_observed_loop (the one loop
+ * every layout shares) with their continuity formula, sw_colocated_eta_cell, and the layout's centre
+ * values. */
 SW_INLINE void sw_colocated_observed_loop(const sw_cells *c, size_t k0, size_t f0, size_t jf, size_t nx,
                                           float *restrict buf, sw_centre_cell_fn centre)
 {
-    const size_t n_seg = (nx + SW_OBS_SEG - 1) / SW_OBS_SEG;
-    float *restrict oe = buf, *restrict ou = buf + nx, *restrict ov = buf + 2 * nx;
-    float *restrict hi = buf + 3 * nx, *restrict lo = hi + n_seg, *restrict speed2 = lo + n_seg;
-    sw_real *restrict eta = c->eta;
-    for (size_t q = 0; q < n_seg; q++) {
-        const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
-        float top_e = -INFINITY, bottom_e = INFINITY, top_s2 = 0;
-        SW_OMP(simd)
-        for (size_t i = a; i < b; i++)
-            eta[k0 + i] = sw_colocated_eta_cell(c, k0 + i);
-        SW_OMP(simd reduction(max : top_e, top_s2) reduction(min : bottom_e))
-        for (size_t i = a; i < b; i++) {
-            float e, uc, vc;
-            centre(c, f0 + i, i, jf, &e, &uc, &vc);
-            oe[i] = e;
-            ou[i] = uc;
-            ov[i] = vc;
-            const float s2 = uc * uc + vc * vc;
-            top_e = e > top_e ? e : top_e;   /* not fmaxf: a libm call per cell */
-            bottom_e = e < bottom_e ? e : bottom_e;
-            top_s2 = s2 > top_s2 ? s2 : top_s2;
-        }
-        hi[q] = top_e;
-        lo[q] = bottom_e;
-        speed2[q] = top_s2;
-    }
+    sw_continuity_observed_loop(c, k0, f0, jf, nx, buf, sw_colocated_eta_cell, centre);
 }
 
 /* g dt / (2 dx cos_c[j]): the x pressure-gradient coefficient of padded row j (its true width). */

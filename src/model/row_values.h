@@ -3,7 +3,7 @@
  * The tracker keeps its maps per segment of SW_OBS_SEG cells: for each segment it needs the highest and
  * lowest elevation and the highest squared speed. A step can make them in the same pass over memory as
  * its own arithmetic (stage.h, sw_continuity_observed_loop); the tracker makes them itself otherwise.
- * Both use sw_row_extremes, so the two ways give the same bits.
+ * Both use sw_row_extremes' comparisons (the step inline, per segment), so the two ways give the same bits.
  */
 #ifndef SW_ROW_VALUES_H
 #define SW_ROW_VALUES_H

@@ -95,17 +95,23 @@ double sw_bench_triad(size_t n, int repeats)
 
 /* The source's e-folding radius, cells: a 20 km hump on 1 km cells, as a fault or a landslide makes
  * one, small beside the basin as in a real domain. Tracking costs most where its maps still change
- * (rising and falling water): a hump an eighth of the basin wide keeps a quarter of the grid changing. */
+ * (rising and falling water), so it is measured a second time on a moving source (bench_moving). */
 #define SOURCE_CELLS 20.0
+
+/* The moving source's e-folding radius as a share of the basin's side: a 1 m hump of radius n / 8 is
+ * above the tracker's floor (1 micrometre: out to 3.7 radii) over two thirds of the grid, all of it
+ * rising or falling from the first step. */
+#define MOVING_SOURCE_SHARE 0.125
 
 /* The terms of the "with terms" figures: rotation at about 43 deg and a typical linear friction rate. */
 static const sw_terms_config BENCH_TERMS = {.rotation = SW_ROTATION_F_PLANE, .f0_s = 1e-4,
                                             .friction = SW_FRICTION_LINEAR, .friction_rate_ms = 1e-3};
 
-/* A square basin of n x n cells, 1000 m deep, with a hump, at 90 % of the layout's limit, with the given
- * terms (NULL: none); on a geographic grid (cells of up to 1000 m of arc, from 10 N) when `geographic`. */
-static sw_model *make_model_on(const sw_layout *lay, size_t n, sw_precision precision, const sw_terms_config *terms,
-                               int geographic, sw_error *err)
+/* A square basin of n x n cells, 1000 m deep, with a 1 m hump of e-folding radius source_cells at its
+ * centre, at 90 % of the layout's limit, with the given terms (NULL: none); on a geographic grid (cells of
+ * up to 1000 m of arc, from 10 N) when `geographic`. */
+static sw_model *make_model_src(const sw_layout *lay, size_t n, sw_precision precision, const sw_terms_config *terms,
+                                int geographic, double source_cells, sw_error *err)
 {
     sw_grid g = {.nx = n, .ny = n, .dx_m = 1000, .dy_m = 1000};
     if (geographic) {   /* cells of 1000 m of arc (grid.h) from 10 N, fewer where 60 degrees of latitude
@@ -123,7 +129,7 @@ static sw_model *make_model_on(const sw_layout *lay, size_t n, sw_precision prec
         SW_OMP(parallel for schedule(static))
         for (size_t j = 0; j < n; j++)
             for (size_t i = 0; i < n; i++) {
-                double x = ((double)i - (double)n / 2) / SOURCE_CELLS, y = ((double)j - (double)n / 2) / SOURCE_CELLS;
+                double x = ((double)i - (double)n / 2) / source_cells, y = ((double)j - (double)n / 2) / source_cells;
                 depth[j * n + i] = 1000;
                 eta[j * n + i] = exp(-(x * x + y * y));
             }
@@ -137,6 +143,13 @@ static sw_model *make_model_on(const sw_layout *lay, size_t n, sw_precision prec
     free(depth);
     free(eta);
     return m;
+}
+
+/* The same with the bench's hump (SOURCE_CELLS), on a projected grid or (geographic) a geographic one. */
+static sw_model *make_model_on(const sw_layout *lay, size_t n, sw_precision precision, const sw_terms_config *terms,
+                               int geographic, sw_error *err)
+{
+    return make_model_src(lay, n, precision, terms, geographic, SOURCE_CELLS, err);
 }
 
 static sw_model *make_model(const sw_layout *lay, size_t n, sw_precision precision, const sw_terms_config *terms,
@@ -161,6 +174,21 @@ static double time_steps(sw_model *m, sw_tracker *t, int threads, int steps)
     }
     double wall = omp_get_wtime() - t0;
     sw_tracker_attach(NULL, m, NULL);
+    return wall;
+}
+
+/* time_steps with t attached, adding to *seen and *updated the row segments those steps' updates looked
+ * at and rewrote maps in (sw_tracker_segments over these steps only, not since the tracker's creation,
+ * whose first update rewrites every segment). */
+static double time_tracked_steps(sw_model *m, sw_tracker *t, int threads, int steps, long long *seen,
+                                 long long *updated)
+{
+    long long s0, u0, s1, u1;
+    sw_tracker_segments(t, &s0, &u0);
+    const double wall = time_steps(m, t, threads, steps);
+    sw_tracker_segments(t, &s1, &u1);
+    *seen += s1 - s0;
+    *updated += u1 - u0;
     return wall;
 }
 
@@ -245,6 +273,8 @@ static void bench_forcing(const sw_bench_options *opt, const sw_layout *lay, sw_
 /* All figures of one layout, interleaved with triad. */
 static void bench_geographic(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, sw_model *big,
                              sw_bench_layout *out);
+static void bench_moving(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, int slice,
+                         sw_bench_layout *out);
 
 static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res,
                               sw_bench_layout *out, sw_error *err)
@@ -276,6 +306,7 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
     const double cells = (double)res->n_large * (double)res->n_large;
     const double cells_small = (double)res->n_small * (double)res->n_small;
     samples tri = {0}, lg = {0}, lt = {0}, sm = {0}, sc[SW_BENCH_MAX_THREADS] = {{{0}, 0}}, np = {0}, npc = {0};
+    long long seen = 0, updated = 0;   /* row segments of the timed tracked steps (time_tracked_steps) */
     int with_numpy = opt->numpy_script && !strcmp(lay->name, "C");
     for (int r = 0; r < opt->rounds; r++) {
         snprintf(what, sizeof what, "layout %s: round %d of %d", lay->name, r + 1, opt->rounds);
@@ -310,7 +341,7 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
             push(&ref, old);
             push(&rr, plain / old);
         }
-        push(&lt, cells * steps_big / time_steps(big, tr, top, steps_big));
+        push(&lt, cells * steps_big / time_tracked_steps(big, tr, top, steps_big, &seen, &updated));
         push(&sm, cells_small * steps_small / time_steps(small, NULL, top, steps_small));
         for (int q = 0; q < res->n_threads; q++)
             push(&sc[q], cells * steps_big / time_steps(big, NULL, res->threads[q], steps_big));
@@ -337,8 +368,7 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
     out->bandwidth = out->large.median * lay->stream_values * (double)res->real_bytes;
     out->bandwidth_ratio = out->triad.median > 0 ? out->bandwidth / out->triad.median : 0;
     out->tracking_cost = out->large_tracked.median > 0 ? out->large.median / out->large_tracked.median - 1 : 0;
-    long long seen, updated;
-    sw_tracker_segments(tr, &seen, &updated);
+    out->tracking_source_cells = SOURCE_CELLS;
     out->tracking_active = seen > 0 ? (double)updated / (double)seen : 0;
     out->efficiency_2 = out->scaling[0].median > 0
         ? out->scaling[res->n_threads - 1].median / (out->scaling[0].median * top / res->threads[0]) : 0;
@@ -353,10 +383,64 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
     sw_tracker_free(tr);
     sw_model_free(big_terms);
     sw_model_free(small);
-    bench_forcing(opt, lay, res, big, out);   /* after big_terms is freed: the forced model takes its room */
+    /* after big_terms is freed: the moving model takes its room; half slices (a ratio needs no more, and the
+     * tracked slices of a moving grid take three times as long) */
+    bench_moving(opt, lay, res, steps_big / 2 > 2 ? steps_big / 2 : 2, out);
+    bench_forcing(opt, lay, res, big, out);   /* and so does the forced model */
     bench_geographic(opt, lay, res, big, out);
     sw_model_free(big);
     return SW_OK;
+}
+
+/* ---- tracking on a moving source ------------------------------------------------------------------------ */
+
+#define MOVING_PAIRS 1   /* slices of the plain and of the tracked step per round, taken turn about (the
+                          * order alternating from round to round); PAIRS would add a fifth to the time */
+
+/* Tracking's cost where most of the grid moves: a model of the large grid's size with a hump of
+ * e-folding radius MOVING_SOURCE_SHARE x n cells, stepped in slices of `slice` steps (the large grid's
+ * measurement, steps_for), plain and with its own tracker attached, taken turn about (the tracker skips
+ * the plain slices' states: its maps are not a run's, its cost per step is). The cost is the median of
+ * the rounds' ratios; the share in motion that of the segments the tracked slices rewrote maps in.
+ * Without memory for the model or its tracker the figures stay n = 0. */
+static void bench_moving(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, int slice,
+                         sw_bench_layout *out)
+{
+    const int top = res->threads[res->n_threads - 1];
+    const double cells = (double)res->n_large * (double)res->n_large;
+    const double radius = MOVING_SOURCE_SHARE * (double)res->n_large;
+    sw_model *mv = make_model_src(lay, res->n_large, opt->precision, NULL, 0, radius, NULL);
+    sw_tracker *tr = NULL;
+    if (!mv || sw_tracker_create(mv, 0.01, top, &tr, NULL) != SW_OK) {
+        sw_model_free(mv);
+        return;
+    }
+    char what[128];
+    samples pl = {0}, tk = {0}, ra = {0};
+    long long seen = 0, updated = 0;
+    for (int r = 0; r < opt->rounds; r++) {
+        snprintf(what, sizeof what, "layout %s: moving-source tracking round %d of %d", lay->name, r + 1, opt->rounds);
+        say(opt, what);
+        double t_plain = 0, t_tracked = 0;
+        for (int q = 0; q < MOVING_PAIRS; q++) {
+            const int later = (r + q) % 2;
+            if (later)
+                t_tracked += time_tracked_steps(mv, tr, top, slice, &seen, &updated);
+            t_plain += time_steps(mv, NULL, top, slice);
+            if (!later)
+                t_tracked += time_tracked_steps(mv, tr, top, slice, &seen, &updated);
+        }
+        push(&pl, cells * slice * MOVING_PAIRS / t_plain);
+        push(&tk, cells * slice * MOVING_PAIRS / t_tracked);
+        push(&ra, t_tracked / t_plain);
+    }
+    out->moving_source_cells = radius;
+    out->large_moving = summarise(&pl);
+    out->large_moving_tracked = summarise(&tk);
+    out->moving_tracking_cost = summarise(&ra).median - 1;
+    out->moving_active = seen > 0 ? (double)updated / (double)seen : 0;
+    sw_tracker_free(tr);
+    sw_model_free(mv);
 }
 
 /* ---- surface forcing ------------------------------------------------------------------------------------ */
@@ -656,10 +740,20 @@ void sw_bench_print(FILE *f, const sw_bench_result *res)
             snprintf(label, sizeof label, "step, large grid, %d thread%s", res->threads[t], res->threads[t] > 1 ? "s" : "");
             print_stat(f, label, l->scaling[t], 1e6, "M cell-updates/s");
         }
-        fprintf(f, "  effective bandwidth %.3g GB/s = %.2f x triad; tracking adds %.1f %% (maps rewritten in %.2g %% of "
-               "segments); parallel efficiency %d -> %d threads %.0f %%\n",
-               l->bandwidth / 1e9, l->bandwidth_ratio, 100 * l->tracking_cost, 100 * l->tracking_active,
-               res->threads[0], res->threads[res->n_threads - 1], 100 * l->efficiency_2);
+        fprintf(f, "  effective bandwidth %.3g GB/s = %.2f x triad; parallel efficiency %d -> %d threads %.0f %%\n",
+               l->bandwidth / 1e9, l->bandwidth_ratio, res->threads[0], res->threads[res->n_threads - 1],
+               100 * l->efficiency_2);
+        fprintf(f, "  tracking, hump of %.0f cells: adds %.1f %% to the step (ratio of the medians); grid in motion "
+                   "(segments whose maps changed): %.2g %%\n",
+               l->tracking_source_cells, 100 * l->tracking_cost, 100 * l->tracking_active);
+        if (l->large_moving.n) {
+            print_stat(f, "step, moving source, large", l->large_moving, 1e6, "M cell-updates/s");
+            print_stat(f, "step + tracking, moving source", l->large_moving_tracked, 1e6, "M cell-updates/s");
+            fprintf(f, "  tracking, moving source (hump of %.0f cells): adds %.1f %% to the step (median of the rounds' "
+                       "ratios); grid in motion: %.2g %%\n",
+                    l->moving_source_cells, 100 * l->moving_tracking_cost, 100 * l->moving_active);
+        } else
+            fprintf(f, "  tracking, moving source: not measured (no memory for the model or its tracker)\n");
         if (l->large_terms.n)
             fprintf(f, "  with rotation and linear friction: %.3f x the plain step (median of the rounds' ratios)\n",
                     l->terms_ratio);
@@ -733,6 +827,12 @@ char *sw_bench_json(const sw_bench_result *res)
         cJSON_AddNumberToObject(e, "bandwidth_ratio_to_triad", l->bandwidth_ratio);
         cJSON_AddNumberToObject(e, "tracking_cost", l->tracking_cost);
         cJSON_AddNumberToObject(e, "tracking_active_share", l->tracking_active);
+        cJSON_AddNumberToObject(e, "tracking_source_cells", l->tracking_source_cells);
+        cJSON_AddItemToObject(e, "large_moving", stat_json(l->large_moving));
+        cJSON_AddItemToObject(e, "large_moving_tracked", stat_json(l->large_moving_tracked));
+        cJSON_AddNumberToObject(e, "moving_tracking_cost", l->moving_tracking_cost);
+        cJSON_AddNumberToObject(e, "moving_active_share", l->moving_active);
+        cJSON_AddNumberToObject(e, "moving_source_cells", l->moving_source_cells);
         cJSON_AddNumberToObject(e, "parallel_efficiency", l->efficiency_2);
         cJSON_AddItemToObject(e, "large_terms", stat_json(l->large_terms));
         cJSON_AddNumberToObject(e, "terms_ratio", l->terms_ratio);

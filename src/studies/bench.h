@@ -41,15 +41,26 @@ typedef struct {
     char layout[8];
     int values_per_cell;        /* the bytes model: values a fused cell update must move (layout.h) */
     sw_bench_stat large;        /* step on the large grid, all threads */
-    sw_bench_stat large_tracked;/* step + arrival/extreme tracking, all threads */
+    sw_bench_stat large_tracked;/* step + arrival/extreme tracking, all threads, on the bench's hump (a source
+                                 * of tracking_source_cells, small beside the basin: most segments quiet) */
     sw_bench_stat small;        /* step on the cache-resident grid, all threads */
     sw_bench_stat triad;        /* triad bandwidth measured in the same rounds, B/s */
     sw_bench_stat scaling[SW_BENCH_MAX_THREADS]; /* large grid step with threads[q] */
     double bandwidth;           /* effective: median rate x values_per_cell x sizeof(value), B/s */
     double bandwidth_ratio;     /* bandwidth / median triad */
-    double tracking_cost;       /* large_tracked time / large time - 1 (fraction added) */
-    double tracking_active;     /* share of row segments whose maps the tracked steps rewrote (the cost
-                                 * grows with it: quiet water costs a compare per segment) */
+    double tracking_cost;       /* large_tracked time / large time - 1 (fraction added; ratio of the medians) */
+    double tracking_active;     /* share of the row segments (SW_OBS_SEG cells) whose maps the timed tracked
+                                 * steps rewrote: the share of the grid in motion (the cost grows with it:
+                                 * quiet water costs a compare per segment) */
+    double tracking_source_cells; /* the hump's e-folding radius, cells */
+    /* Tracking on a moving source: a second model of the large grid with a hump of e-folding radius
+     * moving_source_cells (an eighth of the side), plain and tracked slices taken turn about in rounds of
+     * their own; n = 0 when the model or its tracker did not fit in memory: */
+    sw_bench_stat large_moving;        /* its plain step, all threads */
+    sw_bench_stat large_moving_tracked;/* its step + tracking, all threads */
+    double moving_tracking_cost;  /* median over rounds of (tracked time / plain time) - 1 */
+    double moving_active;         /* share of row segments whose maps its tracked steps rewrote */
+    double moving_source_cells;   /* its hump's e-folding radius, cells */
     double efficiency_2;        /* parallel efficiency from 1 thread to the most threads */
     sw_bench_stat large_terms;  /* step with rotation and linear friction (f = 1e-4 s-1, r = 1 mm/s), large grid;
                                  * n = 0 when the second large model did not fit in memory */
