@@ -29,7 +29,9 @@ CACHE = os.path.join(WORK, "cache")
 
 
 def run(*args, cache=CACHE):
-    env = dict(os.environ, SHOREWARD_CACHE_DIR=cache)
+    # the rate is cached per thread count: the automatic choice (README "Threads on a busy machine") off, so
+    # that a busy moment between two checks cannot change the key
+    env = dict(os.environ, SHOREWARD_CACHE_DIR=cache, SHOREWARD_THREADS_AUTO="off")
     return subprocess.run([BIN, *args], capture_output=True, text=True, env=env, timeout=300)
 
 
