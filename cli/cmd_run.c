@@ -46,6 +46,10 @@ static const char *const usage_run =
     "  --resume       continue from DIR/checkpoint.swck, written by a stopped run of the same\n"
     "                 scenario with the same --precision (any --threads)\n"
     "\n"
+    "On a cluster (a build configured with -DSW_MPI=ON): mpirun -n N shoreward run SCENARIO --out DIR\n"
+    "splits the grid's rows over N ranks (each holds the whole grid; rank 0 writes DIR, one folder all of\n"
+    "them see); the files are the same bits (README \"Running on a cluster\").\n"
+    "\n"
     "Example:\n"
     "  shoreward run scenarios/demo.scn --out demo-out --threads 2\n"
     "  shoreward run scenarios/demo.scn --precision single   # half the memory, faster\n";

@@ -767,19 +767,21 @@ size_t sw_model_state_parts(sw_model *m, void **ptr, size_t *bytes)
     return n;
 }
 
+/* The larger of reach and the rows r reaches on either side (nothing when r is empty). */
+static int reach_of(sw_rows r, int reach)
+{
+    if (r.lo > r.hi)
+        return reach;
+    return r.hi > reach ? r.hi : -r.lo > reach ? -r.lo : reach;
+}
+
 size_t sw_model_halo_rows(const sw_model *m)
 {
     int reach = 1;
-    for (int s = 0; s < m->plan.n_stages; s++)
-        for (int f = 0; f < SW_N_FIELDS; f++) {
-            const sw_rows r = m->plan.stage[s]->reads[f];
-            if (r.lo <= r.hi)
-                reach = r.hi > reach ? r.hi : -r.lo > reach ? -r.lo : reach;
-        }
     for (int f = 0; f < SW_N_FIELDS; f++) {
-        const sw_rows r = m->plan.observes[f];
-        if (r.lo <= r.hi)
-            reach = r.hi > reach ? r.hi : -r.lo > reach ? -r.lo : reach;
+        for (int s = 0; s < m->plan.n_stages; s++)
+            reach = reach_of(m->plan.stage[s]->reads[f], reach);
+        reach = reach_of(m->plan.observes[f], reach);
     }
     return (size_t)reach + 1;   /* + 1: a gauge's bilinear centre values reach one row past its own */
 }

@@ -571,6 +571,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         c.next_progress = 0.5;
         if (!resumed)
             observe(&c, 0);
+        agree(&c, NULL);   /* a split run: a failure of the first observation on one rank stops all */
         if (!c.stop)
             time_loop(&c);
         res->wall_s = omp_get_wtime() - c.t_start;
