@@ -21,14 +21,20 @@ The reference is always the same run as one process, without mpirun. Checks:
   - a rank that cannot read the scenario (an MPMD job whose rank 1 names a missing file) ends the job: exit 1,
     one message naming the rank and the file, no output folder;
   - more ranks than the grid's rows can take: exit 2 or 1 with one line from rank 0 saying how many at most,
-    and no output files.
+    and no output files;
+  - a run with checkpoints on 2 ranks interrupted with SIGINT (to mpirun) once its first checkpoint exists
+    exits non-zero naming the checkpoint and writes no files; `--resume` on 3 ranks then ends with the
+    files of the uninterrupted one-process run, bit for bit.
 The scenario is a small fictional basin (no real place).
 """
 import os
+import signal
+import subprocess
 import sys
+import time
 
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from mpitest import BIN, MPIRUN, WORK, check, data_vars, finish, mpi, run, write  # noqa: E402
+from mpitest import BIN, MPIRUN, TIMEOUT_S, WORK, check, data_vars, finish, mpi, run, write  # noqa: E402
 
 BASIN = """; small fictional basin for the split-run tests (no real place)
 [run]
@@ -162,7 +168,33 @@ def test_too_many_ranks():
     check(not os.path.exists(os.path.join(out, "maps.nc")), "no output file written")
 
 
+def test_interrupted_resume():
+    # a larger, longer basin: about ten seconds on two oversubscribed ranks here, so SIGINT lands mid-run
+    text = BASIN.format(layout="C", edges=EDGES["periodic-ns"], ny=400).replace("nx = 48", "nx = 400") \
+        .replace("duration = 8 min", "duration = 300 min\ncheckpoint_interval = 5 min") \
+        .replace("snapshot_interval = 1 min", "snapshot_interval = 30 min")
+    scn = write("slow.scn", text)
+    ref, out = os.path.join(WORK, "slow-ref"), os.path.join(WORK, "slow-split")
+    r = run([BIN, "run", scn, "--out", ref, "--quiet"])
+    check(r.returncode == 0, "one-process run of the larger basin (%s)" % r.stderr.strip()[-200:])
+    p = subprocess.Popen(mpi(2, "run", scn, "--out", out, "--threads", "1", "--quiet"), stdout=subprocess.PIPE,
+                         stderr=subprocess.PIPE, text=True, cwd=WORK)
+    t0 = time.time()
+    while time.time() - t0 < 300 and p.poll() is None and not os.path.exists(os.path.join(out, "checkpoint.swck")):
+        time.sleep(0.02)
+    p.send_signal(signal.SIGINT)
+    _, err = p.communicate(timeout=TIMEOUT_S)
+    check(p.returncode != 0 and "checkpoint written" in err,
+          "the interrupted split run exits non-zero and names its checkpoint (exit %s: %s)"
+          % (p.returncode, err.strip()[-200:]))
+    check(not os.path.exists(os.path.join(out, "maps.nc")), "no maps.nc after the interruption")
+    r = run(mpi(3, "run", scn, "--out", out, "--threads", "1", "--quiet", "--resume"))
+    differ = same_files(ref, out) if r.returncode == 0 else ["(resume failed: %s)" % r.stderr.strip()[-200:]]
+    check(not differ, "resumed on 3 ranks: the files of the uninterrupted run bit for bit (differ: %s)" % differ[:4])
+
+
 test_identical()
+test_interrupted_resume()
 test_demos()
 test_rank0_prints()
 test_rank_failure()
