@@ -145,6 +145,21 @@ static int choose_threads(int argc, char **argv)
     return -1;
 }
 
+/* Only run and sweep spread over the ranks of an MPI job (demo says how itself: cmd_run.c); any other
+ * command started by a launcher with more than one copy would do its work N times over: refused (exit 2,
+ * one line from rank 0 only). Returns -1 to go on. */
+static int one_process_only(const char *cmd)
+{
+    long copies = 0, rank = 0;
+    cli_launcher_size(&copies, &rank);
+    if (copies <= 1 || !strcmp(cmd, "run") || !strcmp(cmd, "sweep") || !strcmp(cmd, "demo"))
+        return -1;
+    if (rank == 0)
+        fprintf(stderr, "shoreward %s: error: %s runs in one process, not %ld (only run and sweep spread over MPI "
+                "ranks): start it without mpirun\n", cmd, cmd, copies);
+    return 2;
+}
+
 int main(int argc, char **argv)
 {
     sw_ncw_no_exit_handler();   /* before any NetCDF call (stability and bench too): no HDF5 exit handler to
@@ -165,7 +180,10 @@ int main(int argc, char **argv)
     }
     for (size_t q = 0; q < sizeof commands / sizeof commands[0]; q++)
         if (!strcmp(argv[1], commands[q].name)) {
-            int code = choose_threads(argc, argv);   /* before the command's first OpenMP call */
+            int code = one_process_only(argv[1]);
+            if (code >= 0)
+                return code;
+            code = choose_threads(argc, argv);   /* before the command's first OpenMP call */
             if (code >= 0)
                 return code;
             char *history = join_args(argc, argv);

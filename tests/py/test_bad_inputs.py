@@ -392,12 +392,14 @@ check(r.returncode == 1 and "out of memory for the 20000 x 20000 input fields" i
       f"a grid too big for the address space: exit {r.returncode} [{r.stderr.strip()[:200]}]")
 
 # started by an MPI launcher with 3 copies (the environment Open MPI gives each copy): a build without MPI
-# spreads neither a run nor a sweep, and the demo always runs in one process; rank 0 says so, every copy
-# exits 2
+# spreads neither a run nor a sweep, and demo, check and compare always run in one process; rank 0 says so,
+# every copy exits 2
 LAUNCHER = dict(os.environ, OMPI_COMM_WORLD_SIZE="3", OMPI_COMM_WORLD_RANK="0")
 scn = os.path.join(WORK, "cli-no-scenario", "case.scn")
 for cmd, words in (("run", "built without MPI (cmake -DSW_MPI=ON), so one run does not spread over MPI ranks; 3 copies"),
                    ("demo", "the demo runs in one process, not 3"),
+                   ("check", "check runs in one process, not 3 (only run and sweep spread over MPI ranks)"),
+                   ("compare", "compare runs in one process, not 3"),
                    ("sweep", "built without MPI")):
     args = [BIN, cmd] + ([] if cmd == "demo" else [scn]) + ["--out", os.path.join(WORK, f"mpi-{cmd}-out")]
     r = subprocess.run(args, capture_output=True, text=True, timeout=TIMEOUT_S, env=LAUNCHER)
