@@ -777,6 +777,7 @@ char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_
     cJSON_AddNumberToObject(run, "end_time_s", r->end_time_s);
     cJSON_AddNumberToObject(run, "wall_s", r->wall_s);
     cJSON_AddNumberToObject(run, "threads", r->threads);
+    cJSON_AddStringToObject(run, "threads_reason", sw_cpu_share_note(r->threads));   /* "" when none */
     cJSON_AddNumberToObject(run, "cell_updates_per_s", r->cell_updates_per_s);
     cJSON_AddNumberToObject(run, "ranks", r->ranks);
     if (r->ranks > 1) {

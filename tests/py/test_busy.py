@@ -16,6 +16,7 @@ The scenario is small and fictional (invented coast, no real place).
 
 usage: test_busy.py SHOREWARD_BINARY WORK_DIR
 """
+import json
 import os
 import re
 import shutil
@@ -132,6 +133,11 @@ try:
     check("with 1 thread " in r.stdout and "busy with other work" in summary_reason(r.stdout),
           "automatic: the summary says 1 thread and why: %r" % summary_reason(r.stdout))
     check("passive" not in why, "automatic: one thread waits for nobody (no passive waiting named)")
+    r, _ = shoreward("busy, automatic, --json", ["run", scn, "--out", os.path.join(WORK, "o1j"), "--json"],
+                     clean_env())
+    js = json.loads(r.stdout)["run"] if r.returncode == 0 else {}
+    check(js.get("threads") == 1 and "busy with other work" in js.get("threads_reason", ""),
+          "automatic: the JSON summary gives the threads and why: %r" % js.get("threads_reason"))
 
     # 2. --threads wins; more threads than free cores: passive waiting, through a restart
     r, wall_t2 = shoreward("busy, --threads 2", ["run", scn, "--out", os.path.join(WORK, "o2"), "--threads", "2"],
