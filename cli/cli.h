@@ -32,11 +32,12 @@ typedef struct {
     sw_precision precision; /* --precision double|single: replaces the scenario's [run] precision */
     int recalibrate;        /* --recalibrate: measure this machine's rate again (check) */
     int resume;             /* --resume: continue from the output folder's checkpoint (run) */
+    int steps_per_sweep;    /* --steps-per-sweep N (run): 0 = the automatic choice */
     struct sw_split *split; /* set by cmd_run under an MPI launcher: this rank of a split run (run/split.h) */
 } cli_args;
 
 /* parse flags: accept --out; accept --threads/--quiet; accept --precision; accept --recalibrate;
- * accept --resume */
+ * accept --resume and --steps-per-sweep */
 enum { CLI_OUT = 1, CLI_RUN_OPTS = 2, CLI_PRECISION = 4, CLI_RECALIBRATE = 8, CLI_RESUME = 16 };
 
 /* Help text for --precision, shared by the commands that take it. */

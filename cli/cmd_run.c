@@ -4,6 +4,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "base/omp_compat.h"
 #include "cli.h"
 #include "inputs/demo.h"
 #include "studies/estimate.h"
@@ -19,6 +20,7 @@
 
 static const char *const usage_run =
     "Usage: shoreward run SCENARIO [--out DIR] [--threads N] [--precision P] [--quiet] [--json] [--resume]\n"
+    "                              [--steps-per-sweep K]\n"
     "\n"
     "Runs SCENARIO and writes into DIR (default: <scenario name>-out):\n"
     "  gauges.nc     eta, u, v time series at the gauges (CF timeSeries); with a [storm] or\n"
@@ -45,6 +47,10 @@ static const char *const usage_run =
     "  --json         print the summary as one JSON object on stdout\n"
     "  --resume       continue from DIR/checkpoint.swck, written by a stopped run of the same\n"
     "                 scenario with the same --precision (any --threads)\n"
+    "  --steps-per-sweep K  take K time steps (1 to 16) in each pass over memory, for benchmarking;\n"
+    "                 the default chooses from the grid and the cache (the plan's Schedule line says\n"
+    "                 what and why). Runs with forcing, periodic south-north edges or split over\n"
+    "                 processes take one step a pass. The files are the same bits whatever K\n"
     "\n"
     "On a cluster (a build configured with -DSW_MPI=ON): mpirun -n N shoreward run SCENARIO --out DIR\n"
     "splits the grid's rows over N ranks (each holds the whole grid; rank 0 writes DIR, one folder all of\n"
@@ -218,6 +224,9 @@ int cmd_check(int argc, char **argv, const char *history)
         fprintf(stderr, "%s\n", sc.sweep.present ? sw_caution_sweep_for(&sc) : sw_caution_for(&sc));
     } else {
         sw_report_plan(stdout, &sc, &setup, &rate);
+        char schedule[200];
+        sw_run_schedule(&sc, &setup, omp_get_max_threads(), 0, 0, schedule, sizeof schedule);
+        printf("Schedule   %s (on %d threads)\n", schedule, omp_get_max_threads());
         if (sc.sweep.present)
             swept = sw_sweep_check(&sc, rate.cells_per_s, stdout, NULL, &err);
         if (swept == SW_OK)

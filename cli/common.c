@@ -8,6 +8,7 @@
 #include "base/cpu_share.h"
 #include "base/omp_compat.h"
 #include "cli.h"
+#include "model/model.h"
 #include "run/split.h"
 #include "outputs/ncwrite.h"
 #include "outputs/report.h"
@@ -187,6 +188,13 @@ int cli_parse(const char *cmd, const char *usage, int argc, char **argv, int fla
             if (missing || end == val || *end || n < 1 || n > 1024)
                 return cli_usage_error(cmd, "--threads takes a whole number from 1 to 1024, not '%s'", val);
             a->threads = (int)n;
+        } else if ((flags & CLI_RESUME) && (val = option_value("--steps-per-sweep", argc, argv, &k, &missing))) {
+            char *end = NULL;
+            long n = strtol(val, &end, 10);
+            if (missing || end == val || *end || n < 1 || n > SW_WAVE_MAX_STEPS)
+                return cli_usage_error(cmd, "--steps-per-sweep takes a whole number from 1 to 16 (the most "
+                                       "steps a sweep takes), not '%s'", missing ? "" : val);
+            a->steps_per_sweep = (int)n;
         } else if ((flags & CLI_PRECISION) && (val = option_value("--precision", argc, argv, &k, &missing))) {
             if (missing || !sw_precision_parse(val, &a->precision))
                 return cli_usage_error(cmd, "--precision takes double or single, not '%s'", val);
@@ -281,6 +289,10 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
         sw_report_plan(stdout, sc, &setup, NULL);
         const char *why = sw_cpu_share_note(threads);
         printf("\nThreads    %d%s%s%s\n", threads, *why ? " (" : "", why, *why ? ")" : "");
+        char schedule[200];
+        sw_run_schedule(sc, &setup, threads, a->steps_per_sweep, a->split && a->split->size > 1, schedule,
+                        sizeof schedule);
+        printf("Schedule   %s\n", schedule);
         printf("\n%s\n\n", sw_caution_for(sc));
         fflush(stdout);
     }
@@ -288,6 +300,7 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
     sw_run_options opt = {
         .out_dir = out_dir, .history = history, .threads = a->threads,
         .progress = tty ? cli_show_progress : NULL, .stop = &cli_stop, .resume = a->resume, .split = a->split,
+        .steps_per_sweep = a->steps_per_sweep,
     };
     sw_run_result *res = malloc(sizeof *res);
     if (!res) {

@@ -551,3 +551,11 @@ const char *sw_cpu_share_note(int threads)
         return "";
     return process_choice.note;
 }
+
+size_t sw_cpu_cache_bytes(void)
+{
+    long v = sysconf(_SC_LEVEL3_CACHE_SIZE);
+    if (v <= 0)
+        v = sysconf(_SC_LEVEL2_CACHE_SIZE);
+    return v > 0 ? (size_t)v : (size_t)32 << 20;
+}

@@ -192,4 +192,8 @@ void sw_cpu_share_apply(const sw_cpu_choice *c);
  * the recorded count is 0), else "" (a caller that set other threads gets no stale reason). Never NULL. */
 const char *sw_cpu_share_note(int threads);
 
+/* Bytes of the last-level cache (sysconf: level 3, else level 2), or 32 MiB when the system does not say:
+ * what the schedule of several steps per sweep sizes its window of rows against (model.h). */
+size_t sw_cpu_cache_bytes(void);
+
 #endif

@@ -363,12 +363,18 @@ static double storm_reach(const sw_forcing *f, double duration_s)
     return hypot(ddx, ddy) * 1.01 + 1;
 }
 
+int sw_forcing_wanted(const sw_scenario *sc)
+{
+    const sw_forcing_spec *fs = &sc->forcing;
+    return fs->storm || fs->weather || fs->level_file[0];
+}
+
 sw_status sw_forcing_create(const sw_scenario *sc, const sw_model *m, double duration_s, const double *x_m,
                             const double *y_m, size_t n_points, sw_forcing **out, sw_error *err)
 {
     *out = NULL;
     const sw_forcing_spec *fs = &sc->forcing;
-    if (!fs->storm && !fs->weather && !fs->level_file[0])
+    if (!sw_forcing_wanted(sc))
         return SW_OK;
     sw_forcing *f = calloc(1, sizeof *f);
     if (!f)

@@ -28,6 +28,10 @@
 
 typedef struct sw_forcing sw_forcing;
 
+/* 1 when scenario sc asks for forcing (a storm, a weather file or a level series): sw_forcing_create then
+ * makes one, which changes the model between every two steps. */
+int sw_forcing_wanted(const sw_scenario *sc);
+
 /* Reads what sc->forcing asks for (the storm's track, the weather file, the level series; relative paths
  * from sc->dir) for model m (its grid, layout, gravity, and Coriolis parameter for the storm's gradient
  * wind) and a run from 0 to duration_s, and checks that each covers the run. n_points points (x_m, y_m,

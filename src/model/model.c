@@ -464,13 +464,15 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
                        cfg->dt_s, c, cfg->layout->name, c_max, f_max > 0 ? " with rotation" : "", dt_max, h_max);
     }
 
-    sw_model *m = calloc(1, sizeof *m);
+    sw_model *m = aligned_alloc(SW_ALIGN, round_up(sizeof *m, SW_ALIGN));   /* the wavefront's counters: lines */
     if (!m)
         return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating the model");
+    memset(m, 0, sizeof *m);
     m->layout = cfg->layout;
     m->precision = cfg->precision;
     m->kernels = cfg->layout->kernels[cfg->precision];
     m->step = cfg->precision == SW_SINGLE ? sw_stepper_step_f32 : sw_stepper_step_f64;
+    m->steps_fn = cfg->precision == SW_SINGLE ? sw_stepper_steps_f32 : sw_stepper_steps_f64;
     m->observe = observe_nothing;
     m->grid = *g;
     m->g = cfg->gravity_ms2;
@@ -625,6 +627,64 @@ static sw_status sort_edges_by_row(sw_model *m, sw_error *err)
 }
 
 void sw_model_step(sw_model *m) { step_flushed(m); }
+
+const char *sw_model_wave_refusal(const sw_model *m)
+{
+    if (m->halo)
+        return "a run split over processes exchanges its halo rows once a step";
+    if (m->plan.periodic_y)
+        return "periodic south and north edges: a step's first rows need the step before's last";
+    return NULL;
+}
+
+void sw_model_steps(sw_model *m, int k)
+{
+    if (k > 1 && !sw_model_wave_refusal(m)) {
+        const unsigned int saved = sw_fp_flush();
+        m->steps_fn(m, k);
+        sw_fp_restore(saved);
+        return;
+    }
+    for (int q = 0; q < k; q++) {
+        step_flushed(m);
+        SW_OMP(single)
+        sw_model_tick(m);
+    }
+}
+
+int sw_model_wave_steps_for(const sw_layout *layout, sw_precision precision, const sw_grid *g,
+                            const sw_edge_kind edges[4], const sw_terms_config *terms, int threads,
+                            size_t cache_bytes, size_t *window_bytes)
+{
+    *window_bytes = 0;
+    sw_step_plan plan;
+    if (edges[SW_SOUTH] == SW_EDGE_PERIODIC
+        || sw_step_plan_build(layout->kernels[precision], sw_terms_variant_of(terms), edges, &plan, NULL) != SW_OK)
+        return 1;
+    const size_t size = precision == SW_SINGLE ? sizeof(float) : sizeof(double);
+    const size_t row = (size_t)layout->stream_values * stride_for(g, size) * size;   /* bytes a row's update touches */
+    const size_t gap = (size_t)plan.wave_gap;
+    if (2 * sw_model_bytes_for(g, precision, layout, terms) <= cache_bytes)
+        return 1;   /* the state stays in cache from one sweep to the next anyway */
+    int k = SW_WAVE_MAX_STEPS;
+    while (k > 1 && (size_t)k * gap * row > cache_bytes / 2)
+        k--;
+    if (threads > 1 && k >= 2 * threads)
+        k -= k % threads;   /* every thread of the pipeline as many steps */
+    if (k < 2 || (size_t)k * gap * 4 > g->ny)   /* too few rows to fill the pipeline */
+        return 1;
+    *window_bytes = (size_t)k * gap * row;
+    return k;
+}
+
+int sw_model_wave_auto(const sw_model *m, int threads, size_t cache_bytes, size_t *window_bytes)
+{
+    *window_bytes = 0;
+    if (sw_model_wave_refusal(m))
+        return 1;
+    return sw_model_wave_steps_for(m->layout, m->precision, &m->grid, m->edges, &m->terms_cfg, threads, cache_bytes,
+                                   window_bytes);
+}
 
 void sw_model_set_observer(sw_model *m, sw_row_observer fn, void *ctx)
 {

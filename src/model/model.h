@@ -107,6 +107,39 @@ void sw_model_free(sw_model *m);
  * is the time after the step, what sw_model_time gives after the sw_model_tick that follows. */
 void sw_model_step(sw_model *m);
 
+/* Why several steps cannot share one sweep over memory on model m, or NULL when they can: a run split
+ * over processes (its halo rows are exchanged once a step) or periodic south and north edges (the
+ * wavefront runs from south to north, and a step's first rows would need the last rows of the step
+ * before). A static string. */
+const char *sw_model_wave_refusal(const sw_model *m);
+
+/* The most steps one sweep over memory takes (sw_model_wave_auto). */
+#define SW_WAVE_MAX_STEPS 16
+
+/* k >= 1 steps, each followed by sw_model_tick, in one sweep over memory (temporal blocking: a wavefront
+ * over rows in which each step follows the one before a few rows behind, while those rows are still in
+ * cache; with T threads, thread t runs steps k t / T .. k (t + 1) / T - 1 as a pipeline; stepper.h), or,
+ * when sw_model_wave_refusal says why not or k = 1, in k single steps. The state, the observer's calls
+ * (every row of every step once, with that step's time) and so every output bit are those of k times
+ * sw_model_step then sw_model_tick, for any k and thread count. The surface forcing and the edge level
+ * stay as they are for the k steps: a run with forcing takes one step at a time. Call as sw_model_step
+ * (from every thread of a parallel region, or outside one), but not followed by sw_model_tick. */
+void sw_model_steps(sw_model *m, int k);
+
+/* The steps per sweep the model runs fastest with, by the bytes model: as many as keep the wavefront's
+ * window of rows (steps x the gap between them x the bytes a row's update touches) within half of
+ * cache_bytes (the last-level cache), at most SW_WAVE_MAX_STEPS, a multiple of `threads` when that
+ * leaves at least two a thread; 1 (one step per sweep) when the model (sw_model_bytes_for) fits in half
+ * the cache already, when sw_model_wave_refusal refuses, or when the grid has too few rows to fill the pipeline.
+ * *window_bytes: that window (0 for 1). */
+int sw_model_wave_auto(const sw_model *m, int threads, size_t cache_bytes, size_t *window_bytes);
+
+/* sw_model_wave_auto before a model exists (a plan): for a model of that layout, precision, grid, edges
+ * and terms, unsplit. */
+int sw_model_wave_steps_for(const sw_layout *layout, sw_precision precision, const sw_grid *g,
+                            const sw_edge_kind edges[4], const sw_terms_config *terms, int threads,
+                            size_t cache_bytes, size_t *window_bytes);
+
 /* Sets the row observer sw_model_step calls (NULL: none), with room for steps on up to
  * omp_get_max_threads() threads to hand it rows' values (sw_row_values; a thread beyond that, or no
  * memory for the room, hands none). Call outside parallel regions. */

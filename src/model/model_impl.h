@@ -83,6 +83,9 @@ struct sw_model {
     float *obs_buf;            /* [obs_threads][obs_len]: each thread's sw_row_values storage, or NULL */
     size_t obs_len;            /* floats per thread: sw_row_values_len(nx), in whole 64-byte lines */
     int obs_threads;
+
+    void (*steps_fn)(sw_model *m, int k);   /* the wavefront of this precision (sw_stepper_steps) */
+    _Alignas(64) long wave_done[8 * SW_WAVE_THREADS];   /* the wavefront's progress, one 64-byte line a thread */
 };
 
 /* Thread t's storage for a row's values, or NULL when nothing observes or there is none for t. */
@@ -97,6 +100,14 @@ static inline void sw_model_observe_row(const sw_model *m, size_t j, const float
 {
     const sw_row_values pre = buf ? sw_row_values_in(buf, m->grid.nx) : (sw_row_values){0};
     m->observe(m->observe_ctx, m, j - 1, (double)(m->steps + 1) * m->dt, buf ? &pre : NULL);
+}
+
+/* sw_model_observe_row for the state q steps after the next one (q = 0: the next): a wavefront
+ * (sw_stepper_steps) finishes rows of several steps before the clock moves. */
+static inline void sw_model_observe_row_ahead(const sw_model *m, size_t j, const float *buf, int q)
+{
+    const sw_row_values pre = buf ? sw_row_values_in(buf, m->grid.nx) : (sw_row_values){0};
+    m->observe(m->observe_ctx, m, j - 1, (double)(m->steps + 1 + q) * m->dt, buf ? &pre : NULL);
 }
 
 /* Padded index of grid cell (i, j), 0-based (i < nx, j < ny). */

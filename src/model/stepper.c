@@ -21,6 +21,8 @@
  */
 #include "model/stepper.h"
 
+#include <limits.h>
+#include <sched.h>
 #include <string.h>
 
 #include "base/omp_compat.h"
@@ -106,6 +108,21 @@ sw_status sw_step_plan_build(const sw_layout_kernels *k, sw_terms_variant varian
     out->periodic_x = edges[SW_WEST] == SW_EDGE_PERIODIC;
     out->periodic_y = edges[SW_SOUTH] == SW_EDGE_PERIODIC;
     out->ghosts_before_obs = k->centre_reads_halo && k->edge_velocities;
+
+    /* the wavefront (sw_stepper_steps): how far its iterations reach, and the gap between steps */
+    int reach = 1;
+    for (int s = 0; s < out->n_stages; s++)
+        for (int f = 0; f < SW_N_FIELDS; f++)
+            if (!rows_empty(out->stage[s]->reads[f]))
+                reach = imax(reach, imax(-out->stage[s]->reads[f].lo, out->stage[s]->reads[f].hi));
+    for (int f = 0; f < SW_N_FIELDS; f++)
+        if (!rows_empty(k->observes[f]))
+            reach = imax(reach, imax(-k->observes[f].lo, k->observes[f].hi));
+    out->wave_reach = reach;
+    out->wave_ghost_lag = out->max_lag + SW_GHOST_REACH;
+    out->wave_obs_lag = imax(out->obs_lag, k->edge_velocities ? out->wave_ghost_lag + imax(reach, SW_GHOST_REACH) : 0);
+    out->wave_tail = imax(imax(out->max_lag, out->wave_ghost_lag), out->wave_obs_lag);
+    out->wave_gap = out->wave_tail + 3 * reach + 4;
     return SW_OK;
 }
 #endif
@@ -352,4 +369,106 @@ void SW_NAME(sw_stepper_step)(sw_model *m)
     if (observed && b.j1 >= b.j0)
         observe_rest(m, &b);
     SW_OMP(barrier)   /* the step ends when every row has been observed */
+}
+
+/* ---- several steps per sweep (temporal blocking) ------------------------------------------------ */
+
+/* The ghost velocities of the ghosts whose inner cell is in padded row r, and the periodic copies of a
+ * ghost row of the south or north edge they complete (as ghosts() does after all of them). */
+static void wave_ghosts(sw_model *m, ptrdiff_t r)
+{
+    const size_t q0 = m->edge_row[r], q1 = m->edge_row[r + 1];
+    if (q1 > q0)
+        m->kernels->edge_velocities(&m->view, m->edge, q0, q1);
+    const ptrdiff_t ny = (ptrdiff_t)m->grid.ny;
+    if (m->plan.periodic_x && (r == 1 || r == ny)) {
+        sw_real *f[3] = {SW_V(&m->view, eta), SW_V(&m->view, u), SW_V(&m->view, v)};
+        for (int q = 0; q < 3; q++)
+            periodic_row(m, f[q], r == 1 ? 0 : ny + 1);
+    }
+}
+
+/* Iteration i of the one-thread sweep of step q of the wavefront (stepper.h, sw_step_plan): what the
+ * one-step sweep does at i, with the ghosts and the observation moved into the sweep (wave_ghost_lag,
+ * wave_obs_lag rows behind). b is the one-thread block (all rows) with this thread's buffer. */
+static void wave_iteration(sw_model *m, const block *b, ptrdiff_t i, int q, int ghosts_on)
+{
+    const sw_step_plan *pl = &m->plan;
+    const ptrdiff_t ny = (ptrdiff_t)m->grid.ny, obs = pl->wave_obs_lag;
+    const int fused = m->observed && b->buf && m->kernels->continuity_observed;
+    if (i <= ny) {
+        const ptrdiff_t f = i - obs - 1;   /* final since the last iteration */
+        if (fused && f >= 1) {
+            m->kernels->continuity_observed(&m->view, (size_t)i, (size_t)f, b->buf);
+            after_continuity(m, i);
+            sw_model_observe_row_ahead(m, (size_t)f, b->buf, q);
+        } else {
+            pl->stage[0]->run(&m->view, (size_t)i);
+            after_continuity(m, i);
+        }
+        if (m->prefetch_rows)
+            prefetch_momentum_rows(m, i + 1);
+    }
+    for (int st = 1; st < pl->n_stages; st++) {
+        const ptrdiff_t r = i - pl->lag[st];
+        if (in(r, b->st[st].first, b->st[st].last))
+            run_stage(m, st, r);
+    }
+    if (ghosts_on && in(i - pl->wave_ghost_lag, 1, ny))
+        wave_ghosts(m, i - pl->wave_ghost_lag);
+    if (m->observed) {
+        const ptrdiff_t f = i - obs;
+        if (in(f, 1, ny) && !(fused && f + obs + 1 <= ny))
+            sw_model_observe_row_ahead(m, (size_t)f, NULL, q);
+    }
+}
+
+/* Waits until *count >= need (written by another thread with release). Spins briefly, then yields the
+ * core: on a busy machine the thread waited for may be off its core. */
+static void wave_wait(const long *count, long need)
+{
+    for (unsigned spins = 0; __atomic_load_n(count, __ATOMIC_ACQUIRE) < need; spins++) {
+        if (spins < 4096) {
+#if defined(__x86_64__) || defined(__i386__)
+            __builtin_ia32_pause();
+#endif
+        } else {
+            sched_yield();
+        }
+    }
+}
+
+void SW_NAME(sw_stepper_steps)(sw_model *m, int k)
+{
+    const sw_step_plan *pl = &m->plan;
+    const int nt = omp_get_num_threads(), t = omp_get_thread_num();
+    const int n_pipe = nt < k ? (nt < SW_WAVE_THREADS ? nt : SW_WAVE_THREADS) : (k < SW_WAVE_THREADS ? k : SW_WAVE_THREADS);
+    const ptrdiff_t last = (ptrdiff_t)m->grid.ny + pl->wave_tail, gap = pl->wave_gap;
+    long *done = m->wave_done;   /* done[8 t]: the last iteration thread t's last step has finished */
+    if (t < n_pipe)
+        __atomic_store_n(&done[8 * t], LONG_MIN, __ATOMIC_RELAXED);
+    SW_OMP(barrier)
+    if (t < n_pipe) {
+        const int q0 = k * t / n_pipe, q1 = k * (t + 1) / n_pipe, n_q = q1 - q0;
+        block b = block_of(m, 0, 1);
+        b.buf = sw_model_obs_buffer(m, t);
+        const int ghosts_on = m->kernels->edge_velocities && m->n_edge;
+        const ptrdiff_t end = last + (ptrdiff_t)(n_q - 1) * gap;
+        for (ptrdiff_t front = 1; front <= end; front++) {
+            if (t > 0)   /* step q0 - 1 has passed every row step q0's iteration `front` touches */
+                wave_wait(&done[8 * (t - 1)], front + gap < last ? front + gap : last);
+            for (int q = q0; q < q1; q++) {
+                const ptrdiff_t i = front - (ptrdiff_t)(q - q0) * gap;
+                if (in(i, 1, last))
+                    wave_iteration(m, &b, i, q, ghosts_on);
+            }
+            __atomic_store_n(&done[8 * t], front - (ptrdiff_t)(n_q - 1) * gap, __ATOMIC_RELEASE);
+        }
+    }
+    SW_OMP(barrier)
+    SW_OMP(single)
+    {
+        m->steps += k;
+        m->time = (double)m->steps * m->dt;
+    }   /* the end of `single` is a barrier */
 }

@@ -42,7 +42,28 @@ typedef struct {
     int obs_lag;                         /* a row is final obs_lag iterations after its continuity */
     int periodic_x, periodic_y;          /* 1 when west/east (south/north) are periodic */
     int ghosts_before_obs;               /* 1: rows observed after the sweep wait for the ghosts */
+
+    /* Several steps per sweep (sw_stepper_steps): a wavefront over rows in which step q + 1 runs the
+     * iteration of the one-step sweep that lies `wave_gap` rows behind step q's. In iteration i of a
+     * step: continuity of row i, stage s on row i - lag[s], the ghost velocities of the ghosts whose
+     * inner cell is in row i - wave_ghost_lag, the observation of row i - wave_obs_lag. */
+    int wave_reach;                      /* rows a stage or an observer reads beyond its own: the most of
+                                          * any |lo|, |hi| declared (at least 1) */
+    int wave_ghost_lag;                  /* max_lag + SW_GHOST_REACH */
+    int wave_obs_lag;                    /* >= obs_lag, and after the ghosts a row's values may read */
+    int wave_tail;                       /* iterations of a step past row ny: the largest lag */
+    int wave_gap;                        /* rows between the iterations of consecutive steps: more than
+                                          * every row one iteration touches (wave_tail + 2 wave_reach + 3
+                                          * below it, wave_reach above) */
 } sw_step_plan;
+
+/* Rows from a ghost's inner cell that a layout's edge_velocities reads (the inner and the neighbouring
+ * velocities): the wavefront runs a row's ghosts this far behind the momentum stages. The bitwise tests
+ * of the wavefront against one step per sweep (test_wave) hold every layout to it. */
+#define SW_GHOST_REACH 2
+
+/* The most threads a wavefront uses (sw_stepper_steps): the others of a larger team wait. */
+#define SW_WAVE_THREADS 64
 
 /* Derives the plan for layout kernels k with the momentum stages of `variant` and the given edges.
  * SW_OK, or SW_ERR_USAGE naming what is inconsistent in the layout's declarations (a field written
@@ -58,6 +79,16 @@ typedef struct sw_model sw_model;
  * or outside one. Through sw_model_step only (it sets the floating-point mode). */
 void sw_stepper_step_f64(sw_model *m);
 void sw_stepper_step_f32(sw_model *m);
+
+/* k steps (k >= 1) in one sweep over memory, with the clock advanced k times (temporal blocking; the
+ * model must be unsplit and not periodic south-north: sw_model_steps checks). The state, the observer's
+ * calls (each row of each step once, with that step's time) and every bit are those of k sw_stepper_step
+ * with a tick after each, for any thread count. The threads form a pipeline: thread t runs steps
+ * k t / T .. k (t + 1) / T - 1 of the k as a wavefront over the whole grid, wave_gap rows behind the
+ * steps before them (a progress counter per thread, read with acquire and written with release). Call as
+ * sw_stepper_step. */
+void sw_stepper_steps_f64(sw_model *m, int k);
+void sw_stepper_steps_f32(sw_model *m, int k);
 
 /* sw_model_surface_build in each precision (surface.c). */
 void sw_surface_build_f64(sw_model *m, int slot, sw_surface_row_fn fn, void *ctx);

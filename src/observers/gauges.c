@@ -26,6 +26,9 @@ struct sw_gauges {
     sw_gauge_stats *stats;    /* [n] from sw_gauges_watch */
     double *prev_eta;         /* [n] elevation at the previous watch, m */
     double prev_time;         /* time of the previous watch, s (NaN before the first) */
+    size_t *by_row;           /* [n] the gauges in the order of their top stencil row (sw_gauges_watch_row) */
+    size_t *row_start;        /* [ny + 1]: the gauges whose top row is j are by_row[row_start[j] ..
+                               * row_start[j + 1]) */
 };
 
 /* Index of the centre at or below coordinate c along an axis of n cells, and the weight of the next. */
@@ -45,6 +48,15 @@ static void axis_weights(double c, double origin, double d, size_t n, size_t *lo
     *lo = (size_t)floor(p);
     *hi = *lo + 1;
     *f = p - (double)*lo;
+}
+
+/* The highest grid row a stencil reads. */
+static size_t top_row(const stencil *s)
+{
+    size_t j = s->j[0];
+    for (int c = 1; c < 4; c++)
+        j = s->j[c] > j ? s->j[c] : j;
+    return j;
 }
 
 static stencil make_stencil(const sw_grid *g, const unsigned char *wet, double x, double y)
@@ -97,6 +109,8 @@ void sw_gauges_free(sw_gauges *gs)
     free(gs->dry);
     free(gs->stats);
     free(gs->prev_eta);
+    free(gs->by_row);
+    free(gs->row_start);
     free(gs);
 }
 
@@ -167,7 +181,9 @@ sw_status sw_gauges_create(const sw_model *m, const double *depth_m, const sw_ga
     gs->stats = calloc(nn, sizeof *gs->stats);
     gs->prev_eta = calloc(nn, sizeof(double));
     gs->prev_time = NAN;
-    if (!gs->stats || !gs->prev_eta || !gs->names || !gs->name_ptrs || !gs->x || !gs->y || !gs->depth || !gs->st || !gs->dry || !gs->time
+    gs->by_row = calloc(nn, sizeof *gs->by_row);
+    gs->row_start = calloc(g->ny + 1, sizeof *gs->row_start);
+    if (!gs->by_row || !gs->row_start || !gs->stats || !gs->prev_eta || !gs->names || !gs->name_ptrs || !gs->x || !gs->y || !gs->depth || !gs->st || !gs->dry || !gs->time
         || !gs->eta || !gs->u || !gs->v || !gs->row) {
         sw_gauges_free(gs);
         return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating %zu gauges x %zu samples", n, max_samples);
@@ -187,6 +203,17 @@ sw_status sw_gauges_create(const sw_model *m, const double *depth_m, const sw_ga
         if (gs->dry[q])
             gs->stats[q].peak_m = gs->stats[q].trough_m = NAN;
     }
+    /* the gauges by their top stencil row (a counting sort): counts, starts, placing (which moves each
+     * start to the next row's), then the starts back one row */
+    for (size_t q = 0; q < n; q++)
+        gs->row_start[top_row(&gs->st[q]) + 1]++;
+    for (size_t j = 0; j < g->ny; j++)
+        gs->row_start[j + 1] += gs->row_start[j];
+    for (size_t q = 0; q < n; q++)
+        gs->by_row[gs->row_start[top_row(&gs->st[q])]++] = q;
+    for (size_t j = g->ny; j > 0; j--)
+        gs->row_start[j] = gs->row_start[j - 1];
+    gs->row_start[0] = 0;
     *out = gs;
     return SW_OK;
 }
@@ -282,12 +309,12 @@ void sw_gauges_table(sw_gauges *gs, sw_gauge_table *out)
 double sw_gauges_depth(const sw_gauges *gs, size_t q) { return gs->depth[q]; }
 int sw_gauges_dry(const sw_gauges *gs, size_t q) { return gs->dry[q]; }
 
-void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m)
+/* sw_gauges_watch for gauge q at time `now`, the previous watch at prev_time. */
+static void watch_one(sw_gauges *gs, const sw_model *m, size_t q, double now, double prev_time, double threshold_m)
 {
-    const double now = sw_model_time(m);
-    for (size_t q = 0; q < gs->n; q++) {
+    {
         if (gs->dry[q])
-            continue;
+            return;
         const stencil *s = &gs->st[q];
         double e = 0;
         for (int c = 0; c < 4; c++)
@@ -296,8 +323,8 @@ void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m)
         if (isnan(st->arrival_s) && fabs(e) >= threshold_m) {
             /* the crossing, interpolated linearly in time from the previous step */
             double a = fabs(gs->prev_eta[q]), b = fabs(e);
-            st->arrival_s = isnan(gs->prev_time) || a >= threshold_m
-                ? now : gs->prev_time + (now - gs->prev_time) * (threshold_m - a) / (b - a);
+            st->arrival_s = isnan(prev_time) || a >= threshold_m
+                ? now : prev_time + (now - prev_time) * (threshold_m - a) / (b - a);
         }
         gs->prev_eta[q] = e;
         if (e > st->peak_m) {
@@ -309,8 +336,24 @@ void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m)
             st->trough_time_s = now;
         }
     }
+}
+
+void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m)
+{
+    const double now = sw_model_time(m);
+    for (size_t q = 0; q < gs->n; q++)
+        watch_one(gs, m, q, now, gs->prev_time, threshold_m);
     gs->prev_time = now;
 }
+
+void sw_gauges_watch_row(sw_gauges *gs, const sw_model *m, size_t j, double time_s, double prev_time_s,
+                         double threshold_m)
+{
+    for (size_t k = gs->row_start[j]; k < gs->row_start[j + 1]; k++)
+        watch_one(gs, m, gs->by_row[k], time_s, prev_time_s, threshold_m);
+}
+
+void sw_gauges_watched(sw_gauges *gs, double time_s) { gs->prev_time = time_s; }
 
 sw_gauge_stats sw_gauges_stats(const sw_gauges *gs, size_t q) { return gs->stats[q]; }
 const char *sw_gauges_name(const sw_gauges *gs, size_t q) { return gs->names[q]; }

@@ -58,6 +58,7 @@ typedef struct {
     _Alignas(64) float *row;   /* [3 nx]: centre eta, u, v of one row */
     int nonfinite;        /* the thread met a NaN or Inf */
     size_t bad_row;       /* the grid row (0 .. ny-1) where it first did, valid with nonfinite */
+    double bad_time;      /* s: the time of that row's state */
     long long seen;       /* segments looked at */
     long long updated;    /* segments whose maps were rewritten */
 } thread_slot;
@@ -339,8 +340,10 @@ static void track_row_in(sw_tracker *t, thread_slot *sl, const sw_model *m, size
         }
     }
     if (bad) {
-        if (!sl->nonfinite)
+        if (!sl->nonfinite || time_s < sl->bad_time) {
             sl->bad_row = j;
+            sl->bad_time = time_s;
+        }
         sl->nonfinite = 1;
     }
     sl->seen += (long long)t->n_seg;
@@ -350,7 +353,7 @@ static void track_row_in(sw_tracker *t, thread_slot *sl, const sw_model *m, size
 /* The row update (see the top of this file): the centre values of row j, at time_s, into the maps.
  * A sw_row_observer (model.h). Threads beyond the slots (a team larger than the tracker was made or
  * attached for) share the overflow slot one at a time: correct, slow, and never the case in sw_run. */
-static void track_row(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre)
+void sw_tracker_observe(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre)
 {
     sw_tracker *t = ctx;
     const int tid = omp_get_thread_num();
@@ -368,7 +371,7 @@ void sw_tracker_update(sw_tracker *t, const sw_model *m)
     const unsigned int saved = sw_fp_flush();   /* the mode the attached update runs in (model.c) */
     SW_OMP(for schedule(static))
     for (size_t j = 0; j < t->ny; j++)
-        track_row(t, m, j, now, NULL);
+        sw_tracker_observe(t, m, j, now, NULL);
     sw_fp_restore(saved);
 }
 
@@ -379,7 +382,7 @@ sw_status sw_tracker_attach(sw_tracker *t, sw_model *m, sw_error *err)
         if (rc != SW_OK)
             return rc;
     }
-    sw_model_set_observer(m, t ? track_row : NULL, t);
+    sw_model_set_observer(m, t ? sw_tracker_observe : NULL, t);
     return SW_OK;
 }
 
@@ -392,14 +395,17 @@ void sw_tracker_segments(const sw_tracker *t, long long *seen, long long *update
     }
 }
 
-int sw_tracker_nonfinite_row(const sw_tracker *t, size_t *row)
+int sw_tracker_nonfinite_row(const sw_tracker *t, size_t *row, double *time_s)
 {
     int bad = 0;
-    for (int q = 0; q <= t->n_threads; q++)
-        if (t->slot[q].nonfinite && (!bad || t->slot[q].bad_row < *row)) {
-            *row = t->slot[q].bad_row;
+    for (int q = 0; q <= t->n_threads; q++) {
+        const thread_slot *sl = &t->slot[q];
+        if (sl->nonfinite && (!bad || sl->bad_time < *time_s || (sl->bad_time == *time_s && sl->bad_row < *row))) {
+            *row = sl->bad_row;
+            *time_s = sl->bad_time;
             bad = 1;
         }
+    }
     return bad;
 }
 

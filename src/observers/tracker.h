@@ -30,6 +30,10 @@ void sw_tracker_update(sw_tracker *t, const sw_model *m);
  * attaching replaces the previous one. SW_OK, or SW_ERR_NOMEM (then nothing is attached). */
 sw_status sw_tracker_attach(sw_tracker *t, sw_model *m, sw_error *err);
 
+/* The row observer sw_tracker_attach sets (ctx: the tracker), for an observer of one's own that also
+ * calls it (sw_run: the tracker and the gauges). Attach first, which sizes the tracker's buffers. */
+void sw_tracker_observe(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre);
+
 /* Segments (rows cut into SW_OBS_SEG cells) the updates have looked at, and how many of them had their
  * maps rewritten, since creation: the share of the grid where the maps were still changing. */
 void sw_tracker_segments(const sw_tracker *t, long long *seen, long long *updated);
@@ -45,10 +49,11 @@ double sw_tracker_max_abs(const sw_tracker *t);
 /* 1 if any update met a NaN or Inf elevation (the run blew up), else 0. Call outside parallel regions. */
 int sw_tracker_nonfinite(const sw_tracker *t);
 
-/* As sw_tracker_nonfinite, and when it is 1 the lowest grid row (0 .. ny-1) where a thread first met it
- * into *row. Cheap (one flag per thread): sw_run asks after every step, between steps, so that a run
- * that blows up stops at once. */
-int sw_tracker_nonfinite_row(const sw_tracker *t, size_t *row);
+/* As sw_tracker_nonfinite, and when it is 1 the earliest state's time where a thread met it into *time_s
+ * and the lowest grid row (0 .. ny-1) where one did at that time into *row. Cheap (one flag per thread):
+ * sw_run asks after every step (or sweep of several steps), so that a run that blows up stops at once
+ * and names the step where it did. */
+int sw_tracker_nonfinite_row(const sw_tracker *t, size_t *row, double *time_s);
 
 /* Grid-scale noise index of the eta_max map: the RMS of eta_max minus its
  * 1-2-1 smoothed copy (separable, weights 1/4, 1/2, 1/4 along x and y), over water cells whose eight

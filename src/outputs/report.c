@@ -8,6 +8,7 @@
 #include <string.h>
 
 #include "base/cpu_share.h"
+#include "base/omp_compat.h"
 #include "forcing/drag.h"
 #include "observers/gauges.h"
 
@@ -671,6 +672,9 @@ static cJSON *plan_object(const sw_scenario *sc, const sw_setup *s, const sw_rat
     cJSON_AddNumberToObject(o, "checkpoint_interval_s", sc->checkpoint_interval_s);
     cJSON_AddNumberToObject(o, "duration_s", sc->duration_s);
     cJSON_AddNumberToObject(o, "memory_bytes", (double)s->total_bytes);
+    char why[200];   /* the schedule the run would choose on this machine's threads (run.h) */
+    cJSON_AddNumberToObject(o, "steps_per_sweep", sw_run_schedule(sc, s, omp_get_max_threads(), 0, 0, why, sizeof why));
+    cJSON_AddStringToObject(o, "schedule", why);
     if (rate && rate->cells_per_s > 0) {
         cJSON_AddNumberToObject(o, "estimated_seconds",
                                 (double)s->n_steps * (double)sw_grid_cells(g) / rate->cells_per_s);
@@ -779,6 +783,8 @@ char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_
     cJSON_AddNumberToObject(run, "threads", r->threads);
     cJSON_AddStringToObject(run, "threads_reason", sw_cpu_share_note(r->threads));   /* "" when none */
     cJSON_AddNumberToObject(run, "cell_updates_per_s", r->cell_updates_per_s);
+    cJSON_AddNumberToObject(run, "steps_per_sweep", r->steps_per_sweep);
+    cJSON_AddStringToObject(run, "schedule", r->schedule);
     cJSON_AddNumberToObject(run, "ranks", r->ranks);
     if (r->ranks > 1) {
         cJSON_AddNumberToObject(run, "halo_rows", (double)r->halo_rows);

@@ -23,6 +23,7 @@
 #include "model/model.h"
 #include "inputs/faults.h"
 #include "outputs/ncwrite.h"
+#include "base/cpu_share.h"
 #include "base/omp_compat.h"
 #include "observers/tracker.h"
 #include "forcing/forcing.h"
@@ -138,6 +139,9 @@ typedef struct {
     sw_ckpt_fingerprint fp;
     char ckpt_path[SW_PATH_MAX];
     sw_split *split;          /* a run split over processes (split.h), or NULL */
+    int wave_k;               /* steps per sweep over memory (sw_run_schedule) */
+    int waving;               /* 1 while a sweep of several steps runs: the gauges are watched row by row by
+                               * the model's observer (run_row), not between steps */
 } run_ctx;
 
 static void snapshot_frame(run_ctx *c)
@@ -204,7 +208,10 @@ static void observe(run_ctx *c, int last)
 {
     sw_model *m = c->model;
     double now = sw_model_time(m);
-    sw_gauges_watch(c->gauges, m, c->sc->arrival_threshold_m);
+    if (c->waving)   /* every step of the sweep was watched row by row (run_row) */
+        sw_gauges_watched(c->gauges, now);
+    else
+        sw_gauges_watch(c->gauges, m, c->sc->arrival_threshold_m);
     if (now >= c->next_sample - 1e-9 * c->sc->gauge_interval_s || last) {
         if (sw_gauges_sample(c->gauges, m, &c->loop_err) != SW_OK) {
             c->stop = 2;
@@ -249,11 +256,12 @@ static void between_steps(run_ctx *c, int last)
     sw_model *m = c->model;
     double now = sw_model_time(m);
     size_t bad_row;
-    if (!c->stop && c->tracker && sw_tracker_nonfinite_row(c->tracker, &bad_row)) {   /* a blow-up stops the run */
+    double bad_s;
+    if (!c->stop && c->tracker && sw_tracker_nonfinite_row(c->tracker, &bad_row, &bad_s)) {   /* a blow-up stops the run */
         const sw_grid *g = &c->setup->grid;
         sw_fail(&c->loop_err, SW_ERR_UNSTABLE, "the run blew up at t = %.6g s (step %lld of %lld): the elevation "
-                "became infinite or NaN on grid row %zu (y = %.6g %s); reduce [run] courant_fraction or dt", now,
-                (long long)llround(now / sw_model_dt(m)), c->setup->n_steps, bad_row,
+                "became infinite or NaN on grid row %zu (y = %.6g %s); reduce [run] courant_fraction or dt", bad_s,
+                (long long)llround(bad_s / sw_model_dt(m)), c->setup->n_steps, bad_row,
                 sw_grid_geographic(g) ? sw_grid_to_deg(g, g->y0_m + ((double)bad_row + 0.5) * g->dy_m)
                                       : (g->y0_m + ((double)bad_row + 0.5) * g->dy_m) / 1000,
                 sw_grid_geographic(g) ? "deg" : "km");
@@ -348,6 +356,52 @@ static int rupture_step(run_ctx *c, long long n, long long n_steps)
     return c->stop;
 }
 
+/* The steps of the sweep that starts at step n: the schedule's c->wave_k, cut to end on the first step
+ * after which the work between steps samples the gauges, takes a snapshot or a checkpoint, or stops (the
+ * same comparisons as observe and between_steps make), and at the last step. Every thread computes the
+ * same number from values written in `single` sections. */
+static int sweep_steps(const run_ctx *c, long long n, long long n_steps)
+{
+    long long k = c->wave_k < n_steps - n ? c->wave_k : n_steps - n;
+    const double dt = sw_model_dt(c->model);
+    for (long long q = 1; q < k; q++) {
+        const double t = (double)(n + q) * dt;
+        if (t >= c->next_sample - 1e-9 * c->sc->gauge_interval_s
+            || (c->frame && t >= c->next_snapshot - 1e-9 * c->sc->snapshot_interval_s)
+            || (c->checkpointing && t >= c->next_checkpoint - 1e-9 * c->sc->checkpoint_interval_s)
+            || (c->opt->stop_after_steps > 0 && n + q >= c->opt->stop_after_steps))
+            return (int)q;
+    }
+    return (int)k;
+}
+
+/* Steps n .. n + k - 1 (k >= 2) in one sweep over memory (sw_model_steps), by every thread of the
+ * enclosing parallel region, then the work between steps once, as after_step does for one step. */
+static void sweep_in_region(run_ctx *c, long long n, int k, long long n_steps)
+{
+    SW_OMP(single)
+    c->waving = 1;   /* the end of `single` publishes it before any row is observed */
+    sw_model_steps(c->model, k);   /* the clock too */
+    SW_OMP(single)
+    {
+        between_steps(c, n + k == n_steps);
+        c->waving = 0;
+    }
+}
+
+/* The model's row observer in a run (sw_run attaches it): the tracker, and during a sweep of several steps
+ * the gauges whose top row it is, watched at that row's step (sw_gauges_watch_row). */
+static void run_row(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre)
+{
+    run_ctx *c = ctx;
+    sw_tracker_observe(c->tracker, m, j, time_s, pre);
+    if (c->waving) {
+        const double dt = sw_model_dt(m);
+        sw_gauges_watch_row(c->gauges, m, j, time_s, (double)(llround(time_s / dt) - 1) * dt,
+                            c->sc->arrival_threshold_m);
+    }
+}
+
 static void time_loop(run_ctx *c)
 {
     const long long n_steps = c->setup->n_steps;
@@ -359,12 +413,51 @@ static void time_loop(run_ctx *c)
             return;
     SW_OMP(parallel)
     {
-        for (long long n = first; n < n_steps; n++) {
-            step_in_region(c, n, n_steps);
+        for (long long n = first; n < n_steps;) {
+            const int k = c->wave_k > 1 ? sweep_steps(c, n, n_steps) : 1;
+            if (k > 1)
+                sweep_in_region(c, n, k, n_steps);
+            else
+                step_in_region(c, n, n_steps);
+            n += k;
             if (c->stop)
                 break;
         }
     }
+}
+
+int sw_run_schedule(const sw_scenario *sc, const sw_setup *setup, int threads, int asked, int split, char *why,
+                    size_t n)
+{
+    const char *no = split ? "the run is split over processes, which exchange halo rows every step"
+                   : sw_forcing_wanted(sc) ? "the forcing changes the model between every two steps"
+                   : sc->edges[SW_SOUTH] == SW_EDGE_PERIODIC ? "the south and north edges are periodic: a step's "
+                                                              "first rows need the step before's last"
+                   : NULL;
+    if (no) {
+        snprintf(why, n, "one step per sweep over memory (%s)", no);
+        return 1;
+    }
+    const size_t cache = sw_cpu_cache_bytes();
+    size_t window = 0;
+    const int k = sw_model_wave_steps_for(setup->layout, sc->precision, &setup->grid, sc->edges, &sc->terms, threads,
+                                          cache, &window);
+    if (asked > 0) {
+        snprintf(why, n, asked == 1 ? "one step per sweep over memory (asked for)"
+                                    : "%d steps per sweep over memory (asked for; the choice would be %d)", asked, k);
+        return asked;
+    }
+    if (k > 1)
+        snprintf(why, n, "%d steps per sweep over memory: a wavefront of rows, %.3g MB, in the %.3g MB cache%s", k,
+                 (double)window / 1e6, (double)cache / 1e6, threads > 1 ? ", the threads as a pipeline of steps" : "");
+    else if (2.0 * (double)sw_model_bytes_for(&setup->grid, sc->precision, setup->layout, &sc->terms) <= (double)cache)
+        snprintf(why, n, "one step per sweep over memory: the model's %.3g MB stay in the %.3g MB cache from one "
+                 "step to the next", (double)sw_model_bytes_for(&setup->grid, sc->precision, setup->layout, &sc->terms) / 1e6,
+                 (double)cache / 1e6);
+    else
+        snprintf(why, n, "one step per sweep over memory: %zu rows are too few to fill a wavefront's pipeline",
+                 setup->grid.ny);
+    return k;
 }
 
 static void file_path(char *out, const sw_run_options *opt, const char *name)
@@ -509,6 +602,11 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         rc = sw_tracker_create(c.model, sc->arrival_threshold_m, res->threads, &c.tracker, err);
     if (rc == SW_OK)
         rc = sw_tracker_attach(c.tracker, c.model, err);   /* after omp_set_num_threads above */
+    if (rc == SW_OK) {   /* the tracker, and the gauges during sweeps of several steps (run_row) */
+        sw_model_set_observer(c.model, run_row, &c);
+        res->steps_per_sweep = c.wave_k = sw_run_schedule(sc, setup, res->threads, opt->steps_per_sweep, split != NULL,
+                                                          res->schedule, sizeof res->schedule);
+    }
     if (rc == SW_OK)
         rc = sw_gauges_create(c.model, setup->depth_m, sc->gauges, sc->n_gauges, setup->n_samples, &c.gauges, err);
     if (rc == SW_OK) {

@@ -54,6 +54,9 @@ typedef struct {
                                    * a job (run/split.h): every rank calls sw_run with the same scenario and
                                    * options but the progress callback; rank 0 writes the files. No sink,
                                    * resume or checkpoints then (SW_ERR_USAGE) */
+    int steps_per_sweep;          /* 0: chosen by sw_run_schedule; >= 1: that many steps per sweep over memory
+                                   * (1: one step per sweep), where the run allows more than one
+                                   * (`run --steps-per-sweep`, for benchmarking) */
 } sw_run_options;
 
 /* What a gauge saw (times in s since the origin; NaN when never reached or the gauge is dry). */
@@ -89,7 +92,17 @@ typedef struct {
     double exchange_s;                /* split runs: wall-clock time in halo exchanges, the most of any rank, s */
     double halo_bytes_per_step;       /* split runs: bytes a rank sends per step, the most of any rank */
     double exchanges_per_step;        /* split runs: halo exchanges per step (each with both neighbours) */
+    int steps_per_sweep;              /* the schedule: steps per sweep over memory (sw_run_schedule) */
+    char schedule[200];               /* the schedule in words, with why (sw_run_schedule) */
 } sw_run_result;
+
+/* The schedule a run of sc will step with on `threads` threads: the steps per sweep over memory (model.h,
+ * sw_model_steps), and in words, with why, into why (n bytes). asked: sw_run_options.steps_per_sweep (0:
+ * the choice of sw_model_wave_steps_for against this machine's cache). One step per sweep when the run
+ * has forcing (it changes the model between every two steps), is split over processes (split != 0) or
+ * has periodic south and north edges, whatever is asked; those and the choice are said in why. */
+int sw_run_schedule(const sw_scenario *sc, const sw_setup *setup, int threads, int asked, int split, char *why,
+                    size_t n);
 
 /* The caution texts are defined once, in run.c; every command's output, help text and output file takes
  * them from these functions. Each returns a static string (never NULL, nothing to free). */

@@ -11,6 +11,7 @@
 
 #include "model/layout.h"
 #include "model/model.h"
+#include "base/cpu_share.h"
 #include "base/omp_compat.h"
 #include "base/real.h"
 #include "observers/tracker.h"
@@ -55,13 +56,6 @@ static void push(samples *s, double x)
         s->v[s->n++] = x;
 }
 
-static size_t llc_bytes(void)
-{
-    long v = sysconf(_SC_LEVEL3_CACHE_SIZE);
-    if (v <= 0)
-        v = sysconf(_SC_LEVEL2_CACHE_SIZE);
-    return v > 0 ? (size_t)v : (size_t)32 << 20;
-}
 
 double sw_bench_triad(size_t n, int repeats)
 {
@@ -682,7 +676,7 @@ sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_err
     }
     res->precision = opt->precision;
     res->real_bytes = (int)sw_precision_bytes(opt->precision);
-    res->llc_bytes = llc_bytes();
+    res->llc_bytes = sw_cpu_cache_bytes();
     const size_t per_cell = 6 * (size_t)res->real_bytes + 1;   /* the six state arrays and the wet mask */
     size_t target = 4 * res->llc_bytes;
     if (target < ((size_t)2 << 30))
