@@ -226,7 +226,7 @@ int cmd_check(int argc, char **argv, const char *history)
         sw_report_plan(stdout, &sc, &setup, &rate);
         char schedule[200];
         sw_run_schedule(&sc, &setup, omp_get_max_threads(), 0, 0, schedule, sizeof schedule);
-        printf("Schedule   %s (on %d threads)\n", schedule, omp_get_max_threads());
+        printf("Schedule   %s (on %d thread%s)\n", schedule, omp_get_max_threads(), omp_get_max_threads() == 1 ? "" : "s");
         if (sc.sweep.present)
             swept = sw_sweep_check(&sc, rate.cells_per_s, stdout, NULL, &err);
         if (swept == SW_OK)

@@ -120,7 +120,7 @@ sw_status sw_step_plan_build(const sw_layout_kernels *k, sw_terms_variant varian
             reach = imax(reach, imax(-k->observes[f].lo, k->observes[f].hi));
     out->wave_reach = reach;
     out->wave_ghost_lag = out->max_lag + SW_GHOST_REACH;
-    out->wave_obs_lag = imax(out->obs_lag, k->edge_velocities ? out->wave_ghost_lag + imax(reach, SW_GHOST_REACH) : 0);
+    out->wave_obs_lag = imax(out->obs_lag, out->ghosts_before_obs ? out->wave_ghost_lag + reach + 1 : 0);
     out->wave_tail = imax(imax(out->max_lag, out->wave_ghost_lag), out->wave_obs_lag);
     out->wave_gap = out->wave_tail + 3 * reach + 4;
     return SW_OK;

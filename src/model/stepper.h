@@ -50,17 +50,20 @@ typedef struct {
     int wave_reach;                      /* rows a stage or an observer reads beyond its own: the most of
                                           * any |lo|, |hi| declared (at least 1) */
     int wave_ghost_lag;                  /* max_lag + SW_GHOST_REACH */
-    int wave_obs_lag;                    /* >= obs_lag, and after the ghosts a row's values may read */
+    int wave_obs_lag;                    /* >= obs_lag, and, where the centre values read halo cells (E),
+                                          * after the ghosts of every row they read */
     int wave_tail;                       /* iterations of a step past row ny: the largest lag */
     int wave_gap;                        /* rows between the iterations of consecutive steps: more than
                                           * every row one iteration touches (wave_tail + 2 wave_reach + 3
                                           * below it, wave_reach above) */
 } sw_step_plan;
 
-/* Rows from a ghost's inner cell that a layout's edge_velocities reads (the inner and the neighbouring
- * velocities): the wavefront runs a row's ghosts this far behind the momentum stages. The bitwise tests
- * of the wavefront against one step per sweep (test_wave) hold every layout to it. */
-#define SW_GHOST_REACH 2
+/* Rows beyond a ghost's inner row that a layout's edge_velocities reads (each layout's ghost velocity is
+ * made from its own elevation and the inner cell's velocities, on the inner row): the wavefront runs a
+ * row's ghosts this far behind the momentum stages' last row. The bitwise tests of the wavefront against
+ * one step per sweep (test_wave.c, test_wave_run.py) hold every layout to it: with the ghosts one row
+ * earlier they fail. */
+#define SW_GHOST_REACH 0
 
 /* The most threads a wavefront uses (sw_stepper_steps): the others of a larger team wait. */
 #define SW_WAVE_THREADS 64

@@ -435,7 +435,7 @@ int sw_run_schedule(const sw_scenario *sc, const sw_setup *setup, int threads, i
                                                               "first rows need the step before's last"
                    : NULL;
     if (no) {
-        snprintf(why, n, "one step per sweep over memory (%s)", no);
+        snprintf(why, n, "one step per sweep over memory (%s%s)", no, asked > 1 ? "; --steps-per-sweep is not taken" : "");
         return 1;
     }
     const size_t cache = sw_cpu_cache_bytes();
