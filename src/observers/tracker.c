@@ -215,6 +215,58 @@ sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads
 /* The maps a segment's update rewrites: those whose trigger a new value passed (seg_summary). */
 enum { MAP_MAX = 1, MAP_MIN = 2, MAP_SPEED = 4, MAP_ARRIVAL = 8, MAP_ALL = 15 };
 
+/* The maps MAX, MIN and SPEED that `which` names, and the check for NaN and Inf, in one pass over cells
+ * a .. b-1: update_cells' loops for those maps fused, so that the row values and the wet mask are read
+ * once. A map's value is stored back unchanged where the cell does not pass it (the same bits). */
+static inline __attribute__((always_inline)) int fused_maps(sw_tracker *t, size_t j, size_t a, size_t b,
+                                                            const float *restrict e, const float *restrict uu,
+                                                            const float *restrict vv, float now, seg_summary *sum,
+                                                            const int do_max, const int do_min, const int do_speed)
+{
+    const size_t r = j * t->nx;
+    const float fl = t->floor;
+    const unsigned char *restrict wet = t->wet + r;
+    float *restrict mx = t->eta_max + r, *restrict tmx = t->eta_max_time + r, *restrict mn = t->eta_min + r;
+    float *restrict sp = t->speed2_max + r;
+    float lo_max = INFINITY, hi_min = -INFINITY, lo_sp = INFINITY;
+    int bad = 0;
+    SW_OMP(simd reduction(min : lo_max, lo_sp) reduction(max : hi_min) reduction(| : bad))
+    for (size_t i = a; i < b; i++) {
+        const float s2_raw = uu[i] * uu[i] + vv[i] * vv[i];
+        bad |= !(fabsf(e[i]) <= FLT_MAX) | !(s2_raw <= FLT_MAX);   /* NaN or Inf in the state */
+        const float ei = fabsf(e[i]) < fl ? 0.0f : e[i];
+        const int w = wet[i] != 0;
+        if (do_max) {
+            const float old = mx[i];
+            const int higher = ei > old;
+            const float m = higher ? ei : old;
+            mx[i] = m;
+            if (higher)
+                tmx[i] = now;
+            lo_max = w && m < lo_max ? m : lo_max;
+        }
+        if (do_min) {
+            const float old = mn[i];
+            const float m = ei < old ? ei : old;
+            mn[i] = m;
+            hi_min = w && m > hi_min ? m : hi_min;
+        }
+        if (do_speed) {
+            const float s2 = s2_raw < SPEED2_FLOOR ? 0.0f : s2_raw, old = sp[i];
+            const float m = s2 > old ? s2 : old;
+            sp[i] = m;
+            lo_sp = w && m < lo_sp ? m : lo_sp;
+        }
+    }
+    if (do_max)
+        sum->up = trigger(lo_max, fl);
+    if (do_min)
+        sum->down = -trigger(-hi_min, fl);
+    if (do_speed)
+        sum->faster = trigger(lo_sp, SPEED2_FLOOR);
+    return bad;
+}
+
 /* Folds cells [a, b) of row j (centre values e, uu, vv, indexed from the row's start) into the maps
  * named by `which` (MAP_...), cell by cell, and renews their parts of the segment's summary. A map
  * whose trigger no value passed cannot change (seg_summary), so it is neither read nor written and its
@@ -230,56 +282,16 @@ static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float
     const size_t r = j * t->nx;
     const float thr = t->threshold, fl = t->floor;
     const unsigned char *restrict wet = t->wet + r;
-    int bad = 0;
-    SW_OMP(simd reduction(| : bad))
-    for (size_t i = a; i < b; i++)   /* NaN or Inf in the state (the floor leaves both as they are) */
-        bad |= !(fabsf(e[i]) <= FLT_MAX) | !(uu[i] * uu[i] + vv[i] * vv[i] <= FLT_MAX);
-    /* water cells only in the summaries: land reads 0 for ever, and its maps (0) would pin the triggers
-     * to the floor; the comparisons are not fminf / fmaxf, libm calls per cell */
-    if (which & MAP_MAX) {
-        float *restrict mx = t->eta_max + r, *restrict tmx = t->eta_max_time + r;
-        float lo_max = INFINITY;
-        SW_OMP(simd reduction(min : lo_max))
-        for (size_t i = a; i < b; i++) {
-            const float ei = fabsf(e[i]) < fl ? 0.0f : e[i], old = mx[i];
-            const int higher = ei > old;
-            if (higher) {
-                mx[i] = ei;
-                tmx[i] = now;
-            }
-            const float m = higher ? ei : old;
-            lo_max = wet[i] && m < lo_max ? m : lo_max;
-        }
-        sum->up = trigger(lo_max, fl);
-    }
-    if (which & MAP_MIN) {
-        float *restrict mn = t->eta_min + r;
-        float hi_min = -INFINITY;
-        SW_OMP(simd reduction(max : hi_min))
-        for (size_t i = a; i < b; i++) {
-            const float ei = fabsf(e[i]) < fl ? 0.0f : e[i], old = mn[i];
-            const int lower = ei < old;
-            if (lower)
-                mn[i] = ei;
-            const float m = lower ? ei : old;
-            hi_min = wet[i] && m > hi_min ? m : hi_min;
-        }
-        sum->down = -trigger(-hi_min, fl);
-    }
-    if (which & MAP_SPEED) {
-        float *restrict sp = t->speed2_max + r;
-        float lo_sp = INFINITY;
-        SW_OMP(simd reduction(min : lo_sp))
-        for (size_t i = a; i < b; i++) {
-            const float s2_raw = uu[i] * uu[i] + vv[i] * vv[i], s2 = s2_raw < SPEED2_FLOOR ? 0.0f : s2_raw;
-            const float old = sp[i];
-            const int faster = s2 > old;
-            if (faster)
-                sp[i] = s2;
-            const float m = faster ? s2 : old;
-            lo_sp = wet[i] && m < lo_sp ? m : lo_sp;
-        }
-        sum->faster = trigger(lo_sp, SPEED2_FLOOR);
+    int bad;
+    switch (which & (MAP_MAX | MAP_MIN | MAP_SPEED)) {   /* one copy of the pass for each set of maps */
+    case MAP_MAX: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 1, 0, 0); break;
+    case MAP_MIN: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 0, 1, 0); break;
+    case MAP_MAX | MAP_MIN: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 1, 1, 0); break;
+    case MAP_SPEED: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 0, 0, 1); break;
+    case MAP_MAX | MAP_SPEED: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 1, 0, 1); break;
+    case MAP_MIN | MAP_SPEED: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 0, 1, 1); break;
+    case MAP_MAX | MAP_MIN | MAP_SPEED: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 1, 1, 1); break;
+    default: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 0, 0, 0); break;
     }
     if (which & MAP_ARRIVAL) {
         float *restrict arr = t->arrival + r;
@@ -287,10 +299,11 @@ static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float
         SW_OMP(simd reduction(| : waiting))
         for (size_t i = a; i < b; i++) {
             const float ei = fabsf(e[i]) < fl ? 0.0f : e[i], old = arr[i];
-            const int arrives = old != old && fabsf(ei) >= thr;   /* NaN until first reached */
+            const int unset = old != old;   /* NaN until first reached */
+            const int arrives = unset & (fabsf(ei) >= thr);   /* & and |, not && and ||: no branch per cell */
             if (arrives)
                 arr[i] = now;
-            waiting |= wet[i] && !arrives && old != old;
+            waiting |= (wet[i] != 0) & unset & !arrives;
         }
         sum->waiting = waiting;
     }
