@@ -187,6 +187,22 @@ static void shift_slots(sw_forcing *f, sw_model *m)
     f->t_slot[1] = NAN;
 }
 
+/* The forcing times ta <= tb of the slabs a step ending at t takes (a storm's update times around t, or the
+ * weather file's times around it, ka the index of ta there; a storm leaves ka at 0). */
+static void slab_times(const sw_forcing *f, double t, double *ta, double *tb, size_t *ka)
+{
+    *ka = 0;
+    if (f->storm) {
+        const double n = floor(t / f->update_s);
+        *ta = n * f->update_s;
+        *tb = *ta + f->update_s;
+    } else {
+        *ka = sw_weather_locate(f->weather, t);
+        *ta = sw_weather_time(f->weather, *ka);
+        *tb = sw_weather_count(f->weather) > 1 ? sw_weather_time(f->weather, *ka + 1) : *ta;
+    }
+}
+
 /* Decides, for a step ending at t, which slots to build and readies their sources (one thread). */
 static void plan(sw_forcing *f, sw_model *m, double t)
 {
@@ -194,16 +210,8 @@ static void plan(sw_forcing *f, sw_model *m, double t)
     if (f->failed || (!f->storm && !f->weather))
         return;
     double ta, tb;
-    size_t ka = 0;
-    if (f->storm) {
-        const double n = floor(t / f->update_s);
-        ta = n * f->update_s;
-        tb = ta + f->update_s;
-    } else {
-        ka = sw_weather_locate(f->weather, t);
-        ta = sw_weather_time(f->weather, ka);
-        tb = sw_weather_count(f->weather) > 1 ? sw_weather_time(f->weather, ka + 1) : ta;
-    }
+    size_t ka;
+    slab_times(f, t, &ta, &tb, &ka);
     if (f->t_slot[0] == ta && f->t_slot[1] == tb)
         return;
     if (f->t_slot[1] == ta)
@@ -245,6 +253,33 @@ void sw_forcing_advance(sw_forcing *f, sw_model *m, double t_next_s)
         }
         if (f->level)
             sw_model_set_edge_level(m, sw_series_at(f->level, t_next_s));
+    }
+}
+
+int sw_forcing_steps_on_slabs(const sw_forcing *f, const double *t_next_s, int k)
+{
+    if (!f->storm && !f->weather)
+        return k;
+    double ta, tb;
+    size_t ka;
+    slab_times(f, t_next_s[0], &ta, &tb, &ka);
+    for (int q = 1; q < k; q++) {
+        double a, b;
+        slab_times(f, t_next_s[q], &a, &b, &ka);
+        if (a != ta || b != tb)
+            return q;
+    }
+    return k;
+}
+
+void sw_forcing_per_step(const sw_forcing *f, const double *t_next_s, int k, double level_now_m,
+                         sw_step_forcing *per_step)
+{
+    const int air = f->storm || f->weather;
+    const double ta = f->t_slot[0], tb = f->t_slot[1];
+    for (int q = 0; q < k; q++) {   /* as sw_forcing_advance sets them (the model clamps the weight) */
+        per_step[q].surface_w = air && tb > ta ? (t_next_s[q] - ta) / (tb - ta) : 0;
+        per_step[q].edge_level_m = f->level ? sw_series_at(f->level, t_next_s[q]) : level_now_m;
     }
 }
 

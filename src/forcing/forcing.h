@@ -56,6 +56,19 @@ void sw_forcing_advance(sw_forcing *f, sw_model *m, double t_next_s);
 /* 1 when an advance failed (its cause copied into err when err is not NULL), else 0. */
 int sw_forcing_failed(const sw_forcing *f, sw_error *err);
 
+/* For a sweep of k steps over memory (model.h, sw_model_steps_forced) whose steps end at t_next_s[0 ..
+ * k-1] (s, each computed as the run computes it): how many of them, from the first, take the slabs the
+ * first one takes (at least 1; k without a storm or weather file). A sweep ends before a step that needs
+ * new slabs. Reads f's fixed settings only: any thread may call it. */
+int sw_forcing_steps_on_slabs(const sw_forcing *f, const double *t_next_s, int k);
+
+/* The slab weight and the edge level sw_forcing_advance would set for each of those k steps, into
+ * per_step[0 .. k-1], sw_forcing_advance having been called for t_next_s[0] (so the slabs are built):
+ * the weight 0 without a storm or weather file (a model without slabs never has another), the level
+ * level_now_m (the model's) without a level series. */
+void sw_forcing_per_step(const sw_forcing *f, const double *t_next_s, int k, double level_now_m,
+                         sw_step_forcing *per_step);
+
 /* 1 when the forcing has an atmosphere (a storm or a weather file), 0 when it is a level series only. */
 int sw_forcing_has_air(const sw_forcing *f);
 

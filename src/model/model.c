@@ -637,20 +637,54 @@ const char *sw_model_wave_refusal(const sw_model *m)
     return NULL;
 }
 
-void sw_model_steps(sw_model *m, int k)
+static double clamp01(double w) { return w < 0 ? 0 : w > 1 ? 1 : w; }
+
+/* The views of a wavefront's k steps (model_impl.h): m->view with each step's terms, weight and level
+ * (per_step NULL: the model's own for every step). By one thread. */
+static void wave_views(sw_model *m, int k, const sw_step_forcing *per_step)
+{
+    for (int q = 0; q < k; q++) {
+        m->wave_terms[q] = m->terms;
+        if (per_step)
+            m->wave_terms[q].surface_w = clamp01(per_step[q].surface_w);
+        m->wave_view[q] = m->view;
+        m->wave_view[q].terms = &m->wave_terms[q];
+        m->wave_level[q] = per_step ? per_step[q].edge_level_m : m->edge_level;
+    }
+}
+
+void sw_model_steps_forced(sw_model *m, int k, const sw_step_forcing *per_step)
 {
     if (k > 1 && !sw_model_wave_refusal(m)) {
+        SW_OMP(single)
+        wave_views(m, k, per_step);   /* the end of `single` publishes them */
         const unsigned int saved = sw_fp_flush();
         m->steps_fn(m, k);
         sw_fp_restore(saved);
-        return;
+    } else {
+        for (int q = 0; q < k; q++) {
+            if (per_step) {
+                SW_OMP(single)
+                {
+                    sw_model_surface_weight(m, per_step[q].surface_w);
+                    sw_model_set_edge_level(m, per_step[q].edge_level_m);
+                }
+            }
+            step_flushed(m);
+            SW_OMP(single)
+            sw_model_tick(m);
+        }
     }
-    for (int q = 0; q < k; q++) {
-        step_flushed(m);
+    if (per_step) {
         SW_OMP(single)
-        sw_model_tick(m);
+        {
+            sw_model_surface_weight(m, per_step[k - 1].surface_w);
+            sw_model_set_edge_level(m, per_step[k - 1].edge_level_m);
+        }
     }
 }
+
+void sw_model_steps(sw_model *m, int k) { sw_model_steps_forced(m, k, NULL); }
 
 int sw_model_wave_steps_for(const sw_layout *layout, sw_precision precision, const sw_grid *g,
                             const sw_edge_kind edges[4], const sw_terms_config *terms, int threads,
@@ -801,9 +835,10 @@ void sw_model_surface_shift(sw_model *m)
     m->terms.surface_y[1] = m->slab[1][1];
 }
 
-void sw_model_surface_weight(sw_model *m, double w) { m->terms.surface_w = w < 0 ? 0 : w > 1 ? 1 : w; }
+void sw_model_surface_weight(sw_model *m, double w) { m->terms.surface_w = clamp01(w); }
 
 void sw_model_set_edge_level(sw_model *m, double level_m) { m->edge_level = level_m; }
+double sw_model_edge_level(const sw_model *m) { return m->edge_level; }
 
 size_t sw_model_state_parts(sw_model *m, void **ptr, size_t *bytes)
 {

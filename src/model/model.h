@@ -126,6 +126,20 @@ const char *sw_model_wave_refusal(const sw_model *m);
  * (from every thread of a parallel region, or outside one), but not followed by sw_model_tick. */
 void sw_model_steps(sw_model *m, int k);
 
+/* What changes from step to step of a run with forcing: the slab weight (sw_model_surface_weight) and the
+ * edge level (sw_model_set_edge_level) that step q of a sweep takes. */
+typedef struct {
+    double surface_w;   /* 0 .. 1 (clamped as sw_model_surface_weight does) */
+    double edge_level_m;/* m */
+} sw_step_forcing;
+
+/* sw_model_steps with step q of the k taking the weight and level of per_step[q] (k entries), as k times
+ * (sw_model_surface_weight, sw_model_set_edge_level, sw_model_step, sw_model_tick) would, bit for bit: the
+ * slabs themselves stay as they are for the k steps (the caller cuts its sweeps where they change). After
+ * it the model holds the last step's weight and level. per_step must stay valid and unchanged until the
+ * call returns in every thread (share one array). */
+void sw_model_steps_forced(sw_model *m, int k, const sw_step_forcing *per_step);
+
 /* The steps per sweep the model runs fastest with, by the bytes model: as many as keep the wavefront's
  * window of rows (steps x the gap between them x the bytes a row's update touches) within half of
  * cache_bytes (the last-level cache), at most SW_WAVE_MAX_STEPS, a multiple of `threads` when that
@@ -229,6 +243,9 @@ void sw_model_surface_weight(sw_model *m, double w);
  * (sw_edge_cell), so that the level on the edge's node line follows a tide or a remote surge. 0 at
  * creation (mean sea level). Call from one thread, between steps. */
 void sw_model_set_edge_level(sw_model *m, double level_m);
+
+/* The level `level` edges hold now, m (sw_model_set_edge_level). */
+double sw_model_edge_level(const sw_model *m);
 
 /* Where the layout puts u[k] and v[k] relative to the centre of grid cell (i, j) sharing their index:
  * the position (m) of the u and v points of cell (i, j) (sw_layout.u_at, v_at). */

@@ -85,6 +85,10 @@ struct sw_model {
     int obs_threads;
 
     void (*steps_fn)(sw_model *m, int k);   /* the wavefront of this precision (sw_stepper_steps) */
+    sw_view wave_view[SW_WAVE_MAX_STEPS];   /* the view step q of a wavefront runs with: m->view but for its
+                                             * terms (sw_model_steps_forced) */
+    sw_terms wave_terms[SW_WAVE_MAX_STEPS]; /* m->terms with step q's slab weight */
+    double wave_level[SW_WAVE_MAX_STEPS];   /* step q's edge level, m */
     _Alignas(64) long wave_done[8 * SW_WAVE_THREADS];   /* the wavefront's progress, one 64-byte line a thread */
 };
 

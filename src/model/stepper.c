@@ -197,11 +197,12 @@ static void periodic_row(const sw_model *m, sw_real *restrict f, ptrdiff_t r)
     }
 }
 
-/* Stage s on row r, with the periodic copies of what it wrote. */
-static void run_stage(sw_model *m, int s, ptrdiff_t r)
+/* Stage s on row r with view v (the model's, or a wavefront step's), with the periodic copies of what it
+ * wrote. */
+static void run_stage_in(sw_model *m, const sw_view *v, int s, ptrdiff_t r)
 {
     const sw_stage *st = m->plan.stage[s];
-    st->run(&m->view, (size_t)r);
+    st->run(v, (size_t)r);
     if (m->plan.periodic_x || m->plan.periodic_y)
         for (int f = 0; f < SW_N_FIELDS; f++)
             if (st->writes & SW_WRITES(f))
@@ -209,15 +210,18 @@ static void run_stage(sw_model *m, int s, ptrdiff_t r)
                                                                                             : SW_V(&m->view, v), r);
 }
 
-/* After the continuity of row j: the ghosts whose inner cell is in row j (model_impl.h), then the periodic
- * copies of the row, and of a ghost row of the south or north edge when west and east are periodic. */
-static void after_continuity(sw_model *m, ptrdiff_t j)
+static void run_stage(sw_model *m, int s, ptrdiff_t r) { run_stage_in(m, &m->view, s, r); }
+
+/* After the continuity of row j, with view v and edge level `edge_level` (m; the model's, or a wavefront
+ * step's): the ghosts whose inner cell is in row j (model_impl.h), then the periodic copies of the row,
+ * and of a ghost row of the south or north edge when west and east are periodic. */
+static void after_continuity_in(sw_model *m, const sw_view *v, double edge_level, ptrdiff_t j)
 {
-    sw_real *restrict eta = SW_V(&m->view, eta);
+    sw_real *restrict eta = SW_V(v, eta);
     for (size_t q = m->edge_row[j]; q < m->edge_row[j + 1]; q++) {
         const sw_edge_cell *oc = &m->edge[q];
         /* a level edge holds L less the air's head there: the sea beyond it at its inverse barometer */
-        const double level = m->edge_level - (double)sw_edge_head(&m->view, q);
+        const double level = edge_level - (double)sw_edge_head(v, q);
         eta[oc->ghost] = (sw_real)oc->keep * eta[oc->ghost] + (sw_real)oc->take * eta[oc->inner]
                        + (sw_real)(oc->level_gain * level);
     }
@@ -230,6 +234,8 @@ static void after_continuity(sw_model *m, ptrdiff_t j)
             periodic_row(m, eta, (ptrdiff_t)m->grid.ny + 1);
     }
 }
+
+static void after_continuity(sw_model *m, ptrdiff_t j) { after_continuity_in(m, &m->view, m->edge_level, j); }
 
 static int in(ptrdiff_t r, ptrdiff_t lo, ptrdiff_t hi) { return r >= lo && r <= hi; }
 
@@ -375,11 +381,11 @@ void SW_NAME(sw_stepper_step)(sw_model *m)
 
 /* The ghost velocities of the ghosts whose inner cell is in padded row r, and the periodic copies of a
  * ghost row of the south or north edge they complete (as ghosts() does after all of them). */
-static void wave_ghosts(sw_model *m, ptrdiff_t r)
+static void wave_ghosts(sw_model *m, const sw_view *v, ptrdiff_t r)
 {
     const size_t q0 = m->edge_row[r], q1 = m->edge_row[r + 1];
     if (q1 > q0)
-        m->kernels->edge_velocities(&m->view, m->edge, q0, q1);
+        m->kernels->edge_velocities(v, m->edge, q0, q1);
     const ptrdiff_t ny = (ptrdiff_t)m->grid.ny;
     if (m->plan.periodic_x && (r == 1 || r == ny)) {
         sw_real *f[3] = {SW_V(&m->view, eta), SW_V(&m->view, u), SW_V(&m->view, v)};
@@ -396,15 +402,17 @@ static void wave_iteration(sw_model *m, const block *b, ptrdiff_t i, int q, int 
     const sw_step_plan *pl = &m->plan;
     const ptrdiff_t ny = (ptrdiff_t)m->grid.ny, obs = pl->wave_obs_lag;
     const int fused = m->observed && b->buf && m->kernels->continuity_observed;
+    const sw_view *v = &m->wave_view[q];   /* the model's view with step q's forcing weight */
+    const double level = m->wave_level[q];
     if (i <= ny) {
         const ptrdiff_t f = i - obs - 1;   /* final since the last iteration */
         if (fused && f >= 1) {
-            m->kernels->continuity_observed(&m->view, (size_t)i, (size_t)f, b->buf);
-            after_continuity(m, i);
+            m->kernels->continuity_observed(v, (size_t)i, (size_t)f, b->buf);
+            after_continuity_in(m, v, level, i);
             sw_model_observe_row_ahead(m, (size_t)f, b->buf, q);
         } else {
-            pl->stage[0]->run(&m->view, (size_t)i);
-            after_continuity(m, i);
+            pl->stage[0]->run(v, (size_t)i);
+            after_continuity_in(m, v, level, i);
         }
         if (m->prefetch_rows)
             prefetch_momentum_rows(m, i + 1);
@@ -412,10 +420,10 @@ static void wave_iteration(sw_model *m, const block *b, ptrdiff_t i, int q, int 
     for (int st = 1; st < pl->n_stages; st++) {
         const ptrdiff_t r = i - pl->lag[st];
         if (in(r, b->st[st].first, b->st[st].last))
-            run_stage(m, st, r);
+            run_stage_in(m, v, st, r);
     }
     if (ghosts_on && in(i - pl->wave_ghost_lag, 1, ny))
-        wave_ghosts(m, i - pl->wave_ghost_lag);
+        wave_ghosts(m, v, i - pl->wave_ghost_lag);
     if (m->observed) {
         const ptrdiff_t f = i - obs;
         if (in(f, 1, ny) && !(fused && f + obs + 1 <= ny))

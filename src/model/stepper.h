@@ -86,7 +86,8 @@ void sw_stepper_step_f32(sw_model *m);
 /* k steps (k >= 1) in one sweep over memory, with the clock advanced k times (temporal blocking; the
  * model must be unsplit and not periodic south-north: sw_model_steps checks). The state, the observer's
  * calls (each row of each step once, with that step's time) and every bit are those of k sw_stepper_step
- * with a tick after each, for any thread count. The threads form a pipeline: thread t runs steps
+ * with a tick after each, for any thread count. Step q runs with the view m->wave_view[q] and the edge
+ * level m->wave_level[q] (sw_model_steps_forced sets them). The threads form a pipeline: thread t runs steps
  * k t / T .. k (t + 1) / T - 1 of the k as a wavefront over the whole grid, wave_gap rows behind the
  * steps before them (a progress counter per thread, read with acquire and written with release). Call as
  * sw_stepper_step. */

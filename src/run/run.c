@@ -142,6 +142,7 @@ typedef struct {
     int wave_k;               /* steps per sweep over memory (sw_run_schedule) */
     int waving;               /* 1 while a sweep of several steps runs: the gauges are watched row by row by
                                * the model's observer (run_row), not between steps */
+    sw_step_forcing per_step[SW_WAVE_MAX_STEPS]; /* the forcing of each step of a sweep (sweep_in_region) */
 } run_ctx;
 
 static void snapshot_frame(run_ctx *c)
@@ -369,8 +370,16 @@ static int sweep_steps(const run_ctx *c, long long n, long long n_steps)
         if (t >= c->next_sample - 1e-9 * c->sc->gauge_interval_s
             || (c->frame && t >= c->next_snapshot - 1e-9 * c->sc->snapshot_interval_s)
             || (c->checkpointing && t >= c->next_checkpoint - 1e-9 * c->sc->checkpoint_interval_s)
-            || (c->opt->stop_after_steps > 0 && n + q >= c->opt->stop_after_steps))
-            return (int)q;
+            || (c->opt->stop_after_steps > 0 && n + q >= c->opt->stop_after_steps)) {
+            k = q;
+            break;
+        }
+    }
+    if (c->forcing && k > 1) {   /* and before a step that needs the forcing's next slabs */
+        double t_next[SW_WAVE_MAX_STEPS];
+        for (long long q = 0; q < k; q++)
+            t_next[q] = (double)(n + 1 + q) * dt;
+        return sw_forcing_steps_on_slabs(c->forcing, t_next, (int)k);
     }
     return (int)k;
 }
@@ -379,11 +388,24 @@ static int sweep_steps(const run_ctx *c, long long n, long long n_steps)
  * enclosing parallel region, then the work between steps once, as after_step does for one step. */
 static void sweep_in_region(run_ctx *c, long long n, int k, long long n_steps)
 {
-    SW_OMP(single)
-    c->waving = 1;   /* the end of `single` publishes it before any row is observed */
-    sw_model_steps(c->model, k);   /* the clock too */
+    const double dt = sw_model_dt(c->model);
+    if (c->forcing)   /* the slabs of the first step, which serve all k (sweep_steps) */
+        sw_forcing_advance(c->forcing, c->model, (double)(n + 1) * dt);
     SW_OMP(single)
     {
+        c->waving = 1;   /* the end of `single` publishes it, and per_step, before any row is observed */
+        if (c->forcing) {   /* each step's slab weight and edge level */
+            double t_next[SW_WAVE_MAX_STEPS];
+            for (int q = 0; q < k; q++)
+                t_next[q] = (double)(n + 1 + q) * dt;
+            sw_forcing_per_step(c->forcing, t_next, k, sw_model_edge_level(c->model), c->per_step);
+        }
+    }
+    sw_model_steps_forced(c->model, k, c->forcing ? c->per_step : NULL);   /* the clock too */
+    SW_OMP(single)
+    {
+        if (sw_forcing_failed(c->forcing, &c->loop_err))
+            c->stop = 2;
         between_steps(c, n + k == n_steps);
         c->waving = 0;
     }
@@ -430,7 +452,6 @@ int sw_run_schedule(const sw_scenario *sc, const sw_setup *setup, int threads, i
                     size_t n)
 {
     const char *no = split ? "the run is split over processes, which exchange halo rows every step"
-                   : sw_forcing_wanted(sc) ? "the forcing changes the model between every two steps"
                    : sc->edges[SW_SOUTH] == SW_EDGE_PERIODIC ? "the south and north edges are periodic: a step's "
                                                               "first rows need the step before's last"
                    : NULL;

@@ -8,7 +8,9 @@
  * south-north edges, all periodic (which must fall back to single steps and say why), without terms and
  * with rotation and quadratic friction; on 1, 2 and 3 threads (the pipeline); with 2, 3, 5, 8 and 16 steps
  * per sweep (more than the rows the pipeline fills on 3 threads); over 23 steps, which no k above
- * divides. An observer that counts checks that every row of every step is shown once, with that step's
+ * divides. With surface forcing (a fictional storm's two slabs) and level edges, every step of a sweep
+ * takes its own slab weight and edge level (sw_model_steps_forced), as single steps with the weight and
+ * level set before each do. An observer that counts checks that every row of every step is shown once, with that step's
  * time. The basin, with an island and a hump of water off it, is fictional; the reference is the
  * program's own one-step schedule, which the golden and verification tests hold to published values.
  */
@@ -178,6 +180,103 @@ static void test_plain_single(void **state) { (void)state; layout_cases(SW_SINGL
 static void test_terms_double(void **state) { (void)state; layout_cases(SW_DOUBLE, 1); }
 static void test_terms_single(void **state) { (void)state; layout_cases(SW_SINGLE, 1); }
 
+/* ---- surface forcing: a weight and an edge level of their own for every step ---------------------- */
+
+/* A fictional storm's air pressure head and wind stress, different in the two slabs (slot in ctx). */
+static void storm_row(void *ctx, sw_surface_kind kind, ptrdiff_t j, size_t i0, double y_m, double x0_m, double dx_m,
+                      size_t n, float *out)
+{
+    const int slot = *(const int *)ctx;
+    (void)j;
+    for (size_t i = 0; i < n; i++) {
+        const double x = x0_m + (double)(i0 + i) * dx_m - 6000.0 - 3000.0 * slot, y = y_m - 24000.0;
+        const double r2 = (x * x + y * y) / 4e7;
+        out[i] = (float)(kind == SW_SURFACE_HEAD ? -0.3 * exp(-r2)
+                         : kind == SW_SURFACE_STRESS_X ? 2e-3 * (1 + slot) * exp(-r2) : -1e-3 * exp(-r2));
+    }
+}
+
+/* A basin with surface forcing and level edges, its two slabs built. */
+static sw_model *forced_basin(const sw_layout *lay, sw_precision prec)
+{
+    double *depth = malloc(NX * NY * sizeof(double));
+    assert_non_null(depth);
+    for (size_t k = 0; k < NX * NY; k++)
+        depth[k] = 40 + (double)(k % 7);
+    sw_grid g = {.nx = NX - (lay->checkerboard ? 1u : 0u), .ny = NY, .dx_m = 500, .dy_m = 400};
+    sw_model_config cfg = {.layout = lay, .grid = g, .depth_m = depth, .min_depth_m = 1, .gravity_ms2 = G,
+                           .precision = prec, .terms = {.surface = 1, .rotation = SW_ROTATION_F_PLANE, .f0_s = 1e-4},
+                           .edges = {SW_EDGE_LEVEL, SW_EDGE_OPEN, SW_EDGE_WALL, SW_EDGE_LEVEL}};
+    cfg.dt_s = 0.8 * sw_model_dt_limit(lay, &cfg.grid, depth, 1, G, 2);
+    sw_model *m = NULL;
+    sw_error err = {0};
+    if (sw_model_create(&cfg, &m, &err) != SW_OK)
+        fail_msg("%s", err.msg);
+    free(depth);
+    for (int slot = 0; slot < 2; slot++)
+        sw_model_surface_build(m, slot, storm_row, &slot);
+    return m;
+}
+
+/* The weight and level of step n (1-based): a ramp over the run, and a tide on the level edges. */
+static sw_step_forcing forcing_of(long long n)
+{
+    return (sw_step_forcing){.surface_w = (double)n / (STEPS + 2.0) - 0.05, .edge_level_m = 0.2 * sin(0.3 * (double)n)};
+}
+
+/* Single steps with the weight and level set before each, against sweeps of k that take them per step:
+ * the state (which holds the last weight and level) and the maps bit for bit. */
+static void test_forced(void **state)
+{
+    (void)state;
+    const int ks[] = {3, 8};
+    for (size_t q = 0; q < sw_layout_count(); q++)
+        for (int prec = 0; prec < 2; prec++)
+            for (int threads = 1; threads <= 2; threads++)
+                for (size_t kk = 0; kk < 2; kk++) {
+                    const sw_layout *lay = sw_layout_at(q);
+                    const sw_precision p = prec ? SW_SINGLE : SW_DOUBLE;
+                    sw_model *ref = forced_basin(lay, p), *m = forced_basin(lay, p);
+                    omp_set_num_threads(threads);
+                    sw_tracker *tr = NULL, *tm = NULL;
+                    sw_error err = {0};
+                    assert_int_equal(sw_tracker_create(ref, 0.001, threads, &tr, &err), SW_OK);
+                    assert_int_equal(sw_tracker_create(m, 0.001, threads, &tm, &err), SW_OK);
+                    assert_int_equal(sw_tracker_attach(tr, ref, &err), SW_OK);
+                    assert_int_equal(sw_tracker_attach(tm, m, &err), SW_OK);
+                    SW_OMP(parallel)
+                    for (int n = 0; n < STEPS; n++) {
+                        SW_OMP(single)
+                        {
+                            const sw_step_forcing f = forcing_of(n + 1);
+                            sw_model_surface_weight(ref, f.surface_w);
+                            sw_model_set_edge_level(ref, f.edge_level_m);
+                        }
+                        sw_model_step(ref);
+                        SW_OMP(single)
+                        sw_model_tick(ref);
+                    }
+                    sw_step_forcing per[SW_WAVE_MAX_STEPS];
+                    const int k = ks[kk];
+                    for (int n = 0; n < STEPS; n += k) {
+                        const int kn = n + k <= STEPS ? k : STEPS - n;
+                        for (int s = 0; s < kn; s++)
+                            per[s] = forcing_of(n + s + 1);
+                        SW_OMP(parallel)
+                        sw_model_steps_forced(m, kn, per);
+                    }
+                    char what[96];
+                    snprintf(what, sizeof what, "forced, layout %s, %s, %d threads, %d steps a sweep", lay->name,
+                             prec ? "single" : "double", threads, k);
+                    assert_same_state(ref, m, what);
+                    assert_same_maps(tr, tm, what);
+                    sw_tracker_free(tr);
+                    sw_tracker_free(tm);
+                    sw_model_free(ref);
+                    sw_model_free(m);
+                }
+}
+
 /* Every row of every step is shown once, with its step's time, on every layout (3 threads, 5 steps a
  * sweep: the pipeline and the remainder). */
 static void test_observer_calls(void **state)
@@ -225,7 +324,7 @@ static void test_auto_choice(void **state)
 int main(void)
 {
     const struct CMUnitTest tests[] = {
-        cmocka_unit_test(test_observer_calls), cmocka_unit_test(test_auto_choice),
+        cmocka_unit_test(test_observer_calls), cmocka_unit_test(test_auto_choice), cmocka_unit_test(test_forced),
         cmocka_unit_test(test_plain_double), cmocka_unit_test(test_plain_single),
         cmocka_unit_test(test_terms_double), cmocka_unit_test(test_terms_single),
     };
