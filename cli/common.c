@@ -290,7 +290,7 @@ int cli_run_scenario(const char *cmd, sw_scenario *sc, const cli_args *a, const 
         const char *why = sw_cpu_share_note(threads);
         printf("\nThreads    %d%s%s%s\n", threads, *why ? " (" : "", why, *why ? ")" : "");
         char schedule[200];
-        sw_run_schedule(sc, &setup, threads, a->steps_per_sweep, a->split && a->split->size > 1, schedule,
+        sw_run_schedule(sc, &setup, threads, a->steps_per_sweep, a->split ? a->split->size : 1, schedule,
                         sizeof schedule);
         printf("Schedule   %s\n", schedule);
         printf("\n%s\n\n", sw_caution_for(sc));

@@ -628,12 +628,20 @@ static sw_status sort_edges_by_row(sw_model *m, sw_error *err)
 
 void sw_model_step(sw_model *m) { step_flushed(m); }
 
+/* sw_model_wave_halo from a plan. */
+static size_t wave_halo_of(const sw_step_plan *pl, int k)
+{
+    return (size_t)k * (size_t)pl->n_stages * (size_t)pl->wave_reach + (size_t)pl->wave_reach + 1;
+}
+
+size_t sw_model_wave_halo(const sw_model *m, int k) { return wave_halo_of(&m->plan, k); }
+
 const char *sw_model_wave_refusal(const sw_model *m)
 {
-    if (m->halo)
-        return "a run split over processes exchanges its halo rows once a step";
     if (m->plan.periodic_y)
         return "periodic south and north edges: a step's first rows need the step before's last";
+    if (m->halo && wave_halo_of(&m->plan, 2) > m->share_reach)
+        return "the split's bands are too thin for the halo of two steps";
     return NULL;
 }
 
@@ -655,7 +663,7 @@ static void wave_views(sw_model *m, int k, const sw_step_forcing *per_step)
 
 void sw_model_steps_forced(sw_model *m, int k, const sw_step_forcing *per_step)
 {
-    if (k > 1 && !sw_model_wave_refusal(m)) {
+    if (k > 1 && !sw_model_wave_refusal(m) && (!m->halo || wave_halo_of(&m->plan, k) <= m->share_reach)) {
         SW_OMP(single)
         wave_views(m, k, per_step);   /* the end of `single` publishes them */
         const unsigned int saved = sw_fp_flush();
@@ -686,9 +694,22 @@ void sw_model_steps_forced(sw_model *m, int k, const sw_step_forcing *per_step)
 
 void sw_model_steps(sw_model *m, int k) { sw_model_steps_forced(m, k, NULL); }
 
+int sw_model_wave_steps_max(const sw_layout *layout, sw_precision precision, const sw_edge_kind edges[4],
+                            const sw_terms_config *terms, size_t band_rows)
+{
+    sw_step_plan plan;
+    if (edges[SW_SOUTH] == SW_EDGE_PERIODIC
+        || sw_step_plan_build(layout->kernels[precision], sw_terms_variant_of(terms), edges, &plan, NULL) != SW_OK)
+        return 1;
+    int k = SW_WAVE_MAX_STEPS;
+    while (k > 1 && band_rows && wave_halo_of(&plan, k) > band_rows)
+        k--;
+    return k;
+}
+
 int sw_model_wave_steps_for(const sw_layout *layout, sw_precision precision, const sw_grid *g,
                             const sw_edge_kind edges[4], const sw_terms_config *terms, int threads,
-                            size_t cache_bytes, size_t *window_bytes)
+                            size_t cache_bytes, size_t band_rows, size_t *window_bytes)
 {
     *window_bytes = 0;
     sw_step_plan plan;
@@ -697,15 +718,15 @@ int sw_model_wave_steps_for(const sw_layout *layout, sw_precision precision, con
         return 1;
     const size_t size = precision == SW_SINGLE ? sizeof(float) : sizeof(double);
     const size_t row = (size_t)layout->stream_values * stride_for(g, size) * size;   /* bytes a row's update touches */
-    const size_t gap = (size_t)plan.wave_gap;
-    if (2 * sw_model_bytes_for(g, precision, layout, terms) <= cache_bytes)
-        return 1;   /* the state stays in cache from one sweep to the next anyway */
-    int k = SW_WAVE_MAX_STEPS;
+    const size_t gap = (size_t)plan.wave_gap, rows = band_rows ? band_rows : g->ny;
+    if (2.0 * (double)sw_model_bytes_for(g, precision, layout, terms) * (double)rows / (double)g->ny <= (double)cache_bytes)
+        return 1;   /* the state (a split run's band) stays in cache from one sweep to the next anyway */
+    int k = band_rows ? sw_model_wave_steps_max(layout, precision, edges, terms, band_rows) : SW_WAVE_MAX_STEPS;
     while (k > 1 && (size_t)k * gap * row > cache_bytes / 2)
         k--;
     if (threads > 1 && k >= 2 * threads)
         k -= k % threads;   /* every thread of the pipeline as many steps */
-    if (k < 2 || (size_t)k * gap * 4 > g->ny)   /* too few rows to fill the pipeline */
+    if (k < 2 || (size_t)k * gap * 4 > rows)   /* too few rows to fill the pipeline */
         return 1;
     *window_bytes = (size_t)k * gap * row;
     return k;
@@ -717,7 +738,7 @@ int sw_model_wave_auto(const sw_model *m, int threads, size_t cache_bytes, size_
     if (sw_model_wave_refusal(m))
         return 1;
     return sw_model_wave_steps_for(m->layout, m->precision, &m->grid, m->edges, &m->terms_cfg, threads, cache_bytes,
-                                   window_bytes);
+                                   m->halo ? m->share_reach : 0, window_bytes);
 }
 
 void sw_model_set_observer(sw_model *m, sw_row_observer fn, void *ctx)
@@ -895,8 +916,13 @@ sw_status sw_model_set_share(sw_model *m, size_t row0, size_t row1, sw_halo_fn h
     m->share_p1 = row1;
     m->halo = halo;
     m->halo_ctx = ctx;
+    m->halo_depth = m->share_reach = h;
     return SW_OK;
 }
+
+size_t sw_model_halo_depth(const sw_model *m) { return m->halo_depth; }
+
+void sw_model_set_share_reach(sw_model *m, size_t rows) { m->share_reach = rows; }
 
 void *sw_model_field_rows(sw_model *m, int k, size_t r, size_t *row_bytes)
 {

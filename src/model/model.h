@@ -107,10 +107,10 @@ void sw_model_free(sw_model *m);
  * is the time after the step, what sw_model_time gives after the sw_model_tick that follows. */
 void sw_model_step(sw_model *m);
 
-/* Why several steps cannot share one sweep over memory on model m, or NULL when they can: a run split
- * over processes (its halo rows are exchanged once a step) or periodic south and north edges (the
- * wavefront runs from south to north, and a step's first rows would need the last rows of the step
- * before). A static string. */
+/* Why several steps cannot share one sweep over memory on model m, or NULL when they can: periodic south
+ * and north edges (the wavefront runs from south to north, and a step's first rows would need the last
+ * rows of the step before), or a split whose shares are too thin for the halo of two steps. A static
+ * string. */
 const char *sw_model_wave_refusal(const sw_model *m);
 
 /* The most steps one sweep over memory takes (sw_model_wave_auto). */
@@ -149,10 +149,17 @@ void sw_model_steps_forced(sw_model *m, int k, const sw_step_forcing *per_step);
 int sw_model_wave_auto(const sw_model *m, int threads, size_t cache_bytes, size_t *window_bytes);
 
 /* sw_model_wave_auto before a model exists (a plan): for a model of that layout, precision, grid, edges
- * and terms, unsplit. */
+ * and terms; band_rows 0 unsplit, else the thinnest share of a split run (its rows stand for the grid's,
+ * and k is at most sw_model_wave_steps_max). */
 int sw_model_wave_steps_for(const sw_layout *layout, sw_precision precision, const sw_grid *g,
                             const sw_edge_kind edges[4], const sw_terms_config *terms, int threads,
-                            size_t cache_bytes, size_t *window_bytes);
+                            size_t cache_bytes, size_t band_rows, size_t *window_bytes);
+
+/* The most steps a sweep of a split run may take: the largest k <= SW_WAVE_MAX_STEPS whose halo
+ * (sw_model_wave_halo) fits in band_rows, the thinnest share's rows; 1 when not even 2 fit. For a model of
+ * that layout, precision, edges and terms. */
+int sw_model_wave_steps_max(const sw_layout *layout, sw_precision precision, const sw_edge_kind edges[4],
+                            const sw_terms_config *terms, size_t band_rows);
 
 /* Sets the row observer sw_model_step calls (NULL: none), with room for steps on up to
  * omp_get_max_threads() threads to hand it rows' values (sw_row_values; a thread beyond that, or no
@@ -288,6 +295,21 @@ sw_status sw_model_set_share(sw_model *m, size_t row0, size_t row1, sw_halo_fn h
 /* Rows on each side of a share its step reads (the stencils' reach, plus one for the gauges' bilinear
  * centre values): at least 2. */
 size_t sw_model_halo_rows(const sw_model *m);
+
+/* The rows on each side that the present call of the halo function must bring: sw_model_halo_rows(m)
+ * within a step; before a sweep of k steps over memory, sw_model_wave_halo(m, k) (the sweep then computes
+ * the rows of that deeper halo too, redundantly, and exchanges nothing more until its end). */
+size_t sw_model_halo_depth(const sw_model *m);
+
+/* The rows a sweep of k steps needs beyond a share, so that the share's rows are exact at every step of
+ * it: k times the rows a step's values reach back (each stage's reach, added over the stages), plus a
+ * row's observation reach and one for the gauges. */
+size_t sw_model_wave_halo(const sw_model *m, int k);
+
+/* Tells a split model the deepest halo its exchange can deliver: the rows of the thinnest share of the
+ * split (a neighbour sends rows of its own share only). Sweeps of several steps are limited to k with
+ * sw_model_wave_halo(m, k) <= rows. */
+void sw_model_set_share_reach(sw_model *m, size_t rows);
 
 /* Padded row r (0 .. ny + 1; grid row r - 1) of state field k (0 eta, 1 u, 2 v): its first byte, and
  * the bytes of one padded row in *row_bytes. Rows are contiguous: rows r .. r + n - 1 are n * row_bytes

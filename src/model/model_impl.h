@@ -76,6 +76,8 @@ struct sw_model {
     size_t share_p0, share_p1;  /* padded rows this process steps: 1 .. ny unless split (sw_model_set_share) */
     sw_halo_fn halo;            /* NULL, or the exchange of a split run's halo rows */
     void *halo_ctx;
+    size_t halo_depth;          /* rows on each side the next call of halo exchanges (sw_model_halo_depth) */
+    size_t share_reach;         /* the deepest halo the split can deliver: its thinnest share's rows (0 unsplit) */
 
     sw_row_observer observe;   /* never NULL: a no-op when nothing observes (model.c) */
     void *observe_ctx;

@@ -400,13 +400,14 @@ static void wave_ghosts(sw_model *m, const sw_view *v, ptrdiff_t r)
 static void wave_iteration(sw_model *m, const block *b, ptrdiff_t i, int q, int ghosts_on)
 {
     const sw_step_plan *pl = &m->plan;
-    const ptrdiff_t ny = (ptrdiff_t)m->grid.ny, obs = pl->wave_obs_lag;
+    const ptrdiff_t obs = pl->wave_obs_lag;
+    const ptrdiff_t o0 = (ptrdiff_t)m->share_p0, o1 = (ptrdiff_t)m->share_p1;   /* the rows observed: the share */
     const int fused = m->observed && b->buf && m->kernels->continuity_observed;
     const sw_view *v = &m->wave_view[q];   /* the model's view with step q's forcing weight */
     const double level = m->wave_level[q];
-    if (i <= ny) {
+    if (i <= b->j1) {
         const ptrdiff_t f = i - obs - 1;   /* final since the last iteration */
-        if (fused && f >= 1) {
+        if (fused && in(f, o0, o1)) {
             m->kernels->continuity_observed(v, (size_t)i, (size_t)f, b->buf);
             after_continuity_in(m, v, level, i);
             sw_model_observe_row_ahead(m, (size_t)f, b->buf, q);
@@ -422,13 +423,32 @@ static void wave_iteration(sw_model *m, const block *b, ptrdiff_t i, int q, int 
         if (in(r, b->st[st].first, b->st[st].last))
             run_stage_in(m, v, st, r);
     }
-    if (ghosts_on && in(i - pl->wave_ghost_lag, 1, ny))
+    if (ghosts_on && in(i - pl->wave_ghost_lag, b->j0, b->j1))
         wave_ghosts(m, v, i - pl->wave_ghost_lag);
     if (m->observed) {
         const ptrdiff_t f = i - obs;
-        if (in(f, 1, ny) && !(fused && f + obs + 1 <= ny))
+        if (in(f, o0, o1) && !(fused && f + obs + 1 <= b->j1))
             sw_model_observe_row_ahead(m, (size_t)f, NULL, q);
     }
+}
+
+/* The rows a wavefront computes, as a one-thread block (stage rows first .. last): the grid's, or for a
+ * split model its share and the halo of the k steps (sw_model_wave_halo) within the grid. Rows of that
+ * halo are computed as the share's neighbours compute them, from the values the exchange brought; those
+ * near its far end go wrong step by step (their inputs beyond are stale), but no row of the share depends
+ * on them within k steps. */
+static block wave_block(const sw_model *m, int k)
+{
+    const sw_step_plan *pl = &m->plan;
+    const ptrdiff_t ny = (ptrdiff_t)m->grid.ny, h = m->halo ? (ptrdiff_t)sw_model_wave_halo(m, k) : 0;
+    block b = {0};
+    b.j0 = pmax(1, (ptrdiff_t)m->share_p0 - h);
+    b.j1 = pmin(ny, (ptrdiff_t)m->share_p1 + h);
+    for (int s = 0; s < pl->n_stages; s++) {
+        b.st[s].first = b.j0 == 1 ? pl->first_row[s] : b.j0;   /* the south edge's line, where it is in */
+        b.st[s].last = b.j1;
+    }
+    return b;
 }
 
 /* Waits until *count >= need (written by another thread with release). Spins briefly, then yields the
@@ -451,23 +471,32 @@ void SW_NAME(sw_stepper_steps)(sw_model *m, int k)
     const sw_step_plan *pl = &m->plan;
     const int nt = omp_get_num_threads(), t = omp_get_thread_num();
     const int n_pipe = nt < k ? (nt < SW_WAVE_THREADS ? nt : SW_WAVE_THREADS) : (k < SW_WAVE_THREADS ? k : SW_WAVE_THREADS);
-    const ptrdiff_t last = (ptrdiff_t)m->grid.ny + pl->wave_tail, gap = pl->wave_gap;
+    block b = wave_block(m, k);
+    const ptrdiff_t first = b.j0, last = b.j1 + pl->wave_tail, gap = pl->wave_gap;
     long *done = m->wave_done;   /* done[8 t]: the last iteration thread t's last step has finished */
     if (t < n_pipe)
         __atomic_store_n(&done[8 * t], LONG_MIN, __ATOMIC_RELAXED);
     SW_OMP(barrier)
+    if (m->halo) {   /* a split model: the halo of k steps, once (sw_model_wave_halo) */
+        SW_OMP(master)
+        {
+            m->halo_depth = sw_model_wave_halo(m, k);
+            m->halo(m->halo_ctx, m);
+            m->halo_depth = sw_model_halo_rows(m);
+        }
+        SW_OMP(barrier)
+    }
     if (t < n_pipe) {
         const int q0 = k * t / n_pipe, q1 = k * (t + 1) / n_pipe, n_q = q1 - q0;
-        block b = block_of(m, 0, 1);
         b.buf = sw_model_obs_buffer(m, t);
         const int ghosts_on = m->kernels->edge_velocities && m->n_edge;
         const ptrdiff_t end = last + (ptrdiff_t)(n_q - 1) * gap;
-        for (ptrdiff_t front = 1; front <= end; front++) {
+        for (ptrdiff_t front = first; front <= end; front++) {
             if (t > 0)   /* step q0 - 1 has passed every row step q0's iteration `front` touches */
                 wave_wait(&done[8 * (t - 1)], front + gap < last ? front + gap : last);
             for (int q = q0; q < q1; q++) {
                 const ptrdiff_t i = front - (ptrdiff_t)(q - q0) * gap;
-                if (in(i, 1, last))
+                if (in(i, first, last))
                     wave_iteration(m, &b, i, q, ghosts_on);
             }
             __atomic_store_n(&done[8 * t], front - (ptrdiff_t)(n_q - 1) * gap, __ATOMIC_RELEASE);

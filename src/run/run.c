@@ -402,6 +402,17 @@ static void sweep_in_region(run_ctx *c, long long n, int k, long long n_steps)
         }
     }
     sw_model_steps_forced(c->model, k, c->forcing ? c->per_step : NULL);   /* the clock too */
+    if (c->split) {   /* its messages from the thread that started MPI (split.h) */
+        SW_OMP(master)
+        {
+            if (sw_forcing_failed(c->forcing, &c->loop_err))
+                c->stop = 2;
+            between_steps(c, n + k == n_steps);
+            c->waving = 0;
+        }
+        SW_OMP(barrier)
+        return;
+    }
     SW_OMP(single)
     {
         if (sw_forcing_failed(c->forcing, &c->loop_err))
@@ -448,12 +459,17 @@ static void time_loop(run_ctx *c)
     }
 }
 
-int sw_run_schedule(const sw_scenario *sc, const sw_setup *setup, int threads, int asked, int split, char *why,
+int sw_run_schedule(const sw_scenario *sc, const sw_setup *setup, int threads, int asked, int ranks, char *why,
                     size_t n)
 {
-    const char *no = split ? "the run is split over processes, which exchange halo rows every step"
-                   : sc->edges[SW_SOUTH] == SW_EDGE_PERIODIC ? "the south and north edges are periodic: a step's "
+    /* a split run: each rank's band stands for the grid, and its thinnest band limits the steps (the halo of
+     * a sweep comes from the neighbours' bands: sw_model_wave_halo) */
+    const size_t band = ranks > 1 ? setup->grid.ny / (size_t)ranks : 0;
+    const int most = band ? sw_model_wave_steps_max(setup->layout, sc->precision, sc->edges, &sc->terms, band)
+                          : SW_WAVE_MAX_STEPS;
+    const char *no = sc->edges[SW_SOUTH] == SW_EDGE_PERIODIC ? "the south and north edges are periodic: a step's "
                                                               "first rows need the step before's last"
+                   : most < 2 ? "the bands of the split are too thin for the halo of two steps"
                    : NULL;
     if (no) {
         snprintf(why, n, "one step per sweep over memory (%s%s)", no, asked > 1 ? "; --steps-per-sweep is not taken" : "");
@@ -462,7 +478,12 @@ int sw_run_schedule(const sw_scenario *sc, const sw_setup *setup, int threads, i
     const size_t cache = sw_cpu_cache_bytes();
     size_t window = 0;
     const int k = sw_model_wave_steps_for(setup->layout, sc->precision, &setup->grid, sc->edges, &sc->terms, threads,
-                                          cache, &window);
+                                          cache, band, &window);
+    if (asked > most) {
+        snprintf(why, n, "%d steps per sweep over memory (%d asked for; a sweep's halo must fit in the thinnest of "
+                 "the %d bands, %zu rows)", most, asked, ranks, band);
+        return most;
+    }
     if (asked > 0) {
         snprintf(why, n, asked == 1 ? "one step per sweep over memory (asked for)"
                                     : "%d steps per sweep over memory (asked for; the choice would be %d)", asked, k);
@@ -625,8 +646,8 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         rc = sw_tracker_attach(c.tracker, c.model, err);   /* after omp_set_num_threads above */
     if (rc == SW_OK) {   /* the tracker, and the gauges during sweeps of several steps (run_row) */
         sw_model_set_observer(c.model, run_row, &c);
-        res->steps_per_sweep = c.wave_k = sw_run_schedule(sc, setup, res->threads, opt->steps_per_sweep, split != NULL,
-                                                          res->schedule, sizeof res->schedule);
+        res->steps_per_sweep = c.wave_k = sw_run_schedule(sc, setup, res->threads, opt->steps_per_sweep,
+                                                          split ? split->size : 1, res->schedule, sizeof res->schedule);
     }
     if (rc == SW_OK)
         rc = sw_gauges_create(c.model, setup->depth_m, sc->gauges, sc->n_gauges, setup->n_samples, &c.gauges, err);

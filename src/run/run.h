@@ -96,13 +96,14 @@ typedef struct {
     char schedule[200];               /* the schedule in words, with why (sw_run_schedule) */
 } sw_run_result;
 
-/* The schedule a run of sc will step with on `threads` threads: the steps per sweep over memory (model.h,
- * sw_model_steps), and in words, with why, into why (n bytes). asked: sw_run_options.steps_per_sweep (0:
- * the choice of sw_model_wave_steps_for against this machine's cache). One step per sweep when the run is
- * split over processes (split != 0) or has periodic south and north edges, whatever is asked; those and
- * the choice are said in why. A run with forcing sweeps too: each step takes its own slab weight and
- * edge level, and a sweep ends where new slabs are needed. */
-int sw_run_schedule(const sw_scenario *sc, const sw_setup *setup, int threads, int asked, int split, char *why,
+/* The schedule a run of sc will step with on `threads` threads, split over `ranks` processes (0 or 1: not
+ * split): the steps per sweep over memory (model.h, sw_model_steps), and in words, with why, into why (n
+ * bytes). asked: sw_run_options.steps_per_sweep (0: the choice of sw_model_wave_steps_for against this
+ * machine's cache, a split run's band standing for the grid). One step per sweep with periodic south and
+ * north edges, whatever is asked; a split run at most as many as its thinnest band allows
+ * (sw_model_wave_steps_max); those and the choice are said in why. A run with forcing sweeps too: each
+ * step takes its own slab weight and edge level, and a sweep ends where new slabs are needed. */
+int sw_run_schedule(const sw_scenario *sc, const sw_setup *setup, int threads, int asked, int ranks, char *why,
                     size_t n);
 
 /* The caution texts are defined once, in run.c; every command's output, help text and output file takes

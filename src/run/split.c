@@ -39,7 +39,10 @@ sw_status sw_split_attach(sw_split *sp, sw_model *m, int ring, sw_error *err)
         sp->ops->bind(sp);
     size_t r0, r1;
     sw_split_rows(ny, sp->size, sp->rank, &r0, &r1);
-    return sw_model_set_share(m, r0, r1, halo_of, sp, err);
+    sw_status rc = sw_model_set_share(m, r0, r1, halo_of, sp, err);
+    if (rc == SW_OK)   /* a neighbour sends rows of its own band only: the thinnest band bounds a sweep's halo */
+        sw_model_set_share_reach(m, ny / (size_t)sp->size);
+    return rc;
 }
 
 int sw_split_owner(const sw_split *sp, size_t row)

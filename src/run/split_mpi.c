@@ -1,6 +1,7 @@
 /* split_mpi.c - a split run's messages over MPI (see split_mpi.h and split.h).
  *
- * The halo exchange posts, for each of eta, u and v, a receive of each neighbour's nearest `halo` rows
+ * The halo exchange posts, for each of eta, u and v, a receive of each neighbour's nearest rows (a step's
+ * halo, or before a sweep of several steps its deeper one: sw_model_halo_depth)
  * into the same padded rows here and a send of this band's nearest rows to it, then waits for all: twelve
  * messages at most, each a run of whole padded rows straight from the field (no packing). Rows are sent as
  * bytes: every rank must run the same build on the same kind of CPU (a homogeneous cluster).
@@ -22,7 +23,7 @@ static void halo_mpi(void *ctx, sw_model *m)
     sw_split *sp = ctx;
     job *j = sp->job;
     const double t0 = MPI_Wtime();
-    const size_t h = sp->halo;
+    const size_t h = sw_model_halo_depth(m);   /* a step's halo, or a sweep's deeper one */
     MPI_Request req[12];
     int n = 0;
     for (int k = 0; k < 3; k++) {

@@ -24,7 +24,10 @@ The reference is always the same run as one process, without mpirun. Checks:
     and no output files;
   - a run with checkpoints on 2 ranks interrupted with SIGINT (to mpirun) once its first checkpoint exists
     exits non-zero naming the checkpoint and writes no files; `--resume` on 3 ranks then ends with the
-    files of the uninterrupted one-process run, bit for bit.
+    files of the uninterrupted one-process run, bit for bit;
+  - several steps per sweep on split ranks (--steps-per-sweep: one exchange of a deeper halo per sweep):
+    every layout on 2, 3 and 4 ranks (K = 5, 3, 2) and 2 ranks x 2 threads asking 16, the storm demo with
+    K = 7 and the rupture demo with K = 4 on 3 ranks: the one-process run's bits.
 The scenario is a small fictional basin (no real place).
 """
 import os
@@ -121,6 +124,31 @@ def test_identical():
                       f"(differ: {differ[:4]}; exit {r.returncode} {r.stderr.strip()[-200:]})")
 
 
+def test_sweeps():
+    """Several steps per sweep on split ranks (--steps-per-sweep K): each rank computes its band and the halo of
+    the sweep's K steps after one exchange of that deeper halo (DEVELOPERS.md "Several steps per sweep");
+    the files equal the one-process run's (K = 1) bit for bit."""
+    for layout in "ABCDE":
+        ref = os.path.join(WORK, f"{layout}-wall-open-level-ref")   # made by test_identical
+        scn = os.path.join(WORK, f"{layout}-wall-open-level.scn")
+        for n, threads, k in ((2, 1, 5), (3, 1, 3), (4, 1, 2), (2, 2, 16)):
+            out = os.path.join(WORK, f"{layout}-sweeps-{n}x{threads}-k{k}")
+            r = run(mpi(n, "run", scn, "--out", out, "--threads", str(threads), "--quiet", "--steps-per-sweep", str(k)))
+            differ = same_files(ref, out) if r.returncode == 0 else ["(run failed)"]
+            check(r.returncode == 0 and not differ,
+                  f"{layout}: {n} ranks x {threads} thread(s), {k} steps a sweep, equal the one-process run bit for "
+                  f"bit (differ: {differ[:4]}; exit {r.returncode} {r.stderr.strip()[-200:]})")
+    scenarios = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "..", "scenarios")
+    for name, k in (("storm-demo", 7), ("fault-demo", 4)):   # forcing slabs and a rupture in time, in sweeps
+        scn = os.path.join(scenarios, name + ".scn")
+        ref, out = os.path.join(WORK, name + "-ref"), os.path.join(WORK, f"{name}-3-k{k}")   # ref: test_demos
+        r = run(mpi(3, "run", scn, "--out", out, "--threads", "1", "--quiet", "--steps-per-sweep", str(k)))
+        differ = [x for x in same_files(ref, out) if not x.startswith("snapshots.nc")] \
+            if r.returncode == 0 else ["(run failed)"]
+        check(not differ, f"{name} on 3 ranks, {k} steps a sweep, equals the one-process run bit for bit "
+              f"(differ: {differ[:4]}; exit {r.returncode} {r.stderr.strip()[-200:]})")
+
+
 def test_demos():
     scenarios = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "..", "scenarios")
     for name in ("fault-demo", "storm-demo", "geographic-demo"):
@@ -196,6 +224,7 @@ def test_interrupted_resume():
 test_identical()
 test_interrupted_resume()
 test_demos()
+test_sweeps()
 test_rank0_prints()
 test_rank_failure()
 test_too_many_ranks()

@@ -62,6 +62,7 @@ typedef struct {
     int threads;
     long long stop_after;   /* sw_run_options.stop_after_steps */
     int resume;             /* sw_run_options.resume */
+    int steps_per_sweep;    /* sw_run_options.steps_per_sweep */
     sw_status rc;
     sw_error err;
 } fake_rank;
@@ -73,13 +74,15 @@ static void copy_rows(sw_split *sp, sw_model *m, int nb, int from_top)
 {
     fake_job *j = ((fake_rank *)sp->job)->job;
     size_t a, b;
+    const size_t h = sw_model_halo_depth(m);   /* a step's halo, or a sweep's deeper one */
     sw_split_rows(sp->ny, sp->size, nb, &a, &b);
-    const size_t first = from_top ? b - sp->halo + 1 : a + 1;   /* padded rows */
+    assert_true(h <= b - a);   /* a neighbour sends rows of its own band only */
+    const size_t first = from_top ? b - h + 1 : a + 1;   /* padded rows */
     for (int k = 0; k < 3; k++) {
         size_t rb;
         char *dst = sw_model_field_rows(m, k, first, &rb);
         const char *src = sw_model_field_rows(j->model[nb], k, first, &rb);
-        memcpy(dst, src, sp->halo * rb);
+        memcpy(dst, src, h * rb);
     }
 }
 
@@ -159,8 +162,8 @@ static const sw_split_ops fake_ops = {
 
 /* Runs the scenario text into folder out as one rank (split NULL: unsplit), stopped after stop_after steps
  * when > 0, or resumed from the folder's checkpoint. */
-static sw_status run_text(const char *text, const char *out, int threads, long long stop_after, int resume,
-                          sw_split *split, sw_error *err)
+static sw_status run_text_k(const char *text, const char *out, int threads, long long stop_after, int resume,
+                            int steps_per_sweep, sw_split *split, sw_error *err)
 {
     char dir[1024];
     tu_tmp_path(dir, sizeof dir, "");
@@ -172,7 +175,7 @@ static sw_status run_text(const char *text, const char *out, int threads, long l
     rc = sw_setup_build(&sc, &setup, err);
     if (rc == SW_OK) {
         sw_run_options opt = {.out_dir = out, .threads = threads, .split = split, .stop_after_steps = stop_after,
-                              .resume = resume};
+                              .resume = resume, .steps_per_sweep = steps_per_sweep};
         sw_run_result *res = calloc(1, sizeof *res);
         rc = res ? sw_run(&sc, &setup, &opt, res, err) : SW_ERR_NOMEM;
         free(res);
@@ -182,16 +185,23 @@ static sw_status run_text(const char *text, const char *out, int threads, long l
     return rc;
 }
 
+static sw_status run_text(const char *text, const char *out, int threads, long long stop_after, int resume,
+                          sw_split *split, sw_error *err)
+{
+    return run_text_k(text, out, threads, stop_after, resume, 0, split, err);
+}
+
 static void *rank_main(void *arg)
 {
     fake_rank *fr = arg;
-    fr->rc = run_text(fr->text, fr->out, fr->threads, fr->stop_after, fr->resume, &fr->sp, &fr->err);
+    fr->rc = run_text_k(fr->text, fr->out, fr->threads, fr->stop_after, fr->resume, fr->steps_per_sweep, &fr->sp,
+                        &fr->err);
     return NULL;
 }
 
 /* Runs text on n ranks (threads of this process) into out, as run_text; returns rank 0's status. */
-static sw_status run_split(const char *text, const char *out, int n, int threads, long long stop_after, int resume,
-                           sw_error *err)
+static sw_status run_split_k(const char *text, const char *out, int n, int threads, long long stop_after, int resume,
+                             int steps_per_sweep, sw_error *err)
 {
     fake_job job = {.n = n};
     pthread_barrier_init(&job.bar, NULL, (unsigned)n);
@@ -199,7 +209,7 @@ static sw_status run_split(const char *text, const char *out, int n, int threads
     pthread_t th[MAX_RANKS];
     for (int r = 0; r < n; r++) {
         fr[r] = (fake_rank){.job = &job, .text = text, .out = out, .threads = threads, .stop_after = stop_after,
-                            .resume = resume};
+                            .resume = resume, .steps_per_sweep = steps_per_sweep};
         fr[r].sp = (sw_split){.rank = r, .size = n, .ops = &fake_ops, .job = &fr[r]};
         assert_int_equal(pthread_create(&th[r], NULL, rank_main, &fr[r]), 0);
     }
@@ -210,6 +220,12 @@ static sw_status run_split(const char *text, const char *out, int n, int threads
         assert_int_equal(fr[r].rc, fr[0].rc);
     *err = fr[0].err;
     return fr[0].rc;
+}
+
+static sw_status run_split(const char *text, const char *out, int n, int threads, long long stop_after, int resume,
+                           sw_error *err)
+{
+    return run_split_k(text, out, n, threads, stop_after, resume, 0, err);
 }
 
 /* Every value of variable `var` of file `name` in both folders, as bytes; 1 when the same. */
@@ -290,6 +306,37 @@ static void test_split_equals_unsplit(void **state)
                 print_message("  %s: every value the same bits\n", what);
             }
         }
+}
+
+/* Sweeps of several steps over memory on split ranks (stepper.c: each rank computes its band and the halo
+ * of the sweep's k steps, after one exchange of that deeper halo) give the unsplit run's bits: every layout
+ * with wall, open and level edges, 2 ranks with 5 steps a sweep (1 and 2 threads), 3 ranks with 3, and 2
+ * ranks asking 16, which the 20-row bands cut to what their halo allows. */
+static void test_split_sweeps(void **state)
+{
+    (void)state;
+    char dir[1024];
+    tu_tmp_path(dir, sizeof dir, "");
+    for (const char *layout = "ABCDE"; *layout; layout++) {
+        char text[4096], name[8] = {*layout, 0}, ref[1200], out[1200], what[128];
+        snprintf(text, sizeof text, BASIN, name, "west = wall\neast = open\nsouth = level\nnorth = open");
+        snprintf(ref, sizeof ref, "%s/sweeps-%s-ref", dir, name);
+        mkdir(ref, 0777);
+        sw_error err = {0};
+        if (run_text_k(text, ref, 1, 0, 0, 1, NULL, &err) != SW_OK)
+            fail_msg("%s", err.msg);
+        const int cases[][3] = {{2, 1, 5}, {2, 2, 5}, {3, 1, 3}, {2, 1, 16}};   /* ranks, threads, steps a sweep */
+        for (size_t c = 0; c < sizeof cases / sizeof cases[0]; c++) {
+            snprintf(out, sizeof out, "%s/sweeps-%s-%dx%d-k%d", dir, name, cases[c][0], cases[c][1], cases[c][2]);
+            mkdir(out, 0777);
+            if (run_split_k(text, out, cases[c][0], cases[c][1], 0, 0, cases[c][2], &err) != SW_OK)
+                fail_msg("%s", err.msg);
+            snprintf(what, sizeof what, "%s on %d ranks x %d threads, %d steps a sweep", name, cases[c][0],
+                     cases[c][1], cases[c][2]);
+            check_same(ref, out, what);
+            print_message("  %s: every value the same bits\n", what);
+        }
+    }
 }
 
 static void test_bands_and_refusal(void **state)
@@ -373,7 +420,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_checkpoint_across_ranks),
         cmocka_unit_test(test_bands_and_refusal),
-        cmocka_unit_test(test_split_equals_unsplit),
+        cmocka_unit_test(test_split_equals_unsplit), cmocka_unit_test(test_split_sweeps),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
