@@ -132,6 +132,17 @@ static void assert_same_maps(sw_tracker *a, sw_tracker *b, const char *what)
             fail_msg("%s: tracker part %zu differs", what, q);
 }
 
+/* A tracker of threshold thr_m attached to m, for `threads` threads (which it sets as OpenMP's count). */
+static sw_tracker *tracked(sw_model *m, double thr_m, int threads)
+{
+    omp_set_num_threads(threads);
+    sw_tracker *t = NULL;
+    sw_error err = {0};
+    assert_int_equal(sw_tracker_create(m, thr_m, threads, &t, &err), SW_OK);
+    assert_int_equal(sw_tracker_attach(t, m, &err), SW_OK);
+    return t;
+}
+
 /* One case: STEPS single steps against sweeps of k steps, on `threads` threads, with a tracker. */
 static void one_case(const sw_layout *lay, sw_precision prec, edge_set es, int terms, int threads, int k)
 {
@@ -141,13 +152,7 @@ static void one_case(const sw_layout *lay, sw_precision prec, edge_set es, int t
     sw_model *ref = basin(lay, prec, es, terms), *m = basin(lay, prec, es, terms);
     const char *why = sw_model_wave_refusal(m);
     assert_true((es == EDGES_PERIODIC_ALL) == (why != NULL));
-    omp_set_num_threads(threads);
-    sw_tracker *tr = NULL, *tm = NULL;
-    sw_error err = {0};
-    assert_int_equal(sw_tracker_create(ref, 0.01, threads, &tr, &err), SW_OK);
-    assert_int_equal(sw_tracker_create(m, 0.01, threads, &tm, &err), SW_OK);
-    assert_int_equal(sw_tracker_attach(tr, ref, &err), SW_OK);
-    assert_int_equal(sw_tracker_attach(tm, m, &err), SW_OK);
+    sw_tracker *tr = tracked(ref, 0.01, threads), *tm = tracked(m, 0.01, threads);
     SW_OMP(parallel)
     for (int n = 0; n < STEPS; n++) {
         sw_model_step(ref);
@@ -237,13 +242,7 @@ static void test_forced(void **state)
                     const sw_layout *lay = sw_layout_at(q);
                     const sw_precision p = prec ? SW_SINGLE : SW_DOUBLE;
                     sw_model *ref = forced_basin(lay, p), *m = forced_basin(lay, p);
-                    omp_set_num_threads(threads);
-                    sw_tracker *tr = NULL, *tm = NULL;
-                    sw_error err = {0};
-                    assert_int_equal(sw_tracker_create(ref, 0.001, threads, &tr, &err), SW_OK);
-                    assert_int_equal(sw_tracker_create(m, 0.001, threads, &tm, &err), SW_OK);
-                    assert_int_equal(sw_tracker_attach(tr, ref, &err), SW_OK);
-                    assert_int_equal(sw_tracker_attach(tm, m, &err), SW_OK);
+                    sw_tracker *tr = tracked(ref, 0.001, threads), *tm = tracked(m, 0.001, threads);
                     SW_OMP(parallel)
                     for (int n = 0; n < STEPS; n++) {
                         SW_OMP(single)
