@@ -113,6 +113,18 @@ double sw_cpu_busy_cores(const sw_cpu_times *before, size_t n_before, const sw_c
     return busy < 0 ? 0 : busy > (double)counted ? (double)counted : busy;
 }
 
+double sw_cpu_busy_between(const sw_cpu_reading *before, const sw_cpu_reading *after, const unsigned char *allowed,
+                           size_t n_allowed)
+{
+    if (!before || !after || !allowed || !before->cpus || !after->cpus || !before->n_cpus || !after->n_cpus)
+        return -1;
+    const double wall = after->wall_s - before->wall_s;
+    if (!(wall > 0))
+        return -1;
+    const double own = (after->own_cpu_s - before->own_cpu_s) / wall;
+    return sw_cpu_busy_cores(before->cpus, before->n_cpus, after->cpus, after->n_cpus, allowed, n_allowed, own);
+}
+
 sw_status sw_loadavg_parse(const char *text, const char *name, int *running, int *tasks, sw_error *err)
 {
     if (!text || !name || !running || !tasks)
@@ -183,14 +195,40 @@ static int others_running(void)
     return running - 1;
 }
 
-/* The per-CPU counters of /proc/stat into t (cap entries); 0 when unreadable. */
-static size_t read_stat(sw_cpu_times *t, size_t cap)
+#define STAT_TEXT_BYTES (1 << 17)   /* /proc/stat of 1024 CPUs fits; only the start (the cpu lines) matters */
+
+/* The per-CPU counters of /proc/stat into t (cap entries), read through buf (STAT_TEXT_BYTES); 0 when
+ * unreadable. */
+static size_t read_stat(char *buf, sw_cpu_times *t, size_t cap)
 {
-    static char buf[1 << 17];   /* /proc/stat of 1024 CPUs fits; only the start (the cpu lines) matters */
     size_t n = 0;
-    if (!read_small("/proc/stat", buf, sizeof buf) || sw_cpu_stat_parse(buf, "/proc/stat", t, cap, &n, NULL) != SW_OK)
+    if (!read_small("/proc/stat", buf, STAT_TEXT_BYTES) ||
+        sw_cpu_stat_parse(buf, "/proc/stat", t, cap, &n, NULL) != SW_OK)
         return 0;
     return n;
+}
+
+/* The CPUs this process may run on, marked in allowed[SW_CPU_SHARE_MAX_CPUS] (sched_getaffinity, else every
+ * online CPU); returns their count, >= 1. */
+static int allowed_cpus(unsigned char *allowed)
+{
+    memset(allowed, 0, SW_CPU_SHARE_MAX_CPUS);
+    cpu_set_t set;
+    CPU_ZERO(&set);
+    int cores = 0;
+    if (sched_getaffinity(0, sizeof set, &set) == 0) {
+        for (int c = 0; c < SW_CPU_SHARE_MAX_CPUS && c < CPU_SETSIZE; c++)
+            if (CPU_ISSET(c, &set)) {
+                allowed[c] = 1;
+                cores++;
+            }
+    }
+    if (cores == 0) {   /* no affinity: every online CPU */
+        long online = sysconf(_SC_NPROCESSORS_ONLN);
+        cores = online > 0 ? (int)(online < SW_CPU_SHARE_MAX_CPUS ? online : SW_CPU_SHARE_MAX_CPUS) : 1;
+        memset(allowed, 1, (size_t)cores);
+    }
+    return cores;
 }
 
 static double seconds(clockid_t clk)
@@ -246,22 +284,7 @@ void sw_cpu_load_measure(double sample_s, sw_cpu_load *out)
     out->others_running = -1;
 
     static unsigned char allowed[SW_CPU_SHARE_MAX_CPUS];
-    memset(allowed, 0, sizeof allowed);
-    cpu_set_t set;
-    CPU_ZERO(&set);
-    int cores = 0;
-    if (sched_getaffinity(0, sizeof set, &set) == 0) {
-        for (int c = 0; c < SW_CPU_SHARE_MAX_CPUS && c < CPU_SETSIZE; c++)
-            if (CPU_ISSET(c, &set)) {
-                allowed[c] = 1;
-                cores++;
-            }
-    }
-    if (cores == 0) {   /* no affinity: every online CPU */
-        long online = sysconf(_SC_NPROCESSORS_ONLN);
-        cores = online > 0 ? (int)(online < SW_CPU_SHARE_MAX_CPUS ? online : SW_CPU_SHARE_MAX_CPUS) : 1;
-        memset(allowed, 1, (size_t)cores);
-    }
+    const int cores = allowed_cpus(allowed);
     out->cores = cores;
     out->quota_cores = cgroup_quota();
 
@@ -274,12 +297,13 @@ void sw_cpu_load_measure(double sample_s, sw_cpu_load *out)
     if (sample_s <= 0)
         sample_s = SW_CPU_SHARE_SAMPLE_S;
     static sw_cpu_times before[SW_CPU_SHARE_MAX_CPUS], after[SW_CPU_SHARE_MAX_CPUS];
+    static char text[STAT_TEXT_BYTES];
     double w0 = seconds(CLOCK_MONOTONIC), c0 = seconds(CLOCK_PROCESS_CPUTIME_ID);
-    size_t nb = read_stat(before, SW_CPU_SHARE_MAX_CPUS);
+    size_t nb = read_stat(text, before, SW_CPU_SHARE_MAX_CPUS);
     struct timespec nap = {.tv_sec = (time_t)sample_s, .tv_nsec = (long)((sample_s - floor(sample_s)) * 1e9)};
     while (nanosleep(&nap, &nap) != 0 && errno == EINTR) {
     }
-    size_t na = read_stat(after, SW_CPU_SHARE_MAX_CPUS);
+    size_t na = read_stat(text, after, SW_CPU_SHARE_MAX_CPUS);
     double w1 = seconds(CLOCK_MONOTONIC), c1 = seconds(CLOCK_PROCESS_CPUTIME_ID);
     out->sample_s = w1 - w0;
     int others_end = others_running();
@@ -293,6 +317,57 @@ void sw_cpu_load_measure(double sample_s, sw_cpu_load *out)
     if (busy < 0 && others >= 0)
         busy = others < cores ? others : cores;   /* /proc/stat unreadable: the run queue alone */
     out->busy_cores = busy;
+}
+
+/* ---- re-measuring while a run goes on ----------------------------------------------------------------- */
+
+/* Invariant: reading[cur] is the last boundary's; the other slot is free for the next. */
+struct sw_cpu_mark {
+    sw_cpu_times cpus[2][SW_CPU_SHARE_MAX_CPUS];   /* the two readings' per-CPU counters */
+    sw_cpu_reading reading[2];                     /* the readings (cpus point into the array above) */
+    int cur;                                       /* which reading is the last one, 0 or 1 */
+    unsigned char allowed[SW_CPU_SHARE_MAX_CPUS];  /* the CPUs this process may run on, now */
+    char text[STAT_TEXT_BYTES];                    /* /proc/stat's text while it is parsed */
+};
+
+/* Reads the machine now into m's slot k. */
+static void take_reading(sw_cpu_mark *m, int k)
+{
+    sw_cpu_reading *r = &m->reading[k];
+    r->cpus = m->cpus[k];
+    r->n_cpus = read_stat(m->text, m->cpus[k], SW_CPU_SHARE_MAX_CPUS);
+    r->wall_s = seconds(CLOCK_MONOTONIC);
+    r->own_cpu_s = seconds(CLOCK_PROCESS_CPUTIME_ID);
+}
+
+sw_cpu_mark *sw_cpu_mark_new(void)
+{
+    sw_cpu_mark *m = malloc(sizeof *m);
+    if (!m)
+        return NULL;
+    m->cur = 0;
+    take_reading(m, 0);
+    return m;
+}
+
+void sw_cpu_load_since(sw_cpu_mark *m, sw_cpu_load *out)
+{
+    if (!m || !out)
+        return;
+    memset(out, 0, sizeof *out);
+    const int next = 1 - m->cur;
+    take_reading(m, next);
+    out->cores = allowed_cpus(m->allowed);
+    out->quota_cores = cgroup_quota();
+    out->busy_cores = sw_cpu_busy_between(&m->reading[m->cur], &m->reading[next], m->allowed, sizeof m->allowed);
+    out->others_running = others_running();
+    out->sample_s = m->reading[next].wall_s - m->reading[m->cur].wall_s;
+    m->cur = next;
+}
+
+void sw_cpu_mark_free(sw_cpu_mark *m)
+{
+    free(m);
 }
 
 /* ---- deciding -------------------------------------------------------------------------------------- */
@@ -361,18 +436,64 @@ static void add_part(char *note, size_t n, const char *part)
     snprintf(note + len, n - len, "%s%s", len ? "; " : "", part);
 }
 
+/* The cores a load leaves to run on: its CPUs cut to the quota rounded up (a quota of 1.5 cores leaves 2
+ * to run on, part-time), >= 1; and into *free the CPUs less the others' busy cores, within the quota, >= 0
+ * (-1 when the busy cores are unknown or load is NULL). */
+static int usable_cores(const sw_cpu_load *load, double *free)
+{
+    const int aff = load && load->cores > 0 ? load->cores : 1;   /* the CPUs; the busy share is over these */
+    int cores = aff;
+    const double quota = load && load->quota_cores > 0 ? load->quota_cores : 0;
+    if (quota > 0 && ceil(quota - 0.01) < cores)
+        cores = (int)fmax(1, ceil(quota - 0.01));
+    *free = -1;
+    if (load && load->busy_cores >= 0) {
+        double fr = (double)aff - load->busy_cores;
+        if (quota > 0 && fr > quota)
+            fr = quota;
+        *free = fr < 0 ? 0 : fr;
+    }
+    return cores;
+}
+
+int sw_cpu_share_auto_threads(double free_cores, int cores, int passive)
+{
+    if (cores < 1)
+        cores = 1;
+    int t = cores;
+    if (free_cores >= 0) {
+        /* spinning on the whole free cores, or one thread more waiting passively when the left-over
+         * fraction pays for passive waiting's cost with SW_CPU_SHARE_PASSIVE_GAIN to spare */
+        int whole = (int)floor(free_cores + SW_CPU_SHARE_SLACK);
+        int part = (int)ceil(free_cores - SW_CPU_SHARE_SLACK);
+        whole = whole < 1 ? 1 : whole;
+        t = whole;
+        if (passive && part > whole &&
+            free_cores * (1 - SW_CPU_SHARE_PASSIVE_COST) > SW_CPU_SHARE_PASSIVE_GAIN * whole)
+            t = part;
+    }
+    return t < 1 ? 1 : t > cores ? cores : t;
+}
+
+int sw_cpu_share_retune(const sw_cpu_load *load, sw_wait wait, int current, int cap)
+{
+    if (!load || load->busy_cores < 0)
+        return current;
+    double fr;
+    const int cores = usable_cores(load, &fr);
+    const int t = sw_cpu_share_auto_threads(fr, cores, wait == SW_WAIT_PASSIVE);
+    return t > cap ? (cap < 1 ? 1 : cap) : t;
+}
+
 sw_status sw_cpu_share_decide(const sw_cpu_load *load, const sw_cpu_wishes *w, sw_cpu_choice *out,
                               sw_error *err)
 {
     if (!w || !out)
         return sw_fail(err, SW_ERR_USAGE, "sw_cpu_share_decide needs the wishes and an output");
     memset(out, 0, sizeof *out);
-    out->free_cores = -1;
     const int aff = load && load->cores > 0 ? load->cores : 1;   /* the CPUs; the busy share is over these */
-    int cores = aff;
-    double quota = load && load->quota_cores > 0 ? load->quota_cores : 0;
-    if (quota > 0 && ceil(quota - 0.01) < cores)
-        cores = (int)fmax(1, ceil(quota - 0.01));   /* a quota of 1.5 cores leaves 2 to run on, part-time */
+    const int cores = usable_cores(load, &out->free_cores);
+    const double quota = load && load->quota_cores > 0 ? load->quota_cores : 0;
     out->cores = cores;
     const int user_wait = is_set(w->omp_wait_policy) || is_set(w->gomp_spincount);
     out->wait = user_wait ? SW_WAIT_USER : SW_WAIT_SPIN;
@@ -385,6 +506,7 @@ sw_status sw_cpu_share_decide(const sw_cpu_load *load, const sw_cpu_wishes *w, s
 
     int sw = switch_state(w->auto_switch);
     if (sw != 1) {
+        out->free_cores = -1;   /* not the choice's business with the switch off */
         out->from = w->threads_option > 0 ? SW_THREADS_OPTION : is_set(w->omp_num_threads) ? SW_THREADS_ENV
                                                                                            : SW_THREADS_DEFAULT;
         out->threads = w->threads_option > 0 ? w->threads_option : plain_count(w->omp_num_threads);
@@ -402,10 +524,6 @@ sw_status sw_cpu_share_decide(const sw_cpu_load *load, const sw_cpu_wishes *w, s
     char load_part[96] = "";
     char a[16], b[16];
     if (load && load->busy_cores >= 0) {
-        double fr = (double)aff - load->busy_cores;
-        if (quota > 0 && fr > quota)
-            fr = quota;
-        out->free_cores = fr < 0 ? 0 : fr;
         cores_text(load->busy_cores > aff ? aff : load->busy_cores, a, sizeof a);
         if (load->busy_cores >= 0.05)
             snprintf(load_part, sizeof load_part, "%s of %d core%s busy with other work", a, aff,
@@ -431,19 +549,7 @@ sw_status sw_cpu_share_decide(const sw_cpu_load *load, const sw_cpu_wishes *w, s
         out->threads = plain_count(w->omp_num_threads);
     } else {
         out->from = SW_THREADS_AUTO;
-        int t = cores;
-        if (out->free_cores >= 0) {
-            /* spinning on the whole free cores, or one thread more waiting passively when the left-over
-             * fraction pays for passive waiting's cost with SW_CPU_SHARE_PASSIVE_GAIN to spare */
-            double fr = out->free_cores;
-            int whole = (int)floor(fr + SW_CPU_SHARE_SLACK);
-            int part = (int)ceil(fr - SW_CPU_SHARE_SLACK);
-            whole = whole < 1 ? 1 : whole;
-            t = whole;
-            if (!user_wait && part > whole && fr * (1 - SW_CPU_SHARE_PASSIVE_COST) > SW_CPU_SHARE_PASSIVE_GAIN * whole)
-                t = part;
-        }
-        out->threads = t < 1 ? 1 : t > cores ? cores : t;
+        out->threads = sw_cpu_share_auto_threads(out->free_cores, cores, !user_wait);
     }
     /* passive when some thread has no core of its own (SW_CPU_SHARE_SLACK for the sample's ticks) */
     int team = out->threads > 0 ? out->threads : cores;
@@ -543,6 +649,16 @@ void sw_cpu_share_apply(const sw_cpu_choice *c)
         omp_set_num_threads(c->threads);
     process_choice = *c;
     process_has_choice = 1;
+}
+
+int sw_cpu_share_adapts(int threads, sw_wait *wait)
+{
+    if (!process_has_choice || process_choice.from != SW_THREADS_AUTO || process_choice.threads <= 0 ||
+        process_choice.threads != threads)
+        return 0;
+    if (wait)
+        *wait = process_choice.wait;
+    return 1;
 }
 
 const char *sw_cpu_share_note(int threads)

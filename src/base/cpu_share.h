@@ -1,5 +1,5 @@
 /* cpu_share.h - how many of this process's cores other programs leave free now, and the OpenMP thread count
- * and waiting that fit them, chosen once when the program starts.
+ * and waiting that fit them, chosen when the program starts and re-checked while a long run goes on.
  *
  * Why. The threads of a run meet at several barriers per step. libgomp's waiting threads spin a while
  * (about 3 ms by default) before they sleep; a thread that shares its core with another program is
@@ -29,6 +29,16 @@
  * process's own CPU time over the sample is taken off, and the sum is capped by the run queue seen at
  * either end of the sample. A program that runs only now and then may be missed or counted in part.
  *
+ * While a run goes on (sw_cpu_mark, sw_cpu_load_since, sw_cpu_share_retune): when the count was chosen here
+ * (SW_THREADS_AUTO), run.c's time loop leaves its parallel region about every SW_CPU_SHARE_RECHECK_S of wall
+ * time, reads /proc/stat and this process's CPU time again, and takes the others' busy cores over the whole
+ * stretch since the last reading (their share of the CPUs less this process's own): no sleep, no sample of
+ * its own. The count for the next stretch follows the rule of the start, with the waiting the process has
+ * (it cannot change without a restart: spinning threads never outnumber the free cores), never above the
+ * count the run started with (its buffers are sized for that many threads). The run queue is not used as a
+ * cap there: over seconds its two moments say nothing of what ran between them, and this process's own
+ * threads may still be spinning on it when it is read.
+ *
  * What the user says always wins: --threads N and OMP_NUM_THREADS fix the thread count, OMP_WAIT_POLICY
  * and GOMP_SPINCOUNT the waiting; SHOREWARD_THREADS_AUTO=off turns the automatic choice off (the threads
  * are then OpenMP's default, all cores, spinning, as before the choice existed).
@@ -52,6 +62,7 @@
 #define SW_CPU_SHARE_PASSIVE_COST 0.07    /* passive waiting's cost on free cores, fraction (measured: the
                                            * demo on 2 quiet cores) */
 #define SW_CPU_SHARE_PASSIVE_GAIN 1.1     /* a thread more with passive waiting only for this expected gain */
+#define SW_CPU_SHARE_RECHECK_S 2.0        /* a run re-measures the free cores about this often, s of wall time */
 
 /* One CPU's time counters from a /proc/stat "cpuN" line, in clock ticks (USER_HZ, 100 per s). */
 typedef struct {
@@ -122,6 +133,22 @@ sw_status sw_cpu_stat_parse(const char *text, const char *name, sw_cpu_times *cp
 double sw_cpu_busy_cores(const sw_cpu_times *before, size_t n_before, const sw_cpu_times *after, size_t n_after,
                          const unsigned char *allowed, size_t n_allowed, double own_cores);
 
+/* One reading of the machine at a moment, kept until the next: what sw_cpu_busy_between compares. */
+typedef struct {
+    const sw_cpu_times *cpus;       /* the per-CPU counters of /proc/stat (sw_cpu_stat_parse) */
+    size_t n_cpus;                  /* entries in cpus; 0 = /proc/stat could not be read */
+    double wall_s;                  /* a monotonic clock at the reading, s */
+    double own_cpu_s;               /* this process's CPU time at the reading, all its threads, s */
+} sw_cpu_reading;
+
+/* Cores' worth of CPU time other programs used between two readings, over the CPUs marked in
+ * allowed[cpu] (cpu < n_allowed): sw_cpu_busy_cores with this process's own use over the interval,
+ * (after->own_cpu_s - before->own_cpu_s) / (after->wall_s - before->wall_s), taken off. Returns the busy
+ * cores (0 .. CPUs counted), or -1 when the interval is not positive or no allowed CPU could be counted.
+ * Pure: no files read. */
+double sw_cpu_busy_between(const sw_cpu_reading *before, const sw_cpu_reading *after, const unsigned char *allowed,
+                           size_t n_allowed);
+
 /* Parses /proc/loadavg text ("0.52 0.41 0.30 3/412 12345"; `name` for messages): *running the
  * runnable tasks now (the 3, this reader included), *tasks all tasks (the 412). Returns SW_OK, or
  * SW_ERR_PARSE naming the file when the fourth field is not "RUNNING/TASKS" with RUNNING >= 1. */
@@ -138,6 +165,25 @@ sw_status sw_cpu_max_parse(const char *text, const char *name, double *cores, sw
  * read is left unknown (cores falls back to the online CPUs, then 1; busy_cores < 0). Uses static
  * buffers: one call at a time (it is made once, at program start). */
 void sw_cpu_load_measure(double sample_s, sw_cpu_load *out);
+
+/* A reading of the machine kept between the stretches of a run (opaque): the per-CPU counters of /proc/stat,
+ * this process's CPU time and the clock at the last boundary, and the buffers to read them again. */
+typedef struct sw_cpu_mark sw_cpu_mark;
+
+/* Takes a reading now. Returns the mark (free it with sw_cpu_mark_free), or NULL when out of memory. What
+ * cannot be read is taken as unknown: the first sw_cpu_load_since then gives busy_cores < 0. */
+sw_cpu_mark *sw_cpu_mark_new(void);
+
+/* The load between the reading in m and now, without waiting: out->cores and out->quota_cores as
+ * sw_cpu_load_measure reads them now, out->busy_cores the others' use over the interval
+ * (sw_cpu_busy_between; < 0 when unknown), out->others_running the run queue now less this process's one
+ * task (information only: it counts this process's other threads too when they are runnable), out->sample_s
+ * the interval. m then holds the present reading, for the next call. Needs m and out; never fails. One
+ * thread at a time per mark. */
+void sw_cpu_load_since(sw_cpu_mark *m, sw_cpu_load *out);
+
+/* Frees a mark; NULL is accepted. */
+void sw_cpu_mark_free(sw_cpu_mark *m);
 
 /* Fills w from the environment (OMP_NUM_THREADS, OMP_WAIT_POLICY, GOMP_SPINCOUNT, SHOREWARD_THREADS_AUTO;
  * the pointers point into the environment, valid until it changes) with threads_option as --threads. */
@@ -162,6 +208,28 @@ int sw_cpu_share_wants_load(const sw_cpu_wishes *w);
  * "on" nor "off" (out then holds the choice with the switch off). */
 sw_status sw_cpu_share_decide(const sw_cpu_load *load, const sw_cpu_wishes *w, sw_cpu_choice *out,
                               sw_error *err);
+
+/* The automatic thread count for free_cores cores free of other work out of `cores` (>= 1): the whole free
+ * cores, W = free_cores + SW_CPU_SHARE_SLACK rounded down, at least 1; or, when passive is 1 (the threads
+ * may wait passively), one more when a fraction is left over and free_cores x (1 - SW_CPU_SHARE_PASSIVE_COST)
+ * > SW_CPU_SHARE_PASSIVE_GAIN x W; at most cores. A negative free_cores (unknown) gives cores. The rule of
+ * sw_cpu_share_decide, which uses it. Pure. */
+int sw_cpu_share_auto_threads(double free_cores, int cores, int passive);
+
+/* The thread count for the next stretch of a run whose count was chosen automatically, from the load over
+ * the stretch just run (sw_cpu_load_since): the free cores as sw_cpu_share_decide takes them (the CPUs less
+ * the others' busy cores, within the quota), then sw_cpu_share_auto_threads with passive = (wait ==
+ * SW_WAIT_PASSIVE): a process's waiting is fixed from its start, so a spinning one never gets more threads
+ * than whole free cores; the result is kept within 1 .. cap (cap: the count the run's buffers were made
+ * for, its count at the start). Returns `current` when load is NULL or its busy cores are unknown. Pure. */
+int sw_cpu_share_retune(const sw_cpu_load *load, sw_wait wait, int current, int cap);
+
+/* Whether a run that has `threads` threads may change them as the load changes: 1 when the process's
+ * recorded choice (sw_cpu_share_apply) is SW_THREADS_AUTO with a count > 0 and `threads` is that count
+ * (nothing set another since), with *wait (when wait is not NULL) the process's waiting; else 0, *wait
+ * untouched. Not for --threads, OMP_NUM_THREADS, SHOREWARD_THREADS_AUTO=off, nor a process that made no
+ * choice (an MPI rank, a command other than run, demo, check, compare and sweep). */
+int sw_cpu_share_adapts(int threads, sw_wait *wait);
 
 /* 1 when the choice can only take effect in a fresh process (passive waiting: see the top), else 0. */
 int sw_cpu_share_needs_restart(const sw_cpu_choice *c);

@@ -728,7 +728,25 @@ void sw_report_run(FILE *f, const sw_scenario *sc, const sw_setup *s, const sw_r
     fprintf(f, "\n%s: layout %s in %s precision, %lld steps of %.4g s, %s wall time with %d thread%s "
             "(%.3g cell-updates/s)\n", sc->title, s->layout->name, sw_precision_name(sc->precision), r->steps, s->dt_s, wall, r->threads, r->threads == 1 ? "" : "s",
             r->cell_updates_per_s);
-    if (*sw_cpu_share_note(r->threads))   /* why that many threads (base/cpu_share.h) */
+    if (r->threads_changes > 0) {   /* the count followed other programs (base/cpu_share.h, run.c time_loop) */
+        const char *why = sw_cpu_share_note(r->threads);
+        fprintf(f, "Threads: %d%s%s%s", r->threads, *why ? " (" : "", why, *why ? ")" : "");
+        const int shown = r->threads_changes < 4 ? r->threads_changes : 4;
+        for (int q = 0, was = r->threads; q < shown; was = r->threads_change_to[q++]) {
+            const int to = r->threads_change_to[q], d = to > was ? to - was : was - to;
+            char t[48], cause[48];
+            sw_format_duration(r->threads_change_t_s[q], t, sizeof t);
+            if (to < was)
+                snprintf(cause, sizeof cause, d == 1 ? "another program took a core" : "other programs took %d cores", d);
+            else
+                snprintf(cause, sizeof cause, d == 1 ? "a core came free" : "%d cores came free", d);
+            fprintf(f, "%s %d from t = %s (%s)", q ? "," : ", then", to, t, cause);
+        }
+        if (r->threads_changes > shown)
+            fprintf(f, ", ... (%d changes in all, between %d and %d threads)", r->threads_changes, r->threads_min,
+                    r->threads_max);
+        fprintf(f, "\n");
+    } else if (*sw_cpu_share_note(r->threads))   /* why that many threads (base/cpu_share.h) */
         fprintf(f, "Threads: %s\n", sw_cpu_share_note(r->threads));
     if (r->ranks > 1)
         fprintf(f, "Ranks: %d (MPI), bands of about %zu rows with %zu halo rows on each side; %.3g s of the time "
@@ -782,6 +800,17 @@ char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_
     cJSON_AddNumberToObject(run, "wall_s", r->wall_s);
     cJSON_AddNumberToObject(run, "threads", r->threads);
     cJSON_AddStringToObject(run, "threads_reason", sw_cpu_share_note(r->threads));   /* "" when none */
+    cJSON_AddNumberToObject(run, "threads_changes", r->threads_changes);   /* the count following the load */
+    cJSON_AddNumberToObject(run, "threads_min", r->threads_min);
+    cJSON_AddNumberToObject(run, "threads_max", r->threads_max);
+    cJSON *changes = cJSON_AddArrayToObject(run, "threads_changed");   /* the first 4 changes */
+    for (int q = 0; q < r->threads_changes && q < 4; q++) {
+        cJSON *e = cJSON_CreateObject();
+        cJSON_AddNumberToObject(e, "time_s", r->threads_change_t_s[q]);
+        cJSON_AddNumberToObject(e, "wall_s", r->threads_change_wall_s[q]);
+        cJSON_AddNumberToObject(e, "threads", r->threads_change_to[q]);
+        cJSON_AddItemToArray(changes, e);
+    }
     cJSON_AddNumberToObject(run, "cell_updates_per_s", r->cell_updates_per_s);
     cJSON_AddNumberToObject(run, "steps_per_sweep", r->steps_per_sweep);
     cJSON_AddStringToObject(run, "schedule", r->schedule);

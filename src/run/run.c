@@ -1,6 +1,7 @@
 /* run.c - one complete run (see run.h).
  *
- * One parallel region spans the whole time loop: each step's kernels and the tracker bind their
+ * One parallel region spans the whole time loop (one per stretch of about 2 s when the threads follow the
+ * load: time_loop): each step's kernels and the tracker bind their
  * `omp for` loops to it; gauges, snapshots and progress run in a `single` between steps. No
  * result depends on the number of threads: every cell is computed the same way by whichever
  * thread owns its row, and no sum runs across cells in the loop. While a rupture in time still moves
@@ -143,6 +144,20 @@ typedef struct {
     int waving;               /* 1 while a sweep of several steps runs: the gauges are watched row by row by
                                * the model's observer (run_row), not between steps */
     sw_step_forcing per_step[SW_WAVE_MAX_STEPS]; /* the forcing of each step of a sweep (sweep_in_region) */
+    /* the threads following the load (base/cpu_share.h; time_loop): only when the count was chosen
+     * automatically, and never in a split run or a sweep member */
+    sw_cpu_mark *mark;        /* the machine's reading at the present stretch's start; NULL: the count is fixed */
+    sw_wait wait;             /* the process's waiting, fixed from its start */
+    double recheck_at;        /* omp_get_wtime() at which the present stretch ends, s */
+    int recheck;              /* set inside `single` once recheck_at has passed: every thread leaves the region
+                               * after that step, the load is measured again */
+    long long next_step;      /* where the stretch just run stopped (written by the master thread) */
+    int threads_start;        /* the count at the start: the most the buffers are made for */
+    int threads_now;          /* the count of the present stretch */
+    int threads_min, threads_max; /* the fewest and most threads used */
+    int n_changes;            /* times the count changed */
+    double change_t_s[4], change_wall_s[4]; /* the first changes: simulated time and wall time into the loop, s */
+    int change_to[4];         /* ... and the new count */
 } run_ctx;
 
 static void snapshot_frame(run_ctx *c)
@@ -311,6 +326,15 @@ static void between_steps(run_ctx *c, int last)
     }
 }
 
+/* By one thread between steps (in `single`, whose end publishes it): once the present stretch has run its
+ * wall time, every thread is to leave the parallel region after this step so that time_loop measures the
+ * load again. Nothing when the thread count is fixed. */
+static void recheck_due(run_ctx *c)
+{
+    if (c->mark && !c->stop && omp_get_wtime() >= c->recheck_at)
+        c->recheck = 1;
+}
+
 /* Step n of n_steps, by every thread of the enclosing parallel region: the forcing's slabs and edge level
  * at the time the step ends (forcing.h), the step (which also updates the tracker attached in sw_run),
  * then by one thread the clock and the work between steps. The barrier at the end of `single` publishes
@@ -321,6 +345,7 @@ static void after_step(run_ctx *c, long long n, long long n_steps)
     if (sw_forcing_failed(c->forcing, &c->loop_err))
         c->stop = 2;
     between_steps(c, n + 1 == n_steps);   /* returns at once on a failure, all ranks alike (agree) */
+    recheck_due(c);
 }
 
 static void step_in_region(run_ctx *c, long long n, long long n_steps)
@@ -419,6 +444,7 @@ static void sweep_in_region(run_ctx *c, long long n, int k, long long n_steps)
             c->stop = 2;
         between_steps(c, n + k == n_steps);
         c->waving = 0;
+        recheck_due(c);
     }
 }
 
@@ -435,28 +461,88 @@ static void run_row(void *ctx, const sw_model *m, size_t j, double time_s, const
     }
 }
 
+/* Whether the threads follow the load in this run (base/cpu_share.h): when the process chose the count
+ * itself (not --threads, OMP_NUM_THREADS or SHOREWARD_THREADS_AUTO=off) and nothing set another since; not
+ * in a split run (every rank keeps its threads) nor a sweep member (one-thread regions nested in the
+ * sweep's); not from one thread (the buffers are made for the start's count: it can only go down). Then
+ * takes the first reading and starts the first stretch. */
+static void threads_watch_start(run_ctx *c)
+{
+    c->threads_start = c->threads_now = c->threads_min = c->threads_max = omp_get_max_threads();
+    if (c->split || c->opt->sink || c->opt->threads > 0 || c->threads_start < 2 ||
+        !sw_cpu_share_adapts(c->threads_start, &c->wait))
+        return;
+    c->mark = sw_cpu_mark_new();   /* NULL (no memory): the count stays */
+    c->recheck_at = omp_get_wtime() + SW_CPU_SHARE_RECHECK_S;
+}
+
+/* Between two stretches, outside any parallel region: the others' load over the stretch just run, without
+ * waiting, and the count for the next (sw_cpu_share_retune), put into effect for the next region and kept
+ * for the summary. */
+static void threads_retune(run_ctx *c)
+{
+    sw_cpu_load load;
+    sw_cpu_load_since(c->mark, &load);
+    const int t = sw_cpu_share_retune(&load, c->wait, c->threads_now, c->threads_start);
+    if (t != c->threads_now) {
+        omp_set_num_threads(t);
+        const int q = c->n_changes;
+        if (q < (int)(sizeof c->change_to / sizeof c->change_to[0])) {
+            c->change_t_s[q] = sw_model_time(c->model);
+            c->change_wall_s[q] = omp_get_wtime() - c->t_start;
+            c->change_to[q] = t;
+        }
+        c->n_changes++;
+        c->threads_now = t;
+        c->threads_min = t < c->threads_min ? t : c->threads_min;
+        c->threads_max = t > c->threads_max ? t : c->threads_max;
+    }
+    c->recheck = 0;
+    c->recheck_at = omp_get_wtime() + SW_CPU_SHARE_RECHECK_S;
+}
+
+/* The steps from c->first_step to the end. While a rupture goes on each step adds the sea floor's motion
+ * first (docs/faults.md), in a region of its own; once the last segment has stopped, the steps run as
+ * without it, in one parallel region, or, when the threads follow the load, in one region per stretch of
+ * about SW_CPU_SHARE_RECHECK_S of wall time with the load measured between them. Every thread leaves a
+ * stretch's region at the same step (c->recheck, set in `single`), between two steps or sweeps: the steps,
+ * the sweeps and so the results are those of one region. */
 static void time_loop(run_ctx *c)
 {
     const long long n_steps = c->setup->n_steps;
     long long first = c->first_step;
-    /* while a rupture goes on each step adds the sea floor's motion first (docs/faults.md); once the last
-     * segment has stopped, the steps run as without it, in one parallel region */
-    while (c->faults && first < n_steps && (double)first * sw_model_dt(c->model) < c->fault_end_s)
+    threads_watch_start(c);
+    while (c->faults && first < n_steps && (double)first * sw_model_dt(c->model) < c->fault_end_s) {
         if (rupture_step(c, first++, n_steps))
-            return;
-    SW_OMP(parallel)
-    {
-        for (long long n = first; n < n_steps;) {
-            const int k = c->wave_k > 1 ? sweep_steps(c, n, n_steps) : 1;
-            if (k > 1)
-                sweep_in_region(c, n, k, n_steps);
-            else
-                step_in_region(c, n, n_steps);
-            n += k;
-            if (c->stop)
-                break;
-        }
+            break;
+        if (c->mark && omp_get_wtime() >= c->recheck_at)
+            threads_retune(c);
     }
+    while (!c->stop && first < n_steps) {
+        SW_OMP(parallel)
+        {
+            long long n = first;
+            while (n < n_steps) {
+                const int k = c->wave_k > 1 ? sweep_steps(c, n, n_steps) : 1;
+                if (k > 1)
+                    sweep_in_region(c, n, k, n_steps);
+                else
+                    step_in_region(c, n, n_steps);
+                n += k;
+                if (c->stop || c->recheck)
+                    break;
+            }
+            SW_OMP(master)
+            c->next_step = n;   /* every thread's n is the same; the region's end publishes it */
+        }
+        first = c->next_step;
+        if (c->recheck && !c->stop && first < n_steps)
+            threads_retune(c);
+    }
+    if (c->mark && c->threads_now != c->threads_start)
+        omp_set_num_threads(c->threads_start);   /* a next run in this process starts as this one did */
+    sw_cpu_mark_free(c->mark);
+    c->mark = NULL;
 }
 
 int sw_run_schedule(const sw_scenario *sc, const sw_setup *setup, int threads, int asked, int ranks, char *why,
@@ -716,6 +802,12 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
             time_loop(&c);
         res->wall_s = omp_get_wtime() - c.t_start;
         res->ranks = split ? split->size : 1;
+        res->threads_changes = c.n_changes;   /* the threads following the load (time_loop) */
+        res->threads_min = c.n_changes ? c.threads_min : res->threads;
+        res->threads_max = c.n_changes ? c.threads_max : res->threads;
+        memcpy(res->threads_change_t_s, c.change_t_s, sizeof c.change_t_s);
+        memcpy(res->threads_change_wall_s, c.change_wall_s, sizeof c.change_wall_s);
+        memcpy(res->threads_change_to, c.change_to, sizeof c.change_to);
         if (split && !c.stop) {   /* rank 0 then holds what one process would */
             sw_split_gather(split, c.model, c.tracker, c.gauges, sc->n_gauges);
             long long most[2] = {llround(split->exchange_s * 1e6), llround(split->halo_bytes)};

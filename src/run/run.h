@@ -76,7 +76,7 @@ typedef struct {
     char gauges_path[SW_PATH_MAX];    /* files written; gauges_path is "" when there are no gauges */
     char maps_path[SW_PATH_MAX];
     char snapshots_path[SW_PATH_MAX]; /* "" when no snapshots were asked for */
-    int threads;                      /* threads used */
+    int threads;                      /* threads at the start (threads_min / threads_max: all it used) */
     long long steps;                  /* steps taken */
     double end_time_s;                /* simulated time at the end, s */
     double wall_s;                    /* wall-clock time of the time loop, s */
@@ -94,6 +94,14 @@ typedef struct {
     double exchanges_per_step;        /* split runs: halo exchanges per step (each with both neighbours) */
     int steps_per_sweep;              /* the schedule: steps per sweep over memory (sw_run_schedule) */
     char schedule[200];               /* the schedule in words, with why (sw_run_schedule) */
+    int threads_changes;              /* times the thread count changed as other programs took or freed cores
+                                       * (base/cpu_share.h: a count chosen automatically only), 0 = never */
+    int threads_min, threads_max;     /* the fewest and the most threads used (both `threads` when the count
+                                       * never changed) */
+    double threads_change_t_s[4];     /* the first (up to 4) changes: the simulated time from which the new
+                                       * count ran, s */
+    double threads_change_wall_s[4];  /* ... the wall-clock time into the time loop then, s */
+    int threads_change_to[4];         /* ... and the new count */
 } sw_run_result;
 
 /* The schedule a run of sc will step with on `threads` threads, split over `ranks` processes (0 or 1: not

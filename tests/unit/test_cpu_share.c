@@ -21,6 +21,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 
 #include <cmocka.h>
 
@@ -408,6 +409,178 @@ static void test_apply_and_note(void **state)
     omp_set_num_threads(before);
 }
 
+/* ---- a run following the load: readings at the stretches' ends, and the count for the next ------------ */
+
+/* Invented /proc/stat readings of a 2-CPU machine, 2 s apart at 100 ticks per s (200 ticks per CPU), for a
+ * run whose stretch ended at B_*: the counters of each CPU are "user nice system idle iowait irq softirq
+ * steal guest guest_nice". */
+static const char *const STAT_T0 =
+    "cpu  20000 0 4000 100000 200 0 0 0 0 0\n"
+    "cpu0 10000 0 2000 50000 100 0 0 0 0 0\n"
+    "cpu1 10000 0 2000 50000 100 0 0 0 0 0\n"
+    "intr 1 2 3\n";
+/* both CPUs busy all 200 ticks (user 190 + system 10 each) */
+static const char *const STAT_BOTH_BUSY =
+    "cpu  20380 0 4020 100000 200 0 0 0 0 0\n"
+    "cpu0 10190 0 2010 50000 100 0 0 0 0 0\n"
+    "cpu1 10190 0 2010 50000 100 0 0 0 0 0\n";
+/* cpu0 busy all 200 ticks; cpu1 busy 4 ticks, idle 195, iowait 1 */
+static const char *const STAT_ONE_BUSY =
+    "cpu  20194 0 4010 100195 201 0 0 0 0 0\n"
+    "cpu0 10190 0 2010 50000 100 0 0 0 0 0\n"
+    "cpu1 10004 0 2000 50195 101 0 0 0 0 0\n";
+
+/* The reading of `text` (parsed into t[4]) at wall_s with this process's CPU time own_s. */
+static sw_cpu_reading reading_of(const char *text, sw_cpu_times *t, double wall_s, double own_s)
+{
+    size_t n = 0;
+    assert_int_equal(sw_cpu_stat_parse(text, "stat", t, 4, &n, NULL), SW_OK);
+    return (sw_cpu_reading){.cpus = t, .n_cpus = n, .wall_s = wall_s, .own_cpu_s = own_s};
+}
+
+static void test_busy_between(void **state)
+{
+    (void)state;
+    sw_cpu_times t0[4], t1[4];
+    const unsigned char both[2] = {1, 1}, only1[2] = {0, 1};
+    const sw_cpu_reading a = reading_of(STAT_T0, t0, 100.0, 50.0);
+    /* quiet, 2 threads spinning: both CPUs busy, all of it this process's (4 s of CPU in 2 s) [derived] */
+    sw_cpu_reading b = reading_of(STAT_BOTH_BUSY, t1, 102.0, 54.0);
+    assert_near(sw_cpu_busy_between(&a, &b, both, 2), 0.0, 1e-12);
+    /* a busy loop on cpu1 shares it with one of the 2 threads: 3 s of CPU ours, 1 s (0.5 core) theirs */
+    b.own_cpu_s = 53.0;
+    assert_near(sw_cpu_busy_between(&a, &b, both, 2), 0.5, 1e-12);
+    /* 1 thread and the loop holding cpu1: 2 s ours, 1 core theirs */
+    b.own_cpu_s = 52.0;
+    assert_near(sw_cpu_busy_between(&a, &b, both, 2), 1.0, 1e-12);
+    /* only cpu1 allowed (taskset): its 200 busy ticks less our 2 s / 2 s [derived] */
+    assert_near(sw_cpu_busy_between(&a, &b, only1, 2), 0.0, 1e-12);
+    /* 1 thread on a quiet machine: cpu1 busy 4 of 200 ticks, 0.02 core that is not ours */
+    b = reading_of(STAT_ONE_BUSY, t1, 102.0, 52.0);
+    assert_near(sw_cpu_busy_between(&a, &b, both, 2), 0.02, 1e-12);
+    /* our CPU time a little beyond the ticks (the ticks are sampled): clamped at 0 */
+    b.own_cpu_s = 52.1;
+    assert_near(sw_cpu_busy_between(&a, &b, both, 2), 0.0, 1e-12);
+    /* no interval, or /proc/stat unreadable at either end: unknown */
+    b.wall_s = a.wall_s;
+    assert_near(sw_cpu_busy_between(&a, &b, both, 2), -1.0, 0);
+    b.wall_s = 102.0;
+    b.n_cpus = 0;
+    assert_near(sw_cpu_busy_between(&a, &b, both, 2), -1.0, 0);
+    assert_near(sw_cpu_busy_between(NULL, &a, both, 2), -1.0, 0);
+}
+
+static void test_auto_threads(void **state)
+{
+    (void)state;
+    /* whole free cores with SW_CPU_SHARE_SLACK; one more only with passive waiting and enough gain [derived
+     * from the rule in cpu_share.h] */
+    assert_int_equal(sw_cpu_share_auto_threads(2.0, 2, 0), 2);
+    assert_int_equal(sw_cpu_share_auto_threads(1.95, 2, 0), 2);   /* 1.95 + 0.1 -> 2 */
+    assert_int_equal(sw_cpu_share_auto_threads(1.85, 2, 0), 1);
+    assert_int_equal(sw_cpu_share_auto_threads(1.85, 2, 1), 2);   /* 1.85 x 0.93 = 1.72 > 1.1 x 1 */
+    assert_int_equal(sw_cpu_share_auto_threads(1.15, 2, 1), 1);   /* 1.15 x 0.93 = 1.07 < 1.1 */
+    assert_int_equal(sw_cpu_share_auto_threads(0.0, 2, 1), 1);    /* at least one */
+    assert_int_equal(sw_cpu_share_auto_threads(60.8, 64, 1), 60); /* 60.8 x 0.93 < 1.1 x 60 */
+    assert_int_equal(sw_cpu_share_auto_threads(2.5, 4, 1), 3);    /* 2.5 x 0.93 = 2.33 > 2.2 */
+    assert_int_equal(sw_cpu_share_auto_threads(9.0, 4, 0), 4);    /* at most the cores */
+    assert_int_equal(sw_cpu_share_auto_threads(-1, 3, 0), 3);     /* unknown: all cores */
+    assert_int_equal(sw_cpu_share_auto_threads(-1, 0, 0), 1);
+}
+
+/* The count for the next stretch from the readings above: the chain run.c's time_loop makes. */
+static int retune_from(const char *after_text, double own_s, sw_wait wait, int current, int cap)
+{
+    sw_cpu_times t0[4], t1[4];
+    const unsigned char both[2] = {1, 1};
+    const sw_cpu_reading a = reading_of(STAT_T0, t0, 100.0, 50.0), b = reading_of(after_text, t1, 102.0, own_s);
+    const sw_cpu_load load = {.cores = 2, .busy_cores = sw_cpu_busy_between(&a, &b, both, 2), .others_running = 1,
+                              .sample_s = 2.0};
+    return sw_cpu_share_retune(&load, wait, current, cap);
+}
+
+static void test_retune(void **state)
+{
+    (void)state;
+    /* quiet, 2 spinning threads: stay at 2 */
+    assert_int_equal(retune_from(STAT_BOTH_BUSY, 54.0, SW_WAIT_SPIN, 2, 2), 2);
+    /* another program took half of cpu1 from a spinning pair: 1.5 free cores, spinning -> 1 thread */
+    assert_int_equal(retune_from(STAT_BOTH_BUSY, 53.0, SW_WAIT_SPIN, 2, 2), 1);
+    /* ... the same in a process that waits passively (it restarted for it): 2 (1.5 x 0.93 > 1.1) */
+    assert_int_equal(retune_from(STAT_BOTH_BUSY, 53.0, SW_WAIT_PASSIVE, 2, 2), 2);
+    /* ... and with the user's waiting: whole cores only, as at the start */
+    assert_int_equal(retune_from(STAT_BOTH_BUSY, 53.0, SW_WAIT_USER, 2, 2), 1);
+    /* 1 thread, the other program still holding a core: stay at 1 */
+    assert_int_equal(retune_from(STAT_BOTH_BUSY, 52.0, SW_WAIT_SPIN, 1, 2), 1);
+    assert_int_equal(retune_from(STAT_BOTH_BUSY, 52.0, SW_WAIT_PASSIVE, 1, 2), 1);
+    /* 1 thread, the core freed (0.02 core of others): back to 2, never beyond the start's count */
+    assert_int_equal(retune_from(STAT_ONE_BUSY, 52.0, SW_WAIT_SPIN, 1, 2), 2);
+    assert_int_equal(retune_from(STAT_ONE_BUSY, 52.0, SW_WAIT_SPIN, 1, 1), 1);
+    /* unknown load: the count stays */
+    const sw_cpu_load unknown = {.cores = 2, .busy_cores = -1};
+    assert_int_equal(sw_cpu_share_retune(&unknown, SW_WAIT_SPIN, 2, 2), 2);
+    assert_int_equal(sw_cpu_share_retune(NULL, SW_WAIT_SPIN, 1, 2), 1);
+    /* 8 CPUs, 4 busy, a quota of 3 cores: 3 threads within the 4 the run started with */
+    const sw_cpu_load quota = {.cores = 8, .quota_cores = 3.0, .busy_cores = 4.0};
+    assert_int_equal(sw_cpu_share_retune(&quota, SW_WAIT_SPIN, 4, 4), 3);
+    assert_int_equal(sw_cpu_share_retune(&quota, SW_WAIT_SPIN, 2, 2), 2);
+}
+
+static void test_adapts(void **state)
+{
+    (void)state;
+    const int before = omp_get_max_threads();
+    sw_wait wait = SW_WAIT_USER;
+    sw_cpu_choice c = {.threads = 2, .from = SW_THREADS_AUTO, .wait = SW_WAIT_SPIN, .cores = 2, .free_cores = 2};
+    sw_cpu_share_apply(&c);
+    assert_int_equal(sw_cpu_share_adapts(2, &wait), 1);
+    assert_int_equal(wait, SW_WAIT_SPIN);
+    assert_int_equal(sw_cpu_share_adapts(3, NULL), 0);   /* something set another count since */
+    c.wait = SW_WAIT_PASSIVE;
+    sw_cpu_share_apply(&c);
+    assert_int_equal(sw_cpu_share_adapts(2, &wait), 1);
+    assert_int_equal(wait, SW_WAIT_PASSIVE);
+    static const sw_threads_from fixed[] = {SW_THREADS_OPTION, SW_THREADS_ENV, SW_THREADS_DEFAULT};
+    for (size_t q = 0; q < sizeof fixed / sizeof fixed[0]; q++) {   /* the user's count stays the user's */
+        c.from = fixed[q];
+        sw_cpu_share_apply(&c);
+        wait = SW_WAIT_USER;
+        assert_int_equal(sw_cpu_share_adapts(2, &wait), 0);
+        assert_int_equal(wait, SW_WAIT_USER);   /* untouched */
+    }
+    c.from = SW_THREADS_AUTO;   /* a count of 0 (OpenMP's) is no automatic choice */
+    c.threads = 0;
+    sw_cpu_share_apply(&c);
+    assert_int_equal(sw_cpu_share_adapts(2, NULL), 0);
+    omp_set_num_threads(before);
+}
+
+/* The re-measuring on this machine, without sleeping: only its shape can be checked. */
+static void test_mark_here(void **state)
+{
+    (void)state;
+    sw_cpu_mark *m = sw_cpu_mark_new();
+    assert_non_null(m);
+    volatile double x = 0;   /* some CPU time of our own between the readings, about 20 ms */
+    const clock_t end = clock() + CLOCKS_PER_SEC / 50;
+    while (clock() < end)
+        x += 1e-9;
+    sw_cpu_load l;
+    sw_cpu_load_since(m, &l);
+    print_message("here, since the mark: %d cores, quota %.2f, busy %.2f over %.3f s, others running %d\n",
+                  l.cores, l.quota_cores, l.busy_cores, l.sample_s, l.others_running);
+    assert_true(l.cores >= 1);
+    assert_true(l.quota_cores >= 0);
+    assert_true(l.sample_s > 0 && l.sample_s < 5);
+    assert_true(l.busy_cores <= l.cores);
+    sw_cpu_load_since(m, &l);   /* at once again: a short interval, counted or not */
+    assert_true(l.sample_s >= 0 && l.busy_cores <= l.cores);
+    const int t = sw_cpu_share_retune(&l, SW_WAIT_SPIN, 1, 64);
+    assert_true(t >= 1 && t <= l.cores);
+    sw_cpu_mark_free(m);
+    sw_cpu_mark_free(NULL);
+}
+
 /* The measurement on this machine: only its shape can be checked (the load is whatever it is). */
 static void test_measure_here(void **state)
 {
@@ -440,6 +613,11 @@ int main(void)
         cmocka_unit_test(test_export_import),
         cmocka_unit_test(test_apply_and_note),
         cmocka_unit_test(test_measure_here),
+        cmocka_unit_test(test_busy_between),
+        cmocka_unit_test(test_auto_threads),
+        cmocka_unit_test(test_retune),
+        cmocka_unit_test(test_adapts),
+        cmocka_unit_test(test_mark_here),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
