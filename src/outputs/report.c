@@ -817,6 +817,7 @@ char *sw_report_run_json(const sw_scenario *sc, const sw_setup *s, const sw_run_
     cJSON_AddNumberToObject(run, "ranks", r->ranks);
     if (r->ranks > 1) {
         cJSON_AddNumberToObject(run, "halo_rows", (double)r->halo_rows);
+        cJSON_AddNumberToObject(run, "sweep_halo_rows", (double)r->sweep_halo_rows);
         cJSON_AddNumberToObject(run, "exchange_s", r->exchange_s);
         cJSON_AddNumberToObject(run, "halo_bytes_per_step", r->halo_bytes_per_step);
         cJSON_AddNumberToObject(run, "exchanges_per_step", r->exchanges_per_step);

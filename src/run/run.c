@@ -814,6 +814,7 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
             split->ops->max_ll(split, most, 2);
             const long long steps = (long long)llround(sw_model_time(c.model) / sw_model_dt(c.model)) - c.first_step;
             res->halo_rows = split->halo;
+            res->sweep_halo_rows = c.wave_k > 1 ? sw_model_wave_halo(c.model, c.wave_k) : 0;
             res->exchange_s = (double)most[0] * 1e-6;
             res->halo_bytes_per_step = steps > 0 ? (double)most[1] / (double)steps : 0;
             res->exchanges_per_step = steps > 0 ? (double)split->exchanges / (double)steps : 0;

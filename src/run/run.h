@@ -89,6 +89,9 @@ typedef struct {
     double air_pressure_min_pa;       /* lowest air pressure over the water, Pa; NaN likewise */
     int ranks;                        /* processes the run was split over (1: not split) */
     size_t halo_rows;                 /* rows of each band's halo on each side (split runs), else 0 */
+    size_t sweep_halo_rows;           /* split runs sweeping several steps: the rows of a sweep's halo on each
+                                       * side, exchanged once a sweep and computed by the band too
+                                       * (sw_model_wave_halo), else 0 */
     double exchange_s;                /* split runs: wall-clock time in halo exchanges, the most of any rank, s */
     double halo_bytes_per_step;       /* split runs: bytes a rank sends per step, the most of any rank */
     double exchanges_per_step;        /* split runs: halo exchanges per step (each with both neighbours) */
