@@ -122,7 +122,11 @@ sw_status sw_step_plan_build(const sw_layout_kernels *k, sw_terms_variant varian
     out->wave_ghost_lag = out->max_lag + SW_GHOST_REACH;
     out->wave_obs_lag = imax(out->obs_lag, out->ghosts_before_obs ? out->wave_ghost_lag + reach + 1 : 0);
     out->wave_tail = imax(imax(out->max_lag, out->wave_ghost_lag), out->wave_obs_lag);
-    out->wave_gap = out->wave_tail + 3 * reach + 4;
+    /* iteration i touches rows i - behind .. i + reach: a stage's row i - lag and the rows it reads; the
+     * ghosts of row i - wave_ghost_lag; the row observed in the continuity pass, i - wave_obs_lag - 1, the
+     * rows its centre values read, and a gauge's lower stencil row below it with its own (the + 2) */
+    const int behind = imax(imax(out->max_lag + reach, out->wave_ghost_lag), out->wave_obs_lag + 2 + reach);
+    out->wave_gap = behind + reach;
     return SW_OK;
 }
 #endif

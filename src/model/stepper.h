@@ -53,9 +53,10 @@ typedef struct {
     int wave_obs_lag;                    /* >= obs_lag, and, where the centre values read halo cells (E),
                                           * after the ghosts of every row they read */
     int wave_tail;                       /* iterations of a step past row ny: the largest lag */
-    int wave_gap;                        /* rows between the iterations of consecutive steps: more than
-                                          * every row one iteration touches (wave_tail + 2 wave_reach + 3
-                                          * below it, wave_reach above) */
+    int wave_gap;                        /* rows between the iterations of consecutive steps: as many as one
+                                          * iteration spans, from the rows it touches furthest behind (the
+                                          * row observed in its continuity pass, the rows that row's and a
+                                          * gauge's lower row's centre values read) to wave_reach ahead */
 } sw_step_plan;
 
 /* Rows beyond a ghost's inner row that a layout's edge_velocities reads (each layout's ghost velocity is
