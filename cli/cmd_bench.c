@@ -6,15 +6,19 @@
 #include "studies/bench.h"
 #include "cli.h"
 #include "model/layout.h"
+#include "model/model.h"
 
 static const char *const usage_bench =
     "Usage: shoreward bench [--size N] [--threads LIST] [--rounds R] [--precision P] [--layouts LIST]\n"
-    "                       [--no-numpy] [--json]\n"
+    "                       [--steps-per-sweep K] [--no-numpy] [--json]\n"
     "\n"
     "Measures, in one process and in interleaved rounds so that machine noise hits every figure alike:\n"
     "  - the STREAM triad bandwidth (McCalpin's kernel, best of 3 per round);\n"
     "  - each layout's step on a large grid (working set >= 4 x last-level cache and >= 2 GB) and on a\n"
     "    cache-resident grid, with and without arrival/extreme tracking, and over thread counts;\n"
+    "  - each layout's step in sweeps of K steps over memory on the large grid (temporal blocking, what a\n"
+    "    run on that grid does) beside the one-step step, its effective bandwidth against triad, and its\n"
+    "    tracking cost on the moving source; the two schedules are checked to leave the same bits;\n"
     "  - the same C-layout scheme written in plain vectorised NumPy (tools/bench_numpy.py);\n"
     "  - each layout's step with surface forcing beside the plain step: a moving storm (its slabs rebuilt\n"
     "    every 600 s of model time), a weather file (hourly slabs), and the forced step with its slabs held;\n"
@@ -34,12 +38,15 @@ static const char *const usage_bench =
     "  --rounds R      interleaved rounds, 3 to 32 (default 5)\n"
     "  --precision P   single (default: the performance targets are stated for it) or double\n"
     "  --layouts LIST  layouts to measure, e.g. C or A,C (default: all)\n"
+    "  --steps-per-sweep K  steps per sweep of the blocked figures, 1 to 16 (default: what a run on the\n"
+    "                  large grid with the most threads chooses, for each layout)\n"
     "  --no-numpy      skip the NumPy comparison\n"
     "  --json          print the figures as one JSON object on stdout\n"
     "\n"
     "Example:\n"
     "  shoreward bench --size 3000 --rounds 3\n"
-    "  shoreward bench --layouts C --precision double\n";
+    "  shoreward bench --layouts C --precision double\n"
+    "  shoreward bench --layouts C,E --steps-per-sweep 8\n";
 
 static void show(const char *what, void *user)
 {
@@ -76,6 +83,12 @@ int cmd_bench(int argc, char **argv, const char *history)
             if (*end || n < 3 || n > 32)
                 return cli_usage_error("bench", "--rounds takes a whole number from 3 to 32, not '%s'", val);
             opt.rounds = (int)n;
+            k++;
+        } else if (!strcmp(s, "--steps-per-sweep") && val) {
+            long n = strtol(val, &end, 10);
+            if (*end || n < 1 || n > SW_WAVE_MAX_STEPS)
+                return cli_usage_error("bench", "--steps-per-sweep takes a whole number from 1 to 16, not '%s'", val);
+            opt.steps_per_sweep = (int)n;
             k++;
         } else if (!strcmp(s, "--precision") && val) {
             if (!sw_precision_parse(val, &opt.precision))

@@ -171,15 +171,38 @@ static double time_steps(sw_model *m, sw_tracker *t, int threads, int steps)
     return wall;
 }
 
-/* time_steps with t attached, adding to *seen and *updated the row segments those steps' updates looked
- * at and rewrote maps in (sw_tracker_segments over these steps only, not since the tracker's creation,
- * whose first update rewrites every segment). */
-static double time_tracked_steps(sw_model *m, sw_tracker *t, int threads, int steps, long long *seen,
+/* Seconds for `steps` steps as a run on a large grid takes them: in sweeps of k steps over memory
+ * (sw_model_steps, which ticks the clock itself; the last sweep shorter when k does not divide steps),
+ * with t attached when not NULL, on `threads` threads. */
+static double time_sweeps(sw_model *m, sw_tracker *t, int threads, int steps, int k)
+{
+    omp_set_num_threads(threads);
+    if (sw_tracker_attach(t, m, NULL) != SW_OK)
+        return NAN;
+    double t0 = omp_get_wtime();
+    SW_OMP(parallel)
+    for (int n = 0; n < steps; n += k)
+        sw_model_steps(m, n + k <= steps ? k : steps - n);
+    double wall = omp_get_wtime() - t0;
+    sw_tracker_attach(NULL, m, NULL);
+    return wall;
+}
+
+/* Steps rounded up to a whole number of sweeps of k (a timed slice of the blocked step ends on a sweep). */
+static int whole_sweeps(int steps, int k)
+{
+    return (steps + k - 1) / k * k;
+}
+
+/* time_steps (k = 1) or time_sweeps (k > 1) with t attached, adding to *seen and *updated the row
+ * segments those steps' updates looked at and rewrote maps in (sw_tracker_segments over these steps
+ * only, not since the tracker's creation, whose first update rewrites every segment). */
+static double time_tracked_steps(sw_model *m, sw_tracker *t, int threads, int steps, int k, long long *seen,
                                  long long *updated)
 {
     long long s0, u0, s1, u1;
     sw_tracker_segments(t, &s0, &u0);
-    const double wall = time_steps(m, t, threads, steps);
+    const double wall = k > 1 ? time_sweeps(m, t, threads, steps, k) : time_steps(m, t, threads, steps);
     sw_tracker_segments(t, &s1, &u1);
     *seen += s1 - s0;
     *updated += u1 - u0;
@@ -226,6 +249,52 @@ static int reference_identical(size_t n, sw_precision precision, int threads)
     return same;
 }
 
+/* 1 when the first n parts at pa (bytes ba) and at pb (bytes bb), as sw_model_state_parts or
+ * sw_tracker_state_parts give them, have the same sizes and the same bits, else 0. */
+static int same_parts(size_t n, void *const *pa, const size_t *ba, void *const *pb, const size_t *bb)
+{
+    for (size_t q = 0; q < n; q++)
+        if (ba[q] != bb[q] || memcmp(pa[q], pb[q], ba[q]) != 0)
+            return 0;
+    return 1;
+}
+
+/* 1 when 50 steps in sweeps of k (sw_model_steps; the last sweep shorter when k does not divide 50) and
+ * 50 single steps leave the same bits, state and clock and tracking maps, on two n x n models of layout
+ * lay built alike, each with a tracker attached, on `threads` threads: the blocked figures time the same
+ * computation as the one-step ones. 0 when they differ or there was no memory to check. */
+static int blocked_identical(const sw_layout *lay, size_t n, sw_precision precision, int threads, int k)
+{
+    enum { STEPS = 50 };
+    sw_model *a = make_model(lay, n, precision, NULL, NULL), *b = make_model(lay, n, precision, NULL, NULL);
+    sw_tracker *ta = NULL, *tb = NULL;
+    int same = a && b && sw_tracker_create(a, 0.01, threads, &ta, NULL) == SW_OK
+               && sw_tracker_create(b, 0.01, threads, &tb, NULL) == SW_OK;
+    if (same) {
+        long long seen = 0, updated = 0;
+        same = time_tracked_steps(a, ta, threads, STEPS, 1, &seen, &updated) >= 0
+               && time_tracked_steps(b, tb, threads, STEPS, k, &seen, &updated) >= 0;   /* NaN: no memory */
+    }
+    if (same) {
+        void *pa[SW_MODEL_STATE_PARTS], *pb[SW_MODEL_STATE_PARTS];
+        size_t ba[SW_MODEL_STATE_PARTS], bb[SW_MODEL_STATE_PARTS];
+        const size_t na = sw_model_state_parts(a, pa, ba), nb = sw_model_state_parts(b, pb, bb);
+        same = na == nb && same_parts(na, pa, ba, pb, bb);
+    }
+    if (same) {
+        void *pa[SW_TRACKER_STATE_PARTS], *pb[SW_TRACKER_STATE_PARTS];
+        size_t ba[SW_TRACKER_STATE_PARTS], bb[SW_TRACKER_STATE_PARTS];
+        sw_tracker_state_parts(ta, pa, ba);
+        sw_tracker_state_parts(tb, pb, bb);
+        same = same_parts(6, pa, ba, pb, bb);   /* the five maps and the segment summaries, not the counts */
+    }
+    sw_tracker_free(ta);
+    sw_tracker_free(tb);
+    sw_model_free(a);
+    sw_model_free(b);
+    return same;
+}
+
 /* Steps that make a measurement last about MEASURE_S, from one timed step. */
 static int steps_for(sw_model *m, int threads)
 {
@@ -267,7 +336,7 @@ static void bench_forcing(const sw_bench_options *opt, const sw_layout *lay, sw_
 /* All figures of one layout, interleaved with triad. */
 static void bench_geographic(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, sw_model *big,
                              sw_bench_layout *out);
-static void bench_moving(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, int slice,
+static void bench_moving(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, int slice, int k,
                          sw_bench_layout *out);
 
 static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res,
@@ -296,7 +365,15 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
         return err->code ? err->code : sw_fail(err, SW_ERR_NOMEM, "out of memory for the benchmark");
     }
     int steps_big = steps_for(big, top), steps_small = steps_for(small, top);
-    samples lgt = {0}, rt = {0}, ref = {0}, rr = {0};
+    /* several steps per sweep: the option's k, else the one a run on this grid with these threads takes */
+    size_t window = 0;
+    out->steps_per_sweep_auto = sw_model_wave_auto(big, top, res->llc_bytes, &window);
+    const int k = opt->steps_per_sweep > 0 ? opt->steps_per_sweep : out->steps_per_sweep_auto;
+    out->steps_per_sweep = k;
+    out->wave_window_bytes = k > 1 && out->steps_per_sweep_auto > 1
+        ? window / (size_t)out->steps_per_sweep_auto * (size_t)k : 0;   /* the window grows as k */
+    const int slice_blocked = whole_sweeps(steps_big, k);
+    samples lgt = {0}, rt = {0}, ref = {0}, rr = {0}, lb = {0}, rb = {0};
     const double cells = (double)res->n_large * (double)res->n_large;
     const double cells_small = (double)res->n_small * (double)res->n_small;
     samples tri = {0}, lg = {0}, lt = {0}, sm = {0}, sc[SW_BENCH_MAX_THREADS] = {{{0}, 0}}, np = {0}, npc = {0};
@@ -309,7 +386,7 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
         push(&tri, sw_bench_triad(triad_n, 3));
         /* the plain step and what it is compared with, in PAIRS slices taken turn about (the order
          * alternating from round to round): a shared machine's slow spells then fall on both alike */
-        double t_plain = 0, t_with = 0, t_old = 0;
+        double t_plain = 0, t_with = 0, t_old = 0, t_blocked = 0;
         const int slice = steps_big;
         for (int q = 0; q < PAIRS; q++) {
             const int later = (r + q) % 2;
@@ -317,14 +394,21 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
                 t_with += time_steps(big_terms, NULL, top, slice);
             if (later && is_c)
                 t_old += time_reference_steps(big, top, slice);
+            if (later)
+                t_blocked += time_sweeps(big, NULL, top, slice_blocked, k);
             t_plain += time_steps(big, NULL, top, slice);
             if (!later && big_terms)
                 t_with += time_steps(big_terms, NULL, top, slice);
             if (!later && is_c)
                 t_old += time_reference_steps(big, top, slice);
+            if (!later)
+                t_blocked += time_sweeps(big, NULL, top, slice_blocked, k);
         }
         const double plain = cells * slice * PAIRS / t_plain;
         push(&lg, plain);
+        const double blocked = cells * slice_blocked * PAIRS / t_blocked;
+        push(&lb, blocked);
+        push(&rb, blocked / plain);
         if (big_terms) {
             const double with = cells * slice * PAIRS / t_with;
             push(&lgt, with);
@@ -335,7 +419,7 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
             push(&ref, old);
             push(&rr, plain / old);
         }
-        push(&lt, cells * steps_big / time_tracked_steps(big, tr, top, steps_big, &seen, &updated));
+        push(&lt, cells * steps_big / time_tracked_steps(big, tr, top, steps_big, 1, &seen, &updated));
         push(&sm, cells_small * steps_small / time_steps(small, NULL, top, steps_small));
         for (int q = 0; q < res->n_threads; q++)
             push(&sc[q], cells * steps_big / time_steps(big, NULL, res->threads[q], steps_big));
@@ -355,6 +439,11 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
     out->reference_ratio = summarise(&rr).median;
     if (is_c)
         out->reference_identical = reference_identical(res->n_small, opt->precision, top);
+    out->large_blocked = summarise(&lb);
+    out->blocked_ratio = summarise(&rb).median;
+    out->blocked_bandwidth = out->large_blocked.median * lay->stream_values * (double)res->real_bytes;
+    out->blocked_bandwidth_ratio = out->triad.median > 0 ? out->blocked_bandwidth / out->triad.median : 0;
+    out->blocked_identical = blocked_identical(lay, res->n_small, opt->precision, top, k);
     out->large_tracked = summarise(&lt);
     out->small = summarise(&sm);
     for (int q = 0; q < res->n_threads; q++)
@@ -379,7 +468,7 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
     sw_model_free(small);
     /* after big_terms is freed: the moving model takes its room; half slices (a ratio needs no more, and the
      * tracked slices of a moving grid take three times as long) */
-    bench_moving(opt, lay, res, steps_big / 2 > 2 ? steps_big / 2 : 2, out);
+    bench_moving(opt, lay, res, steps_big / 2 > 2 ? steps_big / 2 : 2, k, out);
     bench_forcing(opt, lay, res, big, out);   /* and so does the forced model */
     bench_geographic(opt, lay, res, big, out);
     sw_model_free(big);
@@ -394,10 +483,11 @@ static sw_status bench_layout(const sw_bench_options *opt, const sw_layout *lay,
 /* Tracking's cost where most of the grid moves: a model of the large grid's size with a hump of
  * e-folding radius MOVING_SOURCE_SHARE x n cells, stepped in slices of `slice` steps (the large grid's
  * measurement, steps_for), plain and with its own tracker attached, taken turn about (the tracker skips
- * the plain slices' states: its maps are not a run's, its cost per step is). The cost is the median of
- * the rounds' ratios; the share in motion that of the segments the tracked slices rewrote maps in.
- * Without memory for the model or its tracker the figures stay n = 0. */
-static void bench_moving(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, int slice,
+ * the plain slices' states: its maps are not a run's, its cost per step is); then, in the same round, the
+ * same pair in sweeps of k steps (slices of whole sweeps), its order alternating alike. Each cost is the
+ * median of the rounds' ratios; each share in motion that of the segments its tracked slices rewrote maps
+ * in. Without memory for the model or its tracker the figures stay n = 0. */
+static void bench_moving(const sw_bench_options *opt, const sw_layout *lay, sw_bench_result *res, int slice, int k,
                          sw_bench_layout *out)
 {
     const int top = res->threads[res->n_threads - 1];
@@ -410,8 +500,9 @@ static void bench_moving(const sw_bench_options *opt, const sw_layout *lay, sw_b
         return;
     }
     char what[128];
-    samples pl = {0}, tk = {0}, ra = {0};
-    long long seen = 0, updated = 0;
+    samples pl = {0}, tk = {0}, ra = {0}, bp = {0}, bt = {0}, br = {0};
+    long long seen = 0, updated = 0, seen_b = 0, updated_b = 0;
+    const int slice_b = whole_sweeps(slice, k);
     for (int r = 0; r < opt->rounds; r++) {
         snprintf(what, sizeof what, "layout %s: moving-source tracking round %d of %d", lay->name, r + 1, opt->rounds);
         say(opt, what);
@@ -419,20 +510,36 @@ static void bench_moving(const sw_bench_options *opt, const sw_layout *lay, sw_b
         for (int q = 0; q < MOVING_PAIRS; q++) {
             const int later = (r + q) % 2;
             if (later)
-                t_tracked += time_tracked_steps(mv, tr, top, slice, &seen, &updated);
+                t_tracked += time_tracked_steps(mv, tr, top, slice, 1, &seen, &updated);
             t_plain += time_steps(mv, NULL, top, slice);
             if (!later)
-                t_tracked += time_tracked_steps(mv, tr, top, slice, &seen, &updated);
+                t_tracked += time_tracked_steps(mv, tr, top, slice, 1, &seen, &updated);
         }
         push(&pl, cells * slice * MOVING_PAIRS / t_plain);
         push(&tk, cells * slice * MOVING_PAIRS / t_tracked);
         push(&ra, t_tracked / t_plain);
+        double tb_plain = 0, tb_tracked = 0;
+        for (int q = 0; q < MOVING_PAIRS; q++) {
+            const int later = (r + q) % 2;
+            if (later)
+                tb_tracked += time_tracked_steps(mv, tr, top, slice_b, k, &seen_b, &updated_b);
+            tb_plain += time_sweeps(mv, NULL, top, slice_b, k);
+            if (!later)
+                tb_tracked += time_tracked_steps(mv, tr, top, slice_b, k, &seen_b, &updated_b);
+        }
+        push(&bp, cells * slice_b * MOVING_PAIRS / tb_plain);
+        push(&bt, cells * slice_b * MOVING_PAIRS / tb_tracked);
+        push(&br, tb_tracked / tb_plain);
     }
     out->moving_source_cells = radius;
     out->large_moving = summarise(&pl);
     out->large_moving_tracked = summarise(&tk);
     out->moving_tracking_cost = summarise(&ra).median - 1;
     out->moving_active = seen > 0 ? (double)updated / (double)seen : 0;
+    out->large_moving_blocked = summarise(&bp);
+    out->large_moving_blocked_tracked = summarise(&bt);
+    out->moving_blocked_tracking_cost = summarise(&br).median - 1;
+    out->moving_blocked_active = seen_b > 0 ? (double)updated_b / (double)seen_b : 0;
     sw_tracker_free(tr);
     sw_model_free(mv);
 }
@@ -667,6 +774,9 @@ sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_err
     memset(res, 0, sizeof *res);
     if (opt->rounds < 3 || opt->rounds > MAX_ROUNDS)
         return sw_fail(err, SW_ERR_USAGE, "rounds = %d (accepted: 3 to %d)", opt->rounds, MAX_ROUNDS);
+    if (opt->steps_per_sweep < 0 || opt->steps_per_sweep > SW_WAVE_MAX_STEPS)
+        return sw_fail(err, SW_ERR_USAGE, "steps_per_sweep = %d (accepted: 0, automatic, or 1 to %d)",
+                       opt->steps_per_sweep, SW_WAVE_MAX_STEPS);
     if ((unsigned)opt->precision >= SW_PRECISIONS)
         return sw_fail(err, SW_ERR_USAGE, "precision %d (accepted: double, single)", (int)opt->precision);
     for (const char *p = opt->layouts; p && *p; p++) {
@@ -713,6 +823,27 @@ static void print_stat(FILE *f, const char *label, sw_bench_stat s, double scale
            s.max / scale, s.n);
 }
 
+/* The figures of several steps per sweep on the large grid: the rate, k and why, the ratio to the one-step
+ * step, the effective bandwidth, and whether the two schedules leave the same bits. */
+static void print_blocked(FILE *f, const sw_bench_result *res, const sw_bench_layout *l)
+{
+    char label[48], why[128], window[48] = "";
+    snprintf(label, sizeof label, "blocked step, %d a sweep, large", l->steps_per_sweep);
+    print_stat(f, label, l->large_blocked, 1e6, "M cell-updates/s");
+    if (l->steps_per_sweep != l->steps_per_sweep_auto)
+        snprintf(why, sizeof why, "asked for; the automatic choice is %d", l->steps_per_sweep_auto);
+    else
+        snprintf(why, sizeof why, "automatic for %d thread%s and the %.0f MB cache", res->threads[res->n_threads - 1],
+                 res->threads[res->n_threads - 1] > 1 ? "s" : "", (double)res->llc_bytes / 1048576.0);
+    if (l->wave_window_bytes)
+        snprintf(window, sizeof window, "; a window of rows of %.3g MB", (double)l->wave_window_bytes / 1e6);
+    fprintf(f, "  several steps per sweep: k = %d (%s%s): %.3f x the one-step step (median of the rounds' ratios); "
+               "effective bandwidth %.3g GB/s = %.2f x triad; the same bits as single steps (state and tracking "
+               "maps, 50 steps on the cache-resident grid): %s\n",
+            l->steps_per_sweep, why, window, l->blocked_ratio, l->blocked_bandwidth / 1e9, l->blocked_bandwidth_ratio,
+            l->blocked_identical ? "yes" : "NO (its rates time a different computation)");
+}
+
 void sw_bench_print(FILE *f, const sw_bench_result *res)
 {
     fprintf(f, "Grid %zu x %zu (working set %.2f GB, last-level cache %.0f MB), cache-resident grid %zu x %zu, %s precision\n",
@@ -737,6 +868,7 @@ void sw_bench_print(FILE *f, const sw_bench_result *res)
         fprintf(f, "  effective bandwidth %.3g GB/s = %.2f x triad; parallel efficiency %d -> %d threads %.0f %%\n",
                l->bandwidth / 1e9, l->bandwidth_ratio, res->threads[0], res->threads[res->n_threads - 1],
                100 * l->efficiency_2);
+        print_blocked(f, res, l);
         fprintf(f, "  tracking, hump of %.0f cells: adds %.1f %% to the step (ratio of the medians); grid in motion "
                    "(segments whose maps changed): %.2g %%\n",
                l->tracking_source_cells, 100 * l->tracking_cost, 100 * l->tracking_active);
@@ -746,6 +878,12 @@ void sw_bench_print(FILE *f, const sw_bench_result *res)
             fprintf(f, "  tracking, moving source (hump of %.0f cells): adds %.1f %% to the step (median of the rounds' "
                        "ratios); grid in motion: %.2g %%\n",
                     l->moving_source_cells, 100 * l->moving_tracking_cost, 100 * l->moving_active);
+            print_stat(f, "blocked step, moving source", l->large_moving_blocked, 1e6, "M cell-updates/s");
+            print_stat(f, "blocked step + tracking, moving", l->large_moving_blocked_tracked, 1e6, "M cell-updates/s");
+            fprintf(f, "  tracking, moving source, %d step%s per sweep: adds %.1f %% to the blocked step (median of the "
+                       "rounds' ratios); grid in motion: %.2g %%\n",
+                    l->steps_per_sweep, l->steps_per_sweep > 1 ? "s" : "", 100 * l->moving_blocked_tracking_cost,
+                    100 * l->moving_blocked_active);
         } else
             fprintf(f, "  tracking, moving source: not measured (no memory for the model or its tracker)\n");
         if (l->large_terms.n)
@@ -819,6 +957,14 @@ char *sw_bench_json(const sw_bench_result *res)
         }
         cJSON_AddNumberToObject(e, "bandwidth_bytes_per_s", l->bandwidth);
         cJSON_AddNumberToObject(e, "bandwidth_ratio_to_triad", l->bandwidth_ratio);
+        cJSON_AddNumberToObject(e, "steps_per_sweep", l->steps_per_sweep);
+        cJSON_AddNumberToObject(e, "steps_per_sweep_auto", l->steps_per_sweep_auto);
+        cJSON_AddNumberToObject(e, "wave_window_bytes", (double)l->wave_window_bytes);
+        cJSON_AddItemToObject(e, "large_blocked", stat_json(l->large_blocked));
+        cJSON_AddNumberToObject(e, "blocked_ratio", l->blocked_ratio);
+        cJSON_AddNumberToObject(e, "blocked_bandwidth_bytes_per_s", l->blocked_bandwidth);
+        cJSON_AddNumberToObject(e, "blocked_bandwidth_ratio_to_triad", l->blocked_bandwidth_ratio);
+        cJSON_AddBoolToObject(e, "blocked_identical", l->blocked_identical);
         cJSON_AddNumberToObject(e, "tracking_cost", l->tracking_cost);
         cJSON_AddNumberToObject(e, "tracking_active_share", l->tracking_active);
         cJSON_AddNumberToObject(e, "tracking_source_cells", l->tracking_source_cells);
@@ -827,6 +973,10 @@ char *sw_bench_json(const sw_bench_result *res)
         cJSON_AddNumberToObject(e, "moving_tracking_cost", l->moving_tracking_cost);
         cJSON_AddNumberToObject(e, "moving_active_share", l->moving_active);
         cJSON_AddNumberToObject(e, "moving_source_cells", l->moving_source_cells);
+        cJSON_AddItemToObject(e, "large_moving_blocked", stat_json(l->large_moving_blocked));
+        cJSON_AddItemToObject(e, "large_moving_blocked_tracked", stat_json(l->large_moving_blocked_tracked));
+        cJSON_AddNumberToObject(e, "moving_blocked_tracking_cost", l->moving_blocked_tracking_cost);
+        cJSON_AddNumberToObject(e, "moving_blocked_active_share", l->moving_blocked_active);
         cJSON_AddNumberToObject(e, "parallel_efficiency", l->efficiency_2);
         cJSON_AddItemToObject(e, "large_terms", stat_json(l->large_terms));
         cJSON_AddNumberToObject(e, "terms_ratio", l->terms_ratio);

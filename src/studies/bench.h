@@ -28,6 +28,9 @@ typedef struct {
     int threads[SW_BENCH_MAX_THREADS]; /* thread counts for the scaling figures; n_threads = 0: 1 .. cores */
     int n_threads;
     int rounds;            /* interleaved rounds, >= 3 (default 5) */
+    int steps_per_sweep;   /* steps per sweep of the blocked figures (sw_model_steps), 1 .. SW_WAVE_MAX_STEPS;
+                            * 0 = each layout's automatic choice for the large grid and the most threads
+                            * (sw_model_wave_auto with the last-level cache) */
     sw_precision precision;/* of the model state (and of the NumPy arrays) */
     const char *layouts;   /* layout letters to measure, e.g. "C" or "AC"; NULL = every layout */
     const char *numpy_script; /* tools/bench_numpy.py to compare against (run with python), NULL = skip */
@@ -61,6 +64,29 @@ typedef struct {
     double moving_tracking_cost;  /* median over rounds of (tracked time / plain time) - 1 */
     double moving_active;         /* share of row segments whose maps its tracked steps rewrote */
     double moving_source_cells;   /* its hump's e-folding radius, cells */
+    /* Several steps per sweep over memory (sw_model_steps: temporal blocking, a wavefront of rows) on the
+     * large grid, all threads, in the same rounds and slices as the one-step step (large), taken turn about
+     * with it: */
+    int steps_per_sweep;        /* k: the steps each sweep takes (the option's, else steps_per_sweep_auto) */
+    int steps_per_sweep_auto;   /* sw_model_wave_auto's choice for the large grid, the most threads and llc_bytes
+                                 * (1: one step per sweep, the model fits in half the cache or has too few rows) */
+    size_t wave_window_bytes;   /* the wavefront's window of rows at k (k x the rows between steps x a row's
+                                 * bytes; sw_model_wave_auto), B; 0 when k = 1 or when the automatic choice is 1
+                                 * (the window is then not known here) */
+    sw_bench_stat large_blocked;/* the step in sweeps of k, large grid, all threads */
+    double blocked_ratio;       /* median over rounds of (blocked rate / one-step rate), same round */
+    double blocked_bandwidth;   /* effective: median blocked rate x values_per_cell x sizeof(value), B/s (the
+                                 * bytes a one-step sweep would move for those updates) */
+    double blocked_bandwidth_ratio; /* blocked_bandwidth / median triad */
+    int blocked_identical;      /* 1 when sweeps of k steps (the last one shorter) and single steps left the same
+                                 * bits (state, clock and tracking maps) after 50 steps on the cache-resident grid
+                                 * with all threads (checked once), else 0 */
+    /* The blocked step on the moving source (the model of large_moving, its own slices in the same rounds,
+     * after the one-step pair; n = 0 when that model was not made): */
+    sw_bench_stat large_moving_blocked;        /* its step in sweeps of k */
+    sw_bench_stat large_moving_blocked_tracked;/* the same with tracking */
+    double moving_blocked_tracking_cost; /* median over rounds of (tracked time / plain time) - 1, blocked */
+    double moving_blocked_active; /* share of row segments whose maps its blocked tracked steps rewrote */
     double efficiency_2;        /* parallel efficiency from 1 thread to the most threads */
     sw_bench_stat large_terms;  /* step with rotation and linear friction (f = 1e-4 s-1, r = 1 mm/s), large grid;
                                  * n = 0 when the second large model did not fit in memory */
@@ -103,8 +129,8 @@ typedef struct {
 } sw_bench_result;
 
 /* Runs the benchmark. Needs about working_set x 1.5 of memory. Returns SW_ERR_NOMEM when the grid
- * does not fit, SW_ERR_USAGE for bad options (rounds out of range, a letter in opt->layouts that names
- * no layout of this build). */
+ * does not fit, SW_ERR_USAGE for bad options (rounds or steps_per_sweep out of range, a letter in
+ * opt->layouts that names no layout of this build). */
 sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_error *err);
 
 /* McCalpin's STREAM triad a[i] = b[i] + s c[i] on three arrays of n doubles with the current OpenMP

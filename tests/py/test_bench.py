@@ -15,9 +15,16 @@ from swtest import FAILURES, check
 BIN = os.path.abspath(sys.argv[1])
 
 
-# two layouts (C, the default, and E, the other sweep shape) keep the test under 30 s on two cores
-r = subprocess.run([BIN, "bench", "--size", "96", "--rounds", "3", "--threads", "1,2", "--layouts", "C,E", "--json"],
-                   capture_output=True, text=True, timeout=600)
+# a number of steps per sweep out of range is refused as a usage error, before anything is measured
+r = subprocess.run([BIN, "bench", "--steps-per-sweep", "17"], capture_output=True, text=True, timeout=60)
+check(r.returncode == 2 and "--steps-per-sweep" in r.stderr,
+      "--steps-per-sweep 17 refused (exit %d: %s)" % (r.returncode, r.stderr.strip()[-200:]))
+
+# two layouts (C, the default, and E, the other sweep shape) keep the test under 30 s on two cores; a 96 x 96
+# grid fits in any cache, where the automatic choice is one step per sweep: 4 are asked for, so that the
+# blocked figures run the wavefront (two steps a thread of the pipeline)
+r = subprocess.run([BIN, "bench", "--size", "96", "--rounds", "3", "--threads", "1,2", "--layouts", "C,E",
+                    "--steps-per-sweep", "4", "--json"], capture_output=True, text=True, timeout=600)
 check(r.returncode == 0, "bench runs (exit %d: %s)" % (r.returncode, r.stderr.strip()[-300:]))
 doc = json.loads(r.stdout) if r.returncode == 0 else {"layouts": []}
 check(len(doc["layouts"]) >= 2, "a row per layout (%d)" % len(doc["layouts"]))
@@ -35,6 +42,19 @@ for lay in doc["layouts"]:
     check(all(0 < lay[k] <= 1 for k in ("tracking_active_share", "moving_active_share")),
           "layout %s: the share of the grid in motion reported for both tracking figures (%.3g, %.3g)"
           % (lay["layout"], lay["tracking_active_share"], lay["moving_active_share"]))
+    # several steps per sweep beside the one-step step: its rate, its ratio and effective bandwidth, its
+    # tracking cost on the moving source with the share in motion, and the same bits as single steps
+    check(lay["steps_per_sweep"] == 4 and lay["steps_per_sweep_auto"] >= 1 and lay["wave_window_bytes"] >= 0
+          and lay["large_blocked"]["n"] == 3 and lay["large_blocked"]["median"] > 0 and lay["blocked_ratio"] > 0
+          and lay["blocked_bandwidth_bytes_per_s"] > 0 and lay["blocked_bandwidth_ratio_to_triad"] > 0,
+          "layout %s: the step in sweeps of 4 measured beside the one-step step" % lay["layout"])
+    check(lay["large_moving_blocked"]["n"] == 3 and lay["large_moving_blocked_tracked"]["n"] == 3
+          and lay["large_moving_blocked"]["median"] > 0 and lay["large_moving_blocked_tracked"]["median"] > 0
+          and 0 < lay["moving_blocked_active_share"] <= 1,
+          "layout %s: tracking measured on the moving source in sweeps of 4 (grid in motion %.3g)"
+          % (lay["layout"], lay["moving_blocked_active_share"]))
+    check(lay["blocked_identical"] is True,
+          "layout %s: sweeps of 4 steps leave the bits of single steps (state and tracking maps)" % lay["layout"])
     check(lay["large_terms"]["n"] == 3 and lay["large_terms"]["median"] > 0 and lay["terms_ratio"] > 0,
           "layout %s: the step with rotation and friction measured beside the plain one" % lay["layout"])
     check(all(lay[k]["n"] == 3 and lay[k]["median"] > 0 for k in ("large_storm", "large_weather", "large_forced"))
