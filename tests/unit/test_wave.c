@@ -132,6 +132,17 @@ static void assert_same_maps(sw_tracker *a, sw_tracker *b, const char *what)
             fail_msg("%s: tracker part %zu differs", what, q);
 }
 
+/* The state and maps of m (its tracker tm) are ref's (tr's), bit for bit; then all four are freed. */
+static void same_and_free(sw_model *ref, sw_model *m, sw_tracker *tr, sw_tracker *tm, const char *what)
+{
+    assert_same_state(ref, m, what);
+    assert_same_maps(tr, tm, what);
+    sw_tracker_free(tr);
+    sw_tracker_free(tm);
+    sw_model_free(ref);
+    sw_model_free(m);
+}
+
 /* A tracker of threshold thr_m attached to m, for `threads` threads (which it sets as OpenMP's count). */
 static sw_tracker *tracked(sw_model *m, double thr_m, int threads)
 {
@@ -162,12 +173,7 @@ static void one_case(const sw_layout *lay, sw_precision prec, edge_set es, int t
     SW_OMP(parallel)
     for (int n = 0; n < STEPS; n += k)
         sw_model_steps(m, n + k <= STEPS ? k : STEPS - n);
-    assert_same_state(ref, m, what);
-    assert_same_maps(tr, tm, what);
-    sw_tracker_free(tr);
-    sw_tracker_free(tm);
-    sw_model_free(ref);
-    sw_model_free(m);
+    same_and_free(ref, m, tr, tm, what);
 }
 
 static void layout_cases(sw_precision prec, int terms)
@@ -267,12 +273,7 @@ static void test_forced(void **state)
                     char what[96];
                     snprintf(what, sizeof what, "forced, layout %s, %s, %d threads, %d steps a sweep", lay->name,
                              prec ? "single" : "double", threads, k);
-                    assert_same_state(ref, m, what);
-                    assert_same_maps(tr, tm, what);
-                    sw_tracker_free(tr);
-                    sw_tracker_free(tm);
-                    sw_model_free(ref);
-                    sw_model_free(m);
+                    same_and_free(ref, m, tr, tm, what);
                 }
 }
 
