@@ -120,12 +120,14 @@ sw_status sw_step_plan_build(const sw_layout_kernels *k, sw_terms_variant varian
             reach = imax(reach, imax(-k->observes[f].lo, k->observes[f].hi));
     out->wave_reach = reach;
     out->wave_ghost_lag = out->max_lag + SW_GHOST_REACH;
-    out->wave_obs_lag = imax(out->obs_lag, out->ghosts_before_obs ? out->wave_ghost_lag + reach + 1 : 0);
+    /* at least 2: an observer may read the elevations at the centres of the row above too (a gauge's
+     * stencil, sw_gauges_watch_row), which on E read the row beyond it: continuity must have passed both */
+    out->wave_obs_lag = imax(imax(out->obs_lag, 2), out->ghosts_before_obs ? out->wave_ghost_lag + reach + 1 : 0);
     out->wave_tail = imax(imax(out->max_lag, out->wave_ghost_lag), out->wave_obs_lag);
     /* iteration i touches rows i - behind .. i + reach: a stage's row i - lag and the rows it reads; the
-     * ghosts of row i - wave_ghost_lag; the row observed in the continuity pass, i - wave_obs_lag - 1, the
-     * rows its centre values read, and a gauge's lower stencil row below it with its own (the + 2) */
-    const int behind = imax(imax(out->max_lag + reach, out->wave_ghost_lag), out->wave_obs_lag + 2 + reach);
+     * ghosts of row i - wave_ghost_lag; the row observed in the continuity pass, i - wave_obs_lag - 1, and
+     * the rows its centre values read (a gauge watched there reads the rows above it, which are nearer) */
+    const int behind = imax(imax(out->max_lag + reach, out->wave_ghost_lag), out->wave_obs_lag + 1 + reach);
     out->wave_gap = behind + reach;
     return SW_OK;
 }

@@ -26,8 +26,8 @@ struct sw_gauges {
     sw_gauge_stats *stats;    /* [n] from sw_gauges_watch */
     double *prev_eta;         /* [n] elevation at the previous watch, m */
     double prev_time;         /* time of the previous watch, s (NaN before the first) */
-    size_t *by_row;           /* [n] the gauges in the order of their top stencil row (sw_gauges_watch_row) */
-    size_t *row_start;        /* [ny + 1]: the gauges whose top row is j are by_row[row_start[j] ..
+    size_t *by_row;           /* [n] the gauges in the order of their lower stencil row (sw_gauges_watch_row) */
+    size_t *row_start;        /* [ny + 1]: the gauges whose lower row is j are by_row[row_start[j] ..
                                * row_start[j + 1]) */
 };
 
@@ -48,15 +48,6 @@ static void axis_weights(double c, double origin, double d, size_t n, size_t *lo
     *lo = (size_t)floor(p);
     *hi = *lo + 1;
     *f = p - (double)*lo;
-}
-
-/* The highest grid row a stencil reads. */
-static size_t top_row(const stencil *s)
-{
-    size_t j = s->j[0];
-    for (int c = 1; c < 4; c++)
-        j = s->j[c] > j ? s->j[c] : j;
-    return j;
 }
 
 static stencil make_stencil(const sw_grid *g, const unsigned char *wet, double x, double y)
@@ -203,14 +194,14 @@ sw_status sw_gauges_create(const sw_model *m, const double *depth_m, const sw_ga
         if (gs->dry[q])
             gs->stats[q].peak_m = gs->stats[q].trough_m = NAN;
     }
-    /* the gauges by their top stencil row (a counting sort): counts, starts, placing (which moves each
+    /* the gauges by their lower stencil row (a counting sort): counts, starts, placing (which moves each
      * start to the next row's), then the starts back one row */
     for (size_t q = 0; q < n; q++)
-        gs->row_start[top_row(&gs->st[q]) + 1]++;
+        gs->row_start[gs->st[q].j[0] + 1]++;
     for (size_t j = 0; j < g->ny; j++)
         gs->row_start[j + 1] += gs->row_start[j];
     for (size_t q = 0; q < n; q++)
-        gs->by_row[gs->row_start[top_row(&gs->st[q])]++] = q;
+        gs->by_row[gs->row_start[gs->st[q].j[0]]++] = q;
     for (size_t j = g->ny; j > 0; j--)
         gs->row_start[j] = gs->row_start[j - 1];
     gs->row_start[0] = 0;

@@ -40,10 +40,12 @@ void sw_gauges_put_air(sw_gauges *gs, const double *p_pa, const double *u10_ms, 
  * Reads only the four cell-centre elevations, so it is cheap enough for every step. */
 void sw_gauges_watch(sw_gauges *gs, const sw_model *m, double threshold_m);
 
-/* sw_gauges_watch for the gauges whose stencil's top row is grid row j, at time_s, the previous watch
- * having been at prev_time_s: for a row observer (model.h) during steps that finish rows of several
- * steps before the clock moves (sw_model_steps). Row j and the row below it must hold the state of
- * time_s (the wavefront keeps them so until every observer of that step's row j has returned). Calls for
+/* sw_gauges_watch for the gauges whose stencil's lower row is grid row j (sw_gauges_row: the row that
+ * decides which rank of a split run samples a gauge), at time_s, the previous watch having been at
+ * prev_time_s: for a row observer (model.h) during steps that finish rows of several steps before the
+ * clock moves (sw_model_steps). The elevations at the centres of rows j and j + 1 must be those of time_s
+ * (the wavefront observes row j after its continuity has passed the rows above that those read, and keeps
+ * them until every observer of that step's row j has returned: stepper.h). Calls for
  * different rows may run in different threads at once; calls for one row come in time order. After the
  * steps, sw_gauges_watched gives the last step's time to the next sw_gauges_watch. The same values, bit
  * for bit, as sw_gauges_watch after each step. */

@@ -449,7 +449,8 @@ static void sweep_in_region(run_ctx *c, long long n, int k, long long n_steps)
 }
 
 /* The model's row observer in a run (sw_run attaches it): the tracker, and during a sweep of several steps
- * the gauges whose top row it is, watched at that row's step (sw_gauges_watch_row). */
+ * the gauges whose lower stencil row it is, watched at that row's step (sw_gauges_watch_row): in a split
+ * run, by the rank that samples them and whose statistics are gathered (the row above may be its halo's). */
 static void run_row(void *ctx, const sw_model *m, size_t j, double time_s, const sw_row_values *pre)
 {
     run_ctx *c = ctx;

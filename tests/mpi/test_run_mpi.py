@@ -30,6 +30,7 @@ The reference is always the same run as one process, without mpirun. Checks:
     K = 7 and the rupture demo with K = 4 on 3 ranks: the one-process run's bits.
 The scenario is a small fictional basin (no real place).
 """
+import json
 import os
 import signal
 import subprocess
@@ -131,10 +132,15 @@ def test_sweeps():
     for layout in "ABCDE":
         ref = os.path.join(WORK, f"{layout}-wall-open-level-ref")   # made by test_identical
         scn = os.path.join(WORK, f"{layout}-wall-open-level.scn")
+        # the gauges' arrival, peak and trough (the summary's table, in no file) of the one-process run
+        r = run([BIN, "run", scn, "--out", ref + "-json", "--threads", "1", "--json"])
+        table = json.loads(r.stdout)["gauges"] if r.returncode == 0 else None
         for n, threads, k in ((2, 1, 5), (3, 1, 3), (4, 1, 2), (2, 2, 16)):
             out = os.path.join(WORK, f"{layout}-sweeps-{n}x{threads}-k{k}")
-            r = run(mpi(n, "run", scn, "--out", out, "--threads", str(threads), "--quiet", "--steps-per-sweep", str(k)))
+            r = run(mpi(n, "run", scn, "--out", out, "--threads", str(threads), "--json", "--steps-per-sweep", str(k)))
             differ = same_files(ref, out) if r.returncode == 0 else ["(run failed)"]
+            if r.returncode == 0 and json.loads(r.stdout)["gauges"] != table:
+                differ.append("the gauge table (arrival, peak, trough)")
             check(r.returncode == 0 and not differ,
                   f"{layout}: {n} ranks x {threads} thread(s), {k} steps a sweep, equal the one-process run bit for "
                   f"bit (differ: {differ[:4]}; exit {r.returncode} {r.stderr.strip()[-200:]})")
