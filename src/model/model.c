@@ -722,6 +722,8 @@ int sw_model_wave_steps_for(const sw_layout *layout, sw_precision precision, con
     if (2.0 * (double)sw_model_bytes_for(g, precision, layout, terms) * (double)rows / (double)g->ny <= (double)cache_bytes)
         return 1;   /* the state (a split run's band) stays in cache from one sweep to the next anyway */
     int k = band_rows ? sw_model_wave_steps_max(layout, precision, edges, terms, band_rows) : SW_WAVE_MAX_STEPS;
+    while (k > 1 && band_rows && 16 * wave_halo_of(&plan, k) > band_rows)
+        k--;   /* a split band computes its sweep halo on both sides too: at most an eighth more rows */
     while (k > 1 && (size_t)k * gap * row > cache_bytes / 2)
         k--;
     if (threads > 1 && k >= 2 * threads)

@@ -150,7 +150,8 @@ int sw_model_wave_auto(const sw_model *m, int threads, size_t cache_bytes, size_
 
 /* sw_model_wave_auto before a model exists (a plan): for a model of that layout, precision, grid, edges
  * and terms; band_rows 0 unsplit, else the thinnest share of a split run (its rows stand for the grid's,
- * and k is at most sw_model_wave_steps_max). */
+ * and k is at most sw_model_wave_steps_max and so small that the sweep's halo on both sides adds at most
+ * an eighth to the band's rows: those rows are computed twice). */
 int sw_model_wave_steps_for(const sw_layout *layout, sw_precision precision, const sw_grid *g,
                             const sw_edge_kind edges[4], const sw_terms_config *terms, int threads,
                             size_t cache_bytes, size_t band_rows, size_t *window_bytes);
