@@ -30,24 +30,9 @@ typedef struct {
     int n;
 } samples;
 
-static int cmp_double(const void *a, const void *b)
-{
-    double x = *(const double *)a, y = *(const double *)b;
-    return (x > y) - (x < y);
-}
-
 static sw_bench_stat summarise(const samples *s)
 {
-    sw_bench_stat st = {0, 0, 0, s->n};
-    if (s->n == 0)
-        return st;
-    double v[MAX_ROUNDS];
-    memcpy(v, s->v, (size_t)s->n * sizeof(double));
-    qsort(v, (size_t)s->n, sizeof(double), cmp_double);
-    st.min = v[0];
-    st.max = v[s->n - 1];
-    st.median = s->n % 2 ? v[s->n / 2] : 0.5 * (v[s->n / 2 - 1] + v[s->n / 2]);
-    return st;
+    return sw_bench_summary(s->v, s->n);
 }
 
 static void push(samples *s, double x)
@@ -813,7 +798,18 @@ sw_status sw_bench_run(const sw_bench_options *opt, sw_bench_result *res, sw_err
             return rc;
         res->n_layouts++;
     }
-    omp_set_num_threads(res->threads[res->n_threads - 1]);
+    const int most = res->threads[res->n_threads - 1];
+    if (!opt->real_refine)
+        snprintf(res->real.note, sizeof res->real.note, "skipped");
+    else if (opt->layouts && !strchr(opt->layouts, 'C'))
+        snprintf(res->real.note, sizeof res->real.note, "not measured: it runs on the C layout, not among those asked for");
+    else {
+        sw_status rc = sw_bench_real_run(opt->real_refine, opt->precision, most, opt->rounds, opt->progress, opt->user,
+                                         &res->real, err);
+        if (rc != SW_OK && rc != SW_ERR_NOMEM)
+            return rc;   /* out of memory: the figure says so (real.note), the others stand */
+    }
+    omp_set_num_threads(most);
     return SW_OK;
 }
 
@@ -912,6 +908,17 @@ void sw_bench_print(FILE *f, const sw_bench_result *res)
         } else
             fprintf(f, "  geographic grid: not measured (no memory for the geographic model)\n");
     }
+    const sw_bench_real *rr = &res->real;
+    if (rr->refine) {
+        fprintf(f, "\nReal run: the demo (fictional coast) refined %dx, %zu x %zu cells, %.0f min of model time in %lld "
+                   "steps of %.3g s, %zu gauges and the arrival/extreme maps on, %d step%s per sweep, %d thread%s\n",
+                rr->refine, rr->nx, rr->ny, rr->duration_s / 60, rr->steps, rr->dt_s, rr->n_gauges, rr->steps_per_sweep,
+                rr->steps_per_sweep > 1 ? "s" : "", rr->threads, rr->threads > 1 ? "s" : "");
+        print_stat(f, "the run (gauges, tracking)", rr->run, 1e6, "M cell-updates/s");
+        print_stat(f, "plain step, same grid and schedule", rr->plain, 1e6, "M cell-updates/s");
+        fprintf(f, "  the run: %.3f x the plain step (median of the rounds' ratios)\n", rr->ratio);
+    } else
+        fprintf(f, "\nReal run: %s\n", rr->note);
     if (res->numpy.n > 0)
         fprintf(f, "\nNumPy C-layout step: %.3g M cell-updates/s; shoreward C in the same rounds %.3g M: %.1f x\n",
                res->numpy.median / 1e6, res->numpy_c.median / 1e6, res->numpy_ratio);
@@ -997,6 +1004,20 @@ char *sw_bench_json(const sw_bench_result *res)
         }
         cJSON_AddItemToArray(ls, e);
     }
+    cJSON *rj = cJSON_AddObjectToObject(o, "real_run");
+    cJSON_AddNumberToObject(rj, "refine", res->real.refine);
+    cJSON_AddNumberToObject(rj, "nx", (double)res->real.nx);
+    cJSON_AddNumberToObject(rj, "ny", (double)res->real.ny);
+    cJSON_AddNumberToObject(rj, "duration_s", res->real.duration_s);
+    cJSON_AddNumberToObject(rj, "steps", (double)res->real.steps);
+    cJSON_AddNumberToObject(rj, "dt_s", res->real.dt_s);
+    cJSON_AddNumberToObject(rj, "gauges", (double)res->real.n_gauges);
+    cJSON_AddNumberToObject(rj, "threads", res->real.threads);
+    cJSON_AddNumberToObject(rj, "steps_per_sweep", res->real.steps_per_sweep);
+    cJSON_AddItemToObject(rj, "run", stat_json(res->real.run));
+    cJSON_AddItemToObject(rj, "plain", stat_json(res->real.plain));
+    cJSON_AddNumberToObject(rj, "ratio", res->real.ratio);
+    cJSON_AddStringToObject(rj, "note", res->real.note);
     cJSON *np = cJSON_AddObjectToObject(o, "numpy");
     cJSON_AddItemToObject(np, "rate", stat_json(res->numpy));
     cJSON_AddItemToObject(np, "shoreward_c_rate", stat_json(res->numpy_c));

@@ -12,15 +12,11 @@
 
 #include "base/real.h"
 #include "base/status.h"
+#include "studies/bench_real.h"
+#include "studies/bench_stat.h"
 
 #define SW_BENCH_MAX_THREADS 64
 #define SW_BENCH_MAX_LAYOUTS 8
-
-/* Median and spread of repeated measurements. */
-typedef struct {
-    double median, min, max;   /* same units as the measurement */
-    int n;                     /* measurements */
-} sw_bench_stat;
 
 typedef struct {
     size_t n_large;        /* cells per side of the large grid; 0 = working set >= max(4 x LLC, 2 GB) */
@@ -32,6 +28,8 @@ typedef struct {
                             * 0 = each layout's automatic choice for the large grid and the most threads
                             * (sw_model_wave_auto with the last-level cache) */
     sw_precision precision;/* of the model state (and of the NumPy arrays) */
+    int real_refine;       /* the real run (bench_real.h): the demo grid refined by this; 0 = not measured. Run on
+                            * the C layout, when it is among `layouts` */
     const char *layouts;   /* layout letters to measure, e.g. "C" or "AC"; NULL = every layout */
     const char *numpy_script; /* tools/bench_numpy.py to compare against (run with python), NULL = skip */
     const char *python;    /* interpreter for it, e.g. /usr/bin/python3 */
@@ -126,6 +124,8 @@ typedef struct {
     sw_bench_stat numpy_c;      /* the C layout's rate measured in the same rounds */
     double numpy_ratio;         /* numpy_c median / numpy median */
     char numpy_note[256];       /* why NumPy was skipped, or its grid when the full grid did not fit */
+    sw_bench_real real;         /* the real run beside the plain step (real.refine = 0: not measured, real.note
+                                 * says why) */
 } sw_bench_result;
 
 /* Runs the benchmark. Needs about working_set x 1.5 of memory. Returns SW_ERR_NOMEM when the grid

@@ -21,9 +21,7 @@ void sw_compare_free(sw_compare *cmp)
     cmp->reference = -1;
 }
 
-/* The scenario for one run: sc with another layout and a grid refined by r. The copy borrows sc's
- * text (it is never freed through the copy). */
-static sw_status variant(const sw_scenario *sc, const char *layout, int r, sw_scenario *v, sw_error *err)
+sw_status sw_compare_variant(const sw_scenario *sc, const char *layout, int r, sw_scenario *v, sw_error *err)
 {
     *v = *sc;
     snprintf(v->layout, sizeof v->layout, "%s", layout);
@@ -54,7 +52,7 @@ static void one_run(const sw_scenario *sc, const sw_run_options *opt, sw_compare
         row->arrival_s[q] = row->peak_m[q] = NAN;
     if (!v || !res)
         row->status = sw_fail(&e, SW_ERR_NOMEM, "out of memory");
-    else if ((row->status = variant(sc, row->layout, row->refine, v, &e)) == SW_OK
+    else if ((row->status = sw_compare_variant(sc, row->layout, row->refine, v, &e)) == SW_OK
              && (row->status = sw_setup_build(v, &setup, &e)) == SW_OK) {
         row->grid = setup.grid;
         row->dt_s = setup.dt_s;

@@ -50,6 +50,12 @@ typedef struct {
 /* Called after each run (row i of n), from the calling thread. */
 typedef void (*sw_compare_fn)(const sw_compare_row *row, size_t i, size_t n, void *user);
 
+/* The scenario for one run of a comparison: sc with layout `layout` and its grid refined by r (>= 1: nx, ny
+ * times r, dx, dy and an explicit dt divided by r), into *v. A grid taken from a seabed file is read here
+ * (sw_seabed_grid). The copy borrows sc's text and arrays: never free it through v. Returns SW_OK, or the
+ * seabed file's failure with err naming it. */
+sw_status sw_compare_variant(const sw_scenario *sc, const char *layout, int r, sw_scenario *v, sw_error *err);
+
 /* Runs sc on every layout x refinement and fills *out (free with sw_compare_free). Output files of
  * each run go to <opt->out_dir>/<layout>-x<r>/. A failing run is recorded in its row and the others
  * go on (sw_compare_outcome then says the comparison failed); the call itself fails only for bad

@@ -6,6 +6,7 @@ and that the shares of the grid in motion are shares.
 usage: test_bench.py SHOREWARD_BINARY WORK_DIR
 """
 import json
+import math
 import os
 import subprocess
 import sys
@@ -20,11 +21,16 @@ r = subprocess.run([BIN, "bench", "--steps-per-sweep", "17"], capture_output=Tru
 check(r.returncode == 2 and "--steps-per-sweep" in r.stderr,
       "--steps-per-sweep 17 refused (exit %d: %s)" % (r.returncode, r.stderr.strip()[-200:]))
 
+# a real-run refinement out of range is refused the same way
+r = subprocess.run([BIN, "bench", "--real-refine", "17"], capture_output=True, text=True, timeout=60)
+check(r.returncode == 2 and "--real-refine" in r.stderr,
+      "--real-refine 17 refused (exit %d: %s)" % (r.returncode, r.stderr.strip()[-200:]))
+
 # two layouts (C, the default, and E, the other sweep shape) keep the test under 30 s on two cores; a 96 x 96
 # grid fits in any cache, where the automatic choice is one step per sweep: 4 are asked for, so that the
 # blocked figures run the wavefront (two steps a thread of the pipeline)
 r = subprocess.run([BIN, "bench", "--size", "96", "--rounds", "3", "--threads", "1,2", "--layouts", "C,E",
-                    "--steps-per-sweep", "4", "--json"], capture_output=True, text=True, timeout=600)
+                    "--steps-per-sweep", "4", "--real-refine", "1", "--json"], capture_output=True, text=True, timeout=600)
 check(r.returncode == 0, "bench runs (exit %d: %s)" % (r.returncode, r.stderr.strip()[-300:]))
 doc = json.loads(r.stdout) if r.returncode == 0 else {"layouts": []}
 check(len(doc["layouts"]) >= 2, "a row per layout (%d)" % len(doc["layouts"]))
@@ -71,6 +77,17 @@ for lay in doc["layouts"]:
               "layout C: the pre-stepper step measured, and it leaves the stepper's bits")
 check(any(lay["layout"] == "C" and "reference_identical" in lay for lay in doc["layouts"]),
       "the C layout reports the comparison with the pre-stepper step")
+# the real run: the built-in demo (500 x 375 cells, 6 gauges; scenarios/demo.scn) unrefined here, 30 min of
+# model time with its gauges and maps, beside the plain step on the same grid for as many steps
+real = doc.get("real_run", {})
+check(real.get("refine") == 1 and real.get("nx") == 500 and real.get("ny") == 375 and real.get("gauges") == 6
+      and real.get("duration_s") == 1800 and real.get("steps", 0) == math.ceil(1800 / real.get("dt_s", 1) - 1e-9)
+      and real.get("steps_per_sweep", 0) >= 1 and real.get("note") == "",
+      "the real run: the demo's grid, gauges and 30 min of model time (%s)"
+      % {k: real.get(k) for k in ("refine", "nx", "ny", "gauges", "steps", "dt_s", "note")})
+check(real.get("run", {}).get("n") == 3 and real["run"]["median"] > 0 and real.get("plain", {}).get("n") == 3
+      and real["plain"]["median"] > 0 and real.get("ratio", 0) > 0,
+      "the real run timed beside the plain step in every round")
 check(doc["numpy"]["rate"]["n"] == 3 and doc["numpy"]["ratio"] > 0, "NumPy comparison measured in every round")
 print("%d failed" % len(FAILURES))
 sys.exit(1 if FAILURES else 0)
