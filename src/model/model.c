@@ -922,6 +922,13 @@ sw_status sw_model_set_share(sw_model *m, size_t row0, size_t row1, sw_halo_fn h
     return SW_OK;
 }
 
+void sw_model_set_share_overlap(sw_model *m, sw_halo_part_fn start, sw_halo_part_fn poll, sw_halo_part_fn finish)
+{
+    m->halo_start = start;
+    m->halo_poll = start ? poll : NULL;
+    m->halo_finish = start ? finish : NULL;
+}
+
 size_t sw_model_halo_depth(const sw_model *m) { return m->halo_depth; }
 
 void sw_model_set_share_reach(sw_model *m, size_t rows) { m->share_reach = rows; }

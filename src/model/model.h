@@ -293,6 +293,24 @@ typedef void (*sw_halo_fn)(void *ctx, sw_model *m);
  * regions. */
 sw_status sw_model_set_share(sw_model *m, size_t row0, size_t row1, sw_halo_fn halo, void *ctx, sw_error *err);
 
+/* The exchange before a sweep of several steps in three parts, so that the share's interior is computed
+ * while the far side's rows are still on their way (sw_model_set_share_overlap). start posts the exchange
+ * of sw_model_halo_depth(m) rows on each side and returns once the south side is done: the halo rows
+ * below the share are in m, and the share's lowest rows, which the sweep changes first, are sent (or
+ * copied out). poll advances the rest without waiting (it may do nothing). finish completes the north
+ * side: the halo rows above the share are in m and the share's highest rows are sent; then it calls
+ * sw_model_wrap_rows. All three are called by one thread, OpenMP's master (the thread that started MPI). */
+typedef void (*sw_halo_part_fn)(void *ctx, sw_model *m);
+
+/* Gives a split model (sw_model_set_share, same ctx) the exchange in parts for its sweeps of several steps
+ * (sw_model_steps): start before the sweep, poll every few rows of the sweep's first step, finish before
+ * that step reaches the share's highest sw_model_halo_depth(m) rows (the rows sent north, which it then
+ * changes; the rows received from the north are read later still). The sweep's other steps follow the first
+ * (the wavefront), so they read those rows later again: the values are those of one exchange before the
+ * sweep, the same bits. Single steps (periodic south and north edges, bands too thin to sweep) keep the
+ * whole exchange. start NULL: no overlap (the default). Call outside parallel regions. */
+void sw_model_set_share_overlap(sw_model *m, sw_halo_part_fn start, sw_halo_part_fn poll, sw_halo_part_fn finish);
+
 /* Rows on each side of a share its step reads (the stencils' reach, plus one for the gauges' bilinear
  * centre values): at least 2. */
 size_t sw_model_halo_rows(const sw_model *m);

@@ -76,6 +76,8 @@ struct sw_model {
     size_t share_p0, share_p1;  /* padded rows this process steps: 1 .. ny unless split (sw_model_set_share) */
     sw_halo_fn halo;            /* NULL, or the exchange of a split run's halo rows */
     void *halo_ctx;
+    sw_halo_part_fn halo_start, halo_poll, halo_finish; /* NULL, or a sweep's exchange in parts
+                                 * (sw_model_set_share_overlap), with halo_ctx */
     size_t halo_depth;          /* rows on each side the next call of halo exchanges (sw_model_halo_depth) */
     size_t share_reach;         /* the deepest halo the split can deliver: its thinnest share's rows (0 unsplit) */
 

@@ -483,13 +483,24 @@ void SW_NAME(sw_stepper_steps)(sw_model *m, int k)
     if (t < n_pipe)
         __atomic_store_n(&done[8 * t], LONG_MIN, __ATOMIC_RELAXED);
     SW_OMP(barrier)
-    if (m->halo) {   /* a split model: the halo of k steps, once (sw_model_wave_halo) */
+    /* A split model: the halo of k steps, once (sw_model_wave_halo). In parts when it can be: the north
+     * side's rows travel while the first step sweeps the share up to them (sw_model_set_share_overlap). */
+    const ptrdiff_t h = m->halo ? (ptrdiff_t)sw_model_wave_halo(m, k) : 0;
+    ptrdiff_t north_by = PTRDIFF_MAX;   /* the first step's iteration that needs the north side done */
+    if (m->halo) {
         SW_OMP(master)
         {
-            m->halo_depth = sw_model_wave_halo(m, k);
-            m->halo(m->halo_ctx, m);
+            m->halo_depth = (size_t)h;
+            if (m->halo_start)
+                m->halo_start(m->halo_ctx, m);
+            else
+                m->halo(m->halo_ctx, m);
             m->halo_depth = sw_model_halo_rows(m);
         }
+        /* the first step writes row i at iteration i and reads no row above it: the share's highest h rows
+         * (sent north) are first changed at iteration share_p1 - h + 1, the rows above read later */
+        if (m->halo_start)
+            north_by = (ptrdiff_t)m->share_p1 - h + 1;
         SW_OMP(barrier)
     }
     if (t < n_pipe) {
@@ -497,7 +508,17 @@ void SW_NAME(sw_stepper_steps)(sw_model *m, int k)
         b.buf = sw_model_obs_buffer(m, t);
         const int ghosts_on = m->kernels->edge_velocities && m->n_edge;
         const ptrdiff_t end = last + (ptrdiff_t)(n_q - 1) * gap;
+        /* the pipeline's first thread runs step 0 and is OpenMP's master: it completes the exchange */
+        int north_pending = t == 0 && north_by != PTRDIFF_MAX;
         for (ptrdiff_t front = first; front <= end; front++) {
+            if (north_pending) {   /* step 0's iteration is `front` */
+                if (front >= north_by) {
+                    m->halo_finish(m->halo_ctx, m);
+                    north_pending = 0;
+                } else if (m->halo_poll && (front & 7) == 0) {
+                    m->halo_poll(m->halo_ctx, m);
+                }
+            }
             if (t > 0)   /* step q0 - 1 has passed every row step q0's iteration `front` touches */
                 wave_wait(&done[8 * (t - 1)], front + gap < last ? front + gap : last);
             for (int q = q0; q < q1; q++) {
@@ -507,6 +528,8 @@ void SW_NAME(sw_stepper_steps)(sw_model *m, int k)
             }
             __atomic_store_n(&done[8 * t], front - (ptrdiff_t)(n_q - 1) * gap, __ATOMIC_RELEASE);
         }
+        if (north_pending)   /* a share no higher than its halo: never reached (not the case: bands are deeper) */
+            m->halo_finish(m->halo_ctx, m);
     }
     SW_OMP(barrier)
     SW_OMP(single)

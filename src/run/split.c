@@ -23,6 +23,24 @@ static void halo_of(void *ctx, sw_model *m)
     sp->ops->halo(sp, m);
 }
 
+static void halo_start_of(void *ctx, sw_model *m)
+{
+    sw_split *sp = ctx;
+    sp->ops->halo_start(sp, m);
+}
+
+static void halo_poll_of(void *ctx, sw_model *m)
+{
+    sw_split *sp = ctx;
+    sp->ops->halo_poll(sp, m);
+}
+
+static void halo_finish_of(void *ctx, sw_model *m)
+{
+    sw_split *sp = ctx;
+    sp->ops->halo_finish(sp, m);
+}
+
 sw_status sw_split_attach(sw_split *sp, sw_model *m, int ring, sw_error *err)
 {
     sp->ring = ring;
@@ -42,6 +60,8 @@ sw_status sw_split_attach(sw_split *sp, sw_model *m, int ring, sw_error *err)
     sw_status rc = sw_model_set_share(m, r0, r1, halo_of, sp, err);
     if (rc == SW_OK)   /* a neighbour sends rows of its own band only: the thinnest band bounds a sweep's halo */
         sw_model_set_share_reach(m, ny / (size_t)sp->size);
+    if (rc == SW_OK && sp->ops->halo_start && sp->ops->halo_finish)
+        sw_model_set_share_overlap(m, halo_start_of, sp->ops->halo_poll ? halo_poll_of : NULL, halo_finish_of);
     return rc;
 }
 

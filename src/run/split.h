@@ -33,6 +33,13 @@ typedef struct {
     /* The halo exchange of model m (a sw_halo_fn: model.h): the sw_model_halo_rows(m) rows on each side
      * of this rank's band from the neighbouring ranks, then sw_model_wrap_rows. */
     void (*halo)(void *split, sw_model *m);
+    /* The same exchange in parts for a sweep of several steps (model.h sw_model_set_share_overlap: start
+     * returns with the south side done, poll advances the rest, finish completes the north side and calls
+     * sw_model_wrap_rows), so that the north side's rows travel while the sweep computes the band's
+     * interior. All three NULL: the sweep waits for `halo` instead. */
+    void (*halo_start)(void *split, sw_model *m);
+    void (*halo_poll)(void *split, sw_model *m);
+    void (*halo_finish)(void *split, sw_model *m);
     /* v[0 .. n-1] becomes, on every rank, the largest (max) or the sum (sum) of each element over ranks. */
     void (*max_ll)(sw_split *sp, long long *v, int n);
     void (*sum_ll)(sw_split *sp, long long *v, int n);
@@ -56,7 +63,8 @@ struct sw_split {
     int node_ranks;            /* ranks sharing this rank's node (and its memory), >= 1 */
     int ring;                  /* 1 when the south and north edges are periodic: the last band's northern
                                 * neighbour is the first band (set by sw_split_attach) */
-    double exchange_s;         /* wall-clock time spent in halo exchanges so far, s (the implementation adds) */
+    double exchange_s;         /* wall-clock time spent in halo exchanges so far, s (the implementation adds): the
+                                * time the step waited, not the time rows travelled while it computed */
     long long exchanges;       /* halo exchanges so far */
     double halo_bytes;         /* bytes this rank sent in them */
 };

@@ -2,8 +2,10 @@
  *
  * The halo exchange posts, for each of eta, u and v, a receive of each neighbour's nearest rows (a step's
  * halo, or before a sweep of several steps its deeper one: sw_model_halo_depth)
- * into the same padded rows here and a send of this band's nearest rows to it, then waits for all: twelve
- * messages at most, each a run of whole padded rows straight from the field (no packing). Rows are sent as
+ * into the same padded rows here and a send of this band's nearest rows to it: twelve messages at most,
+ * each a run of whole padded rows straight from the field (no packing). Within a step it waits for all at
+ * once; before a sweep it waits for the south side only, and the sweep completes the north side when its
+ * first step gets there (split.h halo_start, halo_poll, halo_finish), so those rows travel meanwhile. Rows are sent as
  * bytes: every rank must run the same build on the same kind of CPU (a homogeneous cluster).
  */
 #include "run/split_mpi.h"
@@ -16,34 +18,83 @@ typedef struct {
     int south, north;           /* neighbouring ranks, or -1 */
     size_t south_top, north_bottom; /* the south neighbour's last grid row + 1, the north one's first grid row */
     size_t row0, row1;          /* this band */
+    MPI_Request south_req[6], north_req[6]; /* the posted exchange's messages with each neighbour */
+    int n_south, n_north;       /* of them, still to complete */
 } job;
 
-static void halo_mpi(void *ctx, sw_model *m)
+/* Posts the exchange of sw_model_halo_depth(m) rows with both neighbours: for each of eta, u and v a
+ * receive of the neighbour's nearest rows into the same padded rows here and a send of this band's nearest
+ * rows, each a run of whole padded rows straight from the field. */
+static void post(sw_split *sp, sw_model *m)
 {
-    sw_split *sp = ctx;
     job *j = sp->job;
-    const double t0 = MPI_Wtime();
     const size_t h = sw_model_halo_depth(m);   /* a step's halo, or a sweep's deeper one */
-    MPI_Request req[12];
-    int n = 0;
+    j->n_south = j->n_north = 0;
     for (int k = 0; k < 3; k++) {
         size_t rb;
         char *f = sw_model_field_rows(m, k, 0, &rb);   /* padded row p = grid row p - 1 */
         const int count = (int)(h * rb);
         if (j->south >= 0) {
-            MPI_Irecv(f + (j->south_top - h + 1) * rb, count, MPI_BYTE, j->south, 2 * k, MPI_COMM_WORLD, &req[n++]);
-            MPI_Isend(f + (j->row0 + 1) * rb, count, MPI_BYTE, j->south, 2 * k + 1, MPI_COMM_WORLD, &req[n++]);
+            MPI_Irecv(f + (j->south_top - h + 1) * rb, count, MPI_BYTE, j->south, 2 * k, MPI_COMM_WORLD,
+                      &j->south_req[j->n_south++]);
+            MPI_Isend(f + (j->row0 + 1) * rb, count, MPI_BYTE, j->south, 2 * k + 1, MPI_COMM_WORLD,
+                      &j->south_req[j->n_south++]);
         }
         if (j->north >= 0) {
-            MPI_Irecv(f + (j->north_bottom + 1) * rb, count, MPI_BYTE, j->north, 2 * k + 1, MPI_COMM_WORLD, &req[n++]);
-            MPI_Isend(f + (j->row1 - h + 1) * rb, count, MPI_BYTE, j->north, 2 * k, MPI_COMM_WORLD, &req[n++]);
+            MPI_Irecv(f + (j->north_bottom + 1) * rb, count, MPI_BYTE, j->north, 2 * k + 1, MPI_COMM_WORLD,
+                      &j->north_req[j->n_north++]);
+            MPI_Isend(f + (j->row1 - h + 1) * rb, count, MPI_BYTE, j->north, 2 * k, MPI_COMM_WORLD,
+                      &j->north_req[j->n_north++]);
         }
         sp->halo_bytes += (double)count * ((j->south >= 0) + (j->north >= 0));
     }
-    MPI_Waitall(n, req, MPI_STATUSES_IGNORE);
+}
+
+/* split.h halo_start: posts the exchange and completes its south side. */
+static void halo_start(void *ctx, sw_model *m)
+{
+    sw_split *sp = ctx;
+    job *j = sp->job;
+    const double t0 = MPI_Wtime();
+    post(sp, m);
+    MPI_Waitall(j->n_south, j->south_req, MPI_STATUSES_IGNORE);
+    j->n_south = 0;
+    sp->exchange_s += MPI_Wtime() - t0;
+}
+
+/* split.h halo_poll: lets MPI move the north side's messages on (a large message moves only inside MPI
+ * calls) without waiting. */
+static void halo_poll(void *ctx, sw_model *m)
+{
+    (void)m;
+    sw_split *sp = ctx;
+    job *j = sp->job;
+    if (!j->n_north)
+        return;
+    const double t0 = MPI_Wtime();
+    int done = 0;
+    MPI_Testall(j->n_north, j->north_req, &done, MPI_STATUSES_IGNORE);
+    sp->exchange_s += MPI_Wtime() - t0;
+}
+
+/* split.h halo_finish: completes the north side, then wraps the rows of periodic edges. */
+static void halo_finish(void *ctx, sw_model *m)
+{
+    sw_split *sp = ctx;
+    job *j = sp->job;
+    const double t0 = MPI_Wtime();
+    MPI_Waitall(j->n_north, j->north_req, MPI_STATUSES_IGNORE);
+    j->n_north = 0;
     sw_model_wrap_rows(m);
     sp->exchanges++;
     sp->exchange_s += MPI_Wtime() - t0;
+}
+
+/* The whole exchange at once (split.h halo), where the step's threads meet. */
+static void halo_mpi(void *ctx, sw_model *m)
+{
+    halo_start(ctx, m);
+    halo_finish(ctx, m);
 }
 
 static void max_ll(sw_split *sp, long long *v, int n)
@@ -133,7 +184,7 @@ static void bind(sw_split *sp)
 }
 
 static const sw_split_ops mpi_ops = {
-    .halo = halo_mpi, .max_ll = max_ll, .sum_ll = sum_ll, .bcast = bcast, .to_root = to_root,
+    .halo = halo_mpi, .halo_start = halo_start, .halo_poll = halo_poll, .halo_finish = halo_finish, .max_ll = max_ll, .sum_ll = sum_ll, .bcast = bcast, .to_root = to_root,
     .gather_rows = gather_rows, .bind = bind,
 };
 

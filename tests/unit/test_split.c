@@ -53,6 +53,15 @@ typedef struct {
     sw_model *model[MAX_RANKS];
     long long slot[MAX_RANKS][4];
     void *ptr[MAX_RANKS];
+    /* the exchange in parts (fake_start, fake_finish): each rank's lowest and highest rows as sent, by the
+     * exchange's parity (a rank is at most one exchange ahead of the neighbour still reading them) */
+    char *sent[MAX_RANKS][2][2];   /* [rank][parity][0 lowest rows, 1 highest], eta, u, v one after the other */
+    int parity[MAX_RANKS];         /* of the rank's next exchange in parts */
+    int pending[MAX_RANKS];        /* 1 from fake_start to fake_finish */
+    size_t depth[MAX_RANKS];       /* rows of the pending exchange (the model's halo depth at its start) */
+    int changed_in_flight[MAX_RANKS]; /* 1 when a rank's highest rows changed between fake_start and fake_finish */
+    int out_of_order[MAX_RANKS];   /* 1 when a rank started an exchange before finishing one, or the reverse */
+    long long parts[MAX_RANKS];    /* exchanges in parts completed by each rank */
 } fake_job;
 
 typedef struct {
@@ -99,6 +108,66 @@ static void fake_halo(void *ctx, sw_model *m)
     if (north >= 0)
         copy_rows(sp, m, north, 0);
     meet(j);   /* nobody changes a band while another still copies from it */
+    sw_model_wrap_rows(m);
+    sp->exchanges++;
+}
+
+/* The exchange in parts (split.h halo_start, halo_finish), as MPI does it: every rank hands over copies of its
+ * lowest and highest rows (the sends), takes its south neighbour's highest rows at once and its north
+ * neighbour's lowest only in fake_finish. Until then the rows above the band hold NaN, so that a sweep
+ * reading them before finishing the exchange cannot give the unsplit run's bits; and fake_finish checks
+ * that the band's highest rows, still being sent, were not changed meanwhile. */
+static void fake_start(void *ctx, sw_model *m)
+{
+    sw_split *sp = ctx;
+    fake_job *j = ((fake_rank *)sp->job)->job;
+    const int r = sp->rank, n = sp->size, p = j->parity[r];
+    const size_t h = sw_model_halo_depth(m);
+    size_t a, b, rb;
+    sw_split_rows(sp->ny, n, r, &a, &b);
+    assert_true(h <= b - a);
+    j->out_of_order[r] |= j->pending[r];
+    sw_model_field_rows(m, 0, 0, &rb);
+    for (int side = 0; side < 2; side++) {
+        free(j->sent[r][p][side]);
+        j->sent[r][p][side] = malloc(3 * h * rb);
+        for (int k = 0; k < 3; k++)
+            memcpy(j->sent[r][p][side] + (size_t)k * h * rb, sw_model_field_rows(m, k, side ? b - h + 1 : a + 1, &rb), h * rb);
+    }
+    meet(j);   /* every rank's rows are sent */
+    if (r > 0) {   /* the south neighbour's highest rows, into the same padded rows here */
+        size_t sa, sb;
+        sw_split_rows(sp->ny, n, r - 1, &sa, &sb);
+        for (int k = 0; k < 3; k++)
+            memcpy(sw_model_field_rows(m, k, sb - h + 1, &rb), j->sent[r - 1][p][1] + (size_t)k * h * rb, h * rb);
+    }
+    if (r < n - 1)   /* still on their way */
+        for (int k = 0; k < 3; k++)
+            memset(sw_model_field_rows(m, k, b + 1, &rb), 0xff, h * rb);   /* all bits set: NaN, float or double */
+    j->pending[r] = 1;
+    j->depth[r] = h;
+}
+
+static void fake_finish(void *ctx, sw_model *m)
+{
+    sw_split *sp = ctx;
+    fake_job *j = ((fake_rank *)sp->job)->job;
+    const int r = sp->rank, n = sp->size, p = j->parity[r];
+    const size_t h = j->depth[r];
+    size_t a, b, rb;
+    sw_split_rows(sp->ny, n, r, &a, &b);
+    sw_model_field_rows(m, 0, 0, &rb);
+    for (int k = 0; r < n - 1 && k < 3; k++) {
+        /* MPI forbids changing rows being sent until the exchange is complete: the highest rows are as sent */
+        if (memcmp(sw_model_field_rows(m, k, b - h + 1, &rb), j->sent[r][p][1] + (size_t)k * h * rb, h * rb))
+            j->changed_in_flight[r] = 1;   /* checked by run_split_ops (no cmocka assertion off the main thread) */
+        /* the north neighbour's lowest rows, into the same padded rows here */
+        memcpy(sw_model_field_rows(m, k, b + 1, &rb), j->sent[r + 1][p][0] + (size_t)k * h * rb, h * rb);
+    }
+    j->out_of_order[r] |= !j->pending[r];
+    j->pending[r] = 0;
+    j->parity[r] ^= 1;
+    j->parts[r]++;
     sw_model_wrap_rows(m);
     sp->exchanges++;
 }
@@ -158,6 +227,12 @@ static const sw_split_ops fake_ops = {
     .gather_rows = fake_gather_rows,
 };
 
+/* The same with the sweeps' exchange in parts (split.h halo_start, halo_finish; no poll: copies need none). */
+static const sw_split_ops fake_ops_parts = {
+    .halo = fake_halo, .halo_start = fake_start, .halo_finish = fake_finish, .max_ll = fake_max, .sum_ll = fake_sum,
+    .bcast = fake_bcast, .to_root = fake_to_root, .gather_rows = fake_gather_rows,
+};
+
 /* ---- runs ---------------------------------------------------------------------------------------- */
 
 /* Runs the scenario text into folder out as one rank (split NULL: unsplit), stopped after stop_after steps
@@ -199,9 +274,11 @@ static void *rank_main(void *arg)
     return NULL;
 }
 
-/* Runs text on n ranks (threads of this process) into out, as run_text; returns rank 0's status. */
-static sw_status run_split_k(const char *text, const char *out, int n, int threads, long long stop_after, int resume,
-                             int steps_per_sweep, sw_error *err)
+/* Runs text on n ranks (threads of this process) into out, as run_text, with the split operations ops;
+ * returns rank 0's status, and when parts is not NULL the exchanges in parts rank 0 completed. */
+static sw_status run_split_ops(const char *text, const char *out, int n, int threads, long long stop_after,
+                               int resume, int steps_per_sweep, const sw_split_ops *ops, long long *parts,
+                               sw_error *err)
 {
     fake_job job = {.n = n};
     pthread_barrier_init(&job.bar, NULL, (unsigned)n);
@@ -210,7 +287,7 @@ static sw_status run_split_k(const char *text, const char *out, int n, int threa
     for (int r = 0; r < n; r++) {
         fr[r] = (fake_rank){.job = &job, .text = text, .out = out, .threads = threads, .stop_after = stop_after,
                             .resume = resume, .steps_per_sweep = steps_per_sweep};
-        fr[r].sp = (sw_split){.rank = r, .size = n, .ops = &fake_ops, .job = &fr[r]};
+        fr[r].sp = (sw_split){.rank = r, .size = n, .ops = ops, .job = &fr[r]};
         assert_int_equal(pthread_create(&th[r], NULL, rank_main, &fr[r]), 0);
     }
     for (int r = 0; r < n; r++)
@@ -218,8 +295,23 @@ static sw_status run_split_k(const char *text, const char *out, int n, int threa
     pthread_barrier_destroy(&job.bar);
     for (int r = 1; r < n; r++)   /* every rank ends with the job's outcome */
         assert_int_equal(fr[r].rc, fr[0].rc);
+    for (int r = 0; r < n; r++) {
+        assert_false(job.pending[r]);   /* every exchange begun was finished, */
+        assert_false(job.out_of_order[r]);   /* in turn, */
+        assert_false(job.changed_in_flight[r]);   /* and no rank changed rows it was still sending */
+        for (int q = 0; q < 4; q++)
+            free(job.sent[r][q / 2][q % 2]);
+    }
+    if (parts)
+        *parts = job.parts[0];
     *err = fr[0].err;
     return fr[0].rc;
+}
+
+static sw_status run_split_k(const char *text, const char *out, int n, int threads, long long stop_after, int resume,
+                             int steps_per_sweep, sw_error *err)
+{
+    return run_split_ops(text, out, n, threads, stop_after, resume, steps_per_sweep, &fake_ops, NULL, err);
 }
 
 static sw_status run_split(const char *text, const char *out, int n, int threads, long long stop_after, int resume,
@@ -311,7 +403,8 @@ static void test_split_equals_unsplit(void **state)
 /* Sweeps of several steps over memory on split ranks (stepper.c: each rank computes its band and the halo
  * of the sweep's k steps, after one exchange of that deeper halo) give the unsplit run's bits: every layout
  * with wall, open and level edges, 2 ranks with 5 steps a sweep (1 and 2 threads), 3 ranks with 3, and 2
- * ranks asking 16, which the 20-row bands cut to what their halo allows. */
+ * ranks asking 16, which the 20-row bands cut to what their halo allows; and with the sweep's exchange in
+ * parts (the north side's rows NaN until the sweep finishes it, fake_start), on 2, 3 and 4 ranks. */
 static void test_split_sweeps(void **state)
 {
     (void)state;
@@ -325,14 +418,21 @@ static void test_split_sweeps(void **state)
         sw_error err = {0};
         if (run_text_k(text, ref, 1, 0, 0, 1, NULL, &err) != SW_OK)
             fail_msg("%s", err.msg);
-        const int cases[][3] = {{2, 1, 5}, {2, 2, 5}, {3, 1, 3}, {2, 1, 16}};   /* ranks, threads, steps a sweep */
+        /* ranks, threads, steps a sweep, the sweep's exchange in parts (its north side finished in the sweep) */
+        const int cases[][4] = {{2, 1, 5, 0}, {2, 2, 5, 0}, {3, 1, 3, 0}, {2, 1, 16, 0}, {2, 1, 5, 1}, {3, 2, 3, 1},
+                                {4, 1, 2, 1}};
         for (size_t c = 0; c < sizeof cases / sizeof cases[0]; c++) {
-            snprintf(out, sizeof out, "%s/sweeps-%s-%dx%d-k%d", dir, name, cases[c][0], cases[c][1], cases[c][2]);
+            snprintf(out, sizeof out, "%s/sweeps-%s-%dx%d-k%d%s", dir, name, cases[c][0], cases[c][1], cases[c][2],
+                     cases[c][3] ? "-parts" : "");
             mkdir(out, 0777);
-            if (run_split_k(text, out, cases[c][0], cases[c][1], 0, 0, cases[c][2], &err) != SW_OK)
+            long long parts = 0;
+            if (run_split_ops(text, out, cases[c][0], cases[c][1], 0, 0, cases[c][2],
+                              cases[c][3] ? &fake_ops_parts : &fake_ops, &parts, &err) != SW_OK)
                 fail_msg("%s", err.msg);
-            snprintf(what, sizeof what, "%s on %d ranks x %d threads, %d steps a sweep", name, cases[c][0],
-                     cases[c][1], cases[c][2]);
+            if (cases[c][3])   /* the sweeps did take their exchange in parts */
+                assert_true(parts > 0);
+            snprintf(what, sizeof what, "%s on %d ranks x %d threads, %d steps a sweep%s", name, cases[c][0],
+                     cases[c][1], cases[c][2], cases[c][3] ? ", exchange in parts" : "");
             check_same(ref, out, what);
             print_message("  %s: every value the same bits\n", what);
         }
