@@ -75,6 +75,8 @@ struct sw_tracker {
     float *speed2_max;             /* [ny * nx] squared speed, m2 s-2 */
     size_t n_seg;         /* segments per row */
     seg_summary *seg;     /* [ny * n_seg] */
+    unsigned char *seg_all_wet; /* [ny * n_seg] 1 when every cell of the segment is water: its updates need not
+                           * read the wet mask (not part of the state: it follows from the model) */
     const unsigned char *wet; /* the model's mask [ny * nx] */
     int all_maps;         /* 1 during the first update (sw_tracker_create): every segment rewrites every map,
                            * so that each summary holds what its maps say from then on */
@@ -162,6 +164,7 @@ void sw_tracker_free(sw_tracker *t)
     free(t->speed2_max);
     free_slots(t);
     free(t->seg);
+    free(t->seg_all_wet);
     free(t->out);
     free(t);
 }
@@ -188,8 +191,9 @@ sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads
     t->speed2_max = malloc(n * sizeof(float));
     t->n_seg = (g->nx + SEG - 1) / SEG;
     t->seg = malloc(g->ny * t->n_seg * sizeof *t->seg);
+    t->seg_all_wet = malloc(g->ny * t->n_seg);
     t->wet = sw_model_wet(m);
-    if (!t->eta_max || !t->eta_min || !t->arrival || !t->eta_max_time || !t->speed2_max || !t->seg
+    if (!t->eta_max || !t->eta_min || !t->arrival || !t->eta_max_time || !t->speed2_max || !t->seg || !t->seg_all_wet
         || ensure_slots(t, n_threads < 1 ? 1 : n_threads, NULL) != SW_OK) {
         sw_tracker_free(t);
         return sw_fail(err, SW_ERR_NOMEM, "out of memory allocating the arrival tracker (%zu cells)", n);
@@ -203,8 +207,14 @@ sw_status sw_tracker_create(const sw_model *m, double threshold_m, int n_threads
             t->eta_max_time[k] = 0.0f;
             t->speed2_max[k] = 0.0f;
         }
-    for (size_t q = 0; q < g->ny * t->n_seg; q++)   /* anything may change: every segment updates */
+    for (size_t q = 0; q < g->ny * t->n_seg; q++) {   /* anything may change: every segment updates */
         t->seg[q] = (seg_summary){.up = -INFINITY, .down = INFINITY, .faster = -1, .waiting = 1};
+        const size_t j = q / t->n_seg, a = (q % t->n_seg) * SEG, b = a + SEG < g->nx ? a + SEG : g->nx;
+        unsigned char all = 1;
+        for (size_t i = a; i < b; i++)
+            all &= t->wet[j * g->nx + i] != 0;
+        t->seg_all_wet[q] = all;
+    }
     t->all_maps = 1;
     sw_tracker_update(t, m);
     t->all_maps = 0;
@@ -221,7 +231,8 @@ enum { MAP_MAX = 1, MAP_MIN = 2, MAP_SPEED = 4, MAP_ARRIVAL = 8, MAP_ALL = 15 };
 static inline __attribute__((always_inline)) int fused_maps(sw_tracker *t, size_t j, size_t a, size_t b,
                                                             const float *restrict e, const float *restrict uu,
                                                             const float *restrict vv, float now, seg_summary *sum,
-                                                            const int do_max, const int do_min, const int do_speed)
+                                                            const int do_max, const int do_min, const int do_speed,
+                                                            const int all_wet)
 {
     const size_t r = j * t->nx;
     const float fl = t->floor;
@@ -235,7 +246,7 @@ static inline __attribute__((always_inline)) int fused_maps(sw_tracker *t, size_
         const float s2_raw = uu[i] * uu[i] + vv[i] * vv[i];
         bad |= !(fabsf(e[i]) <= FLT_MAX) | !(s2_raw <= FLT_MAX);   /* NaN or Inf in the state */
         const float ei = fabsf(e[i]) < fl ? 0.0f : e[i];
-        const int w = wet[i] != 0;
+        const int w = all_wet || wet[i] != 0;   /* all_wet: a constant, the mask not read */
         if (do_max) {
             const float old = mx[i];
             const int higher = ei > old;
@@ -283,16 +294,21 @@ static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float
     const float thr = t->threshold, fl = t->floor;
     const unsigned char *restrict wet = t->wet + r;
     int bad;
-    switch (which & (MAP_MAX | MAP_MIN | MAP_SPEED)) {   /* one copy of the pass for each set of maps */
-    case MAP_MAX: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 1, 0, 0); break;
-    case MAP_MIN: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 0, 1, 0); break;
-    case MAP_MAX | MAP_MIN: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 1, 1, 0); break;
-    case MAP_SPEED: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 0, 0, 1); break;
-    case MAP_MAX | MAP_SPEED: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 1, 0, 1); break;
-    case MAP_MIN | MAP_SPEED: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 0, 1, 1); break;
-    case MAP_MAX | MAP_MIN | MAP_SPEED: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 1, 1, 1); break;
-    default: bad = fused_maps(t, j, a, b, e, uu, vv, now, sum, 0, 0, 0); break;
+    const int all = t->seg_all_wet[j * t->n_seg + a / SEG];
+    /* one copy of the pass for each set of maps, with and without the wet mask */
+#define FUSED(mx, mn, sp) (all ? fused_maps(t, j, a, b, e, uu, vv, now, sum, mx, mn, sp, 1) \
+                               : fused_maps(t, j, a, b, e, uu, vv, now, sum, mx, mn, sp, 0))
+    switch (which & (MAP_MAX | MAP_MIN | MAP_SPEED)) {
+    case MAP_MAX: bad = FUSED(1, 0, 0); break;
+    case MAP_MIN: bad = FUSED(0, 1, 0); break;
+    case MAP_MAX | MAP_MIN: bad = FUSED(1, 1, 0); break;
+    case MAP_SPEED: bad = FUSED(0, 0, 1); break;
+    case MAP_MAX | MAP_SPEED: bad = FUSED(1, 0, 1); break;
+    case MAP_MIN | MAP_SPEED: bad = FUSED(0, 1, 1); break;
+    case MAP_MAX | MAP_MIN | MAP_SPEED: bad = FUSED(1, 1, 1); break;
+    default: bad = FUSED(0, 0, 0); break;
     }
+#undef FUSED
     if (which & MAP_ARRIVAL) {
         float *restrict arr = t->arrival + r;
         int waiting = 0;
@@ -303,7 +319,7 @@ static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float
             const int arrives = unset & (fabsf(ei) >= thr);   /* & and |, not && and ||: no branch per cell */
             if (arrives)
                 arr[i] = now;
-            waiting |= (wet[i] != 0) & unset & !arrives;
+            waiting |= (all | (wet[i] != 0)) & unset & !arrives;
         }
         sum->waiting = waiting;
     }
