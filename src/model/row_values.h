@@ -14,39 +14,43 @@
 /* Cells per segment of a row. */
 #define SW_OBS_SEG 512
 
-/* A row's centre values: the values sw_model_centre_row_f32 gives, bit for bit, and for each segment q
- * of SW_OBS_SEG cells (the last may be shorter) the highest and lowest elevation and the highest
- * u*u + v*v, computed in float, over the segment. */
+/* A row's centre values: the elevation sw_model_centre_row_f32 gives, bit for bit, and the squared speed
+ * u*u + v*v of its u and v computed in float; and for each segment q of SW_OBS_SEG cells (the last may be
+ * shorter) the highest and lowest elevation and the highest squared speed over the segment. The observer
+ * (the tracker) needs the speed only squared: handing that over, not u and v, spares a value a cell both
+ * ways and the tracker's own squaring. */
 typedef struct {
-    const float *eta, *u, *v;         /* [nx] m, m/s, m/s */
-    const float *hi, *lo, *speed2;    /* [ceil(nx / SW_OBS_SEG)] m, m, m2 s-2 */
+    const float *eta, *speed2;        /* [nx] m, m2 s-2 */
+    const float *hi, *lo, *top_speed2;/* [ceil(nx / SW_OBS_SEG)] m, m, m2 s-2 */
 } sw_row_values;
 
 /* Floats of a row's values in a buffer (sw_row_values' arrays one after the other) for nx cells. */
-static inline size_t sw_row_values_len(size_t nx) { return 3 * nx + 3 * ((nx + SW_OBS_SEG - 1) / SW_OBS_SEG); }
+static inline size_t sw_row_values_len(size_t nx) { return 2 * nx + 3 * ((nx + SW_OBS_SEG - 1) / SW_OBS_SEG); }
 
 /* The sw_row_values whose arrays lie in buf (sw_row_values_len(nx) floats). */
 static inline sw_row_values sw_row_values_in(const float *buf, size_t nx)
 {
     const size_t n_seg = (nx + SW_OBS_SEG - 1) / SW_OBS_SEG;
-    return (sw_row_values){buf, buf + nx, buf + 2 * nx, buf + 3 * nx, buf + 3 * nx + n_seg, buf + 3 * nx + 2 * n_seg};
+    return (sw_row_values){buf, buf + nx, buf + 2 * nx, buf + 2 * nx + n_seg, buf + 2 * nx + 2 * n_seg};
 }
 
-/* The highest and lowest e and the highest u*u + v*v over cells [a, b) of a row's centre values, in
- * float. The comparisons are not fmaxf / fminf, which are libm calls per cell and stop the loop from
- * vectorising. */
-static inline void sw_row_extremes(const float *restrict e, const float *restrict u, const float *restrict v,
-                                   size_t a, size_t b, float *hi_out, float *lo_out, float *speed2_out)
+/* The squared speed u*u + v*v of centre values u, v, in float: the one expression of every maker of
+ * sw_row_values.speed2 (contraction is off, so the same bits wherever it is computed). */
+static inline float sw_speed2(float u, float v) { return u * u + v * v; }
+
+/* The highest and lowest e and the highest s2 over cells [a, b) of a row's centre values. The comparisons
+ * are not fmaxf / fminf, which are libm calls per cell and stop the loop from vectorising. */
+static inline void sw_row_extremes(const float *restrict e, const float *restrict s2, size_t a, size_t b,
+                                   float *hi_out, float *lo_out, float *speed2_out)
 {
     float hi = -INFINITY, lo = INFINITY, top = 0;
 #ifdef _OPENMP
 #pragma omp simd reduction(max : hi, top) reduction(min : lo)
 #endif
     for (size_t i = a; i < b; i++) {
-        const float s2 = u[i] * u[i] + v[i] * v[i];
         hi = e[i] > hi ? e[i] : hi;
         lo = e[i] < lo ? e[i] : lo;
-        top = s2 > top ? s2 : top;
+        top = s2[i] > top ? s2[i] : top;
     }
     *hi_out = hi;
     *lo_out = lo;

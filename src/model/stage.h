@@ -252,8 +252,8 @@ SW_INLINE void sw_continuity_observed_loop(const sw_cells *c, size_t k0, size_t 
                                            float *restrict buf, sw_eta_cell_fn eta_new, sw_centre_cell_fn centre)
 {
     const size_t n_seg = (nx + SW_OBS_SEG - 1) / SW_OBS_SEG;
-    float *restrict oe = buf, *restrict ou = buf + nx, *restrict ov = buf + 2 * nx;
-    float *restrict hi = buf + 3 * nx, *restrict lo = hi + n_seg, *restrict speed2 = lo + n_seg;
+    float *restrict oe = buf, *restrict os2 = buf + nx;
+    float *restrict hi = buf + 2 * nx, *restrict lo = hi + n_seg, *restrict speed2 = lo + n_seg;
     sw_real *restrict eta = c->eta;
     for (size_t q = 0; q < n_seg; q++) {
         const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
@@ -269,10 +269,9 @@ SW_INLINE void sw_continuity_observed_loop(const sw_cells *c, size_t k0, size_t 
         for (size_t i = a; i < b; i++) {
             float e, uc, vc;
             centre(c, f0 + i, i, jf, &e, &uc, &vc);
+            const float s2 = sw_speed2(uc, vc);
             oe[i] = e;
-            ou[i] = uc;
-            ov[i] = vc;
-            const float s2 = uc * uc + vc * vc;
+            os2[i] = s2;
             top_e = e > top_e ? e : top_e;   /* not fmaxf: a libm call per cell */
             bottom_e = e < bottom_e ? e : bottom_e;
             top_s2 = s2 > top_s2 ? s2 : top_s2;

@@ -229,8 +229,8 @@ enum { MAP_MAX = 1, MAP_MIN = 2, MAP_SPEED = 4, MAP_ARRIVAL = 8, MAP_ALL = 15 };
  * a .. b-1: update_cells' loops for those maps fused, so that the row values and the wet mask are read
  * once. A map's value is stored back unchanged where the cell does not pass it (the same bits). */
 static inline __attribute__((always_inline)) int fused_maps(sw_tracker *t, size_t j, size_t a, size_t b,
-                                                            const float *restrict e, const float *restrict uu,
-                                                            const float *restrict vv, float now, seg_summary *sum,
+                                                            const float *restrict e, const float *restrict s2c,
+                                                            float now, seg_summary *sum,
                                                             const int do_max, const int do_min, const int do_speed,
                                                             const int all_wet)
 {
@@ -243,7 +243,7 @@ static inline __attribute__((always_inline)) int fused_maps(sw_tracker *t, size_
     int bad = 0;
     SW_OMP(simd reduction(min : lo_max, lo_sp) reduction(max : hi_min) reduction(| : bad))
     for (size_t i = a; i < b; i++) {
-        const float s2_raw = uu[i] * uu[i] + vv[i] * vv[i];
+        const float s2_raw = s2c[i];
         bad |= !(fabsf(e[i]) <= FLT_MAX) | !(s2_raw <= FLT_MAX);   /* NaN or Inf in the state */
         const float ei = fabsf(e[i]) < fl ? 0.0f : e[i];
         const int w = all_wet || wet[i] != 0;   /* all_wet: a constant, the mask not read */
@@ -278,7 +278,7 @@ static inline __attribute__((always_inline)) int fused_maps(sw_tracker *t, size_
     return bad;
 }
 
-/* Folds cells [a, b) of row j (centre values e, uu, vv, indexed from the row's start) into the maps
+/* Folds cells [a, b) of row j (centre elevations e and squared speeds s2, indexed from the row's start) into the maps
  * named by `which` (MAP_...), cell by cell, and renews their parts of the segment's summary. A map
  * whose trigger no value passed cannot change (seg_summary), so it is neither read nor written and its
  * part of the summary stays as it is: the maps and the summary are those of updating every map. A cell
@@ -287,7 +287,7 @@ static inline __attribute__((always_inline)) int fused_maps(sw_tracker *t, size_
  * is NaN or infinite. A state that blows up passes through ever larger values, which make its segments
  * update, so checking here finds it without a test on every cell of every step. */
 static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float *restrict e,
-                         const float *restrict uu, const float *restrict vv, float now, unsigned which,
+                         const float *restrict s2, float now, unsigned which,
                          seg_summary *sum)
 {
     const size_t r = j * t->nx;
@@ -296,8 +296,8 @@ static int update_cells(sw_tracker *t, size_t j, size_t a, size_t b, const float
     int bad;
     const int all = t->seg_all_wet[j * t->n_seg + a / SEG];
     /* one copy of the pass for each set of maps, with and without the wet mask */
-#define FUSED(mx, mn, sp) (all ? fused_maps(t, j, a, b, e, uu, vv, now, sum, mx, mn, sp, 1) \
-                               : fused_maps(t, j, a, b, e, uu, vv, now, sum, mx, mn, sp, 0))
+#define FUSED(mx, mn, sp) (all ? fused_maps(t, j, a, b, e, s2, now, sum, mx, mn, sp, 1) \
+                               : fused_maps(t, j, a, b, e, s2, now, sum, mx, mn, sp, 0))
     switch (which & (MAP_MAX | MAP_MIN | MAP_SPEED)) {
     case MAP_MAX: bad = FUSED(1, 0, 0); break;
     case MAP_MIN: bad = FUSED(0, 1, 0); break;
@@ -332,17 +332,19 @@ static void track_row_in(sw_tracker *t, thread_slot *sl, const sw_model *m, size
 {
     const size_t nx = t->nx;
     const float now = (float)time_s, thr = t->threshold;
-    const float *e, *uu, *vv;
+    const float *e, *s2;
     float *row = sl->row;
     if (pre) {   /* the step made the values and the segments' extremes */
         e = pre->eta;
-        uu = pre->u;
-        vv = pre->v;
+        s2 = pre->speed2;
     } else {
-        sw_model_centre_row_f32(m, j, row, row + nx, row + 2 * nx);
+        float *uu = row + nx, *vv = row + 2 * nx;
+        sw_model_centre_row_f32(m, j, row, uu, vv);
+        SW_OMP(simd)
+        for (size_t i = 0; i < nx; i++)
+            uu[i] = sw_speed2(uu[i], vv[i]);   /* in place: the squared speed */
         e = row;
-        uu = row + nx;
-        vv = row + 2 * nx;
+        s2 = uu;
     }
     int bad = 0;
     long long updated = 0;
@@ -352,9 +354,9 @@ static void track_row_in(sw_tracker *t, thread_slot *sl, const sw_model *m, size
         if (pre) {
             hi = pre->hi[q];
             lo = pre->lo[q];
-            top_s2 = pre->speed2[q];
+            top_s2 = pre->top_speed2[q];
         } else {
-            sw_row_extremes(e, uu, vv, a, b, &hi, &lo, &top_s2);
+            sw_row_extremes(e, s2, a, b, &hi, &lo, &top_s2);
         }
         seg_summary *sum = &t->seg[j * t->n_seg + q];
         /* A cell's maps change only when its new value passes them, or it arrives; if no raw value
@@ -364,7 +366,7 @@ static void track_row_in(sw_tracker *t, thread_slot *sl, const sw_model *m, size
             : (hi > sum->up ? MAP_MAX : 0u) | (lo < sum->down ? MAP_MIN : 0u) | (top_s2 > sum->faster ? MAP_SPEED : 0u)
               | (sum->waiting && (hi >= thr || -lo >= thr) ? MAP_ARRIVAL : 0u);
         if (which) {
-            bad |= update_cells(t, j, a, b, e, uu, vv, now, which, sum);
+            bad |= update_cells(t, j, a, b, e, s2, now, which, sum);
             updated++;
         }
     }

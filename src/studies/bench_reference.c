@@ -63,7 +63,7 @@ static inline void c_continuity_row_observed(sw_real *restrict eta, const sw_rea
                                              sw_real cy, size_t r0, float *restrict buf)
 {
     const sw_row_values o = sw_row_values_in(buf, nx);
-    float *restrict oe = (float *)o.eta, *restrict ou = (float *)o.u, *restrict ov = (float *)o.v;
+    float *restrict oe = (float *)o.eta, *restrict os2 = (float *)o.speed2;
     const size_t n_seg = (nx + SW_OBS_SEG - 1) / SW_OBS_SEG;
     for (size_t q = 0; q < n_seg; q++) {
         const size_t a = q * SW_OBS_SEG, b = a + SW_OBS_SEG < nx ? a + SW_OBS_SEG : nx;
@@ -74,10 +74,9 @@ static inline void c_continuity_row_observed(sw_real *restrict eta, const sw_rea
             float e, uc, vc;
             c_centre_f32(eta, u, v, r, s, &e, &uc, &vc);
             oe[i] = e;
-            ou[i] = uc;
-            ov[i] = vc;
+            os2[i] = sw_speed2(uc, vc);
         }
-        sw_row_extremes(oe, ou, ov, a, b, (float *)&o.hi[q], (float *)&o.lo[q], (float *)&o.speed2[q]);   /* the segment is in L1 */
+        sw_row_extremes(oe, os2, a, b, (float *)&o.hi[q], (float *)&o.lo[q], (float *)&o.top_speed2[q]);   /* the segment is in L1 */
     }
 }
 
