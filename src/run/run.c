@@ -701,12 +701,8 @@ sw_status sw_run(const sw_scenario *sc, const sw_setup *setup, const sw_run_opti
         omp_set_num_threads(opt->threads);
     res->threads = omp_get_max_threads();
 
-    sw_model_config cfg = {
-        .layout = setup->layout, .grid = setup->grid, .depth_m = setup->depth_m, .eta0_m = setup->eta0_m,
-        .min_depth_m = sc->min_depth_m, .gravity_ms2 = sc->gravity_ms2, .dt_s = setup->dt_s,
-        .precision = sc->precision, .terms = sc->terms, .allow_unstable = opt->allow_unstable,
-    };
-    memcpy(cfg.edges, sc->edges, sizeof cfg.edges);
+    sw_model_config cfg = sw_setup_model_config(sc, setup);
+    cfg.allow_unstable = opt->allow_unstable;
 
     sw_run_meta meta = {
         .title = sc->title, .history = opt->history ? opt->history : "", .scenario_text = sc->text ? sc->text : "",

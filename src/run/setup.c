@@ -532,3 +532,14 @@ sw_status sw_setup_storm_pass(const sw_scenario *sc, const sw_grid *g, double ru
         memset(out, 0, sizeof *out);
     return rc;
 }
+
+sw_model_config sw_setup_model_config(const sw_scenario *sc, const sw_setup *s)
+{
+    sw_model_config cfg = {
+        .layout = s->layout, .grid = s->grid, .depth_m = s->depth_m, .eta0_m = s->eta0_m,
+        .min_depth_m = sc->min_depth_m, .gravity_ms2 = sc->gravity_ms2, .dt_s = s->dt_s,
+        .precision = sc->precision, .terms = sc->terms,
+    };
+    memcpy(cfg.edges, sc->edges, sizeof cfg.edges);
+    return cfg;
+}

@@ -14,6 +14,7 @@
 #include "inputs/scenario.h"
 #include "inputs/source.h"
 #include "model/layout.h"
+#include "model/model.h"
 
 /* Where a [storm]'s centre goes relative to the domain during the run: the plan warns when it never
  * enters, since the water then feels only the storm's outer winds. */
@@ -150,6 +151,12 @@ sw_status sw_setup_derive(const sw_scenario *sc, sw_setup *s, const char *change
 
 /* Releases the arrays s owns and zeroes it. s may be NULL. */
 void sw_setup_free(sw_setup *s);
+
+/* The model a run of sc on setup s steps: s's layout, grid, depth, initial elevation and time step with
+ * sc's land threshold, gravity, terms, edges, edge level 0 and precision. The arrays are s's (the model
+ * copies them). One derivation for `run` and for those that build the same model beside it (bench's real
+ * run). */
+sw_model_config sw_setup_model_config(const sw_scenario *sc, const sw_setup *s);
 
 /* The memory a run of sc on setup s holds at its peak, bytes: the model (s->model_bytes), the input
  * depth and elevation, the tracker's running maps, the five result maps, a snapshot frame when

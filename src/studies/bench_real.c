@@ -30,12 +30,7 @@ static sw_status no_files(const sw_map_set *maps, const sw_gauge_table *gauges, 
  * the current threads; NAN when the model cannot be made. */
 static double plain_seconds(const sw_scenario *sc, const sw_setup *setup, long long steps, int k, sw_error *err)
 {
-    sw_model_config cfg = {
-        .layout = setup->layout, .grid = setup->grid, .depth_m = setup->depth_m, .eta0_m = setup->eta0_m,
-        .min_depth_m = sc->min_depth_m, .gravity_ms2 = sc->gravity_ms2, .dt_s = setup->dt_s,
-        .precision = sc->precision, .terms = sc->terms,
-    };
-    memcpy(cfg.edges, sc->edges, sizeof cfg.edges);
+    const sw_model_config cfg = sw_setup_model_config(sc, setup);
     sw_model *m;
     if (sw_model_create(&cfg, &m, err) != SW_OK)
         return NAN;
