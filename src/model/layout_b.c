@@ -210,25 +210,32 @@ SW_INLINE void b_momentum_plain(const sw_view *v, size_t j, const int forced)
  * for quadratic friction, |velocity| = |stored| / f, rho = dt Cd |stored| / f^2. u and v of a corner
  * have one f, read from share_x (the byte 3 / f: the thirds are folded into rho0 and dtc). On a
  * geographic grid the x-gradient divides by cos_f[j] as in the plain kernel; u and v stand for the same
- * area (the corner's), so the rotation pair needs no area ratio and still does no work. */
-SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag, const int forced)
+ * area (the corner's), so the rotation pair needs no area ratio and still does no work. b_row_coef holds
+ * what a row computes once. */
+typedef struct {
+    sw_real gx, gy, F;  /* gravity coefficients of the row's stencils, dt f on the corner line */
+    sw_real rho0, dtc;  /* friction: dt r / 3 and dt / 9 (the thirds of the share code folded in) */
+    sw_real c0, c1;     /* surface forcing weights */
+} b_row_coef;
+
+/* Corners i0..i1 of one share segment (terms.h share_mixed_x); mixed: read the share bytes, else every
+ * flowing corner is in open water (SW_SHARE_OPEN: the same values without the byte stream). */
+SW_INLINE void b_terms_span(const sw_view *v, const b_row_coef *k, size_t i0, size_t i1, const int mixed,
+                            const int drag, const int forced)
 {
     sw_real *restrict u = SW_V(v, u), *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
     const sw_real *restrict cdx = drag ? (const sw_real *)v->terms->drag_x : NULL;
     const sw_real *restrict cdy = drag ? (const sw_real *)v->terms->drag_y : NULL;
     const uint8_t *restrict sh = v->terms->share_x;   /* 3 / f of the corner, for u and v alike */
-    const sw_real gx = (sw_real)(0.5 * v->g * v->dt_s / (v->dx_m * v->cos_f[j]));
-    const sw_real gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m);
-    const sw_real F = (sw_real)(v->dt_s * v->terms->f_face[j]);
-    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
     const float *restrict ax0 = forced ? v->terms->surface_x[0] : NULL, *restrict ax1 = forced ? v->terms->surface_x[1] : NULL;
     const float *restrict ay0 = forced ? v->terms->surface_y[0] : NULL, *restrict ay1 = forced ? v->terms->surface_y[1] : NULL;
-    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
-    const size_t s = v->stride, r = j * s;
+    const sw_real gx = k->gx, gy = k->gy, F = k->F, rho0 = k->rho0, dtc = k->dtc, c0 = k->c0, c1 = k->c1;
+    const size_t s = v->stride;
     SW_OMP(simd)
-    for (size_t i = r; i <= r + v->nx; i++) {
-        const sw_real Hx = hx[i], Hy = hy[i], u0 = u[i], v0 = vv[i], c = (sw_real)sh[i];
+    for (size_t i = i0; i <= i1; i++) {
+        const sw_real Hx = hx[i], Hy = hy[i], u0 = u[i], v0 = vv[i];
+        const sw_real c = mixed ? (sw_real)sh[i] : (sw_real)SW_SHARE_OPEN;
         sw_real rx = rho0 * c, ry = rho0 * c;
         if (drag)
             rx += dtc * cdx[i] * (c * c) * (sw_real)sqrt(u0 * u0 + v0 * v0);
@@ -241,6 +248,25 @@ SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag, cons
         const sw_real dgy = -gy * (eta[i + s] + eta[i + s + 1] - eta[i] - eta[i + 1]);
         vv[i] = forced ? sw_terms_update(v0, Hy, dgy + sw_surface_dvel(ay0, ay1, i, c0, c1), -2 * Hy * F * u1, ry)
                        : sw_terms_update(v0, Hy, dgy, -2 * Hy * F * u1, ry);
+    }
+}
+
+SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag, const int forced)
+{
+    const b_row_coef k = {
+        .gx = (sw_real)(0.5 * v->g * v->dt_s / (v->dx_m * v->cos_f[j])), .gy = (sw_real)(0.5 * v->g * v->dt_s / v->dy_m),
+        .F = (sw_real)(v->dt_s * v->terms->f_face[j]),
+        .rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), .dtc = (sw_real)(v->dt_s / 9),
+        .c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), .c1 = (sw_real)(v->dt_s * v->terms->surface_w)};
+    const size_t r = j * v->stride, last = r + v->nx;
+    /* u and v share one byte: a segment is mixed when either's flag says so */
+    const uint8_t *mx = v->terms->share_mixed_x + j * v->terms->n_share_seg;
+    const uint8_t *my = v->terms->share_mixed_y + j * v->terms->n_share_seg;
+    for (size_t a = r, b; a <= last; a = b + 1) {
+        if (sw_share_span(mx, r, a, last, &b) | my[(a - r) / SW_SHARE_SEG])
+            b_terms_span(v, &k, a, b, 1, drag, forced);
+        else
+            b_terms_span(v, &k, a, b, 0, drag, forced);
     }
 }
 

@@ -274,6 +274,14 @@ SW_INLINE void d_v_plain(const sw_view *v, size_t j, const int forced)
                                     : vv[i] - gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1])) : 0;
 }
 
+/* What a row of D's terms kernels computes once: the coefficients of d_u_span / d_v_span. */
+typedef struct {
+    sw_real g;          /* gx or gy: the gravity coefficient of the row's stencil */
+    sw_real q, qr;      /* u: rotation weight and the area ratio of row j+1 to row j; v: qn, qs */
+    sw_real rho0, dtc;  /* friction: dt r / 3 and dt / 9 (the thirds of the share code folded in) */
+    sw_real c0, c1;     /* surface forcing weights */
+} d_row_coef;
+
 /* The momentum stages with rotation and friction (terms.h; docs/terms.md), as layout_c.c's with the
  * roles of the faces turned: u of row j (north faces, on the line j) from the transport of the old v on
  * the four east faces around it (rows j and j+1, corners on line j), rot = (F / 2) sum hy v; then v of
@@ -283,26 +291,26 @@ SW_INLINE void d_v_plain(const sw_view *v, size_t j, const int forced)
  * (layout_b.c), since the faces store f * velocity with hx = h / f. On a geographic grid the pair weights
  * carry the areas the points stand for: the u equation takes row j's v transport times cos_c[j] / cos_f[j]
  * and row j+1's times cos_c[j+1] / cos_f[j] (written as q times qr, the ratio of the rows, 1.0 on a plane, so
- * the plane's sum is unchanged), so that K stays symmetric under the area-weighted sum. */
-SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag, const int forced)
+ * the plane's sum is unchanged), so that K stays symmetric under the area-weighted sum. The share bytes
+ * are read only in the segments of a row that need them (terms.h share_mixed_x).
+ * d_u_span: u of padded row j at points i0..i1 (one segment); mixed: read the share bytes (else every
+ * flowing point is in open water, code SW_SHARE_OPEN: the same values without the byte stream). */
+SW_INLINE void d_u_span(const sw_view *v, const d_row_coef *k, size_t i0, size_t i1, const int mixed,
+                        const int flat, const int drag, const int forced)
 {
     sw_real *restrict u = SW_V(v, u);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hx = SW_V(v, hx), *restrict hy = SW_V(v, hy);
     const sw_real *restrict vv = SW_V(v, v), *restrict cd = drag ? (const sw_real *)v->terms->drag_x : NULL;
     const uint8_t *restrict sh = v->terms->share_x;   /* 3 / f */
-    const sw_real gx = (sw_real)(0.25 * v->g * v->dt_s / (v->dx_m * v->cos_f[j]));
-    /* v of row j and row j+1 stand for areas cos_c of those rows against u's cos_f of line j */
-    const sw_real q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j] * (v->cos_c[j] / v->cos_f[j]));
-    const sw_real qr = (sw_real)(v->cos_c[j + 1] / v->cos_c[j]);
-    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
     const float *restrict a0 = forced ? v->terms->surface_x[0] : NULL, *restrict a1 = forced ? v->terms->surface_x[1] : NULL;
-    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
-    const size_t s = v->stride, r = j * s;
+    const sw_real gx = k->g, q = k->q, qr = k->qr, rho0 = k->rho0, dtc = k->dtc, c0 = k->c0, c1 = k->c1;
+    const size_t s = v->stride;
     SW_OMP(simd)
-    for (size_t i = r + 1; i <= r + v->nx; i++) {
+    for (size_t i = i0; i <= i1; i++) {
         const sw_real w0 = vv[i - 1], w1 = vv[i], n0 = vv[i + s - 1], n1 = vv[i + s];
-        const sw_real rot = q * (hy[i - 1] * w0 + hy[i] * w1 + qr * (hy[i + s - 1] * n0) + qr * (hy[i + s] * n1));
-        const sw_real c = (sw_real)sh[i];
+        const sw_real rot = flat ? q * (hy[i - 1] * w0 + hy[i] * w1 + hy[i + s - 1] * n0 + hy[i + s] * n1)
+                                 : q * (hy[i - 1] * w0 + hy[i] * w1 + qr * (hy[i + s - 1] * n0) + qr * (hy[i + s] * n1));
+        const sw_real c = mixed ? (sw_real)sh[i] : (sw_real)SW_SHARE_OPEN;
         sw_real rho = rho0 * c;
         if (drag) {
             const sw_real vbar = (sw_real)0.25 * (w0 + w1 + n0 + n1);
@@ -314,23 +322,47 @@ SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag, const int f
     }
 }
 
-SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag, const int forced)
+SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag, const int forced)
+{
+    /* v of row j and row j+1 stand for areas cos_c of those rows against u's cos_f of line j */
+    const d_row_coef k = {
+        .g = (sw_real)(0.25 * v->g * v->dt_s / (v->dx_m * v->cos_f[j])),
+        .q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j] * (v->cos_c[j] / v->cos_f[j])),
+        .qr = (sw_real)(v->cos_c[j + 1] / v->cos_c[j]),
+        .rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), .dtc = (sw_real)(v->dt_s / 9),
+        .c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), .c1 = (sw_real)(v->dt_s * v->terms->surface_w)};
+    const size_t r = j * v->stride, last = r + v->nx;
+    const uint8_t *mixed = v->terms->share_mixed_x + j * v->terms->n_share_seg;
+    const int flat = k.qr == 1;
+    for (size_t a = r + 1, b; a <= last; a = b + 1) {
+        const int mix = sw_share_span(mixed, r, a, last, &b);
+        if (mix && flat)
+            d_u_span(v, &k, a, b, 1, 1, drag, forced);
+        else if (mix)
+            d_u_span(v, &k, a, b, 1, 0, drag, forced);
+        else if (flat)
+            d_u_span(v, &k, a, b, 0, 1, drag, forced);
+        else
+            d_u_span(v, &k, a, b, 0, 0, drag, forced);
+    }
+}
+
+/* v of padded row j at points i0..i1, as d_u_span. */
+SW_INLINE void d_v_span(const sw_view *v, const d_row_coef *k, size_t i0, size_t i1, const int mixed,
+                        const int drag, const int forced)
 {
     sw_real *restrict vv = SW_V(v, v);
     const sw_real *restrict eta = SW_V(v, eta), *restrict hy = SW_V(v, hy);
     const sw_real *restrict u = SW_V(v, u), *restrict cd = drag ? (const sw_real *)v->terms->drag_y : NULL;
     const uint8_t *restrict sh = v->terms->share_y;
-    const sw_real gy = (sw_real)(0.25 * v->g * v->dt_s / v->dy_m);
-    const sw_real qn = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]), qs = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j - 1]);
-    const sw_real rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), dtc = (sw_real)(v->dt_s / 9);
     const float *restrict a0 = forced ? v->terms->surface_y[0] : NULL, *restrict a1 = forced ? v->terms->surface_y[1] : NULL;
-    const sw_real c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), c1 = (sw_real)(v->dt_s * v->terms->surface_w);
-    const size_t s = v->stride, r = j * s;
+    const sw_real gy = k->g, qn = k->q, qs = k->qr, rho0 = k->rho0, dtc = k->dtc, c0 = k->c0, c1 = k->c1;
+    const size_t s = v->stride;
     SW_OMP(simd)
-    for (size_t i = r; i <= r + v->nx; i++) {
+    for (size_t i = i0; i <= i1; i++) {
         const sw_real H = hy[i], n0 = u[i], n1 = u[i + 1], s0 = u[i - s], s1 = u[i - s + 1];
         const sw_real rot = H * (qn * (n0 + n1) + qs * (s0 + s1));
-        const sw_real c = (sw_real)sh[i];
+        const sw_real c = mixed ? (sw_real)sh[i] : (sw_real)SW_SHARE_OPEN;
         sw_real rho = rho0 * c;
         if (drag) {
             const sw_real ubar = (sw_real)0.25 * (n0 + n1 + s0 + s1);
@@ -339,6 +371,23 @@ SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag, const int f
         const sw_real dg = -gy * (eta[i + s] + eta[i + s + 1] - eta[i - s] - eta[i - s + 1]);
         vv[i] = forced ? sw_terms_update(vv[i], H, dg + sw_surface_dvel(a0, a1, i, c0, c1), -rot, rho)
                        : sw_terms_update(vv[i], H, dg, -rot, rho);
+    }
+}
+
+SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag, const int forced)
+{
+    const d_row_coef k = {
+        .g = (sw_real)(0.25 * v->g * v->dt_s / v->dy_m),
+        .q = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j]), .qr = (sw_real)(0.5 * v->dt_s * v->terms->f_face[j - 1]),
+        .rho0 = (sw_real)(v->dt_s * v->terms->friction_rate_ms / 3), .dtc = (sw_real)(v->dt_s / 9),
+        .c0 = (sw_real)(v->dt_s * (1 - v->terms->surface_w)), .c1 = (sw_real)(v->dt_s * v->terms->surface_w)};
+    const size_t r = j * v->stride, last = r + v->nx;
+    const uint8_t *mixed = v->terms->share_mixed_y + j * v->terms->n_share_seg;
+    for (size_t a = r, b; a <= last; a = b + 1) {
+        if (sw_share_span(mixed, r, a, last, &b))
+            d_v_span(v, &k, a, b, 1, drag, forced);
+        else
+            d_v_span(v, &k, a, b, 0, drag, forced);
     }
 }
 

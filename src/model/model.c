@@ -43,7 +43,8 @@ size_t sw_model_bytes_for(const sw_grid *g, sw_precision precision, const sw_lay
     const size_t n_pad = stride_for(g, size) * (g->ny + 2);
     const sw_terms_variant v = terms ? sw_terms_variant_of(terms) : SW_TERMS_PLAIN;
     const size_t arrays = 6 + (sw_terms_variant_drags(v) ? 2 : 0) + (terms && terms->surface ? 3 : 0);
-    const size_t share_bytes = v != SW_TERMS_PLAIN && layout && layout->transport_weighted ? 2 * n_pad : 0;
+    const size_t share_bytes = v != SW_TERMS_PLAIN && layout && layout->transport_weighted
+                               ? 2 * n_pad + 2 * (g->ny + 2) * (stride_for(g, size) / SW_SHARE_SEG + 1) : 0;
     const size_t surface_bytes = terms && terms->surface ? 4 * n_pad * sizeof(float) : 0;
     return arrays * n_pad * size + share_bytes + surface_bytes + g->nx * g->ny + 2 * (g->nx + g->ny) * sizeof(sw_edge_cell)
          + 4 * (g->ny + 2) * sizeof(double);   /* Coriolis rows and metric rows */
@@ -441,6 +442,32 @@ static sw_status build_terms(sw_model *m, sw_error *err)
     return SW_OK;
 }
 
+/* The flags of sw_terms.share_mixed_x and _y (terms.h): a segment is mixed when one of its velocity
+ * points flows with a share code other than open water's. Where a point does not flow (H = 0) its
+ * kernel keeps 0 whatever the code, so the open-water code gives the same bits there. */
+static sw_status build_share_segments(sw_model *m, sw_error *err)
+{
+    const size_t rows = m->grid.ny + 2, nseg = (m->stride + SW_SHARE_SEG - 1) / SW_SHARE_SEG;
+    m->share_mixed = calloc(2 * rows * nseg, 1);
+    if (!m->share_mixed)
+        return sw_fail(err, SW_ERR_NOMEM, "out of memory for the water fractions' segment flags");
+    for (int q = 0; q < 2; q++) {
+        const uint8_t *share = q ? m->terms.share_y : m->terms.share_x;
+        const void *depth = q ? m->view.hy : m->view.hx;
+        uint8_t *mixed = m->share_mixed + (size_t)q * rows * nseg;
+        for (size_t j = 0; j < rows; j++)
+            for (size_t i = 0; i < m->stride; i++) {
+                const size_t k = j * m->stride + i;
+                if (share[k] != SW_SHARE_OPEN && sw_model_get(m, depth, k) > 0)
+                    mixed[j * nseg + i / SW_SHARE_SEG] = 1;
+            }
+    }
+    m->terms.share_mixed_x = m->share_mixed;
+    m->terms.share_mixed_y = m->share_mixed + rows * nseg;
+    m->terms.n_share_seg = nseg;
+    return SW_OK;
+}
+
 sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *err)
 {
     *out = NULL;
@@ -558,6 +585,8 @@ sw_status sw_model_create(const sw_model_config *cfg, sw_model **out, sw_error *
             wrap_halo_bytes(m, prep.share_y, 1);
             m->terms.share_x = prep.share_x;
             m->terms.share_y = prep.share_y;
+            if (rc == SW_OK)
+                rc = build_share_segments(m, err);
         }
         if (rc == SW_OK)
             rc = sort_edges_by_row(m, err);
@@ -592,6 +621,7 @@ void sw_model_free(sw_model *m)
     free(m->metric);
     free(m->drag);
     free(m->share);
+    free(m->share_mixed);
     free(m->surface);
     free(m->surface_scratch);
     free(m->edge_heads);

@@ -47,6 +47,8 @@ struct sw_model {
     void *drag;                  /* [2 n_pad] owned: terms.drag_x, then drag_y (quadratic friction), or NULL */
     uint8_t *share;              /* [2 n_pad] owned: terms.share_x, then share_y (bytes; transport-weighted
                                   * layouts with terms), or NULL */
+    uint8_t *share_mixed;        /* [2 (ny + 2) n_share_seg] owned: terms.share_mixed_x, then _y (NULL
+                                  * without share) */
     float *surface;              /* [4 n_pad] owned with surface forcing: the slabs terms.surface_x[0, 1],
                                   * surface_y[0, 1] point into it (in some order), or NULL. (Stored as pairs
                                   * of the two slabs instead, one stream per component, the C forced step

@@ -300,6 +300,19 @@ SW_INLINE sw_real sw_terms_update(sw_real vel, sw_real H, sw_real dvel_gravity, 
     return H > 0 ? (vel * (2 * H - rho) + 2 * H * dvel_gravity + rot) / (2 * H + rho) : 0;
 }
 
+/* The span of a row's velocity points that share one segment of sw_terms.share_mixed_x (terms.h): for
+ * padded row j (first padded index r = j stride) and its point a, sets *b to the last point of a's
+ * segment (at most last) and returns the segment's flag, 1 when the kernel must read the share bytes
+ * there. A kernel walks its points so:
+ *     for (size_t a = first, b; a <= last; a = b + 1)
+ *         if (sw_share_span(mixed_row, r, a, last, &b)) (read the bytes) else (use SW_SHARE_OPEN) */
+SW_INLINE int sw_share_span(const uint8_t *mixed_row, size_t r, size_t a, size_t last, size_t *b)
+{
+    const size_t q = (a - r) / SW_SHARE_SEG, e = r + (q + 1) * SW_SHARE_SEG - 1;
+    *b = e < last ? e : last;
+    return mixed_row[q];
+}
+
 /* The velocity increment of surface forcing at point i over a step: dt (a0 + w (a1 - a0)) with the
  * slabs' accelerations a0, a1 (sw_terms.surface_x or _y, m s-2), c0 = dt (1 - w) and c1 = dt w (s). A
  * kernel adds it to its pressure-gradient increment (sw_terms_update's dvel_gravity), so friction damps

@@ -261,11 +261,18 @@ static void prefetch_momentum_rows(const sw_model *m, ptrdiff_t r)
             for (size_t k = k0; k < k1; k += 16)   /* a 64-byte line holds 16 floats */
                 __builtin_prefetch(a[q] + k, 0, 3);
     }
-    if (t->share_x)
-        for (size_t k = k0; k < k1; k += 64) {     /* 64 bytes */
-            __builtin_prefetch(t->share_x + k, 0, 3);
-            __builtin_prefetch(t->share_y + k, 0, 3);
+    if (t->share_x) {   /* only the segments whose bytes the kernels read (terms.h share_mixed_x) */
+        const uint8_t *mx = t->share_mixed_x + (size_t)r * t->n_share_seg, *my = t->share_mixed_y + (size_t)r * t->n_share_seg;
+        for (size_t q = 0; q < t->n_share_seg; q++) {
+            const size_t a = k0 + q * SW_SHARE_SEG, z = a + SW_SHARE_SEG < k1 ? a + SW_SHARE_SEG : k1;
+            for (size_t k = a; k < z; k += 64) {    /* 64 bytes */
+                if (mx[q])
+                    __builtin_prefetch(t->share_x + k, 0, 3);
+                if (my[q])
+                    __builtin_prefetch(t->share_y + k, 0, 3);
+            }
         }
+    }
 }
 
 static void observe_rest(const sw_model *m, const block *b)

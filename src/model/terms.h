@@ -89,6 +89,13 @@ typedef struct sw_terms {
                                * A byte, not a real: the step reads it at every point, and four bytes
                                * there cost a quarter of the step's memory traffic */
     const uint8_t *share_y;   /* [n_pad] the same at v points */
+    const uint8_t *share_mixed_x; /* [(ny + 2) n_share_seg] with share_x: 1 when the segment q of padded row
+                               * j (padded columns q SW_SHARE_SEG .. (q + 1) SW_SHARE_SEG - 1) holds a u
+                               * point that flows (hx > 0) with a code other than open water's
+                               * (SW_SHARE_OPEN), else 0: the kernels read the bytes of mixed segments only
+                               * and use the open-water code elsewhere (same values, no byte stream) */
+    const uint8_t *share_mixed_y; /* the same for share_y, the v points and hy */
+    size_t n_share_seg;       /* segments a padded row has: ceil(stride / SW_SHARE_SEG) */
     const float *surface_x[2];/* [n_pad] surface forcing at each u point (same padded index as u) at the two
                                * forcing times around the step, earlier then later: the acceleration
                                * tau_x / (rho_w H) - g d(p_b)/dx, m s-2, in the form the layout stores
@@ -104,6 +111,9 @@ typedef struct sw_terms {
     double surface_w;         /* weight of the later slab at the time the step's momentum is centred on
                                * (its new elevation's), 0 .. 1: the forcing is linear in time between slabs */
 } sw_terms;
+
+#define SW_SHARE_OPEN 3    /* sw_share_code of a point in open water (f = 1) */
+#define SW_SHARE_SEG 256   /* padded columns a segment of sw_terms.share_mixed_x covers */
 
 /* The byte stored for a velocity point whose control area holds n_water (1..4) water cells of its
  * four: 3 / f = 12 / n_water (12, 6, 4, 3), exact; 0 for none. A kernel multiplies by it and by a third

@@ -6,10 +6,16 @@ usage: test_golden.py SHOREWARD_BINARY WORK_DIR
        test_golden.py SHOREWARD_BINARY WORK_DIR --record     (rewrites expected.json; see below)
 
 What it pins: every variable of gauges.nc and maps.nc (values as stored, fill values included), as a
-SHA-256 of the raw bytes, for the built-in demo and tests/golden/layout_?.scn, each in double and in
-single precision, on 2 threads. The references were recorded with the code before the stepper redesign
-(commit d66de45, when every layout still wrote its own schedule), so this test proves that the shared
-stepper, with rotation and friction off, computes the same numbers as the five hand-written steps did.
+SHA-256 of the raw bytes, for the built-in demo, tests/golden/layout_?.scn and tests/golden/terms_*.scn,
+each in double and in single precision, on 2 threads. The references of the demo and layout_?.scn were
+recorded with the code before the stepper redesign (commit d66de45, when every layout still wrote its own
+schedule), so this test proves that the shared stepper, with rotation and friction off, computes the same
+numbers as the five hand-written steps did.
+
+The tests/golden/terms_*.scn cases (a strait 600 cells wide with coasts and islands, rotation and each
+kind of friction) pin the momentum terms the same way. They were recorded with commit 5abafa5, before
+the B and D kernels began to skip the water-fraction bytes in open-water segments of a row, so they
+prove that change left every bit as it was; they guard later changes to the terms kernels alike.
 
 The check is against the project's own earlier output, not an outside reference: it guards the numbers
 that the verification suite (tests/verify, against published formulas) has already established.
@@ -46,6 +52,8 @@ def cases():
         for lay in "abcde":
             scn = os.path.join(GOLDEN, f"layout_{lay}.scn")
             out.append((f"layout_{lay}-{prec}", ["run", scn, "--out", "{out}", "--precision", prec]))
+        for scn in sorted(f for f in os.listdir(GOLDEN) if f.startswith("terms_") and f.endswith(".scn")):
+            out.append((f"{scn[:-4]}-{prec}", ["run", os.path.join(GOLDEN, scn), "--out", "{out}", "--precision", prec]))
     return out
 
 
