@@ -263,7 +263,7 @@ SW_INLINE void b_momentum_terms(const sw_view *v, size_t j, const int drag, cons
     const uint8_t *mx = v->terms->share_mixed_x + j * v->terms->n_share_seg;
     const uint8_t *my = v->terms->share_mixed_y + j * v->terms->n_share_seg;
     for (size_t a = r, b; a <= last; a = b + 1) {
-        if (sw_share_span(mx, r, a, last, &b) | my[(a - r) / SW_SHARE_SEG])
+        if (sw_share_span(mx, my, r, a, last, &b))
             b_terms_span(v, &k, a, b, 1, drag, forced);
         else
             b_terms_span(v, &k, a, b, 0, drag, forced);

@@ -335,7 +335,7 @@ SW_INLINE void d_u_terms(const sw_view *v, size_t j, const int drag, const int f
     const uint8_t *mixed = v->terms->share_mixed_x + j * v->terms->n_share_seg;
     const int flat = k.qr == 1;
     for (size_t a = r + 1, b; a <= last; a = b + 1) {
-        const int mix = sw_share_span(mixed, r, a, last, &b);
+        const int mix = sw_share_span(mixed, mixed, r, a, last, &b);
         if (mix && flat)
             d_u_span(v, &k, a, b, 1, 1, drag, forced);
         else if (mix)
@@ -384,7 +384,7 @@ SW_INLINE void d_v_terms(const sw_view *v, size_t j, const int drag, const int f
     const size_t r = j * v->stride, last = r + v->nx;
     const uint8_t *mixed = v->terms->share_mixed_y + j * v->terms->n_share_seg;
     for (size_t a = r, b; a <= last; a = b + 1) {
-        if (sw_share_span(mixed, r, a, last, &b))
+        if (sw_share_span(mixed, mixed, r, a, last, &b))
             d_v_span(v, &k, a, b, 1, drag, forced);
         else
             d_v_span(v, &k, a, b, 0, drag, forced);

@@ -300,17 +300,24 @@ SW_INLINE sw_real sw_terms_update(sw_real vel, sw_real H, sw_real dvel_gravity, 
     return H > 0 ? (vel * (2 * H - rho) + 2 * H * dvel_gravity + rot) / (2 * H + rho) : 0;
 }
 
-/* The span of a row's velocity points that share one segment of sw_terms.share_mixed_x (terms.h): for
- * padded row j (first padded index r = j stride) and its point a, sets *b to the last point of a's
- * segment (at most last) and returns the segment's flag, 1 when the kernel must read the share bytes
- * there. A kernel walks its points so:
+/* The span of a row's velocity points from a to the end of the run of segments of
+ * sw_terms.share_mixed_x (terms.h) that have a's flag: for padded row j (first padded index r = j stride),
+ * with the flag rows mx and my of j (a point reads the bytes when either says so; pass one row twice for
+ * one flag), sets *b to the last point of the run (at most last) and returns the flag, 1 when the kernel
+ * must read the share bytes there. A run, not a segment: a kernel's loop starts (and ends) once a run,
+ * so a row of open water between two coasts is three loops. A kernel walks its points so:
  *     for (size_t a = first, b; a <= last; a = b + 1)
- *         if (sw_share_span(mixed_row, r, a, last, &b)) (read the bytes) else (use SW_SHARE_OPEN) */
-SW_INLINE int sw_share_span(const uint8_t *mixed_row, size_t r, size_t a, size_t last, size_t *b)
+ *         if (sw_share_span(mx, my, r, a, last, &b)) (read the bytes) else (use SW_SHARE_OPEN) */
+SW_INLINE int sw_share_span(const uint8_t *mx, const uint8_t *my, size_t r, size_t a, size_t last, size_t *b)
 {
-    const size_t q = (a - r) / SW_SHARE_SEG, e = r + (q + 1) * SW_SHARE_SEG - 1;
+    size_t q = (a - r) / SW_SHARE_SEG, e = r + (q + 1) * SW_SHARE_SEG - 1;
+    const int flag = mx[q] | my[q];
+    while (e < last && (mx[q + 1] | my[q + 1]) == flag) {   /* e < last: segment q + 1 is in the row */
+        q++;
+        e += SW_SHARE_SEG;
+    }
     *b = e < last ? e : last;
-    return mixed_row[q];
+    return flag;
 }
 
 /* The velocity increment of surface forcing at point i over a step: dt (a0 + w (a1 - a0)) with the
